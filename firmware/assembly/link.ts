@@ -1,0 +1,75 @@
+// The host link: a receive ring filled by fw_rx, line extraction for the main loop, and frame
+// output through the HAL. All buffers are allocated once, when the module starts.
+
+import { FrameWriter } from "../../shared-protocol/src/frame-writer.ts";
+import { MAX_LINE_BYTES } from "../../shared-protocol/src/constants.ts";
+import { halUartWrite } from "./hal.ts";
+
+const RX_RING_BYTES: i32 = 256;
+const rxRing = new Uint8Array(RX_RING_BYTES);
+let rxHead: i32 = 0; // next write
+let rxTail: i32 = 0; // next read
+let rxDropped: bool = false;
+
+export const out = new FrameWriter();
+export const line = new Uint8Array(MAX_LINE_BYTES + 1);
+let lineLen: i32 = 0;
+let lineTooLong: bool = false;
+
+/** Stores one received byte; called by the port for every byte from the host. */
+export function rxByte(b: i32): void {
+  const next: i32 = (rxHead + 1) % RX_RING_BYTES;
+  if (next == rxTail) {
+    rxDropped = true; // the host sent faster than the main loop reads: the line is spoilt
+    return;
+  }
+  rxRing[rxHead] = <u8>b;
+  rxHead = next;
+}
+
+/**
+ * Moves received bytes into `line` until a newline. Returns the line's length, 0 when no complete
+ * line has arrived yet, or -1 for a line that overflowed `line` or the receive ring.
+ */
+export function nextLine(): i32 {
+  while (rxTail != rxHead) {
+    const c: i32 = rxRing[rxTail];
+    rxTail = (rxTail + 1) % RX_RING_BYTES;
+    if (c == 0x0a) {
+      const n: i32 = lineLen;
+      const spoilt: bool = lineTooLong || rxDropped;
+      lineLen = 0;
+      lineTooLong = false;
+      rxDropped = false;
+      if (spoilt) return -1;
+      if (n == 0) continue; // blank line: ignored, so a host can resynchronise by sending "\n"
+      return n;
+    }
+    if (lineLen >= MAX_LINE_BYTES) {
+      lineTooLong = true;
+    } else {
+      line[lineLen] = <u8>c;
+      lineLen++;
+    }
+  }
+  return 0;
+}
+
+/** Sends the frame being built in `out`. */
+export function send(): void {
+  const n: i32 = out.finish();
+  if (n > 0) halUartWrite(out.buf.dataStart, n);
+}
+
+export function sendOk(cmd: string): void {
+  out.begin("OK");
+  out.putText(cmd);
+  send();
+}
+
+export function sendError(code: i32, cmd: string): void {
+  out.begin("ER");
+  out.putInt(code);
+  out.putText(cmd);
+  send();
+}

@@ -1,0 +1,194 @@
+// Request/response client for a tester on any Transport. One command at a time; every wait has
+// a timeout; a capture stream is checked line by line (CRC, sequence, count, checksum) and, if
+// damaged, fetched again with the resend command: a damaged capture never triggers a new pulse.
+
+import { PROTOCOL_VERSION } from "@henrytick/shared-protocol";
+import type { Transport, TransportError } from "../transport/transport.ts";
+import { DeviceError, DeviceTimeoutError } from "./errors.ts";
+import type { Decoded, Frame } from "./frames.ts";
+import { decodeLine, encodeCommand, ProtocolError } from "./frames.ts";
+import type { DeviceIdentity, DeviceProfile } from "./profile.ts";
+import { parseIdentity, parseProfile } from "./profile.ts";
+import type { RawCapture } from "./stream-reader.ts";
+import { CaptureStreamReader, StreamDefect } from "./stream-reader.ts";
+
+export interface MeasureSettings {
+  /** Index of the drive resistor in the profile. */
+  drive: number;
+  /** Index of the tank capacitor in the profile. */
+  tank: number;
+  charge_us: number;
+  edge_limit: number;
+  timeout_ms: number;
+  /** The capture ends after this long without an edge. */
+  quiet_us: number;
+}
+
+export interface ClientOptions {
+  /** Wait for a reply line, ms. Default 2000. */
+  reply_timeout_ms?: number;
+  /** Attempts to fetch a damaged capture again before giving up. Default 2. */
+  resend_attempts?: number;
+}
+
+export class DeviceClient {
+  private inbox: Decoded[] = [];
+  private waiter: (() => void) | null = null;
+  private linkError: TransportError | null = null;
+  private busy: Promise<unknown> = Promise.resolve();
+  private readonly replyTimeout: number;
+  private readonly resendAttempts: number;
+  identity!: DeviceIdentity;
+  profile!: DeviceProfile;
+
+  private constructor(readonly transport: Transport, opts: ClientOptions) {
+    this.replyTimeout = opts.reply_timeout_ms ?? 2000;
+    this.resendAttempts = opts.resend_attempts ?? 2;
+    transport.onLine((line) => {
+      this.inbox.push(decodeLine(line));
+      this.wake();
+    });
+    transport.onClose((err) => {
+      this.linkError = err ?? this.linkError;
+      this.wake();
+    });
+  }
+
+  /** Identifies the tester, checks the protocol version and reads its profile. */
+  static async connect(transport: Transport, opts: ClientOptions = {}): Promise<DeviceClient> {
+    const client = new DeviceClient(transport, opts);
+    // A newline first flushes any partial line left in the tester's receiver.
+    await transport.write(new TextEncoder().encode("\n"));
+    client.identity = await client.identify();
+    if (client.identity.protocol_version !== PROTOCOL_VERSION) {
+      throw new ProtocolError(
+        `tester speaks protocol v${client.identity.protocol_version}, this host speaks v${PROTOCOL_VERSION}; update the firmware or the host`,
+        "PROTOCOL_VERSION",
+      );
+    }
+    client.profile = await client.readProfile();
+    return client;
+  }
+
+  identify(): Promise<DeviceIdentity> {
+    return this.exclusive(async () => {
+      const frames = await this.command("ID", []);
+      const id = frames.find((f) => f.tag === "ID");
+      if (!id) throw new ProtocolError("identify reply missing", "BAD_REPLY");
+      return parseIdentity(id);
+    });
+  }
+
+  readProfile(): Promise<DeviceProfile> {
+    return this.exclusive(async () => parseProfile(await this.command("PF", [])));
+  }
+
+  /** Forces the switch open and ends any measurement. Never refused by the firmware. */
+  abort(): Promise<void> {
+    return this.exclusive(async () => {
+      await this.command("AB", []);
+    });
+  }
+
+  /** Pulses the part once and returns the verified edge record. */
+  measure(s: MeasureSettings): Promise<RawCapture> {
+    return this.exclusive(async () => {
+      await this.command("MS", [s.drive, s.tank, s.charge_us, s.edge_limit, s.timeout_ms, s.quiet_us]);
+      // Settle + charge + capture window, plus a reply margin.
+      const firstWait = this.profile.settle_us / 1000 + s.charge_us / 1000 + s.timeout_ms + this.replyTimeout;
+      let lastDefect: StreamDefect | null = null;
+      for (let attempt = 0; attempt <= this.resendAttempts; attempt++) {
+        if (attempt > 0) await this.command("CR", []);
+        try {
+          return await this.readStream(s, attempt === 0 ? firstWait : this.replyTimeout);
+        } catch (e) {
+          if (!(e instanceof StreamDefect)) throw e;
+          lastDefect = e;
+          await this.drainUntilQuiet();
+        }
+      }
+      throw new ProtocolError(
+        `capture damaged in transit ${this.resendAttempts + 1} times (${lastDefect?.message}); check the cable and USB port, then measure again`,
+        "CAPTURE_DAMAGED",
+      );
+    });
+  }
+
+  async close(): Promise<void> {
+    await this.transport.close();
+  }
+
+  private async readStream(s: MeasureSettings, firstWait_ms: number): Promise<RawCapture> {
+    const reader = new CaptureStreamReader(s);
+    let wait = firstWait_ms;
+    for (;;) {
+      const d = await this.next(wait, "capture data");
+      wait = this.replyTimeout;
+      if (!d.ok) throw new StreamDefect(`corrupt line (error ${d.code})`);
+      const f = d.frame;
+      if (f.tag === "ER") throw new DeviceError(Number(f.fields[0]), f.fields[1] ?? "MS");
+      const done = reader.accept(f);
+      if (done) return done;
+    }
+  }
+
+  /** Sends a command and collects data frames until its OK; throws DeviceError on ER. */
+  private async command(tag: string, args: number[]): Promise<Frame[]> {
+    this.inbox = []; // lines left from an earlier exchange belong to no one
+    await this.transport.write(encodeCommand(tag, args));
+    const frames: Frame[] = [];
+    for (;;) {
+      const d = await this.next(this.replyTimeout, `reply to ${tag}`);
+      if (!d.ok) throw new ProtocolError(`corrupt reply to ${tag} (error ${d.code}): ${JSON.stringify(d.line)}; check the cable and retry`, "LINK_CORRUPT");
+      const f = d.frame;
+      if (f.tag === "OK" && f.fields[0] === tag) return frames;
+      if (f.tag === "ER") throw new DeviceError(Number(f.fields[0]), f.fields[1] === "?" ? tag : (f.fields[1] ?? tag));
+      frames.push(f);
+    }
+  }
+
+  private async drainUntilQuiet(): Promise<void> {
+    try {
+      for (;;) await this.next(200, "drain");
+    } catch (e) {
+      if (!(e instanceof DeviceTimeoutError)) throw e;
+    }
+  }
+
+  private next(timeout_ms: number, what: string): Promise<Decoded> {
+    return new Promise((resolve, reject) => {
+      const check = (): boolean => {
+        if (this.inbox.length > 0) {
+          resolve(this.inbox.shift()!);
+          return true;
+        }
+        if (this.linkError) {
+          reject(this.linkError);
+          return true;
+        }
+        return false;
+      };
+      if (check()) return;
+      const timer = setTimeout(() => {
+        this.waiter = null;
+        reject(new DeviceTimeoutError(what, timeout_ms));
+      }, timeout_ms);
+      this.waiter = () => {
+        if (check()) {
+          clearTimeout(timer);
+          this.waiter = null;
+        }
+      };
+    });
+  }
+
+  private wake(): void {
+    this.waiter?.();
+  }
+
+  private exclusive<T>(fn: () => Promise<T>): Promise<T> {
+    const run = this.busy.then(fn, fn);
+    this.busy = run.catch(() => undefined);
+    return run;
+  }
+}

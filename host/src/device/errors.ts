@@ -1,0 +1,56 @@
+// Errors a user can meet when talking to a tester. Each carries a stable code and a message
+// that ends with what to do next.
+
+import {
+  ERR_ABORTED, ERR_ARGUMENT, ERR_BUSY, ERR_CHARGE_LIMIT, ERR_CRC, ERR_LINE_TOO_LONG, ERR_REST,
+  ERR_SYNTAX, ERR_UNKNOWN_COMMAND,
+} from "@henrytick/shared-protocol";
+
+/** The tester refused a command with an `ER` frame. */
+export class DeviceError extends Error {
+  readonly code: string;
+  readonly deviceCode: number;
+  readonly command: string;
+  constructor(deviceCode: number, command: string) {
+    const [code, text] = describeDeviceError(deviceCode);
+    super(`tester refused ${command}: ${text}`);
+    this.name = "DeviceError";
+    this.code = code;
+    this.deviceCode = deviceCode;
+    this.command = command;
+  }
+}
+
+/** No answer within the allowed time. */
+export class DeviceTimeoutError extends Error {
+  readonly code = "DEVICE_TIMEOUT";
+  constructor(what: string, timeout_ms: number) {
+    super(`no ${what} from the tester within ${timeout_ms} ms; check that the port is a henrytick tester, then unplug and reconnect it`);
+    this.name = "DeviceTimeoutError";
+  }
+}
+
+export function describeDeviceError(n: number): [string, string] {
+  switch (n) {
+    case ERR_CRC:
+      return ["LINK_CRC", "the command arrived corrupted (CRC mismatch); check the cable and retry"];
+    case ERR_SYNTAX:
+      return ["LINK_SYNTAX", "the command was malformed; update the host software to match the firmware"];
+    case ERR_UNKNOWN_COMMAND:
+      return ["UNKNOWN_COMMAND", "the firmware does not know this command; update the firmware or the host"];
+    case ERR_ARGUMENT:
+      return ["BAD_ARGUMENT", "a setting is outside the tester's limits; check the device profile (henrytick profile)"];
+    case ERR_BUSY:
+      return ["BUSY", "a measurement is already running; wait for it or abort it"];
+    case ERR_CHARGE_LIMIT:
+      return ["CHARGE_LIMIT", "the charge time exceeds the drive resistor's safety interlock; use a larger drive resistor or a shorter charge"];
+    case ERR_REST:
+      return ["REST_PENDING", "the tester enforces a rest between pulses to protect its resistors; wait and retry"];
+    case ERR_LINE_TOO_LONG:
+      return ["LINE_TOO_LONG", "the command line was too long; update the host software"];
+    case ERR_ABORTED:
+      return ["ABORTED", "the measurement was aborted; the switch is open"];
+    default:
+      return ["DEVICE_ERROR", `the tester reported error ${n}; see docs/protocol.md`];
+  }
+}

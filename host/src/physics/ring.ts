@@ -1,0 +1,64 @@
+// The linear ring-down of a part (L, Rs, optional Rp) across a tank capacitance C, released
+// with current I0 and zero voltage: the exact solution of measurement notes §1 (standard circuit
+// theory). Pure functions, SI units throughout.
+
+export interface RingPart {
+  /** Inductance, henries. */
+  l_h: number;
+  /** Series loss resistance, ohms. */
+  rs_ohm: number;
+  /** Parallel (core) loss resistance, ohms; Infinity or undefined when absent. */
+  rp_ohm?: number;
+}
+
+export interface RingConstants {
+  /** Undamped angular frequency w0, rad/s. */
+  w0_rad_s: number;
+  /** Damped angular frequency wd, rad/s (NaN when not underdamped). */
+  wd_rad_s: number;
+  /** Decay rate alpha, 1/s. */
+  alpha_per_s: number;
+  q: number;
+  /** True when the circuit rings (alpha < w0). */
+  underdamped: boolean;
+}
+
+export function ringConstants(part: RingPart, c_f: number): RingConstants {
+  const rp = part.rp_ohm ?? Infinity;
+  const w0sq = (1 + part.rs_ohm / rp) / (part.l_h * c_f);
+  const alpha = part.rs_ohm / (2 * part.l_h) + (Number.isFinite(rp) ? 1 / (2 * rp * c_f) : 0);
+  const w0 = Math.sqrt(w0sq);
+  const wdsq = w0sq - alpha * alpha;
+  return {
+    w0_rad_s: w0,
+    wd_rad_s: wdsq > 0 ? Math.sqrt(wdsq) : NaN,
+    alpha_per_s: alpha,
+    q: w0 / (2 * alpha),
+    underdamped: wdsq > 0,
+  };
+}
+
+/**
+ * Ring voltage as the comparator sees it (the switch's drain, positive first):
+ * v(t) = A0 e^(-alpha t) sin(wd t), A0 = I0 / (C wd).
+ */
+export interface DampedSine {
+  a0_v: number;
+  alpha_per_s: number;
+  wd_rad_s: number;
+}
+
+export function ringWaveform(part: RingPart, c_f: number, i0_a: number): DampedSine {
+  const k = ringConstants(part, c_f);
+  if (!k.underdamped) throw new RangeError("part does not ring: alpha >= w0 (overdamped)");
+  return { a0_v: i0_a / (c_f * k.wd_rad_s), alpha_per_s: k.alpha_per_s, wd_rad_s: k.wd_rad_s };
+}
+
+export function sineValue(s: DampedSine, t_s: number): number {
+  return s.a0_v * Math.exp(-s.alpha_per_s * t_s) * Math.sin(s.wd_rad_s * t_s);
+}
+
+/** Current in the inductor after closing the switch for `t_s` (first-order L/R rise). */
+export function chargeCurrent(supply_v: number, loop_ohm: number, l_h: number, t_s: number): number {
+  return (supply_v / loop_ohm) * (1 - Math.exp((-t_s * loop_ohm) / l_h));
+}

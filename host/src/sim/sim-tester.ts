@@ -1,0 +1,149 @@
+// The simulated tester: the real firmware wasm running on a Node implementation of its HAL, with
+// the circuit, comparator and timer simulated. Time is virtual: the firmware asks how long it may
+// sleep (fw_poll's return value) and the simulator jumps the clock forward by that much, so a
+// measurement completes as fast as the host can compute it and is fully deterministic.
+
+import { ringWaveform } from "../physics/ring.ts";
+import { chargeCurrent } from "../physics/ring.ts";
+import { captureEdges } from "./comparator-edges.ts";
+import type { BoardModel } from "./board-model.ts";
+import { referenceBoard } from "./board-model.ts";
+import { firmwareModule } from "./firmware-image.ts";
+import { Random } from "./random.ts";
+import type { PartModel } from "./scenario.ts";
+
+interface FirmwareExports {
+  memory: WebAssembly.Memory;
+  fw_init(): void;
+  fw_rx(byte: number): void;
+  fw_poll(): number;
+}
+
+/** Edges of the pending capture, in ticks since the switch opened. */
+interface PendingCapture {
+  openTick: number;
+  ticks: number[];
+  levels: number[];
+  written: number;
+  buf: number;
+  capacity: number;
+  stopped: boolean;
+}
+
+export interface SimTesterOptions {
+  part: PartModel | null; // null: open terminals
+  seed: number;
+  board?: BoardModel;
+}
+
+/** Longest run of polls without the firmware going idle; guards against a firmware bug. */
+const MAX_POLLS_PER_RUN = 1_000_000;
+
+export class SimTester {
+  readonly board: BoardModel;
+  part: PartModel | null;
+  private rng: Random;
+  private fw: FirmwareExports;
+  private nowTicks = 0; // virtual time, float64 ticks since reset
+  private drive = 0;
+  private tank = 0;
+  private capture: PendingCapture | null = null;
+  private output: (bytes: Uint8Array) => void = () => {};
+  /** Counts of physical events, for tests and diagnostics. */
+  readonly stats = { pulses: 0, switchClosedTicks: 0, peakRingV: 0 };
+
+  constructor(opts: SimTesterOptions) {
+    this.board = opts.board ?? referenceBoard();
+    this.part = opts.part;
+    this.rng = new Random(opts.seed);
+    const instance = new WebAssembly.Instance(firmwareModule(), { hal: this.hal() });
+    this.fw = instance.exports as unknown as FirmwareExports;
+    this.fw.fw_init();
+  }
+
+  /** Receives everything the firmware sends to the host. */
+  onOutput(handler: (bytes: Uint8Array) => void): void {
+    this.output = handler;
+  }
+
+  /** Delivers bytes from the host, then runs the firmware until it waits for input again. */
+  input(bytes: Uint8Array): void {
+    for (const b of bytes) this.fw.fw_rx(b);
+    this.run();
+  }
+
+  /** Virtual seconds since reset. */
+  get time_s(): number {
+    return this.nowTicks / this.board.timer.tick_hz;
+  }
+
+  private run(): void {
+    for (let i = 0; i < MAX_POLLS_PER_RUN; i++) {
+      const wait = this.fw.fw_poll();
+      if (wait <= 0) return;
+      this.nowTicks += wait;
+    }
+    throw new Error("simulated firmware did not go idle (firmware fault)");
+  }
+
+  private hal(): Record<string, (...args: number[]) => number | void> {
+    return {
+      now: () => Math.floor(this.nowTicks) | 0,
+      select: (drive: number, tank: number) => {
+        this.drive = drive;
+        this.tank = tank;
+      },
+      pulse: (chargeTicks: number, buf: number, capacity: number) => this.pulse(chargeTicks, buf, capacity),
+      capture_count: () => this.captureCount(),
+      stop: () => {
+        if (this.capture) {
+          this.captureCount();
+          this.capture.stopped = true;
+        }
+      },
+      uart_write: (ptr: number, len: number) => {
+        this.output(new Uint8Array(this.fw.memory.buffer, ptr, len).slice());
+      },
+      device_id: () => this.board.device_id | 0,
+    };
+  }
+
+  private pulse(chargeTicks: number, buf: number, capacity: number): void {
+    this.stats.pulses++;
+    this.stats.switchClosedTicks += chargeTicks;
+    const b = this.board;
+    const openTick = this.nowTicks + chargeTicks;
+    const pending: PendingCapture = { openTick, ticks: [], levels: [], written: 0, buf, capacity, stopped: false };
+    this.capture = pending;
+    const part = this.part;
+    if (!part) return; // open terminals: no current, no ring
+    const loop = b.drive_ohm[this.drive] + part.series_ohm + b.switch_on_ohm;
+    const i0 = chargeCurrent(b.supply_v, loop, part.inductance_h, chargeTicks / b.timer.tick_hz);
+    const c = b.tank_f[this.tank] + b.fixture_f + part.self_capacitance_f;
+    let ring;
+    try {
+      ring = ringWaveform({ l_h: part.inductance_h, rs_ohm: part.series_ohm, rp_ohm: part.parallel_ohm }, c, i0);
+    } catch {
+      return; // overdamped: the drain relaxes without crossing back, no edges
+    }
+    this.stats.peakRingV = Math.max(this.stats.peakRingV, ring.a0_v);
+    const window_s = (2 ** 30 - 1) / b.timer.tick_hz;
+    const edges = captureEdges(ring, b.comparator, b.timer, this.rng, capacity, window_s);
+    pending.ticks = edges.ticks;
+    pending.levels = edges.levels;
+  }
+
+  /** DMA emulation: copies edges that have happened by now into firmware memory. */
+  private captureCount(): number {
+    const cap = this.capture;
+    if (!cap) return 0;
+    if (cap.stopped) return cap.written;
+    const mem = new Int32Array(this.fw.memory.buffer, cap.buf, cap.capacity);
+    const elapsed = this.nowTicks - cap.openTick;
+    while (cap.written < cap.ticks.length && cap.written < cap.capacity && cap.ticks[cap.written] <= elapsed) {
+      mem[cap.written] = (cap.ticks[cap.written] << 1) | cap.levels[cap.written];
+      cap.written++;
+    }
+    return cap.written;
+  }
+}

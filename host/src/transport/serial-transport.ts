@@ -1,0 +1,81 @@
+// Transport over a serial port (USB CDC on hardware, or a pseudo-terminal in front of a
+// simulated tester) through the node-serialport stack.
+
+import { autoDetect } from "@serialport/bindings-cpp";
+import { ReadlineParser } from "@serialport/parser-readline";
+import { SerialPortStream } from "@serialport/stream";
+import type { Transport } from "./transport.ts";
+import { TransportError } from "./transport.ts";
+
+export interface SerialOptions {
+  path: string;
+  /** Ignored by USB CDC devices, used by UART bridges. Default 115200. */
+  baudRate?: number;
+}
+
+export class SerialTransport implements Transport {
+  readonly description: string;
+  private port: SerialPortStream;
+  private lineHandler: (line: string) => void = () => {};
+  private closeHandler: (error: TransportError | null) => void = () => {};
+  private closing = false;
+
+  private constructor(port: SerialPortStream, path: string) {
+    this.port = port;
+    this.description = `serial ${path}`;
+    const parser = port.pipe(new ReadlineParser({ delimiter: "\n", encoding: "latin1" }));
+    parser.on("data", (line: string) => this.lineHandler(line));
+    port.on("close", (err: Error & { disconnected?: boolean } | null) => {
+      if (this.closing) return this.closeHandler(null);
+      this.closeHandler(new TransportError(`${this.description} closed: ${err?.message ?? "port closed"}`, true));
+    });
+    port.on("error", (err: Error) => {
+      this.closeHandler(new TransportError(`${this.description}: ${err.message}`, false));
+    });
+  }
+
+  /** Opens the port; rejects with a TransportError that names the path and a next step. */
+  static open(opts: SerialOptions): Promise<SerialTransport> {
+    if (typeof opts.path !== "string" || opts.path.length === 0) {
+      throw new TypeError('"path" must be a non-empty serial device path');
+    }
+    return new Promise((resolve, reject) => {
+      const port = new SerialPortStream({
+        binding: autoDetect(),
+        path: opts.path,
+        baudRate: opts.baudRate ?? 115200,
+        autoOpen: false,
+      });
+      port.open((err) => {
+        if (err) {
+          reject(new TransportError(`cannot open ${opts.path}: ${err.message} (check the path, that the tester is plugged in, and that you may access the port)`, false));
+          return;
+        }
+        resolve(new SerialTransport(port, opts.path));
+      });
+    });
+  }
+
+  write(data: Uint8Array): Promise<void> {
+    return new Promise((resolve, reject) => {
+      this.port.write(Buffer.from(data), (err) => {
+        if (err) reject(new TransportError(`${this.description}: write failed: ${err.message}`, true));
+        else resolve();
+      });
+    });
+  }
+
+  onLine(handler: (line: string) => void): void {
+    this.lineHandler = handler;
+  }
+
+  onClose(handler: (error: TransportError | null) => void): void {
+    this.closeHandler = handler;
+  }
+
+  close(): Promise<void> {
+    if (!this.port.isOpen) return Promise.resolve();
+    this.closing = true;
+    return new Promise((resolve) => this.port.close(() => resolve()));
+  }
+}

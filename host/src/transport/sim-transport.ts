@@ -1,0 +1,45 @@
+// Transport to the in-process simulated tester. Replies are delivered asynchronously (on the
+// next turn of the event loop), as they would be from a real port.
+
+import { SimTester } from "../sim/sim-tester.ts";
+import type { Transport, TransportError } from "./transport.ts";
+import { LineSplitter, TransportError as TError } from "./transport.ts";
+
+export class SimTransport implements Transport {
+  readonly description = "simulated tester";
+  private lineHandler: (line: string) => void = () => {};
+  private closeHandler: (error: TransportError | null) => void = () => {};
+  private readonly splitter: LineSplitter;
+  private closed = false;
+
+  constructor(readonly tester: SimTester) {
+    this.splitter = new LineSplitter((line) => this.lineHandler(line));
+    tester.onOutput((bytes) => {
+      setImmediate(() => {
+        if (!this.closed) this.splitter.push(bytes);
+      });
+    });
+  }
+
+  async write(data: Uint8Array): Promise<void> {
+    if (this.closed) throw new TError("simulated tester link is closed", true);
+    const copy = data.slice();
+    setImmediate(() => {
+      if (!this.closed) this.tester.input(copy);
+    });
+  }
+
+  onLine(handler: (line: string) => void): void {
+    this.lineHandler = handler;
+  }
+
+  onClose(handler: (error: TransportError | null) => void): void {
+    this.closeHandler = handler;
+  }
+
+  async close(): Promise<void> {
+    if (this.closed) return;
+    this.closed = true;
+    this.closeHandler(null);
+  }
+}

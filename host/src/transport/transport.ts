@@ -1,0 +1,43 @@
+// The link to a tester: bytes out, complete lines in. Implementations: a serial port (real
+// hardware or a pseudo-terminal) and the in-process simulated tester. The device client is
+// written against this interface only.
+
+export interface Transport {
+  /** Human-readable name of the link, for messages ("serial /dev/ttyACM0", "simulated tester"). */
+  readonly description: string;
+  /** Sends bytes (whole frames, newline included). Rejects if the link is gone. */
+  write(data: Uint8Array): Promise<void>;
+  /** Receives every complete line (newline removed) in order. Replaces any previous handler. */
+  onLine(handler: (line: string) => void): void;
+  /** Called once if the link fails or closes underneath us (unplugged, port error). */
+  onClose(handler: (error: TransportError | null) => void): void;
+  close(): Promise<void>;
+}
+
+/** A failure of the link itself. `disconnected` is true when the device went away. */
+export class TransportError extends Error {
+  readonly disconnected: boolean;
+  constructor(message: string, disconnected: boolean) {
+    super(message);
+    this.name = "TransportError";
+    this.disconnected = disconnected;
+  }
+}
+
+/** Splits a byte stream into lines; shared by transports that receive raw bytes. */
+export class LineSplitter {
+  private pending = "";
+  private readonly decoder = new TextDecoder("latin1");
+  constructor(private readonly emit: (line: string) => void) {}
+
+  push(bytes: Uint8Array): void {
+    this.pending += this.decoder.decode(bytes, { stream: true });
+    let nl = this.pending.indexOf("\n");
+    while (nl >= 0) {
+      const line = this.pending.slice(0, nl);
+      this.pending = this.pending.slice(nl + 1);
+      this.emit(line);
+      nl = this.pending.indexOf("\n");
+    }
+  }
+}
