@@ -99,7 +99,7 @@ export class FrameReader {
     }
     if (!negative) {
       if (v == -2147483648) return this.badInt(min);
-      v = -v;
+      v = 0 - v; // not -v: in JavaScript that turns 0 into -0
     }
     if (v < min || v > max) return this.badInt(min);
     return v;
