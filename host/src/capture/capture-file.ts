@@ -1,0 +1,115 @@
+// Capture file v1 (docs/capture-format.md): the edge record of one ring-down with everything
+// needed to analyse it again later. Written by `measure --save`, read by `analyze`.
+
+import { renameSync, writeFileSync, readFileSync } from "node:fs";
+
+export const CAPTURE_FORMAT = "henrytick-capture";
+export const CAPTURE_VERSION = 1;
+
+export interface CaptureV1 {
+  format: typeof CAPTURE_FORMAT;
+  version: 1;
+  tick_hz: number;
+  /** [tick, level]: ticks since the switch opened; level 1 after a rising edge. */
+  edges: [number, number][];
+  /** Capacitance across the part during the ring (nominal or calibrated). */
+  tank_c_f: number;
+  /** Standard uncertainty of tank_c_f. */
+  tank_c_u_f?: number;
+  /** [rising, falling] comparator thresholds referred to the ring voltage. */
+  thresholds_v: [number, number];
+  drive?: { supply_v: number; series_ohm: number };
+  range?: { drive_index: number; tank_index: number; charge_us: number; edge_limit: number; timeout_ms: number; quiet_us: number };
+  device?: { id: string; firmware_version: string; protocol_version: number; transport: string };
+  meta?: { label?: string; time?: string; end_reason?: string; [k: string]: unknown };
+  [extra: string]: unknown;
+}
+
+export class CaptureFileError extends Error {
+  readonly code = "BAD_CAPTURE_FILE";
+  constructor(message: string) {
+    super(message);
+    this.name = "CaptureFileError";
+  }
+}
+
+function fail(where: string, what: string): never {
+  throw new CaptureFileError(`capture ${where}: ${what}`);
+}
+
+function positiveNumber(o: Record<string, unknown>, key: string): number {
+  const v = o[key];
+  if (typeof v !== "number" || !Number.isFinite(v) || v <= 0) fail(`field "${key}"`, `must be a positive number, got ${JSON.stringify(v)}`);
+  return v;
+}
+
+/** Checks a parsed object against capture v1; throws CaptureFileError naming the first problem. */
+export function validateCapture(raw: unknown): CaptureV1 {
+  if (typeof raw !== "object" || raw === null || Array.isArray(raw)) fail("file", "is not a JSON object");
+  const o = raw as Record<string, unknown>;
+  if (o.format !== CAPTURE_FORMAT) fail('field "format"', `must be "${CAPTURE_FORMAT}", got ${JSON.stringify(o.format)}`);
+  if (o.version !== CAPTURE_VERSION) {
+    fail('field "version"', `version ${JSON.stringify(o.version)} is not supported; this henrytick reads version ${CAPTURE_VERSION} (update henrytick to read newer files)`);
+  }
+  positiveNumber(o, "tick_hz");
+  positiveNumber(o, "tank_c_f");
+  if (o.tank_c_u_f !== undefined) positiveNumber(o, "tank_c_u_f");
+  const th = o.thresholds_v;
+  if (!Array.isArray(th) || th.length !== 2 || !th.every((x) => typeof x === "number" && Number.isFinite(x))) {
+    fail('field "thresholds_v"', "must be [rising, falling] in volts");
+  }
+  if (!(th[0] > th[1])) fail('field "thresholds_v"', "rising threshold must be above the falling one");
+  const edges = o.edges;
+  if (!Array.isArray(edges)) fail('field "edges"', "must be an array of [tick, level]");
+  let prev = -1;
+  for (let i = 0; i < edges.length; i++) {
+    const e = edges[i];
+    if (!Array.isArray(e) || e.length !== 2) fail(`edges[${i}]`, "must be [tick, level]");
+    const [t, l] = e as unknown[];
+    if (typeof t !== "number" || !Number.isSafeInteger(t) || t < 0) fail(`edges[${i}]`, `tick must be a non-negative integer, got ${JSON.stringify(t)}`);
+    if (l !== 0 && l !== 1) fail(`edges[${i}]`, `level must be 0 or 1, got ${JSON.stringify(l)}`);
+    if (t < prev) fail(`edges[${i}]`, `tick ${t} is earlier than the previous edge (${prev})`);
+    prev = t;
+  }
+  return o as CaptureV1;
+}
+
+export function parseCapture(text: string): CaptureV1 {
+  let raw: unknown;
+  try {
+    raw = JSON.parse(text);
+  } catch (e) {
+    fail("file", `is not valid JSON (${(e as Error).message})`);
+  }
+  return validateCapture(raw);
+}
+
+export function readCaptureFile(path: string): CaptureV1 {
+  let text: string;
+  try {
+    text = readFileSync(path, "utf8");
+  } catch (e) {
+    throw new CaptureFileError(`cannot read ${path}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
+  }
+  try {
+    return parseCapture(text);
+  } catch (e) {
+    if (e instanceof CaptureFileError) throw new CaptureFileError(`${path}: ${e.message}`);
+    throw e;
+  }
+}
+
+/** Compact JSON: one edge pair per array element, no indentation inside the edge list. */
+export function serializeCapture(c: CaptureV1): string {
+  const { edges, ...rest } = c;
+  const head = JSON.stringify(rest, null, 2);
+  const edgeText = edges.map((e) => `[${e[0]},${e[1]}]`).join(",");
+  return `${head.slice(0, -2)},\n  "edges": [${edgeText}]\n}\n`;
+}
+
+/** Writes atomically: a reader never sees a half-written capture, and a crash keeps the old file. */
+export function writeCaptureFile(path: string, c: CaptureV1): void {
+  const tmp = `${path}.${process.pid}.tmp`;
+  writeFileSync(tmp, serializeCapture(c));
+  renameSync(tmp, path);
+}

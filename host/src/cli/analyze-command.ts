@@ -1,0 +1,29 @@
+// henrytick analyze FILE...: the same analysis on saved captures.
+
+import { readCaptureFile } from "../capture/capture-file.ts";
+import { analyzeCapture } from "../measure/measure-part.ts";
+import { buildResult } from "../measure/result.ts";
+import { parse } from "./args.ts";
+import { CliUsageError, reportError } from "./errors.ts";
+import { renderReading } from "./render.ts";
+
+export async function runAnalyze(args: string[]): Promise<number> {
+  const { values, positionals } = parse(args, { json: { type: "boolean" } });
+  if (positionals.length === 0) throw new CliUsageError("analyze needs at least one capture FILE");
+  let status = 0;
+  const results = [];
+  for (const file of positionals) {
+    try {
+      const capture = readCaptureFile(file);
+      const result = buildResult(analyzeCapture(capture), capture);
+      if (values.json) results.push(positionals.length > 1 ? { file, ...result } : result);
+      else process.stdout.write(renderReading(result, result.label ?? file) + "\n");
+    } catch (e) {
+      status = Math.max(status, reportError(e));
+    }
+  }
+  if (values.json && results.length > 0) {
+    process.stdout.write(JSON.stringify(results.length === 1 && positionals.length === 1 ? results[0] : results, null, 2) + "\n");
+  }
+  return status;
+}

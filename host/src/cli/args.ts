@@ -1,0 +1,44 @@
+// Argument parsing helpers on top of node:util parseArgs, turning its errors into usage errors.
+
+import { parseArgs } from "node:util";
+import type { ParseArgsConfig } from "node:util";
+import { CliUsageError } from "./errors.ts";
+
+export function parse(args: string[], options: NonNullable<ParseArgsConfig["options"]>) {
+  try {
+    return parseArgs({ args, options, allowPositionals: true, strict: true });
+  } catch (e) {
+    throw new CliUsageError((e as Error).message);
+  }
+}
+
+export function intOption(v: string | boolean | undefined, name: string, min: number, max: number): number | undefined {
+  if (v === undefined) return undefined;
+  const n = Number(v);
+  if (typeof v !== "string" || !Number.isInteger(n) || n < min || n > max) {
+    throw new CliUsageError(`--${name} must be an integer from ${min} to ${max}, got ${JSON.stringify(v)}`);
+  }
+  return n;
+}
+
+export function numberOption(v: string | boolean | undefined, name: string, min: number, max: number): number | undefined {
+  if (v === undefined) return undefined;
+  const n = Number(v);
+  if (typeof v !== "string" || v.trim() === "" || !Number.isFinite(n) || n < min || n > max) {
+    throw new CliUsageError(`--${name} must be a number from ${min} to ${max}, got ${JSON.stringify(v)}`);
+  }
+  return n;
+}
+
+/** Resolves the tester to open from --sim [SCENARIO] / --port PATH. */
+export function testerTarget(values: { sim?: boolean; port?: string; seed?: string }, positionals: string[]) {
+  if (values.sim && values.port) throw new CliUsageError("use either --sim or --port, not both");
+  if (!values.sim && !values.port) throw new CliUsageError("say which tester: --sim [SCENARIO] or --port PATH");
+  const seed = intOption(values.seed, "seed", 0, 2 ** 32 - 1);
+  if (values.port) {
+    if (positionals.length > 0) throw new CliUsageError(`unexpected argument "${positionals[0]}"`);
+    return { port: values.port };
+  }
+  if (positionals.length > 1) throw new CliUsageError(`unexpected argument "${positionals[1]}"`);
+  return { scenario: positionals[0], seed };
+}

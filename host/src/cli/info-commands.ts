@@ -1,0 +1,42 @@
+// henrytick profile / scenarios: what the tester offers, which demo parts exist.
+
+import { formatSi } from "../format/si.ts";
+import { openTester } from "../open-tester.ts";
+import { listScenarios, loadScenario } from "../sim/scenario.ts";
+import { parse, testerTarget } from "./args.ts";
+
+export async function runProfile(args: string[]): Promise<number> {
+  const { values, positionals } = parse(args, {
+    sim: { type: "boolean" }, port: { type: "string" }, json: { type: "boolean" }, seed: { type: "string" },
+  });
+  const tester = await openTester(testerTarget(values, positionals));
+  try {
+    const { identity, profile } = tester.client;
+    if (values.json) {
+      process.stdout.write(JSON.stringify({ identity, profile }, null, 2) + "\n");
+      return 0;
+    }
+    const out = [
+      `── tester ${identity.device_id}: ${identity.product} firmware ${identity.firmware_version}, protocol v${identity.protocol_version}`,
+      `   timer        ${formatSi(profile.tick_hz, "Hz", 4)}, buffer ${profile.buffer_edges} edges`,
+      `   thresholds   rising ${formatSi(profile.thresholds_v[0], "V", 3)}, falling ${formatSi(profile.thresholds_v[1], "V", 3)}`,
+      `   supply       ${formatSi(profile.supply_v, "V", 3)}, clamp ${formatSi(profile.clamp_v, "V", 3)}`,
+      ...profile.drives.map((d) => `   drive ${d.index}      ${formatSi(d.ohm, "Ω", 3)}, ${formatSi(d.power_rating_w, "W", 2)}, charge ≤ ${d.max_charge_us} µs`),
+      ...profile.tanks.map((t) => `   tank ${t.index}       ${formatSi(t.nominal_f, "F", 3)} nominal`),
+      `   rest         ≥ ${profile.min_rest_ms} ms and ≥ ${profile.rest_per_charge}× the charge time between pulses`,
+    ];
+    process.stdout.write(out.join("\n") + "\n");
+    return 0;
+  } finally {
+    await tester.close();
+  }
+}
+
+export function runScenarios(args: string[]): number {
+  parse(args, {});
+  for (const name of listScenarios()) {
+    const s = loadScenario(name);
+    process.stdout.write(`${name.padEnd(22)} ${formatSi(s.part.inductance_h, "H", 3).padEnd(10)} ${s.story}\n`);
+  }
+  return 0;
+}

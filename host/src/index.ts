@@ -1,0 +1,21 @@
+// henrytick host library: the entry points for other bench applications.
+export { openTester } from "./open-tester.ts";
+export type { OpenedTester, TesterTarget } from "./open-tester.ts";
+export { DeviceClient } from "./device/client.ts";
+export type { MeasureSettings, ClientOptions } from "./device/client.ts";
+export type { DeviceIdentity, DeviceProfile } from "./device/profile.ts";
+export { DeviceError, DeviceTimeoutError } from "./device/errors.ts";
+export { ProtocolError } from "./device/frames.ts";
+export { TransportError } from "./transport/transport.ts";
+export type { Transport } from "./transport/transport.ts";
+export { measurePart, analyzeCapture, MeasureError } from "./measure/measure-part.ts";
+export type { Reading, MeasureOptions } from "./measure/measure-part.ts";
+export { buildResult } from "./measure/result.ts";
+export type { ResultJson } from "./measure/result.ts";
+export { readCaptureFile, writeCaptureFile, parseCapture, CaptureFileError } from "./capture/capture-file.ts";
+export type { CaptureV1 } from "./capture/capture-file.ts";
+export { analyzeRing, AnalysisError } from "./analysis/index.ts";
+export type { RingInput, RingAnalysis } from "./analysis/index.ts";
+export { SimTester } from "./sim/sim-tester.ts";
+export { loadScenario, listScenarios } from "./sim/scenario.ts";
+export type { Scenario, PartModel } from "./sim/scenario.ts";

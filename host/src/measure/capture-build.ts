@@ -1,0 +1,47 @@
+// Turns a verified device capture into a capture file record, and a capture record into the
+// analysis input. Until the tester is calibrated, the tank is taken at its nominal value with
+// the board's C0G/film tolerance (±1 %, rectangular: u = 1 % / sqrt(3), JCGM 100:2008 §4.3.7).
+
+import type { RingInput } from "../analysis/index.ts";
+import type { CaptureV1 } from "../capture/capture-file.ts";
+import type { DeviceIdentity, DeviceProfile } from "../device/profile.ts";
+import type { RawCapture } from "../device/stream-reader.ts";
+
+export const NOMINAL_TANK_TOLERANCE = 0.01;
+
+export function captureFromDevice(
+  raw: RawCapture, identity: DeviceIdentity, profile: DeviceProfile, transport: string, label?: string,
+): CaptureV1 {
+  const s = raw.settings;
+  const tank = profile.tanks[s.tank].nominal_f;
+  return {
+    format: "henrytick-capture",
+    version: 1,
+    tick_hz: raw.tick_hz,
+    tank_c_f: tank,
+    tank_c_u_f: (tank * NOMINAL_TANK_TOLERANCE) / Math.sqrt(3),
+    thresholds_v: [profile.thresholds_v[0], profile.thresholds_v[1]],
+    drive: { supply_v: profile.supply_v, series_ohm: profile.drives[s.drive].ohm },
+    range: {
+      drive_index: s.drive, tank_index: s.tank, charge_us: s.charge_us,
+      edge_limit: s.edge_limit, timeout_ms: s.timeout_ms, quiet_us: s.quiet_us,
+    },
+    device: {
+      id: identity.device_id, firmware_version: identity.firmware_version,
+      protocol_version: identity.protocol_version, transport,
+    },
+    meta: { ...(label ? { label } : {}), time: new Date().toISOString(), end_reason: raw.end_reason },
+    edges: raw.ticks.map((t, i) => [t, raw.levels[i]] as [number, number]),
+  };
+}
+
+export function ringInputFromCapture(c: CaptureV1): RingInput {
+  return {
+    tick_hz: c.tick_hz,
+    ticks: c.edges.map((e) => e[0]),
+    levels: c.edges.map((e) => e[1]),
+    tank_c_f: c.tank_c_f,
+    tank_c_u_f: c.tank_c_u_f,
+    thresholds_v: [c.thresholds_v[0], c.thresholds_v[1]],
+  };
+}

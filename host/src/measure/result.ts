@@ -1,0 +1,61 @@
+// Result JSON (architecture handbook, "Result JSON"): the analysis figures with SI units in the
+// key names, plus the settings and device they came from.
+
+import type { RingAnalysis } from "../analysis/index.ts";
+import type { CaptureV1 } from "../capture/capture-file.ts";
+
+export interface ResultJson {
+  f0_hz: number;
+  f0_u_hz: number;
+  fd_hz: number;
+  inductance_h: number;
+  inductance_u_h: number;
+  coverage_factor: 2;
+  q: number;
+  q_u: number;
+  esr_ohm: number;
+  esr_u_ohm: number;
+  ring_amplitude_v: number;
+  edges_used: number;
+  edges_rejected: number;
+  warnings: { code: string; message: string }[];
+  settings: {
+    tick_hz: number;
+    tank_c_f: number;
+    tank_c_u_f?: number;
+    thresholds_v: [number, number];
+    drive?: CaptureV1["drive"];
+    range?: CaptureV1["range"];
+  };
+  device?: CaptureV1["device"];
+  label?: string;
+}
+
+export function buildResult(a: RingAnalysis, c: CaptureV1): ResultJson {
+  return {
+    f0_hz: a.f0_hz,
+    f0_u_hz: a.f0_u_hz,
+    fd_hz: a.fd_hz,
+    inductance_h: a.inductance_h,
+    inductance_u_h: a.inductance_u_h,
+    coverage_factor: 2,
+    q: a.q,
+    q_u: a.q_u,
+    esr_ohm: a.esr_ohm,
+    esr_u_ohm: a.esr_u_ohm,
+    ring_amplitude_v: a.amplitude_v,
+    edges_used: a.edges_used,
+    edges_rejected: a.edges_rejected,
+    warnings: a.warnings,
+    settings: {
+      tick_hz: c.tick_hz,
+      tank_c_f: c.tank_c_f,
+      tank_c_u_f: c.tank_c_u_f,
+      thresholds_v: c.thresholds_v,
+      drive: c.drive,
+      range: c.range,
+    },
+    device: c.device,
+    label: typeof c.meta?.label === "string" ? c.meta.label : undefined,
+  };
+}
