@@ -8,7 +8,7 @@ import { FrameReader } from "../../shared-protocol/src/frame-reader.ts";
 import * as board from "./board.ts";
 import * as capture from "./capture.ts";
 import { halDeviceId } from "./hal.ts";
-import { line, out, send, sendError, sendOk } from "./link.ts";
+import { line, out, send, sendError, sendErrorDetail, sendOk } from "./link.ts";
 import { streamCapture } from "./stream.ts";
 
 const reader = new FrameReader();
@@ -99,7 +99,11 @@ function measure(): void {
   if (reader.error != 0) return sendError(ERR_ARGUMENT, "MS");
   // Interlocks: the host cannot talk the firmware past these.
   if (chargeUs > board.DRIVE_MAX_CHARGE_US[drive]) return sendError(ERR_CHARGE_LIMIT, "MS");
-  if (capture.restPending()) return sendError(ERR_REST, "MS");
+  if (capture.restPending()) {
+    // The remaining rest in milliseconds (rounded up) tells the host how long to wait.
+    const ms: i32 = (capture.restRemaining() + board.TICKS_PER_MS - 1) / board.TICKS_PER_MS;
+    return sendErrorDetail(ERR_REST, "MS", ms);
+  }
   const s = capture.settings;
   s.drive = drive;
   s.tank = tank;

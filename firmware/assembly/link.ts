@@ -16,15 +16,24 @@ export const line = new Uint8Array(MAX_LINE_BYTES + 1);
 let lineLen: i32 = 0;
 let lineTooLong: bool = false;
 
-/** Stores one received byte; called by the port for every byte from the host. */
-export function rxByte(b: i32): void {
+/**
+ * Stores one received byte. Returns false when the ring is full: the port must then hold the
+ * byte (USB CDC flow control: NAK the host) and offer it again after the next fw_poll.
+ */
+export function rxByte(b: i32): bool {
   const next: i32 = (rxHead + 1) % RX_RING_BYTES;
-  if (next == rxTail) {
-    rxDropped = true; // the host sent faster than the main loop reads: the line is spoilt
-    return;
-  }
+  if (next == rxTail) return false;
   rxRing[rxHead] = <u8>b;
   rxHead = next;
+  return true;
+}
+
+/**
+ * For ports without flow control (a bare UART): records that a byte was lost, so the line it
+ * belonged to is refused instead of being read wrongly.
+ */
+export function rxOverrun(): void {
+  rxDropped = true;
 }
 
 /**
@@ -71,5 +80,14 @@ export function sendError(code: i32, cmd: string): void {
   out.begin("ER");
   out.putInt(code);
   out.putText(cmd);
+  send();
+}
+
+/** An error frame with one numeric detail (for example the rest still owed, in ms). */
+export function sendErrorDetail(code: i32, cmd: string, detail: i32): void {
+  out.begin("ER");
+  out.putInt(code);
+  out.putText(cmd);
+  out.putInt(detail);
   send();
 }

@@ -31,6 +31,14 @@ export interface ClientOptions {
   resend_attempts?: number;
 }
 
+const MAX_REST_WAITS = 5;
+const MAX_REST_WAIT_MS = 10_000;
+
+function errorFrame(f: Frame, command: string): DeviceError {
+  const detail = f.fields[2] !== undefined && /^\d{1,9}$/.test(f.fields[2]) ? Number(f.fields[2]) : undefined;
+  return new DeviceError(Number(f.fields[0]), f.fields[1] === "?" || f.fields[1] === undefined ? command : f.fields[1], detail);
+}
+
 export class DeviceClient {
   private inbox: Decoded[] = [];
   private waiter: (() => void) | null = null;
@@ -93,7 +101,7 @@ export class DeviceClient {
   /** Pulses the part once and returns the verified edge record. */
   measure(s: MeasureSettings): Promise<RawCapture> {
     return this.exclusive(async () => {
-      await this.command("MS", [s.drive, s.tank, s.charge_us, s.edge_limit, s.timeout_ms, s.quiet_us]);
+      await this.startMeasurement(s);
       // Settle + charge + capture window, plus a reply margin.
       const firstWait = this.profile.settle_us / 1000 + s.charge_us / 1000 + s.timeout_ms + this.replyTimeout;
       let lastDefect: StreamDefect | null = null;
@@ -114,6 +122,21 @@ export class DeviceClient {
     });
   }
 
+  /** Sends MS; while the firmware's rest interlock refuses, waits the time it names and asks again. */
+  private async startMeasurement(s: MeasureSettings): Promise<void> {
+    const args = [s.drive, s.tank, s.charge_us, s.edge_limit, s.timeout_ms, s.quiet_us];
+    for (let attempt = 0; ; attempt++) {
+      try {
+        await this.command("MS", args);
+        return;
+      } catch (e) {
+        if (!(e instanceof DeviceError) || e.code !== "REST_PENDING" || attempt >= MAX_REST_WAITS) throw e;
+        const wait = Math.min(Math.max(e.detail ?? this.profile.min_rest_ms, 1), MAX_REST_WAIT_MS);
+        await new Promise((r) => setTimeout(r, wait + 1));
+      }
+    }
+  }
+
   async close(): Promise<void> {
     await this.transport.close();
   }
@@ -126,7 +149,7 @@ export class DeviceClient {
       wait = this.replyTimeout;
       if (!d.ok) throw new StreamDefect(`corrupt line (error ${d.code})`);
       const f = d.frame;
-      if (f.tag === "ER") throw new DeviceError(Number(f.fields[0]), f.fields[1] ?? "MS");
+      if (f.tag === "ER") throw errorFrame(f, "MS");
       const done = reader.accept(f);
       if (done) return done;
     }
@@ -142,7 +165,7 @@ export class DeviceClient {
       if (!d.ok) throw new ProtocolError(`corrupt reply to ${tag} (error ${d.code}): ${JSON.stringify(d.line)}; check the cable and retry`, "LINK_CORRUPT");
       const f = d.frame;
       if (f.tag === "OK" && f.fields[0] === tag) return frames;
-      if (f.tag === "ER") throw new DeviceError(Number(f.fields[0]), f.fields[1] === "?" ? tag : (f.fields[1] ?? tag));
+      if (f.tag === "ER") throw errorFrame(f, tag);
       frames.push(f);
     }
   }

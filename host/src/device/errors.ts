@@ -11,13 +11,16 @@ export class DeviceError extends Error {
   readonly code: string;
   readonly deviceCode: number;
   readonly command: string;
-  constructor(deviceCode: number, command: string) {
+  /** Optional numeric detail from the ER frame (for REST_PENDING: milliseconds still owed). */
+  readonly detail: number | undefined;
+  constructor(deviceCode: number, command: string, detail?: number) {
     const [code, text] = describeDeviceError(deviceCode);
-    super(`tester refused ${command}: ${text}`);
+    super(`tester refused ${command}: ${text}${detail !== undefined && code === "REST_PENDING" ? ` (${detail} ms)` : ""}`);
     this.name = "DeviceError";
     this.code = code;
     this.deviceCode = deviceCode;
     this.command = command;
+    this.detail = detail;
   }
 }
 

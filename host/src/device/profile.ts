@@ -66,10 +66,10 @@ export function parseProfile(frames: Frame[]): DeviceProfile {
         });
         break;
       case "PC":
-        p.tanks.push({ index: intField(f, 0, "index"), nominal_f: intField(f, 1, "pf") * 1e-12 });
+        p.tanks.push({ index: intField(f, 0, "index"), nominal_f: intField(f, 1, "pf") / 1e12 });
         break;
       case "PH":
-        p.thresholds_v = [intField(f, 0, "rising_uv") * 1e-6, intField(f, 1, "falling_uv") * 1e-6];
+        p.thresholds_v = [intField(f, 0, "rising_uv") / 1e6, intField(f, 1, "falling_uv") / 1e6];
         break;
       case "PS":
         p.supply_v = intField(f, 0, "supply_mv") / 1000;

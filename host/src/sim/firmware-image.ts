@@ -4,18 +4,24 @@ import { readFileSync, existsSync } from "node:fs";
 import { dirname, join } from "node:path";
 import { fileURLToPath } from "node:url";
 
-export function firmwareWasmPath(): string {
-  return join(dirname(fileURLToPath(import.meta.url)), "..", "..", "..", "firmware", "build", "henrytick.wasm");
+/** "release" is the shipped image; "probe" adds fw_heap_mark for the no-allocation test. */
+export type FirmwareVariant = "release" | "probe";
+
+export function firmwareWasmPath(variant: FirmwareVariant = "release"): string {
+  const file = variant === "release" ? "henrytick.wasm" : "henrytick.probe.wasm";
+  return join(dirname(fileURLToPath(import.meta.url)), "..", "..", "..", "firmware", "build", file);
 }
 
-let cached: WebAssembly.Module | null = null;
+const cache = new Map<FirmwareVariant, WebAssembly.Module>();
 
-export function firmwareModule(): WebAssembly.Module {
+export function firmwareModule(variant: FirmwareVariant = "release"): WebAssembly.Module {
+  const cached = cache.get(variant);
   if (cached) return cached;
-  const path = firmwareWasmPath();
+  const path = firmwareWasmPath(variant);
   if (!existsSync(path)) {
     throw new Error(`firmware image not found at ${path}; run "npm install" (or "npm run build") at the repository root to build it`);
   }
-  cached = new WebAssembly.Module(readFileSync(path));
-  return cached;
+  const mod = new WebAssembly.Module(readFileSync(path));
+  cache.set(variant, mod);
+  return mod;
 }

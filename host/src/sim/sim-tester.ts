@@ -8,15 +8,17 @@ import { chargeCurrent } from "../physics/ring.ts";
 import { captureEdges } from "./comparator-edges.ts";
 import type { BoardModel } from "./board-model.ts";
 import { referenceBoard } from "./board-model.ts";
+import type { FirmwareVariant } from "./firmware-image.ts";
 import { firmwareModule } from "./firmware-image.ts";
 import { Random } from "./random.ts";
 import type { PartModel } from "./scenario.ts";
 
-interface FirmwareExports {
+export interface FirmwareExports {
   memory: WebAssembly.Memory;
   fw_init(): void;
-  fw_rx(byte: number): void;
+  fw_rx(byte: number): number;
   fw_poll(): number;
+  fw_busy(): number;
 }
 
 /** Edges of the pending capture, in ticks since the switch opened. */
@@ -34,6 +36,8 @@ export interface SimTesterOptions {
   part: PartModel | null; // null: open terminals
   seed: number;
   board?: BoardModel;
+  /** Firmware image to run; default the release build. */
+  firmware?: FirmwareVariant;
 }
 
 /** Longest run of polls without the firmware going idle; guards against a firmware bug. */
@@ -43,7 +47,8 @@ export class SimTester {
   readonly board: BoardModel;
   part: PartModel | null;
   private rng: Random;
-  private fw: FirmwareExports;
+  /** The firmware instance's exports (tests reach diagnostic exports through it). */
+  readonly fw: FirmwareExports;
   private nowTicks = 0; // virtual time, float64 ticks since reset
   private drive = 0;
   private tank = 0;
@@ -56,7 +61,7 @@ export class SimTester {
     this.board = opts.board ?? referenceBoard();
     this.part = opts.part;
     this.rng = new Random(opts.seed);
-    const instance = new WebAssembly.Instance(firmwareModule(), { hal: this.hal() });
+    const instance = new WebAssembly.Instance(firmwareModule(opts.firmware), { hal: this.hal() });
     this.fw = instance.exports as unknown as FirmwareExports;
     this.fw.fw_init();
   }
@@ -68,8 +73,17 @@ export class SimTester {
 
   /** Delivers bytes from the host, then runs the firmware until it waits for input again. */
   input(bytes: Uint8Array): void {
-    for (const b of bytes) this.fw.fw_rx(b);
+    for (const b of bytes) {
+      // USB CDC flow control: a byte the firmware cannot queue yet waits for the next poll.
+      while (this.fw.fw_rx(b) === 0) this.run();
+    }
     this.run();
+  }
+
+  /** The edges the simulated capture hardware produced for the last pulse (ground truth for tests). */
+  get lastEdges(): { ticks: readonly number[]; levels: readonly number[]; written: number } | null {
+    const c = this.capture;
+    return c ? { ticks: c.ticks, levels: c.levels, written: c.written } : null;
   }
 
   /** Virtual seconds since reset. */
@@ -77,10 +91,21 @@ export class SimTester {
     return this.nowTicks / this.board.timer.tick_hz;
   }
 
+  /**
+   * Lets idle time pass (the host thinking, the user swapping parts): the firmware's rest
+   * timers run down. Measurements themselves are fast-forwarded by run().
+   */
+  advance(seconds: number): void {
+    if (!(seconds > 0)) return;
+    this.nowTicks += seconds * this.board.timer.tick_hz;
+    this.run();
+  }
+
+  /** Polls the firmware, jumping the clock over its waits while a measurement is in progress. */
   private run(): void {
     for (let i = 0; i < MAX_POLLS_PER_RUN; i++) {
       const wait = this.fw.fw_poll();
-      if (wait <= 0) return;
+      if (wait <= 0 || this.fw.fw_busy() === 0) return;
       this.nowTicks += wait;
     }
     throw new Error("simulated firmware did not go idle (firmware fault)");

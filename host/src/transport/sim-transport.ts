@@ -11,6 +11,7 @@ export class SimTransport implements Transport {
   private closeHandler: (error: TransportError | null) => void = () => {};
   private readonly splitter: LineSplitter;
   private closed = false;
+  private lastInput = performance.now();
 
   constructor(readonly tester: SimTester) {
     this.splitter = new LineSplitter((line) => this.lineHandler(line));
@@ -25,7 +26,12 @@ export class SimTransport implements Transport {
     if (this.closed) throw new TError("simulated tester link is closed", true);
     const copy = data.slice();
     setImmediate(() => {
-      if (!this.closed) this.tester.input(copy);
+      if (this.closed) return;
+      // Idle time on the host's clock passes on the tester too (its rest timers run down).
+      const now = performance.now();
+      this.tester.advance((now - this.lastInput) / 1000);
+      this.lastInput = now;
+      this.tester.input(copy);
     });
   }
 

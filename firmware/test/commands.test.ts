@@ -1,0 +1,129 @@
+// Firmware behaviour through its wire protocol, running the release wasm in the simulated tester.
+
+import { describe, expect, it } from "vitest";
+import { ERR_ABORTED, ERR_ARGUMENT, ERR_BUSY, ERR_CHARGE_LIMIT, ERR_CRC, ERR_LINE_TOO_LONG, ERR_REST, ERR_SYNTAX, ERR_UNKNOWN_COMMAND, PROTOCOL_VERSION, crc16Range } from "../../shared-protocol/src/index.ts";
+import { encodeCommand } from "../../host/src/device/frames.ts";
+import { parseProfile } from "../../host/src/device/profile.ts";
+import { referenceBoard } from "../../host/src/sim/board-model.ts";
+import { SimLink, show } from "./sim-link.ts";
+
+const text = (tag: string, ...args: number[]) => new TextDecoder().decode(encodeCommand(tag, args));
+const withCrc = (body: string) => {
+  const b = new TextEncoder().encode(body);
+  return `${body}*${crc16Range(b, 0, b.length).toString(16).toUpperCase().padStart(4, "0")}`;
+};
+
+describe("firmware commands", () => {
+  it("identifies itself with product, version, protocol and device id", () => {
+    const link = new SimLink();
+    expect(link.send("ID").map(show)).toEqual([`ID henrytick 0.1.0 ${PROTOCOL_VERSION} HT-5EED0001`, "OK ID"]);
+  });
+
+  it("reports a profile whose nominal values match the simulated board", () => {
+    const link = new SimLink();
+    const frames = link.send("PF");
+    expect(show(frames[frames.length - 1])).toBe("OK PF");
+    const p = parseProfile(frames.slice(0, -1));
+    const b = referenceBoard();
+    expect(p.tick_hz).toBe(b.timer.tick_hz);
+    expect(p.drives.map((d) => d.ohm)).toEqual(b.drive_ohm);
+    p.tanks.forEach((t, i) => expect(t.nominal_f).toBeCloseTo(b.tank_f[i], 20));
+    expect(p.thresholds_v).toEqual([b.comparator.rising_v, b.comparator.falling_v]);
+    expect(p.supply_v).toBe(b.supply_v);
+    expect(p.clamp_v).toBe(b.clamp_v);
+  });
+
+  it.each([
+    ["an unknown command", text("ZZ"), `ER ${ERR_UNKNOWN_COMMAND} ?`],
+    ["a CRC mismatch", "ID*0000\n", `ER ${ERR_CRC} ?`],
+    ["a frame without CRC", "ID\n", `ER ${ERR_SYNTAX} ?`],
+    ["binary garbage", "\u0001\u00ff\u0007*ABCD\n", `ER ${ERR_CRC} ?`],
+    ["a control character under a valid CRC", withCrc("ID\u0007") + "\n", `ER ${ERR_SYNTAX} ?`],
+    ["an over-long line", "X".repeat(300) + "\n", `ER ${ERR_LINE_TOO_LONG} ?`],
+    ["MS with too few fields", text("MS", 1, 2), `ER ${ERR_ARGUMENT} MS`],
+    ["MS with a drive index out of range", text("MS", 9, 0, 100, 100, 100, 1000), `ER ${ERR_ARGUMENT} MS`],
+    ["MS with a zero edge limit", text("MS", 0, 0, 100, 0, 100, 1000), `ER ${ERR_ARGUMENT} MS`],
+    ["MS with a timeout over the limit", text("MS", 0, 0, 100, 100, 999999, 1000), `ER ${ERR_ARGUMENT} MS`],
+    ["MS over the drive's charge-time interlock", text("MS", 0, 3, 2001, 100, 100, 1000), `ER ${ERR_CHARGE_LIMIT} MS`],
+    ["ID with arguments", text("ID", 1), `ER ${ERR_ARGUMENT} ID`],
+  ])("answers %s with a numbered error frame", (_what, line, expected) => {
+    const link = new SimLink();
+    const replies = link.raw(line);
+    expect(replies.map((l) => l.replace(/\*[0-9A-F]{4}$/, ""))).toEqual([expected]);
+    expect(link.sim.stats.pulses).toBe(0);
+  });
+
+  it("ignores blank lines (a host resynchronises with a newline)", () => {
+    const link = new SimLink();
+    expect(link.raw("\n\n\r\n")).toHaveLength(1); // "\r" alone is a (malformed) line
+    expect(link.raw("\n")).toEqual([]);
+  });
+
+  it("streams the edges the capture hardware recorded, verifiably", () => {
+    const link = new SimLink();
+    const frames = link.send("MS", 1, 2, 200, 8192, 1000, 2000);
+    expect(show(frames[0])).toBe("OK MS");
+    expect(show(frames[1])).toMatch(/^CH 0 1 64000000 1 2 200 \d+$/);
+    const truth = link.sim.lastEdges!;
+    const count = Number(frames[1].fields[6]);
+    expect(count).toBe(truth.ticks.length);
+    expect(count).toBeGreaterThan(100);
+    const trailer = frames[frames.length - 1];
+    expect(trailer.tag).toBe("CE");
+    expect(Number(trailer.fields[1])).toBe(count);
+    // Sequence numbers run 0..n without gaps.
+    frames.slice(1).forEach((f, i) => expect(Number(f.fields[0])).toBe(i));
+    expect(link.sim.stats.pulses).toBe(1);
+  });
+
+  it("resends the last capture unchanged on CR, without pulsing again", () => {
+    const link = new SimLink();
+    const first = link.send("MS", 1, 2, 200, 8192, 1000, 2000).slice(1);
+    const again = link.send("CR");
+    expect(show(again[0])).toBe("OK CR");
+    expect(again.slice(1).map(show)).toEqual(first.map(show));
+    expect(link.sim.stats.pulses).toBe(1);
+  });
+
+  it("refuses CR before any capture", () => {
+    expect(new SimLink().send("CR").map(show)).toEqual([`ER ${ERR_ARGUMENT} CR`]);
+  });
+
+  it("enforces the rest between pulses and says how long remains", () => {
+    const link = new SimLink();
+    link.send("MS", 1, 2, 200, 8192, 1000, 2000);
+    const refused = link.send("MS", 1, 2, 200, 8192, 1000, 2000);
+    expect(refused).toHaveLength(1);
+    expect(refused[0].tag).toBe("ER");
+    expect(Number(refused[0].fields[0])).toBe(ERR_REST);
+    const ms = Number(refused[0].fields[2]);
+    expect(ms).toBeGreaterThan(0);
+    expect(ms).toBeLessThanOrEqual(20); // MIN_REST_MS 20 ms dominates 10 x 200 µs
+    link.sim.advance(ms / 1000);
+    expect(show(link.send("MS", 1, 2, 200, 8192, 1000, 2000)[0])).toBe("OK MS");
+    expect(link.sim.stats.pulses).toBe(2);
+  });
+
+  it("refuses a second measurement while one is running", () => {
+    const link = new SimLink();
+    const replies = link.raw(text("MS", 1, 2, 200, 8192, 1000, 2000) + text("MS", 1, 2, 200, 8192, 1000, 2000));
+    expect(replies.map((l) => l.replace(/\*[0-9A-F]{4}$/, "")).slice(0, 2)).toEqual(["OK MS", `ER ${ERR_BUSY} MS`]);
+  });
+
+  it("aborts a running measurement, opening the switch before any pulse completes", () => {
+    const link = new SimLink();
+    const replies = link.raw(text("MS", 1, 2, 200, 8192, 1000, 2000) + text("AB"));
+    expect(replies.map((l) => l.replace(/\*[0-9A-F]{4}$/, ""))).toEqual(["OK MS", `ER ${ERR_ABORTED} MS`, "OK AB"]);
+    expect(link.sim.stats.pulses).toBe(0);
+  });
+
+  it("never refuses an abort, even when idle", () => {
+    expect(new SimLink().send("AB").map(show)).toEqual(["OK AB"]);
+  });
+
+  it("reports no edges with open terminals and ends the capture at its timeout", () => {
+    const link = new SimLink({ part: null });
+    const frames = link.send("MS", 3, 3, 1000, 8192, 50, 2000);
+    expect(frames.map(show).slice(1)).toEqual(["CH 0 1 64000000 3 3 1000 0", "CE 1 0 FFFF 3"]);
+  });
+});
