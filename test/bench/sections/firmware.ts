@@ -1,0 +1,61 @@
+// Firmware budgets: release wasm size and wire bytes per edge of typical captures.
+
+import { statSync } from "node:fs";
+import { firmwareWasmPath } from "../../../host/src/sim/firmware-image.ts";
+import { SimTester } from "../../../host/src/sim/sim-tester.ts";
+import { loadScenario, listScenarios } from "../../../host/src/sim/scenario.ts";
+import { encodeCommand } from "../../../host/src/device/frames.ts";
+import type { BenchSection } from "./types.ts";
+
+/** Bytes on the wire per captured edge, header and trailer included, for one capture. */
+function wireBytesPerEdge(scenario: string, drive: number, tank: number, charge_us: number): { bytes: number; edges: number } {
+  const s = loadScenario(scenario);
+  const sim = new SimTester({ part: s.part, seed: s.seed });
+  let bytes = 0;
+  let streaming = false;
+  let edges = 0;
+  let text = "";
+  sim.onOutput((b) => {
+    text += new TextDecoder().decode(b);
+  });
+  sim.input(encodeCommand("MS", [drive, tank, charge_us, 8192, 2000, 20000]));
+  for (const line of text.split("\n")) {
+    if (line.startsWith("CH")) streaming = true;
+    if (streaming) bytes += line.length + 1;
+    if (line.startsWith("CH")) edges = Number(line.split(" ")[7].split("*")[0]);
+    if (line.startsWith("CE")) streaming = false;
+  }
+  return { bytes, edges };
+}
+
+export const firmwareSection: BenchSection = {
+  name: "firmware",
+  async run() {
+    const wasm = statSync(firmwareWasmPath("release")).size;
+    // Typical captures: each demo part on the setting the range plan picks for it.
+    const cases: [string, number, number, number][] = [
+      ["drawer-choke-330u", 1, 2, 17],
+      ["loop-antenna-1u2", 1, 2, 2],
+      ["filter-coil-4m7", 1, 2, 233],
+      ["solenoid-valve-82m", 3, 1, 45],
+    ];
+    let bytes = 0;
+    let edges = 0;
+    for (const c of cases) {
+      if (!listScenarios().includes(c[0])) continue;
+      const r = wireBytesPerEdge(...c);
+      bytes += r.bytes;
+      edges += r.edges;
+    }
+    return {
+      figures: {
+        "firmware.wasm_bytes": wasm,
+        "firmware.wire_bytes_per_edge": bytes / edges,
+      },
+      notes: {
+        "firmware.wasm_bytes": "release build, goal <= 12288",
+        "firmware.wire_bytes_per_edge": `CH..CE lines over ${edges} edges of 4 demo captures, goal <= 3.5`,
+      },
+    };
+  },
+};

@@ -1,0 +1,6 @@
+// The benchmark sections, in the order they run. Each owner adds its own file here.
+import { e2eSection } from "./e2e.ts";
+import { firmwareSection } from "./firmware.ts";
+import type { BenchSection } from "./types.ts";
+
+export const sections: BenchSection[] = [firmwareSection, e2eSection];
