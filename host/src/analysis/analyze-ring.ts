@@ -1,0 +1,228 @@
+// analyzeRing: comparator edges in, f0, L, Q, ESR and their uncertainties out.
+// Pipeline: check input -> first-pass half-cycle indices (cycle-bookkeeping) -> global start
+// (initial-guess) -> rounds of { weighted LM fit, re-index edges from the model, estimate the
+// two noise components, reject gross outliers and Huber-weight the rest } until nothing
+// changes -> covariance -> derived quantities (ring-quantities) -> diagnostics.
+
+import { assignHalfCycles } from "./cycle-bookkeeping.ts";
+import { diagnose } from "./diagnostics.ts";
+import { FitWorkspace, fitEdgeModel } from "./edge-fit.ts";
+import { chooseResidualForms, evaluateEdges, makeEdgeSet, P_ALPHA, P_LNA, P_WD, type EdgeSet } from "./edge-model.ts";
+import { initialGuess } from "./initial-guess.ts";
+import { reassignHalfCycles } from "./model-bookkeeping.ts";
+import { edgeTimeVariances, edgeVariances, estimateNoise, type NoiseEstimate } from "./noise-model.ts";
+import { ringQuantities, COVERAGE_K } from "./ring-quantities.ts";
+import { huberWeight, madSigma } from "./robust-stats.ts";
+import { invertSymmetric } from "./small-linear-algebra.ts";
+import { checkInput, MIN_EDGES, type CheckedInput } from "./validate-input.ts";
+import { AnalysisError, type RingAnalysis, type RingInput } from "./types.ts";
+
+/** Edges beyond this many robust standard deviations are rejected (Gaussian odds ~6e-7). */
+const REJECT_Z = 5;
+/** Huber tuning constant in robust standard deviations. */
+const HUBER_C = 2;
+const MAX_ROUNDS = 8;
+
+/** Everything the fit leaves behind, for diagnostics. */
+export interface FitState {
+  checked: CheckedInput;
+  edges: EdgeSet;
+  p: Float64Array;
+  /** Covariance of p (4 x 4). */
+  cov: Float64Array;
+  r: Float64Array;
+  slope: Float64Array;
+  variance: Float64Array;
+  /** 1 where the edge took part in the final fit. */
+  used: Float64Array;
+  /** Robust standard deviation of the standardised residuals. */
+  z_scale: number;
+  noise: NoiseEstimate;
+  reasons: (string | null)[];
+  chi2: number;
+}
+
+export function analyzeRing(input: RingInput): RingAnalysis {
+  const s = fitRing(input);
+  const c = s.checked;
+  const cov2: [number, number, number] = [s.cov[0], s.cov[3], s.cov[15]];
+  const rq = ringQuantities(s.p[P_WD], s.p[P_ALPHA], cov2, c.c_f, c.c_u_f, c.timebase_u_rel);
+  const rejected: { index: number; reason: string }[] = [];
+  for (let k = 0; k < s.edges.n; k++) {
+    if (s.used[k] > 0) continue;
+    rejected.push({ index: k, reason: s.reasons[k] ?? "rejected" });
+  }
+  const used = s.edges.n - rejected.length;
+  const diagnosis = diagnose(s, rq);
+  return {
+    f0_hz: rq.f0_hz,
+    fd_hz: rq.fd_hz,
+    alpha_per_s: rq.alpha_per_s,
+    inductance_h: rq.inductance_h,
+    inductance_u_h: COVERAGE_K * rq.u.inductance_h,
+    q: rq.q,
+    q_u: COVERAGE_K * rq.u.q,
+    esr_ohm: rq.esr_ohm,
+    esr_u_ohm: COVERAGE_K * rq.u.esr_ohm,
+    amplitude_v: Math.exp(s.p[P_LNA]),
+    f0_u_hz: COVERAGE_K * rq.u.f0_hz,
+    edges_used: used,
+    edges_rejected: rejected.length,
+    rejected,
+    warnings: diagnosis.warnings,
+    budget: rq.budget,
+    noise: { sigma_t_s: Math.sqrt(s.noise.sigma_t2), sigma_v_v: Math.sqrt(s.noise.sigma_v2) },
+    ...(diagnosis.drift ? { drift: diagnosis.drift } : {}),
+  };
+}
+
+/** The fitting core of analyzeRing, exposed for diagnostics and tests. */
+export function fitRing(input: RingInput): FitState {
+  const c = checkInput(input);
+  const n = c.t_s.length;
+  const q = (c.tick_s * c.tick_s) / 12;
+  const book = assignHalfCycles(c.t_s, c.rising);
+  if (!(book.period_s > 0)) throw noRing("no repeating edges were found");
+  const e = makeEdgeSet(c.t_s, c.rising, book.m);
+  const reasons = book.reasons;
+  if (countFinite(e.m) < MIN_EDGES) throw noRing("too few edges fall into a regular ring");
+  const guess = initialGuess(e, c.vh_v, c.vl_v);
+  if (!guess) throw noRing("no damped sine explains the edge times");
+
+  const ws = new FitWorkspace(n);
+  chooseResidualForms(guess.p, e, c.vh_v, c.vl_v);
+  const variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, q), ws);
+  const robust = new Float64Array(n).fill(1);
+  const outlier = new Uint8Array(n);
+  const used = new Float64Array(n);
+  const assigned = new Float64Array(n);
+  const w = new Float64Array(n);
+  const leverage = new Float64Array(n);
+  const sd = new Float64Array(n);
+  const z = new Float64Array(n);
+  let p = guess.p;
+  let noise: NoiseEstimate | null = null;
+  const varT = new Float64Array(n).fill(q);
+  let zScale = 1;
+  let fit!: ReturnType<typeof fitEdgeModel>;
+  for (let round = 0; ; round++) {
+    chooseResidualForms(p, e, c.vh_v, c.vl_v);
+    setWeights(e, outlier, robust, variance, used, w);
+    fit = fitEdgeModel(e, c.vh_v, c.vl_v, p, w, varT, ws);
+    if (!Number.isFinite(fit.chi2)) throw noRing("the edge-model fit diverged");
+    p = fit.p;
+    if (round === MAX_ROUNDS) break;
+
+    for (let k = 0; k < n; k++) sd[k] = Math.sqrt(variance[k]);
+    const moved = reassignHalfCycles(p, e, c.vh_v, c.vl_v, sd, reasons);
+    for (let k = 0; k < n; k++) assigned[k] = e.m[k] === e.m[k] ? 1 : 0;
+    evaluateEdges(p, e, c.vh_v, c.vl_v, null, varT, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
+    setWeights(e, outlier, robust, variance, used, w);
+    const cov = invertSymmetric(4, fit.normal);
+    if (countFinite(e.m) < MIN_EDGES || !cov) throw noRing("too few edges fit a ring");
+    computeLeverage(cov, ws.jac, w, used, leverage);
+    noise = estimateNoise(ws.r, ws.slope, ws.curvature, varT, leverage, used, q, noise);
+    const oldVariance = variance.slice();
+    edgeTimeVariances(q, noise, ws.slope, p[P_WD], assigned, varT);
+    edgeVariances(q, noise, ws.slope, ws.curvature, varT, variance);
+    const noiseMoved = meanRelChange(oldVariance, variance, used) > 1e-3;
+
+    // Standardise against the noise model, Huber-weight, and (once a noise model exists) reject
+    // on a MAD scale. Rejected edges are re-tested every round, so an edge set aside under a
+    // poor early model comes back.
+    let nz = 0;
+    for (let k = 0; k < n; k++) if (used[k] > 0) z[nz++] = ws.r[k] / Math.sqrt(variance[k]);
+    zScale = Math.max(0.5, madSigma(z, nz));
+    let flipped = 0;
+    for (let k = 0; k < n; k++) {
+      if (!(assigned[k] > 0)) continue;
+      const zk = ws.r[k] / Math.sqrt(variance[k]) / zScale;
+      robust[k] = huberWeight(zk, HUBER_C);
+      if (round === 0) continue;
+      const isOut = Math.abs(zk) > (outlier[k] ? REJECT_Z - 0.5 : REJECT_Z) ? 1 : 0;
+      if (isOut !== outlier[k]) flipped++;
+      outlier[k] = isOut;
+      if (isOut) reasons[k] = `residual ${Math.abs(zk).toFixed(1)} robust sd from the ring model (outlier)`;
+    }
+    if (round >= 2 && moved === 0 && flipped === 0 && !noiseMoved) {
+      setWeights(e, outlier, robust, variance, used, w);
+      fit = fitEdgeModel(e, c.vh_v, c.vl_v, p, w, varT, ws);
+      p = fit.p;
+      break;
+    }
+  }
+  const cov = invertSymmetric(4, fit.normal);
+  if (!cov || !noise) throw noRing("the fit has no covariance");
+  evaluateEdges(p, e, c.vh_v, c.vl_v, null, varT, { r: ws.r, slope: ws.slope, curvature: ws.curvature });
+  setWeights(e, outlier, robust, variance, used, w);
+  let nUsed = 0;
+  for (let k = 0; k < n; k++) nUsed += used[k];
+  // Birge-type inflation (never deflation) when residuals exceed the noise model.
+  const birge = nUsed > 4 ? Math.max(1, fit.chi2 / (nUsed - 4)) : 1;
+  for (let i = 0; i < 16; i++) cov[i] *= birge;
+  if (!(p[P_ALPHA] > 0)) throw noRing("the fitted ring does not decay");
+  return {
+    checked: c, edges: e, p, cov, r: ws.r.slice(), slope: ws.slope.slice(), variance, used,
+    z_scale: zScale, noise, reasons, chi2: fit.chi2,
+  };
+}
+
+function setWeights(
+  e: EdgeSet, outlier: Uint8Array, robust: Float64Array, variance: Float64Array, used: Float64Array, w: Float64Array,
+): void {
+  for (let k = 0; k < e.n; k++) {
+    used[k] = e.m[k] === e.m[k] && !outlier[k] ? 1 : 0;
+    w[k] = used[k] > 0 ? robust[k] / variance[k] : 0;
+  }
+}
+
+/** Round-0 variances: timing noise only, slopes floored so grazing edges do not dominate. */
+function initialVariance(p: Float64Array, e: EdgeSet, var_t_s2: number, ws: FitWorkspace): Float64Array {
+  const out = new Float64Array(e.n).fill(Infinity);
+  evaluateEdges(p, e, 0, 0, null, null, { slope: ws.slope });
+  const a0 = Math.exp(p[P_LNA]);
+  for (let k = 0; k < e.n; k++) {
+    if (e.m[k] !== e.m[k]) continue;
+    const floor = 0.3 * p[P_WD] * a0 * Math.exp(-p[P_ALPHA] * e.t_s[k]);
+    out[k] = var_t_s2 * (ws.slope[k] * ws.slope[k] + floor * floor);
+  }
+  return out;
+}
+
+function computeLeverage(cov: Float64Array, jac: Float64Array, w: Float64Array, used: Float64Array, out: Float64Array): void {
+  for (let k = 0; k < out.length; k++) {
+    if (!(used[k] > 0)) {
+      out[k] = 0;
+      continue;
+    }
+    const o = 4 * k;
+    let s = 0;
+    for (let i = 0; i < 4; i++) {
+      let row = 0;
+      for (let j = 0; j < 4; j++) row += cov[i * 4 + j] * jac[o + j];
+      s += jac[o + i] * row;
+    }
+    out[k] = Math.min(1, Math.max(0, s * w[k]));
+  }
+}
+
+function meanRelChange(before: Float64Array, after: Float64Array, used: Float64Array): number {
+  let s = 0;
+  let c = 0;
+  for (let k = 0; k < before.length; k++) {
+    if (!(used[k] > 0)) continue;
+    s += Math.abs(after[k] - before[k]) / before[k];
+    c++;
+  }
+  return c > 0 ? s / c : 0;
+}
+
+function countFinite(m: Float64Array): number {
+  let c = 0;
+  for (let k = 0; k < m.length; k++) if (m[k] === m[k]) c++;
+  return c;
+}
+
+function noRing(why: string): AnalysisError {
+  return new AnalysisError("NO_RING", `${why}: the part may be overdamped, open or shorted; check the connection, raise the drive current or use a larger tank capacitance`);
+}

@@ -1,0 +1,121 @@
+// Weighted Levenberg-Marquardt fit of the edge model (edge-model.ts). Marquardt's scaling of the
+// damping by diag(J^T W J) makes the steps independent of parameter units (D. W. Marquardt,
+// J. SIAM 11(2), 1963). Weights are held fixed inside a fit; the caller re-weights between fits
+// (iteratively reweighted least squares).
+
+import { evaluateEdges, N_PARAMS, type EdgeSet } from "./edge-model.ts";
+import { solveDamped } from "./small-linear-algebra.ts";
+
+export interface EdgeFitResult {
+  p: Float64Array;
+  /** Sum of w r^2 at p. */
+  chi2: number;
+  /** J^T W J at p (row-major 4 x 4). */
+  normal: Float64Array;
+  iterations: number;
+  converged: boolean;
+}
+
+/** Scratch buffers sized for one capture, reused across fits of the same capture. */
+export class FitWorkspace {
+  readonly r: Float64Array;
+  readonly jac: Float64Array;
+  readonly slope: Float64Array;
+  readonly curvature: Float64Array;
+  readonly h = new Float64Array(N_PARAMS * N_PARAMS);
+  readonly g = new Float64Array(N_PARAMS);
+  readonly step = new Float64Array(N_PARAMS);
+  readonly trial = new Float64Array(N_PARAMS);
+  readonly work = new Float64Array(N_PARAMS * N_PARAMS + N_PARAMS);
+  constructor(n: number) {
+    this.r = new Float64Array(n);
+    this.jac = new Float64Array(4 * n);
+    this.slope = new Float64Array(n);
+    this.curvature = new Float64Array(n);
+  }
+}
+
+/** Minimises sum w_k r_k^2 over the edges with w_k > 0 and finite m, starting at p0. */
+export function fitEdgeModel(
+  e: EdgeSet, vh_v: number, vl_v: number, p0: ArrayLike<number>, w: Float64Array, var_t_s2: Float64Array | null,
+  ws: FitWorkspace, max_iterations = 60,
+): EdgeFitResult {
+  // ws.r holds whatever was evaluated last (possibly a refused trial): callers re-evaluate at p.
+  const p = Float64Array.from(p0);
+  let chi2 = accumulate(p, e, vh_v, vl_v, w, var_t_s2, ws, true);
+  if (!Number.isFinite(chi2)) return { p, chi2, normal: ws.h.slice(), iterations: 0, converged: false };
+  let lambda = 1e-4;
+  let converged = false;
+  let it = 0;
+  for (; it < max_iterations && !converged; it++) {
+    for (let i = 0; i < N_PARAMS; i++) ws.g[i] = -ws.g[i];
+    let accepted = false;
+    while (lambda < 1e12) {
+      if (!solveDamped(N_PARAMS, ws.h, ws.g, lambda, ws.step, ws.work)) {
+        lambda = Math.max(lambda * 10, 1e-8);
+        continue;
+      }
+      for (let i = 0; i < N_PARAMS; i++) ws.trial[i] = p[i] + ws.step[i];
+      const trialChi2 = accumulate(ws.trial, e, vh_v, vl_v, w, var_t_s2, ws, false);
+      if (trialChi2 <= chi2) {
+        const drop = chi2 - trialChi2;
+        converged = drop <= 1e-9 + 1e-12 * chi2 || smallStep(p, ws.step);
+        p.set(ws.trial);
+        lambda = Math.max(lambda * 0.2, 1e-12);
+        accepted = true;
+        break;
+      }
+      lambda *= 8;
+    }
+    if (!accepted) {
+      converged = true; // no downhill step exists at machine precision: a minimum
+      break;
+    }
+    chi2 = accumulate(p, e, vh_v, vl_v, w, var_t_s2, ws, true);
+  }
+  return { p, chi2, normal: ws.h.slice(), iterations: it, converged };
+}
+
+/** Relative parameter steps at the level of double rounding: nothing left to gain. */
+function smallStep(p: Float64Array, step: Float64Array): boolean {
+  const wd = Math.abs(p[0]);
+  return (
+    Math.abs(step[0]) <= 1e-14 * wd && Math.abs(step[1]) <= 1e-12 &&
+    Math.abs(step[2]) <= 1e-12 && Math.abs(step[3]) <= 1e-14 * wd
+  );
+}
+
+/** chi2 at p; with `full` also J^T W J into ws.h and J^T W r into ws.g. */
+function accumulate(
+  p: Float64Array, e: EdgeSet, vh_v: number, vl_v: number, w: Float64Array, var_t_s2: Float64Array | null,
+  ws: FitWorkspace, full: boolean,
+): number {
+  evaluateEdges(p, e, vh_v, vl_v, w, var_t_s2, full ? { r: ws.r, jac: ws.jac } : { r: ws.r });
+  const { r, jac, h, g } = ws;
+  let chi2 = 0;
+  let h00 = 0, h01 = 0, h02 = 0, h03 = 0, h11 = 0, h12 = 0, h13 = 0, h22 = 0, h23 = 0, h33 = 0;
+  let g0 = 0, g1 = 0, g2 = 0, g3 = 0;
+  for (let k = 0; k < e.n; k++) {
+    const wk = w[k];
+    if (!(wk > 0) || e.m[k] !== e.m[k]) continue;
+    const rk = r[k];
+    if (rk !== rk) return Infinity;
+    chi2 += wk * rk * rk;
+    if (!full) continue;
+    const o = 4 * k;
+    const j0 = jac[o], j1 = jac[o + 1], j2 = jac[o + 2], j3 = jac[o + 3];
+    const a0 = wk * j0, a1 = wk * j1, a2 = wk * j2, a3 = wk * j3;
+    h00 += a0 * j0; h01 += a0 * j1; h02 += a0 * j2; h03 += a0 * j3;
+    h11 += a1 * j1; h12 += a1 * j2; h13 += a1 * j3;
+    h22 += a2 * j2; h23 += a2 * j3; h33 += a3 * j3;
+    g0 += a0 * rk; g1 += a1 * rk; g2 += a2 * rk; g3 += a3 * rk;
+  }
+  if (full) {
+    h[0] = h00; h[1] = h01; h[2] = h02; h[3] = h03;
+    h[4] = h01; h[5] = h11; h[6] = h12; h[7] = h13;
+    h[8] = h02; h[9] = h12; h[10] = h22; h[11] = h23;
+    h[12] = h03; h[13] = h13; h[14] = h23; h[15] = h33;
+    g[0] = g0; g[1] = g1; g[2] = g2; g[3] = g3;
+  }
+  return chi2;
+}

@@ -1,0 +1,171 @@
+// The comparator-edge model of measurement notes §2 (derived from standard circuit theory): the
+// ring v(t) = A0 e^(-alpha t) sin(wd t - phi) crosses the rising threshold VH upward at
+//   wd t = 2 pi k + phi + asin(VH / A(t))
+// and the falling threshold VL downward at
+//   wd t = (2k+1) pi + phi - asin(VL / A(t)),   A(t) = A0 e^(-alpha t).
+// With the half-cycle index m (even: rising, odd: falling) and s = (-1)^m both read
+//   g(t) = wd t - m pi - phi - s asin(u(t)) = 0,   u(t) = V / A(t).
+//
+// Each edge is scored in one of two forms, chosen per fitting round (chooseResidualForms):
+// - phase form, g(t_k) times a per-round constant S_k = A_k sqrt(1 - u_k^2): g is linear in the
+//   edge's timing error (slope g_t), so weighted least squares on it is the time-domain fit the
+//   notes describe, without solving for model crossing times and without a singularity where
+//   g_t -> 0. Used wherever the ring clearly crosses the threshold.
+// - level form, e_k = v(t_k) - V_k: smooth where the ring only grazes the threshold at its end
+//   (no crossing time exists there, yet noise still makes edges). It is not used on ordinary
+//   edges: t_k enters it nonlinearly, which biases the amplitude at second order in the noise.
+// Both are in volts with slope_k = dv/dt at the crossing, so one variance model serves both. A
+// timing error d of variance var_k gives r = slope d + curvature d^2 / 2; the mean
+// curvature var_k / 2 is subtracted.
+
+/** Parameter vector layout: [wd rad/s, phi rad, ln(A0 / 1 V), alpha 1/s]. */
+export const P_WD = 0;
+export const P_PHI = 1;
+export const P_LNA = 2;
+export const P_ALPHA = 3;
+export const N_PARAMS = 4;
+
+/** Edges with their half-cycle assignment. m is NaN for an edge that takes no part in a fit. */
+export interface EdgeSet {
+  n: number;
+  t_s: Float64Array;
+  /** Half-cycle index: 2k for the rising edge of cycle k, 2k+1 for its falling edge. */
+  m: Float64Array;
+  /** 1 for rising edges, 0 for falling. */
+  rising: Uint8Array;
+  /** Residual form per edge: 1 phase form, 0 level form. */
+  form: Uint8Array;
+  /** Phase-form scale S_k, volts per radian. */
+  scale_v: Float64Array;
+}
+
+export function makeEdgeSet(t_s: Float64Array, rising: Uint8Array, m: Float64Array): EdgeSet {
+  const n = t_s.length;
+  return { n, t_s, m, rising, form: new Uint8Array(n), scale_v: new Float64Array(n) };
+}
+
+/** Where the per-edge outputs of `evaluateEdges` go; any may be omitted. */
+export interface EdgeOutputs {
+  /** Residual in volts (see the file comment), second-order corrected. */
+  r?: Float64Array;
+  /** d r / d p, row-major n x 4. */
+  jac?: Float64Array;
+  /** Residual per unit timing error (dv/dt at the crossing), V/s. */
+  slope?: Float64Array;
+  /** Residual per unit squared timing error, times two, V/s^2. */
+  curvature?: Float64Array;
+}
+
+/** Clamp for u in the phase form while a trial step leaves the envelope under a threshold. */
+const U_MAX = 1 - 1e-12;
+
+/**
+ * Evaluates the model at every edge with a finite m and (if `mask` is given) mask[k] > 0.
+ * `var_t_s2[k]` is edge k's timing variance for the second-order correction (null: none).
+ */
+export function evaluateEdges(
+  p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number,
+  mask: Float64Array | null, var_t_s2: Float64Array | null, out: EdgeOutputs,
+): void {
+  const wd = p[P_WD];
+  const phi = p[P_PHI];
+  const a0 = Math.exp(p[P_LNA]);
+  const alpha = p[P_ALPHA];
+  const { r, jac, slope, curvature } = out;
+  const c2 = alpha * alpha - wd * wd;
+  const c1 = 2 * alpha * wd;
+  for (let k = 0; k < e.n; k++) {
+    const m = e.m[k];
+    if (m !== m || (mask !== null && !(mask[k] > 0))) continue;
+    const t = e.t_s[k];
+    const amp = a0 * Math.exp(-alpha * t);
+    const rise = e.rising[k] === 1;
+    const level = rise ? vh_v : vl_v;
+    const vt = var_t_s2 ? var_t_s2[k] : 0;
+    if (e.form[k] === 1) {
+      const s = rise ? 1 : -1;
+      let u = level / amp;
+      if (u > U_MAX) u = U_MAX;
+      else if (u < -U_MAX) u = -U_MAX;
+      const sq = Math.sqrt(1 - u * u);
+      const c = (s * u) / sq;
+      const gt = wd - alpha * c;
+      const gtt = (-alpha * alpha * c) / (sq * sq);
+      const sc = e.scale_v[k];
+      if (r) r[k] = sc * (wd * t - m * Math.PI - phi - s * Math.asin(u) - 0.5 * gtt * vt);
+      if (jac) {
+        const o = 4 * k;
+        jac[o] = sc * t;
+        jac[o + 1] = -sc;
+        jac[o + 2] = sc * c;
+        jac[o + 3] = -sc * t * c;
+      }
+      if (slope) slope[k] = sc * gt;
+      if (curvature) curvature[k] = sc * gtt;
+      continue;
+    }
+    const x = wd * t - phi;
+    const v = amp * Math.sin(x);
+    const ac = amp * Math.cos(x);
+    const vpp = c2 * v - c1 * ac;
+    if (r) r[k] = v - level - 0.5 * vpp * vt;
+    if (jac) {
+      const o = 4 * k;
+      jac[o] = ac * t;
+      jac[o + 1] = -ac;
+      jac[o + 2] = v;
+      jac[o + 3] = -t * v;
+    }
+    if (slope) slope[k] = wd * ac - alpha * v;
+    if (curvature) curvature[k] = vpp;
+  }
+}
+
+/**
+ * Picks each edge's residual form at p: the phase form where the model ring crosses the
+ * threshold cleanly (|u| < 0.98 and g_t > 0.3 wd), the level form where it grazes it.
+ * Sets the phase-form scales S_k = A_k sqrt(1 - u_k^2) (the slope per unit phase).
+ */
+export function chooseResidualForms(p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number): void {
+  const wd = p[P_WD];
+  const a0 = Math.exp(p[P_LNA]);
+  const alpha = p[P_ALPHA];
+  for (let k = 0; k < e.n; k++) {
+    const rise = e.rising[k] === 1;
+    const amp = a0 * Math.exp(-alpha * e.t_s[k]);
+    const u = (rise ? vh_v : vl_v) / amp;
+    e.form[k] = 0;
+    if (!(Math.abs(u) < 0.98)) continue;
+    const sq = Math.sqrt(1 - u * u);
+    const gt = wd - (alpha * (rise ? 1 : -1) * u) / sq;
+    if (!(gt > 0.3 * wd)) continue;
+    e.form[k] = 1;
+    e.scale_v[k] = amp * sq;
+  }
+}
+
+/**
+ * Model crossing time of half-cycle m (Newton on g), or NaN when the model ring no longer
+ * reaches that threshold. Used to generate reference edges.
+ */
+export function modelEdgeTime(p: ArrayLike<number>, m: number, vh_v: number, vl_v: number): number {
+  const wd = p[P_WD];
+  const alpha = p[P_ALPHA];
+  const invA0 = Math.exp(-p[P_LNA]);
+  const rise = m % 2 === 0;
+  const s = rise ? 1 : -1;
+  const v = rise ? vh_v : vl_v;
+  let t = (m * Math.PI + p[P_PHI]) / wd;
+  for (let i = 0; i < 60; i++) {
+    const u = v * invA0 * Math.exp(alpha * t);
+    if (!(Math.abs(u) < 1)) return NaN;
+    const sq = Math.sqrt(1 - u * u);
+    const gt = wd - (alpha * s * u) / sq;
+    if (!(gt > 0)) return NaN;
+    const g = wd * t - m * Math.PI - p[P_PHI] - s * Math.asin(u);
+    const step = g / gt;
+    t -= step;
+    if (Math.abs(step) <= 1e-15 * Math.abs(t)) break;
+  }
+  return t;
+}

@@ -1,0 +1,8 @@
+// Ring-down analysis: comparator edges to f0, L, Q and ESR with uncertainties (JCGM 100:2008)
+// and diagnostics. Pure numerical code: no I/O, no clock.
+
+export { AnalysisError } from "./types.ts";
+export type { RingAnalysis, RingInput, Warning } from "./types.ts";
+export { analyzeRing } from "./analyze-ring.ts";
+export { ringCramerRao } from "./cramer-rao.ts";
+export type { EdgeNoiseModel, RingBound, RingTruth } from "./cramer-rao.ts";

@@ -1,0 +1,128 @@
+// Per-edge noise (measurement notes §3): an edge's timing error has variance
+//   var_k = tick^2/12 + sigma_t^2 + (sigma_v / slope_k)^2,
+// capped at (1 rad / wd)^2 where the ring grazes the threshold and the linear picture fails.
+// The fit works with level-crossing residuals in volts (edge-model.ts), whose variance is
+//   Var(e_k) = sigma_v^2 + slope_k^2 (tick^2/12 + sigma_t^2) + curvature_k^2 var_k^2 / 2.
+// The two components are estimated from the residuals by regressing e_k^2 / (1 - h_k) (h_k: the
+// edge's leverage, which makes the estimate unbiased for a linearised fit), less the small
+// curvature term, on [1, slope_k^2] with weights 1/Var(e_k)^2 (the normal-theory variance of e^2
+// is 2 Var^2), iterated. Squared residuals are clipped at c^2 Var(e_k) and rescaled by
+// E[min(Z^2, c^2)]: a Huber-type variance M-estimate (Huber's "proposal 2", Huber & Ronchetti,
+// Robust Statistics, 2009, §6.4) that a surviving glitch cannot inflate.
+
+const CLIP = 2.5;
+/** E[min(Z^2, 2.5^2)] for standard normal Z (numerical integration). */
+const CLIP_MEAN = 0.97755998;
+
+export interface NoiseEstimate {
+  /** sigma_t^2, s^2: timing jitter beyond the tick. */
+  sigma_t2: number;
+  /** sigma_v^2, V^2: input-referred comparator noise. */
+  sigma_v2: number;
+}
+
+/** Timing variance var_k (s^2) of every edge with mask[k] > 0; others get Infinity. */
+export function edgeTimeVariances(
+  q_s2: number, noise: NoiseEstimate, slope: Float64Array, wd: number, mask: Float64Array, out: Float64Array,
+): void {
+  const cap = 1 / (wd * wd);
+  for (let k = 0; k < out.length; k++) {
+    if (!(mask[k] > 0)) {
+      out[k] = Infinity;
+      continue;
+    }
+    const s = slope[k];
+    out[k] = Math.min(cap, q_s2 + noise.sigma_t2 + noise.sigma_v2 / (s * s));
+  }
+}
+
+/** Var(e_k) in V^2 from the timing variances (Infinity where var_t is). */
+export function edgeVariances(
+  q_s2: number, noise: NoiseEstimate, slope: Float64Array, curvature: Float64Array,
+  var_t: Float64Array, out: Float64Array,
+): void {
+  const vt = q_s2 + noise.sigma_t2;
+  for (let k = 0; k < out.length; k++) {
+    const s = slope[k];
+    const c = curvature[k];
+    const vk = var_t[k];
+    out[k] = vk === Infinity ? Infinity : noise.sigma_v2 + s * s * vt + 0.5 * c * c * vk * vk;
+  }
+}
+
+/**
+ * Estimates (sigma_t^2, sigma_v^2) from the residuals r (volts), slopes, curvatures, current
+ * timing variances and leverages of the edges with mask[k] > 0. `start` seeds the clipping;
+ * null starts from the median squared residual with all noise in time.
+ */
+export function estimateNoise(
+  r: Float64Array, slope: Float64Array, curvature: Float64Array, var_t: Float64Array,
+  leverage: Float64Array, mask: Float64Array, q_s2: number, start: NoiseEstimate | null,
+): NoiseEstimate {
+  const n = r.length;
+  let xMean = 0;
+  let count = 0;
+  for (let k = 0; k < n; k++) {
+    if (!(mask[k] > 0)) continue;
+    xMean += slope[k] * slope[k];
+    count++;
+  }
+  if (count < 3 || !(xMean > 0)) return start ?? { sigma_t2: 0, sigma_v2: 0 };
+  xMean /= count;
+  // Model e^2 - curvature term = a + b x with a = sigma_v^2, b = (tick^2/12 + sigma_t^2) xMean,
+  // x = slope^2 / xMean: both coefficients in V^2.
+  let a: number;
+  let b: number;
+  if (start) {
+    a = start.sigma_v2;
+    b = (q_s2 + start.sigma_t2) * xMean;
+  } else {
+    const ratio = new Float64Array(count);
+    let c = 0;
+    for (let k = 0; k < n; k++) if (mask[k] > 0) ratio[c++] = (r[k] * r[k]) / (slope[k] * slope[k]);
+    ratio.sort();
+    a = 0;
+    b = Math.max(q_s2, ratio[count >> 1] / 0.45493642) * xMean; // median of chi-square(1)
+  }
+  const bMin = q_s2 * xMean;
+  for (let it = 0; it < 60; it++) {
+    let s0 = 0, sx = 0, sxx = 0, sy = 0, sxy = 0;
+    for (let k = 0; k < n; k++) {
+      if (!(mask[k] > 0)) continue;
+      const x = (slope[k] * slope[k]) / xMean;
+      const curv = 0.5 * curvature[k] * curvature[k] * var_t[k] * var_t[k];
+      const v = Math.max(a + b * x + curv, 1e-300);
+      const hk = Math.min(leverage[k], 0.9);
+      const y = Math.min((r[k] * r[k]) / (1 - hk), CLIP * CLIP * v) / CLIP_MEAN - curv;
+      const w = 1 / (v * v);
+      s0 += w;
+      sx += w * x;
+      sxx += w * x * x;
+      sy += w * y;
+      sxy += w * x * y;
+    }
+    const det = s0 * sxx - sx * sx;
+    let na: number;
+    let nb: number;
+    if (det > 1e-9 * s0 * sxx) {
+      na = (sxx * sy - sx * sxy) / det;
+      nb = (s0 * sxy - sx * sy) / det;
+    } else {
+      na = 0; // slopes all alike: the two components cannot be told apart; call it timing
+      nb = sxy / sxx;
+    }
+    if (nb < bMin) {
+      nb = bMin;
+      na = Math.max(0, (sy - bMin * sx) / s0);
+    }
+    if (na < 0) {
+      na = 0;
+      nb = Math.max(bMin, sxy / sxx);
+    }
+    const change = (Math.abs(na - a) + Math.abs(nb - b)) / (a + b);
+    a = na;
+    b = nb;
+    if (change < 1e-7) break;
+  }
+  return { sigma_t2: Math.max(0, b / xMean - q_s2), sigma_v2: a };
+}
