@@ -2,11 +2,15 @@
 
 import { parseArgs } from "node:util";
 import type { ParseArgsConfig } from "node:util";
+
+type OptionsConfig = NonNullable<ParseArgsConfig["options"]>;
 import { CliUsageError } from "./errors.ts";
 
-export function parse(args: string[], options: NonNullable<ParseArgsConfig["options"]>) {
+type Parsed<T extends OptionsConfig> = ReturnType<typeof parseArgs<{ args: string[]; options: T; allowPositionals: true; strict: true }>>;
+
+export function parse<const T extends OptionsConfig>(args: string[], options: T): Parsed<T> {
   try {
-    return parseArgs({ args, options, allowPositionals: true, strict: true });
+    return parseArgs({ args, options, allowPositionals: true as const, strict: true as const });
   } catch (e) {
     throw new CliUsageError((e as Error).message);
   }

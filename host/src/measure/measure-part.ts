@@ -10,6 +10,7 @@ import type { DeviceClient, MeasureSettings } from "../device/client.ts";
 import type { RawCapture } from "../device/stream-reader.ts";
 import type { PlanLimits, SettingPrediction } from "../ranging/range-plan.ts";
 import { defaultLimits, estimateFromProbe, rankSettings } from "../ranging/range-plan.ts";
+import { formatSi } from "../format/si.ts";
 import { captureFromDevice, ringInputFromCapture } from "./capture-build.ts";
 
 export interface MeasureOptions {
@@ -121,5 +122,5 @@ function checkIndex(name: string, v: number, n: number): void {
 export function describeSetting(client: DeviceClient, s: MeasureSettings): string {
   const r = client.profile.drives[s.drive].ohm;
   const c = client.profile.tanks[s.tank].nominal_f;
-  return `drive ${r} Ω, tank ${(c * 1e9).toPrecision(3)} nF, charge ${s.charge_us} µs`;
+  return `drive ${formatSi(r, "Ω", 3)}, tank ${formatSi(c, "F", 3)}, charge ${s.charge_us} µs`;
 }

@@ -63,18 +63,29 @@ export function predictSetting(profile: DeviceProfile, est: PartEstimate, drive:
   return { drive, tank, charge_us, i0_a: i0, peak_v: peak, f_hz: f, ticks_per_period: tpp, q, usable_edges: usable, refused };
 }
 
-/** All settings, best first: allowed ones by usable edges (capped by the buffer), then by lower peak. */
+/**
+ * Edges beyond which more edges hardly help: the fit's share of u(L) is then far below the tank
+ * capacitance's, so other qualities decide.
+ */
+export const TARGET_EDGES = 200;
+
+/**
+ * All settings, best first. Allowed settings come first; among them, more usable edges up to
+ * TARGET_EDGES; then the largest tank (the part's self-capacitance and the fixture's stray
+ * capacitance matter least against it); then the lowest ring peak.
+ */
 export function rankSettings(profile: DeviceProfile, est: PartEstimate, limits = defaultLimits(profile)): SettingPrediction[] {
   const all: SettingPrediction[] = [];
   for (let d = 0; d < profile.drives.length; d++) {
     for (let t = 0; t < profile.tanks.length; t++) all.push(predictSetting(profile, est, d, t, limits));
   }
-  const cap = profile.buffer_edges * 0.8;
-  const score = (p: SettingPrediction) => Math.min(p.usable_edges, cap);
+  const edges = (p: SettingPrediction) => Math.min(p.usable_edges, TARGET_EDGES, profile.buffer_edges);
+  const tankF = (p: SettingPrediction) => profile.tanks[p.tank].nominal_f;
   return all.sort((a, b) => {
     if ((a.refused === "") !== (b.refused === "")) return a.refused === "" ? -1 : 1;
-    const ds = score(b) - score(a);
-    return Math.abs(ds) > 1e-9 ? ds : a.peak_v - b.peak_v;
+    if (edges(a) !== edges(b)) return edges(b) - edges(a);
+    if (tankF(a) !== tankF(b)) return tankF(b) - tankF(a);
+    return a.peak_v - b.peak_v;
   });
 }
 
