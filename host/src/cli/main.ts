@@ -4,6 +4,7 @@
 import { runAnalyze } from "./analyze-command.ts";
 import { runMeasure } from "./measure-command.ts";
 import { runProfile, runScenarios } from "./info-commands.ts";
+import { runSimDevice } from "./sim-device-command.ts";
 import { CliUsageError, reportError } from "./errors.ts";
 import { SAFETY_TEXT } from "./safety.ts";
 
@@ -15,6 +16,8 @@ Usage:
   henrytick analyze FILE...            analyse saved captures again
   henrytick profile (--sim | --port PATH)   show the tester's board profile
   henrytick scenarios                  list the simulated demo parts
+  henrytick sim-device [SCENARIO] [--seed N]   serve a simulated tester on a pseudo-terminal
+                                       (prints its path for --port; needs socat; Ctrl-C stops)
 
 Options for measure:
   --json               print the result as JSON (SI units in the key names)
@@ -42,6 +45,7 @@ export async function main(argv: string[]): Promise<number> {
         return await runAnalyze(rest);
       case "profile":
         return await runProfile(rest);
+      case "sim-device": return await runSimDevice(rest);
       case "scenarios":
         return runScenarios(rest);
       case undefined:
