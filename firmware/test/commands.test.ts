@@ -4,7 +4,7 @@ import { describe, expect, it } from "vitest";
 import { ERR_ABORTED, ERR_ARGUMENT, ERR_BUSY, ERR_CHARGE_LIMIT, ERR_CRC, ERR_LINE_TOO_LONG, ERR_REST, ERR_SYNTAX, ERR_UNKNOWN_COMMAND, PROTOCOL_VERSION, crc16Range } from "../../shared-protocol/src/index.ts";
 import { encodeCommand } from "../../host/src/device/frames.ts";
 import { parseProfile } from "../../host/src/device/profile.ts";
-import { referenceBoard } from "../../host/src/sim/board-model.ts";
+import { nominalBoard } from "../../host/src/sim/board-model.ts";
 import { SimLink, show } from "./sim-link.ts";
 
 const text = (tag: string, ...args: number[]) => new TextDecoder().decode(encodeCommand(tag, args));
@@ -24,7 +24,7 @@ describe("firmware commands", () => {
     const frames = link.send("PF");
     expect(show(frames[frames.length - 1])).toBe("OK PF");
     const p = parseProfile(frames.slice(0, -1));
-    const b = referenceBoard();
+    const b = nominalBoard();
     expect(p.tick_hz).toBe(b.timer.tick_hz);
     expect(p.drives.map((d) => d.ohm)).toEqual(b.drive_ohm);
     p.tanks.forEach((t, i) => expect(t.nominal_f).toBeCloseTo(b.tank_f[i], 20));

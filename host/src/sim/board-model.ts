@@ -1,37 +1,70 @@
 // Physical values of the simulated reference front end (docs/hardware.md). These are the
-// "actual" component values the simulated circuit uses; the firmware's board profile carries
-// the nominal ones. v0 keeps actual = nominal and no fixture capacitance; the calibration work
-// makes them differ.
+// "actual" component values of one particular simulated board; the firmware's profile carries
+// the nominal ones, and the difference is what calibration measures. Actual values sit inside the
+// parts' tolerances (resistors ±1 %, tank capacitors ±1 % C0G / film).
 
 import type { ComparatorModel, TimerModel } from "./comparator-edges.ts";
 
 export interface BoardModel {
   supply_v: number;
-  /** Drive resistors, ohms, indexed as in the firmware profile. */
+  /** Drive resistors including their selector switch, ohms, indexed as in the firmware profile. */
   drive_ohm: number[];
-  /** Tank capacitors, farads, indexed as in the firmware profile. */
+  /** Tank capacitors including relay contacts and wiring, farads. */
   tank_f: number[];
-  /** Capacitance of the test clips and wiring in parallel with the tank, farads. */
+  /** Test clips and leads, in parallel with the tank, farads. */
   fixture_f: number;
+  /** Switch-node capacitance from the part's lower end to ground (blocking diode + switch), farads. */
+  switch_node_f: number;
   /** Low-side switch on-resistance, ohms. */
   switch_on_ohm: number;
-  /** Flyback clamp voltage: the ring is not simulated past it (v0 flags it instead). */
+  /** Forward drop of the blocking diode in series with the switch, volts. */
+  diode_v: number;
+  /** Ring amplitude at which the flyback clamp starts to conduct, volts. */
   clamp_v: number;
   comparator: ComparatorModel;
   timer: TimerModel;
   device_id: number;
 }
 
-export function referenceBoard(): BoardModel {
+/** The nominal board: every part exactly at its nominal value, ideal comparator timing. */
+export function nominalBoard(): BoardModel {
   return {
     supply_v: 5.0,
     drive_ohm: [10, 100, 1000, 10000],
     tank_f: [1e-9, 10e-9, 100e-9, 1e-6],
     fixture_f: 0,
+    switch_node_f: 0,
     switch_on_ohm: 0.05,
+    diode_v: 0,
     clamp_v: 36,
     comparator: { rising_v: 0.035, falling_v: -0.005, jitter_s: 4e-9, noise_v: 0.5e-3, delay_s: 60e-9 },
     timer: { tick_hz: 64e6, ppm: 0, dead_time_s: 40e-9 },
+    device_id: 0x5eed0001,
+  };
+}
+
+/** The simulated tester's default board: one plausible unit off the line. */
+export function referenceBoard(): BoardModel {
+  return {
+    supply_v: 5.0,
+    drive_ohm: [10.09, 100.4, 998.2, 10012],
+    tank_f: [1.0031e-9, 9.978e-9, 100.44e-9, 0.99620e-6],
+    fixture_f: 2.5e-12,
+    switch_node_f: 18e-12,
+    switch_on_ohm: 0.05,
+    diode_v: 0.35,
+    clamp_v: 36,
+    comparator: {
+      rising_v: 0.035,
+      falling_v: -0.005,
+      offset_v: 0.4e-3,
+      jitter_s: 2e-9,
+      noise_v: 0.6e-3,
+      noise_bw_hz: 2e6,
+      delay_s: 45e-9,
+      overdrive_v_s: 2e-12,
+    },
+    timer: { tick_hz: 64e6, ppm: 11.5, dead_time_s: 30e-9 },
     device_id: 0x5eed0001,
   };
 }

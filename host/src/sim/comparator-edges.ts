@@ -1,23 +1,35 @@
-// Comparator edges of a damped sine (measurement notes §2): a comparator with a rising threshold
-// VH and a falling threshold VL (VH > VL, hysteresis) starts low when the switch opens. It goes
-// high where v(t) crosses VH upward and low where v(t) crosses VL downward. Crossing times are
-// solved exactly on each monotonic segment of the ring, then timing noise and the timer's
-// quantisation are applied.
+// Comparator edges of a ring (measurement notes §2). The comparator has a rising threshold VH
+// and a falling threshold VL (VH > VL: hysteresis), both shifted by its input offset, and starts
+// low when the switch opens. It goes high where v(t) crosses VH upward and low where v(t) crosses
+// VL downward. Crossing times are solved exactly on each monotonic stretch of the ring; then the
+// comparator's timing (fixed delay plus an overdrive-dependent part, jitter, band-limited input
+// noise acting through the ring's slope) and the timer (crystal error, tick quantisation, dead
+// time between captures, buffer size) are applied. Deterministic for a given Random state.
 
 import type { DampedSine } from "../physics/ring.ts";
-import { sineValue } from "../physics/ring.ts";
+import type { RingWave } from "../physics/ring-wave.ts";
+import { sineWave, waveExtremum, waveSlope, waveValue } from "../physics/ring-wave.ts";
 import type { Random } from "./random.ts";
 
 export interface ComparatorModel {
-  /** Rising and falling thresholds referred to the ring voltage, volts. */
+  /** Rising and falling thresholds referred to the ring voltage, volts (nominal design values). */
   rising_v: number;
   falling_v: number;
+  /** Input offset voltage, added to both thresholds. Default 0. */
+  offset_v?: number;
   /** Gaussian timing jitter, seconds rms (comparator and capture synchroniser). */
   jitter_s: number;
   /** Input-referred voltage noise, volts rms; becomes timing noise through the ring's slope. */
   noise_v: number;
+  /** Noise bandwidth (first-order), Hz; edges closer than 1/(2 pi bw) see correlated noise. Default: white. */
+  noise_bw_hz?: number;
   /** Constant propagation delay, seconds. */
   delay_s: number;
+  /**
+   * Overdrive-dependent delay: the comparator switches once the overdrive integrated over time
+   * reaches this many volt-seconds, so a ramp of slope S adds sqrt(2 q / S). Default 0.
+   */
+  overdrive_v_s?: number;
 }
 
 export interface TimerModel {
@@ -33,44 +45,57 @@ export interface EdgeList {
   levels: number[];
 }
 
-/** Exact threshold-crossing times (seconds since the switch opened), before noise. */
+type Ring = RingWave | DampedSine;
+
+function asWave(r: Ring): RingWave {
+  return "a0_v" in r ? sineWave(r.a0_v, r.alpha_per_s, r.wd_rad_s) : r;
+}
+
+/** Exact threshold-crossing times (seconds since the switch opened) and levels, before noise. */
 export function crossingTimes(
-  ring: DampedSine, rising_v: number, falling_v: number, max_edges: number, window_s: number,
+  ring: Ring, rising_v: number, falling_v: number, max_edges: number, window_s: number,
 ): { times: number[]; levels: number[] } {
+  const w = asWave(ring);
   const times: number[] = [];
   const levels: number[] = [];
-  const { alpha_per_s: a, wd_rad_s: wd } = ring;
-  // Extremes of e^(-a t) sin(wd t) sit at wd t = atan(wd / a) + n pi.
-  const phi = Math.atan2(wd, a);
+  let high = false;
   let segStart = 0;
-  for (let n = 0; times.length < max_edges; n++) {
-    const segEnd = (phi + n * Math.PI) / wd;
+  // Stretch n runs from extremum n-1 to extremum n; even n climbs to a maximum.
+  let n = 0;
+  while (waveExtremum(w, n) <= 0) n++;
+  for (; times.length < max_edges; n++) {
+    const segEnd = waveExtremum(w, n);
     if (segStart > window_s) break;
-    const rising = n % 2 === 0; // even n: the segment climbs to a maximum
-    const level = rising ? rising_v : falling_v;
-    const vEnd = sineValue(ring, segEnd);
-    const reaches = rising ? vEnd > level : vEnd < level;
-    const vStart = sineValue(ring, segStart);
-    const startsBefore = rising ? vStart <= level : vStart >= level;
-    if (reaches && startsBefore) {
-      const t = solveCrossing(ring, level, segStart, segEnd);
-      if (t > window_s) break;
-      times.push(t);
-      levels.push(rising ? 1 : 0);
-    } else if (!reaches) {
-      break; // the ring no longer reaches this threshold: it has ended for the comparator
+    const climbing = n % 2 === 0;
+    const vEnd = waveValue(w, segEnd);
+    if (climbing && !high) {
+      if (vEnd > rising_v) {
+        times.push(solveCrossing(w, rising_v, segStart, segEnd));
+        levels.push(1);
+        high = true;
+      } else if (n > 1) break; // maxima no longer reach VH: the ring has ended for the comparator
+    } else if (!climbing && high) {
+      if (vEnd < falling_v) {
+        times.push(solveCrossing(w, falling_v, segStart, segEnd));
+        levels.push(0);
+        high = false;
+      } else break;
     }
     segStart = segEnd;
+  }
+  while (times.length > 0 && times[times.length - 1] > window_s) {
+    times.pop();
+    levels.pop();
   }
   return { times, levels };
 }
 
-/** Root of v(t) = level on a segment where v is monotonic: Newton guarded by bisection. */
-function solveCrossing(ring: DampedSine, level: number, lo: number, hi: number): number {
-  const f = (t: number) => sineValue(ring, t) - level;
+/** Root of v(t) = level inside [lo, hi] where v - level changes sign: Newton guarded by bisection. */
+function solveCrossing(w: RingWave, level: number, lo: number, hi: number): number {
+  const f = (t: number) => waveValue(w, t) - level;
   let flo = f(lo);
   let t = 0.5 * (lo + hi);
-  for (let i = 0; i < 100; i++) {
+  for (let i = 0; i < 200; i++) {
     const ft = f(t);
     if (ft === 0) return t;
     if (Math.sign(ft) === Math.sign(flo)) {
@@ -79,9 +104,7 @@ function solveCrossing(ring: DampedSine, level: number, lo: number, hi: number):
     } else {
       hi = t;
     }
-    const e = Math.exp(-ring.alpha_per_s * t);
-    const slope = ring.a0_v * e * (ring.wd_rad_s * Math.cos(ring.wd_rad_s * t) - ring.alpha_per_s * Math.sin(ring.wd_rad_s * t));
-    let next = t - ft / slope;
+    let next = t - ft / waveSlope(w, t);
     if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
     if (Math.abs(next - t) <= 1e-16 * Math.max(t, 1e-12) || hi - lo <= 4e-16 * hi) return next;
     t = next;
@@ -90,28 +113,34 @@ function solveCrossing(ring: DampedSine, level: number, lo: number, hi: number):
 }
 
 /** Slope of the ring at t, volts per second. */
-export function ringSlope(ring: DampedSine, t: number): number {
-  const e = Math.exp(-ring.alpha_per_s * t);
-  return ring.a0_v * e * (ring.wd_rad_s * Math.cos(ring.wd_rad_s * t) - ring.alpha_per_s * Math.sin(ring.wd_rad_s * t));
+export function ringSlope(ring: Ring, t: number): number {
+  return waveSlope(asWave(ring), t);
 }
 
-/**
- * Captured edges: crossings plus timing noise, delay, crystal error, tick quantisation and the
- * capture's dead time. Deterministic for a given Random state.
- */
+/** Captured edges with comparator timing effects and the timer applied. */
 export function captureEdges(
-  ring: DampedSine, comp: ComparatorModel, timer: TimerModel, rng: Random,
-  max_edges: number, window_s: number,
+  ring: Ring, comp: ComparatorModel, timer: TimerModel, rng: Random, max_edges: number, window_s: number,
 ): EdgeList {
-  const { times, levels } = crossingTimes(ring, comp.rising_v, comp.falling_v, max_edges, window_s);
+  const w = asWave(ring);
+  const offset = comp.offset_v ?? 0;
+  // Solve for a few more crossings than the buffer holds: the dead time may drop some.
+  const { times, levels } = crossingTimes(w, comp.rising_v + offset, comp.falling_v + offset, max_edges + 64, window_s);
   const rate = timer.tick_hz * (1 + timer.ppm * 1e-6);
   const ticks: number[] = [];
   const outLevels: number[] = [];
+  const tauNoise = comp.noise_bw_hz ? 1 / (2 * Math.PI * comp.noise_bw_hz) : 0;
+  let noise = comp.noise_v * rng.normal();
   let lastT = -Infinity;
-  for (let k = 0; k < times.length; k++) {
-    const slope = Math.abs(ringSlope(ring, times[k]));
-    const sigmaV = slope > 0 ? comp.noise_v / slope : 0;
-    const t = times[k] + comp.delay_s + comp.jitter_s * rng.normal() + sigmaV * rng.normal();
+  for (let k = 0; k < times.length && ticks.length < max_edges; k++) {
+    if (k > 0) {
+      // First-order (Ornstein-Uhlenbeck) noise sampled at the crossing instants.
+      const rho = tauNoise > 0 ? Math.exp(-(times[k] - times[k - 1]) / tauNoise) : 0;
+      noise = rho * noise + comp.noise_v * Math.sqrt(1 - rho * rho) * rng.normal();
+    }
+    const slope = Math.abs(waveSlope(w, times[k]));
+    const noiseShift = slope > 0 ? noise / slope : 0;
+    const overdrive = comp.overdrive_v_s && slope > 0 ? Math.sqrt((2 * comp.overdrive_v_s) / slope) : 0;
+    const t = times[k] + comp.delay_s + overdrive + comp.jitter_s * rng.normal() + noiseShift;
     if (t - lastT < timer.dead_time_s || t < 0) continue;
     lastT = t;
     ticks.push(Math.floor(t * rate));

@@ -3,9 +3,7 @@
 // sleep (fw_poll's return value) and the simulator jumps the clock forward by that much, so a
 // measurement completes as fast as the host can compute it and is fully deterministic.
 
-import { ringWaveform } from "../physics/ring.ts";
-import { chargeCurrent } from "../physics/ring.ts";
-import { captureEdges } from "./comparator-edges.ts";
+import { simulatePulse } from "./front-end.ts";
 import type { BoardModel } from "./board-model.ts";
 import { referenceBoard } from "./board-model.ts";
 import type { FirmwareVariant } from "./firmware-image.ts";
@@ -142,18 +140,10 @@ export class SimTester {
     this.capture = pending;
     const part = this.part;
     if (!part) return; // open terminals: no current, no ring
-    const loop = b.drive_ohm[this.drive] + part.series_ohm + b.switch_on_ohm;
-    const i0 = chargeCurrent(b.supply_v, loop, part.inductance_h, chargeTicks / b.timer.tick_hz);
-    const c = b.tank_f[this.tank] + b.fixture_f + part.self_capacitance_f;
-    let ring;
-    try {
-      ring = ringWaveform({ l_h: part.inductance_h, rs_ohm: part.series_ohm, rp_ohm: part.parallel_ohm }, c, i0);
-    } catch {
-      return; // overdamped: the drain relaxes without crossing back, no edges
-    }
-    this.stats.peakRingV = Math.max(this.stats.peakRingV, ring.a0_v);
     const window_s = (2 ** 30 - 1) / b.timer.tick_hz;
-    const edges = captureEdges(ring, b.comparator, b.timer, this.rng, capacity, window_s);
+    const r = simulatePulse(b, part, this.drive, this.tank, chargeTicks / b.timer.tick_hz, capacity, this.rng, window_s);
+    this.stats.peakRingV = Math.max(this.stats.peakRingV, r.peak_v);
+    const edges = r.edges;
     pending.ticks = edges.ticks;
     pending.levels = edges.levels;
   }

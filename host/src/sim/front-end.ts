@@ -1,0 +1,66 @@
+// One pulse on the simulated front end: charge the part through the selected drive resistor,
+// open the switch, solve the ring exactly (physics/front-end-circuit.ts) and turn it into the
+// comparator edges the capture hardware records.
+
+import type { FrontEndCircuit } from "../physics/front-end-circuit.ts";
+import { solveRing, stateAtOpening } from "../physics/front-end-circuit.ts";
+import type { RingWave } from "../physics/ring-wave.ts";
+import { waveAmplitude } from "../physics/ring-wave.ts";
+import type { BoardModel } from "./board-model.ts";
+import type { EdgeList } from "./comparator-edges.ts";
+import { captureEdges } from "./comparator-edges.ts";
+import type { Random } from "./random.ts";
+import type { PartModel } from "./scenario.ts";
+
+export interface PulseResult {
+  edges: EdgeList;
+  /** Null when the part does not ring (overdamped). */
+  wave: RingWave | null;
+  i0_a: number;
+  /** Initial amplitude of the ring at the comparator, volts. */
+  peak_v: number;
+  /** True when the ring would exceed the flyback clamp (not yet modelled beyond this flag). */
+  clamped: boolean;
+}
+
+/** The circuit the part forms with the board's selected drive resistor and tank. */
+export function frontEndCircuit(board: BoardModel, part: PartModel, drive: number, tank: number): FrontEndCircuit {
+  return {
+    l_h: part.inductance_h,
+    rs_ohm: part.series_ohm,
+    rp_ohm: part.parallel_ohm ?? Infinity,
+    c_f: board.tank_f[tank] + board.fixture_f + part.self_capacitance_f,
+    csw_f: Math.max(board.switch_node_f, 1e-18), // a vanishing Csw keeps the third pole finite
+    r_ohm: board.drive_ohm[drive],
+    supply_v: board.supply_v,
+  };
+}
+
+export function simulatePulse(
+  board: BoardModel, part: PartModel, drive: number, tank: number, charge_s: number,
+  capacity: number, rng: Random, window_s: number,
+): PulseResult {
+  const circuit = frontEndCircuit(board, part, drive, tank);
+  const x0 = stateAtOpening(circuit, board.switch_on_ohm, board.diode_v, charge_s);
+  let wave: RingWave;
+  try {
+    wave = solveRing(circuit, x0);
+  } catch {
+    return { edges: { ticks: [], levels: [] }, wave: null, i0_a: x0.i_a, peak_v: 0, clamped: false };
+  }
+  const peak = waveAmplitude(wave);
+  const edges = captureEdges(wave, board.comparator, board.timer, rng, capacity, window_s);
+  return { edges, wave, i0_a: x0.i_a, peak_v: peak, clamped: peak > board.clamp_v };
+}
+
+/**
+ * What a correct analysis must report for this part on this setting when it divides by the
+ * tank's nominal capacitance: L_reading = 1 / (w0^2 C_nominal), with w0 of the full circuit.
+ * This is the simulator's ground truth for end-to-end checks.
+ */
+export function expectedReading(board: BoardModel, part: PartModel, drive: number, tank: number, nominal_tank_f: number): { inductance_h: number; q: number; f0_hz: number } {
+  const circuit = frontEndCircuit(board, part, drive, tank);
+  const wave = solveRing(circuit, { i_a: 1e-3, v_td_v: 0, v_d_v: board.supply_v });
+  const w0sq = wave.alpha_per_s ** 2 + wave.wd_rad_s ** 2;
+  return { inductance_h: 1 / (w0sq * nominal_tank_f), q: Math.sqrt(w0sq) / (2 * wave.alpha_per_s), f0_hz: Math.sqrt(w0sq) / (2 * Math.PI) };
+}
