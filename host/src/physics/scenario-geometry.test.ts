@@ -1,6 +1,8 @@
 // Demo scenarios built from coil geometry carry both the geometry and the part values derived
 // from it. This test recomputes the part from the geometry so the two cannot drift apart, and
 // checks that the scenario loader accepts the files (it ignores the extra "geometry" key).
+// Each file's resistance_frequency_hz is the ring frequency the simulated tester chose for that
+// coil when the file was written, so series_ohm (skin effect, no proximity effect) fits the ring.
 
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
