@@ -8,7 +8,7 @@ import { assignHalfCycles } from "./cycle-bookkeeping.ts";
 import { diagnose } from "./diagnostics.ts";
 import { FitWorkspace, fitEdgeModel } from "./edge-fit.ts";
 import { chooseResidualForms, evaluateEdges, makeEdgeSet, P_ALPHA, P_LNA, P_WD, type EdgeSet } from "./edge-model.ts";
-import { initialGuess } from "./initial-guess.ts";
+import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
 import { reassignHalfCycles } from "./model-bookkeeping.ts";
 import { edgeTimeVariances, edgeVariances, estimateNoise, type NoiseEstimate } from "./noise-model.ts";
 import { ringQuantities, COVERAGE_K } from "./ring-quantities.ts";
@@ -86,10 +86,11 @@ export function fitRing(input: RingInput): FitState {
   const e = makeEdgeSet(c.t_s, c.rising, book.m);
   const reasons = book.reasons;
   if (countFinite(e.m) < MIN_EDGES) throw noRing("too few edges fall into a regular ring");
-  const guess = initialGuess(e, c.vh_v, c.vl_v);
-  if (!guess) throw noRing("no damped sine explains the edge times");
+  const candidates = initialCandidates(e, c.vh_v, c.vl_v);
+  if (candidates.length === 0) throw noRing("no damped sine explains the edge times");
 
   const ws = new FitWorkspace(n);
+  const guess = bestStart(candidates, e, c, q, ws);
   chooseResidualForms(guess.p, e, c.vh_v, c.vl_v);
   const variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, q), ws);
   const robust = new Float64Array(n).fill(1);
@@ -108,7 +109,8 @@ export function fitRing(input: RingInput): FitState {
   for (let round = 0; ; round++) {
     chooseResidualForms(p, e, c.vh_v, c.vl_v);
     setWeights(e, outlier, robust, variance, used, w);
-    fit = fitEdgeModel(e, c.vh_v, c.vl_v, p, w, varT, ws);
+    // Early rounds weight with a rough noise model: a few steps suffice there.
+    fit = fitEdgeModel(e, c.vh_v, c.vl_v, p, w, varT, ws, round < 2 ? 6 : 60);
     if (!Number.isFinite(fit.chi2)) throw noRing("the edge-model fit diverged");
     p = fit.p;
     if (round === MAX_ROUNDS) break;
@@ -125,7 +127,8 @@ export function fitRing(input: RingInput): FitState {
     const oldVariance = variance.slice();
     edgeTimeVariances(q, noise, ws.slope, p[P_WD], assigned, varT);
     edgeVariances(q, noise, ws.slope, ws.curvature, varT, variance);
-    const noiseMoved = meanRelChange(oldVariance, variance, used) > 1e-3;
+    // A 2 % change of the weights moves the estimates by a negligible second-order amount.
+    const noiseMoved = meanRelChange(oldVariance, variance, used) > 0.02;
 
     // Standardise against the noise model, Huber-weight, and (once a noise model exists) reject
     // on a MAD scale. Rejected edges are re-tested every round, so an edge set aside under a
@@ -144,12 +147,7 @@ export function fitRing(input: RingInput): FitState {
       outlier[k] = isOut;
       if (isOut) reasons[k] = `residual ${Math.abs(zk).toFixed(1)} robust sd from the ring model (outlier)`;
     }
-    if (round >= 2 && moved === 0 && flipped === 0 && !noiseMoved) {
-      setWeights(e, outlier, robust, variance, used, w);
-      fit = fitEdgeModel(e, c.vh_v, c.vl_v, p, w, varT, ws);
-      p = fit.p;
-      break;
-    }
+    if (round >= 1 && moved === 0 && flipped === 0 && !noiseMoved) break;
   }
   const cov = invertSymmetric(4, fit.normal);
   if (!cov || !noise) throw noRing("the fit has no covariance");
@@ -174,6 +172,49 @@ function setWeights(
     used[k] = e.m[k] === e.m[k] && !outlier[k] ? 1 : 0;
     w[k] = used[k] > 0 ? robust[k] / variance[k] : 0;
   }
+}
+
+/**
+ * Fits each start briefly on a subset of the edges (the tail, where the amplitude shows, and an
+ * even spread) and keeps the one that ends with the smallest residuals: this is what separates
+ * the basins of the (A0, alpha) likelihood (measurement notes §2).
+ */
+function bestStart(candidates: InitialGuess[], e: EdgeSet, c: CheckedInput, q: number, ws: FitWorkspace): InitialGuess {
+  if (candidates.length === 1) return candidates[0];
+  const mask = subsetMask(e, 160, 40);
+  const varT = Math.max(candidates[0].ms_residual_s2, q);
+  let best = candidates[0];
+  let bestChi2 = Infinity;
+  for (const cand of candidates) {
+    chooseResidualForms(cand.p, e, c.vh_v, c.vl_v);
+    const variance = initialVariance(cand.p, e, varT, ws);
+    for (let k = 0; k < e.n; k++) variance[k] = mask[k] > 0 ? 1 / variance[k] : 0;
+    const fit = fitEdgeModel(e, c.vh_v, c.vl_v, cand.p, variance, null, ws, 25, 1e-3);
+    if (fit.chi2 < bestChi2) {
+      bestChi2 = fit.chi2;
+      best = { p: fit.p, ms_residual_s2: cand.ms_residual_s2 };
+    }
+  }
+  return best;
+}
+
+/** 1 for up to `count` indexed edges: the last `tail` of them and an even spread of the rest. */
+function subsetMask(e: EdgeSet, count: number, tail: number): Float64Array {
+  const mask = new Float64Array(e.n);
+  let total = 0;
+  for (let k = 0; k < e.n; k++) if (e.m[k] === e.m[k]) total++;
+  const stride = Math.max(1, (total - tail) / (count - tail));
+  let seen = 0;
+  let next = 0;
+  for (let k = 0; k < e.n; k++) {
+    if (e.m[k] !== e.m[k]) continue;
+    if (seen >= total - tail || seen >= next) {
+      mask[k] = 1;
+      if (seen >= next) next += stride;
+    }
+    seen++;
+  }
+  return mask;
 }
 
 /** Round-0 variances: timing noise only, slopes floored so grazing edges do not dominate. */

@@ -24,6 +24,8 @@ export class FitWorkspace {
   readonly curvature: Float64Array;
   readonly h = new Float64Array(N_PARAMS * N_PARAMS);
   readonly g = new Float64Array(N_PARAMS);
+  readonly h2 = new Float64Array(N_PARAMS * N_PARAMS);
+  readonly g2 = new Float64Array(N_PARAMS);
   readonly step = new Float64Array(N_PARAMS);
   readonly trial = new Float64Array(N_PARAMS);
   readonly work = new Float64Array(N_PARAMS * N_PARAMS + N_PARAMS);
@@ -35,14 +37,18 @@ export class FitWorkspace {
   }
 }
 
-/** Minimises sum w_k r_k^2 over the edges with w_k > 0 and finite m, starting at p0. */
+/**
+ * Minimises sum w_k r_k^2 over the edges with w_k > 0 and finite m, starting at p0. Stops when a
+ * step gains less than `tol_chi2` (chi2 is in units of the noise model, so 1e-6 leaves the
+ * parameters within about 1e-3 standard deviations of the minimum).
+ */
 export function fitEdgeModel(
   e: EdgeSet, vh_v: number, vl_v: number, p0: ArrayLike<number>, w: Float64Array, var_t_s2: Float64Array | null,
-  ws: FitWorkspace, max_iterations = 60,
+  ws: FitWorkspace, max_iterations = 60, tol_chi2 = 1e-6,
 ): EdgeFitResult {
   // ws.r holds whatever was evaluated last (possibly a refused trial): callers re-evaluate at p.
   const p = Float64Array.from(p0);
-  let chi2 = accumulate(p, e, vh_v, vl_v, w, var_t_s2, ws, true);
+  let chi2 = accumulate(p, e, vh_v, vl_v, w, var_t_s2, ws, ws.h, ws.g);
   if (!Number.isFinite(chi2)) return { p, chi2, normal: ws.h.slice(), iterations: 0, converged: false };
   let lambda = 1e-4;
   let converged = false;
@@ -56,11 +62,16 @@ export function fitEdgeModel(
         continue;
       }
       for (let i = 0; i < N_PARAMS; i++) ws.trial[i] = p[i] + ws.step[i];
-      const trialChi2 = accumulate(ws.trial, e, vh_v, vl_v, w, var_t_s2, ws, false);
+      // The trial is evaluated with its Jacobian: most trials are accepted, and this saves
+      // evaluating the accepted point twice.
+      const trialChi2 = accumulate(ws.trial, e, vh_v, vl_v, w, var_t_s2, ws, ws.h2, ws.g2);
       if (trialChi2 <= chi2) {
         const drop = chi2 - trialChi2;
-        converged = drop <= 1e-9 + 1e-12 * chi2 || smallStep(p, ws.step);
+        converged = drop <= tol_chi2 + 1e-12 * chi2 || smallStep(p, ws.step);
         p.set(ws.trial);
+        ws.h.set(ws.h2);
+        ws.g.set(ws.g2);
+        chi2 = trialChi2;
         lambda = Math.max(lambda * 0.2, 1e-12);
         accepted = true;
         break;
@@ -68,10 +79,10 @@ export function fitEdgeModel(
       lambda *= 8;
     }
     if (!accepted) {
-      converged = true; // no downhill step exists at machine precision: a minimum
+      // No downhill step at machine precision: a minimum. ws.h still belongs to p.
+      converged = true;
       break;
     }
-    chi2 = accumulate(p, e, vh_v, vl_v, w, var_t_s2, ws, true);
   }
   return { p, chi2, normal: ws.h.slice(), iterations: it, converged };
 }
@@ -85,23 +96,23 @@ function smallStep(p: Float64Array, step: Float64Array): boolean {
   );
 }
 
-/** chi2 at p; with `full` also J^T W J into ws.h and J^T W r into ws.g. */
+/** chi2 at p, with J^T W J into h and J^T W r into g. */
 function accumulate(
   p: Float64Array, e: EdgeSet, vh_v: number, vl_v: number, w: Float64Array, var_t_s2: Float64Array | null,
-  ws: FitWorkspace, full: boolean,
+  ws: FitWorkspace, h: Float64Array, g: Float64Array,
 ): number {
-  evaluateEdges(p, e, vh_v, vl_v, w, var_t_s2, full ? { r: ws.r, jac: ws.jac } : { r: ws.r });
-  const { r, jac, h, g } = ws;
+  evaluateEdges(p, e, vh_v, vl_v, w, var_t_s2, { r: ws.r, jac: ws.jac });
+  const { r, jac } = ws;
+  const ms = e.m;
   let chi2 = 0;
   let h00 = 0, h01 = 0, h02 = 0, h03 = 0, h11 = 0, h12 = 0, h13 = 0, h22 = 0, h23 = 0, h33 = 0;
   let g0 = 0, g1 = 0, g2 = 0, g3 = 0;
   for (let k = 0; k < e.n; k++) {
     const wk = w[k];
-    if (!(wk > 0) || e.m[k] !== e.m[k]) continue;
+    if (!(wk > 0) || ms[k] !== ms[k]) continue;
     const rk = r[k];
     if (rk !== rk) return Infinity;
     chi2 += wk * rk * rk;
-    if (!full) continue;
     const o = 4 * k;
     const j0 = jac[o], j1 = jac[o + 1], j2 = jac[o + 2], j3 = jac[o + 3];
     const a0 = wk * j0, a1 = wk * j1, a2 = wk * j2, a3 = wk * j3;
@@ -110,12 +121,10 @@ function accumulate(
     h22 += a2 * j2; h23 += a2 * j3; h33 += a3 * j3;
     g0 += a0 * rk; g1 += a1 * rk; g2 += a2 * rk; g3 += a3 * rk;
   }
-  if (full) {
-    h[0] = h00; h[1] = h01; h[2] = h02; h[3] = h03;
-    h[4] = h01; h[5] = h11; h[6] = h12; h[7] = h13;
-    h[8] = h02; h[9] = h12; h[10] = h22; h[11] = h23;
-    h[12] = h03; h[13] = h13; h[14] = h23; h[15] = h33;
-    g[0] = g0; g[1] = g1; g[2] = g2; g[3] = g3;
-  }
+  h[0] = h00; h[1] = h01; h[2] = h02; h[3] = h03;
+  h[4] = h01; h[5] = h11; h[6] = h12; h[7] = h13;
+  h[8] = h02; h[9] = h12; h[10] = h22; h[11] = h23;
+  h[12] = h03; h[13] = h13; h[14] = h23; h[15] = h33;
+  g[0] = g0; g[1] = g1; g[2] = g2; g[3] = g3;
   return chi2;
 }

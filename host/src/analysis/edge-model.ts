@@ -71,53 +71,62 @@ export function evaluateEdges(
   const phi = p[P_PHI];
   const a0 = Math.exp(p[P_LNA]);
   const alpha = p[P_ALPHA];
-  const { r, jac, slope, curvature } = out;
+  const r = out.r ?? null;
+  const jac = out.jac ?? null;
+  const slope = out.slope ?? null;
+  const curvature = out.curvature ?? null;
   const c2 = alpha * alpha - wd * wd;
   const c1 = 2 * alpha * wd;
-  for (let k = 0; k < e.n; k++) {
-    const m = e.m[k];
+  const alpha2 = alpha * alpha;
+  const ms = e.m;
+  const ts = e.t_s;
+  const rising = e.rising;
+  const form = e.form;
+  const scale = e.scale_v;
+  const n = e.n;
+  for (let k = 0; k < n; k++) {
+    const m = ms[k];
     if (m !== m || (mask !== null && !(mask[k] > 0))) continue;
-    const t = e.t_s[k];
+    const t = ts[k];
     const amp = a0 * Math.exp(-alpha * t);
-    const rise = e.rising[k] === 1;
+    const rise = rising[k] === 1;
     const level = rise ? vh_v : vl_v;
-    const vt = var_t_s2 ? var_t_s2[k] : 0;
-    if (e.form[k] === 1) {
-      const s = rise ? 1 : -1;
+    const vt = var_t_s2 !== null ? var_t_s2[k] : 0;
+    if (form[k] === 1) {
       let u = level / amp;
       if (u > U_MAX) u = U_MAX;
       else if (u < -U_MAX) u = -U_MAX;
       const sq = Math.sqrt(1 - u * u);
-      const c = (s * u) / sq;
-      const gt = wd - alpha * c;
-      const gtt = (-alpha * alpha * c) / (sq * sq);
-      const sc = e.scale_v[k];
-      if (r) r[k] = sc * (wd * t - m * Math.PI - phi - s * Math.asin(u) - 0.5 * gtt * vt);
-      if (jac) {
+      const su = rise ? u : -u;
+      const c = su / sq;
+      const gtt = (-alpha2 * c) / (1 - u * u);
+      const sc = scale[k];
+      if (r !== null) r[k] = sc * (wd * t - m * Math.PI - phi - (rise ? Math.asin(u) : -Math.asin(u)) - 0.5 * gtt * vt);
+      if (jac !== null) {
         const o = 4 * k;
         jac[o] = sc * t;
         jac[o + 1] = -sc;
         jac[o + 2] = sc * c;
         jac[o + 3] = -sc * t * c;
       }
-      if (slope) slope[k] = sc * gt;
-      if (curvature) curvature[k] = sc * gtt;
+      if (slope !== null) slope[k] = sc * (wd - alpha * c);
+      if (curvature !== null) curvature[k] = sc * gtt;
       continue;
     }
     const x = wd * t - phi;
     const v = amp * Math.sin(x);
     const ac = amp * Math.cos(x);
     const vpp = c2 * v - c1 * ac;
-    if (r) r[k] = v - level - 0.5 * vpp * vt;
-    if (jac) {
+    if (r !== null) r[k] = v - level - 0.5 * vpp * vt;
+    if (jac !== null) {
       const o = 4 * k;
       jac[o] = ac * t;
       jac[o + 1] = -ac;
       jac[o + 2] = v;
       jac[o + 3] = -t * v;
     }
-    if (slope) slope[k] = wd * ac - alpha * v;
-    if (curvature) curvature[k] = vpp;
+    if (slope !== null) slope[k] = wd * ac - alpha * v;
+    if (curvature !== null) curvature[k] = vpp;
   }
 }
 

@@ -6,3 +6,7 @@ export type { RingAnalysis, RingInput, Warning } from "./types.ts";
 export { analyzeRing } from "./analyze-ring.ts";
 export { ringCramerRao } from "./cramer-rao.ts";
 export type { EdgeNoiseModel, RingBound, RingTruth } from "./cramer-rao.ts";
+export { fitLinePeriod, reciprocalPeriod, linePeriodVariance, reciprocalPeriodVariance } from "./baselines.ts";
+export type { PeriodEstimate } from "./baselines.ts";
+export { ringQuantities, inductanceFromFrequency, inductanceRelU, COVERAGE_K } from "./ring-quantities.ts";
+export type { RingQuantities } from "./ring-quantities.ts";

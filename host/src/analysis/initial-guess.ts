@@ -8,68 +8,115 @@
 
 import { P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
 
-const D_GRID = logGrid(1e-3, 14, 18);
-const E_GRID = logGrid(1e-4, 10, 13);
-const MAX_SAMPLE = 48;
-const TAIL_SAMPLE = 16;
+const D_GRID = logGrid(1e-3, 14, 14);
+const E_GRID = logGrid(1e-4, 10, 11);
+const MAX_SAMPLE = 40;
+const TAIL_SAMPLE = 14;
 
 export interface InitialGuess {
   p: Float64Array;
-  /** Mean squared time residual of the best grid point, s^2. */
+  /** Mean squared time residual of the grid point, s^2. */
   ms_residual_s2: number;
 }
 
-/** Grid search over (D, E); returns null when no grid point explains the edges. */
-export function initialGuess(e: EdgeSet, vh_v: number, vl_v: number): InitialGuess | null {
+/**
+ * Grid search over (D, E). Returns the grid's local minima (lower than their eight neighbours),
+ * best first, at most `max_candidates`; empty when no grid point explains the edges. Several
+ * are returned because the valley in (A0, alpha) is narrow and curved: a coarse grid can rank a
+ * point in a false basin above one beside the true minimum, which a short fit then separates.
+ */
+export function initialCandidates(e: EdgeSet, vh_v: number, vl_v: number, max_candidates = 3): InitialGuess[] {
   const sample = pickSample(e);
-  if (sample.length < 4) return null;
-  const tLast = e.t_s[sample[sample.length - 1]];
+  const n = sample.length;
+  if (n < 4) return [];
+  const t = new Float64Array(n);
+  const level = new Float64Array(n);
+  const base = new Float64Array(n); // m pi
+  const sign = new Float64Array(n);
+  const grow = new Float64Array(n); // V e^(alpha t) for the current alpha
+  for (let j = 0; j < n; j++) {
+    const k = sample[j];
+    const rise = e.rising[k] === 1;
+    t[j] = e.t_s[k];
+    level[j] = rise ? vh_v : vl_v;
+    base[j] = e.m[k] * Math.PI;
+    sign[j] = rise ? 1 : -1;
+  }
+  const tLast = t[n - 1];
   const vStop = Math.max(vh_v, -vl_v, 1e-300);
-  const best = { cost: Infinity, lnA: 0, alpha: 0, wd: 0, phi: 0 };
+  const nd = D_GRID.length;
+  const ne = E_GRID.length;
+  const cost = new Float64Array(nd * ne);
+  const wdAt = new Float64Array(nd * ne);
+  const phiAt = new Float64Array(nd * ne);
   const fit = { wd: 0, phi: 0 };
-  for (const d of D_GRID) {
-    const alpha = d / tLast;
-    for (const eFar of E_GRID) {
-      const lnA = Math.log(vStop) + eFar + d;
-      const cost = profileCost(e, sample, vh_v, vl_v, lnA, alpha, fit);
-      if (cost < best.cost) Object.assign(best, { cost, lnA, alpha, wd: fit.wd, phi: fit.phi });
+  const psi = new Float64Array(n);
+  for (let i = 0; i < nd; i++) {
+    const alpha = D_GRID[i] / tLast;
+    for (let j = 0; j < n; j++) grow[j] = level[j] * Math.exp(alpha * t[j]);
+    for (let j = 0; j < ne; j++) {
+      const lnA = Math.log(vStop) + E_GRID[j] + D_GRID[i];
+      const c = profileCost(t, base, sign, grow, Math.exp(-lnA), psi, fit);
+      cost[i * ne + j] = c;
+      wdAt[i * ne + j] = fit.wd;
+      phiAt[i * ne + j] = fit.phi;
     }
   }
-  if (!Number.isFinite(best.cost) || !(best.wd > 0)) return null;
-  const p = new Float64Array(4);
-  p[P_WD] = best.wd;
-  p[P_PHI] = best.phi;
-  p[P_LNA] = best.lnA;
-  p[P_ALPHA] = best.alpha;
-  return { p, ms_residual_s2: best.cost / sample.length };
+  const minima: number[] = [];
+  for (let i = 0; i < nd; i++) {
+    for (let j = 0; j < ne; j++) {
+      const c = cost[i * ne + j];
+      if (!Number.isFinite(c) || !(wdAt[i * ne + j] > 0)) continue;
+      let lowest = true;
+      for (let di = -1; di <= 1 && lowest; di++) {
+        for (let dj = -1; dj <= 1; dj++) {
+          const ii = i + di;
+          const jj = j + dj;
+          if ((di === 0 && dj === 0) || ii < 0 || jj < 0 || ii >= nd || jj >= ne) continue;
+          if (cost[ii * ne + jj] < c) {
+            lowest = false;
+            break;
+          }
+        }
+      }
+      if (lowest) minima.push(i * ne + j);
+    }
+  }
+  minima.sort((x, y) => cost[x] - cost[y]);
+  return minima.slice(0, max_candidates).map((g) => {
+    const i = Math.floor(g / ne);
+    const j = g % ne;
+    const p = new Float64Array(4);
+    p[P_WD] = wdAt[g];
+    p[P_PHI] = phiAt[g];
+    p[P_LNA] = Math.log(vStop) + E_GRID[j] + D_GRID[i];
+    p[P_ALPHA] = D_GRID[i] / tLast;
+    return { p, ms_residual_s2: cost[g] / n };
+  });
 }
 
 /**
  * Sum of squared time residuals with (wd, phi) solved by least squares in phase, for fixed
- * (ln A0, alpha). Edges the model cannot reach are scored as if at the threshold's peak
+ * amplitude (u_j = grow_j / A0). Edges the model cannot reach are scored as if at the peak
  * (u clamped to 1), which keeps the score continuous across the feasibility boundary.
  */
-export function profileCost(
-  e: EdgeSet, sample: ArrayLike<number>, vh_v: number, vl_v: number, lnA: number, alpha: number,
-  out: { wd: number; phi: number },
+function profileCost(
+  t: Float64Array, base: Float64Array, sign: Float64Array, grow: Float64Array, invA0: number,
+  psi: Float64Array, out: { wd: number; phi: number },
 ): number {
-  const invA0 = Math.exp(-lnA);
-  const n = sample.length;
+  const n = t.length;
   let st = 0, sp = 0, stt = 0, stp = 0;
-  const psi = PSI.length >= n ? PSI : (PSI = new Float64Array(n));
   for (let j = 0; j < n; j++) {
-    const k = sample[j];
-    const rise = e.rising[k] === 1;
-    let u = (rise ? vh_v : vl_v) * invA0 * Math.exp(alpha * e.t_s[k]);
+    let u = grow[j] * invA0;
     if (u > 1) u = 1;
     else if (u < -1) u = -1;
-    const ps = e.m[k] * Math.PI + (rise ? 1 : -1) * Math.asin(u);
-    const t = e.t_s[k];
+    const ps = base[j] + sign[j] * Math.asin(u);
+    const tj = t[j];
     psi[j] = ps;
-    st += t;
+    st += tj;
     sp += ps;
-    stt += t * t;
-    stp += t * ps;
+    stt += tj * tj;
+    stp += tj * ps;
   }
   const det = n * stt - st * st;
   if (!(det > 0)) return Infinity;
@@ -78,7 +125,7 @@ export function profileCost(
   if (!(wd > 0)) return Infinity;
   let cost = 0;
   for (let j = 0; j < n; j++) {
-    const res = wd * e.t_s[sample[j]] - phi - psi[j];
+    const res = wd * t[j] - phi - psi[j];
     cost += res * res;
   }
   out.wd = wd;
@@ -86,9 +133,9 @@ export function profileCost(
   return cost / (wd * wd);
 }
 
-let PSI = new Float64Array(MAX_SAMPLE);
 
-/** Up to 48 edges with an index: the last 16 (they carry the amplitude) and the rest spread. */
+
+/** Up to 40 edges with an index: the last 14 (they carry the amplitude) and the rest spread. */
 export function pickSample(e: EdgeSet): Int32Array {
   const active: number[] = [];
   for (let k = 0; k < e.n; k++) if (e.m[k] === e.m[k]) active.push(k);

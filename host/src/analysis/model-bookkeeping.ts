@@ -34,12 +34,18 @@ export function reassignHalfCycles(
     const u = Math.max(-1, Math.min(1, level / amp));
     const psi = wd * t - phi - (rise ? 1 : -1) * Math.asin(u);
     let m = rise ? 2 * Math.round(psi / twoPi) : 2 * Math.round((psi - Math.PI) / twoPi) + 1;
-    const score = Math.abs(amp * Math.sin(wd * t - phi) - level) / (sd_v ? sd_v[k] : 1);
     const old = e.m[k];
     reasons[k] = null;
     const lv = rise ? 1 : 0;
     const prev = last[lv];
+    let score = NaN; // level-crossing residual in sd, needed only to settle duplicates
     if (prev >= 0 && e.m[prev] === m) {
+      score = Math.abs(amp * Math.sin(wd * t - phi) - level) / (sd_v ? sd_v[k] : 1);
+      if (lastScore[lv] !== lastScore[lv]) {
+        const tp = e.t_s[prev];
+        const ap = a0 * Math.exp(-alpha * tp);
+        lastScore[lv] = Math.abs(ap * Math.sin(wd * tp - phi) - level) / (sd_v ? sd_v[prev] : 1);
+      }
       if (score < lastScore[lv]) {
         e.m[prev] = NaN;
         reasons[prev] = REASON_DUPLICATE;

@@ -122,7 +122,7 @@ export function estimateNoise(
     const change = (Math.abs(na - a) + Math.abs(nb - b)) / (a + b);
     a = na;
     b = nb;
-    if (change < 1e-7) break;
+    if (change < 1e-5) break;
   }
   return { sigma_t2: Math.max(0, b / xMean - q_s2), sigma_v2: a };
 }
