@@ -15,14 +15,15 @@ const NOTES_COIL = { turns: 10, mean_diameter_m: 15e-3, length_m: 10e-3 };
 
 describe("complete elliptic integrals (AGM)", () => {
   it("matches K(m = 1/2) and E(m = 1/2)", () => {
-    // Abramowitz and Stegun, Table 17.1 (value from memory); K(1/√2) = Γ(1/4)² / (4 √π).
+    // Abramowitz and Stegun, Table 17.1 (value from memory; SciPy 1.17 ellipk/ellipe agree to
+    // all digits); K(1/√2) = Γ(1/4)² / (4 √π).
     const r = completeEllipticIntegrals(Math.SQRT1_2);
     expect(rel(r.k_first, 1.8540746773013719)).toBeLessThan(1e-14);
     expect(rel(r.e_second, 1.3506438810476755)).toBeLessThan(1e-14);
   });
 
   it("satisfies Legendre's relation E K' + E' K − K K' = π/2", () => {
-    // Legendre's relation, Abramowitz and Stegun 17.3.13 (value from memory for the number).
+    // Legendre's relation, Abramowitz and Stegun 17.3.13 (equation number from memory).
     for (const k of [0.1, 0.5, 0.8, 0.99, 0.999999]) {
       const kc = Math.sqrt(1 - k * k);
       const a = completeEllipticIntegrals(k, kc);
@@ -33,7 +34,8 @@ describe("complete elliptic integrals (AGM)", () => {
   });
 
   it("gives K = E = π/2 at k = 0 and K − E ≈ π k²/4 for small k", () => {
-    // Series K ≈ π/2 (1 + k²/4), E ≈ π/2 (1 − k²/4) (Abramowitz and Stegun 17.3.11–12).
+    // Series K ≈ π/2 (1 + k²/4), E ≈ π/2 (1 − k²/4) (Abramowitz and Stegun 17.3.11–12,
+    // equation numbers from memory).
     const z = completeEllipticIntegrals(0);
     expect(z.k_first).toBe(Math.PI / 2);
     expect(z.e_second).toBe(Math.PI / 2);
