@@ -1,0 +1,79 @@
+// Reading rate over a pseudo-terminal: `henrytick sim-device` in its own process (as a user runs
+// it, so the simulated firmware and the host's analysis run side by side like tester and PC),
+// the host in this process through the real serial stack. Same fixed setting as the in-process
+// figure in e2e.ts, so the two differ only by the link.
+
+import { spawn, spawnSync } from "node:child_process";
+import { existsSync } from "node:fs";
+import { fileURLToPath } from "node:url";
+import { measurePart, openTester } from "../../../host/src/index.ts";
+import type { BenchSection } from "./types.ts";
+
+const CLI = fileURLToPath(new URL("../../../host/bin/henrytick.js", import.meta.url));
+const BUILT_CLI = fileURLToPath(new URL("../../../host/dist/cli/main.js", import.meta.url));
+
+interface Device {
+  path: string;
+  stop(): Promise<void>;
+}
+
+/** Starts the built CLI's sim-device and waits for the one line it prints: the device path. */
+function startDevice(scenario: string): Promise<Device> {
+  const child = spawn(process.execPath, [CLI, "sim-device", scenario], { stdio: ["ignore", "pipe", "pipe"] });
+  const exited = new Promise<void>((resolve) => child.on("exit", () => resolve()));
+  const stop = async () => {
+    if (child.exitCode === null && child.signalCode === null) child.kill("SIGTERM");
+    await exited;
+  };
+  let out = "";
+  let err = "";
+  child.stderr.setEncoding("utf8").on("data", (s: string) => (err += s));
+  return new Promise((resolve, reject) => {
+    child.stdout.setEncoding("utf8").on("data", (s: string) => {
+      out += s;
+      if (out.includes("\n")) resolve({ path: out.slice(0, out.indexOf("\n")), stop });
+    });
+    void exited.then(() => reject(new Error(`sim-device stopped before printing a path: ${err.trim()}`)));
+  });
+}
+
+export const ptySection: BenchSection = {
+  name: "pty",
+  async run(progress) {
+    const key = "e2e.readings_per_s_pty";
+    if (spawnSync("socat", ["-V"], { stdio: "ignore" }).status !== 0) {
+      return { figures: { [key]: null }, notes: { [key]: "not measured: Debian package socat not installed" } };
+    }
+    if (!existsSync(BUILT_CLI)) {
+      return { figures: { [key]: null }, notes: { [key]: "not measured: host not built (npm run build)" } };
+    }
+    const device = await startDevice("drawer-choke-330u");
+    try {
+      const t = await openTester({ port: device.path });
+      try {
+        const setting = { drive: 1, tank: 2, charge_us: 17 };
+        await measurePart(t.client, setting); // first reading pays for the child's warm-up
+        const n = 20;
+        const t0 = performance.now();
+        for (let i = 0; i < n; i++) await measurePart(t.client, setting);
+        const s = (performance.now() - t0) / 1000;
+        progress(`${n} fixed-setting readings over ${device.path} in ${s.toFixed(2)} s`);
+        const m = 50;
+        const t1 = performance.now();
+        for (let i = 0; i < m; i++) await t.client.identify();
+        const roundTrip_ms = (performance.now() - t1) / m;
+        return {
+          figures: { [key]: n / s, "pty.command_round_trip_ms": roundTrip_ms },
+          notes: {
+            [key]: "sim-device child process via socat pseudo-terminal, fixed setting; paced by the firmware's rest between pulses",
+            "pty.command_round_trip_ms": "ID command to OK over the pseudo-terminal (host, serial stack, socat, simulated firmware)",
+          },
+        };
+      } finally {
+        await t.close();
+      }
+    } finally {
+      await device.stop();
+    }
+  },
+};
