@@ -7,8 +7,9 @@ import { spawn, spawnSync } from "node:child_process";
 import { existsSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import { measurePart, openTester } from "../../../host/src/index.ts";
-import type { BenchSection } from "./types.ts";
+import type { BenchFigures, BenchSection } from "./types.ts";
 
+const KEY = "e2e.readings_per_s_pty";
 const CLI = fileURLToPath(new URL("../../../host/bin/henrytick.js", import.meta.url));
 const BUILT_CLI = fileURLToPath(new URL("../../../host/dist/cli/main.js", import.meta.url));
 
@@ -37,16 +38,15 @@ function startDevice(scenario: string): Promise<Device> {
   });
 }
 
+function notMeasured(why: string): { figures: BenchFigures; notes: Record<string, string> } {
+  return { figures: { [KEY]: null }, notes: { [KEY]: `not measured: ${why}` } };
+}
+
 export const ptySection: BenchSection = {
   name: "pty",
   async run(progress) {
-    const key = "e2e.readings_per_s_pty";
-    if (spawnSync("socat", ["-V"], { stdio: "ignore" }).status !== 0) {
-      return { figures: { [key]: null }, notes: { [key]: "not measured: Debian package socat not installed" } };
-    }
-    if (!existsSync(BUILT_CLI)) {
-      return { figures: { [key]: null }, notes: { [key]: "not measured: host not built (npm run build)" } };
-    }
+    if (spawnSync("socat", ["-V"], { stdio: "ignore" }).status !== 0) return notMeasured("Debian package socat not installed");
+    if (!existsSync(BUILT_CLI)) return notMeasured("host not built (npm run build)");
     const device = await startDevice("drawer-choke-330u");
     try {
       const t = await openTester({ port: device.path });
@@ -63,9 +63,9 @@ export const ptySection: BenchSection = {
         for (let i = 0; i < m; i++) await t.client.identify();
         const roundTrip_ms = (performance.now() - t1) / m;
         return {
-          figures: { [key]: n / s, "pty.command_round_trip_ms": roundTrip_ms },
+          figures: { [KEY]: n / s, "pty.command_round_trip_ms": roundTrip_ms },
           notes: {
-            [key]: "sim-device child process via socat pseudo-terminal, fixed setting; paced by the firmware's rest between pulses",
+            [KEY]: "sim-device child process via socat pseudo-terminal, fixed setting; paced by the firmware's rest between pulses",
             "pty.command_round_trip_ms": "ID command to OK over the pseudo-terminal (host, serial stack, socat, simulated firmware)",
           },
         };
