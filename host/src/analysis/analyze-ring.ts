@@ -6,7 +6,7 @@
 
 import { assignHalfCycles } from "./cycle-bookkeeping.ts";
 import { diagnose } from "./diagnostics.ts";
-import { FitWorkspace, fitEdgeModel } from "./edge-fit.ts";
+import { FitWorkspace, fitEdgeModel, type FitLimits } from "./edge-fit.ts";
 import { chooseResidualForms, evaluateEdges, makeEdgeSet, P_ALPHA, P_LNA, P_WD, type EdgeSet } from "./edge-model.ts";
 import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
 import { reassignHalfCycles } from "./model-bookkeeping.ts";
@@ -90,7 +90,8 @@ export function fitRing(input: RingInput): FitState {
   if (candidates.length === 0) throw noRing("no damped sine explains the edge times");
 
   const ws = new FitWorkspace(n);
-  const guess = bestStart(candidates, e, c, q, ws);
+  const limits = fitLimits(e, c, candidates[0].p[P_WD]);
+  const guess = bestStart(candidates, e, c, q, ws, limits);
   chooseResidualForms(guess.p, e, c.vh_v, c.vl_v);
   const variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, q), ws);
   const robust = new Float64Array(n).fill(1);
@@ -110,7 +111,7 @@ export function fitRing(input: RingInput): FitState {
     chooseResidualForms(p, e, c.vh_v, c.vl_v);
     setWeights(e, outlier, robust, variance, used, w);
     // Early rounds weight with a rough noise model: a few steps suffice there.
-    fit = fitEdgeModel(e, c.vh_v, c.vl_v, p, w, varT, ws, round < 2 ? 6 : 60);
+    fit = fitEdgeModel(e, c.vh_v, c.vl_v, p, w, varT, ws, limits, round < 2 ? 6 : 60);
     if (!Number.isFinite(fit.chi2)) throw noRing("the edge-model fit diverged");
     p = fit.p;
     if (round === MAX_ROUNDS) break;
@@ -179,7 +180,9 @@ function setWeights(
  * even spread) and keeps the one that ends with the smallest residuals: this is what separates
  * the basins of the (A0, alpha) likelihood (measurement notes §2).
  */
-function bestStart(candidates: InitialGuess[], e: EdgeSet, c: CheckedInput, q: number, ws: FitWorkspace): InitialGuess {
+function bestStart(
+  candidates: InitialGuess[], e: EdgeSet, c: CheckedInput, q: number, ws: FitWorkspace, limits: FitLimits,
+): InitialGuess {
   if (candidates.length === 1) return candidates[0];
   const mask = subsetMask(e, 160, 40);
   const varT = Math.max(candidates[0].ms_residual_s2, q);
@@ -189,13 +192,24 @@ function bestStart(candidates: InitialGuess[], e: EdgeSet, c: CheckedInput, q: n
     chooseResidualForms(cand.p, e, c.vh_v, c.vl_v);
     const variance = initialVariance(cand.p, e, varT, ws);
     for (let k = 0; k < e.n; k++) variance[k] = mask[k] > 0 ? 1 / variance[k] : 0;
-    const fit = fitEdgeModel(e, c.vh_v, c.vl_v, cand.p, variance, null, ws, 25, 1e-3);
+    const fit = fitEdgeModel(e, c.vh_v, c.vl_v, cand.p, variance, null, ws, limits, 25, 1e-3);
     if (fit.chi2 < bestChi2) {
       bestChi2 = fit.chi2;
       best = { p: fit.p, ms_residual_s2: cand.ms_residual_s2 };
     }
   }
   return best;
+}
+
+/**
+ * The fit's soft limits (edge-fit.ts): the ring at the last edge at most e^9 times the stopping
+ * threshold (beyond that the threshold delays are below 1e-4 rad and carry no amplitude), at the
+ * start at most e^12 ~ 1.6e5 times it (a front end has clipped long before), and Q at most 1e6.
+ */
+function fitLimits(e: EdgeSet, c: CheckedInput, wd: number): FitLimits {
+  let tLast = 0;
+  for (let k = 0; k < e.n; k++) if (e.m[k] === e.m[k]) tLast = e.t_s[k];
+  return { t_last_s: tLast, ln_v_stop: Math.log(Math.max(c.vh_v, -c.vl_v)), e_max: 9, a_max: 12, alpha_min: wd / 2e6 };
 }
 
 /** 1 for up to `count` indexed edges: the last `tail` of them and an even spread of the rest. */

@@ -3,8 +3,27 @@
 // J. SIAM 11(2), 1963). Weights are held fixed inside a fit; the caller re-weights between fits
 // (iteratively reweighted least squares).
 
-import { evaluateEdges, N_PARAMS, type EdgeSet } from "./edge-model.ts";
+import { evaluateEdges, N_PARAMS, P_ALPHA, P_LNA, type EdgeSet } from "./edge-model.ts";
 import { solveDamped } from "./small-linear-algebra.ts";
+
+/**
+ * Soft limits that keep the fit out of directions the edges cannot pin down. With symmetric
+ * thresholds and weak amplitude information the likelihood flattens as A0 -> infinity (the
+ * delays asin(V/A) vanish and alpha stops mattering), and alpha may drift below zero (a growing
+ * ring), or run to A0 -> infinity with alpha -> infinity (all the decay squeezed before the
+ * last edges). Stiff one-sided penalties stop all three: ln(A(t_last)/V_stop) <= e_max,
+ * ln(A0/V_stop) <= a_max, alpha >= alpha_min. Inside the limits they contribute nothing, and
+ * they never enter the covariance (EdgeFitResult.normal is the edges' information only).
+ */
+export interface FitLimits {
+  t_last_s: number;
+  ln_v_stop: number;
+  /** Limit on ln(A(t_last) / V_stop). */
+  e_max: number;
+  /** Limit on ln(A0 / V_stop). */
+  a_max: number;
+  alpha_min: number;
+}
 
 export interface EdgeFitResult {
   p: Float64Array;
@@ -26,6 +45,13 @@ export class FitWorkspace {
   readonly g = new Float64Array(N_PARAMS);
   readonly h2 = new Float64Array(N_PARAMS * N_PARAMS);
   readonly g2 = new Float64Array(N_PARAMS);
+  /** Penalty terms at the last evaluated point, and the penalised system at p. */
+  readonly hp = new Float64Array(N_PARAMS * N_PARAMS);
+  readonly gp = new Float64Array(N_PARAMS);
+  readonly hp1 = new Float64Array(N_PARAMS * N_PARAMS);
+  readonly gp1 = new Float64Array(N_PARAMS);
+  readonly hs = new Float64Array(N_PARAMS * N_PARAMS);
+  readonly gs = new Float64Array(N_PARAMS);
   readonly step = new Float64Array(N_PARAMS);
   readonly trial = new Float64Array(N_PARAMS);
   readonly work = new Float64Array(N_PARAMS * N_PARAMS + N_PARAMS);
@@ -44,33 +70,38 @@ export class FitWorkspace {
  */
 export function fitEdgeModel(
   e: EdgeSet, vh_v: number, vl_v: number, p0: ArrayLike<number>, w: Float64Array, var_t_s2: Float64Array | null,
-  ws: FitWorkspace, max_iterations = 60, tol_chi2 = 1e-6,
+  ws: FitWorkspace, limits: FitLimits | null, max_iterations = 60, tol_chi2 = 1e-6,
 ): EdgeFitResult {
   // ws.r holds whatever was evaluated last (possibly a refused trial): callers re-evaluate at p.
   const p = Float64Array.from(p0);
-  let chi2 = accumulate(p, e, vh_v, vl_v, w, var_t_s2, ws, ws.h, ws.g);
+  let chi2 = accumulate(p, e, vh_v, vl_v, w, var_t_s2, limits, ws, ws.h, ws.g);
+  ws.hp1.set(ws.hp);
+  ws.gp1.set(ws.gp);
   if (!Number.isFinite(chi2)) return { p, chi2, normal: ws.h.slice(), iterations: 0, converged: false };
   let lambda = 1e-4;
   let converged = false;
   let it = 0;
   for (; it < max_iterations && !converged; it++) {
-    for (let i = 0; i < N_PARAMS; i++) ws.g[i] = -ws.g[i];
+    for (let i = 0; i < N_PARAMS * N_PARAMS; i++) ws.hs[i] = ws.h[i] + ws.hp1[i];
+    for (let i = 0; i < N_PARAMS; i++) ws.gs[i] = -(ws.g[i] + ws.gp1[i]);
     let accepted = false;
     while (lambda < 1e12) {
-      if (!solveDamped(N_PARAMS, ws.h, ws.g, lambda, ws.step, ws.work)) {
+      if (!solveDamped(N_PARAMS, ws.hs, ws.gs, lambda, ws.step, ws.work)) {
         lambda = Math.max(lambda * 10, 1e-8);
         continue;
       }
       for (let i = 0; i < N_PARAMS; i++) ws.trial[i] = p[i] + ws.step[i];
       // The trial is evaluated with its Jacobian: most trials are accepted, and this saves
       // evaluating the accepted point twice.
-      const trialChi2 = accumulate(ws.trial, e, vh_v, vl_v, w, var_t_s2, ws, ws.h2, ws.g2);
+      const trialChi2 = accumulate(ws.trial, e, vh_v, vl_v, w, var_t_s2, limits, ws, ws.h2, ws.g2);
       if (trialChi2 <= chi2) {
         const drop = chi2 - trialChi2;
         converged = drop <= tol_chi2 + 1e-12 * chi2 || smallStep(p, ws.step);
         p.set(ws.trial);
         ws.h.set(ws.h2);
         ws.g.set(ws.g2);
+        ws.hp1.set(ws.hp);
+        ws.gp1.set(ws.gp);
         chi2 = trialChi2;
         lambda = Math.max(lambda * 0.2, 1e-12);
         accepted = true;
@@ -99,8 +130,9 @@ function smallStep(p: Float64Array, step: Float64Array): boolean {
 /** chi2 at p, with J^T W J into h and J^T W r into g. */
 function accumulate(
   p: Float64Array, e: EdgeSet, vh_v: number, vl_v: number, w: Float64Array, var_t_s2: Float64Array | null,
-  ws: FitWorkspace, h: Float64Array, g: Float64Array,
+  limits: FitLimits | null, ws: FitWorkspace, h: Float64Array, g: Float64Array,
 ): number {
+  const pen = penalty(p, limits, ws.hp, ws.gp);
   evaluateEdges(p, e, vh_v, vl_v, w, var_t_s2, { r: ws.r, jac: ws.jac });
   const { r, jac } = ws;
   const ms = e.m;
@@ -126,5 +158,40 @@ function accumulate(
   h[8] = h02; h[9] = h12; h[10] = h22; h[11] = h23;
   h[12] = h03; h[13] = h13; h[14] = h23; h[15] = h33;
   g[0] = g0; g[1] = g1; g[2] = g2; g[3] = g3;
+  return chi2 + pen;
+}
+
+/**
+ * The soft limits' chi2 at p; their J^T J and J^T r go into hp and gp (zero inside the limits).
+ * Scale: one unit of chi2 per 0.01 beyond e_max or a_max, per 1e-6 of decay below alpha_min.
+ */
+function penalty(p: Float64Array, limits: FitLimits | null, hp: Float64Array, gp: Float64Array): number {
+  hp.fill(0);
+  gp.fill(0);
+  if (!limits) return 0;
+  let chi2 = 0;
+  const tl = limits.t_last_s;
+  const overEnd = p[P_LNA] - p[P_ALPHA] * tl - limits.ln_v_stop - limits.e_max;
+  if (overEnd > 0) {
+    const r = 100 * overEnd;
+    chi2 += r * r;
+    hp[10] += 1e4; hp[11] += -1e4 * tl; hp[14] += -1e4 * tl; hp[15] += 1e4 * tl * tl;
+    gp[2] += 100 * r; gp[3] += -100 * tl * r;
+  }
+  const overStart = p[P_LNA] - limits.ln_v_stop - limits.a_max;
+  if (overStart > 0) {
+    const r = 100 * overStart;
+    chi2 += r * r;
+    hp[10] += 1e4;
+    gp[2] += 100 * r;
+  }
+  const under = limits.alpha_min - p[P_ALPHA];
+  if (under > 0) {
+    const sc = 1e6 * tl;
+    const r = sc * under;
+    chi2 += r * r;
+    hp[15] += sc * sc;
+    gp[3] += -sc * r;
+  }
   return chi2;
 }
