@@ -112,17 +112,68 @@ function mul(a: number[][], x: number[]): number[] {
 }
 
 /**
- * State when the switch opens after closing it for `charge_s`: the inductor current rises with
- * the loop's L/R time constant (Rp's small share of the current is neglected), the capacitors
- * follow quasi-statically, and D sits one diode drop above the switch.
+ * State when the switch opens after closing it for `charge_s`, starting from rest.
+ *
+ * While the switch conducts, D is held at the diode drop plus Ron times the current, so the
+ * switch-node capacitance is out of the circuit and the part with its tank forms a parallel
+ * tank fed from the supply through R + Ron:
+ *   L di/dt    = v_TD - Rs i
+ *   C dv_TD/dt = (V - Vf - v_TD) / (R + Ron) - i - v_TD / Rp
+ * This is itself resonant: the inductor current rings about its final value with the decay
+ * Rs/(2L) + 1/(2 (R+Ron) C) and can overshoot it by up to 2x, so it is solved exactly
+ * (2x2 matrix exponential) rather than as a plain L/R rise.
  */
 export function stateAtOpening(c: FrontEndCircuit, switch_on_ohm: number, diode_v: number, charge_s: number): InitialState {
-  const loop = c.r_ohm + c.rs_ohm + switch_on_ohm;
+  const rc = c.r_ohm + switch_on_ohm;
+  const gp = Number.isFinite(c.rp_ohm) ? 1 / c.rp_ohm : 0;
   const drive_v = Math.max(c.supply_v - diode_v, 0);
-  const i0 = (drive_v / loop) * (1 - Math.exp((-charge_s * loop) / c.l_h));
-  return {
-    i_a: i0,
-    v_td_v: drive_v - i0 * (c.r_ohm + switch_on_ohm),
-    v_d_v: diode_v + i0 * switch_on_ohm,
-  };
+  const a11 = -c.rs_ohm / c.l_h, a12 = 1 / c.l_h;
+  const a21 = -1 / c.c_f, a22 = -1 / (rc * c.c_f) - gp / c.c_f;
+  // Equilibrium: v = Rs i and (drive - v)/rc = i + v gp.
+  const i_eq = drive_v / (rc + c.rs_ohm + rc * c.rs_ohm * gp);
+  const v_eq = c.rs_ohm * i_eq;
+  const e = expm2(a11, a12, a21, a22, charge_s);
+  const y0 = [-i_eq, -v_eq]; // start from rest: i = 0, v_TD = 0
+  const i = i_eq + e[0] * y0[0] + e[1] * y0[1];
+  const v = v_eq + e[2] * y0[0] + e[3] * y0[1];
+  const i_switch = (drive_v - v) / rc;
+  return { i_a: i, v_td_v: v, v_d_v: diode_v + switch_on_ohm * i_switch };
+}
+
+/** Final inductor current of the charge phase (the switch held closed indefinitely). */
+export function finalChargeCurrent(c: FrontEndCircuit, switch_on_ohm: number, diode_v: number): number {
+  const rc = c.r_ohm + switch_on_ohm;
+  const gp = Number.isFinite(c.rp_ohm) ? 1 / c.rp_ohm : 0;
+  return Math.max(c.supply_v - diode_v, 0) / (rc + c.rs_ohm + rc * c.rs_ohm * gp);
+}
+
+/**
+ * exp(A t) of a real 2x2 matrix [[a, b], [c, d]], row-major, in closed form:
+ * exp(A t) = e^(m t) [ (ch - m sh) I + sh A ], m = tr/2, with ch = cosh(k t), sh = sinh(k t)/k and
+ * k^2 = m^2 - det (cos and sin for k^2 < 0; the k -> 0 limit is ch = 1, sh = t).
+ */
+export function expm2(a: number, b: number, c: number, d: number, t: number): [number, number, number, number] {
+  const m = 0.5 * (a + d);
+  const det = a * d - b * c;
+  const k2 = m * m - det;
+  let ch: number, sh: number;
+  const scale = Math.abs(k2) * t * t;
+  if (scale < 1e-12) {
+    ch = 1 + 0.5 * k2 * t * t;
+    sh = t * (1 + (k2 * t * t) / 6);
+  } else if (k2 > 0) {
+    const k = Math.sqrt(k2);
+    // e^(m t) cosh(k t) overflows separately for stiff systems; combine the exponents.
+    const ep = Math.exp((m + k) * t);
+    const em = Math.exp((m - k) * t);
+    const ch_e = 0.5 * (ep + em);
+    const sh_e = (0.5 * (ep - em)) / k;
+    return [ch_e - m * sh_e + sh_e * a, sh_e * b, sh_e * c, ch_e - m * sh_e + sh_e * d];
+  } else {
+    const w = Math.sqrt(-k2);
+    ch = Math.cos(w * t);
+    sh = Math.sin(w * t) / w;
+  }
+  const g = Math.exp(m * t);
+  return [g * (ch - m * sh + sh * a), g * sh * b, g * sh * c, g * (ch - m * sh + sh * d)];
 }

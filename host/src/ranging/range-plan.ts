@@ -42,9 +42,18 @@ export function predictSetting(profile: DeviceProfile, est: PartEstimate, drive:
   const r = profile.drives[drive];
   const c = profile.tanks[tank].nominal_f;
   const loop = r.ohm + est.rs_ohm;
-  const tau_us = (est.l_h / loop) * 1e6;
-  const charge_us = Math.max(2, Math.min(r.max_charge_us, Math.ceil(5 * tau_us)));
-  const i0 = (profile.supply_v / loop) * (1 - Math.exp(-charge_us / tau_us));
+  // While the switch is closed the part and its tank form a parallel tank fed through R: the
+  // current rises with L/R but also rings about its final value, decaying at Rs/2L + 1/2RC.
+  // Charge until both have settled; if the interlock cuts the charge short, the ring may still
+  // be on an overshoot, so the peak is predicted from the worst case, (1 + e^(-a t)) I_final.
+  const tau_rise_us = (est.l_h / loop) * 1e6;
+  const tau_ring_us = 1e6 / (est.rs_ohm / (2 * est.l_h) + 1 / (2 * r.ohm * c));
+  const settle_us = 5 * Math.max(tau_rise_us, tau_ring_us);
+  const charge_us = Math.max(2, Math.min(r.max_charge_us, Math.ceil(settle_us)));
+  const i_final = profile.supply_v / loop;
+  const i0 = charge_us >= settle_us
+    ? i_final
+    : i_final * Math.max(1 - Math.exp(-charge_us / tau_rise_us), 1 + Math.exp(-charge_us / tau_ring_us));
   const w0 = 1 / Math.sqrt(est.l_h * c);
   const z = Math.sqrt(est.l_h / c);
   const q = z / est.rs_ohm;
