@@ -42,7 +42,7 @@ export interface PtyDeviceOptions {
 /** Matches socat's `-d -d` notices; the wording is stable across socat 1.7 and 1.8. */
 const PTY_NOTICE = /PTY is (\S+)/;
 const READY_NOTICE = /starting data transfer loop/;
-const MISSING_HINT = "install the Debian package socat (sudo apt-get install socat), then run this again";
+const MISSING_HINT = "install the Debian package socat (sudo apt-get install socat; elsewhere your system's socat package), then run this again";
 
 type SocatProcess = ChildProcessByStdio<Writable, Readable, Readable>;
 
