@@ -14,13 +14,19 @@ export const TICKS_PER_MS: i32 = 64000;
 export const SUPPLY_MV: i32 = 5000;
 export const CLAMP_MV: i32 = 36000;
 
-/** Drive resistors in milliohms, their pulse power ratings in mW, and the charge-time interlock. */
+/**
+ * Drive resistors: value in milliohms, continuous power rating in mW, single-pulse energy rating
+ * in µJ. The firmware derives each resistor's charge-time limit and duty-cycle rest from these
+ * (interlocks.ts), assuming the worst case: the whole supply across the resistor (a shorted part).
+ */
 export const DRIVE_COUNT: i32 = 4;
 export const DRIVE_MILLIOHM: StaticArray<i32> = [10000, 100000, 1000000, 10000000];
 export const DRIVE_POWER_MW: StaticArray<i32> = [1000, 500, 250, 250];
-// Charge-time limit: a 5 V pulse's energy into the resistor kept within its pulse rating
-// (10 ohm: 2.5 W for 2 ms = 5 mJ). The larger resistors dissipate little; 100 ms bounds the wait.
-export const DRIVE_MAX_CHARGE_US: StaticArray<i32> = [2000, 20000, 100000, 100000];
+// 10 ohm at 5 V dissipates 2.5 W: 5 mJ allows 2 ms. The larger resistors dissipate little and
+// reach MAX_CHARGE_US, which bounds how long the switch is ever closed.
+export const DRIVE_ENERGY_UJ: StaticArray<i32> = [5000, 5000, 2500, 250];
+/** Longest charge time on any resistor: keeps the flyback energy and the wait bounded. */
+export const MAX_CHARGE_US: i32 = 100000;
 
 /** Tank capacitors (C0G / film), nominal, in picofarads. */
 export const TANK_COUNT: i32 = 4;
@@ -37,3 +43,6 @@ export const MIN_REST_MS: i32 = 20;
 export const REST_PER_CHARGE: i32 = 10;
 export const MAX_TIMEOUT_MS: i32 = 5000;
 export const SETTLE_US: i32 = 500;
+
+/** Self-test: how long the capture path listens with the switch open. */
+export const SELF_TEST_US: i32 = 20000;

@@ -1,13 +1,18 @@
 // The edge buffer and the measurement sequence: select, settle, charge, capture until the ring
-// is quiet (or the buffer is full, or the window times out), then stream.
+// is quiet (or the buffer is full, or the window times out), then stream. Every way out of a
+// running measurement opens the switch; a ring that may outlive its capture is watched.
 
 import {
   END_FULL, END_NO_EDGES, END_QUIET, END_TIMEOUT,
 } from "../../shared-protocol/src/constants.ts";
 import * as board from "./board.ts";
-import { halCaptureCount, halNow, halPulse, halSelect, halStop } from "./hal.ts";
+import { counters } from "./counters.ts";
+import { halCaptureBits, halCaptureCount, halNow, halPulse, halSelect, halStop } from "./hal.ts";
+import { restRemaining, startRest } from "./interlocks.ts";
+import * as ring from "./ring-watch.ts";
+import * as ext from "./timer-extend.ts";
 
-/** DMA target: (ticks since the switch opened) << 1 | level, one i32 per edge. */
+/** DMA target, then (converted in place) the edges: ticks since the switch opened << 1 | level. */
 export const edges = new Int32Array(board.BUFFER_EDGES);
 
 export const PHASE_IDLE: i32 = 0;
@@ -15,6 +20,7 @@ export const PHASE_SETTLE: i32 = 1;
 export const PHASE_CHARGE: i32 = 2;
 export const PHASE_CAPTURE: i32 = 3;
 export const PHASE_DONE: i32 = 4; // capture finished, waiting to be streamed
+export const PHASE_FAULT: i32 = 5; // capture path misbehaved, switch forced open; report it
 
 export class Settings {
   drive: i32 = 0;
@@ -34,27 +40,20 @@ export let haveCapture: bool = false;
 
 let phaseStart: i32 = 0; // halNow() when the current phase began
 let lastEdgeAt: i32 = 0;
-let restFrom: i32 = 0;
-let restTicks: i32 = 0;
-let resting: bool = false;
+let captureBits: i32 = 0;
+let written: i32 = 0; // entries the capture hardware has written
 
-/** True while the duty-cycle interlock still forbids a new pulse. */
-export function restPending(): bool {
-  if (!resting) return false;
-  if (halNow() - restFrom >= restTicks) resting = false;
-  return resting;
-}
-
-/** Ticks of rest still owed (0 when none), so the main loop can ask to be woken. */
-export function restRemaining(): i32 {
-  if (!restPending()) return 0;
-  return restTicks - (halNow() - restFrom);
+/** Reads the port's capture mode once; false when the firmware cannot work with it. */
+export function init(): bool {
+  captureBits = halCaptureBits();
+  return ext.bitsSupported(captureBits);
 }
 
 /** Starts a measurement with validated settings. */
 export function begin(): void {
   haveCapture = false;
   edgeCount = 0;
+  ring.stopWatching();
   halSelect(settings.drive, settings.tank);
   phase = PHASE_SETTLE;
   phaseStart = halNow();
@@ -63,17 +62,14 @@ export function begin(): void {
 /** Stops everything at once: switch open, capture off. Safe in any phase. */
 export function stopAll(): void {
   halStop();
-  if (phase == PHASE_CHARGE || phase == PHASE_CAPTURE) startRest();
+  if (phase == PHASE_CHARGE || phase == PHASE_CAPTURE) afterPulse(true);
   phase = PHASE_IDLE;
 }
 
-function startRest(): void {
-  const chargeTicks: i32 = settings.chargeUs * board.TICKS_PER_US;
-  const minRest: i32 = board.MIN_REST_MS * board.TICKS_PER_MS;
-  const dutyRest: i32 = chargeTicks * board.REST_PER_CHARGE;
-  restTicks = dutyRest > minRest ? dutyRest : minRest;
-  restFrom = halNow();
-  resting = true;
+/** What every pulse leaves behind: the rest it costs and, if the ring may go on, a watch. */
+function afterPulse(ringMayContinue: bool): void {
+  startRest(settings.drive, settings.chargeUs);
+  if (ringMayContinue) ring.watch(settings.quietUs);
 }
 
 /** Advances the sequence; returns ticks until it next needs attention (0 when idle). */
@@ -84,7 +80,12 @@ export function step(): i32 {
     const settle: i32 = board.SETTLE_US * board.TICKS_PER_US;
     if (elapsed < settle) return settle - elapsed;
     const chargeTicks: i32 = settings.chargeUs * board.TICKS_PER_US;
-    halPulse(chargeTicks, edges.dataStart, settings.edgeLimit);
+    ext.reset(captureBits);
+    written = 0;
+    // Extended mode: one entry per edge, so the limit is the capacity. Raw mode: markers share
+    // the buffer, so offer all of it and stop at the limit in software.
+    halPulse(chargeTicks, edges.dataStart, captureBits == 0 ? settings.edgeLimit : board.BUFFER_EDGES);
+    counters.measurements++;
     phase = PHASE_CHARGE;
     phaseStart = now;
     return chargeTicks;
@@ -102,17 +103,29 @@ export function step(): i32 {
   return 0;
 }
 
-function stepCapture(now: i32): i32 {
+/** Takes in new entries; false when the capture path has shown a fault. */
+function absorb(): bool {
   const n: i32 = halCaptureCount();
-  if (n != edgeCount) {
-    edgeCount = n;
+  const capacity: i32 = captureBits == 0 ? settings.edgeLimit : board.BUFFER_EDGES;
+  // A count that shrinks or passes the capacity means the port's capture is confused (stuck).
+  if (n < written || n > capacity) return false;
+  written = n;
+  ext.absorb(edges, n, settings.edgeLimit);
+  return !ext.fault;
+}
+
+function stepCapture(now: i32): i32 {
+  if (!absorb()) return fail();
+  if (ext.edgeTotal != edgeCount) {
+    edgeCount = ext.edgeTotal;
     lastEdgeAt = now;
   }
   const quiet: i32 = settings.quietUs * board.TICKS_PER_US;
   const window: i32 = settings.timeoutMs * board.TICKS_PER_MS;
   const sinceOpen: i32 = now - phaseStart;
   const sinceEdge: i32 = now - lastEdgeAt;
-  if (edgeCount >= settings.edgeLimit) return finish(END_FULL);
+  const capacity: i32 = captureBits == 0 ? settings.edgeLimit : board.BUFFER_EDGES;
+  if (edgeCount >= settings.edgeLimit || written >= capacity) return finish(END_FULL);
   if (edgeCount > 0 && sinceEdge >= quiet) return finish(END_QUIET);
   if (sinceOpen >= window) return finish(edgeCount > 0 ? END_TIMEOUT : END_NO_EDGES);
   // Wake at the earlier of the quiet deadline and the window's end; poll at least every 1/8 of
@@ -126,16 +139,35 @@ function stepCapture(now: i32): i32 {
 
 function finish(reason: i32): i32 {
   halStop();
-  edgeCount = halCaptureCount();
-  if (edgeCount > settings.edgeLimit) edgeCount = settings.edgeLimit;
+  if (!absorb()) return fail();
+  edgeCount = ext.edgeTotal;
   endReason = reason;
   haveCapture = true;
-  startRest();
+  // Stopped while edges were still arriving: the ring may outlive the capture.
+  afterPulse(reason == END_FULL || reason == END_TIMEOUT);
   phase = PHASE_DONE;
   return 1;
 }
 
-/** Marks the finished capture as streamed; the sequence is idle again. */
-export function streamed(): void {
+function fail(): i32 {
+  halStop();
+  counters.faults++;
+  haveCapture = false;
+  afterPulse(true);
+  phase = PHASE_FAULT;
+  return 1;
+}
+
+/** Marks the finished (or failed) capture as reported; the sequence is idle again. */
+export function reported(): void {
   phase = PHASE_IDLE;
+}
+
+/** Ticks until the idle firmware next has something to do (0: nothing until input). */
+export function idleWait(): i32 {
+  const rest: i32 = restRemaining();
+  const watch: i32 = ring.remaining();
+  if (rest == 0) return watch;
+  if (watch == 0) return rest;
+  return rest < watch ? rest : watch;
 }

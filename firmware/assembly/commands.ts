@@ -1,38 +1,48 @@
-// Command dispatch: one frame in, one OK or ER frame out (preceded by any data frames).
+// Command dispatch: one frame in, one OK or ER frame out (preceded by any data frames). Commands
+// that take time (MS, ST) finish from the main loop: see finishPending().
 
 import {
-  ERR_ABORTED, ERR_ARGUMENT, ERR_BUSY, ERR_CHARGE_LIMIT, ERR_LINE_TOO_LONG, ERR_REST, ERR_UNKNOWN_COMMAND,
-  PROTOCOL_VERSION,
+  ERR_ABORTED, ERR_ARGUMENT, ERR_BUSY, ERR_CAPTURE_FAULT, ERR_CHARGE_LIMIT, ERR_LINE_TOO_LONG,
+  ERR_REST, ERR_RINGING, ERR_UNKNOWN_COMMAND, PROTOCOL_VERSION,
 } from "../../shared-protocol/src/constants.ts";
 import { FrameReader } from "../../shared-protocol/src/frame-reader.ts";
 import * as board from "./board.ts";
 import * as capture from "./capture.ts";
+import { counters } from "./counters.ts";
 import { halDeviceId } from "./hal.ts";
+import { maxChargeUs, restPending, restRemaining } from "./interlocks.ts";
 import { line, out, send, sendError, sendErrorDetail, sendOk } from "./link.ts";
+import { sendProfile } from "./profile.ts";
+import * as ring from "./ring-watch.ts";
+import { cancelSelfTest, selfTestRunning, startSelfTest, stepSelfTest, strayEdges } from "./self-test.ts";
 import { streamCapture } from "./stream.ts";
 
 const reader = new FrameReader();
+/** False when the port's capture mode is one the firmware cannot use: no pulse is ever fired. */
+let captureUsable: bool = false;
+let captureBits: i32 = 0;
+
+export function initCommands(usable: bool, bits: i32): void {
+  captureUsable = usable;
+  captureBits = bits;
+}
 
 /** Handles one received line of `len` bytes (-1: the line overflowed and was discarded). */
 export function handleLine(len: i32): void {
-  if (len < 0) {
-    sendError(ERR_LINE_TOO_LONG, "?");
-    return;
-  }
-  if (!reader.parse(line, len)) {
-    sendError(reader.error, "?");
-    return;
-  }
+  if (len < 0) return sendError(ERR_LINE_TOO_LONG, "?");
+  if (!reader.parse(line, len)) return sendError(reader.error, "?");
   if (reader.fieldIs(0, "ID")) identify();
   else if (reader.fieldIs(0, "PF")) profile();
   else if (reader.fieldIs(0, "MS")) measure();
   else if (reader.fieldIs(0, "AB")) abort();
   else if (reader.fieldIs(0, "CR")) resend();
+  else if (reader.fieldIs(0, "ST")) selfTest();
+  else if (reader.fieldIs(0, "CN")) reportCounters();
   else sendError(ERR_UNKNOWN_COMMAND, "?");
 }
 
-function busy(): bool {
-  return capture.phase != capture.PHASE_IDLE;
+export function busy(): bool {
+  return capture.phase != capture.PHASE_IDLE || selfTestRunning();
 }
 
 function identify(): void {
@@ -52,39 +62,13 @@ function identify(): void {
 
 function profile(): void {
   if (reader.count != 1) return sendError(ERR_ARGUMENT, "PF");
-  out.begin("PT");
-  out.putInt(board.TICK_HZ);
-  send();
-  for (let i: i32 = 0; i < board.DRIVE_COUNT; i++) {
-    out.begin("PR");
-    out.putInt(i);
-    out.putInt(board.DRIVE_MILLIOHM[i]);
-    out.putInt(board.DRIVE_POWER_MW[i]);
-    out.putInt(board.DRIVE_MAX_CHARGE_US[i]);
-    send();
-  }
-  for (let i: i32 = 0; i < board.TANK_COUNT; i++) {
-    out.begin("PC");
-    out.putInt(i);
-    out.putInt(board.TANK_PF[i]);
-    send();
-  }
-  out.begin("PH");
-  out.putInt(board.THRESHOLD_RISING_UV);
-  out.putInt(board.THRESHOLD_FALLING_UV);
-  send();
-  out.begin("PS");
-  out.putInt(board.SUPPLY_MV);
-  out.putInt(board.CLAMP_MV);
-  send();
-  out.begin("PL");
-  out.putInt(board.BUFFER_EDGES);
-  out.putInt(board.MIN_REST_MS);
-  out.putInt(board.REST_PER_CHARGE);
-  out.putInt(board.MAX_TIMEOUT_MS);
-  out.putInt(board.SETTLE_US);
-  send();
+  sendProfile(captureBits);
   sendOk("PF");
+}
+
+/** Milliseconds, rounded up, for a refusal's detail. */
+function ticksToMsCeil(ticks: i32): i32 {
+  return (ticks + board.TICKS_PER_MS - 1) / board.TICKS_PER_MS;
 }
 
 function measure(): void {
@@ -98,12 +82,11 @@ function measure(): void {
   const quietUs: i32 = reader.fieldInt(6, 1, board.MAX_TIMEOUT_MS * 1000);
   if (reader.error != 0) return sendError(ERR_ARGUMENT, "MS");
   // Interlocks: the host cannot talk the firmware past these.
-  if (chargeUs > board.DRIVE_MAX_CHARGE_US[drive]) return sendError(ERR_CHARGE_LIMIT, "MS");
-  if (capture.restPending()) {
-    // The remaining rest in milliseconds (rounded up) tells the host how long to wait.
-    const ms: i32 = (capture.restRemaining() + board.TICKS_PER_MS - 1) / board.TICKS_PER_MS;
-    return sendErrorDetail(ERR_REST, "MS", ms);
-  }
+  if (chargeUs > maxChargeUs(drive)) return sendError(ERR_CHARGE_LIMIT, "MS");
+  if (restPending()) return sendErrorDetail(ERR_REST, "MS", ticksToMsCeil(restRemaining()));
+  const ringing: i32 = ring.remaining();
+  if (ringing > 0) return sendErrorDetail(ERR_RINGING, "MS", ticksToMsCeil(ringing));
+  if (!captureUsable) return sendError(ERR_CAPTURE_FAULT, "MS");
   const s = capture.settings;
   s.drive = drive;
   s.tank = tank;
@@ -117,22 +100,59 @@ function measure(): void {
 
 function abort(): void {
   // Abort is never refused: it is the host's way to make the hardware safe.
-  const wasRunning: bool = busy() && capture.phase != capture.PHASE_DONE;
+  const measuring: bool = capture.phase != capture.PHASE_IDLE && capture.phase != capture.PHASE_DONE &&
+    capture.phase != capture.PHASE_FAULT;
+  const testing: bool = selfTestRunning();
   capture.stopAll();
-  if (wasRunning) sendError(ERR_ABORTED, "MS");
+  cancelSelfTest();
+  if (measuring) sendError(ERR_ABORTED, "MS");
+  if (testing) sendError(ERR_ABORTED, "ST");
   sendOk("AB");
 }
 
 function resend(): void {
   if (busy()) return sendError(ERR_BUSY, "CR");
-  if (!capture.haveCapture) return sendError(ERR_ARGUMENT, "CR");
+  if (reader.count != 1 || !capture.haveCapture) return sendError(ERR_ARGUMENT, "CR");
   sendOk("CR");
   streamCapture();
 }
 
-/** Sends a finished capture; called from the main loop. */
-export function streamIfDone(): void {
-  if (capture.phase != capture.PHASE_DONE) return;
-  streamCapture();
-  capture.streamed();
+function selfTest(): void {
+  if (busy()) return sendError(ERR_BUSY, "ST");
+  if (reader.count != 1) return sendError(ERR_ARGUMENT, "ST");
+  startSelfTest(); // the reply follows when the window is over
+}
+
+function reportCounters(): void {
+  if (reader.count != 1) return sendError(ERR_ARGUMENT, "CN");
+  out.begin("CT");
+  out.putInt(counters.measurements);
+  out.putInt(counters.faults);
+  out.putInt(counters.rejected);
+  out.putInt(counters.overruns);
+  send();
+  sendOk("CN");
+}
+
+/** Advances and completes long-running commands; returns ticks until the next needed poll. */
+export function finishPending(): i32 {
+  let wait: i32 = capture.step();
+  if (capture.phase == capture.PHASE_DONE) {
+    streamCapture();
+    capture.reported();
+  } else if (capture.phase == capture.PHASE_FAULT) {
+    sendError(ERR_CAPTURE_FAULT, "MS");
+    capture.reported();
+  }
+  if (selfTestRunning()) {
+    wait = stepSelfTest();
+    if (!selfTestRunning()) {
+      out.begin("SR");
+      out.putInt(board.SELF_TEST_US);
+      out.putInt(strayEdges());
+      send();
+      sendOk("ST");
+    }
+  }
+  return wait;
 }

@@ -1,6 +1,6 @@
 // The hardware abstraction layer: the only functions the firmware imports (wasm module "hal").
 //
-// A port implements these on a board (or in the simulated tester) and in return calls the three
+// A port implements these on a board (or in the simulated tester) and in return calls the
 // firmware exports: fw_init() once after reset, fw_rx(byte) for every received byte, and
 // fw_poll() from its main loop. fw_poll returns how many timer ticks may pass before it wants to
 // be called again (0: only after the next received byte). No HAL function is called from an
@@ -25,13 +25,14 @@ export declare function halSelect(drive: i32, tank: i32): void;
 /**
  * Closes the low-side switch now and opens it exactly `chargeTicks` later by hardware timer
  * compare (not by software), then captures comparator edges into `buf` (an i32 array of
- * `capacity` entries in firmware memory) as (ticks since the switch opened) << 1 | level, level 1
- * after a rising edge. Ticks must stay below 2^30. Must return at once; capture proceeds by DMA.
+ * `capacity` entries in firmware memory), one entry each, in the format capture_bits() names.
+ * `chargeTicks` 0: do not touch the switch, only arm the capture (listening with the switch
+ * open). Must return at once; capture proceeds by DMA or interrupt. Replaces any capture before.
  */
 @external("hal", "pulse")
 export declare function halPulse(chargeTicks: i32, buf: usize, capacity: i32): void;
 
-/** Number of edges the capture has written into the buffer so far (never more than capacity). */
+/** Number of entries the capture has written into the buffer so far (never more than capacity). */
 @external("hal", "capture_count")
 export declare function halCaptureCount(): i32;
 
@@ -46,3 +47,11 @@ export declare function halUartWrite(ptr: usize, len: i32): void;
 /** A 32-bit identifier unique to this board (from the MCU's unique id or a programmed serial). */
 @external("hal", "device_id")
 export declare function halDeviceId(): i32;
+
+/**
+ * The capture entry format, constant for the life of the firmware. 0: extended mode, each entry
+ * is (ticks since the switch opened) << 1 | level, ticks below 2^30. 8..24: raw mode with an
+ * N-bit timer, entries as in timer-extend.ts (open entry, overflow markers, captures).
+ */
+@external("hal", "capture_bits")
+export declare function halCaptureBits(): i32;

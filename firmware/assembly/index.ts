@@ -1,12 +1,14 @@
 // Firmware entry points called by a port (see hal.ts for the other direction).
 
-import { handleLine, streamIfDone } from "./commands.ts";
+import { busy, finishPending, handleLine, initCommands } from "./commands.ts";
 import * as capture from "./capture.ts";
+import { halCaptureBits } from "./hal.ts";
 import { nextLine, rxByte, rxOverrun } from "./link.ts";
 
 /** Called once after reset, before any other export. Forces the hardware safe. */
 export function fw_init(): void {
   capture.stopAll();
+  initCommands(capture.init(), halCaptureBits());
 }
 
 /**
@@ -23,8 +25,9 @@ export function fw_rx_overrun(): void {
 }
 
 /**
- * Called from the port's main loop: handles received lines, advances a measurement, streams a
- * finished capture. Returns the ticks that may pass before the next call (0: wait for input).
+ * Called from the port's main loop: handles received lines, advances a measurement or a
+ * self-test, sends what they produced. Returns the ticks that may pass before the next call
+ * (0: nothing to do until input).
  */
 export function fw_poll(): i32 {
   for (;;) {
@@ -32,17 +35,16 @@ export function fw_poll(): i32 {
     if (len == 0) break;
     handleLine(len);
   }
-  const wait: i32 = capture.step();
-  streamIfDone();
-  if (capture.phase != capture.PHASE_IDLE) return wait > 0 ? wait : 1;
-  return capture.restRemaining();
+  const wait: i32 = finishPending();
+  if (busy()) return wait > 0 ? wait : 1;
+  return capture.idleWait();
 }
 
 /**
- * 1 while a measurement is in progress (settling, charging, capturing or streaming), else 0.
- * Lets a port decide whether to stay awake; the simulated tester uses it to tell a
- * measurement's waits (which it fast-forwards) from idle rest (which takes real time).
+ * 1 while a measurement or self-test is in progress (settling, charging, capturing, listening
+ * or streaming), else 0. Lets a port decide whether to stay awake; the simulated tester uses it
+ * to tell a command's waits (which it fast-forwards) from idle rest (which takes real time).
  */
 export function fw_busy(): i32 {
-  return capture.phase != capture.PHASE_IDLE ? 1 : 0;
+  return busy() ? 1 : 0;
 }

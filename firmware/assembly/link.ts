@@ -2,7 +2,8 @@
 // output through the HAL. All buffers are allocated once, when the module starts.
 
 import { FrameWriter } from "../../shared-protocol/src/frame-writer.ts";
-import { MAX_LINE_BYTES } from "../../shared-protocol/src/constants.ts";
+import { ERR_ABORTED, ERR_CAPTURE_FAULT, MAX_LINE_BYTES } from "../../shared-protocol/src/constants.ts";
+import { counters } from "./counters.ts";
 import { halUartWrite } from "./hal.ts";
 
 const RX_RING_BYTES: i32 = 256;
@@ -34,6 +35,7 @@ export function rxByte(b: i32): bool {
  */
 export function rxOverrun(): void {
   rxDropped = true;
+  counters.overruns++;
 }
 
 /**
@@ -76,7 +78,13 @@ export function sendOk(cmd: string): void {
   send();
 }
 
+/** Abort notices and capture faults report events, not refusals of the host's command. */
+function countRefusal(code: i32): void {
+  if (code != ERR_ABORTED && code != ERR_CAPTURE_FAULT) counters.rejected++;
+}
+
 export function sendError(code: i32, cmd: string): void {
+  countRefusal(code);
   out.begin("ER");
   out.putInt(code);
   out.putText(cmd);
@@ -85,6 +93,7 @@ export function sendError(code: i32, cmd: string): void {
 
 /** An error frame with one numeric detail (for example the rest still owed, in ms). */
 export function sendErrorDetail(code: i32, cmd: string, detail: i32): void {
+  countRefusal(code);
   out.begin("ER");
   out.putInt(code);
   out.putText(cmd);

@@ -1,13 +1,15 @@
 // Firmware behaviour through its wire protocol, running the release wasm in the simulated tester.
 
 import { describe, expect, it } from "vitest";
-import { ERR_ABORTED, ERR_ARGUMENT, ERR_BUSY, ERR_CHARGE_LIMIT, ERR_CRC, ERR_LINE_TOO_LONG, ERR_REST, ERR_SYNTAX, ERR_UNKNOWN_COMMAND, PROTOCOL_VERSION, crc16Range } from "../../shared-protocol/src/index.ts";
+import { ERR_ABORTED, ERR_ARGUMENT, ERR_BUSY, ERR_CHARGE_LIMIT, ERR_CRC, ERR_LINE_TOO_LONG, ERR_REST, ERR_RINGING, ERR_SYNTAX, ERR_UNKNOWN_COMMAND, PROTOCOL_VERSION, crc16Range } from "../../shared-protocol/src/index.ts";
 import { encodeCommand } from "../../host/src/device/frames.ts";
 import { parseProfile } from "../../host/src/device/profile.ts";
 import { nominalBoard } from "../../host/src/sim/board-model.ts";
+import { ScriptedPort } from "./scripted-port.ts";
 import { SimLink, show } from "./sim-link.ts";
 
 const text = (tag: string, ...args: number[]) => new TextDecoder().decode(encodeCommand(tag, args));
+const strip = (lines: string[]) => lines.map((l) => l.replace(/\*[0-9A-F]{4}$/, ""));
 const withCrc = (body: string) => {
   const b = new TextEncoder().encode(body);
   return `${body}*${crc16Range(b, 0, b.length).toString(16).toUpperCase().padStart(4, "0")}`;
@@ -46,6 +48,15 @@ describe("firmware commands", () => {
     ["MS with a timeout over the limit", text("MS", 0, 0, 100, 100, 999999, 1000), `ER ${ERR_ARGUMENT} MS`],
     ["MS over the drive's charge-time interlock", text("MS", 0, 3, 2001, 100, 100, 1000), `ER ${ERR_CHARGE_LIMIT} MS`],
     ["ID with arguments", text("ID", 1), `ER ${ERR_ARGUMENT} ID`],
+    ["PF with arguments", text("PF", 1), `ER ${ERR_ARGUMENT} PF`],
+    ["CR with arguments", text("CR", 1), `ER ${ERR_ARGUMENT} CR`],
+    ["ST with arguments", text("ST", 1), `ER ${ERR_ARGUMENT} ST`],
+    ["CN with arguments", text("CN", 1), `ER ${ERR_ARGUMENT} CN`],
+    ["a lower-case command", text("id"), `ER ${ERR_UNKNOWN_COMMAND} ?`],
+    ["MS with a non-numeric field", withCrc("MS 1 2 x 100 100 1000") + "\n", `ER ${ERR_ARGUMENT} MS`],
+    ["MS with a negative charge time", text("MS", 1, 2, -5, 100, 100, 1000), `ER ${ERR_ARGUMENT} MS`],
+    ["a frame with more than 16 fields", text("MS", ...Array.from({ length: 16 }, () => 1)), `ER ${ERR_ARGUMENT} ?`],
+    ["a double space", withCrc("MS  1") + "\n", `ER ${ERR_SYNTAX} ?`],
   ])("answers %s with a numbered error frame", (_what, line, expected) => {
     const link = new SimLink();
     const replies = link.raw(line);
@@ -119,6 +130,52 @@ describe("firmware commands", () => {
 
   it("never refuses an abort, even when idle", () => {
     expect(new SimLink().send("AB").map(show)).toEqual(["OK AB"]);
+  });
+
+  it("self-test: a quiet capture path reports no stray edges and pulses nothing", () => {
+    const link = new SimLink();
+    expect(link.send("ST").map(show)).toEqual(["SR 20000 0", "OK ST"]);
+    expect(link.sim.stats.pulses).toBe(0);
+  });
+
+  it("self-test: a ring still going is heard as stray edges and counted as a fault", () => {
+    const link = new SimLink();
+    link.send("MS", 1, 2, 200, 20, 1000, 2000); // stopped at 20 edges, the ring goes on
+    const st = link.send("ST");
+    expect(show(st[1])).toBe("OK ST");
+    expect(Number(st[0].fields[1])).toBeGreaterThan(0);
+    expect(show(link.send("CN")[0])).toBe("CT 1 1 0 0");
+  });
+
+  it("self-test: after stray edges, pulses stay refused until the path has been quiet", () => {
+    const port = new ScriptedPort();
+    port.queueHeard([100, 900], [200, 1801]); // interference: two edges with the switch open
+    port.rx(encodeCommand("ST"));
+    expect(strip(port.text().trim().split("\n"))).toEqual(["SR 20000 2", "OK ST"]);
+    port.output = [];
+    port.rx(encodeCommand("MS", [1, 2, 200, 100, 100, 1000]));
+    expect(strip(port.text().trim().split("\n"))).toEqual([`ER ${ERR_RINGING} MS 20`]);
+    port.output = [];
+    port.idle(20 * 64000);
+    port.rx(encodeCommand("MS", [1, 2, 200, 100, 100, 1000]));
+    expect(strip(port.text().trim().split("\n"))[0]).toBe("OK MS");
+  });
+
+  it("self-test can be aborted, and refuses to start during a measurement", () => {
+    const link = new SimLink();
+    expect(strip(link.raw(text("ST") + text("AB")))).toEqual([`ER ${ERR_ABORTED} ST`, "OK AB"]);
+    expect(strip(link.raw(text("MS", 1, 2, 200, 8192, 1000, 2000) + text("ST"))).slice(0, 2)).toEqual(["OK MS", `ER ${ERR_BUSY} ST`]);
+  });
+
+  it("counts measurements, faults, refused commands and lost bytes", () => {
+    const link = new SimLink();
+    expect(link.send("CN").map(show)).toEqual(["CT 0 0 0 0", "OK CN"]);
+    link.send("MS", 1, 2, 200, 8192, 1000, 2000);
+    link.send("MS", 1, 2, 200, 8192, 1000, 2000); // refused: rest
+    link.raw(text("ZZ") + "garbage\n");
+    link.sim.fw.fw_rx_overrun();
+    link.raw("\n");
+    expect(link.send("CN").map(show)).toEqual(["CT 1 0 4 1", "OK CN"]);
   });
 
   it("reports no edges with open terminals and ends the capture at its timeout", () => {

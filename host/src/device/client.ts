@@ -7,8 +7,8 @@ import type { Transport, TransportError } from "../transport/transport.ts";
 import { DeviceError, DeviceTimeoutError } from "./errors.ts";
 import type { Decoded, Frame } from "./frames.ts";
 import { decodeLine, encodeCommand, ProtocolError } from "./frames.ts";
-import type { DeviceIdentity, DeviceProfile } from "./profile.ts";
-import { parseIdentity, parseProfile } from "./profile.ts";
+import type { DeviceCounters, DeviceIdentity, DeviceProfile, SelfTestReport } from "./profile.ts";
+import { parseCounters, parseIdentity, parseProfile, parseSelfTest } from "./profile.ts";
 import type { RawCapture } from "./stream-reader.ts";
 import { CaptureStreamReader, StreamDefect } from "./stream-reader.ts";
 
@@ -91,6 +91,26 @@ export class DeviceClient {
     return this.exclusive(async () => parseProfile(await this.command("PF", [])));
   }
 
+  /** Listens with the switch open for the profile's self-test window and reports stray edges. */
+  selfTest(): Promise<SelfTestReport> {
+    return this.exclusive(async () => {
+      const frames = await this.command("ST", [], (this.profile?.self_test_us ?? 0) / 1000);
+      const sr = frames.find((f) => f.tag === "SR");
+      if (!sr) throw new ProtocolError("self-test reply missing", "BAD_REPLY");
+      return parseSelfTest(sr);
+    });
+  }
+
+  /** The tester's event counters (measurements, faults, refused commands, lost bytes). */
+  counters(): Promise<DeviceCounters> {
+    return this.exclusive(async () => {
+      const frames = await this.command("CN", []);
+      const ct = frames.find((f) => f.tag === "CT");
+      if (!ct) throw new ProtocolError("counters reply missing", "BAD_REPLY");
+      return parseCounters(ct);
+    });
+  }
+
   /** Forces the switch open and ends any measurement. Never refused by the firmware. */
   abort(): Promise<void> {
     return this.exclusive(async () => {
@@ -122,7 +142,7 @@ export class DeviceClient {
     });
   }
 
-  /** Sends MS; while the firmware's rest interlock refuses, waits the time it names and asks again. */
+  /** Sends MS; while the rest or ring interlock refuses, waits the time it names and asks again. */
   private async startMeasurement(s: MeasureSettings): Promise<void> {
     const args = [s.drive, s.tank, s.charge_us, s.edge_limit, s.timeout_ms, s.quiet_us];
     for (let attempt = 0; ; attempt++) {
@@ -130,7 +150,8 @@ export class DeviceClient {
         await this.command("MS", args);
         return;
       } catch (e) {
-        if (!(e instanceof DeviceError) || e.code !== "REST_PENDING" || attempt >= MAX_REST_WAITS) throw e;
+        const waitable = e instanceof DeviceError && (e.code === "REST_PENDING" || e.code === "RINGING");
+        if (!waitable || attempt >= MAX_REST_WAITS) throw e;
         const wait = Math.min(Math.max(e.detail ?? this.profile.min_rest_ms, 1), MAX_REST_WAIT_MS);
         await new Promise((r) => setTimeout(r, wait + 1));
       }
@@ -156,12 +177,12 @@ export class DeviceClient {
   }
 
   /** Sends a command and collects data frames until its OK; throws DeviceError on ER. */
-  private async command(tag: string, args: number[]): Promise<Frame[]> {
+  private async command(tag: string, args: number[], extraWait_ms = 0): Promise<Frame[]> {
     this.inbox = []; // lines left from an earlier exchange belong to no one
     await this.transport.write(encodeCommand(tag, args));
     const frames: Frame[] = [];
     for (;;) {
-      const d = await this.next(this.replyTimeout, `reply to ${tag}`);
+      const d = await this.next(this.replyTimeout + extraWait_ms, `reply to ${tag}`);
       if (!d.ok) throw new ProtocolError(`corrupt reply to ${tag} (error ${d.code}): ${JSON.stringify(d.line)}; check the cable and retry`, "LINK_CORRUPT");
       const f = d.frame;
       if (f.tag === "OK" && f.fields[0] === tag) return frames;

@@ -3,7 +3,7 @@
 
 import {
   ERR_ABORTED, ERR_ARGUMENT, ERR_BUSY, ERR_CHARGE_LIMIT, ERR_CRC, ERR_LINE_TOO_LONG, ERR_REST,
-  ERR_SYNTAX, ERR_UNKNOWN_COMMAND,
+  ERR_SYNTAX, ERR_UNKNOWN_COMMAND, ERR_RINGING, ERR_CAPTURE_FAULT,
 } from "@henrytick/shared-protocol";
 
 /** The tester refused a command with an `ER` frame. */
@@ -11,11 +11,11 @@ export class DeviceError extends Error {
   readonly code: string;
   readonly deviceCode: number;
   readonly command: string;
-  /** Optional numeric detail from the ER frame (for REST_PENDING: milliseconds still owed). */
+  /** Optional numeric detail from the ER frame (REST_PENDING, RINGING: milliseconds to wait). */
   readonly detail: number | undefined;
   constructor(deviceCode: number, command: string, detail?: number) {
     const [code, text] = describeDeviceError(deviceCode);
-    super(`tester refused ${command}: ${text}${detail !== undefined && code === "REST_PENDING" ? ` (${detail} ms)` : ""}`);
+    super(`tester refused ${command}: ${text}${detail !== undefined && (code === "REST_PENDING" || code === "RINGING") ? ` (${detail} ms)` : ""}`);
     this.name = "DeviceError";
     this.code = code;
     this.deviceCode = deviceCode;
@@ -53,6 +53,10 @@ export function describeDeviceError(n: number): [string, string] {
       return ["LINE_TOO_LONG", "the command line was too long; update the host software"];
     case ERR_ABORTED:
       return ["ABORTED", "the measurement was aborted; the switch is open"];
+    case ERR_RINGING:
+      return ["RINGING", "the previous ring is still producing edges, so the tester will not pulse yet; wait and retry, and if it persists run the self-test"];
+    case ERR_CAPTURE_FAULT:
+      return ["CAPTURE_FAULT", "the tester's capture hardware misbehaved and the switch was forced open; run the self-test, and if it fails check the board and its firmware port"];
     default:
       return ["DEVICE_ERROR", `the tester reported error ${n}; see docs/protocol.md`];
   }

@@ -15,6 +15,10 @@ export interface DriveResistor {
   ohm: number;
   power_rating_w: number;
   max_charge_us: number;
+  /** Single-pulse energy rating, J (absent from older firmware). */
+  energy_rating_j?: number;
+  /** Rest the tester enforces after the longest allowed pulse, ms (absent from older firmware). */
+  rest_after_max_ms?: number;
 }
 
 export interface TankCapacitor {
@@ -36,6 +40,12 @@ export interface DeviceProfile {
   rest_per_charge: number;
   max_timeout_ms: number;
   settle_us: number;
+  /** Longest charge time on any resistor, µs (absent from older firmware). */
+  max_charge_us?: number;
+  /** How long the self-test listens with the switch open, µs (absent from older firmware). */
+  self_test_us?: number;
+  /** Capture timer width the port delivers: 0 extended ticks, else raw bits extended by the firmware. */
+  capture_bits?: number;
 }
 
 export function parseIdentity(frame: Frame): DeviceIdentity {
@@ -63,6 +73,8 @@ export function parseProfile(frames: Frame[]): DeviceProfile {
           ohm: intField(f, 1, "milliohm") / 1000,
           power_rating_w: intField(f, 2, "power_mw") / 1000,
           max_charge_us: intField(f, 3, "max_charge_us"),
+          ...(f.fields.length > 4 ? { energy_rating_j: intField(f, 4, "energy_uj") / 1e6 } : {}),
+          ...(f.fields.length > 5 ? { rest_after_max_ms: intField(f, 5, "rest_after_max_ms") } : {}),
         });
         break;
       case "PC":
@@ -81,6 +93,11 @@ export function parseProfile(frames: Frame[]): DeviceProfile {
         p.rest_per_charge = intField(f, 2, "rest_per_charge");
         p.max_timeout_ms = intField(f, 3, "max_timeout_ms");
         p.settle_us = intField(f, 4, "settle_us");
+        if (f.fields.length > 5) p.max_charge_us = intField(f, 5, "max_charge_us");
+        if (f.fields.length > 6) p.self_test_us = intField(f, 6, "self_test_us");
+        break;
+      case "PX":
+        p.capture_bits = intField(f, 0, "capture_bits");
         break;
       default:
         break; // later profile lines are ignored by older hosts, by design
@@ -93,4 +110,35 @@ export function parseProfile(frames: Frame[]): DeviceProfile {
   p.drives.sort((a, b) => a.index - b.index);
   p.tanks.sort((a, b) => a.index - b.index);
   return p as DeviceProfile;
+}
+
+/** Result of the self-test: edges heard with the switch open over the window. */
+export interface SelfTestReport {
+  window_us: number;
+  stray_edges: number;
+  passed: boolean;
+}
+
+export function parseSelfTest(frame: Frame): SelfTestReport {
+  if (frame.tag !== "SR" || frame.fields.length < 2) throw new ProtocolError(`unexpected self-test reply: ${frame.line}`, "BAD_REPLY");
+  const stray = intField(frame, 1, "stray_edges");
+  return { window_us: intField(frame, 0, "window_us"), stray_edges: stray, passed: stray === 0 };
+}
+
+/** Event counters since the tester started. */
+export interface DeviceCounters {
+  measurements: number;
+  faults: number;
+  rejected: number;
+  rx_overruns: number;
+}
+
+export function parseCounters(frame: Frame): DeviceCounters {
+  if (frame.tag !== "CT" || frame.fields.length < 4) throw new ProtocolError(`unexpected counters reply: ${frame.line}`, "BAD_REPLY");
+  return {
+    measurements: intField(frame, 0, "measurements"),
+    faults: intField(frame, 1, "faults"),
+    rejected: intField(frame, 2, "rejected"),
+    rx_overruns: intField(frame, 3, "rx_overruns"),
+  };
 }

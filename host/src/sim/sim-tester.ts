@@ -9,17 +9,19 @@ import { referenceBoard } from "./board-model.ts";
 import type { FirmwareVariant } from "./firmware-image.ts";
 import { firmwareModule } from "./firmware-image.ts";
 import { Random } from "./random.ts";
+import { RAW_OPEN_FLAG, RAW_OVERFLOW_FLAG } from "@henrytick/shared-protocol";
 import type { PartModel } from "./scenario.ts";
 
 export interface FirmwareExports {
   memory: WebAssembly.Memory;
   fw_init(): void;
   fw_rx(byte: number): number;
+  fw_rx_overrun(): void;
   fw_poll(): number;
   fw_busy(): number;
 }
 
-/** Edges of the pending capture, in ticks since the switch opened. */
+/** Edges of the pending capture, in ticks since the switch opened (or the listen began). */
 interface PendingCapture {
   openTick: number;
   ticks: number[];
@@ -28,6 +30,22 @@ interface PendingCapture {
   buf: number;
   capacity: number;
   stopped: boolean;
+  /** Raw-capture mode: next edge and next counter wrap still to be recorded. */
+  nextEdge: number;
+  nextWrap: number;
+}
+
+/**
+ * A capture timer narrower than the firmware's ticks (docs/porting.md, "Raw capture mode"): the
+ * HAL delivers raw N-bit values, an open entry and overflow markers, and the firmware extends them.
+ */
+export interface RawCaptureOptions {
+  /** Timer width, 8..24. */
+  bits: number;
+  /** Counter value at virtual time 0; sets where the wraps fall relative to the edges. */
+  phase_ticks: number;
+  /** Overflow interrupt latency: captures inside it are recorded before their wrap's marker. */
+  overflow_latency_ticks: number;
 }
 
 export interface SimTesterOptions {
@@ -36,6 +54,8 @@ export interface SimTesterOptions {
   board?: BoardModel;
   /** Firmware image to run; default the release build. */
   firmware?: FirmwareVariant;
+  /** Deliver raw timer captures instead of extended ticks (default: extended). */
+  raw_capture?: RawCaptureOptions;
 }
 
 /** Longest run of polls without the firmware going idle; guards against a firmware bug. */
@@ -51,6 +71,11 @@ export class SimTester {
   private drive = 0;
   private tank = 0;
   private capture: PendingCapture | null = null;
+  /** The capture the HAL is currently writing: the last pulse's, or a listen with the switch open. */
+  private active: PendingCapture | null = null;
+  private readonly raw: RawCaptureOptions | null;
+  private lastRing: { part: PartModel; drive: number; tank: number; charge_s: number; openTick: number; tail: EdgeTail | null } | null = null;
+  private readonly seed: number;
   private output: (bytes: Uint8Array) => void = () => {};
   /** Counts of physical events, for tests and diagnostics. */
   readonly stats = { pulses: 0, switchClosedTicks: 0, peakRingV: 0 };
@@ -59,6 +84,8 @@ export class SimTester {
     this.board = opts.board ?? referenceBoard();
     this.part = opts.part;
     this.rng = new Random(opts.seed);
+    this.seed = opts.seed;
+    this.raw = opts.raw_capture ?? null;
     const instance = new WebAssembly.Instance(firmwareModule(opts.firmware), { hal: this.hal() });
     this.fw = instance.exports as unknown as FirmwareExports;
     this.fw.fw_init();
@@ -119,46 +146,120 @@ export class SimTester {
       pulse: (chargeTicks: number, buf: number, capacity: number) => this.pulse(chargeTicks, buf, capacity),
       capture_count: () => this.captureCount(),
       stop: () => {
-        if (this.capture) {
+        if (this.active) {
           this.captureCount();
-          this.capture.stopped = true;
+          this.active.stopped = true;
         }
       },
       uart_write: (ptr: number, len: number) => {
         this.output(new Uint8Array(this.fw.memory.buffer, ptr, len).slice());
       },
       device_id: () => this.board.device_id | 0,
+      capture_bits: () => this.raw?.bits ?? 0,
     };
   }
 
   private pulse(chargeTicks: number, buf: number, capacity: number): void {
+    const pending: PendingCapture = {
+      openTick: this.nowTicks + chargeTicks, ticks: [], levels: [], written: 0, buf, capacity, stopped: false, nextEdge: 0, nextWrap: 1,
+    };
+    this.active = pending;
+    if (chargeTicks === 0) {
+      this.listen(pending); // the switch stays open: only what is still ringing is heard
+      return;
+    }
     this.stats.pulses++;
     this.stats.switchClosedTicks += chargeTicks;
-    const b = this.board;
-    const openTick = this.nowTicks + chargeTicks;
-    const pending: PendingCapture = { openTick, ticks: [], levels: [], written: 0, buf, capacity, stopped: false };
     this.capture = pending;
+    this.lastRing = null;
+    const b = this.board;
     const part = this.part;
     if (!part) return; // open terminals: no current, no ring
     const window_s = (2 ** 30 - 1) / b.timer.tick_hz;
-    const r = simulatePulse(b, part, this.drive, this.tank, chargeTicks / b.timer.tick_hz, capacity, this.rng, window_s);
+    const charge_s = chargeTicks / b.timer.tick_hz;
+    const r = simulatePulse(b, part, this.drive, this.tank, charge_s, capacity, this.rng, window_s);
     this.stats.peakRingV = Math.max(this.stats.peakRingV, r.peak_v);
     const edges = r.edges;
     pending.ticks = edges.ticks;
     pending.levels = edges.levels;
+    this.lastRing = { part, drive: this.drive, tank: this.tank, charge_s, openTick: pending.openTick, tail: null };
+  }
+
+  /**
+   * A listen after a pulse hears the rest of that pulse's ring. The tail is drawn once per ring
+   * from its own random stream, so listening never changes what later pulses record.
+   */
+  private listen(pending: PendingCapture): void {
+    const last = this.lastRing;
+    if (!last) return;
+    if (!last.tail) {
+      const b = this.board;
+      const rng = new Random((this.seed ^ 0x7a11) + this.stats.pulses);
+      const window_s = Math.min((2 ** 30 - 1) / b.timer.tick_hz, (this.nowTicks - last.openTick) / b.timer.tick_hz + 10);
+      last.tail = simulatePulse(b, last.part, last.drive, last.tank, last.charge_s, 400_000, rng, window_s).edges;
+    }
+    const tail = last.tail;
+    const shift = pending.openTick - last.openTick;
+    for (let k = 0; k < tail.ticks.length; k++) {
+      const t = tail.ticks[k] - shift;
+      if (t < 0) continue;
+      pending.ticks.push(Math.floor(t));
+      pending.levels.push(tail.levels[k]);
+    }
   }
 
   /** DMA emulation: copies edges that have happened by now into firmware memory. */
   private captureCount(): number {
-    const cap = this.capture;
+    const cap = this.active;
     if (!cap) return 0;
     if (cap.stopped) return cap.written;
     const mem = new Int32Array(this.fw.memory.buffer, cap.buf, cap.capacity);
     const elapsed = this.nowTicks - cap.openTick;
+    if (this.raw) return this.recordRaw(cap, mem, elapsed, this.raw);
     while (cap.written < cap.ticks.length && cap.written < cap.capacity && cap.ticks[cap.written] <= elapsed) {
       mem[cap.written] = (cap.ticks[cap.written] << 1) | cap.levels[cap.written];
       cap.written++;
     }
     return cap.written;
   }
+
+  /**
+   * Raw-capture emulation of an N-bit timer: the open entry, then captures and overflow markers
+   * in the order a port's interrupts would record them. A capture latched after a wrap but
+   * before that wrap's overflow interrupt ran is recorded first, flagged pending.
+   */
+  private recordRaw(cap: PendingCapture, mem: Int32Array, elapsed: number, raw: RawCaptureOptions): number {
+    if (elapsed < 0) return cap.written;
+    const period = 2 ** raw.bits;
+    const openRaw = (Math.floor(cap.openTick) + raw.phase_ticks) % period;
+    if (cap.written === 0 && cap.capacity > 0) {
+      mem[0] = RAW_OPEN_FLAG | openRaw;
+      cap.written = 1;
+    }
+    const wrapAt = (j: number) => j * period - openRaw; // ticks since open of the j-th wrap
+    while (cap.written < cap.capacity) {
+      const markerAt = wrapAt(cap.nextWrap) + raw.overflow_latency_ticks;
+      const k = cap.nextEdge;
+      const t = k < cap.ticks.length ? cap.ticks[k] : Infinity;
+      if (t < markerAt) {
+        if (t > elapsed) break;
+        // Pending: the latest wrap at or before t has not been recorded yet.
+        const wrapPending = t >= wrapAt(cap.nextWrap);
+        const value = (openRaw + t) % period;
+        mem[cap.written] = (value << 2) | (wrapPending ? 2 : 0) | cap.levels[k];
+        cap.nextEdge++;
+      } else {
+        if (markerAt > elapsed) break;
+        mem[cap.written] = RAW_OVERFLOW_FLAG | 1;
+        cap.nextWrap++;
+      }
+      cap.written++;
+    }
+    return cap.written;
+  }
+}
+
+interface EdgeTail {
+  ticks: number[];
+  levels: number[];
 }

@@ -1,0 +1,51 @@
+// The profile command's data frames: everything a host needs to know about this board.
+// Later fields are appended to existing frames and new frames added; hosts ignore what they do
+// not know (docs/protocol.md).
+
+import * as board from "./board.ts";
+import { maxChargeUs, restTicksAfter } from "./interlocks.ts";
+import { out, send } from "./link.ts";
+
+export function sendProfile(captureBits: i32): void {
+  out.begin("PT");
+  out.putInt(board.TICK_HZ);
+  send();
+  for (let i: i32 = 0; i < board.DRIVE_COUNT; i++) {
+    const maxUs: i32 = maxChargeUs(i);
+    out.begin("PR");
+    out.putInt(i);
+    out.putInt(board.DRIVE_MILLIOHM[i]);
+    out.putInt(board.DRIVE_POWER_MW[i]);
+    out.putInt(maxUs);
+    out.putInt(board.DRIVE_ENERGY_UJ[i]);
+    // Rest owed after the longest allowed pulse, ms (rounded up): the resistor's duty cycle.
+    out.putInt((restTicksAfter(i, maxUs) + board.TICKS_PER_MS - 1) / board.TICKS_PER_MS);
+    send();
+  }
+  for (let i: i32 = 0; i < board.TANK_COUNT; i++) {
+    out.begin("PC");
+    out.putInt(i);
+    out.putInt(board.TANK_PF[i]);
+    send();
+  }
+  out.begin("PH");
+  out.putInt(board.THRESHOLD_RISING_UV);
+  out.putInt(board.THRESHOLD_FALLING_UV);
+  send();
+  out.begin("PS");
+  out.putInt(board.SUPPLY_MV);
+  out.putInt(board.CLAMP_MV);
+  send();
+  out.begin("PL");
+  out.putInt(board.BUFFER_EDGES);
+  out.putInt(board.MIN_REST_MS);
+  out.putInt(board.REST_PER_CHARGE);
+  out.putInt(board.MAX_TIMEOUT_MS);
+  out.putInt(board.SETTLE_US);
+  out.putInt(board.MAX_CHARGE_US);
+  out.putInt(board.SELF_TEST_US);
+  send();
+  out.begin("PX");
+  out.putInt(captureBits);
+  send();
+}

@@ -1,0 +1,59 @@
+// Self-test: with the switch open and no pulse, the capture path must stay silent. Edges heard
+// over the board's self-test window are stray (interference, a comparator oscillating at its
+// threshold, a ring that will not die) and are reported; a silent window also ends a ring watch.
+
+import * as board from "./board.ts";
+import { counters } from "./counters.ts";
+import { halNow } from "./hal.ts";
+import { edgesHeard, hear, listen, unlisten } from "./listen.ts";
+import * as ring from "./ring-watch.ts";
+
+let running: bool = false;
+let startedAt: i32 = 0;
+let stray: i32 = 0;
+
+export function selfTestRunning(): bool {
+  return running;
+}
+
+export function startSelfTest(): void {
+  ring.stopWatching();
+  listen();
+  startedAt = halNow();
+  running = true;
+}
+
+/** Advances the self-test; returns ticks until it next needs attention, or 0 once it is over. */
+export function stepSelfTest(): i32 {
+  if (!running) return 0;
+  hear();
+  const window: i32 = board.SELF_TEST_US * board.TICKS_PER_US;
+  const elapsed: i32 = halNow() - startedAt;
+  if (elapsed < window) {
+    // Re-check often enough that a full listen buffer is re-armed before it loses much.
+    const left: i32 = window - elapsed;
+    const slice: i32 = window >> 4;
+    return left < slice ? left : slice;
+  }
+  unlisten();
+  running = false;
+  stray = edgesHeard;
+  if (stray > 0) {
+    counters.faults++;
+    // Whatever is producing edges must not be pulsed into: hand over to the ring watch.
+    ring.watch(board.SELF_TEST_US);
+  }
+  return 0;
+}
+
+/** Stops a running self-test early (abort). */
+export function cancelSelfTest(): void {
+  if (!running) return;
+  unlisten();
+  running = false;
+}
+
+/** Stray edges heard by the last self-test. */
+export function strayEdges(): i32 {
+  return stray;
+}
