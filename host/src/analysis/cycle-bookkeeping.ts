@@ -20,10 +20,11 @@ export function assignHalfCycles(t_s: Float64Array, rising: Uint8Array): HalfCyc
   const n = t_s.length;
   const m = new Float64Array(n).fill(NaN);
   const reasons: (string | null)[] = new Array(n).fill(null);
-  const up = indicesOf(rising, 1);
-  const down = indicesOf(rising, 0);
-  const t0 = roughPeriod(t_s, up, down);
+  const t0 = roughPeriod(t_s, indicesOf(rising, 1, null), indicesOf(rising, 0, null));
   if (!(t0 > 0)) return { m, period_s: NaN, reasons };
+  const keep = dropChatter(t_s, rising, t0, reasons);
+  const up = indicesOf(rising, 1, keep);
+  const down = indicesOf(rising, 0, keep);
 
   // Two walks: the second uses the period of straight lines through the first walk's indices.
   let kUp = walk(t_s, up, t0);
@@ -45,13 +46,39 @@ export function assignHalfCycles(t_s: Float64Array, rising: Uint8Array): HalfCyc
   return { m, period_s: period, reasons };
 }
 
-function indicesOf(rising: Uint8Array, level: number): Int32Array {
+function indicesOf(rising: Uint8Array, level: number, keep: Uint8Array | null): Int32Array {
   let c = 0;
-  for (let i = 0; i < rising.length; i++) if (rising[i] === level) c++;
+  for (let i = 0; i < rising.length; i++) if (rising[i] === level && (!keep || keep[i])) c++;
   const out = new Int32Array(c);
   c = 0;
-  for (let i = 0; i < rising.length; i++) if (rising[i] === level) out[c++] = i;
+  for (let i = 0; i < rising.length; i++) if (rising[i] === level && (!keep || keep[i])) out[c++] = i;
   return out;
+}
+
+/**
+ * Chatter: a real edge X followed within half a period by an opposite and a same edge (X, X', X)
+ * cannot be a ring, whose X' and next X are a whole period apart. Such pairs are set aside before
+ * counting; at 10-20 ticks per period they would otherwise subdivide intervals enough to make
+ * the walk slip a cycle. (The model pass re-examines them.)
+ */
+function dropChatter(t: Float64Array, rising: Uint8Array, period: number, reasons: (string | null)[]): Uint8Array {
+  const n = t.length;
+  const keep = new Uint8Array(n).fill(1);
+  let last = -1;
+  let j = 0;
+  while (j < n) {
+    if (last >= 0 && j + 1 < n && rising[j] !== rising[last] && rising[j + 1] === rising[last] && t[j + 1] - t[last] < 0.5 * period) {
+      keep[j] = 0;
+      keep[j + 1] = 0;
+      reasons[j] = "chatter: opposite and same edge right after an edge";
+      reasons[j + 1] = reasons[j];
+      j += 2;
+      continue;
+    }
+    last = j;
+    j++;
+  }
+  return keep;
 }
 
 /** Median interval between consecutive edges of one level (both levels pooled). */

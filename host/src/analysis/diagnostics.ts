@@ -51,7 +51,7 @@ export function diagnose(s: FitState, rq: RingQuantities): Diagnosis {
     warnings.push({ code: "MANY_REJECTED", message: `${rejected} of ${e.n} edges were rejected: check the probe wiring and grounding, and the comparator hysteresis, then measure again` });
   }
   const missing = mMax - mMin + 1 - nUsed;
-  if (missing > Math.max(2, 0.02 * nUsed)) {
+  if (missing > Math.max(1, 0.01 * nUsed)) {
     warnings.push({ code: "MISSING_EDGES", message: `${missing} half-cycles have no usable edge: the capture is losing edges (dead time or buffer); lower the tick rate load or shorten the ring` });
   }
   const clip = firstCycleDeviation(s);

@@ -21,22 +21,21 @@ export interface NoiseEstimate {
   sigma_v2: number;
 }
 
-/** Timing variance var_k (s^2) of every edge with mask[k] > 0; others get Infinity. */
+/**
+ * Timing variance var_k (s^2) of every edge with mask[k] > 0; the others (no current slope) get
+ * the slope-free part, so that an edge indexed later starts from a finite value.
+ */
 export function edgeTimeVariances(
   q_s2: number, noise: NoiseEstimate, slope: Float64Array, wd: number, mask: Float64Array, out: Float64Array,
 ): void {
   const cap = 1 / (wd * wd);
   for (let k = 0; k < out.length; k++) {
-    if (!(mask[k] > 0)) {
-      out[k] = Infinity;
-      continue;
-    }
     const s = slope[k];
-    out[k] = Math.min(cap, q_s2 + noise.sigma_t2 + noise.sigma_v2 / (s * s));
+    out[k] = mask[k] > 0 ? Math.min(cap, q_s2 + noise.sigma_t2 + noise.sigma_v2 / (s * s)) : q_s2 + noise.sigma_t2;
   }
 }
 
-/** Var(e_k) in V^2 from the timing variances (Infinity where var_t is). */
+/** Var(e_k) in V^2 from the timing variances. */
 export function edgeVariances(
   q_s2: number, noise: NoiseEstimate, slope: Float64Array, curvature: Float64Array,
   var_t: Float64Array, out: Float64Array,
@@ -46,7 +45,7 @@ export function edgeVariances(
     const s = slope[k];
     const c = curvature[k];
     const vk = var_t[k];
-    out[k] = vk === Infinity ? Infinity : noise.sigma_v2 + s * s * vt + 0.5 * c * c * vk * vk;
+    out[k] = noise.sigma_v2 + s * s * vt + 0.5 * c * c * vk * vk;
   }
 }
 
@@ -63,7 +62,7 @@ export function estimateNoise(
   let xMean = 0;
   let count = 0;
   for (let k = 0; k < n; k++) {
-    if (!(mask[k] > 0)) continue;
+    if (!(mask[k] > 0) || !Number.isFinite(r[k])) continue;
     xMean += slope[k] * slope[k];
     count++;
   }
@@ -79,7 +78,7 @@ export function estimateNoise(
   } else {
     const ratio = new Float64Array(count);
     let c = 0;
-    for (let k = 0; k < n; k++) if (mask[k] > 0) ratio[c++] = (r[k] * r[k]) / (slope[k] * slope[k]);
+    for (let k = 0; k < n; k++) if (mask[k] > 0 && Number.isFinite(r[k])) ratio[c++] = (r[k] * r[k]) / (slope[k] * slope[k]);
     ratio.sort();
     a = 0;
     b = Math.max(q_s2, ratio[count >> 1] / 0.45493642) * xMean; // median of chi-square(1)
@@ -88,7 +87,7 @@ export function estimateNoise(
   for (let it = 0; it < 60; it++) {
     let s0 = 0, sx = 0, sxx = 0, sy = 0, sxy = 0;
     for (let k = 0; k < n; k++) {
-      if (!(mask[k] > 0)) continue;
+      if (!(mask[k] > 0) || !Number.isFinite(r[k])) continue;
       const x = (slope[k] * slope[k]) / xMean;
       const curv = 0.5 * curvature[k] * curvature[k] * var_t[k] * var_t[k];
       const v = Math.max(a + b * x + curv, 1e-300);
