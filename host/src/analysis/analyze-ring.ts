@@ -12,7 +12,7 @@ import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
 import { reassignHalfCycles } from "./model-bookkeeping.ts";
 import { edgeTimeVariances, edgeVariances, estimateNoise, type NoiseEstimate } from "./noise-model.ts";
 import { ringQuantities, COVERAGE_K } from "./ring-quantities.ts";
-import { huberWeight, madSigma } from "./robust-stats.ts";
+import { huberWeight, madSigma, median } from "./robust-stats.ts";
 import { invertSymmetric } from "./small-linear-algebra.ts";
 import { checkInput, MIN_EDGES, type CheckedInput } from "./validate-input.ts";
 import { AnalysisError, type RingAnalysis, type RingInput } from "./types.ts";
@@ -160,6 +160,11 @@ export function fitRing(input: RingInput): FitState {
   const birge = nUsed > 4 ? Math.max(1, fit.chi2 / (nUsed - 4)) : 1;
   for (let i = 0; i < 16; i++) cov[i] *= birge;
   if (!(p[P_ALPHA] > 0)) throw noRing("the fitted ring does not decay");
+  // Edges that only a timing noise of a tenth of a period (36 degrees) or more can explain, or a
+  // fit that sets aside most edges, are not a ring: refuse rather than report a number.
+  const period = (2 * Math.PI) / p[P_WD];
+  const typical = Math.sqrt(median(varT.filter((_, k) => used[k] > 0)));
+  if (nUsed < 0.5 * n || !(typical < 0.1 * period)) throw noRing("the edges do not follow one damped sine");
   return {
     checked: c, edges: e, p, cov, r: ws.r.slice(), slope: ws.slope.slice(), variance, used,
     z_scale: zScale, noise, reasons, chi2: fit.chi2,
