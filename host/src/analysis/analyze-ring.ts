@@ -102,24 +102,41 @@ export function fitRing(input: RingInput): FitState {
   const leverage = new Float64Array(n);
   const sd = new Float64Array(n);
   const z = new Float64Array(n);
+  const zUsed = new Float64Array(n);
+  const zWork = new Float64Array(n);
+  const oldVarT = new Float64Array(n);
+  const oldVariance = new Float64Array(n);
   let p = guess.p;
   let noise: NoiseEstimate | null = null;
   const varT = new Float64Array(n).fill(q);
   let zScale = 1;
   let fit!: ReturnType<typeof fitEdgeModel>;
+  // ws.r, ws.jac, ws.slope and ws.curvature hold the model at p with the current forms and
+  // timing variances whenever `cached` is true: then neither the round's fit nor its checks
+  // evaluate the model again at the same point.
+  let cached = false;
   for (let round = 0; ; round++) {
-    chooseResidualForms(p, e, c.vh_v, c.vl_v);
+    // Residual forms follow the model while it is still moving (rounds 0 and 1), then stay, so
+    // that the weights of a round and its residuals use the same scales.
+    if (round <= 1) {
+      chooseResidualForms(p, e, c.vh_v, c.vl_v);
+      cached = false;
+    }
     setWeights(e, outlier, robust, variance, used, w);
     // Early rounds weight with a rough noise model: a few steps suffice there.
-    fit = fitEdgeModel(e, c.vh_v, c.vl_v, p, w, varT, ws, limits, round < 2 ? 6 : 60);
+    fit = fitEdgeModel(e, c.vh_v, c.vl_v, p, w, varT, ws, limits, round < 2 ? 6 : 60, 1e-6, cached);
     if (!Number.isFinite(fit.chi2)) throw noRing("the edge-model fit diverged");
     p = fit.p;
+    cached = fit.fresh;
     if (round === MAX_ROUNDS) break;
 
     for (let k = 0; k < n; k++) sd[k] = Math.sqrt(variance[k]);
     const moved = reassignHalfCycles(p, e, c.vh_v, c.vl_v, sd, reasons);
     for (let k = 0; k < n; k++) assigned[k] = e.m[k] === e.m[k] ? 1 : 0;
-    evaluateEdges(p, e, c.vh_v, c.vl_v, null, varT, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
+    if (moved > 0 || !cached) {
+      evaluateEdges(p, e, c.vh_v, c.vl_v, null, varT, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
+      cached = true;
+    }
     setWeights(e, outlier, robust, variance, used, w);
     const cov = invertSymmetric(4, fit.normal);
     if (countFinite(e.m) < MIN_EDGES || !cov) throw noRing("too few edges fit a ring");
@@ -152,7 +169,7 @@ export function fitRing(input: RingInput): FitState {
   }
   const cov = invertSymmetric(4, fit.normal);
   if (!cov || !noise) throw noRing("the fit has no covariance");
-  evaluateEdges(p, e, c.vh_v, c.vl_v, null, varT, { r: ws.r, slope: ws.slope, curvature: ws.curvature });
+  if (!cached) evaluateEdges(p, e, c.vh_v, c.vl_v, null, varT, { r: ws.r, slope: ws.slope, curvature: ws.curvature });
   setWeights(e, outlier, robust, variance, used, w);
   let nUsed = 0;
   for (let k = 0; k < n; k++) nUsed += used[k];
@@ -197,7 +214,7 @@ function bestStart(
     chooseResidualForms(cand.p, e, c.vh_v, c.vl_v);
     const variance = initialVariance(cand.p, e, varT, ws);
     for (let k = 0; k < e.n; k++) variance[k] = mask[k] > 0 ? 1 / variance[k] : 0;
-    const fit = fitEdgeModel(e, c.vh_v, c.vl_v, cand.p, variance, null, ws, limits, 25, 1e-3);
+    const fit = fitEdgeModel(e, c.vh_v, c.vl_v, cand.p, variance, null, ws, limits, 25, 1e-3, false, true);
     if (fit.chi2 < bestChi2) {
       bestChi2 = fit.chi2;
       best = { p: fit.p, ms_residual_s2: cand.ms_residual_s2 };

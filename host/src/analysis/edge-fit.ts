@@ -33,6 +33,8 @@ export interface EdgeFitResult {
   normal: Float64Array;
   iterations: number;
   converged: boolean;
+  /** ws.r, ws.jac, ws.slope and ws.curvature hold the model at p. */
+  fresh: boolean;
 }
 
 /** Scratch buffers sized for one capture, reused across fits of the same capture. */
@@ -41,6 +43,8 @@ export class FitWorkspace {
   readonly jac: Float64Array;
   readonly slope: Float64Array;
   readonly curvature: Float64Array;
+  /** Edges to evaluate (null: all indexed edges). */
+  mask: Float64Array | null = null;
   readonly h = new Float64Array(N_PARAMS * N_PARAMS);
   readonly g = new Float64Array(N_PARAMS);
   readonly h2 = new Float64Array(N_PARAMS * N_PARAMS);
@@ -67,17 +71,27 @@ export class FitWorkspace {
  * Minimises sum w_k r_k^2 over the edges with w_k > 0 and finite m, starting at p0. Stops when a
  * step gains less than `tol_chi2` (chi2 is in units of the noise model, so 1e-6 leaves the
  * parameters within about 1e-3 standard deviations of the minimum).
+ *
+ * Every indexed edge is evaluated (weight zero included, so rejected edges can be re-tested),
+ * unless `only_weighted`.
+ * With `reuse`, ws.r and ws.jac already hold the model at p0 and are not evaluated again. On
+ * return `fresh` says whether ws.r, ws.jac, ws.slope and ws.curvature belong to the returned p
+ * (false only when the last trial step was refused).
  */
 export function fitEdgeModel(
   e: EdgeSet, vh_v: number, vl_v: number, p0: ArrayLike<number>, w: Float64Array, var_t_s2: Float64Array | null,
-  ws: FitWorkspace, limits: FitLimits | null, max_iterations = 60, tol_chi2 = 1e-6,
+  ws: FitWorkspace, limits: FitLimits | null, max_iterations = 60, tol_chi2 = 1e-6, reuse = false,
+  only_weighted = false,
 ): EdgeFitResult {
-  // ws.r holds whatever was evaluated last (possibly a refused trial): callers re-evaluate at p.
   const p = Float64Array.from(p0);
-  let chi2 = accumulate(p, e, vh_v, vl_v, w, var_t_s2, limits, ws, ws.h, ws.g);
+  ws.mask = only_weighted ? w : null;
+  let chi2 = reuse
+    ? sums(p, e, w, limits, ws, ws.h, ws.g)
+    : accumulate(p, e, vh_v, vl_v, w, var_t_s2, limits, ws, ws.h, ws.g);
+  let fresh = true;
   ws.hp1.set(ws.hp);
   ws.gp1.set(ws.gp);
-  if (!Number.isFinite(chi2)) return { p, chi2, normal: ws.h.slice(), iterations: 0, converged: false };
+  if (!Number.isFinite(chi2)) return { p, chi2, normal: ws.h.slice(), iterations: 0, converged: false, fresh };
   let lambda = 1e-4;
   let converged = false;
   let it = 0;
@@ -94,6 +108,7 @@ export function fitEdgeModel(
       // The trial is evaluated with its Jacobian: most trials are accepted, and this saves
       // evaluating the accepted point twice.
       const trialChi2 = accumulate(ws.trial, e, vh_v, vl_v, w, var_t_s2, limits, ws, ws.h2, ws.g2);
+      fresh = trialChi2 <= chi2;
       if (trialChi2 <= chi2) {
         const drop = chi2 - trialChi2;
         converged = drop <= tol_chi2 + 1e-12 * chi2 || smallStep(p, ws.step);
@@ -115,7 +130,7 @@ export function fitEdgeModel(
       break;
     }
   }
-  return { p, chi2, normal: ws.h.slice(), iterations: it, converged };
+  return { p, chi2, normal: ws.h.slice(), iterations: it, converged, fresh };
 }
 
 /** Relative parameter steps at the level of double rounding: nothing left to gain. */
@@ -132,8 +147,16 @@ function accumulate(
   p: Float64Array, e: EdgeSet, vh_v: number, vl_v: number, w: Float64Array, var_t_s2: Float64Array | null,
   limits: FitLimits | null, ws: FitWorkspace, h: Float64Array, g: Float64Array,
 ): number {
+  evaluateEdges(p, e, vh_v, vl_v, ws.mask, var_t_s2, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
+  return sums(p, e, w, limits, ws, h, g);
+}
+
+/** chi2 and the normal equations from the residuals and Jacobian already in ws. */
+function sums(
+  p: Float64Array, e: EdgeSet, w: Float64Array, limits: FitLimits | null, ws: FitWorkspace,
+  h: Float64Array, g: Float64Array,
+): number {
   const pen = penalty(p, limits, ws.hp, ws.gp);
-  evaluateEdges(p, e, vh_v, vl_v, w, var_t_s2, { r: ws.r, jac: ws.jac });
   const { r, jac } = ws;
   const ms = e.m;
   let chi2 = 0;
