@@ -6,6 +6,7 @@ import type { ClientOptions } from "./device/client.ts";
 import type { PartModel, Scenario } from "./sim/scenario.ts";
 import { DEFAULT_SCENARIO, loadScenario } from "./sim/scenario.ts";
 import { SimTester } from "./sim/sim-tester.ts";
+import { boardWithFixture, referenceBoard } from "./sim/board-model.ts";
 import { SerialTransport } from "./transport/serial-transport.ts";
 import { SimTransport } from "./transport/sim-transport.ts";
 
@@ -45,7 +46,7 @@ export async function openTester(target: TesterTarget, opts: ClientOptions = {})
     part = scenario.part;
     seed = target.seed ?? scenario.seed;
   }
-  const sim = new SimTester({ part, seed });
+  const sim = new SimTester({ part, seed, board: boardWithFixture(referenceBoard(), scenario?.fixture) });
   const client = await DeviceClient.connect(new SimTransport(sim), opts);
   return { client, sim, scenario, close: () => client.close() };
 }

@@ -161,7 +161,7 @@ describe.skipIf(!hasSocat)(`henrytick sim-device over a pseudo-terminal${hasSoca
       } finally {
         await t.close();
       }
-      expect(device.stats.bytes_to_host).toBeGreaterThan(1000);
+      expect(device.stats.bytes_to_host).toBeGreaterThan(500); // profile, probe and reading streams
     } finally {
       await device.close();
     }

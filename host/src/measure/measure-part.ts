@@ -49,29 +49,48 @@ export async function measurePart(client: DeviceClient, opts: MeasureOptions = {
   const limits: PlanLimits = defaultLimits(profile);
   if (opts.max_peak_v !== undefined) limits.max_peak_v = Math.min(limits.max_peak_v, opts.max_peak_v);
 
-  let settings: MeasureSettings;
-  let prediction: SettingPrediction | undefined;
   if (opts.drive !== undefined || opts.tank !== undefined) {
     const drive = opts.drive ?? 0;
     const tank = opts.tank ?? profile.tanks.length - 1;
     checkIndex("drive", drive, profile.drives.length);
     checkIndex("tank", tank, profile.tanks.length);
     const charge = opts.charge_us ?? Math.min(profile.drives[drive].max_charge_us, 1000);
-    settings = fullSettings(client, drive, tank, charge, PROBE_QUIET_US, PROBE_TIMEOUT_MS);
-  } else {
-    prediction = await chooseSetting(client, limits, progress);
-    const p = prediction;
+    const settings = fullSettings(client, drive, tank, charge, PROBE_QUIET_US, PROBE_TIMEOUT_MS);
+    return readOnce(client, settings, opts, progress);
+  }
+  // The plan is first-order: if its best setting gives too short a ring, try the next ones.
+  const ranked = await rankAfterProbe(client, limits, progress);
+  let lastError: unknown;
+  for (const p of ranked.slice(0, MAX_SETTINGS_TRIED)) {
     const period_us = 1e6 / p.f_hz;
     const quiet = Math.max(50, Math.ceil(4 * period_us));
-    const ring_ms = (p.usable_edges / 2) * period_us * 1e-3;
+    const ring_ms = (Math.max(p.usable_edges, 40) / 2) * period_us * 1e-3;
     const timeout = Math.min(profile.max_timeout_ms, Math.ceil(3 * ring_ms + quiet / 1000 + 20));
-    settings = fullSettings(client, p.drive, p.tank, p.charge_us, quiet, timeout);
+    const settings = fullSettings(client, p.drive, p.tank, p.charge_us, quiet, timeout);
+    try {
+      const reading = await readOnce(client, settings, opts, progress);
+      if (reading.analysis.edges_used >= MIN_EDGES_AUTO || p === ranked[ranked.length - 1]) return { ...reading, prediction: p };
+      lastError = new MeasureError("TOO_FEW_EDGES", `only ${reading.analysis.edges_used} edges on the best setting found`);
+    } catch (e) {
+      if (!(e instanceof MeasureError) || !RETRYABLE.has(e.code)) throw e;
+      lastError = e;
+    }
+    progress("ring shorter than planned; trying the next setting");
   }
+  throw lastError;
+}
+
+/** Fewest edges an automatically ranged reading should rest on before another setting is tried. */
+const MIN_EDGES_AUTO = 20;
+const MAX_SETTINGS_TRIED = 4;
+/** Analysis failures that another setting may cure. */
+const RETRYABLE = new Set(["TOO_FEW_EDGES", "NO_RING"]);
+
+async function readOnce(client: DeviceClient, settings: MeasureSettings, opts: MeasureOptions, progress: (m: string) => void): Promise<Reading> {
   progress(`measuring: ${describeSetting(client, settings)}`);
   const raw = await client.measure(settings);
-  const capture = captureFromDevice(raw, client.identity, profile, client.transport.description, opts.label);
-  const analysis = analyzeCapture(capture);
-  return { capture, analysis, settings, prediction };
+  const capture = captureFromDevice(raw, client.identity, client.profile, client.transport.description, opts.label);
+  return { capture, analysis: analyzeCapture(capture), settings };
 }
 
 /** Analysis of a capture, with ring-level failures turned into a user-facing MeasureError. */
@@ -84,7 +103,8 @@ export function analyzeCapture(capture: CaptureV1): RingAnalysis {
   }
 }
 
-async function chooseSetting(client: DeviceClient, limits: PlanLimits, progress: (m: string) => void): Promise<SettingPrediction> {
+/** Probes gently, then returns the allowed settings best first (throws if none is allowed). */
+async function rankAfterProbe(client: DeviceClient, limits: PlanLimits, progress: (m: string) => void): Promise<SettingPrediction[]> {
   const profile = client.profile;
   const tank = profile.tanks.length - 1; // largest capacitance: lowest ring voltage for any current
   // Weakest drive first (largest resistor); step the current up only while nothing rings.
@@ -99,9 +119,9 @@ async function chooseSetting(client: DeviceClient, limits: PlanLimits, progress:
     const ranked = rankSettings(profile, est, limits);
     const best = ranked[0];
     if (best.refused) {
-      throw new MeasureError("NO_SAFE_SETTING", `no setting suits this part (~${(est.l_h * 1e6).toPrecision(3)} µH): ${best.refused}; measure it with a fixed --drive/--tank if you know it is safe`);
+      throw new MeasureError("NO_SAFE_SETTING", `no setting suits this part (~${formatSi(est.l_h, "H", 3)}): ${best.refused}; measure it with a fixed --drive/--tank if you know it is safe`);
     }
-    return best;
+    return ranked.filter((p) => p.refused === "");
   }
   throw new MeasureError(
     "NO_RING",

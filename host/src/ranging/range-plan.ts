@@ -6,7 +6,10 @@ import type { DeviceProfile } from "../device/profile.ts";
 
 export interface PartEstimate {
   l_h: number;
+  /** Loss as a series resistance, if all of it were in series. */
   rs_ohm: number;
+  /** The same loss as a parallel resistance (core loss), if all of it were in parallel. */
+  rp_ohm?: number;
 }
 
 export interface SettingPrediction {
@@ -56,7 +59,9 @@ export function predictSetting(profile: DeviceProfile, est: PartEstimate, drive:
     : i_final * Math.max(1 - Math.exp(-charge_us / tau_rise_us), 1 + Math.exp(-charge_us / tau_ring_us));
   const w0 = 1 / Math.sqrt(est.l_h * c);
   const z = Math.sqrt(est.l_h / c);
-  const q = z / est.rs_ohm;
+  // A probe cannot tell series from parallel (core) loss; they move Q in opposite directions
+  // with the tank, so plan for the worse of the two.
+  const q = Math.min(z / est.rs_ohm, est.rp_ohm !== undefined ? est.rp_ohm / z : Infinity);
   const alpha = w0 / (2 * q);
   // First peak a quarter period in, reduced by the decay over that quarter (notes §7).
   const peak = i0 * z * Math.exp((-alpha * Math.PI) / (2 * w0));
@@ -123,5 +128,5 @@ export function estimateFromProbe(
   const cycles = rises.length;
   const lnRatio = Math.log(Math.max((i0 * z) / h, 1.5));
   const q = Math.max(1, (Math.PI * cycles) / lnRatio);
-  return { l_h: l, rs_ohm: z / q };
+  return { l_h: l, rs_ohm: z / q, rp_ohm: z * q };
 }

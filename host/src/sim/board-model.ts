@@ -21,6 +21,10 @@ export interface BoardModel {
   diode_v: number;
   /** Ring amplitude at which the flyback clamp starts to conduct, volts. */
   clamp_v: number;
+  /** Dynamic resistance of the clamp once conducting, ohms. */
+  clamp_ohm: number;
+  /** Tank voltage coefficient k, C(v) = C0 (1 - k v^2); 0 for C0G and film. */
+  tank_k_per_v2: number;
   comparator: ComparatorModel;
   timer: TimerModel;
   device_id: number;
@@ -37,6 +41,8 @@ export function nominalBoard(): BoardModel {
     switch_on_ohm: 0.05,
     diode_v: 0,
     clamp_v: 36,
+    clamp_ohm: 1,
+    tank_k_per_v2: 0,
     comparator: { rising_v: 0.035, falling_v: -0.005, jitter_s: 4e-9, noise_v: 0.5e-3, delay_s: 60e-9 },
     timer: { tick_hz: 64e6, ppm: 0, dead_time_s: 40e-9 },
     device_id: 0x5eed0001,
@@ -54,6 +60,8 @@ export function referenceBoard(): BoardModel {
     switch_on_ohm: 0.05,
     diode_v: 0.35,
     clamp_v: 36,
+    clamp_ohm: 1,
+    tank_k_per_v2: 0,
     comparator: {
       rising_v: 0.035,
       falling_v: -0.005,
@@ -66,5 +74,15 @@ export function referenceBoard(): BoardModel {
     },
     timer: { tick_hz: 64e6, ppm: 11.5, dead_time_s: 30e-9 },
     device_id: 0x5eed0001,
+  };
+}
+
+/** The board with a scenario's bench conditions applied. */
+export function boardWithFixture(board: BoardModel, fixture: { capacitance_f?: number; tank_voltage_coefficient_per_v2?: number } | undefined): BoardModel {
+  if (!fixture) return board;
+  return {
+    ...board,
+    fixture_f: fixture.capacitance_f ?? board.fixture_f,
+    tank_k_per_v2: fixture.tank_voltage_coefficient_per_v2 ?? board.tank_k_per_v2,
   };
 }

@@ -117,7 +117,7 @@ export function ringSlope(ring: Ring, t: number): number {
   return waveSlope(asWave(ring), t);
 }
 
-/** Captured edges with comparator timing effects and the timer applied. */
+/** Captured edges of an exactly solved ring, with comparator timing and the timer applied. */
 export function captureEdges(
   ring: Ring, comp: ComparatorModel, timer: TimerModel, rng: Random, max_edges: number, window_s: number,
 ): EdgeList {
@@ -125,6 +125,18 @@ export function captureEdges(
   const offset = comp.offset_v ?? 0;
   // Solve for a few more crossings than the buffer holds: the dead time may drop some.
   const { times, levels } = crossingTimes(w, comp.rising_v + offset, comp.falling_v + offset, max_edges + 64, window_s);
+  return applyComparator(times, levels, times.map((t) => waveSlope(w, t)), comp, timer, rng, max_edges);
+}
+
+/**
+ * From exact threshold crossings (times, levels, ring slope at each) to captured ticks: delay,
+ * overdrive delay, jitter, band-limited noise through the slope, crystal error, quantisation,
+ * dead time and the buffer's capacity.
+ */
+export function applyComparator(
+  times: readonly number[], levels: readonly number[], slopes: readonly number[],
+  comp: ComparatorModel, timer: TimerModel, rng: Random, max_edges: number,
+): EdgeList {
   const rate = timer.tick_hz * (1 + timer.ppm * 1e-6);
   const ticks: number[] = [];
   const outLevels: number[] = [];
@@ -137,7 +149,7 @@ export function captureEdges(
       const rho = tauNoise > 0 ? Math.exp(-(times[k] - times[k - 1]) / tauNoise) : 0;
       noise = rho * noise + comp.noise_v * Math.sqrt(1 - rho * rho) * rng.normal();
     }
-    const slope = Math.abs(waveSlope(w, times[k]));
+    const slope = Math.abs(slopes[k]);
     const noiseShift = slope > 0 ? noise / slope : 0;
     const overdrive = comp.overdrive_v_s && slope > 0 ? Math.sqrt((2 * comp.overdrive_v_s) / slope) : 0;
     const t = times[k] + comp.delay_s + overdrive + comp.jitter_s * rng.normal() + noiseShift;

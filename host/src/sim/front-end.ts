@@ -8,7 +8,8 @@ import type { RingWave } from "../physics/ring-wave.ts";
 import { waveAmplitude } from "../physics/ring-wave.ts";
 import type { BoardModel } from "./board-model.ts";
 import type { EdgeList } from "./comparator-edges.ts";
-import { captureEdges } from "./comparator-edges.ts";
+import { applyComparator, captureEdges } from "./comparator-edges.ts";
+import { nonlinearCrossings } from "../physics/nonlinear-ring.ts";
 import type { Random } from "./random.ts";
 import type { PartModel } from "./scenario.ts";
 
@@ -19,7 +20,7 @@ export interface PulseResult {
   i0_a: number;
   /** Initial amplitude of the ring at the comparator, volts. */
   peak_v: number;
-  /** True when the ring would exceed the flyback clamp (not yet modelled beyond this flag). */
+  /** True when the flyback clamp conducted. */
   clamped: boolean;
 }
 
@@ -49,8 +50,23 @@ export function simulatePulse(
     return { edges: { ticks: [], levels: [] }, wave: null, i0_a: x0.i_a, peak_v: 0, clamped: false };
   }
   const peak = waveAmplitude(wave);
-  const edges = captureEdges(wave, board.comparator, board.timer, rng, capacity, window_s);
-  return { edges, wave, i0_a: x0.i_a, peak_v: peak, clamped: peak > board.clamp_v };
+  const saturates = part.saturation_current_a !== undefined;
+  if (!saturates && board.tank_k_per_v2 === 0 && peak <= board.clamp_v) {
+    const edges = captureEdges(wave, board.comparator, board.timer, rng, capacity, window_s);
+    return { edges, wave, i0_a: x0.i_a, peak_v: peak, clamped: false };
+  }
+  // Nonlinear parts or a ring that reaches the clamp: integrate numerically.
+  const off = board.comparator.offset_v ?? 0;
+  const nl = nonlinearCrossings(
+    circuit,
+    {
+      saturation_a: part.saturation_current_a, saturation_floor: part.saturation_floor_ratio,
+      tank_k_per_v2: board.tank_k_per_v2, clamp_v: board.clamp_v, clamp_ohm: board.clamp_ohm,
+    },
+    [x0.i_a, x0.v_td_v], board.comparator.rising_v + off, board.comparator.falling_v + off, capacity + 64, window_s,
+  );
+  const edges = applyComparator(nl.times, nl.levels, nl.slopes, board.comparator, board.timer, rng, capacity);
+  return { edges, wave, i0_a: x0.i_a, peak_v: nl.peak_v, clamped: nl.clamped };
 }
 
 /**

@@ -12,6 +12,18 @@ export interface PartModel {
   parallel_ohm?: number;
   /** The part's own self-capacitance, in parallel with the tank. */
   self_capacitance_f: number;
+  /** Core saturation: current where the differential inductance has fallen halfway to its floor. */
+  saturation_current_a?: number;
+  /** Differential inductance deep in saturation, as a fraction of the small-signal value. */
+  saturation_floor_ratio?: number;
+}
+
+/** Bench conditions that differ from the reference board for this scenario. */
+export interface FixtureModel {
+  /** Test-lead capacitance in parallel with the tank (replaces the board's). */
+  capacitance_f?: number;
+  /** Tank voltage coefficient k, C(v) = C0 (1 - k v^2): a class II ceramic fitted as the tank. */
+  tank_voltage_coefficient_per_v2?: number;
 }
 
 export interface Scenario {
@@ -20,6 +32,7 @@ export interface Scenario {
   name: string;
   story: string;
   part: PartModel;
+  fixture?: FixtureModel;
   seed: number;
 }
 
@@ -38,7 +51,8 @@ function positive(obj: Record<string, unknown>, key: string, path: string, optio
     if (optional) return undefined;
     throw new ScenarioError(path + key, "is missing (a positive number in SI units is required)");
   }
-  if (typeof v !== "number" || !Number.isFinite(v) || v < 0 || (v === 0 && key !== "self_capacitance_f")) {
+  const zeroAllowed = key === "self_capacitance_f" || key === "capacitance_f";
+  if (typeof v !== "number" || !Number.isFinite(v) || v < 0 || (v === 0 && !zeroAllowed)) {
     throw new ScenarioError(path + key, `must be a positive finite number, got ${JSON.stringify(v)}`);
   }
   return v;
@@ -61,10 +75,24 @@ export function validateScenario(raw: unknown): Scenario {
     series_ohm: positive(p, "series_ohm", "part.")!,
     parallel_ohm: positive(p, "parallel_ohm", "part.", true),
     self_capacitance_f: positive(p, "self_capacitance_f", "part.", true) ?? 0,
+    saturation_current_a: positive(p, "saturation_current_a", "part.", true),
+    saturation_floor_ratio: positive(p, "saturation_floor_ratio", "part.", true),
   };
+  if (part.saturation_floor_ratio !== undefined && part.saturation_floor_ratio >= 1) {
+    throw new ScenarioError("part.saturation_floor_ratio", "must be below 1 (a fraction of the small-signal inductance)");
+  }
+  let fixture: FixtureModel | undefined;
+  if (o.fixture !== undefined) {
+    if (typeof o.fixture !== "object" || o.fixture === null || Array.isArray(o.fixture)) throw new ScenarioError("fixture", "must be an object");
+    const f = o.fixture as Record<string, unknown>;
+    fixture = {
+      capacitance_f: positive(f, "capacitance_f", "fixture.", true),
+      tank_voltage_coefficient_per_v2: positive(f, "tank_voltage_coefficient_per_v2", "fixture.", true),
+    };
+  }
   const seed = o.seed === undefined ? 1 : o.seed;
   if (typeof seed !== "number" || !Number.isInteger(seed)) throw new ScenarioError("seed", "must be an integer");
-  return { format: "henrytick-scenario", version: 1, name: o.name, story, part, seed };
+  return { format: "henrytick-scenario", version: 1, name: o.name, story, part, ...(fixture ? { fixture } : {}), seed };
 }
 
 /** Folder of the demo scenarios shipped with the host package. */
