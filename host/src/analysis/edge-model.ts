@@ -70,6 +70,7 @@ export function evaluateEdges(
   const wd = p[P_WD];
   const phi = p[P_PHI];
   const a0 = Math.exp(p[P_LNA]);
+  const invA0 = 1 / a0;
   const alpha = p[P_ALPHA];
   const r = out.r ?? null;
   const jac = out.jac ?? null;
@@ -88,20 +89,20 @@ export function evaluateEdges(
     const m = ms[k];
     if (m !== m || (mask !== null && !(mask[k] > 0))) continue;
     const t = ts[k];
-    const amp = a0 * Math.exp(-alpha * t);
     const rise = rising[k] === 1;
     const level = rise ? vh_v : vl_v;
     const vt = var_t_s2 !== null ? var_t_s2[k] : 0;
     if (form[k] === 1) {
-      let u = level / amp;
+      let u = level * invA0 * Math.exp(alpha * t);
       if (u > U_MAX) u = U_MAX;
       else if (u < -U_MAX) u = -U_MAX;
-      const sq = Math.sqrt(1 - u * u);
-      const su = rise ? u : -u;
-      const c = su / sq;
-      const gtt = (-alpha2 * c) / (1 - u * u);
+      const cos2 = 1 - u * u;
+      const invSq = 1 / Math.sqrt(cos2);
+      const as = Math.asin(u);
+      const c = (rise ? u : -u) * invSq;
+      const gtt = -alpha2 * c * invSq * invSq;
       const sc = scale[k];
-      if (r !== null) r[k] = sc * (wd * t - m * Math.PI - phi - (rise ? Math.asin(u) : -Math.asin(u)) - 0.5 * gtt * vt);
+      if (r !== null) r[k] = sc * (wd * t - m * Math.PI - phi - (rise ? as : -as) - 0.5 * gtt * vt);
       if (jac !== null) {
         const o = 4 * k;
         jac[o] = sc * t;
@@ -113,6 +114,7 @@ export function evaluateEdges(
       if (curvature !== null) curvature[k] = sc * gtt;
       continue;
     }
+    const amp = a0 * Math.exp(-alpha * t);
     const x = wd * t - phi;
     const v = amp * Math.sin(x);
     const ac = amp * Math.cos(x);

@@ -121,7 +121,7 @@ export function estimateNoise(
     const change = (Math.abs(na - a) + Math.abs(nb - b)) / (a + b);
     a = na;
     b = nb;
-    if (change < 1e-5) break;
+    if (change < 1e-4) break; // the weights need the noise to a few per cent at most
   }
   return { sigma_t2: Math.max(0, b / xMean - q_s2), sigma_v2: a };
 }
