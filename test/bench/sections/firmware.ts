@@ -1,11 +1,36 @@
-// Firmware budgets: release wasm size and wire bytes per edge of typical captures.
+// Firmware budgets: release wasm size, wire bytes per edge of typical captures, and the native
+// C build's section sizes for Cortex-M0+ (armv6m) and Cortex-M4 (armv7em).
 
 import { statSync } from "node:fs";
 import { firmwareWasmPath } from "../../../host/src/sim/firmware-image.ts";
 import { SimTester } from "../../../host/src/sim/sim-tester.ts";
 import { loadScenario, listScenarios } from "../../../host/src/sim/scenario.ts";
 import { encodeCommand } from "../../../host/src/device/frames.ts";
+import { buildArm, hasArmGcc, hasWasm2c } from "../../../firmware/ports/native-build.ts";
+import type { BenchFigures } from "./types.ts";
 import type { BenchSection } from "./types.ts";
+
+/** Template port + runtime + wasm2c output, linked for each Cortex-M target (Berkeley sizes). */
+function armFigures(): { figures: BenchFigures; notes: Record<string, string> } {
+  const figures: BenchFigures = {};
+  const notes: Record<string, string> = {};
+  for (const target of ["armv6m", "armv7em"] as const) {
+    const keys = ["text", "data", "bss"].map((k) => `firmware.${target}_${k}_bytes`);
+    if (!hasWasm2c || !hasArmGcc) {
+      for (const k of keys) figures[k] = null;
+      notes[keys[0]] = "not measured: install Debian packages wabt, gcc-arm-none-eabi, libnewlib-arm-none-eabi";
+      continue;
+    }
+    const s = buildArm(target);
+    figures[keys[0]] = s.text_bytes;
+    figures[keys[1]] = s.data_bytes;
+    figures[keys[2]] = s.bss_bytes;
+    const cpu = target === "armv6m" ? "Cortex-M0+" : "Cortex-M4";
+    notes[keys[0]] = `${cpu}, -Os, template port linked with newlib-nano; .text includes .rodata and start-up`;
+    notes[keys[2]] = "includes the firmware's 64 KiB linear memory";
+  }
+  return { figures, notes };
+}
 
 /** Bytes on the wire per captured edge, header and trailer included, for one capture. */
 function wireBytesPerEdge(scenario: string, drive: number, tank: number, charge_us: number): { bytes: number; edges: number } {
@@ -47,14 +72,17 @@ export const firmwareSection: BenchSection = {
       bytes += r.bytes;
       edges += r.edges;
     }
+    const arm = armFigures();
     return {
       figures: {
         "firmware.wasm_bytes": wasm,
         "firmware.wire_bytes_per_edge": bytes / edges,
+        ...arm.figures,
       },
       notes: {
         "firmware.wasm_bytes": "release build, goal <= 12288",
         "firmware.wire_bytes_per_edge": `CH..CE lines over ${edges} edges of 4 demo captures, goal <= 3.5`,
+        ...arm.notes,
       },
     };
   },

@@ -1,0 +1,104 @@
+// Builds the native C firmware: wasm2c on the release wasm, then the host harness, the template
+// port, and Cortex-M0+ / Cortex-M4 images. Used by the tests and the benchmark; everything it
+// produces goes to firmware/build/native/ (ignored by git). Needs the Debian packages `wabt`
+// (wasm2c and its wasm-rt.h) and, for the ARM images, `gcc-arm-none-eabi`.
+
+import { execFileSync, spawnSync } from "node:child_process";
+import { copyFileSync, existsSync, mkdirSync, statSync } from "node:fs";
+import { dirname, join } from "node:path";
+import { fileURLToPath } from "node:url";
+
+const PORTS = dirname(fileURLToPath(import.meta.url));
+const FIRMWARE = join(PORTS, "..");
+export const NATIVE_DIR = join(FIRMWARE, "build", "native");
+const WASM = join(FIRMWARE, "build", "henrytick.wasm");
+
+function found(cmd: string): boolean {
+  return spawnSync(cmd, ["--version"], { stdio: "ignore" }).status === 0;
+}
+
+/** wasm2c's runtime header, which must come from the same wabt as wasm2c itself. */
+function wasmRtHeader(): string | null {
+  for (const dir of [process.env.WABT_INCLUDE, "/usr/include", "/usr/local/include"]) {
+    if (dir && existsSync(join(dir, "wasm-rt.h"))) return join(dir, "wasm-rt.h");
+  }
+  return null;
+}
+
+export const hasWasm2c = found("wasm2c") && wasmRtHeader() !== null;
+export const hasHostGcc = found("gcc");
+/** The cross compiler and its C library (newlib: setjmp, memcpy and the headers wasm-rt.h uses). */
+export const hasArmGcc = found("arm-none-eabi-gcc") &&
+  spawnSync("arm-none-eabi-gcc", ["-print-file-name=nano.specs"], { encoding: "utf8" }).stdout.trim() !== "nano.specs";
+
+/** Flags for compiling the generated C: our runtime's configuration, forced in first. */
+const GENERATED_FLAGS = ["-std=c11", "-Werror=implicit-function-declaration", "-include", join(PORTS, "runtime", "henrytick-rt.h")];
+const INCLUDES = (dir: string) => ["-I", dir, "-I", join(PORTS, "runtime")];
+
+/** Runs wasm2c on the release wasm (if newer than its output); returns the output directory. */
+export function generateC(): string {
+  const dir = join(NATIVE_DIR, "gen");
+  mkdirSync(dir, { recursive: true });
+  const c = join(dir, "henrytick.c");
+  if (!existsSync(c) || statSync(c).mtimeMs < statSync(WASM).mtimeMs) {
+    execFileSync("wasm2c", [WASM, "-o", c, "-n", "henrytick"]);
+  }
+  // Only this one header is copied: adding /usr/include to a cross build would pull in glibc.
+  copyFileSync(wasmRtHeader()!, join(dir, "wasm-rt.h"));
+  return dir;
+}
+
+function gcc(cc: string, args: string[]): void {
+  const r = spawnSync(cc, args, { encoding: "utf8" });
+  if (r.status !== 0) throw new Error(`${cc} failed:\n${r.stderr}`);
+}
+
+/** Builds the host harness (firmware/ports/host/harness.c); returns the executable's path. */
+export function buildHostHarness(): string {
+  const gen = generateC();
+  const out = join(NATIVE_DIR, "harness");
+  gcc("gcc", [
+    // The harness reads its script with POSIX getline/strtok_r; the forced include comes first,
+    // so the feature macro must be on the command line.
+    "-O2", "-Wall", "-D_POSIX_C_SOURCE=200809L", ...GENERATED_FLAGS, ...INCLUDES(gen), "-o", out,
+    join(gen, "henrytick.c"), join(PORTS, "runtime", "henrytick-rt.c"), join(PORTS, "host", "harness.c"),
+  ]);
+  return out;
+}
+
+/** Compiles and links the template port with the host compiler (it must build as shipped). */
+export function buildTemplateHost(): string {
+  const gen = generateC();
+  const out = join(NATIVE_DIR, "template-host");
+  gcc("gcc", [
+    "-O2", "-Wall", "-Wextra", ...GENERATED_FLAGS, ...INCLUDES(gen), "-o", out,
+    join(gen, "henrytick.c"), join(PORTS, "runtime", "henrytick-rt.c"), join(PORTS, "template", "port-template.c"),
+  ]);
+  return out;
+}
+
+export interface ArmSizes {
+  text_bytes: number;
+  data_bytes: number;
+  bss_bytes: number;
+}
+
+export const ARM_TARGETS = {
+  armv6m: ["-mcpu=cortex-m0plus", "-mthumb"],
+  armv7em: ["-mcpu=cortex-m4", "-mthumb", "-mfloat-abi=soft"],
+} as const;
+
+/** Links the template port for a Cortex-M target and returns its section sizes (Berkeley). */
+export function buildArm(target: keyof typeof ARM_TARGETS): ArmSizes {
+  const gen = generateC();
+  const out = join(NATIVE_DIR, `template-${target}.elf`);
+  gcc("arm-none-eabi-gcc", [
+    ...ARM_TARGETS[target], "-Os", "-DNDEBUG", "-ffunction-sections", "-fdata-sections", ...GENERATED_FLAGS, ...INCLUDES(gen),
+    "-nostartfiles", "--specs=nano.specs", "--specs=nosys.specs", "-Wl,--gc-sections", "-T", join(PORTS, "arm", "generic.ld"),
+    "-o", out,
+    join(gen, "henrytick.c"), join(PORTS, "runtime", "henrytick-rt.c"), join(PORTS, "template", "port-template.c"),
+    join(PORTS, "arm", "startup.c"),
+  ]);
+  const text = execFileSync("arm-none-eabi-size", [out], { encoding: "utf8" }).trim().split("\n")[1].trim().split(/\s+/);
+  return { text_bytes: Number(text[0]), data_bytes: Number(text[1]), bss_bytes: Number(text[2]) };
+}
