@@ -32,6 +32,8 @@ export interface RingBound {
   l_sd_h: number;
   q_sd: number;
   f0_sd_hz: number;
+  /** Damped frequency wd/(2 pi). */
+  fd_sd_hz: number;
   alpha_sd_per_s: number;
   /** Edges that entered the information (those the true ring produces). */
   edges: number;
@@ -69,12 +71,13 @@ export function ringCramerRao(
     for (let i = 0; i < 4; i++) for (let j = 0; j < 4; j++) fisher[i * 4 + j] += (jac[4 * k + i] * jac[4 * k + j]) / v;
   }
   const cov = invertSymmetric(4, fisher);
-  if (!cov) return { l_sd_h: Infinity, q_sd: Infinity, f0_sd_hz: Infinity, alpha_sd_per_s: Infinity, edges: used };
+  if (!cov) return { l_sd_h: Infinity, q_sd: Infinity, f0_sd_hz: Infinity, fd_sd_hz: Infinity, alpha_sd_per_s: Infinity, edges: used };
   const rq = ringQuantities(truth.wd_rad_s, truth.alpha_per_s, [cov[0], cov[3], cov[15]], truth.tank_c_f, 0, 0);
   return {
     l_sd_h: rq.u.inductance_h,
     q_sd: rq.u.q,
     f0_sd_hz: rq.u.f0_hz,
+    fd_sd_hz: Math.sqrt(cov[0]) / (2 * Math.PI),
     alpha_sd_per_s: Math.sqrt(cov[15]),
     edges: used,
   };
