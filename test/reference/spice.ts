@@ -24,6 +24,7 @@ export interface SpiceRun {
  */
 export function frontEndNetlist(c: FrontEndCircuit, switch_on_ohm: number, diode_v: number, charge_s: number, stop_s: number, max_step_s: number, out: string): string {
   const rp = Number.isFinite(c.rp_ohm) ? `RP1 t d ${c.rp_ohm}\n` : "";
+  const rsense = c.sense_ohm !== undefined && Number.isFinite(c.sense_ohm) ? `RSENSE d 0 ${c.sense_ohm}\n` : "";
   return `* henrytick front end, ring-down validation
 V1 vs 0 ${c.supply_v}
 RD vs t ${c.r_ohm}
@@ -31,7 +32,7 @@ L1 t n1 ${c.l_h}
 RS1 n1 d ${c.rs_ohm}
 ${rp}C1 t d ${c.c_f}
 CSW1 d 0 ${c.csw_f}
-VF d x ${diode_v}
+${rsense}VF d x ${diode_v}
 S1 x 0 g 0 SWM
 .model SWM SW(Ron=${switch_on_ohm} Roff=1e13 Vt=0.5 Vh=0.1)
 VG g 0 PWL(0 1 ${charge_s} 1 ${charge_s + 1e-12} 0)
@@ -74,13 +75,15 @@ export function runSpice(netlist: string, charge_s: number): SpiceRun {
   }
 }
 
-/** Upward zero crossings (linear interpolation) after t > 0. */
-export function upwardZeroCrossings(r: SpiceRun): number[] {
+/** Upward crossings of `level` (the ring's rest value; linear interpolation) after t > 0. */
+export function upwardZeroCrossings(r: SpiceRun, level = 0): number[] {
   const out: number[] = [];
   for (let i = 1; i < r.t_s.length; i++) {
     if (r.t_s[i - 1] <= 0) continue;
-    if (r.v_v[i - 1] < 0 && r.v_v[i] >= 0) {
-      const f = -r.v_v[i - 1] / (r.v_v[i] - r.v_v[i - 1]);
+    const a = r.v_v[i - 1] - level;
+    const b = r.v_v[i] - level;
+    if (a < 0 && b >= 0) {
+      const f = -a / (b - a);
       out.push(r.t_s[i - 1] + f * (r.t_s[i] - r.t_s[i - 1]));
     }
   }

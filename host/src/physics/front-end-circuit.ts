@@ -4,7 +4,8 @@
 // part's other end, on the switch). States x = [i_L, v_TD, v_D]:
 //   L di/dt        = v_TD - Rs i
 //   C dv_TD/dt     = i_R - i - v_TD / Rp             C = tank + fixture + part self-capacitance
-//   Csw dv_D/dt    = i_R                             Csw: switch-node capacitance to ground
+//   Csw dv_D/dt    = i_R - v_D / Rsense              Csw: switch-node capacitance to ground;
+//                                                    Rsense: the comparator's input divider
 //   i_R            = (V - v_D - v_TD) / R
 // Linear, so x(t) = x_eq + sum of modes; the comparator sees v = v_D - v_T = -v_TD. The
 // characteristic cubic has one fast real root (R with Csw) and the ring's complex pair, which is
@@ -24,6 +25,8 @@ export interface FrontEndCircuit {
   /** Drive resistance from the supply to T while the switch is open. */
   r_ohm: number;
   supply_v: number;
+  /** The comparator divider on D, to ground (Infinity when absent). */
+  sense_ohm?: number;
 }
 
 export interface InitialState {
@@ -35,13 +38,14 @@ export interface InitialState {
 /** x' = A x + b for the circuit above. */
 export function stateMatrix(c: FrontEndCircuit): { a: number[][]; b: number[] } {
   const gp = Number.isFinite(c.rp_ohm) ? 1 / c.rp_ohm : 0;
+  const gs = c.sense_ohm !== undefined && Number.isFinite(c.sense_ohm) ? 1 / c.sense_ohm : 0;
   const rc = c.r_ohm * c.c_f;
   const rcs = c.r_ohm * c.csw_f;
   return {
     a: [
       [-c.rs_ohm / c.l_h, 1 / c.l_h, 0],
       [-1 / c.c_f, -1 / rc - gp / c.c_f, -1 / rc],
-      [0, -1 / rcs, -1 / rcs],
+      [0, -1 / rcs, -1 / rcs - gs / c.csw_f],
     ],
     b: [0, c.supply_v / rc, c.supply_v / rcs],
   };
@@ -49,7 +53,7 @@ export function stateMatrix(c: FrontEndCircuit): { a: number[][]; b: number[] } 
 
 /** Exact closed form of the comparator voltage v(t) = -v_TD(t). Throws when it does not ring. */
 export function solveRing(c: FrontEndCircuit, x0: InitialState): RingWave {
-  const { a } = stateMatrix(c);
+  const { a, b } = stateMatrix(c);
   // Characteristic polynomial l^3 + p l^2 + q l + r of the 3x3 matrix.
   const tr = a[0][0] + a[1][1] + a[2][2];
   const minors =
@@ -66,10 +70,13 @@ export function solveRing(c: FrontEndCircuit, x0: InitialState): RingWave {
   const alpha = -re;
   const wd = im;
   const lambda3 = -p - 2 * re;
-  // y = x - x_eq with x_eq = [0, 0, V]; v = -v_TD and its derivatives from y' = A y.
-  const y0 = [x0.i_a, x0.v_td_v, x0.v_d_v - c.supply_v];
+  // y = x - x_eq with A x_eq = -b (at rest: no ring current, D near the supply; the sense
+  // divider draws a few microamperes through the part); v = -v_TD and its derivatives from y' = A y.
+  const xeq = solve3(a, b.map((v) => -v));
+  const y0 = [x0.i_a - xeq[0], x0.v_td_v - xeq[1], x0.v_d_v - xeq[2]];
   const y1 = mul(a, y0);
   const y2 = mul(a, y1);
+  const vEq = -xeq[1];
   const v0 = -y0[1];
   const v1 = -y1[1];
   const v2 = -y2[1];
@@ -77,7 +84,15 @@ export function solveRing(c: FrontEndCircuit, x0: InitialState): RingWave {
   const s = (v2 + 2 * alpha * v1 + w0sq * v0) / (lambda3 * lambda3 + 2 * alpha * lambda3 + w0sq);
   const pc = v0 - s;
   const qc = (v1 + alpha * pc - lambda3 * s) / wd;
-  return { alpha_per_s: alpha, wd_rad_s: wd, p_v: pc, q_v: qc, s_v: s, lambda3_per_s: lambda3 };
+  return { alpha_per_s: alpha, wd_rad_s: wd, p_v: pc, q_v: qc, s_v: s, lambda3_per_s: lambda3, offset_v: vEq };
+}
+
+/** Solves the 3x3 system m x = r by Cramer's rule (the matrices here are tiny and well scaled per row). */
+function solve3(m: number[][], r: number[]): number[] {
+  const det = (q: number[][]) =>
+    q[0][0] * (q[1][1] * q[2][2] - q[1][2] * q[2][1]) - q[0][1] * (q[1][0] * q[2][2] - q[1][2] * q[2][0]) + q[0][2] * (q[1][0] * q[2][1] - q[1][1] * q[2][0]);
+  const d = det(m);
+  return [0, 1, 2].map((k) => det(m.map((row, i) => row.map((v, j) => (j === k ? r[i] : v)))) / d);
 }
 
 /** The ring's root of the cubic, Newton-polished from the second-order estimate. */

@@ -56,7 +56,8 @@ export function nonlinearCrossings(
 ): NonlinearResult {
   const cTank = c.c_f + c.csw_f;
   const w0 = 1 / Math.sqrt(c.l_h * cTank);
-  const gp = (Number.isFinite(c.rp_ohm) ? 1 / c.rp_ohm : 0) + w0 * w0 * c.csw_f * c.csw_f * c.r_ohm;
+  const gSense = c.sense_ohm !== undefined && Number.isFinite(c.sense_ohm) ? 1 / c.sense_ohm : 0;
+  const gp = (Number.isFinite(c.rp_ohm) ? 1 / c.rp_ohm : 0) + w0 * w0 * c.csw_f * c.csw_f * c.r_ohm + gSense;
   const clampV = nl.clamp_v ?? Infinity;
   const gClamp = 1 / (nl.clamp_ohm ?? 1);
   const k = nl.tank_k_per_v2 ?? 0;

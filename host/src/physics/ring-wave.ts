@@ -1,5 +1,5 @@
 // A ring waveform as the comparator sees it, positive first:
-//   v(t) = e^(-alpha t) (P cos wd t + Q sin wd t) + S e^(lambda3 t)
+//   v(t) = e^(-alpha t) (P cos wd t + Q sin wd t) + S e^(lambda3 t) + offset
 // The exponential term is the front end's fast third pole (the drive resistor charging the
 // switch-node capacitance); it dies within nanoseconds but shapes the first edge. The plain
 // second-order ring of measurement notes §1 is the case P = S = 0, Q = A0.
@@ -11,6 +11,8 @@ export interface RingWave {
   q_v: number;
   s_v: number;
   lambda3_per_s: number;
+  /** Rest value of v (microvolts: the sense divider's current through the winding). Default 0. */
+  offset_v?: number;
 }
 
 export function waveValue(w: RingWave, t: number): number {
@@ -18,7 +20,7 @@ export function waveValue(w: RingWave, t: number): number {
   const c = Math.cos(w.wd_rad_s * t);
   const s = Math.sin(w.wd_rad_s * t);
   const fast = w.s_v !== 0 ? w.s_v * Math.exp(w.lambda3_per_s * t) : 0;
-  return e * (w.p_v * c + w.q_v * s) + fast;
+  return e * (w.p_v * c + w.q_v * s) + fast + (w.offset_v ?? 0);
 }
 
 export function waveSlope(w: RingWave, t: number): number {

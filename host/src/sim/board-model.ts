@@ -15,6 +15,8 @@ export interface BoardModel {
   fixture_f: number;
   /** Switch-node capacitance from the part's lower end to ground (blocking diode + switch), farads. */
   switch_node_f: number;
+  /** The comparator's input divider from D to ground (its T-side twin is swamped by R), ohms. */
+  sense_ohm: number;
   /** Low-side switch on-resistance, ohms. */
   switch_on_ohm: number;
   /** Forward drop of the blocking diode in series with the switch, volts. */
@@ -38,6 +40,7 @@ export function nominalBoard(): BoardModel {
     tank_f: [1e-9, 10e-9, 100e-9, 1e-6],
     fixture_f: 0,
     switch_node_f: 0,
+    sense_ohm: Infinity,
     switch_on_ohm: 0.05,
     diode_v: 0,
     clamp_v: 36,
@@ -57,6 +60,7 @@ export function referenceBoard(): BoardModel {
     tank_f: [1.0031e-9, 9.978e-9, 100.44e-9, 0.99620e-6],
     fixture_f: 2.5e-12,
     switch_node_f: 18e-12,
+    sense_ohm: 400e3,
     switch_on_ohm: 0.05,
     diode_v: 0.35,
     clamp_v: 36,

@@ -34,6 +34,7 @@ export function frontEndCircuit(board: BoardModel, part: PartModel, drive: numbe
     csw_f: Math.max(board.switch_node_f, 1e-18), // a vanishing Csw keeps the third pole finite
     r_ohm: board.drive_ohm[drive],
     supply_v: board.supply_v,
+    sense_ohm: board.sense_ohm,
   };
 }
 
