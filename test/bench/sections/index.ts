@@ -1,7 +1,8 @@
 // The benchmark sections, in the order they run. Each owner adds its own file here.
 import { e2eSection } from "./e2e.ts";
 import { firmwareSection } from "./firmware.ts";
+import { simSection } from "./sim.ts";
 import { ptySection } from "./pty.ts";
 import type { BenchSection } from "./types.ts";
 
-export const sections: BenchSection[] = [firmwareSection, e2eSection, ptySection];
+export const sections: BenchSection[] = [firmwareSection, e2eSection, ptySection, simSection];
