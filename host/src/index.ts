@@ -19,3 +19,8 @@ export type { RingInput, RingAnalysis } from "./analysis/index.ts";
 export { SimTester } from "./sim/sim-tester.ts";
 export { loadScenario, listScenarios } from "./sim/scenario.ts";
 export type { Scenario, PartModel } from "./sim/scenario.ts";
+export { PtyDevice, PtyDeviceError } from "./sim/pty-device.ts";
+export type { PtyDeviceOptions } from "./sim/pty-device.ts";
+export { referenceBoard, nominalBoard } from "./sim/board-model.ts";
+export type { BoardModel } from "./sim/board-model.ts";
+export { expectedReading } from "./sim/front-end.ts";
