@@ -66,6 +66,17 @@ export function buildHostHarness(): string {
   return out;
 }
 
+/** Builds the runtime's own checks (firmware/ports/host/runtime-check.c). */
+export function buildRuntimeCheck(): string {
+  const gen = generateC();
+  const out = join(NATIVE_DIR, "runtime-check");
+  gcc("gcc", [
+    "-O2", "-Wall", "-Wextra", ...GENERATED_FLAGS, ...INCLUDES(gen), "-o", out,
+    join(PORTS, "runtime", "henrytick-rt.c"), join(PORTS, "host", "runtime-check.c"),
+  ]);
+  return out;
+}
+
 /** Compiles and links the template port with the host compiler (it must build as shipped). */
 export function buildTemplateHost(): string {
   const gen = generateC();

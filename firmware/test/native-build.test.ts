@@ -10,7 +10,7 @@ import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { encodeCommand } from "../../host/src/device/frames.ts";
 import { SimTester } from "../../host/src/sim/sim-tester.ts";
-import { NATIVE_DIR, buildArm, buildHostHarness, buildTemplateHost, hasArmGcc, hasHostGcc, hasWasm2c } from "../ports/native-build.ts";
+import { NATIVE_DIR, buildArm, buildHostHarness, buildRuntimeCheck, buildTemplateHost, hasArmGcc, hasHostGcc, hasWasm2c } from "../ports/native-build.ts";
 import { rawEntries } from "./capture-stream.ts";
 import { ScriptedPort } from "./scripted-port.ts";
 
@@ -105,6 +105,13 @@ describe(`native C build (wasm2c)${nativeNote}`, () => {
     const { wasm, c } = runBoth("raw16", rawScript());
     expect(wasm.toString("latin1").match(/^CE /gm)).toHaveLength(5);
     expect(c.equals(wasm)).toBe(true);
+  });
+
+  it.skipIf(!canNative)(`runtime: bounded memory, refused growth, traps through the port's hook${nativeNote}`, () => {
+    const r = spawnSync(buildRuntimeCheck(), [], { encoding: "utf8" });
+    expect(r.stdout).not.toContain("FAIL");
+    expect(r.stdout.trim().split("\n")).toHaveLength(10);
+    expect(r.status).toBe(0);
   });
 
   it.skipIf(!canNative)(`compiles and links the template port with the host compiler${nativeNote}`, () => {
