@@ -7,7 +7,7 @@
 import { assignHalfCycles } from "./cycle-bookkeeping.ts";
 import { diagnose } from "./diagnostics.ts";
 import { FitWorkspace, fitEdgeModel, type FitLimits } from "./edge-fit.ts";
-import { chooseResidualForms, evaluateEdges, makeEdgeSet, P_ALPHA, P_LNA, P_WD, type EdgeSet } from "./edge-model.ts";
+import { chooseResidualForms, evaluateEdges, makeEdgeSet, P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
 import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
 import { reassignHalfCycles } from "./model-bookkeeping.ts";
 import { edgeTimeVariances, edgeVariances, estimateNoise, type NoiseEstimate } from "./noise-model.ts";
@@ -115,6 +115,7 @@ export function fitRing(input: RingInput): FitState {
   // timing variances whenever `cached` is true: then neither the round's fit nor its checks
   // evaluate the model again at the same point.
   let cached = false;
+  let pIndexed: Float64Array | null = null;
   for (let round = 0; ; round++) {
     // Residual forms follow the model while it is still moving (rounds 0 and 1), then stay, so
     // that the weights of a round and its residuals use the same scales.
@@ -130,8 +131,14 @@ export function fitRing(input: RingInput): FitState {
     cached = fit.fresh;
     if (round === MAX_ROUNDS) break;
 
-    for (let k = 0; k < n; k++) sd[k] = Math.sqrt(variance[k]);
-    const moved = reassignHalfCycles(p, e, c.vh_v, c.vl_v, sd, reasons);
+    // Re-index from the model unless it has barely moved since the last re-indexing (then no
+    // edge can change half-cycle: the model phase at the last edge moved by under 0.01 rad).
+    let moved = 0;
+    if (!pIndexed || phaseShift(pIndexed, p, limits.t_last_s) > 0.01) {
+      for (let k = 0; k < n; k++) sd[k] = Math.sqrt(variance[k]);
+      moved = reassignHalfCycles(p, e, c.vh_v, c.vl_v, sd, reasons);
+      pIndexed = p;
+    }
     for (let k = 0; k < n; k++) assigned[k] = e.m[k] === e.m[k] ? 1 : 0;
     if (moved > 0 || !cached) {
       evaluateEdges(p, e, c.vh_v, c.vl_v, null, varT, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
@@ -142,9 +149,12 @@ export function fitRing(input: RingInput): FitState {
     if (countFinite(e.m) < MIN_EDGES || !cov) throw noRing("too few edges fit a ring");
     computeLeverage(cov, ws.jac, w, used, leverage);
     noise = estimateNoise(ws.r, ws.slope, ws.curvature, varT, leverage, used, q, noise);
-    const oldVariance = variance.slice();
+    oldVarT.set(varT);
+    oldVariance.set(variance);
     edgeTimeVariances(q, noise, ws.slope, p[P_WD], assigned, varT);
     edgeVariances(q, noise, ws.slope, ws.curvature, varT, variance);
+    // The residuals' second-order term follows the new timing variances (edge-model.ts).
+    for (let k = 0; k < n; k++) if (assigned[k] > 0) ws.r[k] -= 0.5 * ws.curvature[k] * (varT[k] - oldVarT[k]);
     // A 2 % change of the weights moves the estimates by a negligible second-order amount.
     const noiseMoved = meanRelChange(oldVariance, variance, used) > 0.02;
 
@@ -152,12 +162,16 @@ export function fitRing(input: RingInput): FitState {
     // on a MAD scale. Rejected edges are re-tested every round, so an edge set aside under a
     // poor early model comes back.
     let nz = 0;
-    for (let k = 0; k < n; k++) if (used[k] > 0) z[nz++] = ws.r[k] / Math.sqrt(variance[k]);
-    zScale = Math.max(0.5, madSigma(z, nz));
+    for (let k = 0; k < n; k++) {
+      if (!(assigned[k] > 0)) continue;
+      z[k] = ws.r[k] / Math.sqrt(variance[k]);
+      if (used[k] > 0) zUsed[nz++] = z[k];
+    }
+    zScale = Math.max(0.5, madSigma(zUsed, nz, zWork));
     let flipped = 0;
     for (let k = 0; k < n; k++) {
       if (!(assigned[k] > 0)) continue;
-      const zk = ws.r[k] / Math.sqrt(variance[k]) / zScale;
+      const zk = z[k] / zScale;
       robust[k] = huberWeight(zk, HUBER_C);
       if (round === 0) continue;
       const isOut = Math.abs(zk) > (outlier[k] ? REJECT_Z - 0.5 : REJECT_Z) ? 1 : 0;
@@ -281,6 +295,14 @@ function computeLeverage(cov: Float64Array, jac: Float64Array, w: Float64Array, 
     }
     out[k] = Math.min(1, Math.max(0, s * w[k]));
   }
+}
+
+/** Largest change of the model phase (rad) over the capture, including amplitude terms. */
+function phaseShift(a: Float64Array, b: Float64Array, t_last_s: number): number {
+  return (
+    Math.abs(b[P_WD] - a[P_WD]) * t_last_s + Math.abs(b[P_PHI] - a[P_PHI]) +
+    Math.abs(b[P_LNA] - a[P_LNA]) + Math.abs(b[P_ALPHA] - a[P_ALPHA]) * t_last_s
+  );
 }
 
 function meanRelChange(before: Float64Array, after: Float64Array, used: Float64Array): number {
