@@ -194,7 +194,9 @@ export function fitRing(input: RingInput): FitState {
   // Edges that only a timing noise of a tenth of a period (36 degrees) or more can explain, or a
   // fit that sets aside most edges, are not a ring: refuse rather than report a number.
   const period = (2 * Math.PI) / p[P_WD];
-  const typical = Math.sqrt(median(varT.filter((_, k) => used[k] > 0)));
+  let nt = 0;
+  for (let k = 0; k < n; k++) if (used[k] > 0) zWork[nt++] = varT[k];
+  const typical = Math.sqrt(median(zWork, nt, zUsed));
   if (nUsed < 0.5 * n || !(typical < 0.1 * period)) throw noRing("the edges do not follow one damped sine");
   return {
     checked: c, edges: e, p, cov, r: ws.r.slice(), slope: ws.slope.slice(), variance, used,
@@ -281,18 +283,20 @@ function initialVariance(p: Float64Array, e: EdgeSet, var_t_s2: number, ws: FitW
 }
 
 function computeLeverage(cov: Float64Array, jac: Float64Array, w: Float64Array, used: Float64Array, out: Float64Array): void {
+  const c00 = cov[0], c01 = cov[1], c02 = cov[2], c03 = cov[3], c11 = cov[5], c12 = cov[6], c13 = cov[7];
+  const c22 = cov[10], c23 = cov[11], c33 = cov[15];
   for (let k = 0; k < out.length; k++) {
     if (!(used[k] > 0)) {
       out[k] = 0;
       continue;
     }
     const o = 4 * k;
-    let s = 0;
-    for (let i = 0; i < 4; i++) {
-      let row = 0;
-      for (let j = 0; j < 4; j++) row += cov[i * 4 + j] * jac[o + j];
-      s += jac[o + i] * row;
-    }
+    const j0 = jac[o], j1 = jac[o + 1], j2 = jac[o + 2], j3 = jac[o + 3];
+    const s =
+      j0 * (c00 * j0 + 2 * (c01 * j1 + c02 * j2 + c03 * j3)) +
+      j1 * (c11 * j1 + 2 * (c12 * j2 + c13 * j3)) +
+      j2 * (c22 * j2 + 2 * c23 * j3) +
+      j3 * c33 * j3;
     out[k] = Math.min(1, Math.max(0, s * w[k]));
   }
 }
