@@ -17,7 +17,8 @@ export function renderReading(r: ResultJson, title: string): string {
       (r.edges_rejected > 0 ? `, ${r.edges_rejected} rejected` : ""),
   ];
   const s = r.settings;
-  const parts = [`tank ${formatSi(s.tank_c_f, "F", 3)}`];
+  const tankNote = s.calibration ? (s.calibration.tank_calibrated ? " calibrated" : " nominal") : "";
+  const parts = [`tank ${formatSi(s.tank_c_f, "F", 4)}${tankNote}`];
   if (s.drive) parts.unshift(`drive ${formatSi(s.drive.series_ohm, "Ω", 3)}`);
   if (s.range) parts.push(`charge ${s.range.charge_us} µs`);
   lines.push(`   setting      ${parts.join(", ")}`);

@@ -1,6 +1,7 @@
 // Turns a verified device capture into a capture file record, and a capture record into the
-// analysis input. Until the tester is calibrated, the tank is taken at its nominal value with
-// the board's C0G/film tolerance (±1 %, rectangular: u = 1 % / sqrt(3), JCGM 100:2008 §4.3.7).
+// analysis input. With a calibration, the tank's effective capacitance, the thresholds and the
+// timebase come from it; without one, the tank is taken at its nominal value with the board's
+// C0G/film tolerance (±1 %, rectangular: u = 1 % / sqrt(3), JCGM 100:2008 §4.3.7).
 
 import type { RingInput } from "../analysis/index.ts";
 import type { CaptureV1 } from "../capture/capture-file.ts";
@@ -9,18 +10,39 @@ import type { RawCapture } from "../device/stream-reader.ts";
 
 export const NOMINAL_TANK_TOLERANCE = 0.01;
 
+/**
+ * What a calibration says about one tester, in the form a capture needs. The calibration
+ * module produces it from a stored profile; any field left out keeps the nominal value.
+ */
+export interface AppliedCalibration {
+  /** Effective capacitance across the part for each tank index (tank + fixture), with its standard uncertainty. */
+  tanks?: ({ c_f: number; u_f: number } | undefined)[];
+  /** Comparator thresholds referred to the ring, [rising, falling]. */
+  thresholds_v?: [number, number];
+  /** Timebase error: the timer really counts at tick_hz (1 + ppm 1e-6). */
+  timebase_ppm?: number;
+  /** Where it came from, for the capture's record (e.g. the profile's file and date). */
+  source: string;
+}
+
 export function captureFromDevice(
   raw: RawCapture, identity: DeviceIdentity, profile: DeviceProfile, transport: string, label?: string,
+  calibration?: AppliedCalibration,
 ): CaptureV1 {
   const s = raw.settings;
-  const tank = profile.tanks[s.tank].nominal_f;
+  const nominal = profile.tanks[s.tank].nominal_f;
+  const calTank = calibration?.tanks?.[s.tank];
+  const ppm = calibration?.timebase_ppm ?? 0;
   return {
     format: "henrytick-capture",
     version: 1,
-    tick_hz: raw.tick_hz,
-    tank_c_f: tank,
-    tank_c_u_f: (tank * NOMINAL_TANK_TOLERANCE) / Math.sqrt(3),
-    thresholds_v: [profile.thresholds_v[0], profile.thresholds_v[1]],
+    tick_hz: raw.tick_hz * (1 + ppm * 1e-6),
+    tank_c_f: calTank ? calTank.c_f : nominal,
+    tank_c_u_f: calTank ? calTank.u_f : (nominal * NOMINAL_TANK_TOLERANCE) / Math.sqrt(3),
+    thresholds_v: calibration?.thresholds_v ? [calibration.thresholds_v[0], calibration.thresholds_v[1]] : [profile.thresholds_v[0], profile.thresholds_v[1]],
+    calibration: calibration
+      ? { source: calibration.source, tank_calibrated: calTank !== undefined, nominal_tank_c_f: nominal, nominal_tick_hz: raw.tick_hz, timebase_ppm: ppm }
+      : { source: "nominal (uncalibrated)", tank_calibrated: false, nominal_tank_c_f: nominal, nominal_tick_hz: raw.tick_hz, timebase_ppm: 0 },
     drive: { supply_v: profile.supply_v, series_ohm: profile.drives[s.drive].ohm },
     range: {
       drive_index: s.drive, tank_index: s.tank, charge_us: s.charge_us,

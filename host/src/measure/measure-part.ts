@@ -12,6 +12,7 @@ import type { PlanLimits, SettingPrediction } from "../ranging/range-plan.ts";
 import { defaultLimits, estimateFromProbe, rankSettings } from "../ranging/range-plan.ts";
 import { formatSi } from "../format/si.ts";
 import { captureFromDevice, ringInputFromCapture } from "./capture-build.ts";
+import type { AppliedCalibration } from "./capture-build.ts";
 
 export interface MeasureOptions {
   /** Fixed drive-resistor index; with `tank`, skips ranging. */
@@ -21,6 +22,8 @@ export interface MeasureOptions {
   /** Lower the ring-peak limit (never raised above the default). */
   max_peak_v?: number;
   label?: string;
+  /** Applied to every capture of this reading (see calibration/); nominal values without it. */
+  calibration?: AppliedCalibration;
   onProgress?: (message: string) => void;
 }
 
@@ -89,7 +92,7 @@ const RETRYABLE = new Set(["TOO_FEW_EDGES", "NO_RING"]);
 async function readOnce(client: DeviceClient, settings: MeasureSettings, opts: MeasureOptions, progress: (m: string) => void): Promise<Reading> {
   progress(`measuring: ${describeSetting(client, settings)}`);
   const raw = await client.measure(settings);
-  const capture = captureFromDevice(raw, client.identity, client.profile, client.transport.description, opts.label);
+  const capture = captureFromDevice(raw, client.identity, client.profile, client.transport.description, opts.label, opts.calibration);
   return { capture, analysis: analyzeCapture(capture), settings };
 }
 

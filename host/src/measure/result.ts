@@ -26,6 +26,7 @@ export interface ResultJson {
     thresholds_v: [number, number];
     drive?: CaptureV1["drive"];
     range?: CaptureV1["range"];
+    calibration?: CaptureV1["calibration"];
   };
   device?: CaptureV1["device"];
   label?: string;
@@ -54,6 +55,7 @@ export function buildResult(a: RingAnalysis, c: CaptureV1): ResultJson {
       thresholds_v: c.thresholds_v,
       drive: c.drive,
       range: c.range,
+      calibration: c.calibration,
     },
     device: c.device,
     label: typeof c.meta?.label === "string" ? c.meta.label : undefined,
