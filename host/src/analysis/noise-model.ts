@@ -10,6 +10,8 @@
 // E[min(Z^2, c^2)]: a Huber-type variance M-estimate (Huber's "proposal 2", Huber & Ronchetti,
 // Robust Statistics, 2009, §6.4) that a surviving glitch cannot inflate.
 
+import { median } from "./robust-stats.ts";
+
 const CLIP = 2.5;
 /** E[min(Z^2, 2.5^2)] for standard normal Z (numerical integration). */
 const CLIP_MEAN = 0.97755998;
@@ -79,9 +81,8 @@ export function estimateNoise(
     const ratio = new Float64Array(count);
     let c = 0;
     for (let k = 0; k < n; k++) if (mask[k] > 0 && Number.isFinite(r[k])) ratio[c++] = (r[k] * r[k]) / (slope[k] * slope[k]);
-    ratio.sort();
     a = 0;
-    b = Math.max(q_s2, ratio[count >> 1] / 0.45493642) * xMean; // median of chi-square(1)
+    b = Math.max(q_s2, median(ratio, c) / 0.45493642) * xMean; // median of chi-square(1)
   }
   const bMin = q_s2 * xMean;
   for (let it = 0; it < 60; it++) {
