@@ -166,7 +166,7 @@ export function reported(): void {
 /** Ticks until the idle firmware next has something to do (0: nothing until input). */
 export function idleWait(): i32 {
   const rest: i32 = restRemaining();
-  const watch: i32 = ring.remaining();
+  const watch: i32 = ring.nextLook();
   if (rest == 0) return watch;
   if (watch == 0) return rest;
   return rest < watch ? rest : watch;

@@ -1,13 +1,16 @@
 // The capture path with the switch open, for two jobs: watching a ring that may outlive its
 // capture (no new pulse until it has been quiet for the quiet time), and the self-test (count
-// stray edges over a fixed window). It uses its own small buffer so that the last capture stays
-// available for resending; when that buffer fills, it is simply re-armed, because only "was
-// there an edge, and when" matters here.
+// stray edges over a fixed window). It uses its own buffer so that the last capture stays
+// available for resending; when that buffer fills, it is re-armed, because only "was there an
+// edge, and when" matters here. A full buffer may have hidden edges after it filled, so it
+// counts as activity: the safe reading for an interlock. In raw mode overflow markers fill it
+// even in silence, so the firmware asks to be polled before that can happen (horizon()).
 
 import { RAW_OPEN_FLAG, RAW_OVERFLOW_FLAG } from "../../shared-protocol/src/constants.ts";
-import { halCaptureCount, halNow, halPulse, halStop } from "./hal.ts";
+import { halCaptureBits, halCaptureCount, halNow, halPulse, halStop } from "./hal.ts";
 
-const LISTEN_ENTRIES: i32 = 16;
+/** 2 KiB: half a second of overflow markers from a 16-bit timer at 64 MHz. */
+const LISTEN_ENTRIES: i32 = 512;
 const listenBuf = new Int32Array(LISTEN_ENTRIES);
 
 let armed: bool = false;
@@ -42,10 +45,8 @@ export function hear(): i32 {
     if ((listenBuf[i] & (RAW_OVERFLOW_FLAG | RAW_OPEN_FLAG)) == 0) heard++;
   }
   scanned = n;
-  if (heard > 0) {
-    edgesHeard += heard;
-    lastHeardAt = halNow();
-  }
+  edgesHeard += heard;
+  if (heard > 0 || n >= LISTEN_ENTRIES) lastHeardAt = halNow();
   if (n >= LISTEN_ENTRIES) {
     halStop();
     arm();
@@ -62,4 +63,14 @@ export function unlisten(): void {
 
 export function listening(): bool {
   return armed;
+}
+
+/**
+ * Ticks within which the listener must be polled again so that, in raw mode, overflow markers
+ * alone cannot fill its buffer (half of it, for margin). Extended mode: no limit (2^30).
+ */
+export function horizon(): i32 {
+  const bits: i32 = halCaptureBits();
+  if (bits == 0 || bits > 20) return 0x40000000;
+  return (LISTEN_ENTRIES >> 1) << bits;
 }

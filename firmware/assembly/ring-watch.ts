@@ -5,7 +5,7 @@
 
 import * as board from "./board.ts";
 import { halNow } from "./hal.ts";
-import { hear, lastHeardAt, listen, listening, unlisten } from "./listen.ts";
+import { hear, horizon, lastHeardAt, listen, listening, unlisten } from "./listen.ts";
 
 let watching: bool = false;
 let quietTicks: i32 = 0;
@@ -27,6 +27,14 @@ export function remaining(): i32 {
     return 0;
   }
   return quietTicks - silent;
+}
+
+/** When the idle firmware should next look at the watch: by the quiet deadline or the horizon. */
+export function nextLook(): i32 {
+  const left: i32 = remaining();
+  if (left == 0) return 0;
+  const h: i32 = horizon();
+  return left < h ? left : h;
 }
 
 /** Ends the watch (the listener is shared with the self-test and the next capture). */

@@ -69,6 +69,39 @@ describe("no pulse while the previous ring still produces edges", () => {
     expect(link.sim.stats.pulses).toBe(2);
   });
 
+  it("works the same with a 16-bit raw-capture port, whose overflow markers arrive in silence", () => {
+    const link = new SimLink({ raw_capture: { bits: 16, phase_ticks: 999, overflow_latency_ticks: 40 } });
+    link.send("MS", 1, 2, 200, 20, 1000, 2000);
+    link.sim.advance(0.021);
+    let refusals = 0;
+    for (let i = 0; i < 100; i++) {
+      const r = link.send("MS", 1, 2, 200, 8192, 1000, 2000);
+      if (show(r[0]) === "OK MS") break;
+      expect(Number(r[0].fields[0])).toBe(ERR_RINGING);
+      refusals++;
+      link.sim.advance(Number(r[0].fields[2]) / 1000);
+    }
+    expect(refusals).toBeGreaterThan(0);
+    expect(link.sim.stats.pulses).toBe(2);
+  });
+
+  it.each([
+    ["a listen buffer that filled up counts as activity (edges after it could be lost)", 600, `ER ${ERR_RINGING} MS 1`],
+    ["markers alone, without filling the buffer, are silence", 100, "OK MS"],
+  ])("%s", (_what, markers, expected) => {
+    const port = new ScriptedPort("release", { bits: 8 });
+    // Two edges reach the edge limit of 2: the ring may go on, so the firmware listens.
+    port.queueCapture([0, 0, 10, 20], [0x40000000 | 5, (15 << 2) | 1, (25 << 2) | 0, (35 << 2) | 1]);
+    const at = Array.from({ length: markers }, (_, k) => 251 + k * 256);
+    port.queueHeard([0, ...at], [0x40000000 | 5, ...at.map(() => (1 << 31) | 1)]);
+    port.rx(encodeCommand("MS", [1, 2, 200, 2, 100, 1000]));
+    expect(port.text()).toMatch(/CE 2 2 [0-9A-F]{4} 1\*/);
+    port.output = [];
+    port.idle(25 * TICKS_PER_MS);
+    port.rx(encodeCommand("MS", [1, 2, 200, 2, 100, 1000]));
+    expect(strip(port.text().trim().split("\n"))[0]).toBe(expected);
+  });
+
   it("does not watch after a capture that ended because the ring went quiet", () => {
     const link = new SimLink();
     link.send("MS", 1, 2, 200, 8192, 1000, 2000);
