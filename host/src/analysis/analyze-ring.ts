@@ -12,6 +12,7 @@ import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
 import { reassignHalfCycles } from "./model-bookkeeping.ts";
 import { edgeTimeVariances, edgeVariances, estimateNoise, type NoiseEstimate } from "./noise-model.ts";
 import { ringQuantities, COVERAGE_K } from "./ring-quantities.ts";
+import { correlationInflation, residualCorrelation } from "./residual-correlation.ts";
 import { huberWeight, madSigma, median } from "./robust-stats.ts";
 import { invertSymmetric } from "./small-linear-algebra.ts";
 import { checkInput, MIN_EDGES, type CheckedInput } from "./validate-input.ts";
@@ -187,9 +188,11 @@ export function fitRing(input: RingInput): FitState {
   setWeights(e, outlier, robust, variance, used, w);
   let nUsed = 0;
   for (let k = 0; k < n; k++) nUsed += used[k];
-  // Birge-type inflation (never deflation) when residuals exceed the noise model.
+  // Birge-type inflation (never deflation) when residuals exceed the noise model, and for
+  // residuals correlated from edge to edge (fewer independent edges than it seems).
   const birge = nUsed > 4 ? Math.max(1, fit.chi2 / (nUsed - 4)) : 1;
-  for (let i = 0; i < 16; i++) cov[i] *= birge;
+  const inflation = birge * correlationInflation(residualCorrelation(ws.r, variance, used, e.rising));
+  for (let i = 0; i < 16; i++) cov[i] *= inflation;
   if (!(p[P_ALPHA] > 0)) throw noRing("the fitted ring does not decay");
   // Edges that only a timing noise of a tenth of a period (36 degrees) or more can explain, or a
   // fit that sets aside most edges, are not a ring: refuse rather than report a number.

@@ -94,4 +94,21 @@ describe("diagnostics", () => {
     for (let k = 1; k < ticks.length; k++) ticks[k] = Math.max(ticks[k], ticks[k - 1]);
     expect(codes({ ...clean, ticks })).toContain("POOR_FIT");
   });
+
+  it("flags a tick rate locked to the ring and widens the uncertainty to cover it", () => {
+    // Measurement notes §3: pure quantisation is not i.i.d. With 12.01 ticks per period and
+    // 0.3 ns of jitter the quantisation error repeats from edge to edge.
+    const tick_hz = 40e6;
+    const f = tick_hz / 12.01;
+    const c_f = 1e-9;
+    const l_h = 1 / ((2 * Math.PI * f) ** 2 * c_f);
+    const w0 = 2 * Math.PI * f;
+    const part = { l_h, rs_ohm: (w0 * l_h) / 100 };
+    const wave = ringWaveform(part, c_f, c_f * ringConstants(part, c_f).wd_rad_s);
+    const comp = { rising_v: TH[0], falling_v: TH[1], jitter_s: 0.3e-9, noise_v: 0.2e-3, delay_s: 0 };
+    const e = captureEdges(wave, comp, { tick_hz, ppm: 0, dead_time_s: 0 }, new Random(3), 5000, 10);
+    const a = analyzeRing({ tick_hz, ticks: e.ticks, levels: e.levels, tank_c_f: c_f, thresholds_v: TH, tank_c_u_f: 0, timebase_u_rel: 0 });
+    expect(a.warnings.map((w) => w.code)).toContain("POOR_FIT");
+    expect(Math.abs(a.inductance_h - l_h)).toBeLessThan(a.inductance_u_h);
+  });
 });

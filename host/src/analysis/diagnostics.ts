@@ -4,6 +4,7 @@
 import type { FitState } from "./analyze-ring.ts";
 import { P_ALPHA, P_LNA, P_PHI, P_WD } from "./edge-model.ts";
 import type { RingQuantities } from "./ring-quantities.ts";
+import { residualCorrelation } from "./residual-correlation.ts";
 import type { Warning } from "./types.ts";
 
 /** Fewer whole cycles than this: L and especially Q rest on little data (bench practice). */
@@ -58,9 +59,9 @@ export function diagnose(s: FitState, rq: RingQuantities): Diagnosis {
   if (clip > 4) {
     warnings.push({ code: "SUSPECTED_CLIPPING", message: `the first cycle's edges sit ${clip.toFixed(1)} sd off the ring model: the front end may clip or the switch transient may leak in; lower the drive current` });
   }
-  const white = residualCorrelation(s);
+  const white = residualCorrelation(s.r, s.variance, s.used, s.edges.rising);
   if (white.z > 4 && white.rho > 0.2) {
-    warnings.push({ code: "POOR_FIT", message: `residuals are correlated from edge to edge (lag-1 r = ${white.rho.toFixed(2)}): the ring is not a clean damped sine (interference, a second resonance, or a tick rate locked to the ring); treat the uncertainty as optimistic` });
+    warnings.push({ code: "POOR_FIT", message: `residuals are correlated from edge to edge (lag-1 r = ${white.rho.toFixed(2)}): the ring is not a clean damped sine (interference, a second resonance, or a tick rate locked to the ring); the uncertainty has been widened for it` });
   }
   const drift = frequencyDrift(s);
   if (drift && Math.abs(drift.df_rel) > 4 * drift.df_rel_u && Math.abs(drift.df_rel) > DRIFT_MIN_REL) {
@@ -83,26 +84,6 @@ function firstCycleDeviation(s: FitState): number {
     worst = Math.max(worst, Math.abs(rk) / Math.sqrt(s.variance[k]) / s.z_scale);
   }
   return worst;
-}
-
-/** Lag-1 autocorrelation of standardised residuals, per level, pooled; z = rho sqrt(n). */
-function residualCorrelation(s: FitState): { rho: number; z: number } {
-  let sxy = 0, sxx = 0, n = 0;
-  for (let lv = 0; lv <= 1; lv++) {
-    let prev = NaN;
-    for (let k = 0; k < s.edges.n; k++) {
-      if (!(s.used[k] > 0) || s.edges.rising[k] !== lv) continue;
-      const zk = s.r[k] / Math.sqrt(s.variance[k]);
-      sxx += zk * zk;
-      if (prev === prev) {
-        sxy += prev * zk;
-        n++;
-      }
-      prev = zk;
-    }
-  }
-  const rho = sxx > 0 ? sxy / sxx : 0;
-  return { rho, z: rho * Math.sqrt(n) };
 }
 
 /**
