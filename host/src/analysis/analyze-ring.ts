@@ -6,9 +6,10 @@
 
 import { assignHalfCycles } from "./cycle-bookkeeping.ts";
 import { diagnose } from "./diagnostics.ts";
-import { FitWorkspace, fitEdgeModel, type FitLimits } from "./edge-fit.ts";
+import { FitWorkspace, fitEdgeModel } from "./edge-fit.ts";
 import { chooseResidualForms, evaluateEdges, makeEdgeSet, P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
-import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
+import { bestStart, fitLimits, initialVariance } from "./fit-start.ts";
+import { initialCandidates } from "./initial-guess.ts";
 import { reassignHalfCycles } from "./model-bookkeeping.ts";
 import { edgeTimeVariances, edgeVariances, estimateNoise, type NoiseEstimate } from "./noise-model.ts";
 import { ringQuantities, COVERAGE_K } from "./ring-quantities.ts";
@@ -214,75 +215,6 @@ function setWeights(
     used[k] = e.m[k] === e.m[k] && !outlier[k] ? 1 : 0;
     w[k] = used[k] > 0 ? robust[k] / variance[k] : 0;
   }
-}
-
-/**
- * Fits each start briefly on a subset of the edges (the tail, where the amplitude shows, and an
- * even spread) and keeps the one that ends with the smallest residuals: this is what separates
- * the basins of the (A0, alpha) likelihood (measurement notes §2).
- */
-function bestStart(
-  candidates: InitialGuess[], e: EdgeSet, c: CheckedInput, q: number, ws: FitWorkspace, limits: FitLimits,
-): InitialGuess {
-  if (candidates.length === 1) return candidates[0];
-  const mask = subsetMask(e, 160, 40);
-  const varT = Math.max(candidates[0].ms_residual_s2, q);
-  let best = candidates[0];
-  let bestChi2 = Infinity;
-  for (const cand of candidates) {
-    chooseResidualForms(cand.p, e, c.vh_v, c.vl_v);
-    const variance = initialVariance(cand.p, e, varT, ws);
-    for (let k = 0; k < e.n; k++) variance[k] = mask[k] > 0 ? 1 / variance[k] : 0;
-    const fit = fitEdgeModel(e, c.vh_v, c.vl_v, cand.p, variance, null, ws, limits, 25, 1e-3, false, true);
-    if (fit.chi2 < bestChi2) {
-      bestChi2 = fit.chi2;
-      best = { p: fit.p, ms_residual_s2: cand.ms_residual_s2 };
-    }
-  }
-  return best;
-}
-
-/**
- * The fit's soft limits (edge-fit.ts): the ring at the last edge at most e^9 times the stopping
- * threshold (beyond that the threshold delays are below 1e-4 rad and carry no amplitude), at the
- * start at most e^12 ~ 1.6e5 times it (a front end has clipped long before), and Q at most 1e6.
- */
-function fitLimits(e: EdgeSet, c: CheckedInput, wd: number): FitLimits {
-  let tLast = 0;
-  for (let k = 0; k < e.n; k++) if (e.m[k] === e.m[k]) tLast = e.t_s[k];
-  return { t_last_s: tLast, ln_v_stop: Math.log(Math.max(c.vh_v, -c.vl_v)), e_max: 9, a_max: 12, alpha_min: wd / 2e6 };
-}
-
-/** 1 for up to `count` indexed edges: the last `tail` of them and an even spread of the rest. */
-function subsetMask(e: EdgeSet, count: number, tail: number): Float64Array {
-  const mask = new Float64Array(e.n);
-  let total = 0;
-  for (let k = 0; k < e.n; k++) if (e.m[k] === e.m[k]) total++;
-  const stride = Math.max(1, (total - tail) / (count - tail));
-  let seen = 0;
-  let next = 0;
-  for (let k = 0; k < e.n; k++) {
-    if (e.m[k] !== e.m[k]) continue;
-    if (seen >= total - tail || seen >= next) {
-      mask[k] = 1;
-      if (seen >= next) next += stride;
-    }
-    seen++;
-  }
-  return mask;
-}
-
-/** Round-0 variances: timing noise only, slopes floored so grazing edges do not dominate. */
-function initialVariance(p: Float64Array, e: EdgeSet, var_t_s2: number, ws: FitWorkspace): Float64Array {
-  const out = new Float64Array(e.n).fill(Infinity);
-  evaluateEdges(p, e, 0, 0, null, null, { slope: ws.slope });
-  const a0 = Math.exp(p[P_LNA]);
-  for (let k = 0; k < e.n; k++) {
-    if (e.m[k] !== e.m[k]) continue;
-    const floor = 0.3 * p[P_WD] * a0 * Math.exp(-p[P_ALPHA] * e.t_s[k]);
-    out[k] = var_t_s2 * (ws.slope[k] * ws.slope[k] + floor * floor);
-  }
-  return out;
 }
 
 function computeLeverage(cov: Float64Array, jac: Float64Array, w: Float64Array, used: Float64Array, out: Float64Array): void {
