@@ -2,7 +2,7 @@
 // that take time (MS, ST) finish from the main loop: see finishPending().
 
 import {
-  ERR_ABORTED, ERR_ARGUMENT, ERR_BUSY, ERR_CAPTURE_FAULT, ERR_CHARGE_LIMIT, ERR_LINE_TOO_LONG,
+  ERR_ABORTED, ERR_ARGUMENT, ERR_BUSY, ERR_CAPTURE_FAULT, ERR_CHARGE_LIMIT, ERR_CRC, ERR_LINE_TOO_LONG,
   ERR_REST, ERR_RINGING, ERR_UNKNOWN_COMMAND, PROTOCOL_VERSION,
 } from "../../shared-protocol/src/constants.ts";
 import { FrameReader } from "../../shared-protocol/src/frame-reader.ts";
@@ -11,7 +11,7 @@ import * as capture from "./capture.ts";
 import { counters } from "./counters.ts";
 import { halDeviceId } from "./hal.ts";
 import { maxChargeUs, restPending, restRemaining } from "./interlocks.ts";
-import { line, out, send, sendError, sendErrorDetail, sendOk } from "./link.ts";
+import { LINE_DAMAGED, line, out, send, sendError, sendErrorDetail, sendOk } from "./link.ts";
 import { sendProfile } from "./profile.ts";
 import * as ring from "./ring-watch.ts";
 import { cancelSelfTest, selfTestRunning, startSelfTest, stepSelfTest, strayEdges } from "./self-test.ts";
@@ -27,8 +27,10 @@ export function initCommands(usable: bool, bits: i32): void {
   captureBits = bits;
 }
 
-/** Handles one received line of `len` bytes (-1: the line overflowed and was discarded). */
+/** Handles one received line of `len` bytes, or a line nextLine() had to discard. */
 export function handleLine(len: i32): void {
+  // A line with a lost byte is answered as corrupted in transit, which it was: resend.
+  if (len == LINE_DAMAGED) return sendError(ERR_CRC, "?");
   if (len < 0) return sendError(ERR_LINE_TOO_LONG, "?");
   if (!reader.parse(line, len)) return sendError(reader.error, "?");
   if (reader.fieldIs(0, "ID")) identify();

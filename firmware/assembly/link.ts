@@ -38,9 +38,13 @@ export function rxOverrun(): void {
   counters.overruns++;
 }
 
+/** nextLine() results for a line that could not be kept. */
+export const LINE_TOO_LONG: i32 = -1;
+export const LINE_DAMAGED: i32 = -2; // a byte of it was lost (fw_rx_overrun)
+
 /**
  * Moves received bytes into `line` until a newline. Returns the line's length, 0 when no complete
- * line has arrived yet, or -1 for a line that overflowed `line` or the receive ring.
+ * line has arrived yet, LINE_TOO_LONG or LINE_DAMAGED.
  */
 export function nextLine(): i32 {
   while (rxTail != rxHead) {
@@ -48,11 +52,13 @@ export function nextLine(): i32 {
     rxTail = (rxTail + 1) % RX_RING_BYTES;
     if (c == 0x0a) {
       const n: i32 = lineLen;
-      const spoilt: bool = lineTooLong || rxDropped;
+      const tooLong: bool = lineTooLong;
+      const dropped: bool = rxDropped;
       lineLen = 0;
       lineTooLong = false;
       rxDropped = false;
-      if (spoilt) return -1;
+      if (dropped) return LINE_DAMAGED;
+      if (tooLong) return LINE_TOO_LONG;
       if (n == 0) continue; // blank line: ignored, so a host can resynchronise by sending "\n"
       return n;
     }

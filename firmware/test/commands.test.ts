@@ -64,6 +64,13 @@ describe("firmware commands", () => {
     expect(link.sim.stats.pulses).toBe(0);
   });
 
+  it("answers a line that lost a byte (port overrun) as corrupted, and reads the next one", () => {
+    const link = new SimLink();
+    link.raw("I");
+    link.sim.fw.fw_rx_overrun();
+    expect(strip(link.raw("D*A21B\n" + text("ID")))).toEqual([`ER ${ERR_CRC} ?`, `ID henrytick 0.1.0 ${PROTOCOL_VERSION} HT-5EED0001`, "OK ID"]);
+  });
+
   it("ignores blank lines (a host resynchronises with a newline)", () => {
     const link = new SimLink();
     expect(link.raw("\n\n\r\n")).toHaveLength(1); // "\r" alone is a (malformed) line

@@ -65,6 +65,9 @@ function sessionScript(): string {
     ms(1, 2, 200, 100, 100, 1000), // capture fault
     `idle ${25 * MS_TICKS}`,
     `rx ${hex("MS", 1, 2, 200, 100, 100, 1000)}${hex("AB")}`,
+    `rx ${rawHex("I")}`,
+    "overrun", // the rest of this ID line is spoilt: refused as a whole
+    `rx ${hex("ID").slice(2)}`,
     `rx ${hex("CN")}`,
   ].join("\n") + "\n";
 }

@@ -12,6 +12,7 @@
 //   stuck <at> <count>           the next pulse's capture_count() reports <count> from <at> on
 //   rx <hex>                     bytes from the host, then poll until idle
 //   idle <ticks>                 time passes with the firmware idle, then poll until idle
+//   overrun                      the port lost a received byte (fw_rx_overrun)
 
 import { firmwareModule } from "../../host/src/sim/firmware-image.ts";
 import type { FirmwareVariant } from "../../host/src/sim/firmware-image.ts";
@@ -81,6 +82,7 @@ export class ScriptedPort {
       } else if (t[0] === "stuck") port.nextStuck = [nums[0], nums[1]];
       else if (t[0] === "rx") port.rx(Buffer.from(t[1], "hex"));
       else if (t[0] === "idle") port.idle(nums[0]);
+      else if (t[0] === "overrun") port.fw.fw_rx_overrun();
       else throw new Error(`script: unknown line ${JSON.stringify(line)}`);
     }
     return port;

@@ -203,6 +203,10 @@ int main(int argc, char** argv) {
     else if (strcmp(cmd, "idle") == 0) {
       now_ticks += (uint32_t)strtoul(strtok_r(NULL, " \t\r\n", &save), NULL, 10);
       run();
+    } else if (strcmp(cmd, "overrun") == 0) {
+      if (!HT_RT_TRY()) guard_failed();
+      Z_henrytickZ_fw_rx_overrun(&fw);
+      HT_RT_DONE();
     } else {
       fprintf(stderr, "script: unknown line %s\n", cmd);
       return 2;
