@@ -1,8 +1,9 @@
 // The benchmark sections, in the order they run. Each owner adds its own file here.
+import { analysisSection } from "./analysis.ts";
 import { e2eSection } from "./e2e.ts";
 import { firmwareSection } from "./firmware.ts";
 import { simSection } from "./sim.ts";
 import { ptySection } from "./pty.ts";
 import type { BenchSection } from "./types.ts";
 
-export const sections: BenchSection[] = [firmwareSection, e2eSection, ptySection, simSection];
+export const sections: BenchSection[] = [firmwareSection, e2eSection, ptySection, simSection, analysisSection];
