@@ -5,6 +5,7 @@ import { runAnalyze } from "./analyze-command.ts";
 import { runMeasure } from "./measure-command.ts";
 import { runProfile, runScenarios } from "./info-commands.ts";
 import { runSimDevice } from "./sim-device-command.ts";
+import { runSortCommand } from "./sort-command.ts";
 import { CliUsageError, reportError } from "./errors.ts";
 import { SAFETY_TEXT } from "./safety.ts";
 
@@ -16,6 +17,7 @@ Usage:
   henrytick analyze FILE...            analyse saved captures again
   henrytick profile (--sim | --port PATH)   show the tester's board profile
   henrytick scenarios                  list the simulated demo parts
+  henrytick sort (--sim | --port PATH) --nominal 10u --tol 5%   sort parts against a tolerance
   henrytick sim-device [SCENARIO] [--seed N]   serve a simulated tester on a pseudo-terminal
                                        (prints its path for --port; needs socat; Ctrl-C stops)
 
@@ -46,6 +48,7 @@ export async function main(argv: string[]): Promise<number> {
       case "profile":
         return await runProfile(rest);
       case "sim-device": return await runSimDevice(rest);
+      case "sort": return await runSortCommand(rest);
       case "scenarios":
         return runScenarios(rest);
       case undefined:

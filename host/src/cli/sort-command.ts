@@ -1,0 +1,170 @@
+// henrytick sort: classify a batch of parts against a tolerance, one part at a time, with a
+// running tally, statistics at the end and an append-only log.
+
+import { formatSi } from "../format/si.ts";
+import { openTester } from "../open-tester.ts";
+import { formatMeasured } from "../values/format-value.ts";
+import { parseSeriesName } from "../values/e-series.ts";
+import { parseValue } from "../values/parse-value.ts";
+import { parseTolerance, type Tolerance } from "../values/tolerance.ts";
+import { makeBins } from "../workflows/bins.ts";
+import { drawTray, SimTray } from "../workflows/sim-tray.ts";
+import { csvRow, CSV_COLUMNS, SortLog } from "../workflows/sort-log.ts";
+import { runSort, type SortEvent } from "../workflows/sort-runner.ts";
+import { SortSession, type PartRecord } from "../workflows/sort-session.ts";
+import { makeStyle, stdinLines, type Style } from "../workflows/terminal.ts";
+import { intOption, numberOption, parse, testerTarget } from "./args.ts";
+import { CliUsageError } from "./errors.ts";
+
+export const SORT_HELP = `henrytick sort — sort parts against a tolerance
+
+Usage:
+  henrytick sort (--sim | --port PATH) --nominal VALUE --tol TOL [options]
+
+  Put parts on the clips one after another. A part is recorded once it reads steadily, then
+  the next is awaited until the clips read open (or, with --trigger enter, one part per Enter;
+  q or end of input finishes). Ctrl-C finishes and prints the summary.
+
+Options:
+  --nominal VALUE   nominal inductance: 10u, 4u7, 4.7 µH, 4.7e-6, or with a tolerance letter (4u7J)
+  --tol TOL         5%, ±2 %, +10%/-5%, an IEC 60062 letter (B C D F G J K M) or an absolute 0.5u
+  --lot TEXT        lot name written to every log record
+  --bins LIST       extra bins cut at these values, e.g. 9.8u,10.2u
+  --series E12      also show each part's nearest E6…E192 value
+  --log BASE        append records to BASE.csv and BASE.jsonl (default henrytick-sort)
+  --trigger MODE    ring (default: parts detected from the ring) or enter (stdin lines)
+  --count N         stop after N parts (simulated tray: N parts, default 12)
+  --settle N        agreeing readings before a part is recorded (default 2)
+  --poll-ms N       pause between readings while watching the clips (default 200, simulated 0)
+  --sim-tray LIST   simulated tester: the tray's inductances, e.g. 10u,10.6u,9.4u
+  --max-peak-v V    lower the ring-peak limit (default 30 V)
+  --seed N          noise and tray seed for the simulated tester
+  --json            print the records and the summary as JSON at the end
+  --csv             print the records as CSV rows (same columns as the log)
+
+Decisions follow ISO 14253-1: conforming only when value ± U lies inside the limits,
+nonconforming only when it lies wholly outside, inconclusive in between.
+
+Examples:
+  henrytick sort --sim --nominal 10u --tol 5%
+  henrytick sort --sim --nominal 4u7J --sim-tray 4.7u,5.2u,4.45u --log bench/lot7 --lot 7
+  henrytick sort --port /dev/ttyACM0 --nominal 330u --tol K --bins 300u,330u,360u --series E12
+`;
+
+export async function runSortCommand(args: string[]): Promise<number> {
+  const { values, positionals } = parse(args, {
+    sim: { type: "boolean" }, port: { type: "string" }, seed: { type: "string" }, help: { type: "boolean", short: "h" },
+    nominal: { type: "string" }, tol: { type: "string" }, lot: { type: "string" }, bins: { type: "string" },
+    series: { type: "string" }, log: { type: "string" }, trigger: { type: "string" }, count: { type: "string" },
+    settle: { type: "string" }, "poll-ms": { type: "string" }, "sim-tray": { type: "string" },
+    "max-peak-v": { type: "string" }, json: { type: "boolean" }, csv: { type: "boolean" },
+  });
+  if (values.help) {
+    process.stdout.write(SORT_HELP);
+    return 0;
+  }
+  if (positionals.length > 0) throw new CliUsageError(`unexpected argument "${positionals[0]}"`);
+  if (values.json && values.csv) throw new CliUsageError("use either --json or --csv, not both");
+  const target = testerTarget(values, []);
+  const spec = sortSpec(values);
+  const trigger = values.trigger ?? "ring";
+  if (trigger !== "ring" && trigger !== "enter") throw new CliUsageError(`--trigger must be ring or enter, got "${trigger}"`);
+  const count = intOption(values.count, "count", 1, 1_000_000);
+  const settle = intOption(values.settle, "settle", 1, 10);
+  const pollMs = intOption(values["poll-ms"], "poll-ms", 0, 60_000) ?? (values.sim ? 0 : 200);
+  const max_peak_v = numberOption(values["max-peak-v"], "max-peak-v", 0.1, 1000);
+  if (values["sim-tray"] && !values.sim) throw new CliUsageError("--sim-tray needs --sim");
+  const session = new SortSession(spec);
+
+  const style = makeStyle();
+  const quiet = values.json || values.csv;
+  const note = (m: string) => process.stderr.write(`   ${m}\n`);
+  const base = values.log ?? "henrytick-sort";
+  const log = SortLog.open({ csv: `${base}.csv`, jsonl: `${base}.jsonl` });
+  const tester = await openTester(target);
+  const stop = new AbortController();
+  const onSigint = () => stop.abort();
+  process.on("SIGINT", onSigint);
+  try {
+    let tray: SimTray | undefined;
+    if (tester.sim) {
+      const trayValues = values["sim-tray"]
+        ? values["sim-tray"].split(",").map((t) => parseValue(t).value)
+        : drawTray(session.limits, count ?? 12, ("seed" in target ? target.seed : undefined) ?? 7);
+      tray = new SimTray(tester.sim, trayValues);
+    }
+    note(`sorting against ${formatSi(spec.nominal_h, "H", 4)} ${spec.tolerance.text}: limits ${formatSi(session.limits.lower, "H", 4)} … ${formatSi(session.limits.upper, "H", 4)}`);
+    note(trigger === "ring" ? "put a part on the clips; take it off when it has been recorded (Ctrl-C finishes)" : "press Enter to measure the part on the clips, q to finish");
+    note("caution: every part is pulsed repeatedly while on the clips; keep fingers off transformer windings (henrytick --help, Safety)");
+    if (values.csv) process.stdout.write(CSV_COLUMNS.join(",") + "\n");
+    const onEvent = (e: SortEvent) => {
+      if (e.kind === "part") {
+        if (values.csv) process.stdout.write(csvRow(e.record));
+        else if (!quiet) process.stdout.write(partLine(e.record, style) + "\n");
+      } else if (e.kind === "waiting") note("waiting for a part …");
+      else if (e.kind === "settling") note("part detected, reading again to be sure …");
+      else if (e.kind === "removed") note("part removed");
+      else if (e.kind === "no-part") note("[NO_RING] nothing rings: put a part on the clips and press Enter again");
+      else if (e.kind === "unreadable") note(`[${e.code}] ${e.message} — not recorded; take the part off`);
+    };
+    await runSort({
+      client: tester.client, session, log, trigger, tray, maxParts: count, pollMs,
+      lines: trigger === "enter" ? stdinLines("Enter = measure, q = finish: ") : undefined,
+      presence: { settle }, measure: { max_peak_v }, signal: stop.signal, onEvent,
+    });
+  } finally {
+    process.off("SIGINT", onSigint);
+    log.close();
+    await tester.close();
+  }
+  const summary = session.summary();
+  if (values.json) process.stdout.write(JSON.stringify({ parts: session.parts, summary, log: { csv: `${base}.csv`, jsonl: `${base}.jsonl` } }, null, 2) + "\n");
+  else if (!values.csv) process.stdout.write(summaryText(session, style) + `\n   log appended to ${base}.csv and ${base}.jsonl\n`);
+  return 0;
+}
+
+function sortSpec(values: { nominal?: string; tol?: string; lot?: string; bins?: string; series?: string }) {
+  if (!values.nominal) throw new CliUsageError("sort needs --nominal, e.g. --nominal 10u");
+  const nominal = parseValue(values.nominal);
+  if (!(nominal.value > 0)) throw new CliUsageError(`--nominal must be a positive inductance, got "${values.nominal}"`);
+  if (nominal.value > 10 || nominal.value < 1e-8) throw new CliUsageError(`--nominal ${formatSi(nominal.value, "H", 3)} is outside what the tester measures (about 1 µH to 1 H); check the prefix (m = milli, M = mega)`);
+  let tolerance: Tolerance;
+  if (values.tol) tolerance = parseTolerance(values.tol);
+  else if (nominal.toleranceLetter) tolerance = parseTolerance(nominal.toleranceLetter);
+  else throw new CliUsageError("sort needs --tol (5%, J, 0.5u …) or a tolerance letter on the nominal (10uJ)");
+  return {
+    nominal_h: nominal.value,
+    tolerance,
+    lot: values.lot,
+    bins: values.bins ? makeBins(values.bins.split(",").map((t) => parseValue(t).value)) : undefined,
+    series: values.series ? parseSeriesName(values.series) : undefined,
+  };
+}
+
+const MARK = { conforming: "pass   ", nonconforming: "FAIL   ", inconclusive: "unsure " } as const;
+
+export function partLine(r: PartRecord, style: Style): string {
+  const paint = r.decision === "conforming" ? style.good : r.decision === "nonconforming" ? style.bad : style.unsure;
+  const bits = [`#${String(r.part).padStart(3)}`, formatMeasured(r.inductance_h, r.inductance_u_h, "H").padEnd(22), paint(MARK[r.decision]), `p ${r.p_conform.toFixed(3)}`];
+  if (r.bin) bits.push(`bin ${r.bin}${r.bin_certain ? "" : " (edge)"}`);
+  if (r.preferred_h !== null) bits.push(`nearest ${formatSi(r.preferred_h, "H", 3)}`);
+  if (r.warnings) bits.push(style.dim(`! ${r.warnings}`));
+  return bits.join("  ");
+}
+
+export function summaryText(session: SortSession, style: Style): string {
+  const { tally, stats, limits } = session.summary();
+  const lot = session.spec.lot ? `, lot ${session.spec.lot}` : "";
+  const lines = [
+    `── ${stats.n} part${stats.n === 1 ? "" : "s"}${lot}: ${style.good(`${tally.conforming} pass`)}, ${style.bad(`${tally.nonconforming} fail`)}, ${style.unsure(`${tally.inconclusive} unsure`)}`,
+    `   limits       ${formatSi(limits.lower, "H", 4)} … ${formatSi(limits.upper, "H", 4)} (unsure: within U of a limit)`,
+  ];
+  if (stats.n > 0) lines.push(`   mean         ${formatSi(stats.mean, "H", 4)}, range ${formatSi(stats.min, "H", 4)} … ${formatSi(stats.max, "H", 4)}`);
+  if (stats.n >= 2) lines.push(`   spread       s = ${formatSi(stats.sd, "H", 3)} (${((100 * stats.sd) / stats.mean).toFixed(2)} %)`);
+  if (Number.isFinite(stats.cp)) {
+    lines.push(`   capability   Cp ${stats.cp.toFixed(2)}, Cpk ${stats.cpk.toFixed(2)} from ${stats.n} parts (spread includes measurement noise${stats.n < 30 ? "; rough below 30 parts" : ""})`);
+  }
+  const bins = Object.entries(tally.bins);
+  if (bins.length > 0) lines.push(`   bins         ${bins.map(([k, v]) => `${k}: ${v}`).join(", ")}`);
+  return lines.join("\n");
+}

@@ -1,0 +1,120 @@
+// The sorting loop: measure, decide whether a part is on the clips, record it once, wait for it
+// to come off. Two ways to step: from the ring itself ("ring": a part is detected when it starts
+// to ring and its removal when the ring vanishes) or from the user's Enter key ("enter": one
+// part per line; `q` or the end of input finishes). I/O lives here; the decisions are in
+// sort-session.ts and part-presence.ts.
+
+import type { DeviceClient } from "../device/client.ts";
+import { MeasureError, measurePart, type MeasureOptions } from "../measure/measure-part.ts";
+import { buildResult } from "../measure/result.ts";
+import { PresenceTracker, type Observation, type PresenceOptions } from "./part-presence.ts";
+import type { SimTray } from "./sim-tray.ts";
+import type { SortLog } from "./sort-log.ts";
+import type { PartRecord, SortSession } from "./sort-session.ts";
+
+export type SortEvent =
+  | { kind: "waiting" }
+  | { kind: "settling" }
+  | { kind: "part"; record: PartRecord }
+  | { kind: "removed" }
+  | { kind: "unreadable"; code: string; message: string }
+  | { kind: "no-part" };
+
+export interface SortRunOptions {
+  client: DeviceClient;
+  session: SortSession;
+  log?: SortLog;
+  /** "ring" (default): detect parts from the ring; "enter": one part per input line. */
+  trigger?: "ring" | "enter";
+  /** Input lines for "enter": an empty line measures, `q` finishes. */
+  lines?: AsyncIterable<string>;
+  /** Simulated bench that swaps parts (simulated tester only). */
+  tray?: SimTray;
+  /** Stop after this many recorded parts. */
+  maxParts?: number;
+  /** Pause between readings while watching the clips, ms (default 0). */
+  pollMs?: number;
+  presence?: PresenceOptions;
+  measure?: Omit<MeasureOptions, "onProgress">;
+  onProgress?: (message: string) => void;
+  signal?: AbortSignal;
+  /** Clock for the records' time stamps (default: the system clock). */
+  now?: () => Date;
+  onEvent?: (e: SortEvent) => void;
+}
+
+export async function runSort(o: SortRunOptions): Promise<readonly PartRecord[]> {
+  const emit = o.onEvent ?? (() => {});
+  const now = o.now ?? (() => new Date());
+  const full = () => o.maxParts !== undefined && o.session.parts.length >= o.maxParts;
+  const record = (obsResult: ReturnType<typeof buildResult>) => {
+    const rec = o.session.add(obsResult, now().toISOString());
+    o.log?.append(rec);
+    emit({ kind: "part", record: rec });
+    return rec;
+  };
+
+  if ((o.trigger ?? "ring") === "enter") {
+    if (!o.lines) throw new TypeError("lines: the enter trigger needs input lines");
+    for await (const line of o.lines) {
+      if (o.signal?.aborted || line.trim().toLowerCase() === "q") break;
+      o.tray?.next();
+      const obs = await observe(o);
+      if (obs.kind === "open") emit({ kind: "no-part" });
+      else if (obs.kind === "unreadable") emit({ kind: "unreadable", code: obs.code, message: obs.message });
+      else record(obs.result);
+      if (full() || (o.tray && o.tray.remaining === 0)) break;
+    }
+    return o.session.parts;
+  }
+
+  const tracker = new PresenceTracker(o.presence);
+  if (o.tray && !o.tray.next()) return o.session.parts;
+  let lastAction = "";
+  while (!o.signal?.aborted && !full()) {
+    const obs = await observe(o);
+    const action = tracker.observe(obs.kind === "ring" ? { kind: "ring", inductance_h: obs.result.inductance_h, inductance_u_h: obs.result.inductance_u_h } : obs);
+    if (action === "record" && obs.kind === "ring") {
+      record(obs.result);
+      o.tray?.take();
+    } else if (action === "removed") {
+      emit({ kind: "removed" });
+      if (o.tray && !o.tray.next()) break;
+    } else if (action !== lastAction) {
+      if (action === "wait-part") emit({ kind: "waiting" });
+      if (action === "settling") emit({ kind: "settling" });
+      if (action === "wait-removal" && obs.kind === "unreadable") {
+        emit({ kind: "unreadable", code: obs.code, message: obs.message });
+        o.tray?.take();
+      }
+    }
+    lastAction = action;
+    if (o.pollMs) await pause(o.pollMs, o.signal);
+  }
+  return o.session.parts;
+}
+
+type Observed = { kind: "ring"; result: ReturnType<typeof buildResult> } | { kind: "open" } | Extract<Observation, { kind: "unreadable" }> & { message: string };
+
+async function observe(o: SortRunOptions): Promise<Observed> {
+  try {
+    const r = await measurePart(o.client, { ...o.measure, onProgress: o.onProgress });
+    return { kind: "ring", result: buildResult(r.analysis, r.capture) };
+  } catch (e) {
+    if (!(e instanceof MeasureError)) throw e;
+    if (e.code === "NO_RING") return { kind: "open" };
+    return { kind: "unreadable", code: e.code, message: e.message };
+  }
+}
+
+function pause(ms: number, signal?: AbortSignal): Promise<void> {
+  return new Promise((resolve) => {
+    const t = setTimeout(done, ms);
+    function done() {
+      clearTimeout(t);
+      signal?.removeEventListener("abort", done);
+      resolve();
+    }
+    signal?.addEventListener("abort", done, { once: true });
+  });
+}

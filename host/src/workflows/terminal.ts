@@ -1,0 +1,39 @@
+// Small terminal helpers shared by the workflow commands: colour only on a terminal and never
+// when NO_COLOR is set (https://no-color.org), and input lines from stdin that end cleanly at
+// end of input so scripted sessions never wait on a terminal.
+
+import { createInterface } from "node:readline";
+
+export interface Style {
+  good(s: string): string;
+  bad(s: string): string;
+  unsure(s: string): string;
+  dim(s: string): string;
+  bold(s: string): string;
+}
+
+const plain = (s: string) => s;
+
+export function makeStyle(stream: { isTTY?: boolean } = process.stdout, env: NodeJS.ProcessEnv = process.env): Style {
+  const on = stream.isTTY === true && !("NO_COLOR" in env && env.NO_COLOR !== "") && env.TERM !== "dumb";
+  if (!on) return { good: plain, bad: plain, unsure: plain, dim: plain, bold: plain };
+  const sgr = (code: string) => (s: string) => `\x1b[${code}m${s}\x1b[0m`;
+  return { good: sgr("32"), bad: sgr("31"), unsure: sgr("33"), dim: sgr("2"), bold: sgr("1") };
+}
+
+/** Lines typed or piped on stdin; prompts go to stderr only when stdin is a terminal. */
+export async function* stdinLines(prompt?: string): AsyncGenerator<string> {
+  const rl = createInterface({ input: process.stdin, terminal: false });
+  const ask = () => {
+    if (prompt && process.stdin.isTTY) process.stderr.write(prompt);
+  };
+  try {
+    ask();
+    for await (const line of rl) {
+      yield line;
+      ask();
+    }
+  } finally {
+    rl.close();
+  }
+}
