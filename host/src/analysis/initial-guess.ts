@@ -1,139 +1,258 @@
-// Starting point for the edge-model fit. The likelihood in (A0, alpha) has several basins
-// (measurement notes §2), so the start is found globally: for every (A0, alpha) on a grid the
-// model is linear in (wd, phi) (u depends only on the observed times), so those two follow in
-// closed form and the grid point is scored by its time residuals. The grid is laid out in
-// robust features of the ring: D = alpha * t_last, the log-decay across the capture, and
-// E = ln(A(t_last) / V_stop), how far the ring still is from the threshold that ends it at
-// the last edge (E near 0: the ring ended inside the capture; large E: capture truncated).
+// Starting points for the edge-model fit. The likelihood in (A0, alpha) has several basins
+// (measurement notes §2), so the start is found globally. For fixed (A0, alpha) the model is
+// linear in (wd, phi) (u depends only on the observed times), so those two follow in closed
+// form (variable projection: G. H. Golub and V. Pereyra, SIAM J. Numer. Anal. 10(2), 1973).
+// The search is laid out in robust features of the ring: D = alpha * t_last, the log-decay
+// across the capture, and E = ln(A(t_last) / V_stop), how far the ring still is from the
+// threshold that ends it (E near 0: the ring ended inside the capture; large E: truncated).
+//
+// The valley of the cost runs along E(D) and is very narrow across it (with symmetric thresholds
+// and a truncated capture a grid step of 6 % in E misses the floor by orders of magnitude), so E
+// is not gridded: for each D on a grid it is minimised by Gauss-Newton on ln A0, and the local
+// minima of the resulting profile over D are the candidates.
 
 import { P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
 
-const D_GRID = logGrid(1e-3, 14, 14);
-const E_GRID = logGrid(1e-4, 10, 11);
+const D_GRID = logGrid(1e-3, 14, 20);
+const E_START = [1e-3, 0.1, 3];
 const MAX_SAMPLE = 40;
 const TAIL_SAMPLE = 14;
+const U_MAX = 1 - 1e-9;
 
 export interface InitialGuess {
   p: Float64Array;
-  /** Mean squared time residual of the grid point, s^2. */
+  /** Mean squared time residual at the start, s^2. */
   ms_residual_s2: number;
 }
 
+/** The sample's data, and scratch for the profile. */
+interface Profile {
+  n: number;
+  t: Float64Array;
+  tc: Float64Array; // t - mean(t)
+  stt: number; // sum tc^2
+  base: Float64Array; // m pi
+  sign: Float64Array;
+  grow: Float64Array; // V e^(alpha t) for the current alpha
+  psi: Float64Array;
+  dpsi: Float64Array;
+  wd: number;
+  phi: number;
+}
+
 /**
- * Grid search over (D, E). Returns the grid's local minima (lower than their eight neighbours),
- * best first, at most `max_candidates`; empty when no grid point explains the edges. Several
- * are returned because the valley in (A0, alpha) is narrow and curved: a coarse grid can rank a
- * point in a false basin above one beside the true minimum, which a short fit then separates.
+ * Candidate starts: the local minima over D of the cost minimised over E, best first, at most
+ * `max_candidates`; empty when nothing explains the edges.
  */
 export function initialCandidates(e: EdgeSet, vh_v: number, vl_v: number, max_candidates = 3): InitialGuess[] {
   const sample = pickSample(e);
   const n = sample.length;
   if (n < 4) return [];
-  const t = new Float64Array(n);
-  const level = new Float64Array(n);
-  const base = new Float64Array(n); // m pi
-  const sign = new Float64Array(n);
-  const grow = new Float64Array(n); // V e^(alpha t) for the current alpha
-  for (let j = 0; j < n; j++) {
-    const k = sample[j];
-    const rise = e.rising[k] === 1;
-    t[j] = e.t_s[k];
-    level[j] = rise ? vh_v : vl_v;
-    base[j] = e.m[k] * Math.PI;
-    sign[j] = rise ? 1 : -1;
-  }
-  const tLast = t[n - 1];
-  const vStop = Math.max(vh_v, -vl_v, 1e-300);
+  const pr = makeProfile(e, sample, vh_v, vl_v);
+  const tLast = pr.t[n - 1];
+  const lnStop = Math.log(Math.max(vh_v, -vl_v, 1e-300));
   const nd = D_GRID.length;
-  const ne = E_GRID.length;
-  const cost = new Float64Array(nd * ne);
-  const wdAt = new Float64Array(nd * ne);
-  const phiAt = new Float64Array(nd * ne);
-  const fit = { wd: 0, phi: 0 };
-  const psi = new Float64Array(n);
+  const cost = new Float64Array(nd);
+  const lnA = new Float64Array(nd);
+  const wd = new Float64Array(nd);
+  const phi = new Float64Array(nd);
   for (let i = 0; i < nd; i++) {
-    const alpha = D_GRID[i] / tLast;
-    for (let j = 0; j < n; j++) grow[j] = level[j] * Math.exp(alpha * t[j]);
-    for (let j = 0; j < ne; j++) {
-      const lnA = Math.log(vStop) + E_GRID[j] + D_GRID[i];
-      const c = profileCost(t, base, sign, grow, Math.exp(-lnA), psi, fit);
-      cost[i * ne + j] = c;
-      wdAt[i * ne + j] = fit.wd;
-      phiAt[i * ne + j] = fit.phi;
-    }
+    // Warm start from the previous D with its E held (the valley's E(D) is smooth).
+    const warm = i > 0 ? lnA[i - 1] + (D_GRID[i] - D_GRID[i - 1]) : NaN;
+    const at = evaluateD(pr, D_GRID[i], tLast, vh_v, vl_v, lnStop, warm, true);
+    cost[i] = at.cost;
+    lnA[i] = at.lnA;
+    wd[i] = at.wd;
+    phi[i] = at.phi;
   }
   const minima: number[] = [];
   for (let i = 0; i < nd; i++) {
-    for (let j = 0; j < ne; j++) {
-      const c = cost[i * ne + j];
-      if (!Number.isFinite(c) || !(wdAt[i * ne + j] > 0)) continue;
-      let lowest = true;
-      for (let di = -1; di <= 1 && lowest; di++) {
-        for (let dj = -1; dj <= 1; dj++) {
-          const ii = i + di;
-          const jj = j + dj;
-          if ((di === 0 && dj === 0) || ii < 0 || jj < 0 || ii >= nd || jj >= ne) continue;
-          if (cost[ii * ne + jj] < c) {
-            lowest = false;
-            break;
-          }
-        }
-      }
-      if (lowest) minima.push(i * ne + j);
-    }
+    if (!Number.isFinite(cost[i]) || !(wd[i] > 0)) continue;
+    if ((i > 0 && cost[i - 1] < cost[i]) || (i + 1 < nd && cost[i + 1] < cost[i])) continue;
+    minima.push(i);
   }
   minima.sort((x, y) => cost[x] - cost[y]);
-  return minima.slice(0, max_candidates).map((g) => {
-    const i = Math.floor(g / ne);
-    const j = g % ne;
+  const out: InitialGuess[] = [];
+  for (const i of minima.slice(0, max_candidates)) {
+    // The valley floor lies between grid points: refine D by successive parabolic steps in
+    // ln D (E re-minimised at each), so that the candidate's short fit starts on the floor.
+    let best = { d: D_GRID[i], lnA: lnA[i], cost: cost[i], wd: wd[i], phi: phi[i] };
+    let lo = Math.log(D_GRID[Math.max(0, i - 1)]);
+    let hi = Math.log(D_GRID[Math.min(nd - 1, i + 1)]);
+    let xs = [lo, Math.log(best.d), hi];
+    let cs = [i > 0 ? cost[i - 1] : Infinity, best.cost, i + 1 < nd ? cost[i + 1] : Infinity];
+    for (let it = 0; it < 4 && Number.isFinite(cs[0]) && Number.isFinite(cs[2]); it++) {
+      const x = parabolaVertex(xs, cs);
+      if (!(x > xs[0] && x < xs[2])) break;
+      const d = Math.exp(x);
+      const at = evaluateD(pr, d, tLast, vh_v, vl_v, lnStop, best.lnA + (d - best.d), false);
+      if (at.cost < best.cost) {
+        // Keep the bracket around the new best.
+        if (x < xs[1]) {
+          xs = [xs[0], x, xs[1]];
+          cs = [cs[0], at.cost, cs[1]];
+        } else {
+          xs = [xs[1], x, xs[2]];
+          cs = [cs[1], at.cost, cs[2]];
+        }
+        best = { d, lnA: at.lnA, cost: at.cost, wd: at.wd, phi: at.phi };
+      } else if (x < xs[1]) {
+        xs = [x, xs[1], xs[2]];
+        cs = [at.cost, cs[1], cs[2]];
+      } else {
+        xs = [xs[0], xs[1], x];
+        cs = [cs[0], cs[1], at.cost];
+      }
+    }
     const p = new Float64Array(4);
-    p[P_WD] = wdAt[g];
-    p[P_PHI] = phiAt[g];
-    p[P_LNA] = Math.log(vStop) + E_GRID[j] + D_GRID[i];
-    p[P_ALPHA] = D_GRID[i] / tLast;
-    return { p, ms_residual_s2: cost[g] / n };
-  });
+    p[P_WD] = best.wd;
+    p[P_PHI] = best.phi;
+    p[P_LNA] = best.lnA;
+    p[P_ALPHA] = best.d / tLast;
+    out.push({ p, ms_residual_s2: best.cost / (best.wd * best.wd * n) });
+  }
+  return out;
+}
+
+/** The profile at one D: E from a warm start and/or a coarse scan, then Gauss-Newton. */
+function evaluateD(
+  pr: Profile, d: number, tLast: number, vh_v: number, vl_v: number, lnStop: number, lnAStart: number,
+  scan: boolean,
+): { lnA: number; cost: number; wd: number; phi: number } {
+  const alpha = d / tLast;
+  for (let j = 0; j < pr.n; j++) pr.grow[j] = (pr.sign[j] > 0 ? vh_v : vl_v) * Math.exp(alpha * pr.t[j]);
+  let bestL = NaN;
+  let bestC = Infinity;
+  const tryAt = (l: number) => {
+    const c = projectedCost(pr, l);
+    if (c < bestC) {
+      bestC = c;
+      bestL = l;
+    }
+  };
+  if (Number.isFinite(lnAStart)) tryAt(lnAStart);
+  if (scan || !Number.isFinite(lnAStart)) for (const eFar of E_START) tryAt(lnStop + eFar + d);
+  return refineLnA(pr, bestL);
+}
+
+/** Abscissa of the vertex of the parabola through three points (x sorted). */
+function parabolaVertex(x: number[], y: number[]): number {
+  const d1 = (y[1] - y[0]) / (x[1] - x[0]);
+  const d2 = (y[2] - y[1]) / (x[2] - x[1]);
+  const curv = (d2 - d1) / (x[2] - x[0]);
+  if (!(curv > 0)) return NaN;
+  return 0.5 * (x[0] + x[1]) - d1 / (2 * curv);
+}
+
+function makeProfile(e: EdgeSet, sample: Int32Array, vh_v: number, vl_v: number): Profile {
+  const n = sample.length;
+  const pr: Profile = {
+    n, t: new Float64Array(n), tc: new Float64Array(n), stt: 0, base: new Float64Array(n),
+    sign: new Float64Array(n), grow: new Float64Array(n), psi: new Float64Array(n), dpsi: new Float64Array(n),
+    wd: 0, phi: 0,
+  };
+  let mean = 0;
+  for (let j = 0; j < n; j++) {
+    const k = sample[j];
+    pr.t[j] = e.t_s[k];
+    pr.base[j] = e.m[k] * Math.PI;
+    pr.sign[j] = e.rising[k] === 1 ? 1 : -1;
+    mean += pr.t[j];
+  }
+  mean /= n;
+  for (let j = 0; j < n; j++) {
+    pr.tc[j] = pr.t[j] - mean;
+    pr.stt += pr.tc[j] * pr.tc[j];
+  }
+  void vh_v;
+  void vl_v;
+  return pr;
 }
 
 /**
- * Sum of squared time residuals with (wd, phi) solved by least squares in phase, for fixed
- * amplitude (u_j = grow_j / A0). Edges the model cannot reach are scored as if at the peak
- * (u clamped to 1), which keeps the score continuous across the feasibility boundary.
+ * Sum of squared phase residuals of psi_j = m pi + s asin(u_j), u_j = grow_j / A0, about the
+ * best line wd t - phi (sets pr.wd, pr.phi), and d psi / d ln A0 into pr.dpsi. Edges the model
+ * cannot reach are scored as if at the peak (u clamped).
  */
-function profileCost(
-  t: Float64Array, base: Float64Array, sign: Float64Array, grow: Float64Array, invA0: number,
-  psi: Float64Array, out: { wd: number; phi: number },
-): number {
-  const n = t.length;
-  let st = 0, sp = 0, stt = 0, stp = 0;
+function projectedCost(pr: Profile, lnA: number): number {
+  const inv = Math.exp(-lnA);
+  const { n, psi, dpsi, grow, sign, base } = pr;
+  let mean = 0;
   for (let j = 0; j < n; j++) {
-    let u = grow[j] * invA0;
-    if (u > 1) u = 1;
-    else if (u < -1) u = -1;
-    const ps = base[j] + sign[j] * Math.asin(u);
-    const tj = t[j];
-    psi[j] = ps;
-    st += tj;
-    sp += ps;
-    stt += tj * tj;
-    stp += tj * ps;
+    let u = grow[j] * inv;
+    if (u > U_MAX) u = U_MAX;
+    else if (u < -U_MAX) u = -U_MAX;
+    psi[j] = base[j] + sign[j] * Math.asin(u);
+    dpsi[j] = (-sign[j] * u) / Math.sqrt(1 - u * u);
+    mean += psi[j];
   }
-  const det = n * stt - st * st;
-  if (!(det > 0)) return Infinity;
-  const wd = (n * stp - st * sp) / det;
-  const phi = (wd * st - sp) / n;
-  if (!(wd > 0)) return Infinity;
+  mean /= n;
+  let stp = 0;
+  for (let j = 0; j < n; j++) stp += pr.tc[j] * psi[j];
+  const slope = stp / pr.stt;
   let cost = 0;
   for (let j = 0; j < n; j++) {
-    const res = wd * t[j] - phi - psi[j];
+    const res = psi[j] - mean - slope * pr.tc[j];
     cost += res * res;
   }
-  out.wd = wd;
-  out.phi = phi;
-  return cost / (wd * wd);
+  pr.wd = slope;
+  pr.phi = slope * (pr.t[0] - pr.tc[0]) - mean; // wd * mean(t) - mean(psi)
+  return cost;
 }
 
-
+/**
+ * Gauss-Newton on ln A0 of the projected phase residuals (variable projection, one nonlinear
+ * parameter), with step halving; starts from lnA, where pr must not yet hold another point.
+ */
+function refineLnA(pr: Profile, lnA0: number): { lnA: number; cost: number; wd: number; phi: number } {
+  let lnA = lnA0;
+  let cost = projectedCost(pr, lnA);
+  let wd = pr.wd;
+  let phi = pr.phi;
+  const { n, psi, dpsi, tc } = pr;
+  const r = new Float64Array(n);
+  const dr = new Float64Array(n);
+  for (let it = 0; it < 6 && Number.isFinite(cost); it++) {
+    // Project psi and its derivative off span{1, t}; the GN step of the 1-D problem.
+    let mp = 0, md = 0, sp = 0, sd = 0;
+    for (let j = 0; j < n; j++) {
+      mp += psi[j];
+      md += dpsi[j];
+      sp += tc[j] * psi[j];
+      sd += tc[j] * dpsi[j];
+    }
+    mp /= n;
+    md /= n;
+    sp /= pr.stt;
+    sd /= pr.stt;
+    let num = 0, den = 0;
+    for (let j = 0; j < n; j++) {
+      r[j] = psi[j] - mp - sp * tc[j];
+      dr[j] = dpsi[j] - md - sd * tc[j];
+      num += r[j] * dr[j];
+      den += dr[j] * dr[j];
+    }
+    if (!(den > 0)) break;
+    let step = Math.max(-2, Math.min(2, -num / den));
+    let accepted = false;
+    for (let h = 0; h < 3; h++) {
+      const c = projectedCost(pr, lnA + step);
+      if (c < cost) {
+        const gain = (cost - c) / cost;
+        lnA += step;
+        cost = c;
+        wd = pr.wd;
+        phi = pr.phi;
+        accepted = gain > 1e-3;
+        break;
+      }
+      step *= 0.5;
+    }
+    // Refused or negligible: pr may hold a trial point, so stop here with the kept values.
+    if (!accepted) break;
+  }
+  return { lnA, cost, wd, phi };
+}
 
 /** Up to 40 edges with an index: the last 14 (they carry the amplitude) and the rest spread. */
 export function pickSample(e: EdgeSet): Int32Array {

@@ -106,7 +106,9 @@ describe("cycle bookkeeping and outliers", () => {
     const a = analyzeRing(input({ ticks, levels: c.edges.levels }, c.tick_hz, c.c_f));
     expect(a.warnings.map((w) => w.code)).toContain("SUSPECTED_CLIPPING");
     expect(a.rejected.map((r) => r.index)).toEqual(expect.arrayContaining([0, 1]));
-    expect(Math.abs(a.inductance_h / clean.inductance_h - 1)).toBeLessThan(1e-6);
+    // Two edges fewer than the clean capture: the same result within a small part of its U.
+    expect(Math.abs(a.inductance_h - clean.inductance_h)).toBeLessThan(0.25 * clean.inductance_u_h);
+    expect(Math.abs(a.q - clean.q)).toBeLessThan(0.25 * clean.q_u);
   });
 
   it("keeps count over thousands of edges at 12 ticks per period", () => {
