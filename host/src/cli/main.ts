@@ -6,6 +6,8 @@ import { runMeasure } from "./measure-command.ts";
 import { runProfile, runScenarios } from "./info-commands.ts";
 import { runSimDevice } from "./sim-device-command.ts";
 import { runSortCommand } from "./sort-command.ts";
+import { WATCH_USAGE } from "./measure-watch.ts";
+import { runWindCommand } from "./wind-command.ts";
 import { CliUsageError, reportError } from "./errors.ts";
 import { SAFETY_TEXT } from "./safety.ts";
 
@@ -18,6 +20,7 @@ Usage:
   henrytick profile (--sim | --port PATH)   show the tester's board profile
   henrytick scenarios                  list the simulated demo parts
   henrytick sort (--sim | --port PATH) --nominal 10u --tol 5%   sort parts against a tolerance
+  henrytick wind (--sim | --port PATH) --target 22u      turns to add or remove to reach a target
   henrytick sim-device [SCENARIO] [--seed N]   serve a simulated tester on a pseudo-terminal
                                        (prints its path for --port; needs socat; Ctrl-C stops)
 
@@ -29,6 +32,9 @@ Options for measure:
   --charge-us N        charge time with a fixed setting (default: 1000 µs or the interlock limit)
   --max-peak-v V       lower the ring-peak limit used by ranging (default 30 V)
   --seed N             noise seed for the simulated tester
+
+Continuous reading (measure --watch):
+${WATCH_USAGE}
 
 Options for analyze:  --json
 
@@ -49,6 +55,7 @@ export async function main(argv: string[]): Promise<number> {
         return await runProfile(rest);
       case "sim-device": return await runSimDevice(rest);
       case "sort": return await runSortCommand(rest);
+      case "wind": return await runWindCommand(rest);
       case "scenarios":
         return runScenarios(rest);
       case undefined:

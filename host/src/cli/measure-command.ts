@@ -7,6 +7,7 @@ import { openTester } from "../open-tester.ts";
 import { intOption, numberOption, parse, testerTarget } from "./args.ts";
 import { CliUsageError } from "./errors.ts";
 import { renderReading } from "./render.ts";
+import { runWatch, WATCH_OPTIONS } from "./measure-watch.ts";
 
 export async function runMeasure(args: string[]): Promise<number> {
   const { values, positionals } = parse(args, {
@@ -20,6 +21,7 @@ export async function runMeasure(args: string[]): Promise<number> {
     "charge-us": { type: "string" },
     "max-peak-v": { type: "string" },
     seed: { type: "string" },
+    ...WATCH_OPTIONS,
   });
   const target = testerTarget(values, positionals);
   const drive = intOption(values.drive, "drive", 0, 63);
@@ -36,6 +38,7 @@ export async function runMeasure(args: string[]): Promise<number> {
   try {
     const label = values.label ?? tester.scenario?.name;
     progress(`tester ${tester.client.identity.device_id} (firmware ${tester.client.identity.firmware_version}) via ${tester.client.transport.description}`);
+    if (values.watch) return await runWatch(tester, values, { drive, tank, charge_us, max_peak_v, label }, label ?? "part on the clips");
     const reading = await measurePart(tester.client, { drive, tank, charge_us, max_peak_v, label, onProgress: progress });
     if (values.save) {
       writeCaptureFile(values.save, reading.capture);

@@ -1,0 +1,141 @@
+// henrytick measure --watch: read the part again and again, with a trend line, a stability
+// verdict and, with --big, the value in large characters. On a terminal the block is redrawn in
+// place; otherwise (a pipe, a log file) one line per reading. --json gives JSON Lines, --csv rows.
+
+import { formatSi } from "../format/si.ts";
+import { MeasureError, measurePart, type MeasureOptions } from "../measure/measure-part.ts";
+import { buildResult, type ResultJson } from "../measure/result.ts";
+import type { OpenedTester } from "../open-tester.ts";
+import { formatMeasured, formatValueOnly } from "../values/format-value.ts";
+import { bigText } from "../workflows/big-digits.ts";
+import { makeStyle, type Style } from "../workflows/terminal.ts";
+import { assessStability, History, sparkline, type StabilityResult } from "../workflows/watch-trend.ts";
+import { intOption } from "./args.ts";
+
+/** Options measure accepts for --watch (spread into its parse table). */
+export const WATCH_OPTIONS = {
+  watch: { type: "boolean" },
+  big: { type: "boolean" },
+  count: { type: "string" },
+  "interval-ms": { type: "string" },
+  csv: { type: "boolean" },
+} as const;
+
+export const WATCH_USAGE = `  --watch              read continuously: trend line and stability (Ctrl-C stops)
+  --big                with --watch: the value in large characters
+  --count N            with --watch: stop after N readings
+  --interval-ms N      with --watch: pause between readings (default 300)
+  --csv                with --watch: one CSV row per reading`;
+
+interface WatchValues {
+  json?: boolean;
+  csv?: boolean;
+  big?: boolean;
+  count?: string;
+  "interval-ms"?: string;
+}
+
+const CSV_HEADER = "reading,time,inductance_h,inductance_u_h,q,esr_ohm,stability,warnings";
+
+export async function runWatch(tester: OpenedTester, values: WatchValues, measure: MeasureOptions, title: string): Promise<number> {
+  const count = intOption(values.count, "count", 1, 10_000_000);
+  const interval = intOption(values["interval-ms"], "interval-ms", 0, 3_600_000) ?? 300;
+  const style = makeStyle();
+  const tty = process.stdout.isTTY === true && !values.json && !values.csv;
+  const history = new History(40);
+  const stop = new AbortController();
+  const onSigint = () => stop.abort();
+  process.on("SIGINT", onSigint);
+  let drawn = 0;
+  let n = 0;
+  if (values.csv) process.stdout.write(CSV_HEADER + "\n");
+  process.stderr.write("   caution: the part is pulsed at every reading; keep fingers off transformer windings (Ctrl-C stops)\n");
+  try {
+    while (!stop.signal.aborted && (count === undefined || n < count)) {
+      let result: ResultJson | null = null;
+      let problem = "";
+      try {
+        const r = await measurePart(tester.client, { ...measure, onProgress: undefined });
+        result = buildResult(r.analysis, r.capture);
+      } catch (e) {
+        if (!(e instanceof MeasureError)) throw e;
+        problem = e.code === "NO_RING" ? "no part on the clips" : `[${e.code}] ${e.message}`;
+      }
+      n++;
+      if (result) history.push(result.inductance_h, result.inductance_u_h);
+      const st = assessStability(history.values, history.u);
+      const time = new Date().toISOString();
+      if (values.json) {
+        process.stdout.write(JSON.stringify(result ? { reading: n, time, ...result, stability: st.state } : { reading: n, time, error: problem }) + "\n");
+      } else if (values.csv) {
+        if (result) process.stdout.write([n, time, result.inductance_h, result.inductance_u_h, result.q, result.esr_ohm, st.state, result.warnings.map((w) => w.code).join(" ")].join(",") + "\n");
+      } else {
+        const block = values.big ? bigBlock(result, problem, st, history, n, style) : smallBlock(result, problem, st, history, n, title, style);
+        if (tty) {
+          if (drawn > 0) process.stdout.write(`\x1b[${drawn}F\x1b[J`);
+          process.stdout.write(block.join("\n") + "\n");
+          drawn = block.length;
+        } else {
+          process.stdout.write((values.big ? block.join("\n") : oneLine(result, problem, st, history, n)) + "\n");
+        }
+      }
+      if (interval > 0 && !stop.signal.aborted && (count === undefined || n < count)) await pause(interval, stop.signal);
+    }
+  } finally {
+    process.off("SIGINT", onSigint);
+  }
+  return history.values.length > 0 ? 0 : 1;
+}
+
+function stateText(st: StabilityResult, style: Style): string {
+  if (st.state === "steady") return style.good("steady");
+  if (st.state === "drifting") return style.unsure(`drifting ${st.slope_per_reading > 0 ? "up" : "down"}`);
+  if (st.state === "unsteady") return style.bad("unsteady");
+  return style.dim("gathering");
+}
+
+function trend(h: History): string {
+  const u = h.u.length ? h.u[h.u.length - 1] : 0;
+  return sparkline(h.values.slice(-24), u / 4);
+}
+
+function smallBlock(r: ResultJson | null, problem: string, st: StabilityResult, h: History, n: number, title: string, style: Style): string[] {
+  const head = `── ${title}   reading ${n}   ${stateText(st, style)}`;
+  if (!r) return [head, `   ${problem}`, `   trend        ${trend(h)}`];
+  return [
+    head,
+    `   inductance   ${style.bold(formatMeasured(r.inductance_h, r.inductance_u_h, "H"))}   Q ${r.q.toPrecision(3)}   ESR ${formatSi(r.esr_ohm, "Ω", 3)}`,
+    `   trend        ${trend(h)}   ${rangeText(h)}`,
+  ];
+}
+
+function bigBlock(r: ResultJson | null, problem: string, st: StabilityResult, h: History, n: number, style: Style): string[] {
+  const value = r ? formatValueOnly(r.inductance_h, r.inductance_u_h, "H") : "- - -";
+  const lines = bigText(value).map((l) => `  ${l}`);
+  lines.push("");
+  lines.push(r ? `  ± ${formatMeasured(r.inductance_h, r.inductance_u_h, "H").split("± ")[1]} (k = 2)   ${stateText(st, style)}   ${trend(h)}   reading ${n}` : `  ${problem}   reading ${n}`);
+  return lines;
+}
+
+function oneLine(r: ResultJson | null, problem: string, st: StabilityResult, h: History, n: number): string {
+  if (!r) return `#${n}  ${problem}`;
+  return `#${n}  ${formatMeasured(r.inductance_h, r.inductance_u_h, "H")}  Q ${r.q.toPrecision(3)}  ${st.state}  ${trend(h)}`;
+}
+
+function rangeText(h: History): string {
+  const v = h.values.slice(-24);
+  if (v.length < 2) return "";
+  return `(last ${v.length}: ${formatSi(Math.min(...v), "H", 4)} … ${formatSi(Math.max(...v), "H", 4)})`;
+}
+
+function pause(ms: number, signal: AbortSignal): Promise<void> {
+  return new Promise((resolve) => {
+    const t = setTimeout(done, ms);
+    function done() {
+      clearTimeout(t);
+      signal.removeEventListener("abort", done);
+      resolve();
+    }
+    signal.addEventListener("abort", done, { once: true });
+  });
+}

@@ -1,0 +1,134 @@
+// henrytick wind: after each reading at a known turn count, how many turns to add or remove to
+// reach the target, from L ∝ N² refined by a fit over the readings so far.
+
+import { formatSi } from "../format/si.ts";
+import { measurePart } from "../measure/measure-part.ts";
+import { buildResult } from "../measure/result.ts";
+import { openTester } from "../open-tester.ts";
+import { formatMeasured } from "../values/format-value.ts";
+import { parseValue } from "../values/parse-value.ts";
+import { parseTolerance, toleranceLimits, type Limits } from "../values/tolerance.ts";
+import { coilOnFormer, formerTurnRange } from "../workflows/sim-coil.ts";
+import { makeStyle, stdinLines, type Style } from "../workflows/terminal.ts";
+import { windingAdvice, type WindingAdvice, type WindingReading } from "../workflows/winding.ts";
+import { numberOption, parse, testerTarget } from "./args.ts";
+import { CliUsageError } from "./errors.ts";
+
+export const WIND_HELP = `henrytick wind — wind a coil to a target inductance
+
+Usage:
+  henrytick wind (--sim | --port PATH) --target VALUE [--tol TOL] [--turns LIST]
+
+  Tell henrytick how many turns are on the coil, it measures and says how many turns to add
+  or remove. With --turns the counts are taken from the list; otherwise type one count per
+  line: 36 (turns now on the coil), +3 / -2 (turns added or removed), an empty line to measure
+  again, q to finish.
+
+Options:
+  --target VALUE    target inductance: 22u, 22 µH, 2m2, 2.2e-3
+  --tol TOL         done when the reading conforms to the target ± TOL (5%, J, 0.5u …)
+  --turns LIST      turn counts to measure in order, e.g. 30,38,43
+  --max-peak-v V    lower the ring-peak limit (default 30 V)
+  --seed N          noise seed for the simulated tester
+  --json            print the readings and the last advice as JSON at the end
+  --csv             print one CSV row per reading
+
+  --sim winds on a simulated 20 mm former with AWG 24 wire (about 4 to 349 turns, 0.3 µH to
+  about 230 µH).
+
+Examples:
+  henrytick wind --sim --target 22u --turns 30,38
+  henrytick wind --port /dev/ttyACM0 --target 150u --tol 2%
+`;
+
+const CSV_HEADER = "turns,inductance_h,inductance_u_h,error_rel,decision,recommended_turns,turns_to_change,predicted_h,exponent";
+
+export async function runWindCommand(args: string[]): Promise<number> {
+  const { values, positionals } = parse(args, {
+    sim: { type: "boolean" }, port: { type: "string" }, seed: { type: "string" }, help: { type: "boolean", short: "h" },
+    target: { type: "string" }, tol: { type: "string" }, turns: { type: "string" }, "max-peak-v": { type: "string" },
+    json: { type: "boolean" }, csv: { type: "boolean" },
+  });
+  if (values.help) {
+    process.stdout.write(WIND_HELP);
+    return 0;
+  }
+  if (positionals.length > 0) throw new CliUsageError(`unexpected argument "${positionals[0]}"`);
+  if (values.json && values.csv) throw new CliUsageError("use either --json or --csv, not both");
+  if (!values.target) throw new CliUsageError("wind needs --target, e.g. --target 22u");
+  const target = parseValue(values.target);
+  if (!(target.value > 0)) throw new CliUsageError(`--target must be a positive inductance, got "${values.target}"`);
+  const tolText = values.tol ?? target.toleranceLetter;
+  const limits: Limits | undefined = tolText ? toleranceLimits(target.value, parseTolerance(tolText)) : undefined;
+  const max_peak_v = numberOption(values["max-peak-v"], "max-peak-v", 0.1, 1000);
+  const listed = values.turns?.split(",").map((t) => turnCount(t.trim()));
+  const testerAt = testerTarget(values, []);
+
+  const style = makeStyle();
+  const note = (m: string) => process.stderr.write(`   ${m}\n`);
+  const tester = await openTester(testerAt);
+  const range = formerTurnRange();
+  const readings: WindingReading[] = [];
+  let advice: WindingAdvice | null = null;
+  try {
+    note(`winding to ${formatSi(target.value, "H", 4)}${limits ? `, done within ${formatSi(limits.lower, "H", 4)} … ${formatSi(limits.upper, "H", 4)}` : ""}`);
+    note("caution: the coil is pulsed at every reading; keep fingers off it and off any other winding on the core");
+    if (values.csv) process.stdout.write(CSV_HEADER + "\n");
+    const counts = listed ? listSource(listed) : stdinLines("turns on the coil now (36, +3, -2; Enter repeats; q finishes): ");
+    let turns = 0;
+    for await (const line of counts) {
+      const t = line.trim();
+      if (t.toLowerCase() === "q") break;
+      if (t !== "") turns = /^[+-]/.test(t) ? turns + turnCount(t.slice(1)) * (t[0] === "-" ? -1 : 1) : turnCount(t);
+      if (turns < 1) {
+        note(turns === 0 ? "say how many turns are on the coil first, e.g. 30" : "that leaves fewer than one turn; give the count again");
+        turns = Math.max(0, turns);
+        continue;
+      }
+      if (tester.sim) {
+        if (turns < range.min || turns > range.max) throw new CliUsageError(`the simulated former takes ${range.min} to ${range.max} turns, got ${turns}`);
+        tester.sim.part = coilOnFormer(turns);
+      }
+      const r = await measurePart(tester.client, { max_peak_v, label: `${turns} turns` });
+      const result = buildResult(r.analysis, r.capture);
+      readings.push({ turns, inductance_h: result.inductance_h, inductance_u_h: result.inductance_u_h });
+      advice = windingAdvice(readings, target.value, limits);
+      if (values.csv) process.stdout.write(csvLine(advice) + "\n");
+      else if (!values.json) process.stdout.write(adviceText(advice, target.value, style) + "\n");
+      if (advice.last.decision === "conforming") note("on target: the reading conforms to the tolerance");
+    }
+  } finally {
+    await tester.close();
+  }
+  if (values.json) process.stdout.write(JSON.stringify({ target_h: target.value, limits: limits ?? null, readings, advice }, null, 2) + "\n");
+  if (!advice) note("no reading was taken");
+  return 0;
+}
+
+async function* listSource(list: number[]): AsyncGenerator<string> {
+  for (const n of list) yield String(n);
+}
+
+function turnCount(t: string): number {
+  const n = Number(t);
+  if (t === "" || !Number.isInteger(n) || n < 0 || n > 100_000) throw new CliUsageError(`a turn count is a whole number, got "${t}"`);
+  return n;
+}
+
+export function adviceText(a: WindingAdvice, target_h: number, style: Style): string {
+  const l = a.last;
+  const pct = (100 * l.error_rel).toFixed(l.error_rel === 0 || Math.abs(l.error_rel) >= 0.1 ? 1 : 2);
+  const verdict = l.decision === "conforming" ? style.good("  on target") : l.decision === "nonconforming" ? "" : l.decision ? style.unsure("  within U of a limit") : "";
+  const change = a.turns_to_change === 0 ? "keep the turns" : a.turns_to_change > 0 ? `add ${a.turns_to_change} turn${a.turns_to_change === 1 ? "" : "s"}` : `remove ${-a.turns_to_change} turn${a.turns_to_change === -1 ? "" : "s"}`;
+  const nb = a.neighbours.map((n) => `${n.turns}: ${formatSi(n.predicted_h, "H", 3)}`).join(", ");
+  return [
+    `── ${l.turns} turns: ${formatMeasured(l.inductance_h, l.inductance_u_h, "H")}   ${l.error_rel >= 0 ? "+" : ""}${pct} % from ${formatSi(target_h, "H", 4)}${verdict}`,
+    `   next         ${style.bold(change)} → ${a.recommended_turns} turns ≈ ${formatSi(a.predicted_h, "H", 4)}   (${nb})`,
+    `   model        L ∝ N^${a.model.exponent.toFixed(2)} from ${a.model.readings} reading${a.model.readings === 1 ? "" : "s"}; target at ${a.turns_for_target.toFixed(1)} ± ${a.turns_for_target_u.toFixed(1)} turns`,
+  ].join("\n");
+}
+
+function csvLine(a: WindingAdvice): string {
+  const l = a.last;
+  return [l.turns, l.inductance_h, l.inductance_u_h, l.error_rel, l.decision ?? "", a.recommended_turns, a.turns_to_change, a.predicted_h, a.model.exponent].join(",");
+}
