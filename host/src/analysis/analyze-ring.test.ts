@@ -115,3 +115,22 @@ describe("analyzeRing on noisy simulated captures", () => {
     if (bound.edges >= 40 && k.thresholds_v[0] + k.thresholds_v[1] !== 0) expect(lSd).toBeLessThan(1.25e-4);
   });
 });
+
+describe("a ring known to have died out (ring_ended)", () => {
+  it("keeps Q of a low-Q part with few edges sane", () => {
+    // 1 µH, Q 3, rung to 3 V on 4.7 nF with offset thresholds: 8 edges. The edges alone bound Q
+    // only to about ±90 % (Cramér-Rao, Kay 1993 §3.9) and let the fit run to the no-decay limit;
+    // that the ring did not reach the next threshold keeps it within a factor of three.
+    const k: Case = { l_h: 1e-6, c_f: 4.7e-9, q: 3, a0_v: 3, thresholds_v: OFFSET, tick_hz: 92e6 };
+    let runaways = 0;
+    for (let seed = 1; seed <= 20; seed++) {
+      const { input, q } = capture(k, 1000 + seed, { jitter_s: 6.5e-9, noise_v: 0.5e-3 });
+      const ended = analyzeRing({ ...input, ring_ended: true });
+      expect(ended.q).toBeGreaterThan(q / 3);
+      expect(ended.q).toBeLessThan(3 * q);
+      if (analyzeRing(input).q > 10 * q) runaways++;
+    }
+    expect(runaways).toBeGreaterThan(0); // without the knowledge some fits do run away
+  });
+});
+

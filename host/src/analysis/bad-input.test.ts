@@ -52,6 +52,7 @@ describe("bad input gives a clear error, never a number", () => {
     ["NaN threshold", (i: RingInput) => ({ ...i, thresholds_v: [NaN, -0.005] as [number, number] }), "BAD_INPUT"],
     ["negative capacitance uncertainty", (i: RingInput) => ({ ...i, tank_c_u_f: -1e-12 }), "BAD_INPUT"],
     ["NaN timebase uncertainty", (i: RingInput) => ({ ...i, timebase_u_rel: NaN }), "BAD_INPUT"],
+    ["ring_ended not a boolean", (i: RingInput) => ({ ...i, ring_ended: 1 as unknown as boolean }), "BAD_INPUT"],
   ])("%s", (_name, corrupt, code) => {
     expect(codeOf(() => analyzeRing(corrupt(good())))).toBe(code);
   });

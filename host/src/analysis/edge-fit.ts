@@ -23,6 +23,12 @@ export interface FitLimits {
   /** Limit on ln(A0 / V_stop). */
   a_max: number;
   alpha_min: number;
+  /**
+   * When the ring is known to have ended: half a period after the last edge the envelope is
+   * below the next edge's threshold, ln A(t_next) <= ln_v_next (+5 % for noise).
+   */
+  t_next_s?: number;
+  ln_v_next?: number;
 }
 
 export interface EdgeFitResult {
@@ -207,6 +213,16 @@ function penalty(p: Float64Array, limits: FitLimits | null, hp: Float64Array, gp
     chi2 += r * r;
     hp[10] += 1e4;
     gp[2] += 100 * r;
+  }
+  if (limits.t_next_s !== undefined && limits.ln_v_next !== undefined) {
+    const tn = limits.t_next_s;
+    const overNext = p[P_LNA] - p[P_ALPHA] * tn - limits.ln_v_next - 0.05;
+    if (overNext > 0) {
+      const r = 100 * overNext;
+      chi2 += r * r;
+      hp[10] += 1e4; hp[11] += -1e4 * tn; hp[14] += -1e4 * tn; hp[15] += 1e4 * tn * tn;
+      gp[2] += 100 * r; gp[3] += -100 * tn * r;
+    }
   }
   const under = limits.alpha_min - p[P_ALPHA];
   if (under > 0) {

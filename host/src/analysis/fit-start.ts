@@ -35,12 +35,27 @@ export function bestStart(
 /**
  * The fit's soft limits (edge-fit.ts): the ring at the last edge at most e^9 times the stopping
  * threshold (beyond that the threshold delays are below 1e-4 rad and carry no amplitude), at the
- * start at most e^12 ~ 1.6e5 times it (a front end has clipped long before), and Q at most 1e6.
+ * start at most e^12 ~ 1.6e5 times it (a front end has clipped long before), Q at most 1e6, and,
+ * when the capture says the ring died out, no next edge.
  */
 export function fitLimits(e: EdgeSet, c: CheckedInput, wd: number): FitLimits {
-  let tLast = 0;
-  for (let k = 0; k < e.n; k++) if (e.m[k] === e.m[k]) tLast = e.t_s[k];
-  return { t_last_s: tLast, ln_v_stop: Math.log(Math.max(c.vh_v, -c.vl_v)), e_max: 9, a_max: 12, alpha_min: wd / 2e6 };
+  let last = -1;
+  for (let k = 0; k < e.n; k++) if (e.m[k] === e.m[k]) last = k;
+  const tLast = last >= 0 ? e.t_s[last] : 0;
+  const limits: FitLimits = {
+    t_last_s: tLast, ln_v_stop: Math.log(Math.max(c.vh_v, -c.vl_v)), e_max: 9, a_max: 12, alpha_min: wd / 2e6,
+  };
+  if (c.ring_ended && last >= 0) {
+    // The next edge would have the other level; it needs the ring beyond that level's
+    // threshold on the far side of zero (rising: VH > 0, falling: VL < 0), about half a period on.
+    const nextRising = e.rising[last] === 0;
+    const v = nextRising ? c.vh_v : -c.vl_v;
+    if (v > 0) {
+      limits.t_next_s = tLast + Math.PI / wd;
+      limits.ln_v_next = Math.log(v);
+    }
+  }
+  return limits;
 }
 
 /** 1 for up to `count` indexed edges: the last `tail` of them and an even spread of the rest. */

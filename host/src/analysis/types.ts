@@ -16,6 +16,13 @@ export interface RingInput {
   timebase_u_rel?: number;
   /** [rising, falling] comparator thresholds referred to the ring voltage, volts; rising > falling. */
   thresholds_v: [number, number];
+  /**
+   * True when the capture ended because the comparator stayed quiet after the last edge (the
+   * ring died out), false or absent when it ended on an edge limit or a timeout, or when that is
+   * not known. When true, the fit also uses that the ring did not reach the next threshold: with
+   * few edges (low Q) this is much of what fixes the decay.
+   */
+  ring_ended?: boolean;
 }
 
 /** A condition the user should know about; `code` is stable, `message` says what to do next. */

@@ -17,6 +17,7 @@ export interface CheckedInput {
   c_f: number;
   c_u_f: number;
   timebase_u_rel: number;
+  ring_ended: boolean;
 }
 
 export function checkInput(input: RingInput): CheckedInput {
@@ -58,7 +59,8 @@ export function checkInput(input: RingInput): CheckedInput {
   if (n < MIN_EDGES) {
     throw new AnalysisError("TOO_FEW_EDGES", `only ${n} edge(s) captured, at least ${MIN_EDGES} are needed: raise the drive current or lower the thresholds so the ring lasts longer`);
   }
-  return { t_s, rising, tick_s, vh_v: vh, vl_v: vl, c_f: tank_c_f, c_u_f, timebase_u_rel: tb };
+  if (input.ring_ended !== undefined && typeof input.ring_ended !== "boolean") bad("ring_ended must be true, false or absent");
+  return { t_s, rising, tick_s, vh_v: vh, vl_v: vl, c_f: tank_c_f, c_u_f, timebase_u_rel: tb, ring_ended: input.ring_ended === true };
 }
 
 function bad(message: string): never {
