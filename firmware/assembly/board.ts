@@ -2,7 +2,7 @@
 // this file; the firmware reads nothing else about the hardware. Values are nominal: the
 // host's calibration measures the real ones.
 
-export const FIRMWARE_VERSION: string = "0.1.0";
+export const FIRMWARE_VERSION: string = "0.2.0";
 export const PRODUCT: string = "henrytick";
 
 /** Capture timer tick rate. 64 MHz gives 15.6 ns resolution and a 2^30-tick window of 16.7 s. */

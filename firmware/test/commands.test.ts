@@ -18,7 +18,7 @@ const withCrc = (body: string) => {
 describe("firmware commands", () => {
   it("identifies itself with product, version, protocol and device id", () => {
     const link = new SimLink();
-    expect(link.send("ID").map(show)).toEqual([`ID henrytick 0.1.0 ${PROTOCOL_VERSION} HT-5EED0001`, "OK ID"]);
+    expect(link.send("ID").map(show)).toEqual([`ID henrytick 0.2.0 ${PROTOCOL_VERSION} HT-5EED0001`, "OK ID"]);
   });
 
   it("reports a profile whose nominal values match the simulated board", () => {
@@ -68,7 +68,7 @@ describe("firmware commands", () => {
     const link = new SimLink();
     link.raw("I");
     link.sim.fw.fw_rx_overrun();
-    expect(strip(link.raw("D*A21B\n" + text("ID")))).toEqual([`ER ${ERR_CRC} ?`, `ID henrytick 0.1.0 ${PROTOCOL_VERSION} HT-5EED0001`, "OK ID"]);
+    expect(strip(link.raw("D*A21B\n" + text("ID")))).toEqual([`ER ${ERR_CRC} ?`, `ID henrytick 0.2.0 ${PROTOCOL_VERSION} HT-5EED0001`, "OK ID"]);
   });
 
   it("ignores blank lines (a host resynchronises with a newline)", () => {
