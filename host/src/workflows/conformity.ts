@@ -25,9 +25,12 @@ export function decideConformity(measured: number, U: number, limits: Limits, k 
   if (!(U >= 0) || !Number.isFinite(U)) throw new RangeError(`expanded uncertainty must be finite and >= 0, got ${U}`);
   if (!(limits.upper > limits.lower)) throw new RangeError(`upper limit ${limits.upper} must be above lower limit ${limits.lower}`);
   const acceptance = { lower: limits.lower + U, upper: limits.upper - U };
+  // Zone boundaries are inclusive; a part-per-trillion allowance keeps a value typed exactly on a
+  // boundary (10.4 µH against 10.5 µH - 0.1 µH) from falling off it through binary rounding.
+  const eps = 1e-12 * Math.max(Math.abs(limits.lower), Math.abs(limits.upper));
   let decision: Decision;
-  if (measured >= acceptance.lower && measured <= acceptance.upper) decision = "conforming";
-  else if (measured < limits.lower - U || measured > limits.upper + U) decision = "nonconforming";
+  if (measured >= acceptance.lower - eps && measured <= acceptance.upper + eps) decision = "conforming";
+  else if (measured < limits.lower - U - eps || measured > limits.upper + U + eps) decision = "nonconforming";
   else decision = "inconclusive";
   return { decision, p_conform: conformanceProbability(measured, U / k, limits), acceptance };
 }

@@ -1,0 +1,48 @@
+import { mkdtempSync, readFileSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { describe, expect, it } from "vitest";
+import { csvField, CSV_COLUMNS, SortLog } from "./sort-log.ts";
+import type { PartRecord } from "./sort-session.ts";
+
+const rec = (part: number, label = ""): PartRecord => ({
+  part, time: "2026-01-01T00:00:00.000Z", lot: "A", label, inductance_h: 1e-5, inductance_u_h: 1e-7, decision: "conforming",
+  p_conform: 1, lower_h: 9.5e-6, upper_h: 1.05e-5, bin: "", bin_certain: null, preferred_h: null, q: 50, esr_ohm: 0.1,
+  warnings: "", drive_index: 0, tank_index: 1, charge_us: 10, tank_c_f: 1e-7, tank_calibrated: false,
+});
+
+describe("sort log", () => {
+  const dir = mkdtempSync(join(tmpdir(), "henrytick-log-"));
+
+  it("appends CSV rows and JSON lines, keeping earlier sessions", () => {
+    const base = join(dir, "a");
+    let log = SortLog.open({ csv: `${base}.csv`, jsonl: `${base}.jsonl` });
+    log.append(rec(1));
+    log.close();
+    log = SortLog.open({ csv: `${base}.csv`, jsonl: `${base}.jsonl` });
+    log.append(rec(1, 'odd, "quoted" label'));
+    log.close();
+    const csv = readFileSync(`${base}.csv`, "utf8").trimEnd().split("\n");
+    expect(csv[0]).toBe(CSV_COLUMNS.join(","));
+    expect(csv.length).toBe(3);
+    expect(csv[2]).toContain('"odd, ""quoted"" label"');
+    const lines = readFileSync(`${base}.jsonl`, "utf8").trimEnd().split("\n").map((l) => JSON.parse(l));
+    expect(lines.map((l) => l.label)).toEqual(["", 'odd, "quoted" label']);
+  });
+
+  it("refuses a CSV with other columns (code LOG_HEADER_MISMATCH)", () => {
+    const p = join(dir, "other.csv");
+    writeFileSync(p, "a,b\n1,2\n");
+    expect(() => SortLog.open({ csv: p })).toThrow(expect.objectContaining({ code: "LOG_HEADER_MISMATCH" }));
+  });
+
+  it("refuses an unwritable place (code LOG_UNWRITABLE)", () => {
+    expect(() => SortLog.open({ jsonl: join(dir, "no-such-dir", "x.jsonl") })).toThrow(expect.objectContaining({ code: "LOG_UNWRITABLE" }));
+  });
+
+  it("quotes CSV fields per RFC 4180", () => {
+    expect(csvField("a,b")).toBe('"a,b"');
+    expect(csvField(null)).toBe("");
+    expect(csvField(1.5)).toBe("1.5");
+  });
+});
