@@ -1,0 +1,137 @@
+// Automatic ranging: probe gently, then step by the advice. The probe starts at the gentlest
+// setting (largest tank, largest drive resistor: the lowest ring voltage for any part) and
+// raises the current tenfold only while nothing rings. Each reading refines the estimate (L, the
+// loss model, the measured amplitude, the noise) and every setting is re-predicted from it before
+// the next pulse, so a part that is not what the probe suggested cannot lead past a limit.
+
+import type { DeviceClient, MeasureSettings } from "../device/client.ts";
+import type { RawCapture } from "../device/stream-reader.ts";
+import type { Advice } from "../ranging/advice.ts";
+import { adviseSettings } from "../ranging/advice.ts";
+import type { PartEstimate } from "../ranging/estimate.ts";
+import { estimateFromProbe, estimateFromReading, refineEstimate } from "../ranging/estimate.ts";
+import type { PlanLimits } from "../ranging/predict.ts";
+import type { MeasureOptions, Reading } from "./measure-part.ts";
+import { MeasureError, describeSetting, readOnce } from "./read-once.ts";
+
+const PROBE_CHARGE_US = 5000;
+const PROBE_QUIET_US = 20000;
+const PROBE_TIMEOUT_MS = 1000;
+/** Peak predictions from the rough probe estimate get this margin below the limit. */
+const ROUGH_MARGIN = 0.7;
+const MAX_STEPS = 4;
+/** Fewest edges a ranged reading should rest on; fewer is reported with the reason. */
+export const MIN_EDGES_AUTO = 20;
+
+/** Largest inductance the probe must stay safe for, henries (the tester's range with margin). */
+export const PROBE_MAX_L_H = 1;
+
+/**
+ * Longest probe charge that keeps the ring below `limit_v` whatever the part, up to
+ * PROBE_MAX_L_H. The current at opening is at most V t / L (the inductor's voltage never exceeds
+ * the supply) and at most 2 V / R (the charge-phase ring can overshoot V / R twice), so the ring's
+ * amplitude I0 sqrt(L/C) is at most V sqrt(2 t / (R C)), reached at L = R t / 2 (and for larger L
+ * than PROBE_MAX_L_H the bound only falls).
+ */
+export function safeProbeChargeUs(supply_v: number, r_ohm: number, c_f: number, limit_v: number): number {
+  const ratio = limit_v / supply_v;
+  return Math.floor(((ratio * ratio * r_ohm * c_f) / 2) * 1e6);
+}
+
+/**
+ * The gentle probe: tanks from the largest (lowest ring voltage for any current) down, drive
+ * resistors from the largest down, each charge short enough to be safe for any part, until
+ * something rings. Returns the first estimate of the part, or throws NO_RING.
+ */
+export async function probePart(client: DeviceClient, progress: (m: string) => void, limit_v: number): Promise<PartEstimate> {
+  const profile = client.profile;
+  const tanks = profile.tanks.map((t) => t.index).sort((a, b) => profile.tanks[b].nominal_f - profile.tanks[a].nominal_f);
+  const drives = profile.drives.map((d) => d.index).sort((a, b) => profile.drives[b].ohm - profile.drives[a].ohm);
+  for (const tank of tanks) {
+    for (const drive of drives) {
+      const safe = safeProbeChargeUs(profile.supply_v, profile.drives[drive].ohm, profile.tanks[tank].nominal_f, limit_v);
+      const charge = Math.min(PROBE_CHARGE_US, profile.drives[drive].max_charge_us, safe);
+      if (charge < 1) continue;
+      const s: MeasureSettings = { drive, tank, charge_us: charge, edge_limit: profile.buffer_edges, timeout_ms: PROBE_TIMEOUT_MS, quiet_us: PROBE_QUIET_US };
+      progress(`probing: ${describeSetting(client, s)}`);
+      const raw: RawCapture = await client.measure(s);
+      const est = estimateFromProbe(profile, drive, tank, charge, raw.ticks, raw.levels);
+      if (est) return est;
+    }
+  }
+  throw new MeasureError(
+    "NO_RING",
+    "nothing rang at any drive current: the clips may be open, the part may be a resistor rather than an inductor, or it is far outside 1 µH–1 H; check the connection and measure again",
+  );
+}
+
+export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: MeasureOptions, progress: (m: string) => void): Promise<Reading> {
+  const profile = client.profile;
+  const tanks = opts.calibration?.tanks;
+  let est = opts.estimate ?? (await probePart(client, progress, limits.max_peak_v));
+  let best: Reading | null = null;
+  let lastAdvice: Advice[] = [];
+  const tried = new Set<string>();
+  const failures: string[] = [];
+  for (let step = 0; step < MAX_STEPS; step++) {
+    const stepLimits = est.fitted ? limits : { ...limits, max_peak_v: limits.max_peak_v * ROUGH_MARGIN };
+    lastAdvice = adviseSettings(profile, est, stepLimits, tanks);
+    const next = lastAdvice.find((a) => a.refused === "" && !tried.has(key(a)));
+    if (!next) break;
+    // Precision target: stop once a reading is as good as the best setting is expected to be.
+    if (best && best.analysis.edges_used >= MIN_EDGES_AUTO && relU(best) <= 1.1 * Math.min(...lastAdvice.filter((a) => a.refused === "").map((a) => a.l_rel_u))) break;
+    tried.add(key(next));
+    progress(`step ${step + 1}: ${next.reason}`);
+    let reading: Reading;
+    try {
+      reading = await readOnce(client, settingsFor(client, next), opts, progress);
+    } catch (e) {
+      if (!(e instanceof MeasureError) || !["TOO_FEW_EDGES", "NO_RING"].includes(e.code)) throw e;
+      failures.push(`${next.reason} It gave no usable ring (${e.code}).`);
+      continue;
+    }
+    if (reading.analysis.amplitude_v > limits.max_peak_v) {
+      // The physics said otherwise; keep the reading but go no further up.
+      progress(`caution: the ring reached ${reading.analysis.amplitude_v.toFixed(1)} V, above the ${limits.max_peak_v} V limit; stopping here`);
+      return { ...reading, prediction: next, advice: lastAdvice };
+    }
+    est = refineEstimate(est, estimateFromReading(profile, next, reading.analysis));
+    if (!best || better(reading, best)) best = { ...reading, prediction: next, advice: lastAdvice };
+  }
+  if (!best) {
+    const why = lastAdvice.slice(0, 3).map((a) => a.reason).join(" ");
+    throw new MeasureError("NO_SETTING", `no setting gives a usable ring within the limits. ${failures.join(" ")} ${why}`.trim());
+  }
+  if (best.analysis.edges_used < MIN_EDGES_AUTO) {
+    best.analysis.warnings.push({
+      code: "FEW_EDGES_BEST_SETTING",
+      message: `the best setting found gives only ${best.analysis.edges_used} edges: the part is too heavily damped for a longer ring within the ${limits.max_peak_v} V limit; the reading rests on few cycles`,
+    });
+  }
+  return best;
+}
+
+/** A reading with enough edges beats one without; then the smaller uncertainty of L wins. */
+function better(a: Reading, b: Reading): boolean {
+  const ea = a.analysis.edges_used >= MIN_EDGES_AUTO;
+  const eb = b.analysis.edges_used >= MIN_EDGES_AUTO;
+  if (ea !== eb) return ea;
+  return relU(a) < relU(b);
+}
+
+function relU(r: Reading): number {
+  return r.analysis.inductance_u_h / 2 / r.analysis.inductance_h;
+}
+
+function key(a: { drive: number; tank: number }): string {
+  return `${a.drive}/${a.tank}`;
+}
+
+/** Capture settings for a predicted setting: quiet after 4 periods, window 3x the ring. */
+export function settingsFor(client: DeviceClient, p: Advice): MeasureSettings {
+  const period_us = 1e6 / p.f_hz;
+  const quiet = Math.max(50, Math.ceil(4 * period_us));
+  const ring_ms = Math.max(p.usable_cycles, 20) * period_us * 1e-3;
+  const timeout = Math.min(client.profile.max_timeout_ms, Math.ceil(3 * ring_ms + quiet / 1000 + 20));
+  return { drive: p.drive, tank: p.tank, charge_us: p.charge_us, edge_limit: client.profile.buffer_edges, timeout_ms: timeout, quiet_us: quiet };
+}

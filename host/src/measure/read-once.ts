@@ -1,0 +1,40 @@
+// Single pulses and their analysis, shared by fixed-setting readings and automatic ranging.
+
+import type { RingAnalysis } from "../analysis/index.ts";
+import { AnalysisError, analyzeRing } from "../analysis/index.ts";
+import type { CaptureV1 } from "../capture/capture-file.ts";
+import type { DeviceClient, MeasureSettings } from "../device/client.ts";
+import { formatSi } from "../format/si.ts";
+import { captureFromDevice, ringInputFromCapture } from "./capture-build.ts";
+import type { MeasureOptions, Reading } from "./measure-part.ts";
+
+export class MeasureError extends Error {
+  constructor(readonly code: string, message: string) {
+    super(message);
+    this.name = "MeasureError";
+  }
+}
+
+/** Pulses once on the given settings and analyses the capture. */
+export async function readOnce(client: DeviceClient, settings: MeasureSettings, opts: MeasureOptions, progress: (m: string) => void): Promise<Reading> {
+  progress(`measuring: ${describeSetting(client, settings)}`);
+  const raw = await client.measure(settings);
+  const capture = captureFromDevice(raw, client.identity, client.profile, client.transport.description, opts.label, opts.calibration);
+  return { capture, analysis: analyzeCapture(capture), settings };
+}
+
+/** Analysis of a capture, with ring-level failures turned into a user-facing MeasureError. */
+export function analyzeCapture(capture: CaptureV1): RingAnalysis {
+  try {
+    return analyzeRing(ringInputFromCapture(capture));
+  } catch (e) {
+    if (e instanceof AnalysisError) throw new MeasureError(e.code, e.message);
+    throw e;
+  }
+}
+
+export function describeSetting(client: DeviceClient, s: { drive: number; tank: number; charge_us: number }): string {
+  const r = client.profile.drives[s.drive].ohm;
+  const c = client.profile.tanks[s.tank].nominal_f;
+  return `drive ${formatSi(r, "Ω", 3)}, tank ${formatSi(c, "F", 3)}, charge ${s.charge_us} µs`;
+}

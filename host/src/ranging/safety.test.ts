@@ -1,0 +1,45 @@
+import { describe, expect, it } from "vitest";
+import { flybackEnergyJ, flybackPeakV, HAZARDOUS_PEAK_V, otherWindingPeakV, resolvePeakLimit } from "./safety.ts";
+
+describe("flyback safety figures", () => {
+  it("50 mH on 10 nF released at 20 mA peaks near 44.7 V (measurement notes §7 [calc], I0 sqrt(L/C))", () => {
+    expect(flybackPeakV(50e-3, 10e-9, 20e-3)).toBeCloseTo(44.72, 2);
+  });
+
+  it("the same current in 1 H on 100 pF gives 2 kV by I0 sqrt(L/C) (measurement notes §7 quote 5 kV, which needs 50 mA: the notes' figure does not follow from their formula)", () => {
+    expect(flybackPeakV(1, 100e-12, 20e-3)).toBeCloseTo(2000, 6);
+    expect(flybackPeakV(1, 100e-12, 50e-3)).toBeCloseTo(5000, 6);
+  });
+
+  it("a 230 V : 12 V transformer pulsed on its 12 V side at 44.7 V shows about 850 V on the mains side (measurement notes §7 [calc])", () => {
+    expect(otherWindingPeakV(44.7, 230 / 12)).toBeCloseTo(856.75, 1);
+  });
+
+  it("stores 10 µJ in 50 mH at 20 mA (½ L I², standard circuit theory)", () => {
+    expect(flybackEnergyJ(50e-3, 20e-3)).toBeCloseTo(10e-6, 12);
+  });
+
+  it("reduces the first peak by e^(-pi / 4Q) (quarter-period decay, measurement notes §7)", () => {
+    expect(flybackPeakV(1e-3, 1e-9, 1e-3, 10) / flybackPeakV(1e-3, 1e-9, 1e-3)).toBeCloseTo(Math.exp(-Math.PI / 40), 12);
+  });
+});
+
+describe("ring-peak limit", () => {
+  it("defaults to 30 V or 80 % of the clamp, whichever is lower", () => {
+    expect(resolvePeakLimit(undefined, 36, false)).toMatchObject({ ok: true, limit_v: 28.8 });
+    expect(resolvePeakLimit(undefined, 100, false)).toMatchObject({ ok: true, limit_v: 30 });
+  });
+  it("may be lowered freely", () => {
+    expect(resolvePeakLimit(5, 36, false)).toMatchObject({ ok: true, limit_v: 5 });
+  });
+  it("may not be raised past the clamp", () => {
+    expect(resolvePeakLimit(40, 36, true).ok).toBe(false);
+  });
+  it("needs explicit consent above the hazardous-live level of IEC 61010-1 (42.4 V peak, value from memory)", () => {
+    expect(HAZARDOUS_PEAK_V).toBe(42.4);
+    const refused = resolvePeakLimit(60, 100, false);
+    expect(refused.ok).toBe(false);
+    expect(refused.message).toMatch(/--hazardous-ok/);
+    expect(resolvePeakLimit(60, 100, true)).toMatchObject({ ok: true, limit_v: 60 });
+  });
+});
