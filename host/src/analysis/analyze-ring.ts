@@ -105,6 +105,7 @@ export function fitRing(input: RingInput): FitState {
   const sd = new Float64Array(n);
   const z = new Float64Array(n);
   const zUsed = new Float64Array(n);
+  const noiseMask = new Float64Array(n);
   const zWork = new Float64Array(n);
   const oldVarT = new Float64Array(n);
   const oldVariance = new Float64Array(n);
@@ -150,7 +151,15 @@ export function fitRing(input: RingInput): FitState {
     const cov = invertSymmetric(4, fit.normal);
     if (countFinite(e.m) < MIN_EDGES || !cov) throw noRing("too few edges fit a ring");
     computeLeverage(cov, ws.jac, w, used, leverage);
-    noise = estimateNoise(ws.r, ws.slope, ws.curvature, varT, leverage, used, q, noise);
+    // Grazing edges (level form) say little about the noise and their residuals are bounded by
+    // the ring's excursion past the threshold, which would pull sigma_v down: the noise is
+    // estimated from the clean crossings when there are enough of them.
+    let clean = 0;
+    for (let k = 0; k < n; k++) {
+      noiseMask[k] = used[k] > 0 && e.form[k] === 1 ? 1 : 0;
+      clean += noiseMask[k];
+    }
+    noise = estimateNoise(ws.r, ws.slope, ws.curvature, varT, leverage, clean >= 12 ? noiseMask : used, q, noise);
     oldVarT.set(varT);
     oldVariance.set(variance);
     edgeTimeVariances(q, noise, ws.slope, p[P_WD], assigned, varT);
