@@ -34,6 +34,8 @@ export interface RegretResult {
   refused: string | null;
   /** Chosen setting's measured u(L) over the smallest u(L) among all allowed settings tried. */
   regret: number;
+  /** The same for u(Q)/Q, which the tank's tolerance does not swamp. */
+  regret_q: number;
   /** Highest ring amplitude the simulated tester produced over every pulse, probes included. */
   max_ring_v: number;
   tried: number;
@@ -51,6 +53,7 @@ export async function rangingRegret(part: PartModel, seed = 11): Promise<RegretR
       refused = `${(e as { code?: string }).code}: ${(e as Error).message}`;
     }
     let bestU = Infinity;
+    let bestQ = Infinity;
     let tried = 0;
     if (chosen) {
       const est = estimateFromReading(t.client.profile, chosen.settings, chosen.analysis);
@@ -59,14 +62,21 @@ export async function rangingRegret(part: PartModel, seed = 11): Promise<RegretR
         try {
           const r = await measurePart(t.client, { drive: a.drive, tank: a.tank, charge_us: a.charge_us, estimate: est });
           tried++;
-          if (r.analysis.edges_used >= 20) bestU = Math.min(bestU, r.analysis.inductance_u_h / r.analysis.inductance_h);
+          if (r.analysis.edges_used >= 20) {
+            bestU = Math.min(bestU, r.analysis.inductance_u_h / r.analysis.inductance_h);
+            bestQ = Math.min(bestQ, r.analysis.q_u / r.analysis.q);
+          }
         } catch {
           // a setting that gives no usable ring does not compete
         }
       }
     }
     const chosenU = chosen ? chosen.analysis.inductance_u_h / chosen.analysis.inductance_h : Infinity;
-    return { chosen, refused, regret: Number.isFinite(bestU) ? chosenU / bestU : 1, max_ring_v: t.sim!.stats.peakRingV, tried };
+    const chosenQ = chosen ? chosen.analysis.q_u / chosen.analysis.q : Infinity;
+    return {
+      chosen, refused, regret: Number.isFinite(bestU) ? chosenU / bestU : 1, regret_q: Number.isFinite(bestQ) ? chosenQ / bestQ : 1,
+      max_ring_v: t.sim!.stats.peakRingV, tried,
+    };
   } finally {
     await t.close();
   }
