@@ -4,6 +4,7 @@ import { e2eSection } from "./e2e.ts";
 import { firmwareSection } from "./firmware.ts";
 import { simSection } from "./sim.ts";
 import { ptySection } from "./pty.ts";
+import { adviceSection } from "./advice.ts";
 import type { BenchSection } from "./types.ts";
 
-export const sections: BenchSection[] = [firmwareSection, e2eSection, ptySection, simSection, analysisSection];
+export const sections: BenchSection[] = [firmwareSection, e2eSection, ptySection, simSection, analysisSection, adviceSection];
