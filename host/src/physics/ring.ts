@@ -57,8 +57,3 @@ export function ringWaveform(part: RingPart, c_f: number, i0_a: number): DampedS
 export function sineValue(s: DampedSine, t_s: number): number {
   return s.a0_v * Math.exp(-s.alpha_per_s * t_s) * Math.sin(s.wd_rad_s * t_s);
 }
-
-/** Current in the inductor after closing the switch for `t_s` (first-order L/R rise). */
-export function chargeCurrent(supply_v: number, loop_ohm: number, l_h: number, t_s: number): number {
-  return (supply_v / loop_ohm) * (1 - Math.exp((-t_s * loop_ohm) / l_h));
-}
