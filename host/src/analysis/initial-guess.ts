@@ -36,6 +36,8 @@ interface Profile {
   grow: Float64Array; // V e^(alpha t) for the current alpha
   psi: Float64Array;
   dpsi: Float64Array;
+  r: Float64Array;
+  dr: Float64Array;
   wd: number;
   phi: number;
 }
@@ -123,15 +125,16 @@ function evaluateD(
   for (let j = 0; j < pr.n; j++) pr.grow[j] = (pr.sign[j] > 0 ? vh_v : vl_v) * Math.exp(alpha * pr.t[j]);
   let bestL = NaN;
   let bestC = Infinity;
-  const tryAt = (l: number) => {
+  const tries = scan || !Number.isFinite(lnAStart) ? E_START.length : 0;
+  for (let i = -1; i < tries; i++) {
+    const l = i < 0 ? lnAStart : lnStop + E_START[i] + d;
+    if (!Number.isFinite(l)) continue;
     const c = projectedCost(pr, l);
     if (c < bestC) {
       bestC = c;
       bestL = l;
     }
-  };
-  if (Number.isFinite(lnAStart)) tryAt(lnAStart);
-  if (scan || !Number.isFinite(lnAStart)) for (const eFar of E_START) tryAt(lnStop + eFar + d);
+  }
   return refineLnA(pr, bestL);
 }
 
@@ -149,7 +152,7 @@ function makeProfile(e: EdgeSet, sample: Int32Array, vh_v: number, vl_v: number)
   const pr: Profile = {
     n, t: new Float64Array(n), tc: new Float64Array(n), stt: 0, base: new Float64Array(n),
     sign: new Float64Array(n), grow: new Float64Array(n), psi: new Float64Array(n), dpsi: new Float64Array(n),
-    wd: 0, phi: 0,
+    r: new Float64Array(n), dr: new Float64Array(n), wd: 0, phi: 0,
   };
   let mean = 0;
   for (let j = 0; j < n; j++) {
@@ -209,9 +212,7 @@ function refineLnA(pr: Profile, lnA0: number): { lnA: number; cost: number; wd: 
   let cost = projectedCost(pr, lnA);
   let wd = pr.wd;
   let phi = pr.phi;
-  const { n, psi, dpsi, tc } = pr;
-  const r = new Float64Array(n);
-  const dr = new Float64Array(n);
+  const { n, psi, dpsi, tc, r, dr } = pr;
   for (let it = 0; it < 6 && Number.isFinite(cost); it++) {
     // Project psi and its derivative off span{1, t}; the GN step of the 1-D problem.
     let mp = 0, md = 0, sp = 0, sd = 0;

@@ -85,7 +85,7 @@ export function estimateNoise(
     b = Math.max(q_s2, median(ratio, c) / 0.45493642) * xMean; // median of chi-square(1)
   }
   const bMin = q_s2 * xMean;
-  for (let it = 0; it < 60; it++) {
+  for (let it = 0; it < 30; it++) {
     let s0 = 0, sx = 0, sxx = 0, sy = 0, sxy = 0;
     for (let k = 0; k < n; k++) {
       if (!(mask[k] > 0) || !Number.isFinite(r[k])) continue;
@@ -122,7 +122,7 @@ export function estimateNoise(
     const change = (Math.abs(na - a) + Math.abs(nb - b)) / (a + b);
     a = na;
     b = nb;
-    if (change < 1e-4) break; // the weights need the noise to a few per cent at most
+    if (change < 1e-3) break; // the weights need the noise to a few per cent at most
   }
   return { sigma_t2: Math.max(0, b / xMean - q_s2), sigma_v2: a };
 }
