@@ -80,6 +80,9 @@ function rawScript(): string {
     const e = rawEntries(ring.ticks, ring.levels, 16, openRaw, 40, ring.ticks[ring.ticks.length - 1] + 2000 * 64);
     lines.push(record("capture", e.at, e.words), ms(1, 2, 200, 8192, 1000, 2000), `idle ${(25 + k) * MS_TICKS}`);
   }
+  // A self-test that hears two stray edges among overflow markers, then the ring watch it starts.
+  const stray = rawEntries([70000, 140000], [1, 0], 16, 123, 40, 20 * MS_TICKS);
+  lines.push(record("heard", stray.at, stray.words), `rx ${hex("ST")}`, ms(1, 2, 200, 8192, 1000, 2000), `rx ${hex("CN")}`);
   return lines.join("\n") + "\n";
 }
 
@@ -107,6 +110,8 @@ describe(`native C build (wasm2c)${nativeNote}`, () => {
   it.skipIf(!canNative)(`prints byte-identical serial output to the wasm build: raw 16-bit capture${nativeNote}`, () => {
     const { wasm, c } = runBoth("raw16", rawScript());
     expect(wasm.toString("latin1").match(/^CE /gm)).toHaveLength(5);
+    expect(wasm.toString("latin1")).toMatch(/^SR 20000 2\*/m);
+    expect(wasm.toString("latin1")).toMatch(/^ER 10 MS \d+\*/m);
     expect(c.equals(wasm)).toBe(true);
   });
 
