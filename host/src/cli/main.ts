@@ -3,11 +3,14 @@
 
 import { runAnalyze } from "./analyze-command.ts";
 import { runMeasure } from "./measure-command.ts";
+import { CALIBRATE_USAGE, runCalibrate } from "./calibrate-command.ts";
 import { runProfile, runScenarios } from "./info-commands.ts";
+import { runAdvise } from "./advise-command.ts";
 import { runSimDevice } from "./sim-device-command.ts";
 import { runSortCommand } from "./sort-command.ts";
 import { WATCH_USAGE } from "./measure-watch.ts";
 import { runWindCommand } from "./wind-command.ts";
+import { runReportCommand } from "./report-command.ts";
 import { CliUsageError, reportError } from "./errors.ts";
 import { SAFETY_TEXT } from "./safety.ts";
 
@@ -18,9 +21,13 @@ Usage:
   henrytick measure --port PATH        measure the part on a tester at a serial port
   henrytick analyze FILE...            analyse saved captures again
   henrytick profile (--sim | --port PATH)   show the tester's board profile
+  henrytick advise (--sim [SCENARIO] | --port PATH)
+                                       probe the part and rank every setting, with reasons
   henrytick scenarios                  list the simulated demo parts
   henrytick sort (--sim | --port PATH) --nominal 10u --tol 5%   sort parts against a tolerance
   henrytick wind (--sim | --port PATH) --target 22u      turns to add or remove to reach a target
+  henrytick report CAPTURE... [--out FILE]  HTML report with plots for saved captures
+${CALIBRATE_USAGE}
   henrytick sim-device [SCENARIO] [--seed N]   serve a simulated tester on a pseudo-terminal
                                        (prints its path for --port; needs socat; Ctrl-C stops)
 
@@ -28,10 +35,20 @@ Options for measure:
   --json               print the result as JSON (SI units in the key names)
   --save FILE          also write the capture (edges + settings) to FILE
   --label TEXT         a name for the part, kept in the capture and result
-  --drive N --tank N   use a fixed setting (indices from "henrytick profile") instead of ranging
-  --charge-us N        charge time with a fixed setting (default: 1000 µs or the interlock limit)
-  --max-peak-v V       lower the ring-peak limit used by ranging (default 30 V)
+  --auto               choose the setting automatically (the default): probe gently, then step
+                       by the advice while every pulse stays inside the limits
+  --drive N --tank N   use a fixed setting (indices from "henrytick profile"); it is still
+                       checked against the limits before it is pulsed
+  --charge-us N        charge time with a fixed setting (default: enough to settle, within the interlock)
+  --max-peak-v V       ring-peak limit (default 30 V or 80 % of the clamp); may be lowered,
+                       or raised up to the tester's clamp
+  --hazardous-ok       allow a limit above 42.4 V peak (hazardous live, IEC 61010-1); only with
+                       the part and any other winding guarded
   --seed N             noise seed for the simulated tester
+  --self-cap           ring on two tanks: L corrected for self-capacitance, Cs and self-resonance
+  --budget             show the uncertainty budget (fit, capacitance, timebase, self-capacitance)
+  --uncalibrated       ignore the tester's calibration profile (nominal tank values)
+  --config-dir DIR     where calibration profiles live (default $XDG_CONFIG_HOME/henrytick)
 
 Continuous reading (measure --watch):
 ${WATCH_USAGE}
@@ -53,9 +70,13 @@ export async function main(argv: string[]): Promise<number> {
         return await runAnalyze(rest);
       case "profile":
         return await runProfile(rest);
+      case "advise":
+        return await runAdvise(rest);
       case "sim-device": return await runSimDevice(rest);
       case "sort": return await runSortCommand(rest);
       case "wind": return await runWindCommand(rest);
+      case "report": return await runReportCommand(rest);
+      case "calibrate": return await runCalibrate(rest);
       case "scenarios":
         return runScenarios(rest);
       case undefined:
