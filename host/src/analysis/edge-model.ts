@@ -134,24 +134,30 @@ export function evaluateEdges(
 
 /**
  * Picks each edge's residual form at p: the phase form where the model ring crosses the
- * threshold cleanly (|u| < 0.98 and g_t > 0.3 wd), the level form where it grazes it.
- * Sets the phase-form scales S_k = A_k sqrt(1 - u_k^2) (the slope per unit phase).
+ * threshold cleanly (|u| < 0.98 and g_t > 0.3 wd), the level form where it grazes it. Sets the
+ * phase-form scales S_k = A_k sqrt(1 - u_k^2) (the slope per unit phase).
+ *
+ * Only the last two cycles of each level may graze: the ring decays monotonically, so an edge
+ * followed by edges of its level cycles later was a clean crossing whatever the model says.
+ * This keeps a fit from lowering the envelope onto the threshold to make many edges "grazing"
+ * (the level form is weakly sensitive to timing there) and so hide their timing.
  */
 export function chooseResidualForms(p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number): void {
   const wd = p[P_WD];
   const a0 = Math.exp(p[P_LNA]);
   const alpha = p[P_ALPHA];
+  const lastM = [-Infinity, -Infinity];
+  for (let k = 0; k < e.n; k++) if (e.m[k] === e.m[k]) lastM[e.rising[k]] = Math.max(lastM[e.rising[k]], e.m[k]);
   for (let k = 0; k < e.n; k++) {
     const rise = e.rising[k] === 1;
     const amp = a0 * Math.exp(-alpha * e.t_s[k]);
     const u = (rise ? vh_v : vl_v) / amp;
-    e.form[k] = 0;
-    if (!(Math.abs(u) < 0.98)) continue;
-    const sq = Math.sqrt(1 - u * u);
-    const gt = wd - (alpha * (rise ? 1 : -1) * u) / sq;
-    if (!(gt > 0.3 * wd)) continue;
+    const mayGraze = !(e.m[k] < lastM[e.rising[k]] - 4);
+    const sq = Math.sqrt(Math.max(1 - u * u, 1e-6));
     e.form[k] = 1;
     e.scale_v[k] = amp * sq;
+    if (!mayGraze) continue;
+    if (!(Math.abs(u) < 0.98) || !(wd - (alpha * (rise ? 1 : -1) * u) / sq > 0.3 * wd)) e.form[k] = 0;
   }
 }
 
