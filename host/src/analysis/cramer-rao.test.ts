@@ -86,4 +86,30 @@ describe("Cramér-Rao bound of the edge model (Kay 1993 §3.9)", () => {
     expect(effQ).toBeGreaterThan(0.75);
     expect(effQ).toBeLessThan(1.35);
   });
+
+  it("reports expanded uncertainties that cover the error about 95 % of the time (offset thresholds)", () => {
+    // JCGM 100:2008 §6.2: U = k u with k = 2 covers about 95 % for a near-normal estimate. Over
+    // 100 seeded captures the count inside U is binomial (sd ~2 %): require at least 88 %.
+    const l_h = 100e-6, c_f = 47e-9, q = 100;
+    const w0 = 1 / Math.sqrt(l_h * c_f);
+    const part = { l_h, rs_ohm: (w0 * l_h) / q };
+    const k = ringConstants(part, c_f);
+    const ring = ringWaveform(part, c_f, 1 * c_f * k.wd_rad_s);
+    const th: [number, number] = [0.035, -0.005];
+    const comp = { rising_v: th[0], falling_v: th[1], jitter_s: 8e-9, noise_v: 0.5e-3, delay_s: 40e-9 };
+    let inL = 0, inQ = 0, inL1 = 0;
+    for (let s = 0; s < 100; s++) {
+      const e = captureEdges(ring, comp, { tick_hz: 64e6, ppm: 0, dead_time_s: 0 }, new Random(7000 + s), 5000, 10);
+      const a = analyzeRing({ tick_hz: 64e6, ticks: e.ticks, levels: e.levels, tank_c_f: c_f, thresholds_v: th, tank_c_u_f: 0, timebase_u_rel: 0 });
+      if (Math.abs(a.inductance_h - l_h) <= a.inductance_u_h) inL++;
+      if (Math.abs(a.inductance_h - l_h) <= a.inductance_u_h / 2) inL1++;
+      if (Math.abs(a.q - k.q) <= a.q_u) inQ++;
+    }
+    expect(inL).toBeGreaterThanOrEqual(88);
+    expect(inQ).toBeGreaterThanOrEqual(88);
+    // ... and not grossly wider than needed either: about 68 % fall within one standard u.
+    expect(inL1).toBeGreaterThan(55);
+    expect(inL1).toBeLessThan(82);
+  });
 });
+
