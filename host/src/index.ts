@@ -24,3 +24,13 @@ export type { PtyDeviceOptions } from "./sim/pty-device.ts";
 export { referenceBoard, nominalBoard } from "./sim/board-model.ts";
 export type { BoardModel } from "./sim/board-model.ts";
 export { expectedReading } from "./sim/front-end.ts";
+export {
+  CalibrationError, validateProfile, emptyProfile, loadProfile, saveProfile, restorePreviousProfile, configDir, profilePaths,
+  appliedCalibration, deviceCalibration, calibrateWithReference, calibrateWithParallelCapacitor, calibrateThresholds,
+  measureTimebase, timebaseFromSamples, measureSelfCapacitance, solveTwoCapacitance, singleTankBudget, twoTankBudget,
+  propagate, monteCarlo,
+} from "./calibration/index.ts";
+export type {
+  CalibrationProfile, TankEntry, StoreOptions, ReferenceInductor, ParallelCapacitor, TickCounter, HostClock, TimebaseResult,
+  TwoCapacitanceInput, TwoCapacitanceResult, SelfCapacitanceReading, UncertaintyBudget, BudgetLine, DeviceCalibration,
+} from "./calibration/index.ts";

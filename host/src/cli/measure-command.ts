@@ -8,6 +8,8 @@ import { intOption, numberOption, parse, testerTarget } from "./args.ts";
 import { CliUsageError } from "./errors.ts";
 import { renderReading } from "./render.ts";
 import { runWatch, WATCH_OPTIONS } from "./measure-watch.ts";
+import { CalibrationError, deviceCalibration, measureSelfCapacitance, singleTankBudget, timebaseKnowledge } from "../calibration/index.ts";
+import { renderBudget, renderSelfCapacitance } from "./render.ts";
 
 export async function runMeasure(args: string[]): Promise<number> {
   const { values, positionals } = parse(args, {
@@ -20,13 +22,21 @@ export async function runMeasure(args: string[]): Promise<number> {
     tank: { type: "string" },
     "charge-us": { type: "string" },
     "max-peak-v": { type: "string" },
+    "hazardous-ok": { type: "boolean" },
+    auto: { type: "boolean" },
     seed: { type: "string" },
+    uncalibrated: { type: "boolean" },
+    "config-dir": { type: "string" },
+    "self-cap": { type: "boolean" },
+    budget: { type: "boolean" },
     ...WATCH_OPTIONS,
   });
   const target = testerTarget(values, positionals);
   const drive = intOption(values.drive, "drive", 0, 63);
   const tank = intOption(values.tank, "tank", 0, 63);
   if ((drive === undefined) !== (tank === undefined)) throw new CliUsageError("--drive and --tank go together");
+  if (values.auto && drive !== undefined) throw new CliUsageError("--auto (the default) chooses the setting itself; leave out --drive and --tank, or --auto");
+  const hazardous_ok = values["hazardous-ok"] ?? false;
   const charge_us = intOption(values["charge-us"], "charge-us", 1, 10_000_000);
   if (charge_us !== undefined && drive === undefined) throw new CliUsageError("--charge-us needs --drive and --tank");
   const max_peak_v = numberOption(values["max-peak-v"], "max-peak-v", 0.1, 1000);
@@ -38,17 +48,60 @@ export async function runMeasure(args: string[]): Promise<number> {
   try {
     const label = values.label ?? tester.scenario?.name;
     progress(`tester ${tester.client.identity.device_id} (firmware ${tester.client.identity.firmware_version}) via ${tester.client.transport.description}`);
-    if (values.watch) return await runWatch(tester, values, { drive, tank, charge_us, max_peak_v, label }, label ?? "part on the clips");
-    const reading = await measurePart(tester.client, { drive, tank, charge_us, max_peak_v, label, onProgress: progress });
+    // The tester's calibration profile applies to every reading unless --uncalibrated says not.
+    const cal = values.uncalibrated ? null : deviceCalibration(tester.client, values["config-dir"] ? { dir: values["config-dir"] } : {});
+    const calibration = cal?.applied;
+    if (cal?.applied) progress(`calibration ${cal.path}`);
+    if (values.watch) return await runWatch(tester, values, { drive, tank, charge_us, max_peak_v, hazardous_ok, label, calibration }, label ?? "part on the clips");
+    const reading = await measurePart(tester.client, { drive, tank, charge_us, max_peak_v, hazardous_ok, label, calibration, onProgress: progress });
     if (values.save) {
       writeCaptureFile(values.save, reading.capture);
       progress(`capture saved to ${values.save}`);
     }
     const result = buildResult(reading.analysis, reading.capture);
-    if (values.json) process.stdout.write(JSON.stringify(result, null, 2) + "\n");
-    else process.stdout.write(renderReading(result, label ?? "part on the clips") + "\n");
+    const profile = cal?.profile ?? null;
+    let budget = singleTankBudget(reading.analysis, reading.capture.tank_c_f, timebaseKnowledge(profile, reading.settings.tank));
+    let selfCap = null;
+    let selfCapProblem: { code: string; message: string } | null = null;
+    if (values["self-cap"]) {
+      try {
+        selfCap = await measureSelfCapacitance(tester.client, { profile, calibration, first: reading, label, onProgress: progress });
+        budget = selfCap.budget;
+      } catch (e) {
+        if (!(e instanceof CalibrationError)) throw e;
+        selfCapProblem = { code: e.code, message: e.message };
+      }
+    }
+    if (values.json) {
+      // Extra keys only on request: a plain --json result stays what "analyze" prints for the capture
+      // (settings.calibration.source already names the profile).
+      const extra = {
+        ...(values.budget || values["self-cap"] ? { budget } : {}),
+        ...(selfCap ? { self_capacitance: selfCapJson(selfCap) } : {}),
+        ...(selfCapProblem ? { self_capacitance_error: selfCapProblem } : {}),
+      };
+      process.stdout.write(JSON.stringify({ ...result, ...extra }, null, 2) + "\n");
+      return 0;
+    }
+    const blocks = [renderReading(result, label ?? "part on the clips")];
+    if (selfCap) blocks.push(renderSelfCapacitance(selfCap));
+    if (selfCapProblem) blocks.push(`   ! ${selfCapProblem.code}: ${selfCapProblem.message}`);
+    if (values.budget) blocks.push(renderBudget(budget));
+    process.stdout.write(blocks.join("\n") + "\n");
     return 0;
   } finally {
     await tester.close();
   }
+}
+
+function selfCapJson(sc: NonNullable<Awaited<ReturnType<typeof measureSelfCapacitance>>>) {
+  const r = sc.result;
+  return {
+    inductance_h: r.inductance_h, inductance_u_h: 2 * r.u.inductance_h,
+    self_capacitance_f: r.self_capacitance_f, self_capacitance_u_f: 2 * r.u.self_capacitance_f,
+    srf_hz: r.srf_hz, srf_u_hz: r.u.srf_hz === null ? null : 2 * r.u.srf_hz,
+    coverage_factor: 2,
+    cs_per_percent_f: r.cs_per_percent,
+    tanks: [sc.first.settings.tank, sc.second.settings.tank],
+  };
 }

@@ -1,0 +1,23 @@
+// Errors a user can meet while calibrating or loading a calibration profile. Each carries a
+// stable code and a message that ends with what to do next.
+
+export class CalibrationError extends Error {
+  constructor(readonly code: string, message: string) {
+    super(message);
+    this.name = "CalibrationError";
+  }
+}
+
+/** Stable codes, listed once so docs and tests can refer to them. */
+export const CALIBRATION_CODES = [
+  "PROFILE_INVALID", // a stored profile breaks the schema (field named in the message)
+  "PROFILE_VERSION", // a stored profile is of a version this build cannot read
+  "PROFILE_UNREADABLE", // the file exists but cannot be read or is not JSON
+  "PROFILE_WRONG_DEVICE", // the profile belongs to another tester
+  "NO_PREVIOUS", // restore asked for with no previous profile kept
+  "BAD_REFERENCE", // reference value or uncertainty makes no sense
+  "OUT_OF_SPAN", // reference outside the usable span of the tank range
+  "NONSENSE_RESULT", // a procedure produced a negative or implausible value
+  "TIMEBASE_UNSUPPORTED", // the tester cannot report its tick counter
+  "TWO_TANKS_UNAVAILABLE", // no second tank setting suits the part for the self-capacitance method
+] as const;

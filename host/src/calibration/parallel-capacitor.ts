@@ -1,0 +1,113 @@
+// Calibration with a known capacitor clipped in parallel, no reference inductor needed. The same
+// part rings on the same tank without and with the capacitor Ca:
+//   1/wa^2 = L (C + Cs),  1/wb^2 = L (C + Cs + Ca)  =>  C + Cs = Ca wb^2 / (wa^2 - wb^2).
+// Only the ratio of the two frequencies enters, so the timebase cancels; the part's own Cs
+// lands in the result unless the user states it (a low-Cs coil on a large tank keeps it small).
+
+import type { DeviceClient } from "../device/client.ts";
+import type { AppliedCalibration } from "../measure/capture-build.ts";
+import { CalibrationError } from "./errors.ts";
+import { propagate } from "./gum-propagation.ts";
+import type { TankEntry } from "./profile-schema.ts";
+import type { PartEstimate } from "../ranging/estimate.ts";
+import { estimateOf, fitRelUF0, meanWithU, readOnTank } from "./tank-reading.ts";
+
+export interface ParallelCapacitor {
+  capacitance_f: number;
+  /** Standard uncertainty of the added capacitor's value. */
+  u_capacitance_f: number;
+  /** The part's self-capacitance if known (default 0) and its uncertainty. */
+  part_self_capacitance_f?: number;
+  u_part_self_capacitance_f?: number;
+}
+
+export interface ParallelResult {
+  tank: number;
+  c_f: number;
+  u_f: number;
+  /** The part's inductance, a by-product: 1/(wa^2 (C + Cs)). */
+  part_inductance_h: number;
+  fa_hz: number;
+  fb_hz: number;
+}
+
+/** Smallest added capacitance, as a fraction of the tank, whose frequency shift still resolves C well. */
+export const MIN_ADDED_RATIO = 0.05;
+
+/** Pure core: C from the two frequencies (each with its fit's standard uncertainty). */
+export function tankFromParallel(
+  tank: number, nominal_f: number, fa: { f_hz: number; u_hz: number }, fb: { f_hz: number; u_hz: number }, cap: ParallelCapacitor,
+): ParallelResult {
+  if (!(cap.capacitance_f > 0) || !(cap.u_capacitance_f >= 0)) {
+    throw new CalibrationError("BAD_REFERENCE", `the added capacitor must have a positive value and a non-negative uncertainty, got ${cap.capacitance_f} F ± ${cap.u_capacitance_f} F`);
+  }
+  if (cap.capacitance_f < MIN_ADDED_RATIO * nominal_f) {
+    throw new CalibrationError("OUT_OF_SPAN", `the added ${cap.capacitance_f} F is under ${MIN_ADDED_RATIO * 100} % of tank ${tank} (${nominal_f} F): the shift is too small to resolve; use a capacitor of 30-300 % of the tank`);
+  }
+  if (!(fb.f_hz < fa.f_hz)) {
+    throw new CalibrationError("NONSENSE_RESULT", `the ring with the capacitor (${fb.f_hz} Hz) is not lower than without it (${fa.f_hz} Hz): it was not connected, or the readings are swapped; measure again`);
+  }
+  const model = (x: number[]) => {
+    const [a, b, ca, cs] = x;
+    const total = (ca * b * b) / (a * a - b * b);
+    return [total - cs, 1 / ((2 * Math.PI * a) ** 2 * total)];
+  };
+  const [c, l] = propagate(model, [
+    { name: "f without", value: fa.f_hz, u: fa.u_hz },
+    { name: "f with", value: fb.f_hz, u: fb.u_hz },
+    { name: "added capacitor", value: cap.capacitance_f, u: cap.u_capacitance_f },
+    { name: "part Cs", value: cap.part_self_capacitance_f ?? 0, u: cap.u_part_self_capacitance_f ?? 0 },
+  ]);
+  if (!(c.value > 0)) throw new CalibrationError("NONSENSE_RESULT", `tank ${tank}: the readings give a negative capacitance (${c.value} F); check the capacitor's value and measure again`);
+  if (c.value < 0.5 * nominal_f || c.value > 2 * nominal_f) {
+    throw new CalibrationError("NONSENSE_RESULT", `tank ${tank}: the readings give ${c.value} F against a nominal ${nominal_f} F; the capacitor's value (or its unit) is probably wrong`);
+  }
+  return { tank, c_f: c.value, u_f: c.u, part_inductance_h: l.value, fa_hz: fa.f_hz, fb_hz: fb.f_hz };
+}
+
+export interface ParallelOptions {
+  repeats?: number;
+  calibration?: AppliedCalibration;
+  timebase_ppm?: number;
+  onProgress?: (message: string) => void;
+  now?: () => Date;
+}
+
+/**
+ * Runs the procedure: the part on the clips, `connect` is awaited between the readings
+ * without and with the capacitor (a prompt on a real tester; the simulator adds it to the part).
+ */
+export async function calibrateWithParallelCapacitor(
+  client: DeviceClient, tank: number, cap: ParallelCapacitor, connect: () => Promise<void>, opts: ParallelOptions = {},
+): Promise<{ entry: TankEntry; result: ParallelResult }> {
+  const nominal = client.profile.tanks[tank]?.nominal_f;
+  if (nominal === undefined) throw new RangeError(`tank ${tank} does not exist on this tester (0..${client.profile.tanks.length - 1})`);
+  const base: AppliedCalibration | undefined = opts.calibration ? { ...opts.calibration, tanks: undefined } : undefined;
+  const n = opts.repeats ?? 3;
+  // The capacitor changes the part's ring, so each series learns its own estimate.
+  const series = async (prefer?: number) => {
+    const f: number[] = [];
+    const u: number[] = [];
+    let drive = prefer;
+    let estimate: PartEstimate | undefined;
+    for (let k = 0; k < n; k++) {
+      const r = await readOnTank(client, tank, { calibration: base, preferDrive: drive, onProgress: opts.onProgress, estimate });
+      drive = r.settings.drive;
+      estimate = estimateOf(client, r);
+      f.push(r.analysis.f0_hz);
+      u.push(fitRelUF0(r) * r.analysis.f0_hz);
+    }
+    const m = meanWithU(f, u);
+    return { f_hz: m.mean, u_hz: m.u, drive };
+  };
+  const a = await series();
+  await connect();
+  const b = await series(a.drive);
+  const result = tankFromParallel(tank, nominal, a, b, cap);
+  const entry: TankEntry = {
+    index: tank, nominal_f: nominal, c_f: result.c_f, u_f: result.u_f, shared_u_rel: 0, timebase_ppm: opts.timebase_ppm ?? 0, drive: a.drive,
+    method: "parallel-capacitor", time: (opts.now ?? (() => new Date()))().toISOString(),
+    detail: `added ${cap.capacitance_f} F ± ${cap.u_capacitance_f} F (k = 1), part Cs ${cap.part_self_capacitance_f ?? 0} F; ${a.f_hz.toFixed(1)} Hz -> ${b.f_hz.toFixed(1)} Hz`,
+  };
+  return { entry, result };
+}

@@ -1,0 +1,147 @@
+// Calibration with a reference inductor of known value: on each tank the ring gives
+// w0^2 = 1 / (L_ref C_eff), so C_eff = 1/(w0^2 L_ref), the effective capacitance across the part
+// (tank, fixture, strays and the reference's own self-capacitance, which is then taken out
+// when the user states it). The timer's error is carried into C_eff and cancels again in every
+// later reading on this timebase (apply-profile.ts).
+
+import type { DeviceClient } from "../device/client.ts";
+import type { AppliedCalibration } from "../measure/capture-build.ts";
+import type { Reading } from "../measure/measure-part.ts";
+import { measurePart } from "../measure/measure-part.ts";
+import { CalibrationError } from "./errors.ts";
+import type { TankEntry } from "./profile-schema.ts";
+import { MIN_TICKS_PER_PERIOD, estimateOf, fitRelUF0, meanWithU, readOnTank } from "./tank-reading.ts";
+
+export interface ReferenceInductor {
+  inductance_h: number;
+  /** Standard uncertainty of the reference's value (its certificate's U divided by its k). */
+  u_inductance_h: number;
+  /** The reference's own self-capacitance if known, F (default 0). */
+  self_capacitance_f?: number;
+  u_self_capacitance_f?: number;
+  /** A name for the record, e.g. the reference's serial number. */
+  label?: string;
+}
+
+export interface TankFromReference {
+  tank: number;
+  nominal_f: number;
+  c_f: number;
+  u_f: number;
+  /** Relative part of u_f that comes from the reference's value (shared by all tanks). */
+  shared_u_rel: number;
+  f0_hz: number;
+  readings: number;
+  drive: number;
+}
+
+export function checkReference(ref: ReferenceInductor): void {
+  if (!(ref.inductance_h > 0) || !Number.isFinite(ref.inductance_h)) {
+    throw new CalibrationError("BAD_REFERENCE", `the reference inductance must be a positive number of henries, got ${ref.inductance_h}; give its certified value`);
+  }
+  if (!(ref.u_inductance_h > 0) || ref.u_inductance_h > 0.05 * ref.inductance_h) {
+    throw new CalibrationError("BAD_REFERENCE", `the reference's standard uncertainty must be positive and at most 5 % of its value, got ${ref.u_inductance_h} H; a worse reference cannot calibrate a ±1 % tank`);
+  }
+  const cs = ref.self_capacitance_f ?? 0;
+  if (cs < 0 || (ref.u_self_capacitance_f ?? 0) < 0) throw new CalibrationError("BAD_REFERENCE", "the reference's self-capacitance and its uncertainty must not be negative");
+}
+
+/** Whether the reference rings on a tank at all: enough timer ticks per period (the fit's floor). */
+export function referenceSpanProblem(l_h: number, nominal_f: number, tick_hz: number): string | null {
+  const f = 1 / (2 * Math.PI * Math.sqrt(l_h * nominal_f));
+  const tpp = tick_hz / f;
+  if (tpp < MIN_TICKS_PER_PERIOD) return `it would ring at ${(f / 1e3).toFixed(0)} kHz, only ${tpp.toFixed(0)} timer ticks per period (at least ${MIN_TICKS_PER_PERIOD} needed)`;
+  return null;
+}
+
+/**
+ * Pure core: the effective capacitance from repeat readings on one tank. Each reading's
+ * L_app = 1/(w0^2 C_used) (the capacitance the capture was analysed with) gives w0.
+ */
+export function tankFromReadings(tank: number, nominal_f: number, readings: { f0_hz: number; fit_rel_u_f: number; drive: number }[], ref: ReferenceInductor): TankFromReference {
+  checkReference(ref);
+  const cs = ref.self_capacitance_f ?? 0;
+  const c = readings.map((r) => 1 / ((2 * Math.PI * r.f0_hz) ** 2 * ref.inductance_h) - cs);
+  // u(C)/C from the ring is 2 u(f)/f per reading.
+  const m = meanWithU(c, readings.map((r, i) => 2 * r.fit_rel_u_f * c[i]));
+  if (!(m.mean > 0)) {
+    throw new CalibrationError("NONSENSE_RESULT", `tank ${tank}: the reference gives a negative capacitance (${m.mean} F); check the reference value and its self-capacitance, then calibrate again`);
+  }
+  if (m.mean < 0.5 * nominal_f || m.mean > 2 * nominal_f) {
+    throw new CalibrationError("NONSENSE_RESULT", `tank ${tank}: the reference gives ${m.mean} F against a nominal ${nominal_f} F; the reference value (or its unit) is probably wrong`);
+  }
+  const sharedRel = ref.u_inductance_h / ref.inductance_h; // C ∝ 1/L_ref
+  const u = Math.hypot(m.u, sharedRel * m.mean, ref.u_self_capacitance_f ?? 0);
+  return { tank, nominal_f, c_f: m.mean, u_f: u, shared_u_rel: sharedRel, f0_hz: readings[0].f0_hz, readings: readings.length, drive: readings[0].drive };
+}
+
+/** w0 of the ring from a reading: the analysis reports L = 1/(w0^2 C_used). */
+export function f0FromReading(r: Reading): number {
+  return r.analysis.f0_hz;
+}
+
+export interface ReferenceOptions {
+  tanks?: number[];
+  repeats?: number;
+  /** Thresholds and timebase already calibrated (tanks in it are ignored here). */
+  calibration?: AppliedCalibration;
+  /** Timebase correction in force, recorded with each tank. */
+  timebase_ppm?: number;
+  onProgress?: (message: string) => void;
+  now?: () => Date;
+}
+
+export interface ReferenceOutcome {
+  entries: TankEntry[];
+  results: TankFromReference[];
+  skipped: { tank: number; reason: string }[];
+}
+
+/** Runs the procedure on the tester: the reference inductor must be on the clips. */
+export async function calibrateWithReference(client: DeviceClient, ref: ReferenceInductor, opts: ReferenceOptions = {}): Promise<ReferenceOutcome> {
+  checkReference(ref);
+  const profile = client.profile;
+  const wanted = opts.tanks ?? profile.tanks.map((t) => t.index);
+  const repeats = opts.repeats ?? 3;
+  const base: AppliedCalibration | undefined = opts.calibration ? { ...opts.calibration, tanks: undefined } : undefined;
+  const out: ReferenceOutcome = { entries: [], results: [], skipped: [] };
+  // One auto-ranged reading first: its drive is the natural first choice on every tank.
+  const auto = await measurePart(client, { calibration: base, onProgress: opts.onProgress });
+  let prefer: number | undefined = auto.settings.drive;
+  const estimate = estimateOf(client, auto);
+  for (const tank of wanted) {
+    const nominal = profile.tanks[tank]?.nominal_f;
+    if (nominal === undefined) throw new RangeError(`tank ${tank} does not exist on this tester (0..${profile.tanks.length - 1})`);
+    const span = referenceSpanProblem(ref.inductance_h, nominal, profile.tick_hz);
+    if (span) {
+      out.skipped.push({ tank, reason: `outside the tank's usable span: ${span}` });
+      continue;
+    }
+    const readings: { f0_hz: number; fit_rel_u_f: number; drive: number }[] = [];
+    try {
+      for (let k = 0; k < repeats; k++) {
+        const r = await readOnTank(client, tank, { calibration: base, preferDrive: prefer, onProgress: opts.onProgress, label: ref.label, estimate });
+        prefer = r.settings.drive;
+        readings.push({ f0_hz: f0FromReading(r), fit_rel_u_f: fitRelUF0(r), drive: r.settings.drive });
+      }
+    } catch (e) {
+      if (e instanceof CalibrationError && e.code === "OUT_OF_SPAN") {
+        out.skipped.push({ tank, reason: e.message });
+        continue;
+      }
+      throw e;
+    }
+    const res = tankFromReadings(tank, nominal, readings, ref);
+    out.results.push(res);
+    out.entries.push({
+      index: tank, nominal_f: nominal, c_f: res.c_f, u_f: res.u_f, shared_u_rel: res.shared_u_rel,
+      timebase_ppm: opts.timebase_ppm ?? 0, drive: res.drive, method: "reference-inductor", time: (opts.now ?? (() => new Date()))().toISOString(),
+      detail: `reference ${ref.label ?? ""} ${ref.inductance_h} H ± ${ref.u_inductance_h} H (k = 1)`.replace(/\s+/g, " ") +
+        `, Cs ${ref.self_capacitance_f ?? 0} F; ${res.readings} rings at ${res.f0_hz.toFixed(1)} Hz on drive ${res.drive}`,
+    });
+  }
+  if (out.entries.length === 0) {
+    throw new CalibrationError("OUT_OF_SPAN", `the reference suits none of the tanks asked for (${out.skipped.map((s) => `tank ${s.tank}: ${s.reason}`).join("; ")}); use a reference that rings on them`);
+  }
+  return out;
+}

@@ -1,0 +1,224 @@
+// henrytick calibrate …: run a calibration procedure on the tester and store the result in its
+// profile, or show / restore the profile. Parsing and printing only; the work is in calibration/.
+
+import { createInterface } from "node:readline";
+import type { CalibrationProfile } from "../calibration/index.ts";
+import {
+  CalibrationError, appliedCalibration, calibrateThresholds, calibrateWithParallelCapacitor, calibrateWithReference,
+  emptyProfile, loadProfile, profilePaths, restorePreviousProfile, saveProfile, timebaseUnsupported,
+} from "../calibration/index.ts";
+import type { StoreOptions } from "../calibration/index.ts";
+import { formatSi } from "../format/si.ts";
+import type { OpenedTester } from "../open-tester.ts";
+import { openTester } from "../open-tester.ts";
+import { intOption, parse, testerTarget } from "./args.ts";
+import { CliUsageError } from "./errors.ts";
+
+export const CALIBRATE_USAGE = `  henrytick calibrate show (--sim | --port PATH)      the tester's calibration profile
+  henrytick calibrate reference … --ref-h L --ref-u-h U [--ref-cs-f C --ref-u-cs-f U] [--tanks 0,1,…]
+                                       reference inductor on the clips → each tank's capacitance
+  henrytick calibrate parallel … --tank N --cap-f C --cap-u-f U [--part-cs-f C]
+                                       any coil on the clips, rung without and with a known capacitor
+  henrytick calibrate thresholds …     high-Q coil on the clips → comparator threshold ratio
+  henrytick calibrate timebase … --ppm P --u-ppm U   enter a crystal error measured with a counter
+  henrytick calibrate restore …        make the previous profile current again
+    (uncertainties are standard, k = 1; values take SI prefixes: 330u, 4n7, 0.5p;
+     --config-dir DIR overrides $HENRYTICK_CONFIG_DIR / $XDG_CONFIG_HOME/henrytick)`;
+
+const PREFIX: Record<string, number> = { f: 1e-15, p: 1e-12, n: 1e-9, u: 1e-6, µ: 1e-6, m: 1e-3, k: 1e3, M: 1e6 };
+
+/** "330u", "4n7", "330uH", "1.5e-3" → number; the unit letter is optional. */
+export function parseQuantity(text: string | undefined, name: string, unit: string, opts: { min?: number; optional?: boolean } = {}): number | undefined {
+  if (text === undefined) {
+    if (opts.optional) return undefined;
+    throw new CliUsageError(`--${name} is required (a value in ${unit}, e.g. 330u)`);
+  }
+  const t = text.trim().replace(new RegExp(`${unit}$`), "");
+  const m = /^([0-9]*\.?[0-9]+(?:e[-+]?[0-9]+)?)([fpnuµmkM]?)([0-9]*)$/.exec(t);
+  let v = NaN;
+  if (m) {
+    // The letter may stand for the decimal point (IEC 60062 style: 4n7 = 4.7n).
+    v = m[3] ? Number(`${m[1]}.${m[3]}`) * (PREFIX[m[2]] ?? NaN) : Number(m[1]) * (m[2] ? PREFIX[m[2]] : 1);
+  }
+  if (!Number.isFinite(v) || v < (opts.min ?? 0)) throw new CliUsageError(`--${name} must be a value in ${unit} such as 330u or 4n7, got ${JSON.stringify(text)}`);
+  return v;
+}
+
+const COMMON = {
+  sim: { type: "boolean" }, port: { type: "string" }, seed: { type: "string" }, json: { type: "boolean" }, "config-dir": { type: "string" },
+} as const;
+
+export async function runCalibrate(args: string[]): Promise<number> {
+  const [sub, ...rest] = args;
+  switch (sub) {
+    case "show": return withTester(rest, {}, async (t, store, v) => show(t, store, v.json === true));
+    case "restore": return withTester(rest, {}, async (t, store) => restore(t, store));
+    case "reference": return withTester(rest, {
+      "ref-h": { type: "string" }, "ref-u-h": { type: "string" }, "ref-cs-f": { type: "string" }, "ref-u-cs-f": { type: "string" },
+      tanks: { type: "string" }, repeats: { type: "string" }, "ref-label": { type: "string" },
+    }, reference);
+    case "parallel": return withTester(rest, {
+      tank: { type: "string" }, "cap-f": { type: "string" }, "cap-u-f": { type: "string" }, "part-cs-f": { type: "string" }, "part-u-cs-f": { type: "string" }, repeats: { type: "string" },
+    }, parallel);
+    case "thresholds": return withTester(rest, { captures: { type: "string" } }, thresholds);
+    case "timebase": return withTester(rest, { ppm: { type: "string" }, "u-ppm": { type: "string" } }, timebase);
+    default:
+      throw new CliUsageError(`calibrate needs one of: show, reference, parallel, thresholds, timebase, restore${sub ? ` (got "${sub}")` : ""}`);
+  }
+}
+
+type Values = Record<string, string | boolean | undefined>;
+type Action = (t: OpenedTester, store: StoreOptions, v: Values) => Promise<number>;
+
+async function withTester(args: string[], extra: Record<string, { type: "string" | "boolean" }>, action: Action): Promise<number> {
+  const { values, positionals } = parse(args, { ...COMMON, ...extra });
+  const v = values as Values;
+  const target = testerTarget(v as { sim?: boolean; port?: string; seed?: string }, positionals);
+  const store: StoreOptions = v["config-dir"] ? { dir: v["config-dir"] as string } : {};
+  const tester = await openTester(target);
+  try {
+    return await action(tester, store, v);
+  } finally {
+    await tester.close();
+  }
+}
+
+const progress = (m: string) => process.stderr.write(`   ${m}\n`);
+
+/** The current profile, or a new empty one; a damaged current profile stops here (restore or recalibrate). */
+function currentProfile(t: OpenedTester, store: StoreOptions): CalibrationProfile {
+  const id = t.client.identity.device_id;
+  return loadProfile(id, store) ?? emptyProfile(id, new Date());
+}
+
+function commit(profile: CalibrationProfile, store: StoreOptions): void {
+  profile.updated = new Date().toISOString();
+  const r = saveProfile(profile, store);
+  process.stdout.write(`   saved ${r.path}${r.previous_kept ? " (previous profile kept)" : ""}\n`);
+}
+
+function show(t: OpenedTester, store: StoreOptions, json: boolean): Promise<number> {
+  const id = t.client.identity.device_id;
+  const p = loadProfile(id, store);
+  if (json) {
+    process.stdout.write(JSON.stringify({ path: profilePaths(id, store).current, profile: p }, null, 2) + "\n");
+    return Promise.resolve(0);
+  }
+  const lines = [`── calibration of tester ${id}: ${p ? profilePaths(id, store).current : "none (nominal values are used)"}`];
+  if (p) {
+    const applied = appliedCalibration(p, "");
+    for (const tank of t.client.profile.tanks) {
+      const e = p.tanks.find((x) => x.index === tank.index);
+      const now = applied.tanks?.[tank.index];
+      lines.push(e && now
+        ? `   tank ${tank.index}       ${formatSi(now.c_f, "F", 5)} ± ${formatSi(2 * now.u_f, "F", 2)} (k = 2), nominal ${formatSi(tank.nominal_f, "F", 3)}; ${e.method} ${e.time}`
+        : `   tank ${tank.index}       nominal ${formatSi(tank.nominal_f, "F", 3)} (not calibrated)`);
+    }
+    lines.push(p.thresholds
+      ? `   thresholds   ${formatSi(p.thresholds.thresholds_v[0], "V", 4)} / ${formatSi(p.thresholds.thresholds_v[1], "V", 4)}, ratio ${p.thresholds.ratio.toFixed(3)} ± ${(2 * p.thresholds.u_ratio).toFixed(3)}; ${p.thresholds.time}`
+      : "   thresholds   nominal");
+    lines.push(p.timebase
+      ? `   timebase     ${p.timebase.ppm.toFixed(2)} ppm ± ${(2 * p.timebase.u_ppm).toFixed(2)} ppm (k = 2); ${p.timebase.method} ${p.timebase.time}`
+      : "   timebase     nominal (cancels in tanks calibrated against a reference inductor)");
+  }
+  process.stdout.write(lines.join("\n") + "\n");
+  return Promise.resolve(0);
+}
+
+async function restore(t: OpenedTester, store: StoreOptions): Promise<number> {
+  const p = restorePreviousProfile(t.client.identity.device_id, store);
+  process.stdout.write(`   restored the previous profile (updated ${p.updated}); the replaced one is now the previous\n`);
+  return 0;
+}
+
+async function reference(t: OpenedTester, store: StoreOptions, v: Values): Promise<number> {
+  const ref = {
+    inductance_h: parseQuantity(v["ref-h"] as string, "ref-h", "H")!,
+    u_inductance_h: parseQuantity(v["ref-u-h"] as string, "ref-u-h", "H")!,
+    self_capacitance_f: parseQuantity(v["ref-cs-f"] as string | undefined, "ref-cs-f", "F", { optional: true }),
+    u_self_capacitance_f: parseQuantity(v["ref-u-cs-f"] as string | undefined, "ref-u-cs-f", "F", { optional: true }),
+    label: v["ref-label"] as string | undefined,
+  };
+  const tanks = v.tanks === undefined ? undefined : String(v.tanks).split(",").map((s) => intOption(s.trim(), "tanks", 0, t.client.profile.tanks.length - 1)!);
+  const repeats = intOption(v.repeats, "repeats", 1, 50);
+  const profile = currentProfile(t, store);
+  const applied = appliedCalibration(profile, "calibration in progress");
+  const out = await calibrateWithReference(t.client, ref, { tanks, repeats, calibration: applied, timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress });
+  for (const r of out.results) {
+    process.stdout.write(`   tank ${r.tank}: ${formatSi(r.c_f, "F", 5)} ± ${formatSi(2 * r.u_f, "F", 2)} (k = 2), ${((r.c_f / r.nominal_f - 1) * 100).toFixed(2)} % from nominal; ${r.readings} rings at ${formatSi(r.f0_hz, "Hz", 6)}\n`);
+  }
+  for (const s of out.skipped) process.stdout.write(`   tank ${s.tank}: not calibrated, ${s.reason}\n`);
+  for (const e of out.entries) profile.tanks = [...profile.tanks.filter((x) => x.index !== e.index), e].sort((a, b) => a.index - b.index);
+  commit(profile, store);
+  return 0;
+}
+
+async function parallel(t: OpenedTester, store: StoreOptions, v: Values): Promise<number> {
+  const tank = intOption(v.tank, "tank", 0, t.client.profile.tanks.length - 1);
+  if (tank === undefined) throw new CliUsageError("--tank N is required");
+  const cap = {
+    capacitance_f: parseQuantity(v["cap-f"] as string, "cap-f", "F")!,
+    u_capacitance_f: parseQuantity(v["cap-u-f"] as string, "cap-u-f", "F")!,
+    part_self_capacitance_f: parseQuantity(v["part-cs-f"] as string | undefined, "part-cs-f", "F", { optional: true }),
+    u_part_self_capacitance_f: parseQuantity(v["part-u-cs-f"] as string | undefined, "part-u-cs-f", "F", { optional: true }),
+  };
+  const profile = currentProfile(t, store);
+  const sim = t.sim;
+  const connect = sim
+    ? async () => {
+      // The simulated bench: the capacitor across the clips adds to what is in parallel with the part.
+      if (sim.part) sim.part = { ...sim.part, self_capacitance_f: sim.part.self_capacitance_f + cap.capacitance_f };
+      progress(`(simulated) ${formatSi(cap.capacitance_f, "F", 3)} clipped across the part`);
+    }
+    : () => waitForEnter(`clip the ${formatSi(cap.capacitance_f, "F", 3)} capacitor across the part, then press Enter`);
+  const { entry, result } = await calibrateWithParallelCapacitor(t.client, tank, cap, connect, {
+    repeats: intOption(v.repeats, "repeats", 1, 50), calibration: appliedCalibration(profile, "calibration in progress"),
+    timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress,
+  });
+  process.stdout.write(`   tank ${tank}: ${formatSi(result.c_f, "F", 5)} ± ${formatSi(2 * result.u_f, "F", 2)} (k = 2); ` +
+    `${formatSi(result.fa_hz, "Hz", 6)} → ${formatSi(result.fb_hz, "Hz", 6)}; the part reads ${formatSi(result.part_inductance_h, "H", 5)}\n`);
+  profile.tanks = [...profile.tanks.filter((x) => x.index !== tank), entry].sort((a, b) => a.index - b.index);
+  commit(profile, store);
+  return 0;
+}
+
+async function thresholds(t: OpenedTester, store: StoreOptions, v: Values): Promise<number> {
+  const profile = currentProfile(t, store);
+  const { entry, fit } = await calibrateThresholds(t.client, {
+    captures: intOption(v.captures, "captures", 2, 20), calibration: appliedCalibration(profile, "calibration in progress"), onProgress: progress,
+  });
+  process.stdout.write(`   thresholds ${formatSi(fit.thresholds_v[0], "V", 4)} / ${formatSi(fit.thresholds_v[1], "V", 4)}: ratio ${fit.ratio.toFixed(3)} ± ${(2 * fit.u_ratio).toFixed(3)}, ` +
+    `comparator offset ${(fit.offset_v * 1e3).toFixed(3)} mV ± ${(2 * fit.u_offset_v * 1e3).toFixed(3)} mV (k = 2)\n`);
+  profile.thresholds = entry;
+  commit(profile, store);
+  return 0;
+}
+
+async function timebase(t: OpenedTester, store: StoreOptions, v: Values): Promise<number> {
+  // Measuring against the host clock needs a tick-counter command the firmware does not have yet.
+  if (v.ppm === undefined) throw timebaseUnsupported();
+  const ppm = Number(v.ppm);
+  const u = Number(v["u-ppm"]);
+  if (!Number.isFinite(ppm)) throw new CliUsageError(`--ppm must be a number, got ${JSON.stringify(v.ppm)}`);
+  if (!(u > 0)) throw new CliUsageError("--u-ppm U (standard uncertainty of the entered value, ppm, > 0) is required with --ppm");
+  const profile = currentProfile(t, store);
+  if (profile.tanks.some((e) => e.method === "reference-inductor")) {
+    progress("tanks calibrated against a reference inductor are rescaled to the new timebase (their crystal error cancelled)");
+  }
+  if (Math.abs(ppm) > 1000) throw new CalibrationError("NONSENSE_RESULT", `${ppm} ppm is beyond any working crystal; check the counter reading`);
+  profile.timebase = { ppm, u_ppm: u, method: "entered", time: new Date().toISOString(), detail: "entered from an external frequency measurement" };
+  process.stdout.write(`   timebase ${ppm} ppm ± ${2 * u} ppm (k = 2)\n`);
+  commit(profile, store);
+  return 0;
+}
+
+function waitForEnter(prompt: string): Promise<void> {
+  process.stderr.write(`   ${prompt}\n`);
+  return new Promise((resolve) => {
+    const rl = createInterface({ input: process.stdin });
+    rl.once("line", () => {
+      rl.close();
+      resolve();
+    });
+  });
+}
