@@ -59,7 +59,7 @@ export function fitLimits(e: EdgeSet, c: CheckedInput, wd: number): FitLimits {
 }
 
 /** 1 for up to `count` indexed edges: the last `tail` of them and an even spread of the rest. */
-function subsetMask(e: EdgeSet, count: number, tail: number): Float64Array {
+export function subsetMask(e: EdgeSet, count: number, tail: number): Float64Array {
   const mask = new Float64Array(e.n);
   let total = 0;
   for (let k = 0; k < e.n; k++) if (e.m[k] === e.m[k]) total++;
