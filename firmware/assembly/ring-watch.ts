@@ -9,9 +9,11 @@ import { hear, horizon, lastHeardAt, listen, listening, unlisten } from "./liste
 
 let watching: bool = false;
 let quietTicks: i32 = 0;
+let quietUsAsked: i32 = 0;
 
 /** Starts watching a ring that may still be going; `quietUs` is how long silence must last. */
 export function watch(quietUs: i32): void {
+  quietUsAsked = quietUs;
   quietTicks = quietUs * board.TICKS_PER_US;
   listen();
   watching = true;
@@ -45,4 +47,9 @@ export function stopWatching(): void {
 
 export function ringing(): bool {
   return remaining() > 0;
+}
+
+/** The quiet time the current watch demands, µs (0 when not watching). */
+export function watchedQuietUs(): i32 {
+  return watching ? quietUsAsked : 0;
 }

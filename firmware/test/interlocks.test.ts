@@ -102,6 +102,22 @@ describe("no pulse while the previous ring still produces edges", () => {
     expect(strip(port.text().trim().split("\n"))[0]).toBe(expected);
   });
 
+  it.each([
+    ["a silent self-test counts toward the quiet time", 1000, [] as number[], ["OK MS"]],
+    ["a self-test cannot shorten a longer quiet time", 50000, [] as number[], [`ER ${ERR_RINGING} MS 30`]],
+    ["stray edges in the self-test restart the watch", 1000, [100], [`ER ${ERR_RINGING} MS 20`]],
+  ])("%s", (_what, quietUs, strayAt, expected) => {
+    const port = new ScriptedPort();
+    port.queueCapture([10, 20], [21, 40]); // reaches the edge limit of 2: the ring may go on
+    port.queueHeard([], []); // the watch hears nothing...
+    port.queueHeard(strayAt, strayAt.map((t, i) => t * 2 + (1 - (i % 2)))); // ...nor the self-test, or a little
+    port.rx(encodeCommand("MS", [1, 2, 200, 2, 100, quietUs]));
+    port.rx(encodeCommand("ST"));
+    port.output = [];
+    port.rx(encodeCommand("MS", [1, 2, 200, 2, 100, 1000]));
+    expect(strip(port.text().trim().split("\n")).slice(0, 1)).toEqual(expected);
+  });
+
   it("does not watch after a capture that ended because the ring went quiet", () => {
     const link = new SimLink();
     link.send("MS", 1, 2, 200, 8192, 1000, 2000);
