@@ -172,27 +172,9 @@ export function fitRing(input: RingInput): FitState {
     // A 2 % change of the weights moves the estimates by a negligible second-order amount.
     const noiseMoved = meanRelChange(oldVariance, variance, used) > 0.02;
 
-    // Standardise against the noise model, Huber-weight, and (once a noise model exists) reject
-    // on a MAD scale. Rejected edges are re-tested every round, so an edge set aside under a
-    // poor early model comes back.
-    let nz = 0;
-    for (let k = 0; k < n; k++) {
-      if (!(assigned[k] > 0)) continue;
-      z[k] = ws.r[k] / Math.sqrt(variance[k]);
-      if (used[k] > 0) zUsed[nz++] = z[k];
-    }
-    zScale = Math.max(0.5, madSigma(zUsed, nz, zWork));
-    let flipped = 0;
-    for (let k = 0; k < n; k++) {
-      if (!(assigned[k] > 0)) continue;
-      const zk = z[k] / zScale;
-      robust[k] = huberWeight(zk, HUBER_C);
-      if (round === 0) continue;
-      const isOut = Math.abs(zk) > (outlier[k] ? REJECT_Z - 0.5 : REJECT_Z) ? 1 : 0;
-      if (isOut !== outlier[k]) flipped++;
-      outlier[k] = isOut;
-      if (isOut) reasons[k] = `residual ${Math.abs(zk).toFixed(1)} robust sd from the ring model (outlier)`;
-    }
+    const rw = reweight(ws.r, variance, assigned, used, outlier, robust, reasons, round > 0, z, zUsed, zWork);
+    zScale = rw.zScale;
+    const flipped = rw.flipped;
     if (round >= 1 && moved === 0 && flipped === 0 && !noiseMoved) break;
   }
   const cov = invertSymmetric(4, fit.normal);
@@ -218,6 +200,39 @@ export function fitRing(input: RingInput): FitState {
     checked: c, edges: e, p, cov, r: ws.r.slice(), slope: ws.slope.slice(), variance, used,
     z_scale: zScale, noise, reasons, chi2: fit.chi2,
   };
+}
+
+/**
+ * Standardises the residuals against the noise model, Huber-weights them on a MAD scale and
+ * (when `reject`) sets aside those beyond REJECT_Z, with a little hysteresis. Edges rejected
+ * before are re-tested, so an edge set aside under a poor early model comes back. Returns the
+ * MAD scale and how many edges changed side.
+ */
+function reweight(
+  r: Float64Array, variance: Float64Array, assigned: Float64Array, used: Float64Array, outlier: Uint8Array,
+  robust: Float64Array, reasons: (string | null)[], reject: boolean,
+  z: Float64Array, zUsed: Float64Array, zWork: Float64Array,
+): { zScale: number; flipped: number } {
+  const n = r.length;
+  let nz = 0;
+  for (let k = 0; k < n; k++) {
+    if (!(assigned[k] > 0)) continue;
+    z[k] = r[k] / Math.sqrt(variance[k]);
+    if (used[k] > 0) zUsed[nz++] = z[k];
+  }
+  const zScale = Math.max(0.5, madSigma(zUsed, nz, zWork));
+  let flipped = 0;
+  for (let k = 0; k < n; k++) {
+    if (!(assigned[k] > 0)) continue;
+    const zk = z[k] / zScale;
+    robust[k] = huberWeight(zk, HUBER_C);
+    if (!reject) continue;
+    const isOut = Math.abs(zk) > (outlier[k] ? REJECT_Z - 0.5 : REJECT_Z) ? 1 : 0;
+    if (isOut !== outlier[k]) flipped++;
+    outlier[k] = isOut;
+    if (isOut) reasons[k] = `residual ${Math.abs(zk).toFixed(1)} robust sd from the ring model (outlier)`;
+  }
+  return { zScale, flipped };
 }
 
 function setWeights(
