@@ -59,6 +59,25 @@ describe("analyzeRing on noiseless edges", () => {
     expect(a.edges_used).toBe(cr.times.length);
   });
 
+  it("reads the notes' §1 part from its noiseless edges", () => {
+    // Measurement notes §1 [calc], standard circuit theory (Terman 1943, value from memory):
+    // L = 10 µH, C = 10 nF, Rs = 0.5 Ω -> f0 = 503 292.12 Hz, Q = 63.2456, ESR = 0.5000 Ω;
+    // with I0 = 10 mA the ring amplitude is 0.31624 V.
+    const part = { l_h: 10e-6, rs_ohm: 0.5 };
+    const ring = ringWaveform(part, 10e-9, 10e-3);
+    const cr = crossingTimes(ring, 0.035 * 0.31624, -0.005 * 0.31624, 10000, 1);
+    const tick_hz = 1e17;
+    const a = analyzeRing({
+      tick_hz, ticks: cr.times.map((t) => Math.round(t * tick_hz)), levels: cr.levels,
+      tank_c_f: 10e-9, thresholds_v: [0.035 * 0.31624, -0.005 * 0.31624],
+    });
+    expect(a.f0_hz).toBeCloseTo(503292.12, 1);
+    expect(a.q).toBeCloseTo(63.2456, 4);
+    expect(a.esr_ohm).toBeCloseTo(0.5, 6);
+    expect(a.inductance_h).toBeCloseTo(10e-6, 12);
+    expect(a.amplitude_v).toBeCloseTo(0.31624, 5);
+  });
+
   it("reports the GUM budget of the notes' §5 example when the fit is exact", () => {
     // Measurement notes §5 [calc] (JCGM 100:2008): 1 nF ±1 % rect., 159 154.94 Hz with ±100 ppm
     // rect. timebase -> L = 1.0000 mH, U(k = 2) = 11.55 µH; the capacitance dominates.
