@@ -171,4 +171,25 @@ describe("the multimodal (A0, alpha) likelihood (measurement notes §2)", () => 
     expect(Math.abs(local.p[P_ALPHA] / alpha - 1)).toBeGreaterThan(0.3);
     expect(Math.abs(global.p[P_ALPHA] / alpha - 1)).toBeLessThan(1e-6);
   });
+
+  it("takes the true basin at every cut-off of the notes' reference ring", () => {
+    // Noiseless edges have one exact solution (measurement notes §2), so a period off by more
+    // than 1 ppm means a false basin. Each capture is the reference ring cut after 20, 21, ...
+    // edges, with symmetric (±20 mV) and offset (+35/-5 mV) thresholds.
+    const w0 = 2 * Math.PI * 100e3;
+    const alpha = w0 / 100;
+    const wd = Math.sqrt(w0 * w0 - alpha * alpha);
+    const tick_hz = 1e15;
+    for (const th of [[0.02, -0.02], [0.035, -0.005]] as [number, number][]) {
+      const cr = crossingTimes({ a0_v: 1, alpha_per_s: alpha, wd_rad_s: wd }, th[0], th[1], 10000, 1);
+      for (let n = 20; n <= cr.times.length; n++) {
+        const a = analyzeRing({
+          tick_hz, ticks: cr.times.slice(0, n).map((t) => Math.round(t * tick_hz)), levels: cr.levels.slice(0, n),
+          tank_c_f: 1e-9, thresholds_v: th,
+        });
+        expect(Math.abs(a.fd_hz / (wd / (2 * Math.PI)) - 1)).toBeLessThan(1e-6);
+      }
+    }
+  });
 });
+
