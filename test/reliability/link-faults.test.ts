@@ -1,0 +1,278 @@
+// Link faults between host and simulated tester. For each one the host must either recover the
+// very capture the hardware recorded (through CR, which never pulses again) or fail with a coded
+// error; a damaged or partial capture is never returned. Timeouts are short (FAST_CLIENT), so a
+// lost line costs a fraction of a second; vitest's per-test timeout is the bound on every wait.
+
+import { describe, expect, it } from "vitest";
+import { DeviceError, DeviceTimeoutError } from "../../host/src/device/errors.ts";
+import { encodeCommand, ProtocolError } from "../../host/src/device/frames.ts";
+import { TransportError } from "../../host/src/transport/transport.ts";
+import { measurePart } from "../../host/src/measure/measure-part.ts";
+import { caught, matchesTruth, openRig, QUICK_PART, settle, SETTING } from "./sim-rig.ts";
+import type { Rig } from "./sim-rig.ts";
+
+/** Capture lines start after the OK MS line: CH is line 1 of the reply, the first CD line 2. */
+const OK_MS = 0;
+const CH = 1;
+const FIRST_CD = 2;
+
+async function recovers(rig: Rig): Promise<void> {
+  const raw = await rig.client.measure(SETTING);
+  await settle();
+  expect(matchesTruth(raw, rig.link.sim)).toBe(true);
+  expect(raw.end_reason).toBe("quiet");
+  expect(rig.pulses()).toBe(1); // the capture was fetched again, the part was not pulsed again
+}
+
+describe("link faults inside a capture stream are detected and the capture is fetched again", () => {
+  const cases: [string, (r: Rig) => void][] = [
+    ["a flipped bit in a data line", (r) => r.faults.arm("flip_bit", FIRST_CD)],
+    ["a flipped bit in the header", (r) => r.faults.arm("flip_bit", CH)],
+    ["a lost byte in a data line", (r) => r.faults.arm("drop_byte", FIRST_CD)],
+    ["a duplicated data line", (r) => r.faults.arm("duplicate_line", FIRST_CD)],
+    ["two data lines swapped", (r) => r.faults.arm("reorder_lines", CH)],
+    ["a lost byte and a flipped bit on the first two attempts", (r) => {
+      r.faults.arm("drop_byte", FIRST_CD);
+      r.faults.arm("flip_bit", FIRST_CD + 4);
+    }],
+  ];
+  for (const [name, inject] of cases) {
+    it(name, async () => {
+      const rig = await openRig({ seed: 11 });
+      inject(rig);
+      await recovers(rig);
+      expect(rig.faults.sent.CR).toBeGreaterThanOrEqual(1);
+      const injected = Object.values(rig.faults.injected).reduce((a, b) => a + b, 0);
+      expect(injected).toBeGreaterThanOrEqual(1);
+      await rig.close();
+    });
+  }
+
+  it("a lost newline (two lines merged) is caught by the frame CRC", async () => {
+    const rig = await openRig({ seed: 12 });
+    rig.faults.arm("drop_byte", FIRST_CD, -1);
+    await recovers(rig);
+    await rig.close();
+  });
+
+  it("a capture damaged on every attempt fails with CAPTURE_DAMAGED after two resends", async () => {
+    const rig = await openRig({ seed: 13, faults: { rates: { flip_bit: 1 }, only_tags: ["CD"] } });
+    const e = await caught(() => rig.client.measure(SETTING));
+    expect(e).toBeInstanceOf(ProtocolError);
+    expect((e as ProtocolError).code).toBe("CAPTURE_DAMAGED");
+    expect(rig.faults.sent.CR).toBe(2);
+    expect(rig.pulses()).toBe(1);
+    await rig.close();
+  });
+});
+
+describe("link faults the host cannot repair end in a coded error, and never in a capture", () => {
+  it("a stall mid-stream (the tester hangs) ends in DEVICE_TIMEOUT; nothing partial is returned", async () => {
+    const rig = await openRig({ seed: 21, faults: { stall_ms: Infinity } });
+    rig.faults.arm("stall", FIRST_CD + 1);
+    const e = await caught(() => rig.client.measure(SETTING));
+    expect(e).toBeInstanceOf(DeviceTimeoutError);
+    expect((e as DeviceTimeoutError).code).toBe("DEVICE_TIMEOUT");
+    expect(rig.pulses()).toBe(1);
+    await rig.close();
+  });
+
+  it("a short stall mid-stream (under the reply timeout) only delays the same capture", async () => {
+    const rig = await openRig({ seed: 22, faults: { stall_ms: 40 } });
+    rig.faults.arm("stall", FIRST_CD + 1);
+    await recovers(rig);
+    expect(rig.faults.sent.CR ?? 0).toBe(0);
+    await rig.close();
+  });
+
+  it("a slow device (every line late, within the reply timeout) gives the same capture", async () => {
+    const rig = await openRig({ seed: 23, faults: { line_delay_ms: 3 } });
+    await recovers(rig);
+    await rig.close();
+  });
+
+  it("a tester reset mid-capture ends in DEVICE_TIMEOUT; the restarted tester measures again", async () => {
+    const rig = await openRig({ seed: 24 });
+    rig.faults.arm("reset", FIRST_CD + 1);
+    const e = await caught(() => rig.client.measure(SETTING));
+    expect((e as { code?: string }).code).toBe("DEVICE_TIMEOUT");
+    expect(rig.link.generation).toBe(1);
+    const raw = await rig.client.measure(SETTING);
+    await settle();
+    expect(matchesTruth(raw, rig.link.sim)).toBe(true);
+    expect(rig.link.sim.stats.pulses).toBe(1);
+    await rig.close();
+  });
+
+  it("the port vanishing mid-capture rejects at once with a disconnected TransportError, and so does every later call", async () => {
+    const rig = await openRig({ seed: 25 });
+    const p = rig.client.measure(SETTING);
+    setImmediate(() => rig.faults.unplug());
+    const e = await caught(() => p);
+    expect(e).toBeInstanceOf(TransportError);
+    expect((e as TransportError).disconnected).toBe(true);
+    const e2 = await caught(() => rig.client.measure(SETTING));
+    expect(e2).toBeInstanceOf(TransportError);
+    await rig.close();
+  });
+
+  it("a corrupted OK MS fails with LINK_CORRUPT after the one pulse; the next reading is whole", async () => {
+    const rig = await openRig({ seed: 26 });
+    rig.faults.arm("flip_bit", OK_MS, 1);
+    const e = await caught(() => rig.client.measure(SETTING));
+    expect((e as ProtocolError).code).toBe("LINK_CORRUPT");
+    expect(rig.pulses()).toBe(1);
+    const raw = await rig.client.measure(SETTING);
+    await settle();
+    expect(matchesTruth(raw, rig.link.sim)).toBe(true);
+    expect(rig.pulses()).toBe(2);
+    await rig.close();
+  });
+
+  it("a command damaged on its way to the tester is refused (ER 1) without a pulse", async () => {
+    for (const kind of ["tx_flip_bit", "tx_drop_byte"] as const) {
+      const rig = await openRig({ seed: 27 });
+      rig.faults.arm(kind, 0, 3);
+      const e = await caught(() => rig.client.measure(SETTING));
+      expect(e).toBeInstanceOf(DeviceError);
+      expect((e as DeviceError).code).toBe("LINK_CRC");
+      expect(rig.pulses()).toBe(0);
+      await rig.close();
+    }
+  });
+
+  it("a command whose newline is lost times out, and the next command is refused, not misread", async () => {
+    const rig = await openRig({ seed: 28 });
+    rig.faults.arm("tx_drop_byte", 0, -1);
+    const e = await caught(() => rig.client.measure(SETTING));
+    expect((e as { code?: string }).code).toBe("DEVICE_TIMEOUT");
+    const e2 = await caught(() => rig.client.measure(SETTING));
+    expect(["LINK_CRC", "LINK_SYNTAX", "LINE_TOO_LONG"]).toContain((e2 as { code?: string }).code);
+    expect(rig.pulses()).toBe(0);
+    const raw = await rig.client.measure(SETTING);
+    await settle();
+    expect(matchesTruth(raw, rig.link.sim)).toBe(true);
+    await rig.close();
+  });
+
+  it("a stalled reading through measurePart throws; no partial capture is analysed", async () => {
+    const rig = await openRig({ seed: 29, faults: { stall_ms: Infinity } });
+    rig.faults.arm("stall", FIRST_CD);
+    const estimate = { l_h: QUICK_PART.inductance_h, q_points: [{ q: 20, tank_f: 10e-9 }], fitted: false };
+    const e = await caught(() => measurePart(rig.client, { drive: SETTING.drive, tank: SETTING.tank, charge_us: SETTING.charge_us, estimate }));
+    expect((e as { code?: string }).code).toBe("DEVICE_TIMEOUT");
+    await rig.close();
+  });
+});
+
+describe("garbage at connect", () => {
+  it("whole garbage lines left in the pipe are discarded and the tester is identified", async () => {
+    const rig = await openRig({ seed: 31, faults: { garbage_at_connect: "\x00\xff~~boot 1.2\r\n#$%\n" } });
+    expect(rig.client.identity.protocol_version).toBe(1);
+    expect(rig.faults.injected.garbage_at_connect).toBe(1);
+    await recovers(rig);
+    await rig.close();
+  });
+
+  it("an unterminated garbage tail fails the connect with a coded error, and a second connect succeeds", async () => {
+    const e = await caught(() => openRig({ seed: 32, faults: { garbage_at_connect: "\xfe\x13partial" } }));
+    const code = (e as { code?: string } | undefined)?.code;
+    // Either the host discards the fragment (no error) or refuses with a code; never a bare Error.
+    if (e !== undefined) expect(["LINK_CORRUPT", "BAD_REPLY"]).toContain(code);
+    const rig = await openRig({ seed: 32 });
+    await recovers(rig);
+    await rig.close();
+  });
+});
+
+describe("late replies after a timeout", () => {
+  // Finding (host/src/device/client.ts): after a DeviceTimeoutError the client does not
+  // resynchronise; command() only empties the inbox before writing, and no field ties a capture
+  // stream to its request. Lines of the timed-out measurement that arrive after the next MS was
+  // sent are taken as that measurement's reply: OK MS, then a complete, checksummed capture of the
+  // previous pulse, returned as verified. Here the part is changed in between (a sorting line), so
+  // the host reports the previous part's ring for the new part. Marked it.fails until fixed.
+  it.fails("a capture delivered after its measurement timed out is never returned for the next measurement", async () => {
+    const rig = await openRig({ seed: 41, faults: { stall_ms: 400 } });
+    rig.faults.arm("stall", OK_MS); // everything from OK MS on is held back 400 ms
+    const e = await caught(() => rig.client.measure(SETTING));
+    expect((e as { code?: string }).code).toBe("DEVICE_TIMEOUT");
+    // The operator puts the next part on the clips and measures again while the old reply is in flight.
+    await new Promise((r) => setTimeout(r, 200));
+    rig.link.sim.part = { ...QUICK_PART, inductance_h: 1.5e-3 };
+    const second = await caught(async () => {
+      const raw = await rig.client.measure(SETTING);
+      await settle();
+      expect(matchesTruth(raw, rig.link.sim)).toBe(true);
+    });
+    await rig.close();
+    // Acceptable outcomes: the new pulse's own capture, or a coded error.
+    if (second !== undefined) expect(typeof (second as { code?: unknown }).code).toBe("string");
+  });
+});
+
+describe("error codes on link failures", () => {
+  // Finding (host/src/transport/transport.ts, class TransportError): a failure of the link itself
+  // (port unplugged, write on a closed port) carries `disconnected` but no stable `code`, unlike
+  // every other error a user can meet; the CLI then prints it without one. Marked it.fails until fixed.
+  it.fails("an unplugged port is reported with a stable code", async () => {
+    const rig = await openRig({ seed: 51 });
+    rig.faults.unplug();
+    const e = await caught(() => rig.client.measure(SETTING));
+    expect(e).toBeInstanceOf(TransportError);
+    expect(typeof (e as { code?: unknown }).code).toBe("string");
+  });
+});
+
+describe("a reply that outlives its command", () => {
+  // Finding (host/src/device/client.ts, command()): a corrupt line makes command() throw at once,
+  // without waiting out the rest of the exchange. If the corrupt line is a leftover of the previous
+  // exchange (here: the capture behind a damaged OK MS, still in flight when the next MS is
+  // written), the next MS fails before its own reply has arrived; that reply (OK MS and a whole,
+  // checksummed capture) is then taken as the reply to the MS after it: that reading returns the
+  // previous pulse's capture as verified, and if the host sends its next command before the
+  // leftover reply lands, every later reading does too. With parts swapped between readings, a
+  // part gets its predecessor's value. Marked it.fails until fixed.
+  it.fails("after two damaged lines in a row, every reading still returns its own pulse's capture", async () => {
+    const rig = await openRig({ seed: 61 });
+    rig.faults.arm("flip_bit", OK_MS, 1); // reading 1: OK MS damaged -> LINK_CORRUPT, its capture still in flight
+    rig.faults.arm("flip_bit", FIRST_CD, 1); // that capture's data line damaged too, arriving during reading 2
+    expect((await caught(() => rig.client.measure(SETTING)) as { code?: string }).code).toBe("LINK_CORRUPT");
+    expect((await caught(() => rig.client.measure(SETTING)) as { code?: string }).code).toBe("LINK_CORRUPT");
+    const parts = [{ ...QUICK_PART, inductance_h: 1.5e-3 }, QUICK_PART, { ...QUICK_PART, inductance_h: 0.68e-3 }];
+    const own: boolean[] = [];
+    for (const part of parts) {
+      rig.link.sim.part = part;
+      const raw = await rig.client.measure(SETTING);
+      await settle();
+      own.push(matchesTruth(raw, rig.link.sim));
+    }
+    await rig.close();
+    expect(own).toEqual([true, true, true]);
+  });
+
+  // The same finding with a single fault: a bit flip on the way to the tester turns the MS
+  // line's '*' (0x2A) into a newline (0x0A), so the tester answers two lines with two ER frames.
+  // The first fails that reading, the second fails the next one before its own OK MS arrives, and
+  // the reading after that returns the next one's pulse.
+  it.fails("a command split in two by a flipped bit does not shift later replies", async () => {
+    const rig = await openRig({ seed: 62 });
+    const star = new TextDecoder().decode(encodeCommand("MS", [SETTING.drive, SETTING.tank, SETTING.charge_us, SETTING.edge_limit, SETTING.timeout_ms, SETTING.quiet_us])).indexOf("*");
+    rig.faults.arm("tx_flip_bit", 0, star, 5);
+    expect((await caught(() => rig.client.measure(SETTING)) as { code?: string }).code).toBe("LINK_SYNTAX");
+    const own: boolean[] = [];
+    const outcomes: string[] = [];
+    for (let k = 0; k < 3; k++) {
+      const raw = await caught(async () => {
+        const r = await rig.client.measure(SETTING);
+        await settle();
+        own.push(matchesTruth(r, rig.link.sim));
+      });
+      outcomes.push(raw === undefined ? "ok" : String((raw as { code?: string }).code));
+    }
+    await rig.close();
+    // Readings after the split may fail with a code, but every one that succeeds is its own.
+    expect(own.every((x) => x)).toBe(true);
+    expect(outcomes).toEqual(["ok", "ok", "ok"]);
+  });
+});
