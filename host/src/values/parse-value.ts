@@ -5,8 +5,8 @@
 
 import { TOLERANCE_LETTERS } from "./tolerance-letters.ts";
 
-/** A text that is not a value; `code` is stable, the message says how to write one. */
-export class ValueSyntaxError extends Error {
+/** A text that is not a value (a RangeError: a bad argument); `code` is stable, the message says how to write one. */
+export class ValueSyntaxError extends RangeError {
   readonly code = "BAD_VALUE";
   constructor(readonly text: string, why: string) {
     super(`cannot read "${text}" as a value: ${why}; write it like 4.7u, 4u7, 4.7 µH or 4.7e-6`);
