@@ -2,7 +2,8 @@
 // marked "bench practice" are engineering choices, not from a standard.
 
 import type { FitState } from "./analyze-ring.ts";
-import { P_ALPHA, P_LNA, P_PHI, P_WD } from "./edge-model.ts";
+import { evaluateEdges, P_ALPHA, P_LNA, P_WD } from "./edge-model.ts";
+import { invertSymmetric, quadraticForm } from "./small-linear-algebra.ts";
 import type { RingQuantities } from "./ring-quantities.ts";
 import { residualCorrelation } from "./residual-correlation.ts";
 import type { Warning } from "./types.ts";
@@ -44,7 +45,9 @@ export function diagnose(s: FitState, rq: RingQuantities): Diagnosis {
   if (aLast > TRUNCATED_RATIO * vStop) {
     warnings.push({ code: "RING_TRUNCATED", message: `the ring was still ${(aLast / vStop).toFixed(1)}x the threshold when the capture ended: lengthen the capture window or allow more edges, or Q will be poorly determined` });
   }
-  if (a0 < NEAR_AMPLITUDE_RATIO * vStop) {
+  // Judged only when the fit knows the amplitude (to about ±50 %): with symmetric thresholds and
+  // few edges it may not, and Q_UNCERTAIN says so.
+  if (a0 < NEAR_AMPLITUDE_RATIO * vStop && Math.sqrt(s.cov[10]) < 0.5) {
     warnings.push({ code: "THRESHOLDS_NEAR_AMPLITUDE", message: `the ring starts at only ${(a0 / vStop).toFixed(2)}x the comparator threshold: raise the drive current or lower the thresholds` });
   }
   const rejected = e.n - nUsed;
@@ -56,7 +59,7 @@ export function diagnose(s: FitState, rq: RingQuantities): Diagnosis {
     warnings.push({ code: "MISSING_EDGES", message: `${missing} half-cycles have no usable edge: the capture is losing edges (dead time or buffer); lower the tick rate load or shorten the ring` });
   }
   const clip = firstCycleDeviation(s);
-  if (clip > 4) {
+  if (clip > 5) {
     warnings.push({ code: "SUSPECTED_CLIPPING", message: `the first cycle's edges sit ${clip.toFixed(1)} sd off the ring model: the front end may clip or the switch transient may leak in; lower the drive current` });
   }
   const white = residualCorrelation(s.r, s.variance, s.used, s.edges.rising);
@@ -65,7 +68,7 @@ export function diagnose(s: FitState, rq: RingQuantities): Diagnosis {
   }
   const drift = frequencyDrift(s);
   if (drift && Math.abs(drift.df_rel) > 4 * drift.df_rel_u && Math.abs(drift.df_rel) > DRIFT_MIN_REL) {
-    warnings.push({ code: "FREQUENCY_DRIFT", message: `the ring frequency changes by ${(drift.df_rel * 1e6).toFixed(0)} ppm (± ${(2 * drift.df_rel_u * 1e6).toFixed(0)} ppm, k = 2) from the strong to the weak half: the tank capacitor may be voltage dependent (use C0G/film) or the core may be near saturation (lower the drive current)` });
+    warnings.push({ code: "FREQUENCY_DRIFT", message: `the ring frequency changes by ${(drift.df_rel * 1e6).toFixed(0)} ppm (± ${(2 * drift.df_rel_u * 1e6).toFixed(0)} ppm, k = 2) from the start to the end of the ring: the tank capacitor may be voltage dependent (use C0G/film) or the core may be near saturation (lower the drive current)` });
   }
   if (rq.u.q > 0.1 * rq.q) {
     warnings.push({ code: "Q_UNCERTAIN", message: `Q is determined only to ±${((200 * rq.u.q) / rq.q).toFixed(0)} % (k = 2): use offset thresholds, a longer capture or a higher drive current` });
@@ -87,45 +90,62 @@ function firstCycleDeviation(s: FitState): number {
 }
 
 /**
- * wd fitted separately to the strong and the weak half of the used edges, with the fitted
- * amplitude and decay held: each half is then a weighted straight line in phase.
+ * Frequency drift with amplitude, tested inside the full model: the ring's phase gains a term
+ * wd beta (1 - e^(-alpha t)) / alpha, i.e. the frequency is wd (1 + beta A(t)/A0). beta is
+ * estimated by one Gauss-Newton step of the five-parameter model from the fitted point, and its
+ * variance from the five-parameter normal matrix, so that its correlation
+ * with amplitude and decay (which also bend the edge times) is accounted for (a score test,
+ * C. R. Rao, Proc. Camb. Phil. Soc. 44, 1948). Reported as the relative change of frequency from
+ * the first to the last fitted edge.
  */
 function frequencyDrift(s: FitState): { df_rel: number; df_rel_u: number } | undefined {
   const { edges: e, used, p } = s;
-  const { vh_v, vl_v } = s.checked;
-  let nUsed = 0;
-  for (let k = 0; k < e.n; k++) if (used[k] > 0) nUsed++;
-  if (nUsed < 16) return undefined;
-  const halves = [line(), line()];
-  let seen = 0;
-  const invA0 = Math.exp(-p[P_LNA]);
-  for (let k = 0; k < e.n; k++) {
+  const n = e.n;
+  let nUsed = 0, tFirst = Infinity, tLast = 0;
+  for (let k = 0; k < n; k++) {
     if (!(used[k] > 0)) continue;
-    const h = halves[seen++ < nUsed / 2 ? 0 : 1];
-    const rise = e.rising[k] === 1;
-    const sgn = rise ? 1 : -1;
-    const u = (rise ? vh_v : vl_v) * invA0 * Math.exp(p[P_ALPHA] * e.t_s[k]);
-    if (!(Math.abs(u) < 0.99)) continue; // grazing the threshold: no usable phase
-    const sq = Math.sqrt(1 - u * u);
-    const gt = p[P_WD] - (p[P_ALPHA] * sgn * u) / sq;
-    if (!(gt > 0.1 * p[P_WD])) continue;
-    const y = e.m[k] * Math.PI + p[P_PHI] + sgn * Math.asin(u);
-    // Phase variance: the edge's time variance (volts variance over slope^2) times g_t^2.
-    const wk = (s.slope[k] * s.slope[k]) / (s.variance[k] * gt * gt);
-    const t = e.t_s[k];
-    h.s0 += wk; h.st += wk * t; h.stt += wk * t * t; h.sy += wk * y; h.sty += wk * t * y;
+    nUsed++;
+    tFirst = Math.min(tFirst, e.t_s[k]);
+    tLast = Math.max(tLast, e.t_s[k]);
   }
+  if (nUsed < 16) return undefined;
+  const jac = new Float64Array(4 * n);
+  evaluateEdges(p, e, s.checked.vh_v, s.checked.vl_v, used, null, { jac });
   const wd = p[P_WD];
-  const fits = halves.map((h) => {
-    const det = h.s0 * h.stt - h.st * h.st;
-    return { wd: (h.s0 * h.sty - h.st * h.sy) / det, var: h.s0 / det };
-  });
-  if (!(fits[0].var > 0 && fits[1].var > 0)) return undefined;
-  const df = (fits[1].wd - fits[0].wd) / wd;
-  const u = Math.sqrt(fits[0].var + fits[1].var) / wd;
+  const alpha = p[P_ALPHA];
+  const h = new Float64Array(16);
+  const b = new Float64Array(4);
+  const gt = new Float64Array(4);
+  let c = 0, g = 0, chi2 = 0;
+  for (let k = 0; k < n; k++) {
+    if (!(used[k] > 0)) continue;
+    const w = 1 / s.variance[k];
+    const t = e.t_s[k];
+    const o = 4 * k;
+    // d r / d beta = (d r / d wd) wd (1 - e^(-alpha t)) / (alpha t)
+    const jb = (jac[o] * wd * -Math.expm1(-alpha * t)) / (alpha * t);
+    for (let i = 0; i < 4; i++) {
+      b[i] += w * jac[o + i] * jb;
+      gt[i] += w * jac[o + i] * s.r[k];
+      for (let j = 0; j < 4; j++) h[4 * i + j] += w * jac[o + i] * jac[o + j];
+    }
+    c += w * jb * jb;
+    g += w * jb * s.r[k];
+    chi2 += w * s.r[k] * s.r[k];
+  }
+  const hi = invertSymmetric(4, h);
+  if (!hi) return undefined;
+  const schur = c - quadraticForm(4, hi, b);
+  if (!(schur > 0)) return undefined;
+  const inflate = Math.max(1, chi2 / (nUsed - 5));
+  // The four-parameter gradient is zero at an unconstrained optimum; kept for a fit held by a
+  // soft limit.
+  let bhg = 0;
+  for (let i = 0; i < 4; i++) for (let j = 0; j < 4; j++) bhg += b[i] * hi[4 * i + j] * gt[j];
+  const beta = -(g - bhg) / schur;
+  const betaU = Math.sqrt(inflate / schur);
+  const span = Math.exp(-alpha * tLast) - Math.exp(-alpha * tFirst);
+  const df = beta * span;
+  const u = Math.abs(betaU * span);
   return Number.isFinite(df) && Number.isFinite(u) ? { df_rel: df, df_rel_u: u } : undefined;
-}
-
-function line() {
-  return { s0: 0, st: 0, stt: 0, sy: 0, sty: 0 };
 }
