@@ -56,7 +56,7 @@ export function diagnose(s: FitState, rq: RingQuantities): Diagnosis {
   }
   const missing = mMax - mMin + 1 - nUsed;
   if (missing > Math.max(1, 0.01 * nUsed)) {
-    warnings.push({ code: "MISSING_EDGES", message: `${missing} half-cycles have no usable edge: the capture is losing edges (dead time or buffer); lower the tick rate load or shorten the ring` });
+    warnings.push({ code: "MISSING_EDGES", message: `${missing} half-cycles have no usable edge: the capture is losing edges (capture dead time or buffer overrun); use a larger tank capacitance to slow the ring, or check the capture settings` });
   }
   const clip = firstCycleDeviation(s);
   if (clip > 5) {
