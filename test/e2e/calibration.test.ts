@@ -5,17 +5,22 @@
 // crystal error are recovered from the simulator's known values. Truth is what the simulated
 // board and parts are built with (host/src/sim), nothing else.
 
-import { mkdtempSync } from "node:fs";
+import { spawnSync } from "node:child_process";
+import { mkdtempSync, readFileSync, writeFileSync } from "node:fs";
+import { dirname } from "node:path";
+import { fileURLToPath } from "node:url";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { beforeAll, describe, expect, it } from "vitest";
 import { DeviceClient, measurePart } from "../../host/src/index.ts";
 import type { PartModel } from "../../host/src/index.ts";
+import { loadScenario } from "../../host/src/sim/scenario.ts";
 import { SimTester } from "../../host/src/sim/sim-tester.ts";
 import { SimTransport } from "../../host/src/transport/sim-transport.ts";
 import { referenceBoard } from "../../host/src/sim/board-model.ts";
 import type { BoardModel } from "../../host/src/sim/board-model.ts";
 import { expectedReading } from "../../host/src/sim/front-end.ts";
+import { CLI } from "./run-cli.ts";
 import type { CalibrationProfile, ReferenceOutcome } from "../../host/src/calibration/index.ts";
 import {
   appliedCalibration, calibrateThresholds, calibrateWithParallelCapacitor, calibrateWithReference, emptyProfile, loadProfile,
@@ -91,7 +96,7 @@ describe("calibration on a rough simulated tester (±5 % tanks, 30 pF fixture, +
       const truth = part.inductance_h;
       const budget = singleTankBudget(cal.analysis, cal.capture.tank_c_f, timebaseKnowledge(profile, cal.settings.tank));
       const err = cal.analysis.inductance_h - truth;
-      rows.push(`${truth} H: uncalibrated ${pct(raw.analysis.inductance_h / truth - 1)}, calibrated ${pct(err / truth)} ± ${pct(budget.expanded_h / truth)} (tank ${cal.settings.tank})`);
+      rows.push(`${truth} H: uncalibrated ${pct(raw.analysis.inductance_h / truth - 1)} (tank ${raw.settings.tank}), calibrated ${pct(err / truth)} ± ${pct(budget.expanded_h / truth)} (tank ${cal.settings.tank})`);
       expect(Math.abs(err)).toBeLessThan(cal.analysis.inductance_u_h);
       expect(Math.abs(err)).toBeLessThan(budget.expanded_h);
       expect(Math.abs(err / truth)).toBeLessThan(0.002);
@@ -124,6 +129,31 @@ describe("calibration on a rough simulated tester (±5 % tanks, 30 pF fixture, +
     expect(Math.abs(r.cs_per_percent.small_f)).toBeGreaterThan(5e-12);
     // The apparent (single-tank) reading carries Cs/C ≈ 1.1 %; the corrected one does not.
     expect(sc.first.analysis.inductance_h / part.inductance_h - 1).toBeGreaterThan(0.008);
+  });
+});
+
+describe("calibration on the default simulated tester (tanks +0.31/-0.22/+0.44/-0.38 %, 2.5 pF fixture, +11.5 ppm)", () => {
+  it("brings the demo parts from the nominal-tank error to within their stated uncertainty of the true inductance", async () => {
+    const board = referenceBoard();
+    const { sim, client } = await open(board, REFERENCE_PART, 7);
+    const out = await calibrateWithReference(client, REFERENCE, { repeats: 3 });
+    const profile = emptyProfile(client.identity.device_id, new Date());
+    profile.tanks = out.entries;
+    const applied = appliedCalibration(profile, "test");
+    const rows: string[] = [];
+    for (const name of ["loop-antenna-1u2", "tank-coil-4u4", "drawer-choke-330u", "filter-coil-4m7", "solenoid-valve-82m"]) {
+      const part = loadScenario(name).part;
+      sim.part = part;
+      const raw = await measurePart(client, {});
+      const cal = await measurePart(client, { calibration: applied });
+      const truth = part.inductance_h;
+      const budget = singleTankBudget(cal.analysis, cal.capture.tank_c_f, timebaseKnowledge(profile, cal.settings.tank));
+      rows.push(`${name}: uncalibrated ${pct(raw.analysis.inductance_h / truth - 1)}, calibrated ${pct(cal.analysis.inductance_h / truth - 1)} ± ${pct(budget.expanded_h / truth)} (tank ${cal.settings.tank})`);
+      expect(Math.abs(cal.analysis.inductance_h - truth)).toBeLessThan(budget.expanded_h);
+      expect(Math.abs(cal.analysis.inductance_h - truth)).toBeLessThan(Math.abs(raw.analysis.inductance_h - truth));
+    }
+    console.log(rows.join("\n"));
+    await client.close();
   });
 });
 
@@ -177,5 +207,77 @@ describe("procedures without a reference inductor", () => {
     await expect(calibrateWithReference(client, { inductance_h: 1e-6, u_inductance_h: 1e-9 }, { tanks: [0], repeats: 1 }))
       .rejects.toMatchObject({ code: "OUT_OF_SPAN" });
     await client.close();
+  });
+});
+
+describe("henrytick calibrate (CLI, end to end, built host/dist)", () => {
+  // The CLI must never touch the user's real config directory: every run gets a temporary one.
+  const dir = mkdtempSync(join(tmpdir(), "henrytick-cli-cal-"));
+  const cli = (args: string[], input?: string) => {
+    const r = spawnSync(process.execPath, [CLI, ...args], {
+      encoding: "utf8", timeout: 120_000, input, env: { ...process.env, HENRYTICK_CONFIG_DIR: dir, XDG_CONFIG_HOME: join(dir, "xdg-unused") },
+    });
+    return { status: r.status ?? -1, stdout: r.stdout, stderr: r.stderr };
+  };
+
+  it("reference calibration, then measure applies it; --uncalibrated opts out; a damaged profile is refused until restored", () => {
+    expect(cli(["calibrate", "show", "--sim"]).stdout).toMatch(/none \(nominal values are used\)/);
+    const cal = cli(["calibrate", "reference", "--sim", "drawer-choke-330u", "--ref-h", "330u", "--ref-u-h", "0.1u", "--ref-cs-f", "4p", "--ref-u-cs-f", "1p", "--repeats", "2"]);
+    expect(cal.status).toBe(0);
+    expect(cal.stdout).toMatch(/tank 3: .* \(k = 2\)/);
+    expect(cal.stdout).toMatch(/saved .*calibration-HT-5EED0001\.json/);
+    const cal2 = cli(["calibrate", "reference", "--sim", "drawer-choke-330u", "--ref-h", "330u", "--ref-u-h", "0.1u", "--tanks", "3", "--repeats", "1"]);
+    expect(cal2.stdout).toMatch(/previous profile kept/);
+
+    const m = cli(["measure", "--sim", "filter-coil-4m7", "--json", "--budget"]);
+    expect(m.status).toBe(0);
+    const r = JSON.parse(m.stdout);
+    expect(r.settings.calibration.tank_calibrated).toBe(true);
+    expect(r.settings.calibration.source).toMatch(/calibration-HT-5EED0001\.json/);
+    expect(Math.abs(r.inductance_h / 4.7e-3 - 1)).toBeLessThan(0.002);
+    expect(r.budget.lines.map((l: { group: string }) => l.group)).toEqual(["fit", "capacitance", "timebase", "self-capacitance"]);
+    const raw = JSON.parse(cli(["measure", "--sim", "filter-coil-4m7", "--json", "--uncalibrated"]).stdout);
+    expect(raw.settings.calibration.tank_calibrated).toBe(false);
+
+    const text = cli(["measure", "--sim", "crystal-set-coil-300u", "--self-cap", "--budget"]);
+    expect(text.status).toBe(0);
+    expect(text.stdout).toMatch(/L corrected .*\(k = 2; tanks \d and \d\)/);
+    expect(text.stdout).toMatch(/self-cap\. .*pF/);
+    expect(text.stdout).toMatch(/Cs moves by .* per \+1 % of the small tank/);
+    expect(text.stdout).toMatch(/combined .*U = .*k = 2, JCGM 100:2008/);
+
+    writeFileSync(join(dir, "calibration-HT-5EED0001.json"), "{\"format\": \"henrytick-calibration\", \"version\": 1, \"device_id\": ");
+    const refused = cli(["measure", "--sim", "filter-coil-4m7"]);
+    expect(refused.status).toBe(1);
+    expect(refused.stderr).toMatch(/\[PROFILE_UNREADABLE\].*calibrate restore/);
+    expect(cli(["calibrate", "restore", "--sim"]).status).toBe(0);
+    expect(cli(["measure", "--sim", "filter-coil-4m7", "--json"]).status).toBe(0);
+  });
+
+  it("timebase: entered values are stored; measuring needs firmware support and says so", () => {
+    const none = cli(["calibrate", "timebase", "--sim"]);
+    expect(none.status).toBe(1);
+    expect(none.stderr).toMatch(/\[TIMEBASE_UNSUPPORTED\].*--ppm/);
+    const ok = cli(["calibrate", "timebase", "--sim", "--ppm", "11.5", "--u-ppm", "0.5"]);
+    expect(ok.status).toBe(0);
+    expect(cli(["calibrate", "show", "--sim"]).stdout).toMatch(/timebase +11\.50 ppm ± 1\.00 ppm/);
+  });
+
+  it("parallel capacitor on the simulated bench, and usage errors", () => {
+    const p = cli(["calibrate", "parallel", "--sim", "filter-coil-4m7", "--tank", "2", "--cap-f", "100n", "--cap-u-f", "50p", "--repeats", "1"]);
+    expect(p.status).toBe(0);
+    expect(p.stdout).toMatch(/tank 2: .* \(k = 2\).*the part reads/);
+    expect(cli(["calibrate", "parallel", "--sim", "--tank", "2", "--cap-f", "lots", "--cap-u-f", "1p"]).status).toBe(2);
+    expect(cli(["calibrate", "bogus", "--sim"]).status).toBe(2);
+  });
+});
+
+describe("docs/calibration.md", () => {
+  it("its library example imports only names the package exports", async () => {
+    const doc = readFileSync(join(dirname(fileURLToPath(import.meta.url)), "..", "..", "docs", "calibration.md"), "utf8");
+    const m = /import \{([^}]+)\} from "@henrytick\/host";/.exec(doc);
+    expect(m).not.toBeNull();
+    const lib = (await import("../../host/src/index.ts")) as Record<string, unknown>;
+    for (const name of m![1].split(",").map((x) => x.trim())) expect(typeof lib[name], name).toBe("function");
   });
 });

@@ -26,6 +26,8 @@ export interface TankEntry extends Provenance {
   u_f: number;
   /** Part of u_f/c_f shared by every tank calibrated against the same reference (relative). */
   shared_u_rel: number;
+  /** Part of u_f shared by every tank as an additive offset (the reference's stated Cs), F. */
+  shared_offset_u_f?: number;
   /** Timebase correction (ppm) in force when c_f was measured; c_f is rescaled if it changes. */
   timebase_ppm: number;
   /**
@@ -115,6 +117,7 @@ function tankEntry(v: unknown, i: number, seen: Set<number>): TankEntry {
     shared_u_rel: o.shared_u_rel === undefined ? 0 : num(o, "shared_u_rel", path, "nonneg"),
     timebase_ppm: o.timebase_ppm === undefined ? 0 : num(o, "timebase_ppm", path, "any"),
     ...(o.drive !== undefined ? { drive: num(o, "drive", path, "nonneg") } : {}),
+    ...(o.shared_offset_u_f !== undefined ? { shared_offset_u_f: num(o, "shared_offset_u_f", path, "nonneg") } : {}),
     ...provenance(o, path),
   };
   if (e.drive !== undefined && !Number.isInteger(e.drive)) bad(path + "drive", `must be an integer drive index, got ${e.drive}`);

@@ -30,6 +30,8 @@ export interface TankFromReference {
   u_f: number;
   /** Relative part of u_f that comes from the reference's value (shared by all tanks). */
   shared_u_rel: number;
+  /** Part of u_f from the reference's stated Cs: the same offset in every tank, F. */
+  shared_offset_u_f: number;
   f0_hz: number;
   readings: number;
   drive: number;
@@ -72,7 +74,7 @@ export function tankFromReadings(tank: number, nominal_f: number, readings: { f0
   }
   const sharedRel = ref.u_inductance_h / ref.inductance_h; // C ∝ 1/L_ref
   const u = Math.hypot(m.u, sharedRel * m.mean, ref.u_self_capacitance_f ?? 0);
-  return { tank, nominal_f, c_f: m.mean, u_f: u, shared_u_rel: sharedRel, f0_hz: readings[0].f0_hz, readings: readings.length, drive: readings[0].drive };
+  return { tank, nominal_f, c_f: m.mean, u_f: u, shared_u_rel: sharedRel, shared_offset_u_f: ref.u_self_capacitance_f ?? 0, f0_hz: readings[0].f0_hz, readings: readings.length, drive: readings[0].drive };
 }
 
 /** w0 of the ring from a reading: the analysis reports L = 1/(w0^2 C_used). */
@@ -134,7 +136,7 @@ export async function calibrateWithReference(client: DeviceClient, ref: Referenc
     const res = tankFromReadings(tank, nominal, readings, ref);
     out.results.push(res);
     out.entries.push({
-      index: tank, nominal_f: nominal, c_f: res.c_f, u_f: res.u_f, shared_u_rel: res.shared_u_rel,
+      index: tank, nominal_f: nominal, c_f: res.c_f, u_f: res.u_f, shared_u_rel: res.shared_u_rel, shared_offset_u_f: res.shared_offset_u_f,
       timebase_ppm: opts.timebase_ppm ?? 0, drive: res.drive, method: "reference-inductor", time: (opts.now ?? (() => new Date()))().toISOString(),
       detail: `reference ${ref.label ?? ""} ${ref.inductance_h} H ± ${ref.u_inductance_h} H (k = 1)`.replace(/\s+/g, " ") +
         `, Cs ${ref.self_capacitance_f ?? 0} F; ${res.readings} rings at ${res.f0_hz.toFixed(1)} Hz on drive ${res.drive}`,

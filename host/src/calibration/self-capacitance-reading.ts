@@ -53,20 +53,23 @@ async function onCalibratedDrive(client: DeviceClient, r: Reading | undefined, t
 }
 
 /** Capacitance of one ring, split into what only this tank has and what both tanks share. */
-function tankRing(r: Reading, profile: CalibrationProfile | null | undefined, sharedRel: number): TankRing {
+function tankRing(r: Reading, profile: CalibrationProfile | null | undefined, shared: { rel: number; offset_f: number }): TankRing {
   const c = r.capture.tank_c_f;
   const uTotal = r.capture.tank_c_u_f ?? (c * NOMINAL_TANK_TOLERANCE) / Math.sqrt(3);
   const calibrated = r.capture.calibration?.tank_calibrated === true && profile;
-  const uOwn = calibrated ? Math.sqrt(Math.max(0, uTotal ** 2 - (sharedRel * c) ** 2)) : uTotal;
+  const uOwn = calibrated ? Math.sqrt(Math.max(0, uTotal ** 2 - (shared.rel * c) ** 2 - shared.offset_f ** 2)) : uTotal;
   return { f0_hz: r.analysis.f0_hz, u_fit_hz: fitRelUF0(r) * r.analysis.f0_hz, c_f: c, u_c_f: uOwn };
 }
 
-/** Shared relative part: both tanks calibrated against the same reference share its uncertainty. */
-function sharedReferenceRel(profile: CalibrationProfile | null | undefined, a: number, b: number): number {
+/**
+ * What both tanks share when both were calibrated against a reference: its value's relative
+ * uncertainty (a common scale) and its stated Cs (a common offset, which moves Cs, not L).
+ */
+function sharedReference(profile: CalibrationProfile | null | undefined, a: number, b: number): { rel: number; offset_f: number } {
   const ea = profile?.tanks.find((t) => t.index === a);
   const eb = profile?.tanks.find((t) => t.index === b);
-  if (!ea || !eb || ea.method !== "reference-inductor" || eb.method !== "reference-inductor") return 0;
-  return Math.min(ea.shared_u_rel, eb.shared_u_rel);
+  if (!ea || !eb || ea.method !== "reference-inductor" || eb.method !== "reference-inductor") return { rel: 0, offset_f: 0 };
+  return { rel: Math.min(ea.shared_u_rel, eb.shared_u_rel), offset_f: Math.min(ea.shared_offset_u_f ?? 0, eb.shared_offset_u_f ?? 0) };
 }
 
 export async function measureSelfCapacitance(client: DeviceClient, opts: SelfCapacitanceOptions = {}): Promise<SelfCapacitanceReading> {
@@ -108,12 +111,13 @@ export async function measureSelfCapacitance(client: DeviceClient, opts: SelfCap
 
 function solvePair(small: Reading, large: Reading, profile: CalibrationProfile | null | undefined): SelfCapacitanceReading {
   const opts = { profile };
-  const shared = sharedReferenceRel(opts.profile, small.settings.tank, large.settings.tank);
+  const shared = sharedReference(opts.profile, small.settings.tank, large.settings.tank);
   const result = solveTwoCapacitance({
     small: tankRing(small, opts.profile, shared),
     large: tankRing(large, opts.profile, shared),
     timebase_u_rel: sharedTimebaseURel(opts.profile ?? null, [small.settings.tank, large.settings.tank], ANALYSIS_TIMEBASE_U_REL),
-    shared_c_u_rel: shared,
+    shared_c_u_rel: shared.rel,
+    shared_c_u_f: shared.offset_f,
   });
   return { first: small, second: large, result, budget: twoTankBudget(result) };
 }
