@@ -4,9 +4,11 @@
 // Sessions are driven by a simulated tray of parts or by piped stdin; nothing waits on a TTY.
 
 import { spawn, spawnSync } from "node:child_process";
-import { existsSync, mkdtempSync, readFileSync } from "node:fs";
+import { existsSync, mkdirSync, mkdtempSync, readFileSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
+import { fileURLToPath } from "node:url";
+import ts from "typescript";
 import { describe, expect, it } from "vitest";
 import { decideConformity } from "../../host/src/workflows/conformity.ts";
 import { windingAdvice } from "../../host/src/workflows/winding.ts";
@@ -201,3 +203,38 @@ function completeLines(text: string): string[] {
 function sleep(ms: number): Promise<void> {
   return new Promise((r) => setTimeout(r, ms));
 }
+
+describe("docs/library-api.md examples", () => {
+  // Each ```ts block is a complete program: type-checked against the built library's
+  // declarations, then run. A `// text` comment after a console.log line must appear in its output.
+  const doc = readFileSync(new URL("../../docs/library-api.md", import.meta.url), "utf8");
+  const blocks = [...doc.matchAll(/```ts\n([\s\S]*?)```/g)].map((m) => m[1]);
+  const dir = fileURLToPath(new URL("../../node_modules/.cache/henrytick-doc-examples/", import.meta.url));
+
+  it("has examples, and they type-check against @henrytick/host", () => {
+    expect(blocks.length).toBeGreaterThanOrEqual(5);
+    mkdirSync(dir, { recursive: true });
+    const files = blocks.map((code, i) => {
+      const f = join(dir, `example-${i + 1}.mts`);
+      writeFileSync(f, code);
+      return f;
+    });
+    const program = ts.createProgram(files, {
+      module: ts.ModuleKind.NodeNext, moduleResolution: ts.ModuleResolutionKind.NodeNext, target: ts.ScriptTarget.ES2022,
+      strict: true, noEmit: true, skipLibCheck: true, types: ["node"],
+    });
+    const diags = ts.getPreEmitDiagnostics(program).map((d) => ts.flattenDiagnosticMessageText(d.messageText, "\n"));
+    expect(diags).toEqual([]);
+  });
+
+  it.each(blocks.map((code, i) => [i + 1, code] as const))("example %i runs and prints what its comments say", (i, code) => {
+    mkdirSync(dir, { recursive: true });
+    const js = ts.transpileModule(code, { compilerOptions: { module: ts.ModuleKind.ESNext, target: ts.ScriptTarget.ES2022 } }).outputText;
+    const f = join(dir, `example-${i}.mjs`);
+    writeFileSync(f, js);
+    const r = spawnSync(process.execPath, [f], { encoding: "utf8", timeout: 120_000 });
+    expect(r.status, r.stderr).toBe(0);
+    expect(r.stdout.length).toBeGreaterThan(0);
+    for (const m of code.matchAll(/console\.log\(.*\);\s*\/\/\s*(.+)$/gm)) expect(r.stdout).toContain(m[1].trim());
+  });
+});
