@@ -34,3 +34,39 @@ export type {
   CalibrationProfile, TankEntry, StoreOptions, ReferenceInductor, ParallelCapacitor, TickCounter, HostClock, TimebaseResult,
   TwoCapacitanceInput, TwoCapacitanceResult, SelfCapacitanceReading, UncertaintyBudget, BudgetLine, DeviceCalibration,
 } from "./calibration/index.ts";
+// Bench workflows: values as the trade writes them, conformity decisions, sorting, winding,
+// continuous reading, reports, and an abortable reading.
+export { parseValue, ValueSyntaxError } from "./values/parse-value.ts";
+export type { ParsedValue } from "./values/parse-value.ts";
+export { parseTolerance, toleranceLimits, TOLERANCE_LETTERS } from "./values/tolerance.ts";
+export type { Tolerance, Limits } from "./values/tolerance.ts";
+export { seriesValues, nearestPreferred, parseSeriesName, SERIES_NAMES } from "./values/e-series.ts";
+export type { SeriesName, Preferred } from "./values/e-series.ts";
+export { formatMeasured, formatValueOnly, iecCode } from "./values/format-value.ts";
+export { decideConformity, conformanceProbability, normalCdf } from "./workflows/conformity.ts";
+export type { Decision, ConformityResult } from "./workflows/conformity.ts";
+export { classify } from "./workflows/classify.ts";
+export type { ToleranceSpec, Classification } from "./workflows/classify.ts";
+export { measureAbortable, MeasureAbortedError } from "./workflows/abortable-measure.ts";
+export type { AbortableMeasureOptions } from "./workflows/abortable-measure.ts";
+export { SortSession } from "./workflows/sort-session.ts";
+export type { SortSpec, PartRecord, Tally } from "./workflows/sort-session.ts";
+export { SortLog, SortLogError, CSV_COLUMNS } from "./workflows/sort-log.ts";
+export { runSort } from "./workflows/sort-runner.ts";
+export type { SortEvent, SortRunOptions } from "./workflows/sort-runner.ts";
+export { PresenceTracker } from "./workflows/part-presence.ts";
+export type { Observation, PresenceAction, PresenceOptions } from "./workflows/part-presence.ts";
+export { SimTray, drawTray, trayPart } from "./workflows/sim-tray.ts";
+export { makeBins, binOf } from "./workflows/bins.ts";
+export type { BinSpec, BinResult } from "./workflows/bins.ts";
+export { RunningStats } from "./workflows/running-stats.ts";
+export type { StatsSummary } from "./workflows/running-stats.ts";
+export { windingAdvice, fitWindingModel, predictInductance } from "./workflows/winding.ts";
+export type { WindingReading, WindingAdvice, WindingModel } from "./workflows/winding.ts";
+export { coilOnFormer, formerTurnRange, DEFAULT_FORMER } from "./workflows/sim-coil.ts";
+export type { FormerSpec } from "./workflows/sim-coil.ts";
+export { assessStability, sparkline, History } from "./workflows/watch-trend.ts";
+export type { Stability, StabilityResult } from "./workflows/watch-trend.ts";
+export { buildReport, writeReport } from "./report/write-report.ts";
+export { reportData } from "./report/report-data.ts";
+export type { ReportData } from "./report/report-data.ts";
