@@ -26,6 +26,7 @@ import {
   appliedCalibration, calibrateThresholds, calibrateWithParallelCapacitor, calibrateWithReference, emptyProfile, loadProfile,
   measureSelfCapacitance, saveProfile, singleTankBudget, timebaseKnowledge,
 } from "../../host/src/calibration/index.ts";
+import { readOnTank } from "../../host/src/calibration/tank-reading.ts";
 
 /** Invented bench story: a unit with ±5 % tank capacitors, long clip leads and a poor crystal. */
 function roughBoard(): BoardModel {
@@ -110,6 +111,32 @@ describe("calibration on a rough simulated tester (±5 % tanks, 30 pF fixture, +
       expect(Math.abs(errTrue / truth)).toBeLessThan(0.002);
     }
     console.log(rows.join("\n"));
+  });
+
+  it("every tank a part rings on reads it within U once its own Cs is allowed for: L (C + Cs) / C", async () => {
+    const applied = appliedCalibration(profile, "test");
+    const rows: string[] = [];
+    let checked = 0;
+    for (const part of PARTS) {
+      sim.part = part;
+      for (let tank = 0; tank < board.tank_f.length; tank++) {
+        let r;
+        try {
+          r = await readOnTank(client, tank, { calibration: applied, preferDrive: profile.tanks.find((e) => e.index === tank)?.drive });
+        } catch (e) {
+          if ((e as { code?: string }).code === "OUT_OF_SPAN") continue; // the part does not suit this tank
+          throw e;
+        }
+        const c = r.capture.tank_c_f;
+        const apparent = part.inductance_h * (c + part.self_capacitance_f) / c;
+        const budget = singleTankBudget(r.analysis, c, timebaseKnowledge(profile, tank));
+        rows.push(`${part.inductance_h} H on tank ${tank}: ${pct(r.analysis.inductance_h / apparent - 1)} ± ${pct(budget.expanded_h / apparent)}`);
+        expect(Math.abs(r.analysis.inductance_h - apparent)).toBeLessThan(budget.expanded_h);
+        checked++;
+      }
+    }
+    console.log(rows.join("\n"));
+    expect(checked).toBeGreaterThanOrEqual(10);
   });
 
   it("recovers a part's self-capacitance on the two smallest tanks, and L corrected for it", async () => {
