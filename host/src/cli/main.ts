@@ -55,7 +55,16 @@ ${WATCH_USAGE}
 
 Options for analyze:  --json
 
-Exit status: 0 reading given, 1 no reading (the message says why and what to do), 2 usage error.
+Bench workflows (sort, wind and report each have --help with every option and examples):
+  henrytick sort --sim --nominal 10u --tol 5%         sort a simulated tray of twelve parts
+  henrytick sort --port PATH --nominal 4u7J --trigger enter   one part per Enter key
+  henrytick wind --sim --target 22u --turns 30,38     winding advice on a simulated former
+  henrytick measure --sim --save c.json && henrytick report c.json   HTML report with plots
+  Values as the trade writes them: 4.7u, 4.7 µH, 4.7e-6, 4u7, 330u, 1m5; tolerances 5%, J, K,
+  +10%/-5%, 0.5u. --json / --csv print machine-readable results; NO_COLOR=1 turns colour off.
+
+Exit status: 0 reading given or session finished, 1 no reading (the message says why and what
+to do), 2 usage error, 70 internal error.
 
 ${SAFETY_TEXT}
 `;

@@ -33,7 +33,7 @@ Options:
   --json            print the readings and the last advice as JSON at the end
   --csv             print one CSV row per reading
 
-  --sim winds on a simulated 20 mm former with AWG 24 wire (about 4 to 349 turns, 0.3 µH to
+  --sim winds on a simulated 20 mm former with AWG 24 wire (about 4 to 349 turns, 0.6 µH to
   about 230 µH).
 
 Examples:
