@@ -169,8 +169,8 @@ export function fitRing(input: RingInput): FitState {
     edgeVariances(q, noise, ws.slope, ws.curvature, varT, variance);
     // The residuals' second-order term follows the new timing variances (edge-model.ts).
     for (let k = 0; k < n; k++) if (assigned[k] > 0) ws.r[k] -= 0.5 * ws.curvature[k] * (varT[k] - oldVarT[k]);
-    // A 2 % change of the weights moves the estimates by a negligible second-order amount.
-    const noiseMoved = meanRelChange(oldVariance, variance, used) > 0.02;
+    // A 5 % change of the weights moves the estimates by a negligible second-order amount.
+    const noiseMoved = meanRelChange(oldVariance, variance, used) > 0.05;
 
     const rw = reweight(ws.r, variance, assigned, used, outlier, robust, reasons, round > 0, z, zUsed, zWork);
     zScale = rw.zScale;
