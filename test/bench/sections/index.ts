@@ -5,6 +5,7 @@ import { firmwareSection } from "./firmware.ts";
 import { simSection } from "./sim.ts";
 import { ptySection } from "./pty.ts";
 import { adviceSection } from "./advice.ts";
+import { reliabilitySection } from "./reliability.ts";
 import type { BenchSection } from "./types.ts";
 
-export const sections: BenchSection[] = [firmwareSection, e2eSection, ptySection, simSection, analysisSection, adviceSection];
+export const sections: BenchSection[] = [firmwareSection, e2eSection, ptySection, simSection, analysisSection, adviceSection, reliabilitySection];
