@@ -33,6 +33,8 @@ export interface FitState {
   /** Covariance of p (4 x 4). */
   cov: Float64Array;
   r: Float64Array;
+  /** d r / d p at p, row-major n x 4. */
+  jac: Float64Array;
   slope: Float64Array;
   variance: Float64Array;
   /** 1 where the edge took part in the final fit. */
@@ -179,7 +181,7 @@ export function fitRing(input: RingInput): FitState {
   }
   const cov = invertSymmetric(4, fit.normal);
   if (!cov || !noise) throw noRing("the fit has no covariance");
-  if (!cached) evaluateEdges(p, e, c.vh_v, c.vl_v, null, varT, { r: ws.r, slope: ws.slope, curvature: ws.curvature });
+  if (!cached) evaluateEdges(p, e, c.vh_v, c.vl_v, null, varT, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
   setWeights(e, outlier, robust, variance, used, w);
   let nUsed = 0;
   for (let k = 0; k < n; k++) nUsed += used[k];
@@ -197,7 +199,7 @@ export function fitRing(input: RingInput): FitState {
   const typical = Math.sqrt(median(zWork, nt, zUsed));
   if (nUsed < 0.5 * n || !(typical < 0.1 * period)) throw noRing("the edges do not follow one damped sine");
   return {
-    checked: c, edges: e, p, cov, r: ws.r.slice(), slope: ws.slope.slice(), variance, used,
+    checked: c, edges: e, p, cov, r: ws.r, jac: ws.jac, slope: ws.slope, variance, used,
     z_scale: zScale, noise, reasons, chi2: fit.chi2,
   };
 }

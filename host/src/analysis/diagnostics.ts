@@ -2,7 +2,7 @@
 // marked "bench practice" are engineering choices, not from a standard.
 
 import type { FitState } from "./analyze-ring.ts";
-import { evaluateEdges, P_ALPHA, P_LNA, P_WD } from "./edge-model.ts";
+import { P_ALPHA, P_LNA, P_WD } from "./edge-model.ts";
 import { invertSymmetric, quadraticForm } from "./small-linear-algebra.ts";
 import type { RingQuantities } from "./ring-quantities.ts";
 import { residualCorrelation } from "./residual-correlation.ts";
@@ -109,8 +109,7 @@ function frequencyDrift(s: FitState): { df_rel: number; df_rel_u: number } | und
     tLast = Math.max(tLast, e.t_s[k]);
   }
   if (nUsed < 16) return undefined;
-  const jac = new Float64Array(4 * n);
-  evaluateEdges(p, e, s.checked.vh_v, s.checked.vl_v, used, null, { jac });
+  const jac = s.jac;
   const wd = p[P_WD];
   const alpha = p[P_ALPHA];
   const h = new Float64Array(16);
