@@ -16,6 +16,9 @@ import { CSV_COLUMNS } from "../../host/src/workflows/sort-log.ts";
 import { CLI, runCli } from "./run-cli.ts";
 
 const tmp = mkdtempSync(join(tmpdir(), "henrytick-workflows-"));
+// Never the user's calibration profiles: the CLI children inherit an empty config directory.
+process.env.HENRYTICK_CONFIG_DIR = join(tmp, "config-none");
+process.env.XDG_CONFIG_HOME = join(tmp, "xdg-unused");
 // Nominal 10 µH ±5 %: well inside, on the upper limit, far above, just inside the lower
 // limit (within U of it), far below.
 const TRAY = "10u,10.5u,11.5u,9.55u,8u";
@@ -78,6 +81,23 @@ describe("henrytick sort on the simulated tester", () => {
     expect(b.stderr).toMatch(/write it like 4\.7u/);
     const c = runCli(["sort", "--sim", "--nominal", "10u"]);
     expect(c.stderr).toMatch(/needs --tol/);
+  });
+
+  it("applies the tester's calibration profile: smaller U, tank marked calibrated in the log", () => {
+    const dir = join(tmp, "config-cal");
+    const cal = runCli(["calibrate", "reference", "--sim", "drawer-choke-330u", "--ref-h", "330u", "--ref-u-h", "0.1u", "--repeats", "1", "--config-dir", dir]);
+    expect(cal.status, cal.stderr).toBe(0);
+    const args = ["sort", "--sim", "--nominal", "10u", "--tol", "5%", "--sim-tray", "10u,10.45u", "--settle", "1", "--json"];
+    const r = runCli([...args, "--config-dir", dir, "--log", join(tmp, "cal")]);
+    expect(r.status, r.stderr).toBe(0);
+    expect(r.stderr).toMatch(/calibration .*calibration-HT-5EED0001\.json/);
+    const parts = JSON.parse(r.stdout).parts;
+    const raw = JSON.parse(runCli([...args, "--log", join(tmp, "uncal")]).stdout).parts;
+    expect(parts.every((p: { tank_calibrated: boolean }) => p.tank_calibrated)).toBe(true);
+    expect(parts[0].inductance_u_h).toBeLessThan(raw[0].inductance_u_h / 5);
+    // 10.45 µH is within the uncalibrated U of the 10.5 µH limit but not within the calibrated one.
+    expect(raw[1].decision).toBe("inconclusive");
+    expect(parts[1].decision).toBe("conforming");
   });
 
   it("keeps every earlier record intact when killed mid-session (at most the in-flight part lost)", async () => {

@@ -2,6 +2,7 @@
 // running tally, statistics at the end and an append-only log.
 
 import { formatSi } from "../format/si.ts";
+import { deviceCalibration } from "../calibration/index.ts";
 import { openTester } from "../open-tester.ts";
 import { formatMeasured } from "../values/format-value.ts";
 import { parseSeriesName } from "../values/e-series.ts";
@@ -38,6 +39,8 @@ Options:
   --poll-ms N       pause between readings while watching the clips (default 200, simulated 0)
   --sim-tray LIST   simulated tester: the tray's inductances, e.g. 10u,10.6u,9.4u
   --max-peak-v V    lower the ring-peak limit (default 30 V)
+  --uncalibrated    ignore the tester's calibration profile (nominal tank values)
+  --config-dir DIR  where calibration profiles live (default $XDG_CONFIG_HOME/henrytick)
   --seed N          noise and tray seed for the simulated tester
   --json            print the records and the summary as JSON at the end
   --csv             print the records as CSV rows (same columns as the log)
@@ -57,7 +60,7 @@ export async function runSortCommand(args: string[]): Promise<number> {
     nominal: { type: "string" }, tol: { type: "string" }, lot: { type: "string" }, bins: { type: "string" },
     series: { type: "string" }, log: { type: "string" }, trigger: { type: "string" }, count: { type: "string" },
     settle: { type: "string" }, "poll-ms": { type: "string" }, "sim-tray": { type: "string" },
-    "max-peak-v": { type: "string" }, json: { type: "boolean" }, csv: { type: "boolean" },
+    "max-peak-v": { type: "string" }, uncalibrated: { type: "boolean" }, "config-dir": { type: "string" }, json: { type: "boolean" }, csv: { type: "boolean" },
   });
   if (values.help) {
     process.stdout.write(SORT_HELP);
@@ -86,6 +89,9 @@ export async function runSortCommand(args: string[]): Promise<number> {
   const onSigint = () => stop.abort();
   process.on("SIGINT", onSigint);
   try {
+    // The tester's calibration profile applies as it does for "measure" (smaller U, fewer unsure parts).
+    const cal = values.uncalibrated ? null : deviceCalibration(tester.client, values["config-dir"] ? { dir: values["config-dir"] } : {});
+    note(cal?.applied ? `calibration ${cal.path}` : "uncalibrated: nominal tank values (henrytick calibrate … makes U smaller)");
     let tray: SimTray | undefined;
     if (tester.sim) {
       const trayValues = values["sim-tray"]
@@ -110,7 +116,7 @@ export async function runSortCommand(args: string[]): Promise<number> {
     await runSort({
       client: tester.client, session, log, trigger, tray, maxParts: count, pollMs,
       lines: trigger === "enter" ? stdinLines("Enter = measure, q = finish: ") : undefined,
-      presence: { settle }, measure: { max_peak_v }, signal: stop.signal, onEvent,
+      presence: { settle }, measure: { max_peak_v, calibration: cal?.applied }, signal: stop.signal, onEvent,
     });
   } finally {
     process.off("SIGINT", onSigint);

@@ -4,6 +4,7 @@
 import { formatSi } from "../format/si.ts";
 import { measurePart } from "../measure/measure-part.ts";
 import { buildResult } from "../measure/result.ts";
+import { deviceCalibration } from "../calibration/index.ts";
 import { openTester } from "../open-tester.ts";
 import { formatMeasured } from "../values/format-value.ts";
 import { parseValue } from "../values/parse-value.ts";
@@ -29,6 +30,8 @@ Options:
   --tol TOL         done when the reading conforms to the target ± TOL (5%, J, 0.5u …)
   --turns LIST      turn counts to measure in order, e.g. 30,38,43
   --max-peak-v V    lower the ring-peak limit (default 30 V)
+  --uncalibrated    ignore the tester's calibration profile (nominal tank values)
+  --config-dir DIR  where calibration profiles live (default $XDG_CONFIG_HOME/henrytick)
   --seed N          noise seed for the simulated tester
   --json            print the readings and the last advice as JSON at the end
   --csv             print one CSV row per reading
@@ -46,7 +49,7 @@ const CSV_HEADER = "turns,inductance_h,inductance_u_h,error_rel,decision,recomme
 export async function runWindCommand(args: string[]): Promise<number> {
   const { values, positionals } = parse(args, {
     sim: { type: "boolean" }, port: { type: "string" }, seed: { type: "string" }, help: { type: "boolean", short: "h" },
-    target: { type: "string" }, tol: { type: "string" }, turns: { type: "string" }, "max-peak-v": { type: "string" },
+    target: { type: "string" }, tol: { type: "string" }, turns: { type: "string" }, "max-peak-v": { type: "string" }, uncalibrated: { type: "boolean" }, "config-dir": { type: "string" },
     json: { type: "boolean" }, csv: { type: "boolean" },
   });
   if (values.help) {
@@ -68,10 +71,12 @@ export async function runWindCommand(args: string[]): Promise<number> {
   const note = (m: string) => process.stderr.write(`   ${m}\n`);
   const tester = await openTester(testerAt);
   const range = formerTurnRange();
+  const cal = values.uncalibrated ? null : deviceCalibration(tester.client, values["config-dir"] ? { dir: values["config-dir"] } : {});
   const readings: WindingReading[] = [];
   let advice: WindingAdvice | null = null;
   try {
     note(`winding to ${formatSi(target.value, "H", 4)}${limits ? `, done within ${formatSi(limits.lower, "H", 4)} … ${formatSi(limits.upper, "H", 4)}` : ""}`);
+    if (cal?.applied) note(`calibration ${cal.path}`);
     note("caution: the coil is pulsed at every reading; keep fingers off it and off any other winding on the core");
     if (values.csv) process.stdout.write(CSV_HEADER + "\n");
     const counts = listed ? listSource(listed) : stdinLines("turns on the coil now (36, +3, -2; Enter repeats; q finishes): ");
@@ -89,7 +94,7 @@ export async function runWindCommand(args: string[]): Promise<number> {
         if (turns < range.min || turns > range.max) throw new CliUsageError(`the simulated former takes ${range.min} to ${range.max} turns, got ${turns}`);
         tester.sim.part = coilOnFormer(turns);
       }
-      const r = await measurePart(tester.client, { max_peak_v, label: `${turns} turns` });
+      const r = await measurePart(tester.client, { max_peak_v, label: `${turns} turns`, calibration: cal?.applied });
       const result = buildResult(r.analysis, r.capture);
       readings.push({ turns, inductance_h: result.inductance_h, inductance_u_h: result.inductance_u_h });
       advice = windingAdvice(readings, target.value, limits);
