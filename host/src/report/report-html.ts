@@ -119,7 +119,7 @@ function periodFigure(d: ReportData, i: number): string {
   const chart = renderChart({
     id: `period-${i}`,
     title: "Period against amplitude",
-    x: { label: "ring amplitude (V)" },
+    x: { label: "ring amplitude (V, logarithmic)", log: true },
     y: { label: "period (µs)", scale: 1e6, min: q(0.1) - 2 * spread, max: q(0.9) + 2 * spread },
     series: [
       { kind: "points", xs: rise.map((p) => p.amplitude_v), ys: rise.map((p) => p.period_s), cls: "rise", name: "rising edges" },

@@ -11,7 +11,7 @@ import { measurePart } from "../measure/measure-part.ts";
 import { openTester } from "../open-tester.ts";
 import type { CaptureV1 } from "../capture/capture-file.ts";
 import { buildReport } from "./write-report.ts";
-import { niceTicks } from "./svg-plot.ts";
+import { logTicks, niceTicks } from "./svg-plot.ts";
 
 const CHROMIUM = "/usr/bin/chromium";
 const HAS_CHROMIUM = existsSync(CHROMIUM);
@@ -57,6 +57,7 @@ describe("report page", () => {
   it("ticks fall on 1-2-5 steps", () => {
     expect(niceTicks(0, 10, 5)).toEqual([0, 2, 4, 6, 8, 10]);
     expect(niceTicks(-0.013, 0.041, 6)).toEqual([-0.01, 0, 0.01, 0.02, 0.03, 0.04]);
+    expect(logTicks(0.03, 3)).toEqual([0.05, 0.1, 0.2, 0.5, 1, 2]);
   });
 });
 

@@ -8,6 +8,8 @@ export interface Axis {
   max?: number;
   /** Multiplies values for the tick labels only (e.g. 1e6 to label seconds in µs). */
   scale?: number;
+  /** Logarithmic axis (x only): for quantities that span decades, like a decaying amplitude. */
+  log?: boolean;
 }
 
 export interface Series {
@@ -47,6 +49,18 @@ export function niceTicks(lo: number, hi: number, target = 6): number[] {
   const step = [1, 2, 5, 10].map((k) => k * p).find((s) => s >= raw) ?? 10 * p;
   const out: number[] = [];
   for (let v = Math.ceil(lo / step) * step; v <= hi + step * 1e-9; v += step) out.push(Math.abs(v) < step * 1e-9 ? 0 : v);
+  return out;
+}
+
+/** 1, 2 and 5 times each power of ten inside [lo, hi] (lo > 0). */
+export function logTicks(lo: number, hi: number): number[] {
+  const out: number[] = [];
+  for (let e = Math.floor(Math.log10(lo)); e <= Math.ceil(Math.log10(hi)); e++) {
+    for (const m of [1, 2, 5]) {
+      const v = Number((m * 10 ** e).toPrecision(3));
+      if (v >= lo * (1 - 1e-9) && v <= hi * (1 + 1e-9)) out.push(v);
+    }
+  }
   return out;
 }
 
@@ -96,7 +110,9 @@ export function renderChart(c: Chart): string {
   const padY = (y1 - y0) * 0.06;
   y0 -= padY;
   y1 += padY;
-  const sx = (v: number) => M.left + ((v - x0) / (x1 - x0)) * pw;
+  const logX = c.x.log === true && x0 > 0;
+  const fx = (v: number) => (logX ? Math.log10(v) : v);
+  const sx = (v: number) => M.left + ((fx(v) - fx(x0)) / (fx(x1) - fx(x0))) * pw;
   const sy = (v: number) => M.top + (1 - (v - y0) / (y1 - y0)) * ph;
   const xs = c.x.scale ?? 1;
   const ys = c.y.scale ?? 1;
@@ -104,7 +120,7 @@ export function renderChart(c: Chart): string {
   parts.push(`<svg xmlns="http://www.w3.org/2000/svg" class="chart" viewBox="0 0 ${W} ${H}" width="${W}" height="${H}" role="img" aria-label="${escapeXml(c.title)}">`);
   parts.push(`<rect class="plot-bg" x="${M.left}" y="${M.top}" width="${pw}" height="${ph}"/>`);
   parts.push(`<text class="chart-title" x="${M.left}" y="${M.top - 10}">${escapeXml(c.title)}</text>`);
-  for (const t of niceTicks(x0 * xs, x1 * xs)) {
+  for (const t of logX ? logTicks(x0 * xs, x1 * xs) : niceTicks(x0 * xs, x1 * xs)) {
     const X = num(sx(t / xs));
     parts.push(`<line class="grid" x1="${X}" x2="${X}" y1="${M.top}" y2="${M.top + ph}"/>`);
     parts.push(`<text class="tick" x="${X}" y="${M.top + ph + 16}" text-anchor="middle">${tickLabel(t)}</text>`);
