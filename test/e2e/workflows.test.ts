@@ -100,6 +100,22 @@ describe("henrytick sort on the simulated tester", () => {
     expect(parts[1].decision).toBe("conforming");
   });
 
+  it("finishes cleanly on Ctrl-C (SIGINT) with the summary of the parts so far", async () => {
+    const base = join(tmp, "sigint");
+    const child = spawn(process.execPath, [CLI, "sort", "--sim", "--nominal", "10u", "--tol", "5%", "--count", "50", "--settle", "1", "--log", base, "--json"], { stdio: ["ignore", "pipe", "ignore"] });
+    let out = "";
+    child.stdout.on("data", (d) => (out += d));
+    const exited = new Promise<number | null>((res) => child.on("exit", (code) => res(code)));
+    while (countLines(`${base}.jsonl`) < 2) await sleep(20);
+    child.kill("SIGINT");
+    expect(await exited).toBe(0);
+    const j = JSON.parse(out);
+    expect(j.parts.length).toBeGreaterThanOrEqual(2);
+    expect(j.parts.length).toBeLessThan(50);
+    expect(j.summary.stats.n).toBe(j.parts.length);
+    expect(countLines(`${base}.jsonl`)).toBe(j.parts.length);
+  });
+
   it("keeps every earlier record intact when killed mid-session (at most the in-flight part lost)", async () => {
     const args = ["sort", "--sim", "--nominal", "10u", "--tol", "5%", "--sim-tray", "10u,10.2u,9.8u,10.4u,9.6u,10.1u", "--settle", "1"];
     const ref = join(tmp, "ref");

@@ -44,7 +44,8 @@ export async function runWatch(tester: OpenedTester, values: WatchValues, measur
   const tty = process.stdout.isTTY === true && !values.json && !values.csv;
   const history = new History(40);
   const stop = new AbortController();
-  const onSigint = () => stop.abort();
+  // First Ctrl-C: finish after the reading in progress (the summary still prints); second: quit now.
+  const onSigint = () => (stop.signal.aborted ? process.exit(130) : stop.abort());
   process.on("SIGINT", onSigint);
   let drawn = 0;
   let n = 0;

@@ -86,7 +86,8 @@ export async function runSortCommand(args: string[]): Promise<number> {
   const log = SortLog.open({ csv: `${base}.csv`, jsonl: `${base}.jsonl` });
   const tester = await openTester(target);
   const stop = new AbortController();
-  const onSigint = () => stop.abort();
+  // First Ctrl-C: finish after the reading in progress (the summary still prints); second: quit now.
+  const onSigint = () => (stop.signal.aborted ? process.exit(130) : stop.abort());
   process.on("SIGINT", onSigint);
   try {
     // The tester's calibration profile applies as it does for "measure" (smaller U, fewer unsure parts).

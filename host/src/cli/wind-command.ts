@@ -94,6 +94,7 @@ export async function runWindCommand(args: string[]): Promise<number> {
         if (turns < range.min || turns > range.max) throw new CliUsageError(`the simulated former takes ${range.min} to ${range.max} turns, got ${turns}`);
         tester.sim.part = coilOnFormer(turns);
       }
+      if (!values.json && !values.csv) note(`measuring ${turns} turns …`);
       const r = await measurePart(tester.client, { max_peak_v, label: `${turns} turns`, calibration: cal?.applied });
       const result = buildResult(r.analysis, r.capture);
       readings.push({ turns, inductance_h: result.inductance_h, inductance_u_h: result.inductance_u_h });
