@@ -29,11 +29,14 @@ export function appliedCalibration(profile: CalibrationProfile, source: string):
   const ppm = profile.timebase?.ppm ?? 0;
   const n = Math.max(0, ...profile.tanks.map((t) => t.index + 1));
   const tanks: AppliedCalibration["tanks"] = new Array(n).fill(undefined);
-  for (const t of profile.tanks) tanks[t.index] = tankCapacitanceNow(t, ppm);
+  for (const t of profile.tanks) {
+    const drift = TIMEBASE_BOUND_METHODS.has(t.method) ? { timebase_u_ppm: CRYSTAL_DRIFT_PPM / Math.sqrt(3) } : {};
+    tanks[t.index] = { ...tankCapacitanceNow(t, ppm), ...drift };
+  }
   return {
     tanks,
     ...(profile.thresholds ? { thresholds_v: [profile.thresholds.thresholds_v[0], profile.thresholds.thresholds_v[1]] as [number, number] } : {}),
-    ...(profile.timebase ? { timebase_ppm: ppm } : {}),
+    ...(profile.timebase ? { timebase_ppm: ppm, timebase_u_ppm: profile.timebase.u_ppm } : {}),
     source,
   };
 }

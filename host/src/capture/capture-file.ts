@@ -23,7 +23,7 @@ export interface CaptureV1 {
   device?: { id: string; firmware_version: string; protocol_version: number; transport: string };
   meta?: { label?: string; time?: string; end_reason?: string; [k: string]: unknown };
   /** Which values the capture's tank_c_f, thresholds_v and tick_hz came from. */
-  calibration?: { source: string; tank_calibrated: boolean; nominal_tank_c_f: number; nominal_tick_hz: number; timebase_ppm: number };
+  calibration?: { source: string; tank_calibrated: boolean; nominal_tank_c_f: number; nominal_tick_hz: number; timebase_ppm: number; timebase_u_ppm?: number };
   [extra: string]: unknown;
 }
 

@@ -15,12 +15,18 @@ export const NOMINAL_TANK_TOLERANCE = 0.01;
  * module produces it from a stored profile; any field left out keeps the nominal value.
  */
 export interface AppliedCalibration {
-  /** Effective capacitance across the part for each tank index (tank + fixture), with its standard uncertainty. */
-  tanks?: ({ c_f: number; u_f: number } | undefined)[];
+  /**
+   * Effective capacitance across the part for each tank index (tank + fixture), with its
+   * standard uncertainty; `timebase_u_ppm` when that tank's calibration already absorbed the
+   * timebase error (a reference-inductor calibration: only drift since then remains).
+   */
+  tanks?: ({ c_f: number; u_f: number; timebase_u_ppm?: number } | undefined)[];
   /** Comparator thresholds referred to the ring, [rising, falling]. */
   thresholds_v?: [number, number];
   /** Timebase error: the timer really counts at tick_hz (1 + ppm 1e-6). */
   timebase_ppm?: number;
+  /** Standard uncertainty of that error, ppm (the uncalibrated crystal: 50 / sqrt(3)). */
+  timebase_u_ppm?: number;
   /** Where it came from, for the capture's record (e.g. the profile's file and date). */
   source: string;
 }
@@ -33,6 +39,7 @@ export function captureFromDevice(
   const nominal = profile.tanks[s.tank].nominal_f;
   const calTank = calibration?.tanks?.[s.tank];
   const ppm = calibration?.timebase_ppm ?? 0;
+  const tbU = calTank?.timebase_u_ppm ?? calibration?.timebase_u_ppm;
   return {
     format: "henrytick-capture",
     version: 1,
@@ -41,7 +48,10 @@ export function captureFromDevice(
     tank_c_u_f: calTank ? calTank.u_f : (nominal * NOMINAL_TANK_TOLERANCE) / Math.sqrt(3),
     thresholds_v: calibration?.thresholds_v ? [calibration.thresholds_v[0], calibration.thresholds_v[1]] : [profile.thresholds_v[0], profile.thresholds_v[1]],
     calibration: calibration
-      ? { source: calibration.source, tank_calibrated: calTank !== undefined, nominal_tank_c_f: nominal, nominal_tick_hz: raw.tick_hz, timebase_ppm: ppm }
+      ? {
+        source: calibration.source, tank_calibrated: calTank !== undefined, nominal_tank_c_f: nominal, nominal_tick_hz: raw.tick_hz, timebase_ppm: ppm,
+        ...(tbU !== undefined ? { timebase_u_ppm: tbU } : {}),
+      }
       : { source: "nominal (uncalibrated)", tank_calibrated: false, nominal_tank_c_f: nominal, nominal_tick_hz: raw.tick_hz, timebase_ppm: 0 },
     drive: { supply_v: profile.supply_v, series_ohm: profile.drives[s.drive].ohm },
     range: {
@@ -65,5 +75,9 @@ export function ringInputFromCapture(c: CaptureV1): RingInput {
     tank_c_f: c.tank_c_f,
     tank_c_u_f: c.tank_c_u_f,
     thresholds_v: [c.thresholds_v[0], c.thresholds_v[1]],
+    // The tester stopped because the comparator went quiet: the ring really ended there, which
+    // pins the amplitude of a short, heavily damped ring.
+    ring_ended: c.meta?.end_reason === "quiet",
+    ...(c.calibration?.timebase_u_ppm !== undefined ? { timebase_u_rel: c.calibration.timebase_u_ppm * 1e-6 } : {}),
   };
 }

@@ -54,12 +54,15 @@ function asWave(r: Ring): RingWave {
 /** Exact threshold-crossing times (seconds since the switch opened) and levels, before noise. */
 export function crossingTimes(
   ring: Ring, rising_v: number, falling_v: number, max_edges: number, window_s: number,
+  /** Input noise at the k-th crossing attempt, added to the threshold (default none). */
+  noiseAt?: (k: number, t_s: number) => number,
 ): { times: number[]; levels: number[] } {
   const w = asWave(ring);
   const times: number[] = [];
   const levels: number[] = [];
   let high = false;
   let segStart = 0;
+  let attempt = 0;
   // Stretch n runs from extremum n-1 to extremum n; even n climbs to a maximum.
   let n = 0;
   while (waveExtremum(w, n) <= 0) n++;
@@ -68,18 +71,18 @@ export function crossingTimes(
     if (segStart > window_s) break;
     const climbing = n % 2 === 0;
     const vEnd = waveValue(w, segEnd);
-    if (climbing && !high) {
-      if (vEnd > rising_v) {
-        times.push(solveCrossing(w, rising_v, segStart, segEnd));
-        levels.push(1);
-        high = true;
-      } else if (n > 1) break; // maxima no longer reach VH: the ring has ended for the comparator
-    } else if (!climbing && high) {
-      if (vEnd < falling_v) {
-        times.push(solveCrossing(w, falling_v, segStart, segEnd));
-        levels.push(0);
-        high = false;
-      } else break;
+    if (climbing !== high) {
+      // The comparator compares with its threshold plus the input noise at that moment: near
+      // the end of the ring a noisy peak may or may not reach it, as on a real comparator.
+      const level = (climbing ? rising_v : falling_v) + (noiseAt ? noiseAt(attempt++, segStart) : 0);
+      const reaches = climbing ? vEnd > level : vEnd < level;
+      const vStart = waveValue(w, segStart);
+      const before = climbing ? vStart <= level : vStart >= level;
+      if (reaches && before) {
+        times.push(solveCrossing(w, level, segStart, segEnd));
+        levels.push(climbing ? 1 : 0);
+        high = climbing;
+      } else if (!reaches && (n > 1 || !climbing)) break; // extremes no longer reach the threshold: the ring has ended
     }
     segStart = segEnd;
   }
@@ -123,9 +126,23 @@ export function captureEdges(
 ): EdgeList {
   const w = asWave(ring);
   const offset = comp.offset_v ?? 0;
+  // First-order (Ornstein-Uhlenbeck) input noise, sampled at each crossing attempt and added to
+  // the threshold, so a crossing moves by exactly as much as the ring's shape says (and a
+  // grazing peak may be missed), not by a slope-linearised amount.
+  const tauNoise = comp.noise_bw_hz ? 1 / (2 * Math.PI * comp.noise_bw_hz) : 0;
+  let noise = comp.noise_v * rng.normal();
+  let lastT = 0;
+  const noiseAt = (k: number, t: number) => {
+    if (k > 0) {
+      const rho = tauNoise > 0 ? Math.exp(-Math.max(t - lastT, 0) / tauNoise) : 0;
+      noise = rho * noise + comp.noise_v * Math.sqrt(1 - rho * rho) * rng.normal();
+    }
+    lastT = t;
+    return noise;
+  };
   // Solve for a few more crossings than the buffer holds: the dead time may drop some.
-  const { times, levels } = crossingTimes(w, comp.rising_v + offset, comp.falling_v + offset, max_edges + 64, window_s);
-  return applyComparator(times, levels, times.map((t) => waveSlope(w, t)), comp, timer, rng, max_edges);
+  const { times, levels } = crossingTimes(w, comp.rising_v + offset, comp.falling_v + offset, max_edges + 64, window_s, noiseAt);
+  return applyComparator(times, levels, times.map((t) => waveSlope(w, t)), { ...comp, noise_v: 0 }, timer, rng, max_edges);
 }
 
 /**
