@@ -193,8 +193,10 @@ describe("late replies after a timeout", () => {
   // previous pulse, returned as verified. Here the part is changed in between (a sorting line), so
   // the host reports the previous part's ring for the new part. Marked it.fails until fixed.
   it.fails("a capture delivered after its measurement timed out is never returned for the next measurement", async () => {
-    const rig = await openRig({ seed: 41, faults: { stall_ms: 400 } });
-    rig.faults.arm("stall", OK_MS); // everything from OK MS on is held back 400 ms
+    // Times (ms after MS): the reply times out at 500, the next MS goes out at about 700, the
+    // held lines land at 1000, and that MS would time out at about 1200: wide margins either side.
+    const rig = await openRig({ seed: 41, faults: { stall_ms: 1000 }, client: { reply_timeout_ms: 500 } });
+    rig.faults.arm("stall", OK_MS); // everything from OK MS on is held back
     const e = await caught(() => rig.client.measure(SETTING));
     expect((e as { code?: string }).code).toBe("DEVICE_TIMEOUT");
     // The operator puts the next part on the clips and measures again while the old reply is in flight.

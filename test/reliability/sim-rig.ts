@@ -17,8 +17,11 @@ import { LineSplitter, TransportError as TError } from "../../host/src/transport
 /** A low-Q test coil: about 46 edges on SETTING, quick to simulate and to fit. */
 export const QUICK_PART: PartModel = { inductance_h: 1e-3, series_ohm: 16, self_capacitance_f: 3e-12 };
 export const SETTING: MeasureSettings = { drive: 2, tank: 1, charge_us: 1000, edge_limit: 8192, timeout_ms: 1000, quiet_us: 2000 };
-/** Short reply timeout: a lost line costs this much wall time, and tests stay quick. */
-export const FAST_CLIENT: ClientOptions = { reply_timeout_ms: 150, resend_attempts: 2 };
+/**
+ * Short reply timeout: a lost line costs this much wall time, so tests stay quick; long enough
+ * that a busy machine does not time out a reply the simulator has already computed.
+ */
+export const FAST_CLIENT: ClientOptions = { reply_timeout_ms: 300, resend_attempts: 2 };
 
 /**
  * In-process link to a simulated tester that can be power-cycled. Unlike SimTransport, idle time
