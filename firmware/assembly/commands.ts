@@ -9,7 +9,7 @@ import { FrameReader } from "../../shared-protocol/src/frame-reader.ts";
 import * as board from "./board.ts";
 import * as capture from "./capture.ts";
 import { counters } from "./counters.ts";
-import { halDeviceId } from "./hal.ts";
+import { halDeviceId, halNow } from "./hal.ts";
 import { maxChargeUs, restPending, restRemaining } from "./interlocks.ts";
 import { LINE_DAMAGED, line, out, send, sendError, sendErrorDetail, sendOk } from "./link.ts";
 import { sendProfile } from "./profile.ts";
@@ -40,11 +40,25 @@ export function handleLine(len: i32): void {
   else if (reader.fieldIs(0, "CR")) resend();
   else if (reader.fieldIs(0, "ST")) selfTest();
   else if (reader.fieldIs(0, "CN")) reportCounters();
+  else if (reader.fieldIs(0, "TK")) reportTicks();
   else sendError(ERR_UNKNOWN_COMMAND, "?");
 }
 
 export function busy(): bool {
   return capture.phase != capture.PHASE_IDLE || selfTestRunning();
+}
+
+/**
+ * The free-running timer's low 32 bits, read as the command is handled: over a minute or more the
+ * host compares them with its own clock to measure the crystal's error. Sent as a signed 32-bit
+ * decimal (the host reads it back as unsigned).
+ */
+function reportTicks(): void {
+  if (reader.count != 1) return sendError(ERR_ARGUMENT, "TK");
+  out.begin("TK");
+  out.putInt(halNow());
+  send();
+  sendOk("TK");
 }
 
 function identify(): void {

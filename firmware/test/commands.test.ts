@@ -191,3 +191,20 @@ describe("firmware commands", () => {
     expect(frames.map(show).slice(1)).toEqual(["CH 0 1 64000000 3 3 1000 0", "CE 1 0 FFFF 3"]);
   });
 });
+
+describe("tick counter (TK)", () => {
+  it("reports the free-running timer, which advances at the crystal's real rate", () => {
+    const link = new SimLink();
+    const first = link.send("TK");
+    expect(first.map(show)[1]).toBe("OK TK");
+    const t0 = Number(first[0].fields[0]) >>> 0;
+    link.sim.advance(0.01);
+    const t1 = Number(link.send("TK")[0].fields[0]) >>> 0;
+    // 10 ms at 64 MHz with the simulated crystal's +11.5 ppm (board-model.ts), to the tick.
+    expect(t1 - t0).toBe(Math.round(0.01 * 64e6 * (1 + 11.5e-6)));
+  });
+
+  it("refuses TK with arguments", () => {
+    expect(new SimLink().send("TK", 1).map(show)).toEqual([`ER ${ERR_ARGUMENT} TK`]);
+  });
+});

@@ -21,7 +21,7 @@ export { calibrateWithParallelCapacitor, tankFromParallel } from "./parallel-cap
 export type { ParallelCapacitor, ParallelResult, ParallelOptions } from "./parallel-capacitor.ts";
 export { fitThresholds, offsetForNoDrift, MIN_Q_FOR_THRESHOLDS } from "./threshold-fit.ts";
 export type { ThresholdFit } from "./threshold-fit.ts";
-export { measureTimebase, timebaseFromSamples, timebaseUnsupported, HOST_CLOCK_U_PPM } from "./timebase.ts";
+export { measureTimebase, timebaseFromSamples, timebaseUnsupported, testerTickCounter, hostClock, MAX_READ_SPACING_S, HOST_CLOCK_U_PPM } from "./timebase.ts";
 export type { TickCounter, HostClock, TickSample, TimebaseResult } from "./timebase.ts";
 export { measureSelfCapacitance } from "./self-capacitance-reading.ts";
 export type { SelfCapacitanceReading, SelfCapacitanceOptions } from "./self-capacitance-reading.ts";

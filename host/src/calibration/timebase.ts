@@ -2,10 +2,9 @@
 // tester's free-running tick counter several times, bracketing every read with its own clock;
 // the slope of ticks against host seconds, over the nominal tick rate, is 1 + ppm 1e-6.
 //
-// The tester must be able to report its tick counter: TickCounter below. The present firmware
-// has no such command (see docs/calibration.md for what it must add), so on today's testers
-// the timebase is entered from an external frequency measurement instead, or left to cancel
-// in a reference-inductor calibration.
+// The tester reports its counter with the TK command (testerTickCounter below). The timebase
+// can also be entered from an external frequency measurement, or left to cancel in a
+// reference-inductor calibration.
 
 import { CalibrationError } from "./errors.ts";
 
@@ -98,3 +97,31 @@ export function timebaseUnsupported(): CalibrationError {
     "this tester's firmware cannot report its tick counter; enter a timebase measured with a frequency counter (calibrate timebase --ppm P --u-ppm U), or rely on a reference-inductor calibration, in which the crystal's error cancels",
   );
 }
+
+/**
+ * The tester's 32-bit tick counter (the TK command) as a TickCounter: reads are unwrapped by
+ * assuming less than half a wrap (2^31 ticks, 33 s at 64 MHz) passes between two of them, which
+ * measureTimebase guarantees by spacing its reads (see MAX_READ_SPACING_S).
+ */
+export function testerTickCounter(tester: { readTicks32(): Promise<number> }, tick_hz: number): TickCounter {
+  let last: number | null = null;
+  let wraps = 0;
+  return {
+    tick_hz,
+    async readTicks() {
+      const raw = await tester.readTicks32();
+      if (last !== null && raw < last) wraps++;
+      last = raw;
+      return wraps * 2 ** 32 + raw;
+    },
+  };
+}
+
+/** Longest gap between counter reads for the unwrapping above to hold at 64 MHz, with margin. */
+export const MAX_READ_SPACING_S = 20;
+
+/** The host's monotonic clock. */
+export const hostClock: HostClock = {
+  now_s: () => performance.now() / 1000,
+  sleep: (s) => new Promise((r) => setTimeout(r, s * 1000)),
+};

@@ -5,7 +5,7 @@ import { createInterface } from "node:readline";
 import type { CalibrationProfile } from "../calibration/index.ts";
 import {
   CalibrationError, appliedCalibration, calibrateThresholds, calibrateWithParallelCapacitor, calibrateWithReference,
-  emptyProfile, loadProfile, profilePaths, restorePreviousProfile, saveProfile, timebaseUnsupported,
+  emptyProfile, loadProfile, profilePaths, restorePreviousProfile, saveProfile, testerTickCounter, hostClock, measureTimebase, MAX_READ_SPACING_S,
 } from "../calibration/index.ts";
 import type { StoreOptions } from "../calibration/index.ts";
 import { formatSi } from "../format/si.ts";
@@ -20,7 +20,8 @@ export const CALIBRATE_USAGE = `  henrytick calibrate show (--sim | --port PATH)
   henrytick calibrate parallel … --tank N --cap-f C --cap-u-f U [--part-cs-f C]
                                        any coil on the clips, rung without and with a known capacitor
   henrytick calibrate thresholds …     high-Q coil on the clips → comparator threshold ratio
-  henrytick calibrate timebase … --ppm P --u-ppm U   enter a crystal error measured with a counter
+  henrytick calibrate timebase … [--seconds N]     time the tester's crystal against this computer's clock (default 60 s)
+  henrytick calibrate timebase … --ppm P --u-ppm U   or enter a crystal error measured with a frequency counter
   henrytick calibrate restore …        make the previous profile current again
     (uncertainties are standard, k = 1; values take SI prefixes: 330u, 4n7, 0.5p;
      --config-dir DIR overrides $HENRYTICK_CONFIG_DIR / $XDG_CONFIG_HOME/henrytick)`;
@@ -61,7 +62,7 @@ export async function runCalibrate(args: string[]): Promise<number> {
       tank: { type: "string" }, "cap-f": { type: "string" }, "cap-u-f": { type: "string" }, "part-cs-f": { type: "string" }, "part-u-cs-f": { type: "string" }, repeats: { type: "string" },
     }, parallel);
     case "thresholds": return withTester(rest, { captures: { type: "string" } }, thresholds);
-    case "timebase": return withTester(rest, { ppm: { type: "string" }, "u-ppm": { type: "string" } }, timebase);
+    case "timebase": return withTester(rest, { ppm: { type: "string" }, "u-ppm": { type: "string" }, seconds: { type: "string" } }, timebase);
     default:
       throw new CliUsageError(`calibrate needs one of: show, reference, parallel, thresholds, timebase, restore${sub ? ` (got "${sub}")` : ""}`);
   }
@@ -195,8 +196,7 @@ async function thresholds(t: OpenedTester, store: StoreOptions, v: Values): Prom
 }
 
 async function timebase(t: OpenedTester, store: StoreOptions, v: Values): Promise<number> {
-  // Measuring against the host clock needs a tick-counter command the firmware does not have yet.
-  if (v.ppm === undefined) throw timebaseUnsupported();
+  if (v.ppm === undefined) return measuredTimebase(t, store, v);
   const ppm = Number(v.ppm);
   const u = Number(v["u-ppm"]);
   if (!Number.isFinite(ppm)) throw new CliUsageError(`--ppm must be a number, got ${JSON.stringify(v.ppm)}`);
@@ -208,6 +208,29 @@ async function timebase(t: OpenedTester, store: StoreOptions, v: Values): Promis
   if (Math.abs(ppm) > 1000) throw new CalibrationError("NONSENSE_RESULT", `${ppm} ppm is beyond any working crystal; check the counter reading`);
   profile.timebase = { ppm, u_ppm: u, method: "entered", time: new Date().toISOString(), detail: "entered from an external frequency measurement" };
   process.stdout.write(`   timebase ${ppm} ppm ± ${2 * u} ppm (k = 2)\n`);
+  commit(profile, store);
+  return 0;
+}
+
+/** Against the host's monotonic clock over --seconds (default 60): the tester's TK counter. */
+async function measuredTimebase(t: OpenedTester, store: StoreOptions, v: Values): Promise<number> {
+  const seconds = v.seconds === undefined ? 60 : Number(v.seconds);
+  if (!(seconds >= 2 && seconds <= 86400)) throw new CliUsageError(`--seconds must be from 2 to 86400, got ${JSON.stringify(v.seconds)}`);
+  const reads = Math.max(11, Math.ceil(seconds / MAX_READ_SPACING_S) + 1);
+  progress(`timing the tester's crystal against this computer's clock for ${seconds} s (${reads} reads); keep the computer awake`);
+  const counter = testerTickCounter(t.client, t.client.profile.tick_hz);
+  let done = 0;
+  const clock = { ...hostClock, sleep: async (s: number) => { await hostClock.sleep(s); progress(`read ${++done + 1} of ${reads}`); } };
+  const r = await measureTimebase(counter, clock, seconds, reads);
+  const profile = currentProfile(t, store);
+  if (profile.tanks.some((e) => e.method === "reference-inductor")) {
+    progress("tanks calibrated against a reference inductor are rescaled to the new timebase (their crystal error cancelled)");
+  }
+  profile.timebase = {
+    ppm: r.ppm, u_ppm: r.u_ppm, method: "host-clock", time: new Date().toISOString(),
+    detail: `${r.samples} reads over ${r.duration_s.toFixed(1)} s; reads ${r.budget.reads_ppm.toFixed(2)} ppm, host clock ${r.budget.host_clock_ppm} ppm (standard)`,
+  };
+  process.stdout.write(`   timebase ${r.ppm.toFixed(2)} ppm ± ${(2 * r.u_ppm).toFixed(2)} ppm (k = 2) over ${r.duration_s.toFixed(1)} s\n`);
   commit(profile, store);
   return 0;
 }

@@ -6,7 +6,7 @@ import { PROTOCOL_VERSION } from "@henrytick/shared-protocol";
 import type { Transport, TransportError } from "../transport/transport.ts";
 import { DeviceError, DeviceTimeoutError } from "./errors.ts";
 import type { Decoded, Frame } from "./frames.ts";
-import { decodeLine, encodeCommand, ProtocolError } from "./frames.ts";
+import { decodeLine, encodeCommand, intField, ProtocolError } from "./frames.ts";
 import type { DeviceCounters, DeviceIdentity, DeviceProfile, SelfTestReport } from "./profile.ts";
 import { parseCounters, parseIdentity, parseProfile, parseSelfTest } from "./profile.ts";
 import type { RawCapture } from "./stream-reader.ts";
@@ -108,6 +108,16 @@ export class DeviceClient {
       const ct = frames.find((f) => f.tag === "CT");
       if (!ct) throw new ProtocolError("counters reply missing", "BAD_REPLY");
       return parseCounters(ct);
+    });
+  }
+
+  /** The tester's free-running timer, low 32 bits (unsigned), as it handled the request. */
+  readTicks32(): Promise<number> {
+    return this.exclusive(async () => {
+      const frames = await this.command("TK", []);
+      const tk = frames.find((f) => f.tag === "TK");
+      if (!tk) throw new ProtocolError("tick reply missing", "BAD_REPLY");
+      return intField(tk, 0, "ticks") >>> 0;
     });
   }
 

@@ -122,7 +122,8 @@ export class SimTester {
    */
   advance(seconds: number): void {
     if (!(seconds > 0)) return;
-    this.nowTicks += seconds * this.board.timer.tick_hz;
+    // The tester's timer runs at its crystal's real rate, error included.
+    this.nowTicks += seconds * this.board.timer.tick_hz * (1 + this.board.timer.ppm * 1e-6);
     this.run();
   }
 
