@@ -1,4 +1,4 @@
-import { mkdtempSync, readFileSync, writeFileSync } from "node:fs";
+import { mkdtempSync, readFileSync, truncateSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
@@ -28,6 +28,26 @@ describe("sort log", () => {
     expect(csv[2]).toContain('"odd, ""quoted"" label"');
     const lines = readFileSync(`${base}.jsonl`, "utf8").trimEnd().split("\n").map((l) => JSON.parse(l));
     expect(lines.map((l) => l.label)).toEqual(["", 'odd, "quoted" label']);
+  });
+
+  it("ends a torn last record (power cut mid-write) before appending, so the next record stays whole", () => {
+    const base = join(dir, "torn");
+    let log = SortLog.open({ csv: `${base}.csv`, jsonl: `${base}.jsonl` });
+    log.append(rec(1));
+    log.append(rec(2));
+    log.close();
+    for (const ext of ["csv", "jsonl"]) truncateSync(`${base}.${ext}`, readFileSync(`${base}.${ext}`).length - 30);
+    log = SortLog.open({ csv: `${base}.csv`, jsonl: `${base}.jsonl` });
+    log.append(rec(3, "after"));
+    log.close();
+    const lines = readFileSync(`${base}.jsonl`, "utf8").trimEnd().split("\n");
+    expect(lines.length).toBe(3);
+    expect(JSON.parse(lines[0]).part).toBe(1);
+    expect(() => JSON.parse(lines[1])).toThrow(); // the torn record stays alone on its line
+    expect(JSON.parse(lines[2]).label).toBe("after");
+    const csv = readFileSync(`${base}.csv`, "utf8").trimEnd().split("\n");
+    expect(csv[csv.length - 1].split(",")[3]).toBe("after");
+    expect(csv.length).toBe(4);
   });
 
   it("refuses a CSV with other columns (code LOG_HEADER_MISMATCH)", () => {

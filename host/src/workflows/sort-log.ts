@@ -3,7 +3,7 @@
 // kill loses at most the part being written. Existing logs are appended to, never rewritten; a
 // CSV whose header differs from this version's is refused rather than mixed.
 
-import { closeSync, existsSync, fsyncSync, openSync, readFileSync, writeSync } from "node:fs";
+import { closeSync, existsSync, fstatSync, fsyncSync, openSync, readFileSync, readSync, writeSync } from "node:fs";
 import type { PartRecord } from "./sort-session.ts";
 
 export const CSV_COLUMNS: readonly (keyof PartRecord)[] = [
@@ -63,11 +63,26 @@ export class SortLog {
 }
 
 function openLog(path: string): number {
+  let fd: number;
   try {
-    return openSync(path, "a");
+    fd = openSync(path, "a+");
   } catch (e) {
     throw new SortLogError("LOG_UNWRITABLE", `cannot open ${path} for appending (${(e as Error).message}); check the folder exists and is writable`);
   }
+  closeTornTail(fd);
+  return fd;
+}
+
+/**
+ * A power cut during a write can leave the last record without its newline. End that fragment
+ * first, so it stays one unreadable line instead of swallowing the next session's first record.
+ */
+function closeTornTail(fd: number): void {
+  const size = fstatSync(fd).size;
+  if (size === 0) return;
+  const last = Buffer.alloc(1);
+  readSync(fd, last, 0, 1, size - 1);
+  if (last[0] !== 0x0a) writeDurably(fd, "\n");
 }
 
 function writeDurably(fd: number, text: string): void {
