@@ -184,6 +184,8 @@ describe("henrytick measure --watch", () => {
     const p = runCli(["measure", "--sim", "--watch", "--count", "3", "--interval-ms", "0"]);
     expect(p.stdout).toMatch(/^#3 {2}\d+\.\d µH ± \d\.\d µH {2}Q \d+ {2}steady {2}[▁-█]{3}$/m);
     expect(p.stdout).not.toContain("\x1b[");
+    const e = runCli(["measure", "--sim", "--watch", "--count", "1", "--interval-ms", "0", "--series", "E12"]);
+    expect(e.stdout).toMatch(/nearest E12 330 µH \(\+0\.\d %\)/);
     const big = runCli(["measure", "--sim", "--watch", "--count", "1", "--big", "--interval-ms", "0"]);
     expect(big.stdout).toContain("████");
   });

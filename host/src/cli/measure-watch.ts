@@ -6,6 +6,7 @@ import { formatSi } from "../format/si.ts";
 import { MeasureError, measurePart, type MeasureOptions } from "../measure/measure-part.ts";
 import { buildResult, type ResultJson } from "../measure/result.ts";
 import type { OpenedTester } from "../open-tester.ts";
+import { nearestPreferred, parseSeriesName, type SeriesName } from "../values/e-series.ts";
 import { formatMeasured, formatValueOnly } from "../values/format-value.ts";
 import { bigText } from "../workflows/big-digits.ts";
 import { makeStyle, type Style } from "../workflows/terminal.ts";
@@ -19,13 +20,15 @@ export const WATCH_OPTIONS = {
   count: { type: "string" },
   "interval-ms": { type: "string" },
   csv: { type: "boolean" },
+  series: { type: "string" },
 } as const;
 
 export const WATCH_USAGE = `  --watch              read continuously: trend line and stability (Ctrl-C stops)
   --big                with --watch: the value in large characters
   --count N            with --watch: stop after N readings
   --interval-ms N      with --watch: pause between readings (default 300)
-  --csv                with --watch: one CSV row per reading`;
+  --csv                with --watch: one CSV row per reading
+  --series E12         with --watch: also show the nearest E6 … E192 preferred value`;
 
 interface WatchValues {
   json?: boolean;
@@ -33,6 +36,7 @@ interface WatchValues {
   big?: boolean;
   count?: string;
   "interval-ms"?: string;
+  series?: string;
 }
 
 const CSV_HEADER = "reading,time,inductance_h,inductance_u_h,q,esr_ohm,stability,warnings";
@@ -40,6 +44,7 @@ const CSV_HEADER = "reading,time,inductance_h,inductance_u_h,q,esr_ohm,stability
 export async function runWatch(tester: OpenedTester, values: WatchValues, measure: MeasureOptions, title: string): Promise<number> {
   const count = intOption(values.count, "count", 1, 10_000_000);
   const interval = intOption(values["interval-ms"], "interval-ms", 0, 3_600_000) ?? 300;
+  const series = values.series ? parseSeriesName(values.series) : undefined;
   const style = makeStyle();
   const tty = process.stdout.isTTY === true && !values.json && !values.csv;
   const history = new History(40);
@@ -67,17 +72,19 @@ export async function runWatch(tester: OpenedTester, values: WatchValues, measur
       const st = assessStability(history.values, history.u);
       const time = new Date().toISOString();
       if (values.json) {
-        process.stdout.write(JSON.stringify(result ? { reading: n, time, ...result, stability: st.state } : { reading: n, time, error: problem }) + "\n");
+        process.stdout.write(JSON.stringify(result ? { reading: n, time, ...result, stability: st.state, ...(series ? { preferred_h: nearestPreferred(result.inductance_h, series).value } : {}) } : { reading: n, time, error: problem }) + "\n");
       } else if (values.csv) {
         if (result) process.stdout.write([n, time, result.inductance_h, result.inductance_u_h, result.q, result.esr_ohm, st.state, result.warnings.map((w) => w.code).join(" ")].join(",") + "\n");
       } else {
-        const block = values.big ? bigBlock(result, problem, st, history, n, style) : smallBlock(result, problem, st, history, n, title, style);
+        let block = values.big ? bigBlock(result, problem, st, history, n, style) : smallBlock(result, problem, st, history, n, title, style);
+        if (series && result) block = [...block, preferredLine(result.inductance_h, series)];
         if (tty) {
           if (drawn > 0) process.stdout.write(`\x1b[${drawn}F\x1b[J`);
           process.stdout.write(block.join("\n") + "\n");
           drawn = block.length;
         } else {
-          process.stdout.write((values.big ? block.join("\n") : oneLine(result, problem, st, history, n)) + "\n");
+          const line = oneLine(result, problem, st, history, n) + (series && result ? `  ${preferredLine(result.inductance_h, series).trim()}` : "");
+          process.stdout.write((values.big ? block.join("\n") : line) + "\n");
         }
       }
       if (interval > 0 && !stop.signal.aborted && (count === undefined || n < count)) await pause(interval, stop.signal);
@@ -86,6 +93,12 @@ export async function runWatch(tester: OpenedTester, values: WatchValues, measur
     process.off("SIGINT", onSigint);
   }
   return history.values.length > 0 ? 0 : 1;
+}
+
+function preferredLine(l_h: number, series: SeriesName): string {
+  const p = nearestPreferred(l_h, series);
+  const dev = p.deviation_rel * 100;
+  return `   nearest ${series} ${formatSi(p.value, "H", 3)} (${dev >= 0 ? "+" : ""}${dev.toFixed(1)} %)`;
 }
 
 function stateText(st: StabilityResult, style: Style): string {
