@@ -69,7 +69,7 @@ export function corpus(): Corpus {
   });
   const commands = [
     // Short capture windows: with open terminals the firmware polls through the whole window.
-    ["ID", []], ["PF", []], ["AB", []], ["CR", []], ["ST", []], ["CN", []], ["MS", settingArgs(SETTING)], ["MS", [0, 3, 100, 8192, 200, 50]],
+    ["ID", []], ["PF", []], ["AB", []], ["CR", []], ["ST", []], ["CN", []], ["TK", []], ["MS", settingArgs(SETTING)], ["MS", [0, 3, 100, 8192, 200, 50]],
     ["MS", [3, 0, 1, 1, 1, 1]], ["ZZ", [1, 2, 3]],
   ].map(([t, a]) => text(encodeCommand(t as string, a as number[])).trimEnd());
   const now = "2026-01-01T00:00:00.000Z";
