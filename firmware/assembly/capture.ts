@@ -132,8 +132,10 @@ function stepCapture(now: i32): i32 {
   // the quiet time so that a burst of edges is noticed promptly.
   let wait: i32 = window - sinceOpen;
   if (edgeCount > 0 && quiet - sinceEdge < wait) wait = quiet - sinceEdge;
-  const slice: i32 = quiet >> 3;
-  if (slice > 0 && slice < wait) wait = slice;
+  // An eighth of the quiet time, but never more often than every 10 µs.
+  let slice: i32 = quiet >> 3;
+  if (slice < 10 * board.TICKS_PER_US) slice = 10 * board.TICKS_PER_US;
+  if (slice < wait) wait = slice;
   return wait > 0 ? wait : 1;
 }
 

@@ -89,13 +89,17 @@ function ticksToMsCeil(ticks: i32): i32 {
 
 function measure(): void {
   if (busy()) return sendError(ERR_BUSY, "MS");
-  if (reader.count != 7) return sendError(ERR_ARGUMENT, "MS");
+  // Seven fields, or eight with the host's request token, echoed in OK MS and the capture
+  // header so that a reply can never be taken for another request's.
+  if (reader.count != 7 && reader.count != 8) return sendError(ERR_ARGUMENT, "MS");
   const drive: i32 = reader.fieldInt(1, 0, board.DRIVE_COUNT - 1);
   const tank: i32 = reader.fieldInt(2, 0, board.TANK_COUNT - 1);
   const chargeUs: i32 = reader.fieldInt(3, 1, 10000000);
   const edgeLimit: i32 = reader.fieldInt(4, 1, board.BUFFER_EDGES);
   const timeoutMs: i32 = reader.fieldInt(5, 1, board.MAX_TIMEOUT_MS);
-  const quietUs: i32 = reader.fieldInt(6, 1, board.MAX_TIMEOUT_MS * 1000);
+  // At least 10 µs of quiet: the capture is polled every eighth of it.
+  const quietUs: i32 = reader.fieldInt(6, 10, board.MAX_TIMEOUT_MS * 1000);
+  const token: i32 = reader.count == 8 ? reader.fieldInt(7, 0, 65535) : NO_TOKEN;
   if (reader.error != 0) return sendError(ERR_ARGUMENT, "MS");
   // Interlocks: the host cannot talk the firmware past these.
   if (chargeUs > maxChargeUs(drive)) return sendError(ERR_CHARGE_LIMIT, "MS");
@@ -110,7 +114,8 @@ function measure(): void {
   s.edgeLimit = edgeLimit;
   s.timeoutMs = timeoutMs;
   s.quietUs = quietUs;
-  sendOk("MS");
+  streamToken = token;
+  sendOkToken("MS", token);
   capture.begin();
 }
 
@@ -128,9 +133,23 @@ function abort(): void {
 
 function resend(): void {
   if (busy()) return sendError(ERR_BUSY, "CR");
-  if (reader.count != 1 || !capture.haveCapture) return sendError(ERR_ARGUMENT, "CR");
-  sendOk("CR");
-  streamCapture();
+  if ((reader.count != 1 && reader.count != 2) || !capture.haveCapture) return sendError(ERR_ARGUMENT, "CR");
+  const token: i32 = reader.count == 2 ? reader.fieldInt(1, 0, 65535) : NO_TOKEN;
+  if (reader.error != 0) return sendError(ERR_ARGUMENT, "CR");
+  sendOkToken("CR", token);
+  streamCapture(token);
+}
+
+/** The token of the MS that started the capture now running (echoed in its header). */
+let streamToken: i32 = -1;
+/** A command sent without a token gets replies without one (protocol v1 as first published). */
+const NO_TOKEN: i32 = -1;
+
+function sendOkToken(cmd: string, token: i32): void {
+  out.begin("OK");
+  out.putText(cmd);
+  if (token != NO_TOKEN) out.putInt(token);
+  send();
 }
 
 function selfTest(): void {
@@ -154,7 +173,7 @@ function reportCounters(): void {
 export function finishPending(): i32 {
   let wait: i32 = capture.step();
   if (capture.phase == capture.PHASE_DONE) {
-    streamCapture();
+    streamCapture(streamToken);
     capture.reported();
   } else if (capture.phase == capture.PHASE_FAULT) {
     sendError(ERR_CAPTURE_FAULT, "MS");

@@ -11,7 +11,8 @@ import { out, send } from "./link.ts";
 const encoder = new EdgeEncoder();
 const chunk = new Uint8Array(DATA_PAYLOAD_CHARS);
 
-export function streamCapture(): void {
+/** Streams the capture; `token` is the requesting command's token, last in the header (-1: none). */
+export function streamCapture(token: i32): void {
   let seq: i32 = 0;
   out.begin("CH");
   out.putInt(seq);
@@ -21,6 +22,7 @@ export function streamCapture(): void {
   out.putInt(settings.tank);
   out.putInt(settings.chargeUs);
   out.putInt(edgeCount);
+  if (token >= 0) out.putInt(token);
   send();
   seq++;
 

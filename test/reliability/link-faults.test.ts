@@ -67,13 +67,11 @@ describe("link faults inside a capture stream are detected and the capture is fe
 });
 
 describe("link faults the host cannot repair end in a coded error, and never in a capture", () => {
-  it("a stall mid-stream (the tester hangs) ends in DEVICE_TIMEOUT; nothing partial is returned", async () => {
+  it("a line held back for good mid-stream: the reply times out, the capture is fetched again (one pulse), nothing partial is returned", async () => {
     const rig = await openRig({ seed: 21, faults: { stall_ms: Infinity } });
     rig.faults.arm("stall", FIRST_CD + 1);
-    const e = await caught(() => rig.client.measure(SETTING));
-    expect(e).toBeInstanceOf(DeviceTimeoutError);
-    expect((e as DeviceTimeoutError).code).toBe("DEVICE_TIMEOUT");
-    expect(rig.pulses()).toBe(1);
+    await recovers(rig);
+    expect(rig.faults.sent.CR ?? 0).toBeGreaterThanOrEqual(1);
     await rig.close();
   });
 
@@ -91,11 +89,11 @@ describe("link faults the host cannot repair end in a coded error, and never in 
     await rig.close();
   });
 
-  it("a tester reset mid-capture ends in DEVICE_TIMEOUT; the restarted tester measures again", async () => {
+  it("a tester reset mid-capture ends in CAPTURE_LOST (its resend is refused); the restarted tester measures again", async () => {
     const rig = await openRig({ seed: 24 });
     rig.faults.arm("reset", FIRST_CD + 1);
     const e = await caught(() => rig.client.measure(SETTING));
-    expect((e as { code?: string }).code).toBe("DEVICE_TIMEOUT");
+    expect((e as { code?: string }).code).toBe("CAPTURE_LOST");
     expect(rig.link.generation).toBe(1);
     const raw = await rig.client.measure(SETTING);
     await settle();
@@ -155,12 +153,15 @@ describe("link faults the host cannot repair end in a coded error, and never in 
     await rig.close();
   });
 
-  it("a stalled reading through measurePart throws; no partial capture is analysed", async () => {
+  it("a stalled reading through measurePart is fetched again; only the pulse's own whole capture is analysed", async () => {
     const rig = await openRig({ seed: 29, faults: { stall_ms: Infinity } });
     rig.faults.arm("stall", FIRST_CD);
     const estimate = { l_h: QUICK_PART.inductance_h, q_points: [{ q: 20, tank_f: 10e-9 }], fitted: false };
-    const e = await caught(() => measurePart(rig.client, { drive: SETTING.drive, tank: SETTING.tank, charge_us: SETTING.charge_us, estimate }));
-    expect((e as { code?: string }).code).toBe("DEVICE_TIMEOUT");
+    const r = await measurePart(rig.client, { drive: SETTING.drive, tank: SETTING.tank, charge_us: SETTING.charge_us, estimate });
+    await settle();
+    const raw = { ticks: r.capture.edges.map((e) => e[0]), levels: r.capture.edges.map((e) => e[1]) };
+    expect(matchesTruth(raw as never, rig.link.sim)).toBe(true);
+    expect(rig.pulses()).toBe(1);
     await rig.close();
   });
 });
@@ -192,7 +193,7 @@ describe("late replies after a timeout", () => {
   // sent are taken as that measurement's reply: OK MS, then a complete, checksummed capture of the
   // previous pulse, returned as verified. Here the part is changed in between (a sorting line), so
   // the host reports the previous part's ring for the new part. Marked it.fails until fixed.
-  it.fails("a capture delivered after its measurement timed out is never returned for the next measurement", async () => {
+  it("a capture delivered after its measurement timed out is never returned for the next measurement", async () => {
     // Times (ms after MS): the reply times out at 500, the next MS goes out at about 700, the
     // held lines land at 1000, and that MS would time out at about 1200: wide margins either side.
     const rig = await openRig({ seed: 41, faults: { stall_ms: 1000 }, client: { reply_timeout_ms: 500 } });
@@ -217,7 +218,7 @@ describe("error codes on link failures", () => {
   // Finding (host/src/transport/transport.ts, class TransportError): a failure of the link itself
   // (port unplugged, write on a closed port) carries `disconnected` but no stable `code`, unlike
   // every other error a user can meet; the CLI then prints it without one. Marked it.fails until fixed.
-  it.fails("an unplugged port is reported with a stable code", async () => {
+  it("an unplugged port is reported with a stable code", async () => {
     const rig = await openRig({ seed: 51 });
     rig.faults.unplug();
     const e = await caught(() => rig.client.measure(SETTING));
@@ -235,12 +236,20 @@ describe("a reply that outlives its command", () => {
   // previous pulse's capture as verified, and if the host sends its next command before the
   // leftover reply lands, every later reading does too. With parts swapped between readings, a
   // part gets its predecessor's value. Marked it.fails until fixed.
-  it.fails("after two damaged lines in a row, every reading still returns its own pulse's capture", async () => {
+  it("after two damaged lines in a row, every reading still returns its own pulse's capture", async () => {
     const rig = await openRig({ seed: 61 });
     rig.faults.arm("flip_bit", OK_MS, 1); // reading 1: OK MS damaged -> LINK_CORRUPT, its capture still in flight
     rig.faults.arm("flip_bit", FIRST_CD, 1); // that capture's data line damaged too, arriving during reading 2
     expect((await caught(() => rig.client.measure(SETTING)) as { code?: string }).code).toBe("LINK_CORRUPT");
-    expect((await caught(() => rig.client.measure(SETTING)) as { code?: string }).code).toBe("LINK_CORRUPT");
+    // Since the client drains the link after a corrupt reply and ties captures to their request
+    // token, the second reading no longer inherits the first one's damage: it may succeed (and
+    // must then be its own) or fail with a code.
+    const second = await caught(async () => {
+      const raw = await rig.client.measure(SETTING);
+      await settle();
+      expect(matchesTruth(raw, rig.link.sim)).toBe(true);
+    });
+    if (second !== undefined) expect(typeof (second as { code?: unknown }).code).toBe("string");
     const parts = [{ ...QUICK_PART, inductance_h: 1.5e-3 }, QUICK_PART, { ...QUICK_PART, inductance_h: 0.68e-3 }];
     const own: boolean[] = [];
     for (const part of parts) {
@@ -257,11 +266,13 @@ describe("a reply that outlives its command", () => {
   // line's '*' (0x2A) into a newline (0x0A), so the tester answers two lines with two ER frames.
   // The first fails that reading, the second fails the next one before its own OK MS arrives, and
   // the reading after that returns the next one's pulse.
-  it.fails("a command split in two by a flipped bit does not shift later replies", async () => {
+  it("a command split in two by a flipped bit does not shift later replies", async () => {
     const rig = await openRig({ seed: 62 });
     const star = new TextDecoder().decode(encodeCommand("MS", [SETTING.drive, SETTING.tank, SETTING.charge_us, SETTING.edge_limit, SETTING.timeout_ms, SETTING.quiet_us])).indexOf("*");
     rig.faults.arm("tx_flip_bit", 0, star, 5);
-    expect((await caught(() => rig.client.measure(SETTING)) as { code?: string }).code).toBe("LINK_SYNTAX");
+    // The flipped bit lands in the command (whose request token moves the '*'): the tester cannot
+    // read the line, either as a split one (LINK_SYNTAX) or as a CRC mismatch (LINK_CRC).
+    expect(["LINK_SYNTAX", "LINK_CRC"]).toContain((await caught(() => rig.client.measure(SETTING)) as { code?: string }).code);
     const own: boolean[] = [];
     const outcomes: string[] = [];
     for (let k = 0; k < 3; k++) {

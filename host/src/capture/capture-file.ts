@@ -1,7 +1,7 @@
 // Capture file v1 (docs/capture-format.md): the edge record of one ring-down with everything
 // needed to analyse it again later. Written by `measure --save`, read by `analyze`.
 
-import { renameSync, writeFileSync, readFileSync } from "node:fs";
+import { closeSync, fsyncSync, openSync, renameSync, readFileSync, writeSync } from "node:fs";
 
 export const CAPTURE_FORMAT = "henrytick-capture";
 export const CAPTURE_VERSION = 1;
@@ -112,6 +112,12 @@ export function serializeCapture(c: CaptureV1): string {
 /** Writes atomically: a reader never sees a half-written capture, and a crash keeps the old file. */
 export function writeCaptureFile(path: string, c: CaptureV1): void {
   const tmp = `${path}.${process.pid}.tmp`;
-  writeFileSync(tmp, serializeCapture(c));
+  const fd = openSync(tmp, "w");
+  try {
+    writeSync(fd, serializeCapture(c));
+    fsyncSync(fd); // on disk before the rename makes it the file: a power cut keeps old or new
+  } finally {
+    closeSync(fd);
+  }
   renameSync(tmp, path);
 }

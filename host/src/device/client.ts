@@ -67,7 +67,13 @@ export class DeviceClient {
     const client = new DeviceClient(transport, opts);
     // A newline first flushes any partial line left in the tester's receiver.
     await transport.write(new TextEncoder().encode("\n"));
-    client.identity = await client.identify();
+    try {
+      client.identity = await client.identify();
+    } catch (e) {
+      // Noise left on the link before we opened it can prefix the first reply; ask once more.
+      if (!(e instanceof ProtocolError) || e.code !== "LINK_CORRUPT") throw e;
+      client.identity = await client.identify();
+    }
     if (client.identity.protocol_version !== PROTOCOL_VERSION) {
       throw new ProtocolError(
         `tester speaks protocol v${client.identity.protocol_version}, this host speaks v${PROTOCOL_VERSION}; update the firmware or the host`,
@@ -131,20 +137,34 @@ export class DeviceClient {
   /** Pulses the part once and returns the verified edge record. */
   measure(s: MeasureSettings): Promise<RawCapture> {
     return this.exclusive(async () => {
-      await this.startMeasurement(s);
+      let token = this.nextToken();
+      await this.startMeasurement(s, token);
       // Settle + charge + capture window, plus a reply margin.
       const firstWait = this.profile.settle_us / 1000 + s.charge_us / 1000 + s.timeout_ms + this.replyTimeout;
-      let lastDefect: StreamDefect | null = null;
+      let lastDefect: Error | null = null;
       for (let attempt = 0; attempt <= this.resendAttempts; attempt++) {
-        if (attempt > 0) await this.command("CR", []);
+        if (attempt > 0) {
+          // A resend has its own token: lines of an earlier attempt still in flight cannot pass for it.
+          token = this.nextToken();
+          try {
+            await this.command("CR", [token], 0, token);
+          } catch (e) {
+            if (e instanceof DeviceError && e.code === "BAD_ARGUMENT") {
+              throw new ProtocolError("the tester no longer holds the capture (it may have restarted); measure again", "CAPTURE_LOST");
+            }
+            throw e;
+          }
+        }
         try {
-          return await this.readStream(s, attempt === 0 ? firstWait : this.replyTimeout);
+          return await this.readStream(s, attempt === 0 ? firstWait : this.replyTimeout, token);
         } catch (e) {
-          if (!(e instanceof StreamDefect)) throw e;
+          // A damaged stream, or one that stalled, is fetched again; nothing is pulsed again.
+          if (!(e instanceof StreamDefect) && !(e instanceof DeviceTimeoutError)) throw e;
           lastDefect = e;
           await this.drainUntilQuiet();
         }
       }
+      if (lastDefect instanceof DeviceTimeoutError) throw lastDefect; // the tester stopped answering
       throw new ProtocolError(
         `capture damaged in transit ${this.resendAttempts + 1} times (${lastDefect?.message}); check the cable and USB port, then measure again`,
         "CAPTURE_DAMAGED",
@@ -153,11 +173,11 @@ export class DeviceClient {
   }
 
   /** Sends MS; while the rest or ring interlock refuses, waits the time it names and asks again. */
-  private async startMeasurement(s: MeasureSettings): Promise<void> {
-    const args = [s.drive, s.tank, s.charge_us, s.edge_limit, s.timeout_ms, s.quiet_us];
+  private async startMeasurement(s: MeasureSettings, token: number): Promise<void> {
+    const args = [s.drive, s.tank, s.charge_us, s.edge_limit, s.timeout_ms, s.quiet_us, token];
     for (let attempt = 0; ; attempt++) {
       try {
-        await this.command("MS", args);
+        await this.command("MS", args, 0, token);
         return;
       } catch (e) {
         const waitable = e instanceof DeviceError && (e.code === "REST_PENDING" || e.code === "RINGING");
@@ -172,8 +192,8 @@ export class DeviceClient {
     await this.transport.close();
   }
 
-  private async readStream(s: MeasureSettings, firstWait_ms: number): Promise<RawCapture> {
-    const reader = new CaptureStreamReader(s);
+  private async readStream(s: MeasureSettings, firstWait_ms: number, token: number): Promise<RawCapture> {
+    const reader = new CaptureStreamReader(s, token);
     let wait = firstWait_ms;
     for (;;) {
       const d = await this.next(wait, "capture data");
@@ -187,18 +207,42 @@ export class DeviceClient {
   }
 
   /** Sends a command and collects data frames until its OK; throws DeviceError on ER. */
-  private async command(tag: string, args: number[], extraWait_ms = 0): Promise<Frame[]> {
+  /**
+   * Sends a command and collects data frames until its OK; throws DeviceError on ER. With a
+   * token, only an OK carrying that token counts: a stale OK of an earlier request is skipped.
+   * After a reply that is corrupt or late, the link is drained until quiet before the error is
+   * raised, so that the rest of that reply cannot be taken for the next command's.
+   */
+  private async command(tag: string, args: number[], extraWait_ms = 0, token?: number): Promise<Frame[]> {
     this.inbox = []; // lines left from an earlier exchange belong to no one
     await this.transport.write(encodeCommand(tag, args));
     const frames: Frame[] = [];
-    for (;;) {
-      const d = await this.next(this.replyTimeout + extraWait_ms, `reply to ${tag}`);
-      if (!d.ok) throw new ProtocolError(`corrupt reply to ${tag} (error ${d.code}): ${JSON.stringify(d.line)}; check the cable and retry`, "LINK_CORRUPT");
-      const f = d.frame;
-      if (f.tag === "OK" && f.fields[0] === tag) return frames;
-      if (f.tag === "ER") throw errorFrame(f, tag);
-      frames.push(f);
+    try {
+      for (;;) {
+        const d = await this.next(this.replyTimeout + extraWait_ms, `reply to ${tag}`);
+        if (!d.ok) throw new ProtocolError(`corrupt reply to ${tag} (error ${d.code}): ${JSON.stringify(d.line)}; check the cable and retry`, "LINK_CORRUPT");
+        const f = d.frame;
+        if (f.tag === "OK" && f.fields[0] === tag) {
+          if (token === undefined || f.fields[1] === String(token)) return frames;
+          continue; // an earlier request's acknowledgement
+        }
+        if (f.tag === "ER") throw errorFrame(f, tag);
+        frames.push(f);
+      }
+    } catch (e) {
+      // A corrupt or late reply, or a tester that could not read our line (which a damaged
+      // newline may have split in two, each half answered): wait out whatever else is coming.
+      const garbled = e instanceof DeviceError && ["LINK_CRC", "LINK_SYNTAX", "LINE_TOO_LONG"].includes(e.code);
+      if (e instanceof ProtocolError || e instanceof DeviceTimeoutError || garbled) await this.drainUntilQuiet();
+      throw e;
     }
+  }
+
+  /** Request tokens for MS and CR: 1..65535, starting anywhere so two hosts' tokens rarely meet. */
+  private tokenCounter = 1 + Math.floor(Math.random() * 65535);
+  private nextToken(): number {
+    this.tokenCounter = (this.tokenCounter % 65535) + 1;
+    return this.tokenCounter;
   }
 
   private async drainUntilQuiet(): Promise<void> {

@@ -41,10 +41,14 @@ export class CaptureStreamReader {
   private ticks = new Int32Array(0);
   private levels = new Uint8Array(0);
 
-  constructor(private readonly settings: MeasureSettings) {}
+  /** With a token, frames before the header that carries it belong to an earlier request. */
+  constructor(private readonly settings: MeasureSettings, private readonly token?: number) {}
 
   /** Takes the next frame; returns the capture once the trailer has verified it. */
   accept(f: Frame): RawCapture | null {
+    if (this.token !== undefined && this.expected < 0 && !(f.tag === "CH" && f.fields[7] === String(this.token))) {
+      return null; // a stale stream's line, or an OK of a stale request: not ours, skipped
+    }
     if (f.tag !== "CH" && f.tag !== "CD" && f.tag !== "CE") throw new StreamDefect(`unexpected ${f.tag} frame in a capture`);
     const seq = this.int(f, 0, "seq");
     if (seq !== this.expectSeq) throw new StreamDefect(`sequence ${seq} where ${this.expectSeq} was due (line lost or repeated)`);

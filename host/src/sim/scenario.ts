@@ -37,6 +37,7 @@ export interface Scenario {
 }
 
 export class ScenarioError extends Error {
+  readonly code = "BAD_SCENARIO";
   readonly field: string;
   constructor(field: string, message: string) {
     super(`scenario field "${field}": ${message}`);

@@ -29,9 +29,16 @@ export class SimTransport implements Transport {
       if (this.closed) return;
       // Idle time on the host's clock passes on the tester too (its rest timers run down).
       const now = performance.now();
-      this.tester.advance((now - this.lastInput) / 1000);
-      this.lastInput = now;
-      this.tester.input(copy);
+      try {
+        this.tester.advance((now - this.lastInput) / 1000);
+        this.lastInput = now;
+        this.tester.input(copy);
+      } catch (e) {
+        // A fault inside the simulated firmware is the device failing, not the host: the link
+        // closes with an error the client reports, and the process carries on.
+        this.closed = true;
+        this.closeHandler(new TError(`simulated tester fault: ${(e as Error).message}`, true));
+      }
     });
   }
 

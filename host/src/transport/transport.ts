@@ -17,10 +17,13 @@ export interface Transport {
 /** A failure of the link itself. `disconnected` is true when the device went away. */
 export class TransportError extends Error {
   readonly disconnected: boolean;
+  /** LINK_DISCONNECTED when the device went away (unplugged, port closed), else LINK_ERROR. */
+  readonly code: string;
   constructor(message: string, disconnected: boolean) {
-    super(message);
+    super(disconnected ? `${message} (the tester was disconnected: check the cable and reconnect)` : message);
     this.name = "TransportError";
     this.disconnected = disconnected;
+    this.code = disconnected ? "LINK_DISCONNECTED" : "LINK_ERROR";
   }
 }
 
