@@ -17,6 +17,11 @@ export const GLITCH_FRACTION = 0.05;
 export interface DamageResult {
   name: string;
   ratio: number;
+  /** The same over the seeds whose damage kept the ring's last edge, and how many lost it: a
+   *  capture that ends on quiet tells the fit the ring ended after its last edge, which a lost
+   *  last edge contradicts. */
+  ratio_last_kept: number;
+  last_lost: number;
   /** Edges added as glitches and edges dropped, summed over the seeds. */
   added: number;
   dropped: number;
@@ -30,12 +35,14 @@ export function damage(ticks: number[], levels: number[], rng: Random, periodTic
   const l: number[] = [];
   let dropped = 0;
   let added = 0;
+  let lastLost = false;
   // Chatter lasts a few ticks, but never most of a half-period (at 12 ticks per period: 1 tick).
   const spread = Math.max(1, Math.min(3, Math.floor(periodTicks / 8)));
   for (let i = 0; i < ticks.length; i++) {
     // The first three edges are kept: a capture that starts with a lost edge is a different test.
     if (i > 2 && rng.uniform() < DROP_FRACTION) {
       dropped++;
+      if (i === ticks.length - 1) lastLost = true;
       continue;
     }
     t.push(ticks[i]);
@@ -51,7 +58,7 @@ export function damage(ticks: number[], levels: number[], rng: Random, periodTic
       }
     }
   }
-  return { ticks: t, levels: l, dropped, added };
+  return { ticks: t, levels: l, dropped, added, lastLost };
 }
 
 /** The damaged counterpart of one efficiency-run point (its seeds, its clean errors). */
@@ -60,6 +67,9 @@ export function runDamaged(r: PointResult): DamageResult {
   const periodTicks = (pp.g.tick_hz * 2 * Math.PI) / pp.ring.wd_rad_s;
   const err: number[] = [];
   const clean: number[] = [];
+  const errKept: number[] = [];
+  const cleanKept: number[] = [];
+  let lastLost = 0;
   const failures: Record<string, number> = {};
   let added = 0, dropped = 0, rejected = 0;
   r.seeds.forEach((seed, i) => {
@@ -67,16 +77,24 @@ export function runDamaged(r: PointResult): DamageResult {
     const d = damage(Array.from(c.ticks), Array.from(c.levels), new Random(1_000_003 + seed), periodTicks);
     added += d.added;
     dropped += d.dropped;
+    if (d.lastLost) lastLost++;
     try {
       const a = analyzeRing(inputOf(pp, d.ticks, d.levels));
       rejected += a.edges_rejected;
       if (!Number.isFinite(r.l_err[i])) return; // compared on seeds where both analyses ran
       err.push(a.inductance_h / pp.g.l_h - 1);
       clean.push(r.l_err[i]);
+      if (!d.lastLost) {
+        errKept.push(err[err.length - 1]);
+        cleanKept.push(r.l_err[i]);
+      }
     } catch (e) {
       const code = failureCode(e);
       failures[code] = (failures[code] ?? 0) + 1;
     }
   });
-  return { name: pp.g.name, ratio: rms(err) / rms(clean), added, dropped, rejected, failures };
+  return {
+    name: pp.g.name, ratio: rms(err) / rms(clean), ratio_last_kept: rms(errKept) / rms(cleanKept), last_lost: lastLost,
+    added, dropped, rejected, failures,
+  };
 }

@@ -78,6 +78,8 @@ export interface PreparedPoint {
   times_s: number[];
   levels: number[];
   slopes: number[];
+  /** The ring died out before the buffer filled: the capture ends on quiet, and says so. */
+  ring_ended: boolean;
   bound: RingBound;
 }
 
@@ -89,8 +91,12 @@ export function preparePoint(g: GridPoint): PreparedPoint {
   const [vh, vl] = thresholdsOf(g);
   // A fixed 40 ns propagation delay: constant delays move only the phase (notes §2).
   const comp: ComparatorModel = { rising_v: vh, falling_v: vl, jitter_s: g.jitter_s, noise_v: g.noise_v, delay_s: 40e-9 };
-  // The same crossings captureEdges would solve; solved once per point, not once per seed.
-  const cr = crossingTimes(ring, vh, vl, g.max_edges, 10);
+  // The same crossings captureEdges would solve; solved once per point, not once per seed. One
+  // more than the buffer tells whether the buffer cut the ring short.
+  const cr = crossingTimes(ring, vh, vl, g.max_edges + 1, 10);
+  const ring_ended = cr.times.length <= g.max_edges;
+  cr.times.length = Math.min(cr.times.length, g.max_edges);
+  cr.levels.length = cr.times.length;
   const slopes = cr.times.map((t) => ringSlope(ring, t));
   // Noise only moves edges (no dead time): every capture of the point has these edges, so one
   // Fisher information serves all its seeds.
@@ -99,7 +105,7 @@ export function preparePoint(g: GridPoint): PreparedPoint {
     { times_s: cr.times, levels: cr.levels },
     { tick_hz: g.tick_hz, sigma_t_s: g.jitter_s, sigma_v_v: g.noise_v }, [vh, vl],
   );
-  return { g, ring, q: k.q, comp, times_s: cr.times, levels: cr.levels, slopes, bound };
+  return { g, ring, q: k.q, comp, times_s: cr.times, levels: cr.levels, slopes, ring_ended, bound };
 }
 
 /** One noisy capture of a prepared point, as the analysis receives it. */
@@ -111,5 +117,10 @@ export function captureOf(pp: PreparedPoint, seed: number): RingInput {
 
 export function inputOf(pp: PreparedPoint, ticks: number[], levels: number[]): RingInput {
   // C and timebase uncertainties set to zero: the benchmark compares the fit with its bound.
-  return { tick_hz: pp.g.tick_hz, ticks, levels, tank_c_f: pp.g.c_f, thresholds_v: thresholdsOf(pp.g), tank_c_u_f: 0, timebase_u_rel: 0 };
+  // ring_ended as the measure layer sets it from a capture that ended on quiet: it tells the
+  // fit that the ring did not reach the next threshold, which the edge-time bound ignores.
+  return {
+    tick_hz: pp.g.tick_hz, ticks, levels, tank_c_f: pp.g.c_f, thresholds_v: thresholdsOf(pp.g),
+    tank_c_u_f: 0, timebase_u_rel: 0, ring_ended: pp.ring_ended,
+  };
 }

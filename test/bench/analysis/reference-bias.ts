@@ -44,9 +44,10 @@ function ring(vh_v: number, vl_v: number) {
   return crossingTimes({ a0_v: 1, alpha_per_s: ALPHA, wd_rad_s: WD }, vh_v, vl_v, 100000, 1);
 }
 
+/** The first n edges; a capture cut short does not end on quiet, the whole ring does. */
 function inputOf(times: number[], levels: number[], n: number, th: [number, number]): RingInput {
   const ticks = times.slice(0, n).map((t) => Math.round(t * TICK_HZ));
-  return { tick_hz: TICK_HZ, ticks, levels: levels.slice(0, n), tank_c_f: 1e-9, thresholds_v: th };
+  return { tick_hz: TICK_HZ, ticks, levels: levels.slice(0, n), tank_c_f: 1e-9, thresholds_v: th, ring_ended: n === times.length };
 }
 
 const ppm = (period_s: number) => (period_s / PERIOD_S - 1) * 1e6;

@@ -50,7 +50,7 @@ export const analysisSection: BenchSection = {
     const many = grid.filter((r) => r.pp.bound.edges >= FEW_EDGES);
     const damaged = many.map((r) => {
       const d = runDamaged(r);
-      progress(`  ${d.name.padEnd(26)} ratio ${d.ratio.toFixed(3)}  added ${d.added} dropped ${d.dropped} rejected ${d.rejected} failed ${JSON.stringify(d.failures)}`);
+      progress(`  ${d.name.padEnd(26)} ratio ${d.ratio.toFixed(3)}  last edge kept ${d.ratio_last_kept.toFixed(3)} (lost in ${d.last_lost})  added ${d.added} dropped ${d.dropped} rejected ${d.rejected} failed ${JSON.stringify(d.failures)}`);
       return d;
     });
     const worst = damaged.reduce((a, b) => (b.ratio > a.ratio ? b : a));
@@ -58,6 +58,12 @@ export const analysisSection: BenchSection = {
     figures["analysis.outlier_error_ratio"] = worst.ratio;
     figures["analysis.outlier_error_ratio_point"] = worst.name;
     figures["analysis.outlier_error_ratio_median"] = ratios[ratios.length >> 1];
+    const worstKept = damaged.reduce((a, b) => (b.ratio_last_kept > a.ratio_last_kept ? b : a));
+    figures["analysis.outlier_error_ratio_last_edge_kept"] = worstKept.ratio_last_kept;
+    figures["analysis.outlier_error_ratio_last_edge_kept_point"] = worstKept.name;
+    figures["analysis.outlier_last_edge_lost"] = damaged.reduce((s, d) => s + d.last_lost, 0);
+    notes["analysis.outlier_error_ratio_last_edge_kept"] = "the same over the seeds whose damage kept the ring's last edge (captures end on quiet: ring_ended)";
+    notes["analysis.outlier_last_edge_lost"] = "damaged captures, all points, that lost the ring's last edge";
     const damagedFailures = damaged.reduce((s, d) => s + Object.values(d.failures).reduce((a, b) => a + b, 0), 0);
     figures["analysis.outlier_failed_analyses"] = damagedFailures;
     notes["analysis.outlier_error_ratio"] = `rms L error damaged / clean, same ${SEEDS_PER_POINT} seeds; worst of ${damaged.length} points (goal <= 1.5)`;
