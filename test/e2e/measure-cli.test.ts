@@ -122,3 +122,37 @@ describe("henrytick usage", () => {
     expect(r.stderr).toMatch(/cannot open \/dev\/henrytick-not-here/);
   });
 });
+
+describe("machine-readable output and help", () => {
+  it("measure --csv prints a header and one row whose figures match --json", () => {
+    const csv = runCli(["measure", "--sim", "filter-coil-4m7", "--csv"]);
+    const json = JSON.parse(runCli(["measure", "--sim", "filter-coil-4m7", "--json"]).stdout);
+    expect(csv.status).toBe(0);
+    const [header, row] = csv.stdout.trim().split("\n");
+    const cols = header.split(",");
+    const cells = row.split(",");
+    expect(cols[0]).toBe("label");
+    expect(Number(cells[cols.indexOf("inductance_h")])).toBe(json.inductance_h);
+    expect(Number(cells[cols.indexOf("q")])).toBe(json.q);
+  });
+
+  it("analyze --csv gives one row per file", () => {
+    const file = join(tmp, "csv-capture.json");
+    expect(runCli(["measure", "--sim", "drawer-choke-330u", "--save", file, "--json"]).status).toBe(0);
+    const r = runCli(["analyze", file, file, "--csv"]);
+    expect(r.status).toBe(0);
+    expect(r.stdout.trim().split("\n")).toHaveLength(3);
+  });
+
+  it("measure --help shows the usage and exits 0", () => {
+    const r = runCli(["measure", "--help"]);
+    expect(r.status).toBe(0);
+    expect(r.stdout).toMatch(/Examples:/);
+  });
+
+  it("ports lists serial ports, or says why it cannot and what to type instead", () => {
+    const r = runCli(["ports"]);
+    if (r.status === 0) expect(r.stdout.length).toBeGreaterThan(0);
+    else expect(r.stderr).toMatch(/PORTS_UNAVAILABLE.*--port/);
+  });
+});

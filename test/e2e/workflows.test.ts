@@ -242,10 +242,10 @@ function sleep(ms: number): Promise<void> {
   return new Promise((r) => setTimeout(r, ms));
 }
 
-describe("docs/library-api.md examples", () => {
+describe("docs/library.md examples", () => {
   // Each ```ts block is a complete program: type-checked against the built library's
   // declarations, then run. A `// text` comment after a console.log line must appear in its output.
-  const doc = readFileSync(new URL("../../docs/library-api.md", import.meta.url), "utf8");
+  const doc = readFileSync(new URL("../../docs/library.md", import.meta.url), "utf8");
   const blocks = [...doc.matchAll(/```ts\n([\s\S]*?)```/g)].map((m) => m[1]);
   const dir = fileURLToPath(new URL("../../node_modules/.cache/henrytick-doc-examples/", import.meta.url));
 

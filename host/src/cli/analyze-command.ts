@@ -6,9 +6,10 @@ import { buildResult } from "../measure/result.ts";
 import { parse } from "./args.ts";
 import { CliUsageError, reportError } from "./errors.ts";
 import { renderReading } from "./render.ts";
+import { csvHeader, csvRow } from "./result-csv.ts";
 
 export async function runAnalyze(args: string[]): Promise<number> {
-  const { values, positionals } = parse(args, { json: { type: "boolean" } });
+  const { values, positionals } = parse(args, { json: { type: "boolean" }, csv: { type: "boolean" } });
   if (positionals.length === 0) throw new CliUsageError("analyze needs at least one capture FILE");
   let status = 0;
   const results = [];
@@ -16,13 +17,14 @@ export async function runAnalyze(args: string[]): Promise<number> {
     try {
       const capture = readCaptureFile(file);
       const result = buildResult(analyzeCapture(capture), capture);
-      if (values.json) results.push(positionals.length > 1 ? { file, ...result } : result);
+      if (values.csv) process.stdout.write((results.length === 0 ? csvHeader(["file"]) : "") + csvRow(result, [file]));
+      if (values.json || values.csv) results.push(positionals.length > 1 ? { file, ...result } : result);
       else process.stdout.write(renderReading(result, result.label ?? file) + "\n");
     } catch (e) {
       status = Math.max(status, reportError(e));
     }
   }
-  if (values.json && results.length > 0) {
+  if (values.json && !values.csv && results.length > 0) {
     process.stdout.write(JSON.stringify(results.length === 1 && positionals.length === 1 ? results[0] : results, null, 2) + "\n");
   }
   return status;

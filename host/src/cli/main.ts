@@ -6,6 +6,7 @@ import { runMeasure } from "./measure-command.ts";
 import { CALIBRATE_USAGE, runCalibrate } from "./calibrate-command.ts";
 import { runProfile, runScenarios } from "./info-commands.ts";
 import { runAdvise } from "./advise-command.ts";
+import { runPorts } from "./ports-command.ts";
 import { runSimDevice } from "./sim-device-command.ts";
 import { runSortCommand } from "./sort-command.ts";
 import { WATCH_USAGE } from "./measure-watch.ts";
@@ -24,6 +25,7 @@ Usage:
   henrytick advise (--sim [SCENARIO] | --port PATH)
                                        probe the part and rank every setting, with reasons
   henrytick scenarios                  list the simulated demo parts
+  henrytick ports                      list this computer's serial ports
   henrytick sort (--sim | --port PATH) --nominal 10u --tol 5%   sort parts against a tolerance
   henrytick wind (--sim | --port PATH) --target 22u      turns to add or remove to reach a target
   henrytick report CAPTURE... [--out FILE]  HTML report with plots for saved captures
@@ -53,7 +55,14 @@ Options for measure:
 Continuous reading (measure --watch):
 ${WATCH_USAGE}
 
-Options for analyze:  --json
+Options for analyze:  --json, --csv (measure takes --csv too: a header and one row)
+
+Examples:
+  henrytick measure --sim                              the default demo part, ranged automatically
+  henrytick measure --sim filter-coil-4m7 --json       one reading as JSON
+  henrytick measure --port /dev/ttyACM0 --csv >> log.csv   append a reading to a spreadsheet
+  henrytick measure --sim --save c.json && henrytick analyze c.json --json
+  henrytick advise --sim solenoid-valve-82m            every setting, ranked, with reasons
 
 Bench workflows (sort, wind and report each have --help with every option and examples):
   henrytick sort --sim --nominal 10u --tol 5%         sort a simulated tray of twelve parts
@@ -69,9 +78,16 @@ to do), 2 usage error, 70 internal error.
 ${SAFETY_TEXT}
 `;
 
+const SHARED_HELP = new Set(["measure", "analyze", "profile", "advise", "scenarios", "ports"]);
+
 export async function main(argv: string[]): Promise<number> {
   const [command, ...rest] = argv;
   try {
+    // Commands without a page of their own show the general one.
+    if (SHARED_HELP.has(command ?? "") && rest.some((a) => a === "--help" || a === "-h")) {
+      process.stdout.write(USAGE);
+      return 0;
+    }
     switch (command) {
       case "measure":
         return await runMeasure(rest);
@@ -88,6 +104,8 @@ export async function main(argv: string[]): Promise<number> {
       case "calibrate": return await runCalibrate(rest);
       case "scenarios":
         return runScenarios(rest);
+      case "ports":
+        return await runPorts(rest);
       case undefined:
       case "help":
       case "--help":

@@ -7,6 +7,7 @@ import { openTester } from "../open-tester.ts";
 import { intOption, numberOption, parse, testerTarget } from "./args.ts";
 import { CliUsageError } from "./errors.ts";
 import { renderReading } from "./render.ts";
+import { csvHeader, csvRow } from "./result-csv.ts";
 import { runWatch, WATCH_OPTIONS } from "./measure-watch.ts";
 import { CalibrationError, deviceCalibration, measureSelfCapacitance, singleTankBudget, timebaseKnowledge } from "../calibration/index.ts";
 import { renderBudget, renderSelfCapacitance } from "./render.ts";
@@ -41,7 +42,7 @@ export async function runMeasure(args: string[]): Promise<number> {
   if (charge_us !== undefined && drive === undefined) throw new CliUsageError("--charge-us needs --drive and --tank");
   const max_peak_v = numberOption(values["max-peak-v"], "max-peak-v", 0.1, 1000);
   const progress = (m: string) => {
-    if (!values.json) process.stderr.write(`   ${m}\n`);
+    if (!values.json && !values.csv) process.stderr.write(`   ${m}\n`);
   };
 
   const tester = await openTester(target);
@@ -71,6 +72,10 @@ export async function runMeasure(args: string[]): Promise<number> {
         if (!(e instanceof CalibrationError)) throw e;
         selfCapProblem = { code: e.code, message: e.message };
       }
+    }
+    if (values.csv) {
+      process.stdout.write(csvHeader() + csvRow(result));
+      return 0;
     }
     if (values.json) {
       // Extra keys only on request: a plain --json result stays what "analyze" prints for the capture
