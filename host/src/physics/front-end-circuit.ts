@@ -155,13 +155,6 @@ export function stateAtOpening(c: FrontEndCircuit, switch_on_ohm: number, diode_
   return { i_a: i, v_td_v: v, v_d_v: diode_v + switch_on_ohm * i_switch };
 }
 
-/** Final inductor current of the charge phase (the switch held closed indefinitely). */
-export function finalChargeCurrent(c: FrontEndCircuit, switch_on_ohm: number, diode_v: number): number {
-  const rc = c.r_ohm + switch_on_ohm;
-  const gp = Number.isFinite(c.rp_ohm) ? 1 / c.rp_ohm : 0;
-  return Math.max(c.supply_v - diode_v, 0) / (rc + c.rs_ohm + rc * c.rs_ohm * gp);
-}
-
 /**
  * exp(A t) of a real 2x2 matrix [[a, b], [c, d]], row-major, in closed form:
  * exp(A t) = e^(m t) [ (ch - m sh) I + sh A ], m = tr/2, with ch = cosh(k t), sh = sinh(k t)/k and

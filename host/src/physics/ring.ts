@@ -53,7 +53,3 @@ export function ringWaveform(part: RingPart, c_f: number, i0_a: number): DampedS
   if (!k.underdamped) throw new RangeError("part does not ring: alpha >= w0 (overdamped)");
   return { a0_v: i0_a / (c_f * k.wd_rad_s), alpha_per_s: k.alpha_per_s, wd_rad_s: k.wd_rad_s };
 }
-
-export function sineValue(s: DampedSine, t_s: number): number {
-  return s.a0_v * Math.exp(-s.alpha_per_s * t_s) * Math.sin(s.wd_rad_s * t_s);
-}
