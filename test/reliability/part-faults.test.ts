@@ -4,6 +4,7 @@
 
 import { describe, expect, it } from "vitest";
 import { captureFromDevice } from "../../host/src/measure/capture-build.ts";
+import { estimateFromReading } from "../../host/src/ranging/estimate.ts";
 import { analyzeCapture, measurePart, MeasureError } from "../../host/src/measure/measure-part.ts";
 import type { Reading } from "../../host/src/measure/measure-part.ts";
 import { referenceBoard } from "../../host/src/sim/board-model.ts";
@@ -126,7 +127,12 @@ describe("part faults get a diagnosis, not a bare number", () => {
   it("a saturating core: FREQUENCY_DRIFT naming saturation; driven hard, a coded refusal", async () => {
     const part = loadScenario("powder-toroid-47u").part;
     const rig = await openRig({ part, seed: 5 });
-    const r = await measurePart(rig.client, {});
+    // Automatic ranging notices the drift and steps down until the core no longer saturates.
+    const auto = await measurePart(rig.client, {});
+    expect(codes(auto)).not.toContain("FREQUENCY_DRIFT");
+    // On a fixed, stronger setting (50 mA through 100 ohm into 100 nF) the drift is measured and named.
+    const estimate = estimateFromReading(rig.client.profile, auto.settings, auto.analysis);
+    const r = await measurePart(rig.client, { drive: 1, tank: 2, estimate });
     expect(codes(r)).toContain("FREQUENCY_DRIFT");
     expect(r.analysis.warnings.find((w) => w.code === "FREQUENCY_DRIFT")!.message).toMatch(/saturation/);
     // Far into saturation (0.5 A through 10 ohm into 1 uF) the ring is no damped sine at all.

@@ -73,20 +73,24 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
   let lastAdvice: Advice[] = [];
   const tried = new Set<string>();
   const failures: string[] = [];
+  // Lowered when a reading shows the part (or tank) changing with amplitude: a saturating core
+  // or a class II capacitor reads truest at a gentler ring.
+  let gentleLimit_v = limits.max_peak_v;
   for (let step = 0; step < MAX_STEPS; step++) {
-    const stepLimits = est.fitted ? limits : { ...limits, max_peak_v: limits.max_peak_v * ROUGH_MARGIN };
+    const base = { ...limits, max_peak_v: gentleLimit_v };
+    const stepLimits = est.fitted ? base : { ...base, max_peak_v: base.max_peak_v * ROUGH_MARGIN };
     lastAdvice = adviseSettings(profile, est, stepLimits, tanks);
     const next = lastAdvice.find((a) => a.refused === "" && !tried.has(key(a)));
     if (!next) break;
     // Precision target: stop once a reading is as good as the best setting is expected to be.
-    if (best && best.analysis.edges_used >= MIN_EDGES_AUTO && relU(best) <= 1.1 * Math.min(...lastAdvice.filter((a) => a.refused === "").map((a) => a.l_rel_u))) break;
+    if (best && clean(best) && best.analysis.edges_used >= MIN_EDGES_AUTO && relU(best) <= 1.1 * Math.min(...lastAdvice.filter((a) => a.refused === "").map((a) => a.l_rel_u))) break;
     tried.add(key(next));
     progress(`step ${step + 1}: ${next.reason}`);
     let reading: Reading;
     try {
       reading = await readOnce(client, settingsFor(client, next), opts, progress);
     } catch (e) {
-      if (!(e instanceof MeasureError) || !["TOO_FEW_EDGES", "NO_RING"].includes(e.code)) throw e;
+      if (!(e instanceof MeasureError) || !["TOO_FEW_EDGES", "NO_RING", "EMPTY_CAPTURE"].includes(e.code)) throw e;
       failures.push(`${next.reason} It gave no usable ring (${e.code}).`);
       continue;
     }
@@ -97,6 +101,10 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
     }
     est = refineEstimate(est, estimateFromReading(profile, next, reading.analysis));
     if (!best || better(reading, best)) best = { ...reading, prediction: next, advice: lastAdvice };
+    if (!clean(reading)) {
+      gentleLimit_v = Math.min(gentleLimit_v, 0.5 * reading.analysis.amplitude_v);
+      progress(`the ring changes with its amplitude (${reading.analysis.warnings.map((w) => w.code).join(", ")}); trying a gentler setting`);
+    }
   }
   if (!best) {
     const why = lastAdvice.slice(0, 3).map((a) => a.reason).join(" ");
@@ -111,11 +119,22 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
   return best;
 }
 
-/** A reading with enough edges beats one without; then the smaller uncertainty of L wins. */
+/** Warnings that say the ring depends on its amplitude: a gentler setting reads truer. */
+const AMPLITUDE_DEPENDENT = new Set(["FREQUENCY_DRIFT", "SUSPECTED_CLIPPING"]);
+
+function clean(r: Reading): boolean {
+  return !r.analysis.warnings.some((w) => AMPLITUDE_DEPENDENT.has(w.code));
+}
+
+/**
+ * A reading with enough edges beats one without; then one whose ring does not change with its
+ * amplitude; then the smaller uncertainty of L wins.
+ */
 function better(a: Reading, b: Reading): boolean {
   const ea = a.analysis.edges_used >= MIN_EDGES_AUTO;
   const eb = b.analysis.edges_used >= MIN_EDGES_AUTO;
   if (ea !== eb) return ea;
+  if (clean(a) !== clean(b)) return clean(a);
   return relU(a) < relU(b);
 }
 

@@ -8,6 +8,7 @@ import { join } from "node:path";
 import { inflateSync } from "node:zlib";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { measurePart } from "../measure/measure-part.ts";
+import { estimateFromReading } from "../ranging/estimate.ts";
 import { openTester } from "../open-tester.ts";
 import type { CaptureV1 } from "../capture/capture-file.ts";
 import { buildReport } from "./write-report.ts";
@@ -19,10 +20,14 @@ const dir = mkdtempSync(join(tmpdir(), "henrytick-report-"));
 let html = "";
 let file = "";
 
-async function capture(scenario: string): Promise<CaptureV1> {
+/** An automatically ranged capture; `strong` then re-measures on 100 Ω with 100 nF, a ring of a few volts. */
+async function capture(scenario: string, strong = false): Promise<CaptureV1> {
   const t = await openTester({ scenario });
   try {
-    return (await measurePart(t.client)).capture;
+    const first = await measurePart(t.client);
+    if (!strong) return first.capture;
+    const estimate = estimateFromReading(t.client.profile, first.settings, first.analysis);
+    return (await measurePart(t.client, { drive: 1, tank: 2, estimate })).capture;
   } finally {
     await t.close();
   }
@@ -31,7 +36,8 @@ async function capture(scenario: string): Promise<CaptureV1> {
 beforeAll(async () => {
   const caps = [
     { source: "choke.json", capture: await capture("drawer-choke-330u") },
-    { source: "x7r.json", capture: await capture("x7r-tank-mixup") },
+    // Automatic ranging steps down to a gentle ring on a class II tank; a stronger one shows its drift.
+    { source: "x7r.json", capture: await capture("x7r-tank-mixup", true) },
   ];
   html = buildReport(caps, "2026-01-01T00:00:00Z").html;
   file = join(dir, "report.html");
