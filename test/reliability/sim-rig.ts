@@ -12,7 +12,7 @@ import { SimTester } from "../../host/src/sim/sim-tester.ts";
 import { FaultTransport } from "../../host/src/transport/fault-transport.ts";
 import type { FaultOptions } from "../../host/src/transport/fault-transport.ts";
 import type { Transport, TransportError } from "../../host/src/transport/transport.ts";
-import { LineSplitter, TransportError as TError } from "../../host/src/transport/transport.ts";
+import { LineSplitter, TransportBase, TransportError as TError } from "../../host/src/transport/transport.ts";
 
 /** A low-Q test coil: about 46 edges on SETTING, quick to simulate and to fit. */
 export const QUICK_PART: PartModel = { inductance_h: 1e-3, series_ohm: 16, self_capacitance_f: 3e-12 };
@@ -28,16 +28,15 @@ export const FAST_CLIENT: ClientOptions = { reply_timeout_ms: 300, resend_attemp
  * does not follow the host's clock: `idle_s` of virtual time passes before each command (rests
  * run down), so the edges do not depend on how fast the machine is.
  */
-export class ResettableSimLink implements Transport {
+export class ResettableSimLink extends TransportBase implements Transport {
   readonly description = "simulated tester (resettable)";
   sim: SimTester;
   generation = 0;
-  private lineHandler: (line: string) => void = () => {};
-  private closeHandler: (error: TransportError | null) => void = () => {};
   private splitter = new LineSplitter((l) => this.lineHandler(l));
   private closed = false;
 
   constructor(private readonly make: (generation: number) => SimTester, private readonly idle_s = 1) {
+    super();
     this.sim = this.attach(make(0));
   }
 
@@ -69,14 +68,6 @@ export class ResettableSimLink implements Transport {
       sim.advance(this.idle_s);
       sim.input(copy);
     });
-  }
-
-  onLine(handler: (line: string) => void): void {
-    this.lineHandler = handler;
-  }
-
-  onClose(handler: (error: TransportError | null) => void): void {
-    this.closeHandler = handler;
   }
 
   async close(): Promise<void> {

@@ -9,7 +9,7 @@
 
 import { Random } from "../sim/random.ts";
 import type { Transport } from "./transport.ts";
-import { TransportError } from "./transport.ts";
+import { TransportBase, TransportError } from "./transport.ts";
 
 export type RxFault = "drop_byte" | "flip_bit" | "duplicate_line" | "reorder_lines" | "stall" | "reset";
 export type TxFault = "tx_drop_byte" | "tx_flip_bit";
@@ -34,7 +34,7 @@ export interface FaultOptions {
 const FAULT_KINDS: FaultKind[] = ["drop_byte", "flip_bit", "duplicate_line", "reorder_lines", "stall", "reset", "tx_drop_byte", "tx_flip_bit", "vanish", "garbage_at_connect"];
 const RX_BYTE_FAULTS: RxFault[] = ["drop_byte", "flip_bit"];
 
-export class FaultTransport implements Transport {
+export class FaultTransport extends TransportBase implements Transport {
   readonly description: string;
   /** Faults actually applied, by kind. */
   readonly injected = Object.fromEntries(FAULT_KINDS.map((k) => [k, 0])) as Record<FaultKind, number>;
@@ -49,8 +49,6 @@ export class FaultTransport implements Transport {
   private armedByte: number | undefined;
   private armedBit: number | undefined;
   private writes = 0;
-  private lineHandler: (line: string) => void = () => {};
-  private closeHandler: (error: TransportError | null) => void = () => {};
   private rxPending = "";
   private held: string | null = null;
   private queue: { at_ms: number; line: string }[] = [];
@@ -63,6 +61,7 @@ export class FaultTransport implements Transport {
   private rateApplies = true;
 
   constructor(private readonly inner: Transport, private readonly opts: FaultOptions) {
+    super();
     this.description = `${inner.description} (fault injection, seed ${opts.seed})`;
     this.rng = new Random(opts.seed);
     this.rates = opts.rates ?? {};
@@ -109,14 +108,6 @@ export class FaultTransport implements Transport {
     }
     if (this.take("tx_flip_bit", true) && bytes.length > 0) bytes[this.bytePosition(bytes.length)] ^= 1 << this.bit();
     await this.inner.write(bytes);
-  }
-
-  onLine(handler: (line: string) => void): void {
-    this.lineHandler = handler;
-  }
-
-  onClose(handler: (error: TransportError | null) => void): void {
-    this.closeHandler = handler;
   }
 
   async close(): Promise<void> {

@@ -5,7 +5,7 @@ import { autoDetect } from "@serialport/bindings-cpp";
 import { ReadlineParser } from "@serialport/parser-readline";
 import { SerialPortStream } from "@serialport/stream";
 import type { Transport } from "./transport.ts";
-import { TransportError } from "./transport.ts";
+import { TransportBase, TransportError } from "./transport.ts";
 
 export interface SerialOptions {
   path: string;
@@ -13,14 +13,13 @@ export interface SerialOptions {
   baudRate?: number;
 }
 
-export class SerialTransport implements Transport {
+export class SerialTransport extends TransportBase implements Transport {
   readonly description: string;
   private port: SerialPortStream;
-  private lineHandler: (line: string) => void = () => {};
-  private closeHandler: (error: TransportError | null) => void = () => {};
   private closing = false;
 
   private constructor(port: SerialPortStream, path: string) {
+    super();
     this.port = port;
     this.description = `serial ${path}`;
     const parser = port.pipe(new ReadlineParser({ delimiter: "\n", encoding: "latin1" }));
@@ -63,14 +62,6 @@ export class SerialTransport implements Transport {
         else resolve();
       });
     });
-  }
-
-  onLine(handler: (line: string) => void): void {
-    this.lineHandler = handler;
-  }
-
-  onClose(handler: (error: TransportError | null) => void): void {
-    this.closeHandler = handler;
   }
 
   close(): Promise<void> {

@@ -3,17 +3,16 @@
 
 import { SimTester } from "../sim/sim-tester.ts";
 import type { Transport, TransportError } from "./transport.ts";
-import { LineSplitter, TransportError as TError } from "./transport.ts";
+import { LineSplitter, TransportBase, TransportError as TError } from "./transport.ts";
 
-export class SimTransport implements Transport {
+export class SimTransport extends TransportBase implements Transport {
   readonly description = "simulated tester";
-  private lineHandler: (line: string) => void = () => {};
-  private closeHandler: (error: TransportError | null) => void = () => {};
   private readonly splitter: LineSplitter;
   private closed = false;
   private lastInput = performance.now();
 
   constructor(readonly tester: SimTester) {
+    super();
     this.splitter = new LineSplitter((line) => this.lineHandler(line));
     tester.onOutput((bytes) => {
       setImmediate(() => {
@@ -40,14 +39,6 @@ export class SimTransport implements Transport {
         this.closeHandler(new TError(`simulated tester fault: ${(e as Error).message}`, true));
       }
     });
-  }
-
-  onLine(handler: (line: string) => void): void {
-    this.lineHandler = handler;
-  }
-
-  onClose(handler: (error: TransportError | null) => void): void {
-    this.closeHandler = handler;
   }
 
   async close(): Promise<void> {

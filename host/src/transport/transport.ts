@@ -14,6 +14,20 @@ export interface Transport {
   close(): Promise<void>;
 }
 
+/** The receiving side every transport shares: where complete lines and the close are delivered. */
+export abstract class TransportBase {
+  protected lineHandler: (line: string) => void = () => {};
+  protected closeHandler: (error: TransportError | null) => void = () => {};
+
+  onLine(handler: (line: string) => void): void {
+    this.lineHandler = handler;
+  }
+
+  onClose(handler: (error: TransportError | null) => void): void {
+    this.closeHandler = handler;
+  }
+}
+
 /** A failure of the link itself. `disconnected` is true when the device went away. */
 export class TransportError extends Error {
   readonly disconnected: boolean;
