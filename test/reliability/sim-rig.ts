@@ -11,7 +11,7 @@ import type { PartModel } from "../../host/src/sim/scenario.ts";
 import { SimTester } from "../../host/src/sim/sim-tester.ts";
 import { FaultTransport } from "../../host/src/transport/fault-transport.ts";
 import type { FaultOptions } from "../../host/src/transport/fault-transport.ts";
-import type { Transport, TransportError } from "../../host/src/transport/transport.ts";
+import type { Transport } from "../../host/src/transport/transport.ts";
 import { LineSplitter, TransportBase, TransportError as TError } from "../../host/src/transport/transport.ts";
 
 /** A low-Q test coil: about 46 edges on SETTING, quick to simulate and to fit. */

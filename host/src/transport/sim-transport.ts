@@ -2,7 +2,7 @@
 // next turn of the event loop), as they would be from a real port.
 
 import { SimTester } from "../sim/sim-tester.ts";
-import type { Transport, TransportError } from "./transport.ts";
+import type { Transport } from "./transport.ts";
 import { LineSplitter, TransportBase, TransportError as TError } from "./transport.ts";
 
 export class SimTransport extends TransportBase implements Transport {
