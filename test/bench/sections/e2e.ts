@@ -3,7 +3,7 @@
 // probe) and for a fresh part each time (safe probe and automatic ranging).
 
 import { measurePart, openTester } from "../../../host/src/index.ts";
-import { estimateFromReading } from "../../../host/src/ranging/estimate.ts";
+import { knownPartReadingsPerS } from "./known-part.ts";
 import type { BenchSection } from "./types.ts";
 
 export const e2eSection: BenchSection = {
@@ -11,20 +11,15 @@ export const e2eSection: BenchSection = {
   async run(progress) {
     const t = await openTester({ scenario: "drawer-choke-330u" });
     try {
-      const first = await measurePart(t.client);
-      const estimate = estimateFromReading(t.client.profile, first.settings, first.analysis);
-      const fixed = { drive: first.settings.drive, tank: first.settings.tank, charge_us: first.settings.charge_us, estimate };
       const n = 20;
-      const t0 = performance.now();
-      for (let i = 0; i < n; i++) await measurePart(t.client, fixed);
-      const s = (performance.now() - t0) / 1000;
-      progress(`${n} fixed-setting readings in ${s.toFixed(2)} s`);
+      const known = await knownPartReadingsPerS(t.client, n);
+      progress(`${n} fixed-setting readings in ${known.seconds.toFixed(2)} s`);
       const t1 = performance.now();
       const m = 5;
       for (let i = 0; i < m; i++) await measurePart(t.client);
       const s2 = (performance.now() - t1) / 1000;
       return {
-        figures: { "e2e.readings_per_s": n / s, "e2e.ranged_readings_per_s": m / s2 },
+        figures: { "e2e.readings_per_s": known.per_s, "e2e.ranged_readings_per_s": m / s2 },
         notes: {
           "e2e.readings_per_s": "in-process, fixed setting with the part known (no probe); paced by the firmware's rest between pulses (20 ms, or 10x the charge)",
           "e2e.ranged_readings_per_s": "in-process, each reading with its own safe probe and automatic ranging",

@@ -6,8 +6,8 @@
 import { spawn, spawnSync } from "node:child_process";
 import { existsSync } from "node:fs";
 import { fileURLToPath } from "node:url";
-import { measurePart, openTester } from "../../../host/src/index.ts";
-import { estimateFromReading } from "../../../host/src/ranging/estimate.ts";
+import { openTester } from "../../../host/src/index.ts";
+import { knownPartReadingsPerS } from "./known-part.ts";
 import type { BenchFigures, BenchSection } from "./types.ts";
 
 const KEY = "e2e.readings_per_s_pty";
@@ -52,22 +52,16 @@ export const ptySection: BenchSection = {
     try {
       const t = await openTester({ port: device.path });
       try {
-        // The part is known after a first, automatically ranged reading (which also pays for the
-        // child's warm-up): then the same fixed setting, without a probe, as in-process.
-        const first = await measurePart(t.client);
-        const estimate = estimateFromReading(t.client.profile, first.settings, first.analysis);
-        const setting = { drive: first.settings.drive, tank: first.settings.tank, charge_us: first.settings.charge_us, estimate };
+        // As in-process: the first, ranged reading also pays for the child's warm-up.
         const n = 20;
-        const t0 = performance.now();
-        for (let i = 0; i < n; i++) await measurePart(t.client, setting);
-        const s = (performance.now() - t0) / 1000;
-        progress(`${n} fixed-setting readings over ${device.path} in ${s.toFixed(2)} s`);
+        const known = await knownPartReadingsPerS(t.client, n);
+        progress(`${n} fixed-setting readings over ${device.path} in ${known.seconds.toFixed(2)} s`);
         const m = 50;
         const t1 = performance.now();
         for (let i = 0; i < m; i++) await t.client.identify();
         const roundTrip_ms = (performance.now() - t1) / m;
         return {
-          figures: { [KEY]: n / s, "pty.command_round_trip_ms": roundTrip_ms },
+          figures: { [KEY]: known.per_s, "pty.command_round_trip_ms": roundTrip_ms },
           notes: {
             [KEY]: "sim-device child process via socat pseudo-terminal, fixed setting with the part known (no probe); paced by the firmware's rest between pulses",
             "pty.command_round_trip_ms": "ID command to OK over the pseudo-terminal (host, serial stack, socat, simulated firmware)",
