@@ -7,7 +7,7 @@
 import { assignHalfCycles } from "./cycle-bookkeeping.ts";
 import { diagnose } from "./diagnostics.ts";
 import { FitWorkspace, fitEdgeModel } from "./edge-fit.ts";
-import { chooseResidualForms, evaluateEdges, makeEdgeSet, P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
+import { chooseResidualForms, evaluateEdges, formChanges, makeEdgeSet, P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
 import { bestStart, fitLimits, initialVariance, subsetMask } from "./fit-start.ts";
 import { initialCandidates } from "./initial-guess.ts";
 import { reassignHalfCycles } from "./model-bookkeeping.ts";
@@ -122,12 +122,17 @@ export function fitRing(input: RingInput): FitState {
   let cached = false;
   let pIndexed: Float64Array | null = null;
   const subset = n > 400 ? subsetMask(e, 200, 50) : null;
+  let reforms = 0;
+  let staleForms = false;
   for (let round = 0; ; round++) {
     // Residual forms follow the model while it is still moving (rounds 0 and 1), then stay, so
-    // that the weights of a round and its residuals use the same scales.
-    if (round <= 1) {
+    // that the weights of a round and its residuals use the same scales; unless the model has
+    // since moved an edge across the grazing limit (a phase-form edge the envelope no longer
+    // clearly reaches), which is chosen again, a few times at most.
+    if (round <= 1 || staleForms) {
       chooseResidualForms(p, e, c.vh_v, c.vl_v);
       cached = false;
+      if (round > 1) reforms++;
     }
     setWeights(e, outlier, robust, variance, used, w);
     // Round 0 weights with a rough noise model and only has to bring the start near the
@@ -177,7 +182,8 @@ export function fitRing(input: RingInput): FitState {
     const rw = reweight(ws.r, variance, assigned, used, outlier, robust, reasons, round > 0, z, zUsed, zWork);
     zScale = rw.zScale;
     const flipped = rw.flipped;
-    if (round >= 1 && moved === 0 && flipped === 0 && !noiseMoved) break;
+    staleForms = round >= 1 && reforms < 3 && formChanges(p, e, c.vh_v, c.vl_v) > 0;
+    if (round >= 1 && moved === 0 && flipped === 0 && !noiseMoved && !staleForms) break;
   }
   const cov = invertSymmetric(4, fit.normal);
   if (!cov || !noise) throw noRing("the fit has no covariance");

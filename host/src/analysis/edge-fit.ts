@@ -29,6 +29,12 @@ export interface FitLimits {
    */
   t_next_s?: number;
   ln_v_next?: number;
+  /**
+   * The alternative when the last edge may have been lost: a period after the last edge the
+   * envelope is below the last edge's own threshold. The limit holds when either does.
+   */
+  t_next2_s?: number;
+  ln_v_next2?: number;
 }
 
 export interface EdgeFitResult {
@@ -215,8 +221,15 @@ function penalty(p: Float64Array, limits: FitLimits | null, hp: Float64Array, gp
     gp[2] += 100 * r;
   }
   if (limits.t_next_s !== undefined && limits.ln_v_next !== undefined) {
-    const tn = limits.t_next_s;
-    const overNext = p[P_LNA] - p[P_ALPHA] * tn - limits.ln_v_next - 0.05;
+    let tn = limits.t_next_s;
+    let overNext = p[P_LNA] - p[P_ALPHA] * tn - limits.ln_v_next - 0.05;
+    if (limits.t_next2_s !== undefined && limits.ln_v_next2 !== undefined) {
+      const over2 = p[P_LNA] - p[P_ALPHA] * limits.t_next2_s - limits.ln_v_next2 - 0.05;
+      if (over2 < overNext) {
+        overNext = over2;
+        tn = limits.t_next2_s;
+      }
+    }
     if (overNext > 0) {
       const r = 100 * overNext;
       chi2 += r * r;

@@ -56,8 +56,15 @@ export interface EdgeOutputs {
   curvature?: Float64Array;
 }
 
-/** Clamp for u in the phase form while a trial step leaves the envelope under a threshold. */
-const U_MAX = 1 - 1e-12;
+/**
+ * Past |u| = U_CONT (a trial step, or a model that moved after the forms were chosen, puts the
+ * envelope at or under an edge's threshold) the phase form continues asin linearly, with its
+ * own slope: residual and Jacobian stay consistent, so the fit can walk back instead of
+ * stalling on a clamped residual whose gradient is meaningless.
+ */
+const U_CONT = 0.9999;
+const AS_CONT = Math.asin(U_CONT);
+const INV_SQ_CONT = 1 / Math.sqrt(1 - U_CONT * U_CONT);
 
 /**
  * Evaluates the model at every edge with a finite m and (if `mask` is given) mask[k] > 0.
@@ -93,12 +100,16 @@ export function evaluateEdges(
     const level = rise ? vh_v : vl_v;
     const vt = var_t_s2 !== null ? var_t_s2[k] : 0;
     if (form[k] === 1) {
-      let u = level * invA0 * Math.exp(alpha * t);
-      if (u > U_MAX) u = U_MAX;
-      else if (u < -U_MAX) u = -U_MAX;
-      const cos2 = 1 - u * u;
-      const invSq = 1 / Math.sqrt(cos2);
-      const as = Math.asin(u);
+      const u = level * invA0 * Math.exp(alpha * t);
+      let invSq: number;
+      let as: number;
+      if (u <= U_CONT && u >= -U_CONT) {
+        invSq = 1 / Math.sqrt(1 - u * u);
+        as = Math.asin(u);
+      } else {
+        invSq = INV_SQ_CONT;
+        as = u > 0 ? AS_CONT + (u - U_CONT) * INV_SQ_CONT : -AS_CONT + (u + U_CONT) * INV_SQ_CONT;
+      }
       const c = (rise ? u : -u) * invSq;
       const gtt = -alpha2 * c * invSq * invSq;
       const sc = scale[k];
@@ -143,6 +154,16 @@ export function evaluateEdges(
  * (the level form is weakly sensitive to timing there) and so hide their timing.
  */
 export function chooseResidualForms(p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number): void {
+  formsAt(p, e, vh_v, vl_v, true);
+}
+
+/** How many edges would change residual form if the forms were chosen again at p. */
+export function formChanges(p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number): number {
+  return formsAt(p, e, vh_v, vl_v, false);
+}
+
+function formsAt(p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number, apply: boolean): number {
+  let changes = 0;
   const wd = p[P_WD];
   const a0 = Math.exp(p[P_LNA]);
   const alpha = p[P_ALPHA];
@@ -154,11 +175,14 @@ export function chooseResidualForms(p: ArrayLike<number>, e: EdgeSet, vh_v: numb
     const u = (rise ? vh_v : vl_v) / amp;
     const mayGraze = !(e.m[k] < lastM[e.rising[k]] - 4);
     const sq = Math.sqrt(Math.max(1 - u * u, 1e-6));
-    e.form[k] = 1;
+    let form = 1;
+    if (mayGraze && (!(Math.abs(u) < 0.98) || !(wd - (alpha * (rise ? 1 : -1) * u) / sq > 0.3 * wd))) form = 0;
+    if (e.m[k] === e.m[k] && form !== e.form[k]) changes++;
+    if (!apply) continue;
+    e.form[k] = form;
     e.scale_v[k] = amp * sq;
-    if (!mayGraze) continue;
-    if (!(Math.abs(u) < 0.98) || !(wd - (alpha * (rise ? 1 : -1) * u) / sq > 0.3 * wd)) e.form[k] = 0;
   }
+  return changes;
 }
 
 /**

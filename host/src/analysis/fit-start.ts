@@ -46,13 +46,19 @@ export function fitLimits(e: EdgeSet, c: CheckedInput, wd: number): FitLimits {
     t_last_s: tLast, ln_v_stop: Math.log(Math.max(c.vh_v, -c.vl_v)), e_max: 9, a_max: 12, alpha_min: wd / 2e6,
   };
   if (c.ring_ended && last >= 0) {
-    // The next edge would have the other level; it needs the ring beyond that level's
-    // threshold on the far side of zero (rising: VH > 0, falling: VL < 0), about half a period on.
-    const nextRising = e.rising[last] === 0;
-    const v = nextRising ? c.vh_v : -c.vl_v;
-    if (v > 0) {
+    // No edge follows the last one: the next edge, of the other level, would need the ring
+    // beyond that level's threshold on the far side of zero (rising: VH > 0, falling: VL < 0)
+    // about half a period on. The last edge itself may have been lost, though (capture dead
+    // time, a grazing crossing the comparator missed); then the edge after next, of the last
+    // edge's level a period on, is the one that did not happen. The limit is the looser of the
+    // two, so one lost edge never contradicts it.
+    const vOther = e.rising[last] === 1 ? -c.vl_v : c.vh_v;
+    const vSame = e.rising[last] === 1 ? c.vh_v : -c.vl_v;
+    if (vOther > 0 && vSame > 0) {
       limits.t_next_s = tLast + Math.PI / wd;
-      limits.ln_v_next = Math.log(v);
+      limits.ln_v_next = Math.log(vOther);
+      limits.t_next2_s = tLast + (2 * Math.PI) / wd;
+      limits.ln_v_next2 = Math.log(vSame);
     }
   }
   return limits;

@@ -193,3 +193,49 @@ describe("the multimodal (A0, alpha) likelihood (measurement notes §2)", () => 
   });
 });
 
+
+describe("the end of the ring", () => {
+  /** A slow high-Q winding (100 mH on 1 nF, Q 250), its whole ring captured (it ends on quiet). */
+  function winding(seed: number, th: [number, number]) {
+    const l_h = 100e-3, c_f = 1e-9, q = 250, tick_hz = 64e6;
+    const w0 = 1 / Math.sqrt(l_h * c_f);
+    const part = { l_h, rs_ohm: (w0 * l_h) / q };
+    const k = ringConstants(part, c_f);
+    const ring = ringWaveform(part, c_f, 1 * c_f * k.wd_rad_s);
+    const comp = { rising_v: th[0], falling_v: th[1], jitter_s: 0.5 / tick_hz, noise_v: 0.3e-3, delay_s: 40e-9 };
+    const edges = captureEdges(ring, comp, { tick_hz, ppm: 0, dead_time_s: 0 }, new Random(seed), 5000, 10);
+    const inp = (e: Edges): RingInput => ({
+      tick_hz, ticks: e.ticks, levels: e.levels, tank_c_f: c_f, thresholds_v: th, tank_c_u_f: 0, timebase_u_rel: 0,
+      ring_ended: true,
+    });
+    return { edges, inp, l_h };
+  }
+
+  it("lets a ring that ended lose its last edge without pulling L", () => {
+    // "Ended on quiet" says no edge followed the last one; if the last edge itself was lost,
+    // that must not contradict the crossing that did happen. Offset thresholds: before the
+    // looser limit the rms L error with the last edge removed was several times the clean one.
+    let clean = 0, lost = 0;
+    const seeds = 40;
+    for (let seed = 1; seed <= seeds; seed++) {
+      const w = winding(seed, [0.035, -0.005]);
+      const full = analyzeRing(w.inp(w.edges));
+      const cut = analyzeRing(w.inp({ ticks: w.edges.ticks.slice(0, -1), levels: w.edges.levels.slice(0, -1) }));
+      clean += (full.inductance_h / w.l_h - 1) ** 2;
+      lost += (cut.inductance_h / w.l_h - 1) ** 2;
+    }
+    expect(Math.sqrt(lost / clean)).toBeLessThan(1.3);
+  });
+
+  it("follows a fit whose last edges slip past the grazing limit to the true minimum", () => {
+    // Symmetric thresholds: amplitude and decay show only where the ring grazes the thresholds.
+    // When the model moved a phase-form edge's envelope under its threshold, the fit used to
+    // stop on a clamped residual 5-56 bound sd from the truth (6 of 200 bench seeds); every
+    // seed here must now land within 3 of its own expanded uncertainties of the true L.
+    for (let seed = 1; seed <= 200; seed++) {
+      const w = winding(seed, [0.02, -0.02]);
+      const a = analyzeRing(w.inp(w.edges));
+      expect(Math.abs(a.inductance_h - w.l_h)).toBeLessThan(3 * a.inductance_u_h);
+    }
+  });
+});
