@@ -13,6 +13,7 @@ import { estimateFromProbe, estimateFromReading, refineEstimate } from "../rangi
 import type { PlanLimits } from "../ranging/predict.ts";
 import type { MeasureOptions, Reading } from "./measure-part.ts";
 import { MeasureError, describeSetting, readOnce } from "./read-once.ts";
+import { explainFailure, shortedPart, SHORT_MAX_L_H } from "./part-fault.ts";
 
 const PROBE_CHARGE_US = 5000;
 const PROBE_QUIET_US = 20000;
@@ -73,6 +74,7 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
   let lastAdvice: Advice[] = [];
   const tried = new Set<string>();
   const failures: string[] = [];
+  let chatter: MeasureError | null = null;
   // Lowered when a reading shows the part (or tank) changing with amplitude: a saturating core
   // or a class II capacitor reads truest at a gentler ring.
   let gentleLimit_v = limits.max_peak_v;
@@ -91,6 +93,8 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
       reading = await readOnce(client, settingsFor(client, next), opts, progress);
     } catch (e) {
       if (!(e instanceof MeasureError) || !["TOO_FEW_EDGES", "NO_RING", "EMPTY_CAPTURE"].includes(e.code)) throw e;
+      const why = explainFailure(e);
+      if (why !== e) chatter ??= why;
       failures.push(`${next.reason} It gave no usable ring (${e.code}).`);
       continue;
     }
@@ -108,6 +112,10 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
   }
   if (!best) {
     const why = lastAdvice.slice(0, 3).map((a) => a.reason).join(" ");
+    // A fixture that broke every ring up is the diagnosis; a probe ring far below the range with
+    // nothing slow enough to capture is a short across the clips.
+    if (chatter) throw chatter;
+    if (est.l_h < SHORT_MAX_L_H && failures.length === 0) throw shortedPart(est.l_h, lastAdvice[0]?.reason.replace(/\.$/, "") ?? "every setting refused");
     throw new MeasureError("NO_SETTING", `no setting gives a usable ring within the limits. ${failures.join(" ")} ${why}`.trim());
   }
   if (best.analysis.edges_used < MIN_EDGES_AUTO) {

@@ -13,8 +13,12 @@ import { resolvePeakLimit } from "../ranging/safety.ts";
 import { autoRange, probePart } from "./auto-range.ts";
 import type { AppliedCalibration } from "./capture-build.ts";
 import { MeasureError, describeSetting, readOnce } from "./read-once.ts";
+import { explainFailure, finishReading, shortedPart, SHORT_MAX_L_H } from "./part-fault.ts";
+import type { PartFault } from "./part-fault.ts";
 
 export { MeasureError, analyzeCapture, describeSetting, readOnce } from "./read-once.ts";
+export { PartFaultError, judgeCapture, judgeReading } from "./part-fault.ts";
+export type { PartFault, PartFaultCode } from "./part-fault.ts";
 
 export interface MeasureOptions {
   /** Fixed drive-resistor index; with `tank`, skips ranging (the setting is still safety-checked). */
@@ -31,6 +35,12 @@ export interface MeasureOptions {
   /** Applied to every capture of this reading (see calibration/); nominal values without it. */
   calibration?: AppliedCalibration;
   onProgress?: (message: string) => void;
+  /**
+   * Return a reading even when it shows a part fault (a clipped first cycle, a saturating core,
+   * a chattering fixture, a ring that outlasts the window), marked `suspect`, instead of refusing
+   * it with a PartFaultError. For experts who know what the number means. Default false.
+   */
+  keep_suspect?: boolean;
 }
 
 export interface Reading {
@@ -40,13 +50,24 @@ export interface Reading {
   /** The prediction for the setting used, and the whole ranked advice it came from. */
   prediction?: Advice;
   advice?: Advice[];
+  /** Present only with `keep_suspect`: the part fault this reading shows; not a verified result. */
+  suspect?: PartFault;
 }
 
 
 const FIXED_QUIET_US = 20000;
 const FIXED_TIMEOUT_MS = 1000;
 
+/**
+ * One reading of the part on the clips. The reading it settles on is judged for part faults
+ * (part-fault.ts): a fault is thrown as a PartFaultError (a MeasureError) with the diagnosis and
+ * advice, unless `keep_suspect` asks for the reading marked suspect.
+ */
 export async function measurePart(client: DeviceClient, opts: MeasureOptions = {}): Promise<Reading> {
+  return finishReading(await settle(client, opts), client.profile, opts);
+}
+
+async function settle(client: DeviceClient, opts: MeasureOptions): Promise<Reading> {
   const progress = opts.onProgress ?? (() => {});
   const profile = client.profile;
   const peak = resolvePeakLimit(opts.max_peak_v, profile.clamp_v, opts.hazardous_ok ?? false);
@@ -69,7 +90,15 @@ export async function measurePart(client: DeviceClient, opts: MeasureOptions = {
     throw new MeasureError("CHARGE_LIMIT", `the charge time ${charge} µs exceeds the drive resistor's ${profile.drives[drive].max_charge_us} µs interlock`);
   }
   const settings = { drive, tank, charge_us: charge, edge_limit: profile.buffer_edges, timeout_ms: FIXED_TIMEOUT_MS, quiet_us: FIXED_QUIET_US };
-  return readOnce(client, settings, opts, progress);
+  try {
+    return await readOnce(client, settings, opts, progress);
+  } catch (e) {
+    if (!(e instanceof MeasureError)) throw e;
+    const why = explainFailure(e);
+    if (why !== e) throw why;
+    if (!est.fitted && est.l_h < SHORT_MAX_L_H && ["TOO_FEW_EDGES", "NO_RING", "EMPTY_CAPTURE"].includes(e.code)) throw shortedPart(est.l_h, e.code);
+    throw e;
+  }
 }
 
 

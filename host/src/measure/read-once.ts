@@ -9,6 +9,8 @@ import { captureFromDevice, ringInputFromCapture } from "./capture-build.ts";
 import type { MeasureOptions, Reading } from "./measure-part.ts";
 
 export class MeasureError extends Error {
+  /** The capture that could not be analysed, when the error came from its analysis. */
+  capture?: CaptureV1;
   constructor(readonly code: string, message: string) {
     super(message);
     this.name = "MeasureError";
@@ -20,7 +22,12 @@ export async function readOnce(client: DeviceClient, settings: MeasureSettings, 
   progress(`measuring: ${describeSetting(client, settings)}`);
   const raw = await client.measure(settings);
   const capture = captureFromDevice(raw, client.identity, client.profile, client.transport.description, opts.label, opts.calibration);
-  return { capture, analysis: analyzeCapture(capture), settings };
+  try {
+    return { capture, analysis: analyzeCapture(capture), settings };
+  } catch (e) {
+    if (e instanceof MeasureError) e.capture = capture;
+    throw e;
+  }
 }
 
 /** Analysis of a capture, with ring-level failures turned into a user-facing MeasureError. */

@@ -1,0 +1,190 @@
+// Part faults: conditions of the part or fixture under which a ring still fits but its number
+// cannot be trusted as the part's inductance. The final reading of `measurePart` is judged here;
+// a fault is refused with its own code, a diagnosis and the next step, and the would-be reading
+// travels with the error (never as a result). `keep_suspect` returns it instead, marked.
+//
+// The analysis's warnings (analysis/diagnostics.ts) say that something is off; the judgement
+// adds what the measure layer knows (the tester's clamp, why the capture ended, the edges as
+// recorded) and a threshold on how far off, so that mild cases that still read correctly keep
+// their reading and their warning.
+
+import type { CaptureV1 } from "../capture/capture-file.ts";
+import type { DeviceProfile } from "../device/profile.ts";
+import { formatSi } from "../format/si.ts";
+import type { Reading } from "./measure-part.ts";
+import { MeasureError, analyzeCapture } from "./read-once.ts";
+
+export type PartFaultCode = "RING_OUTLASTS_WINDOW" | "FIRST_CYCLE_CLIPPED" | "FIXTURE_CHATTER" | "CORE_SATURATING" | "PART_SHORTED";
+
+/** A part fault found in a reading: a stable code and a message with the diagnosis and the next step. */
+export interface PartFault {
+  code: PartFaultCode;
+  message: string;
+}
+
+/**
+ * A refusal for a part fault. `suspect` is the reading the fault was found in (absent when no
+ * ring could be analysed at all): kept for inspection and logs, not a result.
+ */
+export class PartFaultError extends MeasureError {
+  constructor(code: PartFaultCode, message: string, readonly suspect?: Reading) {
+    super(code, message);
+    this.name = "PartFaultError";
+  }
+}
+
+/**
+ * Clipping: the front end's clamp limits the ring. A first cycle off the ring model is named
+ * clipping only when the fitted amplitude reaches this share of the clamp voltage; lower down
+ * the same warning means a switch transient leaking in, which the fit's rejection handles.
+ */
+export const CLIP_CLAMP_RATIO = 0.7;
+/**
+ * Saturation: the inductance swings by 2 |df/f| across one ring (L ∝ 1/f²). Refused above 0.1 %,
+ * about the expanded uncertainty of a calibrated tester (docs/calibration.md: ±0.061 % standard),
+ * so a value quoted to that accuracy is not an average over a changing part.
+ */
+export const SATURATION_SWING_REL = 1e-3;
+/** Ring still this many times the comparator threshold at the end of a timed-out window: outlasting it. */
+export const OUTLAST_THRESHOLD_RATIO = 3;
+/** A buffer-full capture outlasts its window only when the ring has not even halved across it. */
+export const OUTLAST_DECAY_RATIO = 0.5;
+/** Extra edge pairs in at least this share of half-cycles make a capture that will not fit chatter. */
+export const CHATTER_PAIR_RATIO = 0.1;
+/** An interval shorter than this share of the median edge interval is a glitch, not a half-cycle. */
+const GLITCH_INTERVAL_RATIO = 1 / 8;
+/** Below this the probe's estimate says short rather than a small part (the range starts at 1 µH). */
+export const SHORT_MAX_L_H = 0.5e-6;
+
+/**
+ * Glitch pairs in a capture: intervals between successive edges far shorter than a half-cycle
+ * (the median interval). A ring's edges alternate at its threshold crossings, never closer than a
+ * fraction of a half-period; a comparator toggling inside a half-cycle leaves short intervals.
+ */
+export function chatterOf(c: CaptureV1): { glitch_pairs: number; half_cycles: number } {
+  const iv: number[] = [];
+  for (let i = 1; i < c.edges.length; i++) iv.push(c.edges[i][0] - c.edges[i - 1][0]);
+  if (iv.length < 4) return { glitch_pairs: 0, half_cycles: iv.length };
+  const sorted = [...iv].sort((a, b) => a - b);
+  const median = sorted[sorted.length >> 1];
+  const short = iv.filter((d) => d < GLITCH_INTERVAL_RATIO * median).length;
+  // Each glitch pair adds one short interval and splits one half-cycle in three.
+  return { glitch_pairs: short, half_cycles: iv.length - 2 * short };
+}
+
+/** The ring's amplitude at the last recorded edge, and at its start, in units of the stopping threshold. */
+function ringAtEnd(r: Reading): { end_ratio: number; decay: number } {
+  const a = r.analysis;
+  const c = r.capture;
+  const vStop = Math.max(c.thresholds_v[0], -c.thresholds_v[1]);
+  const last = c.edges.length > 0 ? c.edges[c.edges.length - 1][0] / c.tick_hz : 0;
+  const aLast = a.amplitude_v * Math.exp(-a.alpha_per_s * last);
+  return { end_ratio: aLast / vStop, decay: aLast / a.amplitude_v };
+}
+
+const has = (r: Reading, code: string) => r.analysis.warnings.some((w) => w.code === code);
+const fixedAdvice = "drop --drive and --tank to let automatic ranging choose";
+
+/**
+ * Judges a reading for part faults; null when it can be given as a result. `profile` gives the
+ * clamp voltage and the tester's longest window.
+ */
+export function judgeReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v" | "max_timeout_ms">): PartFault | null {
+  const a = r.analysis;
+  const L = formatSi(a.inductance_h, "H", 3);
+  if (has(r, "SUSPECTED_CLIPPING") && a.amplitude_v >= CLIP_CLAMP_RATIO * profile.clamp_v) {
+    return {
+      code: "FIRST_CYCLE_CLIPPED",
+      message: `the first cycle was clipped: the ring started at about ${a.amplitude_v.toFixed(1)} V, at the ${profile.clamp_v} V clamp, and its first edges sit off the ring model, so the value (about ${L}) rests on a distorted ring. The part carries more current or has more inductance than the setting was chosen for: lower the drive current (a larger drive resistor, a shorter --charge-us) or ${fixedAdvice}, then measure again`,
+    };
+  }
+  if (has(r, "FREQUENCY_DRIFT") && a.drift && 2 * Math.abs(a.drift.df_rel) > SATURATION_SWING_REL) {
+    const ppm = a.drift.df_rel * 1e6;
+    const swing = 2 * Math.abs(a.drift.df_rel) * 100;
+    return {
+      code: "CORE_SATURATING",
+      message: `the inductance changes with the current: the ring frequency ${ppm < 0 ? "falls" : "rises"} by ${Math.abs(ppm).toFixed(0)} ppm as the ring decays, so L swings by ${swing.toFixed(2)} % within one ring (about ${L} on average) — the core is near saturation at ${a.amplitude_v.toFixed(2)} V of ring. Lower the drive current (a larger drive resistor, a smaller tank or a lower --max-peak-v) or ${fixedAdvice}; if parts with air cores drift the same way, the tester's tank capacitor is voltage dependent (it must be C0G/film)`,
+    };
+  }
+  if (has(r, "MANY_REJECTED")) {
+    const ch = chatterOf(r.capture);
+    const extra = ch.glitch_pairs > 0 ? ` (${ch.glitch_pairs} toggles inside ${ch.half_cycles} half-cycles)` : "";
+    return {
+      code: "FIXTURE_CHATTER",
+      message: `the fixture chatters: ${a.edges_rejected} of ${a.edges_used + a.edges_rejected} edges were not the ring's${extra}, the comparator toggling where the ring does not cross. Check the clips and the fixture's contacts (a loose clip, a bouncing contact, a worn socket), keep the leads short and twisted away from mains wiring, then measure again`,
+    };
+  }
+  const end = r.capture.meta?.end_reason;
+  if (has(r, "RING_TRUNCATED")) {
+    const { end_ratio, decay } = ringAtEnd(r);
+    const timedOut = end === "timeout" && end_ratio >= OUTLAST_THRESHOLD_RATIO;
+    const full = end === "full" && end_ratio >= OUTLAST_THRESHOLD_RATIO && decay >= OUTLAST_DECAY_RATIO;
+    if (timedOut || full) {
+      const window = full ? `the ${r.capture.range?.edge_limit ?? "buffer's"}-edge buffer` : `the ${r.settings.timeout_ms} ms window`;
+      return {
+        code: "RING_OUTLASTS_WINDOW",
+        message: `the ring outlasts the capture: it was still ${end_ratio.toFixed(1)}x the threshold when ${window} ended, so the decay — and with it Q, ESR and the check that this is one clean ring — is not seen (about ${L}). The part rings longer than this window (a large inductance or a very high Q): ${fixedAdvice} (it sizes the window to the ring, up to ${profile.max_timeout_ms} ms), or use a shorter --charge-us so the ring starts lower and ends sooner`,
+      };
+    }
+  }
+  return null;
+}
+
+/**
+ * A capture that could not be analysed, explained if a part fault did it: a chattering fixture
+ * breaks the ring into pieces the analysis cannot follow (NO_RING). Returns the error to throw.
+ */
+export function explainFailure(e: MeasureError): MeasureError {
+  const c = e.capture;
+  if (!c || !["NO_RING", "TOO_FEW_EDGES", "BAD_INPUT"].includes(e.code)) return e;
+  const ch = chatterOf(c);
+  if (ch.half_cycles <= 0 || ch.glitch_pairs < CHATTER_PAIR_RATIO * ch.half_cycles) return e;
+  return new PartFaultError(
+    "FIXTURE_CHATTER",
+    `the fixture chatters: ${ch.glitch_pairs} toggles inside ${ch.half_cycles} half-cycles break the ring up so that it cannot be followed (${e.code}). Check the clips and the fixture's contacts (a loose clip, a bouncing contact, a worn socket), keep the leads short and twisted away from mains wiring, then measure again`,
+  );
+}
+
+/**
+ * What `measurePart` does with a capture after the pulse: analysis, a failure explained, and the
+ * reading judged. Throws a PartFaultError for a part fault unless `keep_suspect`.
+ */
+export function judgeCapture(
+  capture: CaptureV1, profile: Pick<DeviceProfile, "clamp_v" | "max_timeout_ms">, opts: { keep_suspect?: boolean } = {},
+): Reading {
+  let analysis;
+  try {
+    analysis = analyzeCapture(capture);
+  } catch (e) {
+    if (e instanceof MeasureError) {
+      e.capture = capture;
+      throw explainFailure(e);
+    }
+    throw e;
+  }
+  const rg = capture.range;
+  const settings = {
+    drive: rg?.drive_index ?? 0, tank: rg?.tank_index ?? 0, charge_us: rg?.charge_us ?? 0,
+    edge_limit: rg?.edge_limit ?? capture.edges.length, timeout_ms: rg?.timeout_ms ?? 0, quiet_us: rg?.quiet_us ?? 0,
+  };
+  return finishReading({ capture, analysis, settings }, profile, opts);
+}
+
+/** The final step of a reading: judged, then returned, marked suspect on request, or refused. */
+export function finishReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v" | "max_timeout_ms">, opts: { keep_suspect?: boolean }): Reading {
+  const fault = judgeReading(r, profile);
+  if (!fault) return r;
+  if (opts.keep_suspect) return { ...r, suspect: fault };
+  throw new PartFaultError(fault.code, fault.message, r);
+}
+
+/**
+ * The probe saw a ring far below the range and no setting can capture it: a short across the
+ * clips, or a part far below 1 µH.
+ */
+export function shortedPart(probe_l_h: number, why: string): PartFaultError {
+  return new PartFaultError(
+    "PART_SHORTED",
+    `the part looks like a short: the probe rang at about ${formatSi(probe_l_h, "H", 2)} (what the clips and leads alone would show), below the 1 µH the tester starts at, and no setting rings slowly enough to capture (${why}). Check that the clips sit on the part's two leads and do not touch each other, that the part is not shorted (a solder bridge, a burnt winding), and the part's marked value: below 1 µH it is outside the range`,
+  );
+}
