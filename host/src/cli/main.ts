@@ -49,6 +49,10 @@ Options for measure:
   --seed N             noise seed for the simulated tester
   --self-cap           ring on two tanks: L corrected for self-capacitance, Cs and self-resonance
   --budget             show the uncertainty budget (fit, capacitance, timebase, self-capacitance)
+  --keep-suspect       give the reading even when it shows a part fault (FIRST_CYCLE_CLIPPED,
+                       CORE_SATURATING, FIXTURE_CHATTER, RING_OUTLASTS_WINDOW), marked SUSPECT
+                       (human output), "suspect" (--json) or the suspect column (--csv); without
+                       it such a reading is refused with the diagnosis and advice (exit status 1)
   --uncalibrated       ignore the tester's calibration profile (nominal tank values)
   --config-dir DIR     where calibration profiles live (default $XDG_CONFIG_HOME/henrytick)
 

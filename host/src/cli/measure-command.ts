@@ -1,7 +1,7 @@
 // henrytick measure: one reading of the part on the clips.
 
 import { writeCaptureFile } from "../capture/capture-file.ts";
-import { measurePart } from "../measure/measure-part.ts";
+import { MeasureError, measurePart, PartFaultError } from "../measure/measure-part.ts";
 import { buildResult } from "../measure/result.ts";
 import { openTester } from "../open-tester.ts";
 import { intOption, numberOption, parse, testerTarget } from "./args.ts";
@@ -30,6 +30,7 @@ export async function runMeasure(args: string[]): Promise<number> {
     "config-dir": { type: "string" },
     "self-cap": { type: "boolean" },
     budget: { type: "boolean" },
+    "keep-suspect": { type: "boolean" },
     ...WATCH_OPTIONS,
   });
   const target = testerTarget(values, positionals);
@@ -41,6 +42,8 @@ export async function runMeasure(args: string[]): Promise<number> {
   const charge_us = intOption(values["charge-us"], "charge-us", 1, 10_000_000);
   if (charge_us !== undefined && drive === undefined) throw new CliUsageError("--charge-us needs --drive and --tank");
   const max_peak_v = numberOption(values["max-peak-v"], "max-peak-v", 0.1, 1000);
+  const keep_suspect = values["keep-suspect"] ?? false;
+  if (keep_suspect && values.watch) throw new CliUsageError("--keep-suspect gives one reading for inspection; leave out --watch");
   const progress = (m: string) => {
     if (!values.json && !values.csv) process.stderr.write(`   ${m}\n`);
   };
@@ -54,12 +57,19 @@ export async function runMeasure(args: string[]): Promise<number> {
     const calibration = cal?.applied;
     if (cal?.applied) progress(`calibration ${cal.path}`);
     if (values.watch) return await runWatch(tester, values, { drive, tank, charge_us, max_peak_v, hazardous_ok, label, calibration }, label ?? "part on the clips");
-    const reading = await measurePart(tester.client, { drive, tank, charge_us, max_peak_v, hazardous_ok, label, calibration, onProgress: progress });
+    let reading;
+    try {
+      reading = await measurePart(tester.client, { drive, tank, charge_us, max_peak_v, hazardous_ok, label, calibration, keep_suspect, onProgress: progress });
+    } catch (e) {
+      if (!(e instanceof MeasureError)) throw e;
+      return refused(e, values.json === true);
+    }
+    if (reading.suspect) progress(`suspect reading kept on request (${reading.suspect.code}): not a verified result`);
     if (values.save) {
       writeCaptureFile(values.save, reading.capture);
       progress(`capture saved to ${values.save}`);
     }
-    const result = buildResult(reading.analysis, reading.capture);
+    const result = buildResult(reading.analysis, reading.capture, reading.suspect);
     const profile = cal?.profile ?? null;
     let budget = singleTankBudget(reading.analysis, reading.capture.tank_c_f, timebaseKnowledge(profile, reading.settings.tank));
     let selfCap = null;
@@ -97,6 +107,18 @@ export async function runMeasure(args: string[]): Promise<number> {
   } finally {
     await tester.close();
   }
+}
+
+/**
+ * No reading: the diagnosis and advice on stderr (as for every refusal), and with --json an error
+ * object on stdout, as measure --watch --json prints one per refused reading.
+ */
+function refused(e: MeasureError, json: boolean): number {
+  process.stderr.write(`henrytick: [${e.code}] ${e.message}\n`);
+  const kept = e instanceof PartFaultError && e.suspect !== undefined;
+  if (kept) process.stderr.write("   no reading given; --keep-suspect returns it anyway, marked suspect\n");
+  if (json) process.stdout.write(JSON.stringify({ error: { code: e.code, message: e.message, ...(e instanceof PartFaultError ? { part_fault: true, suspect_available: kept } : {}) } }, null, 2) + "\n");
+  return 1;
 }
 
 function selfCapJson(sc: NonNullable<Awaited<ReturnType<typeof measureSelfCapacitance>>>) {

@@ -10,7 +10,7 @@ export function renderReading(r: ResultJson, title: string): string {
   const R = formatWithUncertainty(r.esr_ohm, r.esr_u_ohm, "Ω");
   const f = formatWithUncertainty(r.f0_hz, r.f0_u_hz, "Hz");
   const lines = [
-    `── ${title}`,
+    r.suspect ? `── ${title}   SUSPECT (kept on request: not a verified reading)` : `── ${title}`,
     `   inductance   ${L.value} ${L.unit}  ± ${L.u} ${L.unit}   (k = 2)`,
     `   Q            ${Q.value}  ± ${Q.u}`,
     `   ESR          ${R.value} ${R.unit}  ± ${R.u} ${R.unit}   at ${f.value} ${f.unit}`,
@@ -23,6 +23,7 @@ export function renderReading(r: ResultJson, title: string): string {
   if (s.drive) parts.unshift(`drive ${formatSi(s.drive.series_ohm, "Ω", 3)}`);
   if (s.range) parts.push(`charge ${s.range.charge_us} µs`);
   lines.push(`   setting      ${parts.join(", ")}`);
+  if (r.suspect) lines.push(`   ? SUSPECT ${r.suspect.code}: ${r.suspect.message}`);
   for (const w of r.warnings) lines.push(`   ! ${w.code}: ${w.message}`);
   return lines.join("\n");
 }

@@ -5,7 +5,7 @@ import type { ResultJson } from "../measure/result.ts";
 
 const COLUMNS = [
   "label", "inductance_h", "inductance_u_h", "q", "q_u", "esr_ohm", "esr_u_ohm", "f0_hz", "f0_u_hz",
-  "ring_amplitude_v", "edges_used", "edges_rejected", "tank_c_f", "warnings",
+  "ring_amplitude_v", "edges_used", "edges_rejected", "tank_c_f", "warnings", "suspect",
 ] as const;
 
 function cell(v: unknown): string {
@@ -23,6 +23,8 @@ export function csvRow(r: ResultJson, extra: unknown[] = []): string {
     esr_ohm: r.esr_ohm, esr_u_ohm: r.esr_u_ohm, f0_hz: r.f0_hz, f0_u_hz: r.f0_u_hz, ring_amplitude_v: r.ring_amplitude_v,
     edges_used: r.edges_used, edges_rejected: r.edges_rejected, tank_c_f: r.settings.tank_c_f,
     warnings: r.warnings.map((w) => w.code).join(" "),
+    // The part fault of a reading kept with --keep-suspect; empty for a verified reading.
+    suspect: r.suspect?.code,
   };
   return [...extra.map(cell), ...COLUMNS.map((c) => cell(values[c]))].join(",") + "\n";
 }

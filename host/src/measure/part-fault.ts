@@ -103,7 +103,7 @@ export function judgeReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v" 
     const swing = 2 * Math.abs(a.drift.df_rel) * 100;
     return {
       code: "CORE_SATURATING",
-      message: `the inductance changes with the current: the ring frequency ${ppm < 0 ? "falls" : "rises"} by ${Math.abs(ppm).toFixed(0)} ppm as the ring decays, so L swings by ${swing.toFixed(2)} % within one ring (about ${L} on average) — the core is near saturation at ${a.amplitude_v.toFixed(2)} V of ring. Lower the drive current (a larger drive resistor, a smaller tank or a lower --max-peak-v) or ${fixedAdvice}; if parts with air cores drift the same way, the tester's tank capacitor is voltage dependent (it must be C0G/film)`,
+      message: `the inductance changes with the current: the ring frequency ${ppm < 0 ? "falls" : "rises"} by ${Math.abs(ppm).toFixed(0)} ppm as the ring decays, so L swings by ${swing.toFixed(2)} % within one ring (about ${L} on average) — the core is near saturation at ${a.amplitude_v.toFixed(2)} V of ring. Lower the drive current (a larger drive resistor or a shorter --charge-us; with automatic ranging, a lower --max-peak-v) or ${fixedAdvice}; if parts with air cores drift the same way, the tester's tank capacitor is voltage dependent (it must be C0G/film)`,
     };
   }
   if (has(r, "MANY_REJECTED")) {

@@ -30,10 +30,16 @@ export interface ResultJson {
   };
   device?: CaptureV1["device"];
   label?: string;
+  /**
+   * Present only for a reading kept on request (measure keep_suspect / --keep-suspect) although it
+   * shows a part fault: the fault's code and message. Such a reading is not a verified result.
+   */
+  suspect?: { code: string; message: string };
 }
 
-export function buildResult(a: RingAnalysis, c: CaptureV1): ResultJson {
+export function buildResult(a: RingAnalysis, c: CaptureV1, suspect?: { code: string; message: string }): ResultJson {
   return {
+    ...(suspect ? { suspect: { code: suspect.code, message: suspect.message } } : {}),
     f0_hz: a.f0_hz,
     f0_u_hz: a.f0_u_hz,
     fd_hz: a.fd_hz,
