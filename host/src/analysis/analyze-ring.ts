@@ -6,10 +6,10 @@
 
 import { assignHalfCycles } from "./cycle-bookkeeping.ts";
 import { diagnose } from "./diagnostics.ts";
-import { FitWorkspace, fitEdgeModel } from "./edge-fit.ts";
+import { FitWorkspace, fitEdgeModel, type FitLimits } from "./edge-fit.ts";
 import { chooseResidualForms, evaluateEdges, formChanges, makeEdgeSet, P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
-import { bestStart, fitLimits, initialVariance, subsetMask } from "./fit-start.ts";
-import { initialCandidates } from "./initial-guess.ts";
+import { fitLimits, initialVariance, rankStarts, subsetMask } from "./fit-start.ts";
+import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
 import { reassignHalfCycles } from "./model-bookkeeping.ts";
 import { edgeTimeVariances, edgeVariances, estimateNoise, type NoiseEstimate } from "./noise-model.ts";
 import { ringQuantities, COVERAGE_K } from "./ring-quantities.ts";
@@ -44,6 +44,10 @@ export interface FitState {
   noise: NoiseEstimate;
   reasons: (string | null)[];
   chi2: number;
+  /** Robust -2 ln likelihood (negLogLikelihood), for comparing fits from different starts. */
+  nll: number;
+  /** A fit from another start that the edges support almost as well (AMBIGUOUS_NLL). */
+  alternative?: FitState;
 }
 
 export function analyzeRing(input: RingInput): RingAnalysis {
@@ -58,18 +62,39 @@ export function analyzeRing(input: RingInput): RingAnalysis {
   }
   const used = s.edges.n - rejected.length;
   const diagnosis = diagnose(s, rq);
+  const U = {
+    l: COVERAGE_K * rq.u.inductance_h, q: COVERAGE_K * rq.u.q, esr: COVERAGE_K * rq.u.esr_ohm, f0: COVERAGE_K * rq.u.f0_hz,
+  };
+  if (s.alternative) {
+    // Two basins the edges cannot tell apart: each interval is widened to cover the other
+    // fit's interval too, and a warning says so.
+    const a = s.alternative;
+    const ra = ringQuantities(a.p[P_WD], a.p[P_ALPHA], [a.cov[0], a.cov[3], a.cov[15]], c.c_f, c.c_u_f, c.timebase_u_rel);
+    const cover = (x: number, u: number, y: number, v: number) => Math.max(u, Math.abs(x - y) + v);
+    U.l = cover(rq.inductance_h, U.l, ra.inductance_h, COVERAGE_K * ra.u.inductance_h);
+    U.q = cover(rq.q, U.q, ra.q, COVERAGE_K * ra.u.q);
+    U.esr = cover(rq.esr_ohm, U.esr, ra.esr_ohm, COVERAGE_K * ra.u.esr_ohm);
+    U.f0 = cover(rq.f0_hz, U.f0, ra.f0_hz, COVERAGE_K * ra.u.f0_hz);
+    const dl = Math.abs(ra.inductance_h / rq.inductance_h - 1);
+    if (dl > 0.5 * (COVERAGE_K * rq.u.inductance_h) / rq.inductance_h || Math.abs(ra.q - rq.q) > 0.5 * COVERAGE_K * rq.u.q) {
+      diagnosis.warnings.push({
+        code: "AMBIGUOUS_DECAY",
+        message: `the edges fit two different decays almost equally well (Q ${fmt(rq.q)} or ${fmt(ra.q)}, L ${(dl * 1e6).toFixed(0)} ppm apart): the uncertainties cover both; use offset thresholds, a higher drive current or a longer ring to tell them apart`,
+      });
+    }
+  }
   return {
     f0_hz: rq.f0_hz,
     fd_hz: rq.fd_hz,
     alpha_per_s: rq.alpha_per_s,
     inductance_h: rq.inductance_h,
-    inductance_u_h: COVERAGE_K * rq.u.inductance_h,
+    inductance_u_h: U.l,
     q: rq.q,
-    q_u: COVERAGE_K * rq.u.q,
+    q_u: U.q,
     esr_ohm: rq.esr_ohm,
-    esr_u_ohm: COVERAGE_K * rq.u.esr_ohm,
+    esr_u_ohm: U.esr,
     amplitude_v: Math.exp(s.p[P_LNA]),
-    f0_u_hz: COVERAGE_K * rq.u.f0_hz,
+    f0_u_hz: U.f0,
     edges_used: used,
     edges_rejected: rejected.length,
     rejected,
@@ -80,6 +105,20 @@ export function analyzeRing(input: RingInput): RingAnalysis {
   };
 }
 
+/**
+ * A runner-up start is fitted in full when its short fit ended within this factor of the best
+ * start's chi2: the short fits on a subset cannot always tell two basins apart.
+ */
+const RUNNER_UP_CHI2_RATIO = 2;
+/** Up to this many edges both starts are always fitted in full (cheap, and few edges leave the
+ *  basins closest). */
+const FEW_EDGES_BOTH_STARTS = 100;
+/**
+ * Two fits whose -2 ln likelihoods differ by less than this are both plausible (likelihood
+ * ratio under e^3 ~ 20): the result's uncertainty is widened to cover both.
+ */
+const AMBIGUOUS_NLL = 6;
+
 /** The fitting core of analyzeRing, exposed for diagnostics and tests. */
 export function fitRing(input: RingInput): FitState {
   const c = checkInput(input);
@@ -87,15 +126,41 @@ export function fitRing(input: RingInput): FitState {
   const q = (c.tick_s * c.tick_s) / 12;
   const book = assignHalfCycles(c.t_s, c.rising);
   if (!(book.period_s > 0)) throw noRing("no repeating edges were found");
-  const e = makeEdgeSet(c.t_s, c.rising, book.m);
-  const reasons = book.reasons;
-  if (countFinite(e.m) < MIN_EDGES) throw noRing("too few edges fall into a regular ring");
-  const candidates = initialCandidates(e, c.vh_v, c.vl_v);
+  const e0 = makeEdgeSet(c.t_s, c.rising, book.m);
+  if (countFinite(e0.m) < MIN_EDGES) throw noRing("too few edges fall into a regular ring");
+  const candidates = initialCandidates(e0, c.vh_v, c.vl_v, 3, n <= FEW_EDGES_BOTH_STARTS);
   if (candidates.length === 0) throw noRing("no damped sine explains the edge times");
 
   const ws = new FitWorkspace(n);
-  const limits = fitLimits(e, c, candidates[0].p[P_WD]);
-  const guess = bestStart(candidates, e, c, q, ws, limits);
+  const limits = fitLimits(e0, c, candidates[0].p[P_WD]);
+  const starts = rankStarts(candidates, e0, c, q, ws, limits);
+  // Each full fit re-indexes edges and sets residual forms: it gets its own copy of the edges.
+  const fitFromStart = (k: number): FitState =>
+    fitFrom(c, makeEdgeSet(c.t_s, c.rising, book.m.slice()), book.reasons.slice(), starts[k], q, ws, limits);
+  let best: FitState | null = null;
+  let firstError: unknown = null;
+  const tries = starts.length > 1 && (n <= FEW_EDGES_BOTH_STARTS || starts[1].chi2 <= RUNNER_UP_CHI2_RATIO * starts[0].chi2) ? 2 : 1;
+  const fits: FitState[] = [];
+  for (let k = 0; k < tries; k++) {
+    try {
+      fits.push(fitFromStart(k));
+    } catch (err) {
+      if (firstError === null) firstError = err;
+    }
+  }
+  if (fits.length === 0) throw firstError;
+  fits.sort((a, b) => a.nll - b.nll);
+  best = fits[0];
+  if (fits.length > 1 && fits[1].nll - best.nll < AMBIGUOUS_NLL) best.alternative = fits[1];
+  return best;
+}
+
+/** One full fit from one start: rounds of fit, re-index, noise, reweight until settled. */
+function fitFrom(
+  c: CheckedInput, e: EdgeSet, reasons: (string | null)[], guess: InitialGuess, q: number, ws: FitWorkspace,
+  limits: FitLimits,
+): FitState {
+  const n = c.t_s.length;
   chooseResidualForms(guess.p, e, c.vh_v, c.vl_v);
   const variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, q), ws);
   const robust = new Float64Array(n).fill(1);
@@ -205,9 +270,36 @@ export function fitRing(input: RingInput): FitState {
   const typical = Math.sqrt(median(zWork, nt, zUsed));
   if (nUsed < 0.5 * n || !(typical < 0.1 * period)) throw noRing("the edges do not follow one damped sine");
   return {
-    checked: c, edges: e, p, cov, r: ws.r, jac: ws.jac, slope: ws.slope, variance, used,
-    z_scale: zScale, noise, reasons, chi2: fit.chi2,
+    checked: c, edges: e, p, cov, r: ws.r.slice(), jac: ws.jac.slice(), slope: ws.slope.slice(), variance, used,
+    z_scale: zScale, noise, reasons, chi2: fit.chi2, nll: negLogLikelihood(ws.r, ws.slope, variance, e, used),
   };
+}
+
+/**
+ * -2 ln likelihood of the edge times under the fit's own noise model (up to a constant),
+ * robust: each edge contributes min(z^2, REJECT_Z^2) + ln(its time variance), an edge without
+ * a half-cycle the rejection cost and the mean ln(time variance). Fits from different starts
+ * are compared on it: a fit that explains misfit with a larger noise pays in the ln term. The
+ * variance is taken in time (volts / slope): the data are times, and a model with a smaller
+ * ring has smaller slopes, so volts would favour it for no reason.
+ */
+function negLogLikelihood(r: Float64Array, slope: Float64Array, variance: Float64Array, e: EdgeSet, used: Float64Array): number {
+  let s = 0;
+  let lnSum = 0;
+  let counted = 0;
+  let unassigned = 0;
+  for (let k = 0; k < e.n; k++) {
+    if (e.m[k] !== e.m[k]) {
+      unassigned++;
+      continue;
+    }
+    const z2 = used[k] > 0 ? (r[k] * r[k]) / variance[k] : REJECT_Z * REJECT_Z;
+    const lv = Math.log(variance[k] / (slope[k] * slope[k]));
+    s += Math.min(z2, REJECT_Z * REJECT_Z) + lv;
+    lnSum += lv;
+    counted++;
+  }
+  return s + unassigned * (REJECT_Z * REJECT_Z + (counted > 0 ? lnSum / counted : 0));
 }
 
 /**
@@ -288,6 +380,10 @@ function meanRelChange(before: Float64Array, after: Float64Array, used: Float64A
     c++;
   }
   return c > 0 ? s / c : 0;
+}
+
+function fmt(x: number): string {
+  return x.toPrecision(3);
 }
 
 function countFinite(m: Float64Array): number {

@@ -8,28 +8,31 @@ import type { CheckedInput } from "./validate-input.ts";
 
 /**
  * Fits each start briefly on a subset of the edges (the tail, where the amplitude shows, and an
- * even spread) and keeps the one that ends with the smallest residuals: this is what separates
- * the basins of the (A0, alpha) likelihood (measurement notes §2).
+ * even spread) and ranks them by the residuals they end with, best first: this is what separates
+ * the basins of the (A0, alpha) likelihood (measurement notes §2). The short fits cannot always
+ * tell two basins apart, so the caller may fit the runner-up in full too.
  */
-export function bestStart(
+export function rankStarts(
   candidates: InitialGuess[], e: EdgeSet, c: CheckedInput, q: number, ws: FitWorkspace, limits: FitLimits,
-): InitialGuess {
-  if (candidates.length === 1) return candidates[0];
+): RankedStart[] {
+  if (candidates.length === 1) return [{ ...candidates[0], chi2: 0 }];
   const mask = subsetMask(e, 160, 40);
   const varT = Math.max(candidates[0].ms_residual_s2, q);
-  let best = candidates[0];
-  let bestChi2 = Infinity;
+  const out: RankedStart[] = [];
   for (const cand of candidates) {
     chooseResidualForms(cand.p, e, c.vh_v, c.vl_v);
     const variance = initialVariance(cand.p, e, varT, ws);
     for (let k = 0; k < e.n; k++) variance[k] = mask[k] > 0 ? 1 / variance[k] : 0;
     const fit = fitEdgeModel(e, c.vh_v, c.vl_v, cand.p, variance, null, ws, limits, 25, 1e-3, false, true);
-    if (fit.chi2 < bestChi2) {
-      bestChi2 = fit.chi2;
-      best = { p: fit.p, ms_residual_s2: cand.ms_residual_s2 };
-    }
+    if (Number.isFinite(fit.chi2)) out.push({ p: fit.p, ms_residual_s2: cand.ms_residual_s2, chi2: fit.chi2 });
   }
-  return best;
+  if (out.length === 0) return [{ ...candidates[0], chi2: 0 }];
+  return out.sort((a, b) => a.chi2 - b.chi2);
+}
+
+export interface RankedStart extends InitialGuess {
+  /** chi2 at the end of the short fit (0 when there was nothing to rank). */
+  chi2: number;
 }
 
 /**

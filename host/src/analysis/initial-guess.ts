@@ -44,9 +44,10 @@ interface Profile {
 
 /**
  * Candidate starts: the local minima over D of the cost minimised over E, best first, at most
- * `max_candidates`; empty when nothing explains the edges.
+ * `max_candidates` (with `shoulder`, a stand-in for a second basin when there is one minimum);
+ * empty when nothing explains the edges.
  */
-export function initialCandidates(e: EdgeSet, vh_v: number, vl_v: number, max_candidates = 3): InitialGuess[] {
+export function initialCandidates(e: EdgeSet, vh_v: number, vl_v: number, max_candidates = 3, shoulder = false): InitialGuess[] {
   const sample = pickSample(e);
   const n = sample.length;
   if (n < 4) return [];
@@ -74,6 +75,19 @@ export function initialCandidates(e: EdgeSet, vh_v: number, vl_v: number, max_ca
     minima.push(i);
   }
   minima.sort((x, y) => cost[x] - cost[y]);
+  if (shoulder && minima.length === 1) {
+    // One valley only: the best grid point at a decay at least twice or at most half the
+    // minimum's stands in for the other basin, which noise may have flattened into a shoulder
+    // (asked for on short captures, where the basins lie closest).
+    let alt = -1;
+    for (let i = 0; i < nd; i++) {
+      if (!Number.isFinite(cost[i]) || !(wd[i] > 0)) continue;
+      const ratio = D_GRID[i] / D_GRID[minima[0]];
+      if (ratio < 2 && ratio > 0.5) continue;
+      if (alt < 0 || cost[i] < cost[alt]) alt = i;
+    }
+    if (alt >= 0) minima.push(alt);
+  }
   const out: InitialGuess[] = [];
   for (const i of minima.slice(0, max_candidates)) {
     // The valley floor lies between grid points: refine D by successive parabolic steps in
