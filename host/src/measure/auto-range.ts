@@ -115,7 +115,7 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
     // A fixture that broke every ring up is the diagnosis; a probe ring far below the range with
     // nothing slow enough to capture is a short across the clips.
     if (chatter) throw chatter;
-    if (est.l_h < SHORT_MAX_L_H && failures.length === 0) throw shortedPart(est.l_h, lastAdvice[0]?.reason.replace(/\.$/, "") ?? "every setting refused");
+    if (est.l_h < SHORT_MAX_L_H && failures.length === 0) throw shortedPart(est.l_h, `no setting rings slowly enough to capture (${lastAdvice[0]?.reason.replace(/\.$/, "") ?? "every setting refused"})`);
     throw new MeasureError("NO_SETTING", `no setting gives a usable ring within the limits. ${failures.join(" ")} ${why}`.trim());
   }
   if (best.analysis.edges_used < MIN_EDGES_AUTO) {

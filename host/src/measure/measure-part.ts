@@ -96,7 +96,7 @@ async function settle(client: DeviceClient, opts: MeasureOptions): Promise<Readi
     if (!(e instanceof MeasureError)) throw e;
     const why = explainFailure(e);
     if (why !== e) throw why;
-    if (!est.fitted && est.l_h < SHORT_MAX_L_H && ["TOO_FEW_EDGES", "NO_RING", "EMPTY_CAPTURE"].includes(e.code)) throw shortedPart(est.l_h, e.code);
+    if (!est.fitted && est.l_h < SHORT_MAX_L_H && ["TOO_FEW_EDGES", "NO_RING", "EMPTY_CAPTURE"].includes(e.code)) throw shortedPart(est.l_h, `the capture on this setting gave no usable ring (${e.code})`);
     throw e;
   }
 }

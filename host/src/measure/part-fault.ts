@@ -185,6 +185,6 @@ export function finishReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v"
 export function shortedPart(probe_l_h: number, why: string): PartFaultError {
   return new PartFaultError(
     "PART_SHORTED",
-    `the part looks like a short: the probe rang at about ${formatSi(probe_l_h, "H", 2)} (what the clips and leads alone would show), below the 1 µH the tester starts at, and no setting rings slowly enough to capture (${why}). Check that the clips sit on the part's two leads and do not touch each other, that the part is not shorted (a solder bridge, a burnt winding), and the part's marked value: below 1 µH it is outside the range`,
+    `the part looks like a short: the probe rang at about ${formatSi(probe_l_h, "H", 2)} (what the clips and leads alone would show), below the 1 µH the tester starts at, and ${why}. Check that the clips sit on the part's two leads and do not touch each other, that the part is not shorted (a solder bridge, a burnt winding), and the part's marked value: below 1 µH it is outside the range`,
   );
 }
