@@ -247,8 +247,10 @@ function fitFrom(
     const rw = reweight(ws.r, variance, assigned, used, outlier, robust, reasons, round > 0, z, zUsed, zWork);
     zScale = rw.zScale;
     const flipped = rw.flipped;
-    staleForms = round >= 1 && reforms < 3 && formChanges(p, e, c.vh_v, c.vl_v) > 0;
-    if (round >= 1 && moved === 0 && flipped === 0 && !noiseMoved && !staleForms) break;
+    // Forms are checked only when the fit has otherwise settled (the check costs a pass).
+    const settled = round >= 1 && moved === 0 && flipped === 0 && !noiseMoved;
+    staleForms = settled && reforms < 3 && formChanges(p, e, c.vh_v, c.vl_v) > 0;
+    if (settled && !staleForms) break;
   }
   const cov = invertSymmetric(4, fit.normal);
   if (!cov || !noise) throw noRing("the fit has no covariance");
