@@ -71,10 +71,11 @@ export class FitWorkspace {
   readonly step = new Float64Array(N_PARAMS);
   readonly trial = new Float64Array(N_PARAMS);
   readonly work = new Float64Array(N_PARAMS * N_PARAMS + N_PARAMS);
-  /** Geodesic acceleration: residuals and Jacobian at the current point, a probe's residuals. */
-  readonly rp: Float64Array;
-  readonly jp: Float64Array;
-  readonly rprobe: Float64Array;
+  /** Geodesic acceleration: residuals and Jacobian at the current point, a probe's residuals
+   *  (allocated on first use: most fits converge before they need them). */
+  rp = new Float64Array(0);
+  jp = new Float64Array(0);
+  rprobe = new Float64Array(0);
   readonly ga = new Float64Array(N_PARAMS);
   readonly acc = new Float64Array(N_PARAMS);
   constructor(n: number) {
@@ -82,9 +83,12 @@ export class FitWorkspace {
     this.jac = new Float64Array(4 * n);
     this.slope = new Float64Array(n);
     this.curvature = new Float64Array(n);
-    this.rp = new Float64Array(n);
-    this.jp = new Float64Array(4 * n);
-    this.rprobe = new Float64Array(n);
+  }
+  geodesicBuffers(): void {
+    if (this.rp.length === this.r.length) return;
+    this.rp = new Float64Array(this.r.length);
+    this.jp = new Float64Array(this.jac.length);
+    this.rprobe = new Float64Array(this.r.length);
   }
 }
 
@@ -124,6 +128,7 @@ export function fitEdgeModel(
     for (let i = 0; i < N_PARAMS; i++) ws.gs[i] = -(ws.g[i] + ws.gp1[i]);
     const geodesic = it >= GEODESIC_FROM;
     if (geodesic && !atP) {
+      ws.geodesicBuffers();
       ws.rp.set(ws.r);
       ws.jp.set(ws.jac);
       atP = true;
