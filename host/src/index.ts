@@ -8,7 +8,7 @@ export { DeviceError, DeviceTimeoutError } from "./device/errors.ts";
 export { ProtocolError } from "./device/frames.ts";
 export { TransportError } from "./transport/transport.ts";
 export type { Transport } from "./transport/transport.ts";
-export { measurePart, analyzeCapture, MeasureError } from "./measure/measure-part.ts";
+export { measurePart, analyzeCapture, MeasureError, PartFaultError } from "./measure/measure-part.ts";
 export type { Reading, MeasureOptions } from "./measure/measure-part.ts";
 export { buildResult } from "./measure/result.ts";
 export type { ResultJson } from "./measure/result.ts";
