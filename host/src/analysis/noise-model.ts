@@ -122,7 +122,7 @@ export function estimateNoise(
     const change = (Math.abs(na - a) + Math.abs(nb - b)) / (a + b);
     a = na;
     b = nb;
-    if (change < 1e-3) break; // the weights need the noise to a few per cent at most
+    if (change < 1e-2) break; // the weights need the noise to a few per cent at most
   }
   return { sigma_t2: Math.max(0, b / xMean - q_s2), sigma_v2: a };
 }
