@@ -6,11 +6,10 @@
 // simulated tester with the same scenario and seed. The simulated tester is deterministic, so
 // over the pseudo-terminal the result must be the very same; only the link's name differs.
 
-import { spawn, spawnSync } from "node:child_process";
-import type { ChildProcessByStdio } from "node:child_process";
+import { spawnSync } from "node:child_process";
 import { existsSync, statSync } from "node:fs";
-import type { Readable } from "node:stream";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { SimDevices, type RunningDevice } from "./sim-device-process.ts";
 import { measurePart, openTester } from "../../host/src/index.ts";
 import { PtyDevice } from "../../host/src/sim/pty-device.ts";
 import { loadScenario } from "../../host/src/sim/scenario.ts";
@@ -19,37 +18,9 @@ import { CLI, runCli } from "./run-cli.ts";
 const hasSocat = spawnSync("socat", ["-V"], { stdio: "ignore" }).status === 0;
 const SKIP_REASON = "skipped: Debian package socat not installed";
 
-interface RunningDevice {
-  child: ChildProcessByStdio<null, Readable, Readable>;
-  path: string;
-  stdout: () => string;
-  stderr: () => string;
-  exited: Promise<number | null>;
-}
 
-const children: RunningDevice[] = [];
+const simDevices = new SimDevices();
 
-/** Starts the built CLI's sim-device and resolves once it has printed the device path. */
-function startDevice(args: string[]): Promise<RunningDevice> {
-  const child = spawn(process.execPath, [CLI, "sim-device", ...args], { stdio: ["ignore", "pipe", "pipe"] });
-  let out = "";
-  let err = "";
-  child.stdout.setEncoding("utf8").on("data", (s: string) => (out += s));
-  child.stderr.setEncoding("utf8").on("data", (s: string) => (err += s));
-  const exited = new Promise<number | null>((resolve) => child.on("exit", (code) => resolve(code)));
-  return new Promise((resolve, reject) => {
-    const timer = setTimeout(() => reject(new Error(`sim-device printed no path within 20 s: ${err}`)), 20_000);
-    child.stdout.on("data", () => {
-      const nl = out.indexOf("\n");
-      if (nl < 0) return;
-      clearTimeout(timer);
-      const device = { child, path: out.slice(0, nl), stdout: () => out, stderr: () => err, exited };
-      children.push(device);
-      resolve(device);
-    });
-    void exited.then((code) => reject(new Error(`sim-device exited with ${code} before printing a path: ${err}`)));
-  });
-}
 
 /** The reading must hit the part, and equal the in-process tester's reading of the same scenario. */
 function expectGoodReading(scenario: string, stdout: string): void {
@@ -96,16 +67,11 @@ describe.skipIf(!hasSocat)(`henrytick sim-device over a pseudo-terminal${hasSoca
   const devices = new Map<string, RunningDevice>();
 
   beforeAll(async () => {
-    for (const s of scenarios) devices.set(s, await startDevice([s]));
+    for (const s of scenarios) devices.set(s, await simDevices.start([s]));
   });
 
   afterAll(async () => {
-    for (const d of children) {
-      if (d.child.exitCode === null && d.child.signalCode === null) d.child.kill("SIGTERM");
-      const killer = setTimeout(() => d.child.kill("SIGKILL"), 5000);
-      await d.exited;
-      clearTimeout(killer);
-    }
+    await simDevices.stopAll();
   });
 
   it("prints exactly one line on stdout: a character device to open", () => {
@@ -141,7 +107,7 @@ describe.skipIf(!hasSocat)(`henrytick sim-device over a pseudo-terminal${hasSoca
   });
 
   it("stops on SIGINT with status 0 and removes its pseudo-terminal", async () => {
-    const d = await startDevice(["filter-coil-4m7", "--seed", "5"]);
+    const d = await simDevices.start(["filter-coil-4m7", "--seed", "5"]);
     expect(existsSync(d.path)).toBe(true);
     d.child.kill("SIGINT");
     expect(await d.exited).toBe(0);

@@ -11,13 +11,12 @@
 // Truth comes from the tester itself: its pulse counter (CN) says how many pulses fired, and the
 // capture it still holds, fetched again over the clean link, is what a recovered capture must be.
 
-import { spawn, spawnSync } from "node:child_process";
-import type { ChildProcessByStdio } from "node:child_process";
+import { spawnSync } from "node:child_process";
 import { mkdtempSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
-import type { Readable } from "node:stream";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { SimDevices, type RunningDevice } from "../e2e/sim-device-process.ts";
 import { DeviceClient } from "../../host/src/device/client.ts";
 import type { MeasureSettings } from "../../host/src/device/client.ts";
 import { DeviceError } from "../../host/src/device/errors.ts";
@@ -27,7 +26,6 @@ import { FaultTransport } from "../../host/src/transport/fault-transport.ts";
 import type { FaultOptions } from "../../host/src/transport/fault-transport.ts";
 import { SerialTransport } from "../../host/src/transport/serial-transport.ts";
 import { TransportError } from "../../host/src/transport/transport.ts";
-import { CLI } from "../e2e/run-cli.ts";
 import { caught, QUICK_PART, SETTING } from "./sim-rig.ts";
 
 const hasSocat = spawnSync("socat", ["-V"], { stdio: "ignore" }).status === 0;
@@ -45,39 +43,13 @@ const OK_MS = 0;
 const CH = 1;
 const FIRST_CD = 2;
 
-interface RunningDevice {
-  child: ChildProcessByStdio<null, Readable, Readable>;
-  path: string;
-  exited: Promise<number | null>;
-}
 
-const children: RunningDevice[] = [];
+const simDevices = new SimDevices();
 const dir = mkdtempSync(join(tmpdir(), "henrytick-pty-faults-"));
 /** The quick low-Q coil of the in-process rig, as a scenario file for sim-device. */
 const scenario = join(dir, "quick-coil.json");
 writeFileSync(scenario, JSON.stringify({ format: "henrytick-scenario", version: 1, name: "quick-coil", story: "the reliability rig's low-Q test coil", part: QUICK_PART, seed: 11 }));
 
-/** Starts the built CLI's sim-device (a separate process) and resolves with its pseudo-terminal. */
-function startDevice(): Promise<RunningDevice> {
-  const child = spawn(process.execPath, [CLI, "sim-device", scenario], { stdio: ["ignore", "pipe", "pipe"] });
-  let out = "";
-  let err = "";
-  child.stdout.setEncoding("utf8").on("data", (s: string) => (out += s));
-  child.stderr.setEncoding("utf8").on("data", (s: string) => (err += s));
-  const exited = new Promise<number | null>((resolve) => child.on("exit", (code) => resolve(code)));
-  return new Promise((resolve, reject) => {
-    const timer = setTimeout(() => reject(new Error(`sim-device printed no path within 20 s: ${err}`)), 20_000);
-    child.stdout.on("data", () => {
-      const nl = out.indexOf("\n");
-      if (nl < 0) return;
-      clearTimeout(timer);
-      const device = { child, path: out.slice(0, nl), exited };
-      children.push(device);
-      resolve(device);
-    });
-    void exited.then((code) => reject(new Error(`sim-device exited with ${code} before printing a path: ${err}`)));
-  });
-}
 
 interface SerialRig {
   faults: FaultTransport;
@@ -145,16 +117,11 @@ describe.skipIf(!hasSocat)(`link faults on the serial path: sim-device process, 
   let device: RunningDevice;
 
   beforeAll(async () => {
-    device = await startDevice();
+    device = await simDevices.start([scenario]);
   }, 30_000);
 
   afterAll(async () => {
-    for (const d of children) {
-      if (d.child.exitCode === null && d.child.signalCode === null) d.child.kill("SIGTERM");
-      const killer = setTimeout(() => d.child.kill("SIGKILL"), 5000);
-      await d.exited;
-      clearTimeout(killer);
-    }
+    await simDevices.stopAll();
   });
 
   const recovered: [string, Omit<FaultOptions, "seed">, (r: SerialRig) => void][] = [
@@ -245,7 +212,7 @@ describe.skipIf(!hasSocat)(`link faults on the serial path: sim-device process, 
   });
 
   it("the port vanishing mid-capture (sim-device killed): LINK_DISCONNECTED, and on every later call", async () => {
-    const own = await startDevice();
+    const own = await simDevices.start([scenario]);
     // The tester's reply is held on the host side (a 1.5 s stall, inside a 3 s reply timeout)
     // while the process is killed as the reply arrives: the pulse has fired and its capture is in
     // flight when the port goes. socat lets its pseudo-terminal go about 0.5 s after its input ends.
@@ -273,7 +240,7 @@ describe.skipIf(!hasSocat)(`link faults on the serial path: sim-device process, 
   });
 
   it("a port that is gone (sim-device stopped, its pseudo-terminal removed): opening fails with LINK_ERROR naming the path", async () => {
-    const own = await startDevice();
+    const own = await simDevices.start([scenario]);
     own.child.kill("SIGTERM");
     await own.exited;
     const e = await caught(() => connect(own.path));
