@@ -124,6 +124,8 @@ const FEW_EDGES_BOTH_STARTS = 100;
  * ratio under e^3 ~ 20): the result's uncertainty is widened to cover both.
  */
 const AMBIGUOUS_NLL = 6;
+/** A runner-up whose -2 ln L exceeds the first fit's by this much after a round is abandoned. */
+const RUNNER_UP_GIVE_UP_NLL = 100;
 
 /** The fitting core of analyzeRing, exposed for diagnostics and tests. */
 export function fitRing(input: RingInput): FitState {
@@ -141,15 +143,16 @@ export function fitRing(input: RingInput): FitState {
   const limits = fitLimits(e0, c, candidates[0].p[P_WD]);
   const starts = rankStarts(candidates, e0, c, q, ws, limits);
   // Each full fit re-indexes edges and sets residual forms: it gets its own copy of the edges.
-  const fitFromStart = (k: number): FitState =>
-    fitFrom(c, makeEdgeSet(c.t_s, c.rising, book.m.slice()), book.reasons.slice(), starts[k], q, ws, limits);
+  const fitFromStart = (k: number, reference?: FitState): FitState | null =>
+    fitFrom(c, makeEdgeSet(c.t_s, c.rising, book.m.slice()), book.reasons.slice(), starts[k], q, ws, limits, reference);
   let best: FitState | null = null;
   let firstError: unknown = null;
   const tries = starts.length > 1 && (n <= FEW_EDGES_BOTH_STARTS || starts[1].chi2 <= RUNNER_UP_CHI2_RATIO * starts[0].chi2) ? 2 : 1;
   const fits: FitState[] = [];
   for (let k = 0; k < tries; k++) {
     try {
-      fits.push(fitFromStart(k));
+      const f = fitFromStart(k, fits[0]);
+      if (f) fits.push(f);
     } catch (err) {
       if (firstError === null) firstError = err;
     }
@@ -164,8 +167,8 @@ export function fitRing(input: RingInput): FitState {
 /** One full fit from one start: rounds of fit, re-index, noise, reweight until settled. */
 function fitFrom(
   c: CheckedInput, e: EdgeSet, reasons: (string | null)[], guess: InitialGuess, q: number, ws: FitWorkspace,
-  limits: FitLimits,
-): FitState {
+  limits: FitLimits, reference?: FitState,
+): FitState | null {
   const n = c.t_s.length;
   chooseResidualForms(guess.p, e, c.vh_v, c.vl_v);
   const variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, q), ws);
@@ -213,6 +216,9 @@ function fitFrom(
     if (!Number.isFinite(fit.chi2)) throw noRing("the edge-model fit diverged");
     p = fit.p;
     cached = fit.fresh && round > 0;
+    // A runner-up that has come within a standard deviation of the first fit after its first
+    // round with a noise model is on its way to the same minimum: nothing to compare.
+    if (reference && round === 1 && sameBasin(p, reference, 1)) return null;
     if (round === MAX_ROUNDS) break;
 
     // Re-index from the model unless it has barely moved since the last re-indexing (then no
@@ -254,6 +260,10 @@ function fitFrom(
     zScale = rw.zScale;
     const flipped = rw.flipped;
     // Forms are checked only when the fit has otherwise settled (the check costs a pass).
+    // A runner-up already far less likely than the first fit stays so: its -2 ln L fell by at
+    // most ~75 after round 1 in the benchmark's captures, and it could only matter within
+    // AMBIGUOUS_NLL of the first fit.
+    if (reference && round >= 1 && negLogLikelihood(ws.r, ws.slope, variance, e, used) - reference.nll > RUNNER_UP_GIVE_UP_NLL) return null;
     const settled = round >= 1 && moved === 0 && flipped === 0 && !noiseMoved;
     staleForms = settled && reforms < 3 && formChanges(p, e, c.vh_v, c.vl_v) > 0;
     if (settled && !staleForms) break;
@@ -369,6 +379,15 @@ function computeLeverage(cov: Float64Array, jac: Float64Array, w: Float64Array, 
       j3 * c33 * j3;
     out[k] = Math.min(1, Math.max(0, s * w[k]));
   }
+}
+
+/** Within k_sd standard deviations of the reference fit in amplitude, decay and frequency. */
+function sameBasin(p: Float64Array, ref: FitState, k_sd: number): boolean {
+  for (const i of [P_WD, P_LNA, P_ALPHA]) {
+    const sd = Math.sqrt(ref.cov[5 * i]);
+    if (!(Math.abs(p[i] - ref.p[i]) <= k_sd * sd)) return false;
+  }
+  return true;
 }
 
 /** Largest change of the model phase (rad) over the capture, including amplitude terms. */
