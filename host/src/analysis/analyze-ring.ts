@@ -263,7 +263,7 @@ function fitFrom(
     // A runner-up already far less likely than the first fit stays so: its -2 ln L fell by at
     // most ~75 after round 1 in the benchmark's captures, and it could only matter within
     // AMBIGUOUS_NLL of the first fit.
-    if (reference && round >= 1 && negLogLikelihood(ws.r, ws.slope, variance, e, used) - reference.nll > RUNNER_UP_GIVE_UP_NLL) return null;
+    if (reference && round >= 1 && negLogLikelihood(ws.r, varT, variance, e, used) - reference.nll > RUNNER_UP_GIVE_UP_NLL) return null;
     const settled = round >= 1 && moved === 0 && flipped === 0 && !noiseMoved;
     staleForms = settled && reforms < 3 && formChanges(p, e, c.vh_v, c.vl_v) > 0;
     if (settled && !staleForms) break;
@@ -289,7 +289,7 @@ function fitFrom(
   if (nUsed < 0.5 * n || !(typical < 0.1 * period)) throw noRing("the edges do not follow one damped sine");
   return {
     checked: c, edges: e, p, cov, r: ws.r.slice(), jac: ws.jac.slice(), slope: ws.slope.slice(), variance, used,
-    z_scale: zScale, noise, reasons, chi2: fit.chi2, nll: negLogLikelihood(ws.r, ws.slope, variance, e, used),
+    z_scale: zScale, noise, reasons, chi2: fit.chi2, nll: negLogLikelihood(ws.r, varT, variance, e, used),
   };
 }
 
@@ -298,10 +298,11 @@ function fitFrom(
  * robust: each edge contributes min(z^2, REJECT_Z^2) + ln(its time variance), an edge without
  * a half-cycle the rejection cost and the mean ln(time variance). Fits from different starts
  * are compared on it: a fit that explains misfit with a larger noise pays in the ln term. The
- * variance is taken in time (volts / slope): the data are times, and a model with a smaller
- * ring has smaller slopes, so volts would favour it for no reason.
+ * variance is taken in time (varT: tick^2/12 + sigma_t^2 + (sigma_v/slope)^2, capped where the
+ * ring grazes its threshold): the data are times, and a model with a smaller ring has smaller
+ * slopes, so variances in volts would favour it for no reason.
  */
-function negLogLikelihood(r: Float64Array, slope: Float64Array, variance: Float64Array, e: EdgeSet, used: Float64Array): number {
+function negLogLikelihood(r: Float64Array, varT: Float64Array, variance: Float64Array, e: EdgeSet, used: Float64Array): number {
   let s = 0;
   let lnSum = 0;
   let counted = 0;
@@ -312,7 +313,7 @@ function negLogLikelihood(r: Float64Array, slope: Float64Array, variance: Float6
       continue;
     }
     const z2 = used[k] > 0 ? (r[k] * r[k]) / variance[k] : REJECT_Z * REJECT_Z;
-    const lv = Math.log(variance[k] / (slope[k] * slope[k]));
+    const lv = Math.log(varT[k]);
     s += Math.min(z2, REJECT_Z * REJECT_Z) + lv;
     lnSum += lv;
     counted++;
