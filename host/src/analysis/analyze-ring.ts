@@ -120,10 +120,12 @@ const RUNNER_UP_CHI2_RATIO = 2;
  *  basins closest). */
 const FEW_EDGES_BOTH_STARTS = 100;
 /**
- * Two fits whose -2 ln likelihoods differ by less than this are both plausible (likelihood
- * ratio under e^3 ~ 20): the result's uncertainty is widened to cover both.
+ * Two fits whose -2 ln likelihoods differ by less than this are both plausible: the result's
+ * uncertainty is widened to cover both. A likelihood ratio of e^5 ~ 150, not the e^3 of a
+ * one-parameter test: on short symmetric-threshold rings (12 edges, 4 + 2 parameters) the
+ * true basin's fit ended 5-9 above a wrong one in the benchmark (bench practice, calibrated there).
  */
-const AMBIGUOUS_NLL = 6;
+const AMBIGUOUS_NLL = 10;
 /** A runner-up whose -2 ln L exceeds the first fit's by this much after a round is abandoned. */
 const RUNNER_UP_GIVE_UP_NLL = 100;
 
