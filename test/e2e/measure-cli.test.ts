@@ -5,6 +5,7 @@
 // gives that value from the same circuit, and the reading must match it closely, while the
 // part's true inductance must lie within 0.5 % and within the stated uncertainty.
 
+import { spawnSync } from "node:child_process";
 import { mkdtempSync, readFileSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
@@ -12,7 +13,7 @@ import { describe, expect, it } from "vitest";
 import { loadScenario } from "../../host/src/sim/scenario.ts";
 import { referenceBoard } from "../../host/src/sim/board-model.ts";
 import { expectedReading } from "../../host/src/sim/front-end.ts";
-import { runCli } from "./run-cli.ts";
+import { CLI, runCli } from "./run-cli.ts";
 
 const tmp = mkdtempSync(join(tmpdir(), "henrytick-e2e-"));
 
@@ -83,6 +84,18 @@ describe("henrytick measure --sim (CLI, end to end)", () => {
     const r = runCli(["analyze", join(tmp, "missing.json")]);
     expect(r.status).toBe(1);
     expect(r.stderr).toMatch(/cannot read .*missing\.json: ENOENT/);
+  });
+});
+
+describe("henrytick in a pipe", () => {
+  it("stops quietly when the reader closes the pipe early", () => {
+    // common command-line practice, no source: `henrytick scenarios | head -1` prints one line
+    // and no EPIPE stack trace.
+    const r = spawnSync("sh", ["-c", `"${process.execPath}" "${CLI}" scenarios | head -c 20 >/dev/null`], { encoding: "utf8" });
+    expect(r.stderr).not.toMatch(/EPIPE|Unhandled/);
+    const h = spawnSync("sh", ["-c", `"${process.execPath}" "${CLI}" --help | head -n 1`], { encoding: "utf8" });
+    expect(h.stdout.trim()).toMatch(/henrytick/);
+    expect(h.stderr).not.toMatch(/EPIPE|Unhandled/);
   });
 });
 
