@@ -1,8 +1,10 @@
 // analyzeRing: comparator edges in, f0, L, Q, ESR and their uncertainties out.
 // Pipeline: check input -> first-pass half-cycle indices (cycle-bookkeeping) -> global start
-// (initial-guess) -> rounds of { weighted LM fit, re-index edges from the model, estimate the
-// two noise components, reject gross outliers and Huber-weight the rest } until nothing
-// changes -> covariance -> derived quantities (ring-quantities) -> diagnostics.
+// candidates (initial-guess), ranked by short fits (fit-start) -> from the best start (and the
+// runner-up when the ranking is close) rounds of { weighted LM fit, re-index edges from the
+// model, estimate the two noise components, reject gross outliers and Huber-weight the rest }
+// until nothing changes -> the likelier fit, U widened if the other is nearly as likely ->
+// covariance -> derived quantities (ring-quantities) -> diagnostics.
 
 import { assignHalfCycles } from "./cycle-bookkeeping.ts";
 import { diagnose } from "./diagnostics.ts";
@@ -147,7 +149,6 @@ export function fitRing(input: RingInput): FitState {
   // Each full fit re-indexes edges and sets residual forms: it gets its own copy of the edges.
   const fitFromStart = (k: number, reference?: FitState): FitState | null =>
     fitFrom(c, makeEdgeSet(c.t_s, c.rising, book.m.slice()), book.reasons.slice(), starts[k], q, ws, limits, reference);
-  let best: FitState | null = null;
   let firstError: unknown = null;
   const tries = starts.length > 1 && (n <= FEW_EDGES_BOTH_STARTS || starts[1].chi2 <= RUNNER_UP_CHI2_RATIO * starts[0].chi2) ? 2 : 1;
   const fits: FitState[] = [];
@@ -161,7 +162,7 @@ export function fitRing(input: RingInput): FitState {
   }
   if (fits.length === 0) throw firstError;
   fits.sort((a, b) => a.nll - b.nll);
-  best = fits[0];
+  const best = fits[0];
   if (fits.length > 1 && fits[1].nll - best.nll < AMBIGUOUS_NLL) best.alternative = fits[1];
   return best;
 }
@@ -261,11 +262,11 @@ function fitFrom(
     const rw = reweight(ws.r, variance, assigned, used, outlier, robust, reasons, round > 0, z, zUsed, zWork);
     zScale = rw.zScale;
     const flipped = rw.flipped;
-    // Forms are checked only when the fit has otherwise settled (the check costs a pass).
     // A runner-up already far less likely than the first fit stays so: its -2 ln L fell by at
     // most ~75 after round 1 in the benchmark's captures, and it could only matter within
     // AMBIGUOUS_NLL of the first fit.
     if (reference && round >= 1 && negLogLikelihood(ws.r, varT, variance, e, used) - reference.nll > RUNNER_UP_GIVE_UP_NLL) return null;
+    // Forms are checked only when the fit has otherwise settled (the check costs a pass).
     const settled = round >= 1 && moved === 0 && flipped === 0 && !noiseMoved;
     staleForms = settled && reforms < 3 && formChanges(p, e, c.vh_v, c.vl_v) > 0;
     if (settled && !staleForms) break;
