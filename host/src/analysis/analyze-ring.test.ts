@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { ringConstants, ringWaveform } from "../physics/ring.ts";
+import { ringOfQ, ringWaveform } from "../physics/ring.ts";
 import { captureEdges, crossingTimes } from "../sim/comparator-edges.ts";
 import { Random } from "../sim/random.ts";
 import { analyzeRing, ringCramerRao, type RingInput } from "./index.ts";
@@ -15,14 +15,11 @@ interface Case {
 
 /** A part of inductance L and quality Q on tank C, rung to about a0_v, through the simulator. */
 function capture(k: Case, seed: number, noise = { jitter_s: 2e-9, noise_v: 0.3e-3 }, maxEdges = 3000) {
-  const w0 = 1 / Math.sqrt(k.l_h * k.c_f);
-  const part = { l_h: k.l_h, rs_ohm: (w0 * k.l_h) / k.q };
-  const consts = ringConstants(part, k.c_f);
-  const ring = ringWaveform(part, k.c_f, k.a0_v * k.c_f * consts.wd_rad_s);
+  const { ring, q } = ringOfQ(k.l_h, k.c_f, k.q, k.a0_v);
   const comp = { rising_v: k.thresholds_v[0], falling_v: k.thresholds_v[1], ...noise, delay_s: 40e-9 };
   const edges = captureEdges(ring, comp, { tick_hz: k.tick_hz, ppm: 0, dead_time_s: 0 }, new Random(seed), maxEdges, 10);
   const input: RingInput = { tick_hz: k.tick_hz, ticks: edges.ticks, levels: edges.levels, tank_c_f: k.c_f, thresholds_v: k.thresholds_v, tank_c_u_f: 0, timebase_u_rel: 0 };
-  return { input, ring, q: consts.q, comp };
+  return { input, ring, q, comp };
 }
 
 const OFFSET: [number, number] = [0.035, -0.005]; // VH = +1.75h, VL = -0.25h with h = 20 mV

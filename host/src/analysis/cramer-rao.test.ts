@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { ringConstants, ringWaveform } from "../physics/ring.ts";
+import { ringOfQ } from "../physics/ring.ts";
 import { captureEdges, crossingTimes } from "../sim/comparator-edges.ts";
 import { Random } from "../sim/random.ts";
 import { modelEdgeTime } from "./edge-model.ts";
@@ -56,11 +56,9 @@ describe("Cramér-Rao bound of the edge model (Kay 1993 §3.9)", () => {
 
   it("is approached by the analysis (efficiency over 60 seeded captures)", () => {
     // Measurement notes §3: efficiency = bound / achieved rms error; issue 3 asks >= 0.8.
-    const l_h = 330e-6, c_f = 10e-9, q = 40; // demo coil, about 88 kHz
-    const w0 = 1 / Math.sqrt(l_h * c_f);
-    const part = { l_h, rs_ohm: (w0 * l_h) / q };
-    const k = ringConstants(part, c_f);
-    const ring = ringWaveform(part, c_f, 1 * c_f * k.wd_rad_s);
+    const l_h = 330e-6, c_f = 10e-9; // demo coil, about 88 kHz
+    const k = ringOfQ(l_h, c_f, 40, 1);
+    const ring = k.ring;
     const th: [number, number] = [0.035, -0.005];
     const comp = { rising_v: th[0], falling_v: th[1], jitter_s: 8e-9, noise_v: 0.5e-3, delay_s: 40e-9 };
     const tick_hz = 64e6;
@@ -90,11 +88,9 @@ describe("Cramér-Rao bound of the edge model (Kay 1993 §3.9)", () => {
   it("reports expanded uncertainties that cover the error about 95 % of the time (offset thresholds)", () => {
     // JCGM 100:2008 §6.2: U = k u with k = 2 covers about 95 % for a near-normal estimate. Over
     // 100 seeded captures the count inside U is binomial (sd ~2 %): require at least 88 %.
-    const l_h = 100e-6, c_f = 47e-9, q = 100;
-    const w0 = 1 / Math.sqrt(l_h * c_f);
-    const part = { l_h, rs_ohm: (w0 * l_h) / q };
-    const k = ringConstants(part, c_f);
-    const ring = ringWaveform(part, c_f, 1 * c_f * k.wd_rad_s);
+    const l_h = 100e-6, c_f = 47e-9;
+    const k = ringOfQ(l_h, c_f, 100, 1);
+    const ring = k.ring;
     const th: [number, number] = [0.035, -0.005];
     const comp = { rising_v: th[0], falling_v: th[1], jitter_s: 8e-9, noise_v: 0.5e-3, delay_s: 40e-9 };
     let inL = 0, inQ = 0, inL1 = 0;

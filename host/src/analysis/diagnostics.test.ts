@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { ringConstants, ringWaveform } from "../physics/ring.ts";
+import { ringOfQ } from "../physics/ring.ts";
 import { captureEdges } from "../sim/comparator-edges.ts";
 import { Random } from "../sim/random.ts";
 import { analyzeRing, type RingInput } from "./index.ts";
@@ -8,9 +8,7 @@ const TH: [number, number] = [0.035, -0.005];
 
 function ring(q: number, a0_v: number, maxEdges: number, seed: number, tick_hz = 64e6) {
   const l_h = 68e-6, c_f = 33e-9; // demo coil, about 106 kHz
-  const w0 = 1 / Math.sqrt(l_h * c_f);
-  const part = { l_h, rs_ohm: (w0 * l_h) / q };
-  const wave = ringWaveform(part, c_f, a0_v * c_f * ringConstants(part, c_f).wd_rad_s);
+  const wave = ringOfQ(l_h, c_f, q, a0_v).ring;
   const comp = { rising_v: TH[0], falling_v: TH[1], jitter_s: 3e-9, noise_v: 0.2e-3, delay_s: 40e-9 };
   const e = captureEdges(wave, comp, { tick_hz, ppm: 0, dead_time_s: 0 }, new Random(seed), maxEdges, 10);
   return { tick_hz, ticks: e.ticks, levels: e.levels, tank_c_f: c_f, thresholds_v: TH } as RingInput;
@@ -102,9 +100,7 @@ describe("diagnostics", () => {
     const f = tick_hz / 12.01;
     const c_f = 1e-9;
     const l_h = 1 / ((2 * Math.PI * f) ** 2 * c_f);
-    const w0 = 2 * Math.PI * f;
-    const part = { l_h, rs_ohm: (w0 * l_h) / 100 };
-    const wave = ringWaveform(part, c_f, c_f * ringConstants(part, c_f).wd_rad_s);
+    const wave = ringOfQ(l_h, c_f, 100, 1).ring;
     const comp = { rising_v: TH[0], falling_v: TH[1], jitter_s: 0.3e-9, noise_v: 0.2e-3, delay_s: 0 };
     const e = captureEdges(wave, comp, { tick_hz, ppm: 0, dead_time_s: 0 }, new Random(3), 5000, 10);
     const a = analyzeRing({ tick_hz, ticks: e.ticks, levels: e.levels, tank_c_f: c_f, thresholds_v: TH, tank_c_u_f: 0, timebase_u_rel: 0 });

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { ringConstants, ringWaveform } from "../physics/ring.ts";
+import { ringOfQ } from "../physics/ring.ts";
 import { captureEdges, crossingTimes } from "../sim/comparator-edges.ts";
 import { Random } from "../sim/random.ts";
 import { analyzeRing, type RingInput } from "./index.ts";
@@ -14,13 +14,11 @@ interface Edges {
 
 /** A demo choke: 220 µH, Q 60 on 22 nF (about 72 kHz), rung to 1 V, offset thresholds. */
 function choke(seed: number, tick_hz = 64e6, maxEdges = 3000, l_h = 220e-6, c_f = 22e-9, q = 60) {
-  const w0 = 1 / Math.sqrt(l_h * c_f);
-  const part = { l_h, rs_ohm: (w0 * l_h) / q };
-  const k = ringConstants(part, c_f);
-  const ring = ringWaveform(part, c_f, 1 * c_f * k.wd_rad_s);
+  const rung = ringOfQ(l_h, c_f, q, 1);
+  const ring = rung.ring;
   const comp = { rising_v: 0.035, falling_v: -0.005, jitter_s: 3e-9, noise_v: 0.3e-3, delay_s: 40e-9 };
   const edges = captureEdges(ring, comp, { tick_hz, ppm: 0, dead_time_s: 0 }, new Random(seed), maxEdges, 10);
-  return { edges, l_h, q: k.q, c_f, tick_hz, period_ticks: (tick_hz * 2 * Math.PI) / k.wd_rad_s };
+  return { edges, l_h, q: rung.q, c_f, tick_hz, period_ticks: (tick_hz * 2 * Math.PI) / ring.wd_rad_s };
 }
 
 function input(e: Edges, tick_hz: number, c_f: number): RingInput {
@@ -197,11 +195,8 @@ describe("the multimodal (A0, alpha) likelihood (measurement notes §2)", () => 
 describe("the end of the ring", () => {
   /** A slow high-Q winding (100 mH on 1 nF, Q 250), its whole ring captured (it ends on quiet). */
   function winding(seed: number, th: [number, number], maxEdges = 5000) {
-    const l_h = 100e-3, c_f = 1e-9, q = 250, tick_hz = 64e6;
-    const w0 = 1 / Math.sqrt(l_h * c_f);
-    const part = { l_h, rs_ohm: (w0 * l_h) / q };
-    const k = ringConstants(part, c_f);
-    const ring = ringWaveform(part, c_f, 1 * c_f * k.wd_rad_s);
+    const l_h = 100e-3, c_f = 1e-9, tick_hz = 64e6;
+    const { ring } = ringOfQ(l_h, c_f, 250, 1);
     const comp = { rising_v: th[0], falling_v: th[1], jitter_s: 0.5 / tick_hz, noise_v: 0.3e-3, delay_s: 40e-9 };
     const edges = captureEdges(ring, comp, { tick_hz, ppm: 0, dead_time_s: 0 }, new Random(seed), maxEdges, 10);
     const inp = (e: Edges): RingInput => ({
@@ -258,10 +253,7 @@ describe("the end of the ring", () => {
     // Flagged captures must lie within twice their widened U (a k = 2 interval misses by a
     // little now and then), and the warning must name both Q values.
     const l_h = 150e-6, c_f = 47e-9, tick_hz = 64e6, th: [number, number] = [0.02, -0.02];
-    const w0 = 1 / Math.sqrt(l_h * c_f);
-    const part = { l_h, rs_ohm: (w0 * l_h) / 5 };
-    const k = ringConstants(part, c_f);
-    const ring = ringWaveform(part, c_f, 1 * c_f * k.wd_rad_s);
+    const { ring } = ringOfQ(l_h, c_f, 5, 1);
     const comp = { rising_v: th[0], falling_v: th[1], jitter_s: 0.5 / tick_hz, noise_v: 0.3e-3, delay_s: 40e-9 };
     let flagged = 0;
     for (let seed = 1; seed <= 100; seed++) {

@@ -53,3 +53,15 @@ export function ringWaveform(part: RingPart, c_f: number, i0_a: number): DampedS
   if (!k.underdamped) throw new RangeError("part does not ring: alpha >= w0 (overdamped)");
   return { a0_v: i0_a / (c_f * k.wd_rad_s), alpha_per_s: k.alpha_per_s, wd_rad_s: k.wd_rad_s };
 }
+
+/**
+ * A part of inductance l_h with series loss only, whose Q on the tank c_f is q (Rs = w0 L / Q),
+ * and its ring started at amplitude a0_v (I0 = a0 C wd): the invented coils of the tests and the
+ * benchmark. `q` is the ring's Q as ringConstants computes it.
+ */
+export function ringOfQ(l_h: number, c_f: number, q: number, a0_v: number): { part: RingPart; ring: DampedSine; q: number } {
+  const w0 = 1 / Math.sqrt(l_h * c_f);
+  const part = { l_h, rs_ohm: (w0 * l_h) / q };
+  const k = ringConstants(part, c_f);
+  return { part, ring: ringWaveform(part, c_f, a0_v * c_f * k.wd_rad_s), q: k.q };
+}

@@ -7,7 +7,7 @@
 // a slowly drifting phase is not (measurement notes §3). With jitter = tick/2 the uniform model's
 // leading error term is exp(-2 pi^2 (1/2)^2) ~ 0.7 %.
 
-import { ringConstants, ringWaveform, type DampedSine } from "../../../host/src/physics/ring.ts";
+import { ringOfQ, type DampedSine } from "../../../host/src/physics/ring.ts";
 import { applyComparator, crossingTimes, ringSlope, type ComparatorModel } from "../../../host/src/sim/comparator-edges.ts";
 import { Random } from "../../../host/src/sim/random.ts";
 import { ringCramerRao, type RingBound, type RingInput } from "../../../host/src/analysis/index.ts";
@@ -84,10 +84,8 @@ export interface PreparedPoint {
 }
 
 export function preparePoint(g: GridPoint): PreparedPoint {
-  const w0 = 1 / Math.sqrt(g.l_h * g.c_f);
-  const part = { l_h: g.l_h, rs_ohm: (w0 * g.l_h) / g.q };
-  const k = ringConstants(part, g.c_f);
-  const ring = ringWaveform(part, g.c_f, g.a0_v * g.c_f * k.wd_rad_s);
+  const k = ringOfQ(g.l_h, g.c_f, g.q, g.a0_v);
+  const ring = k.ring;
   const [vh, vl] = thresholdsOf(g);
   // A fixed 40 ns propagation delay: constant delays move only the phase (notes §2).
   const comp: ComparatorModel = { rising_v: vh, falling_v: vl, jitter_s: g.jitter_s, noise_v: g.noise_v, delay_s: 40e-9 };
