@@ -146,6 +146,16 @@ static void rx(const char* hex) {
   run();
 }
 
+/* Instantiates the firmware and runs its init, once the script's settings (id, bits) are read. */
+static void start_firmware(void) {
+  wasm_rt_init();
+  Z_henrytick_init_module();
+  if (!HT_RT_TRY()) guard_failed();
+  Z_henrytick_instantiate(&fw, &hal);
+  Z_henrytickZ_fw_init(&fw);
+  HT_RT_DONE();
+}
+
 static record_t parse_record(char** save) {
   record_t r = {0, NULL, NULL, -1, 0};
   r.n = atoi(strtok_r(NULL, " \t\r\n", save));
@@ -186,12 +196,7 @@ int main(int argc, char** argv) {
       continue;
     }
     if (!started) {
-      wasm_rt_init();
-      Z_henrytick_init_module();
-      if (!HT_RT_TRY()) guard_failed();
-      Z_henrytick_instantiate(&fw, &hal);
-      Z_henrytickZ_fw_init(&fw);
-      HT_RT_DONE();
+      start_firmware();
       started = 1;
     }
     if (strcmp(cmd, "capture") == 0) push(&captures, parse_record(&save));
@@ -213,14 +218,7 @@ int main(int argc, char** argv) {
     }
   }
   free(line);
-  if (!started) {
-    wasm_rt_init();
-    Z_henrytick_init_module();
-    if (!HT_RT_TRY()) guard_failed();
-    Z_henrytick_instantiate(&fw, &hal);
-    Z_henrytickZ_fw_init(&fw);
-    HT_RT_DONE();
-  }
+  if (!started) start_firmware();
   fflush(stdout);
   return 0;
 }
