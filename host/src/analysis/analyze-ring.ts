@@ -14,7 +14,7 @@ import { fitLimits, initialVariance, rankStarts, subsetMask } from "./fit-start.
 import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
 import { reassignHalfCycles } from "./model-bookkeeping.ts";
 import { edgeTimeVariances, edgeVariances, estimateNoise, type NoiseEstimate } from "./noise-model.ts";
-import { ringQuantities, COVERAGE_K } from "./ring-quantities.ts";
+import { ringQuantities, COVERAGE_K, type RingQuantities } from "./ring-quantities.ts";
 import { correlationInflation, residualCorrelation } from "./residual-correlation.ts";
 import { huberWeight, madSigma, median } from "./robust-stats.ts";
 import { invertSymmetric } from "./small-linear-algebra.ts";
@@ -59,10 +59,12 @@ export interface FitState {
 }
 
 export function analyzeRing(input: RingInput): RingAnalysis {
-  const s = fitRing(input);
-  const c = s.checked;
-  const cov2: [number, number, number] = [s.cov[0], s.cov[3], s.cov[15]];
-  const rq = ringQuantities(s.p[P_WD], s.p[P_ALPHA], cov2, c.c_f, c.c_u_f, c.timebase_u_rel);
+  return analyzeFit(fitRing(input));
+}
+
+/** The result of a fit (fitRing): quantities, uncertainties, rejected edges and warnings. */
+export function analyzeFit(s: FitState): RingAnalysis {
+  const rq = quantitiesOf(s);
   const rejected: { index: number; reason: string }[] = [];
   for (let k = 0; k < s.edges.n; k++) {
     if (s.used[k] > 0) continue;
@@ -76,8 +78,7 @@ export function analyzeRing(input: RingInput): RingAnalysis {
   if (s.alternative) {
     // Two basins the edges cannot tell apart: each interval is widened to cover the other
     // fit's interval too, and a warning says so.
-    const a = s.alternative;
-    const ra = ringQuantities(a.p[P_WD], a.p[P_ALPHA], [a.cov[0], a.cov[3], a.cov[15]], c.c_f, c.c_u_f, c.timebase_u_rel);
+    const ra = quantitiesOf(s.alternative);
     const cover = (x: number, u: number, y: number, v: number) => Math.max(u, Math.abs(x - y) + v);
     U.l = cover(rq.inductance_h, U.l, ra.inductance_h, COVERAGE_K * ra.u.inductance_h);
     U.q = cover(rq.q, U.q, ra.q, COVERAGE_K * ra.u.q);
@@ -111,6 +112,12 @@ export function analyzeRing(input: RingInput): RingAnalysis {
     noise: { sigma_t_s: Math.sqrt(s.noise.sigma_t2), sigma_v_v: Math.sqrt(s.noise.sigma_v2) },
     ...(diagnosis.drift ? { drift: diagnosis.drift } : {}),
   };
+}
+
+/** f0, L, Q, ESR and their uncertainties from a fit's (wd, alpha) and their covariance. */
+function quantitiesOf(s: FitState): RingQuantities {
+  const c = s.checked;
+  return ringQuantities(s.p[P_WD], s.p[P_ALPHA], [s.cov[0], s.cov[3], s.cov[15]], c.c_f, c.c_u_f, c.timebase_u_rel);
 }
 
 /**

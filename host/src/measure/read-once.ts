@@ -1,7 +1,8 @@
 // Single pulses and their analysis, shared by fixed-setting readings and automatic ranging.
 
 import type { RingAnalysis } from "../analysis/index.ts";
-import { AnalysisError, analyzeRing } from "../analysis/index.ts";
+import { AnalysisError } from "../analysis/index.ts";
+import { analyzeFit, fitRing, type FitState } from "../analysis/analyze-ring.ts";
 import type { CaptureV1 } from "../capture/capture-file.ts";
 import type { DeviceClient, MeasureSettings } from "../device/client.ts";
 import { formatSi } from "../format/si.ts";
@@ -32,8 +33,14 @@ export async function readOnce(client: DeviceClient, settings: MeasureSettings, 
 
 /** Analysis of a capture, with ring-level failures turned into a user-facing MeasureError. */
 export function analyzeCapture(capture: CaptureV1): RingAnalysis {
+  return fitCapture(capture).analysis;
+}
+
+/** The same with the fit behind it (residuals, model, edge use), for plots of the ring. */
+export function fitCapture(capture: CaptureV1): { fit: FitState; analysis: RingAnalysis } {
   try {
-    return analyzeRing(ringInputFromCapture(capture));
+    const fit = fitRing(ringInputFromCapture(capture));
+    return { fit, analysis: analyzeFit(fit) };
   } catch (e) {
     if (e instanceof AnalysisError) throw new MeasureError(e.code, e.message);
     throw e;

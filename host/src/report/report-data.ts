@@ -5,12 +5,10 @@
 // the voltage makes the measured periods leave the model line, notes §7); and the budget.
 // Pure: no I/O.
 
-import { fitRing } from "../analysis/analyze-ring.ts";
 import { modelEdgeTime, P_ALPHA, P_LNA, P_PHI, P_WD } from "../analysis/edge-model.ts";
 import type { CaptureV1 } from "../capture/capture-file.ts";
-import { analyzeCapture } from "../measure/measure-part.ts";
+import { fitCapture } from "../measure/read-once.ts";
 import { buildResult, type ResultJson } from "../measure/result.ts";
-import { ringInputFromCapture } from "../measure/capture-build.ts";
 
 export interface ReportData {
   result: ResultJson;
@@ -31,9 +29,8 @@ const DETAIL_CYCLES = 10;
 const SAMPLES_PER_CYCLE = 48;
 
 export function reportData(capture: CaptureV1): ReportData {
-  const analysis = analyzeCapture(capture);
+  const { fit: s, analysis } = fitCapture(capture);
   const result = buildResult(analysis, capture);
-  const s = fitRing(ringInputFromCapture(capture));
   const p = s.p;
   const wd = p[P_WD];
   const alpha = p[P_ALPHA];
