@@ -9,7 +9,7 @@
 
 import { Random } from "../sim/random.ts";
 import type { Transport } from "./transport.ts";
-import { TransportBase, TransportError } from "./transport.ts";
+import { LineSplitter, TransportBase, TransportError } from "./transport.ts";
 
 export type RxFault = "drop_byte" | "flip_bit" | "duplicate_line" | "reorder_lines" | "stall" | "reset";
 export type TxFault = "tx_drop_byte" | "tx_flip_bit";
@@ -49,7 +49,8 @@ export class FaultTransport extends TransportBase implements Transport {
   private armedByte: number | undefined;
   private armedBit: number | undefined;
   private writes = 0;
-  private rxPending = "";
+  /** Re-splits damaged bytes into lines: a lost newline merges two lines, a made one splits. */
+  private readonly rxLines = new LineSplitter((line) => this.lineStage(line));
   private held: string | null = null;
   private queue: { at_ms: number; line: string }[] = [];
   private timer: NodeJS.Timeout | null = null;
@@ -93,7 +94,7 @@ export class FaultTransport extends TransportBase implements Transport {
       const g = this.garbagePending;
       this.garbagePending = null;
       this.injected.garbage_at_connect++;
-      this.split(g);
+      this.rxLines.pushText(g);
     }
     this.writes++;
     const text = new TextDecoder("latin1").decode(data);
@@ -146,20 +147,9 @@ export class FaultTransport extends TransportBase implements Transport {
         ? bytes.slice(0, at) + bytes.slice(at + 1)
         : bytes.slice(0, at) + String.fromCharCode(bytes.charCodeAt(at) ^ (1 << this.bit())) + bytes.slice(at + 1);
     }
-    this.split(bytes);
+    this.rxLines.pushText(bytes);
   }
 
-  /** Re-splits damaged bytes into lines: a lost newline merges two lines, a made one splits. */
-  private split(bytes: string): void {
-    this.rxPending += bytes;
-    let nl = this.rxPending.indexOf("\n");
-    while (nl >= 0) {
-      const l = this.rxPending.slice(0, nl);
-      this.rxPending = this.rxPending.slice(nl + 1);
-      this.lineStage(l);
-      nl = this.rxPending.indexOf("\n");
-    }
-  }
 
   private lineStage(line: string): void {
     if (this.held !== null) {

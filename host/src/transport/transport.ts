@@ -48,7 +48,12 @@ export class LineSplitter {
   constructor(private readonly emit: (line: string) => void) {}
 
   push(bytes: Uint8Array): void {
-    this.pending += this.decoder.decode(bytes, { stream: true });
+    this.pushText(this.decoder.decode(bytes, { stream: true }));
+  }
+
+  /** The same for text already decoded (one character per byte). */
+  pushText(text: string): void {
+    this.pending += text;
     let nl = this.pending.indexOf("\n");
     while (nl >= 0) {
       const line = this.pending.slice(0, nl);
