@@ -86,10 +86,7 @@ export class DeviceClient {
 
   identify(): Promise<DeviceIdentity> {
     return this.exclusive(async () => {
-      const frames = await this.command("ID", []);
-      const id = frames.find((f) => f.tag === "ID");
-      if (!id) throw new ProtocolError("identify reply missing", "BAD_REPLY");
-      return parseIdentity(id);
+      return parseIdentity(await this.reply("ID", "ID", "identify"));
     });
   }
 
@@ -100,30 +97,21 @@ export class DeviceClient {
   /** Listens with the switch open for the profile's self-test window and reports stray edges. */
   selfTest(): Promise<SelfTestReport> {
     return this.exclusive(async () => {
-      const frames = await this.command("ST", [], (this.profile?.self_test_us ?? 0) / 1000);
-      const sr = frames.find((f) => f.tag === "SR");
-      if (!sr) throw new ProtocolError("self-test reply missing", "BAD_REPLY");
-      return parseSelfTest(sr);
+      return parseSelfTest(await this.reply("ST", "SR", "self-test", (this.profile?.self_test_us ?? 0) / 1000));
     });
   }
 
   /** The tester's event counters (measurements, faults, refused commands, lost bytes). */
   counters(): Promise<DeviceCounters> {
     return this.exclusive(async () => {
-      const frames = await this.command("CN", []);
-      const ct = frames.find((f) => f.tag === "CT");
-      if (!ct) throw new ProtocolError("counters reply missing", "BAD_REPLY");
-      return parseCounters(ct);
+      return parseCounters(await this.reply("CN", "CT", "counters"));
     });
   }
 
   /** The tester's free-running timer, low 32 bits (unsigned), as it handled the request. */
   readTicks32(): Promise<number> {
     return this.exclusive(async () => {
-      const frames = await this.command("TK", []);
-      const tk = frames.find((f) => f.tag === "TK");
-      if (!tk) throw new ProtocolError("tick reply missing", "BAD_REPLY");
-      return intField(tk, 0, "ticks") >>> 0;
+      return intField(await this.reply("TK", "TK", "tick"), 0, "ticks") >>> 0;
     });
   }
 
@@ -213,6 +201,13 @@ export class DeviceClient {
    * After a reply that is corrupt or late, the link is drained until quiet before the error is
    * raised, so that the rest of that reply cannot be taken for the next command's.
    */
+  /** Sends an argument-less command and returns its reply frame `tag`; BAD_REPLY without one. */
+  private async reply(command: string, tag: string, what: string, extraWait_ms = 0): Promise<Frame> {
+    const frame = (await this.command(command, [], extraWait_ms)).find((f) => f.tag === tag);
+    if (!frame) throw new ProtocolError(`${what} reply missing`, "BAD_REPLY");
+    return frame;
+  }
+
   private async command(tag: string, args: number[], extraWait_ms = 0, token?: number): Promise<Frame[]> {
     this.inbox = []; // lines left from an earlier exchange belong to no one
     await this.transport.write(encodeCommand(tag, args));
