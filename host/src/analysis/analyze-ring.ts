@@ -209,11 +209,11 @@ function fitFrom(
   let reforms = 0;
   let staleForms = false;
   for (let round = 0; ; round++) {
-    // Residual forms follow the model while it is still moving (rounds 0 and 1), then stay, so
-    // that the weights of a round and its residuals use the same scales; unless the model has
-    // since moved an edge across the grazing limit (a phase-form edge the envelope no longer
-    // clearly reaches), which is chosen again, a few times at most.
-    if (round <= 1 || staleForms) {
+    // Residual forms follow the model while it is still moving (set at the start, again in
+    // round 1), then stay, so that the weights of a round and its residuals use the same
+    // scales; unless the model has since moved an edge across the grazing limit (a phase-form
+    // edge the envelope no longer clearly reaches), which is chosen again, a few times at most.
+    if (round === 1 || staleForms) {
       chooseResidualForms(p, e, c.vh_v, c.vl_v);
       cached = false;
       if (round > 1) reforms++;

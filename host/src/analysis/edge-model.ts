@@ -153,16 +153,17 @@ export function evaluateEdges(
  * This keeps a fit from lowering the envelope onto the threshold to make many edges "grazing"
  * (the level form is weakly sensitive to timing there) and so hide their timing.
  */
-export function chooseResidualForms(p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number): void {
-  formsAt(p, e, vh_v, vl_v, true);
+export function chooseResidualForms(p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number, mask: Float64Array | null = null): void {
+  formsAt(p, e, vh_v, vl_v, true, mask);
 }
 
 /** How many edges would change residual form if the forms were chosen again at p. */
 export function formChanges(p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number): number {
-  return formsAt(p, e, vh_v, vl_v, false);
+  return formsAt(p, e, vh_v, vl_v, false, null);
 }
 
-function formsAt(p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number, apply: boolean): number {
+/** `mask`: only edges with mask[k] > 0 are looked at (null: all). */
+function formsAt(p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number, apply: boolean, mask: Float64Array | null): number {
   let changes = 0;
   const wd = p[P_WD];
   const a0 = Math.exp(p[P_LNA]);
@@ -170,6 +171,7 @@ function formsAt(p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number, a
   const lastM = [-Infinity, -Infinity];
   for (let k = 0; k < e.n; k++) if (e.m[k] === e.m[k]) lastM[e.rising[k]] = Math.max(lastM[e.rising[k]], e.m[k]);
   for (let k = 0; k < e.n; k++) {
+    if (mask !== null && !(mask[k] > 0)) continue;
     const rise = e.rising[k] === 1;
     const amp = a0 * Math.exp(-alpha * e.t_s[k]);
     const u = (rise ? vh_v : vl_v) / amp;

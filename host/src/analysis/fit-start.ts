@@ -20,8 +20,9 @@ export function rankStarts(
   const varT = Math.max(candidates[0].ms_residual_s2, q);
   const out: RankedStart[] = [];
   for (const cand of candidates) {
-    chooseResidualForms(cand.p, e, c.vh_v, c.vl_v);
-    const variance = initialVariance(cand.p, e, varT, ws);
+    // The short fit sees only the subset: forms and variances are needed there alone.
+    chooseResidualForms(cand.p, e, c.vh_v, c.vl_v, mask);
+    const variance = initialVariance(cand.p, e, varT, ws, mask);
     for (let k = 0; k < e.n; k++) variance[k] = mask[k] > 0 ? 1 / variance[k] : 0;
     const fit = fitEdgeModel(e, c.vh_v, c.vl_v, cand.p, variance, null, ws, limits, 25, 1e-3, false, true);
     if (Number.isFinite(fit.chi2)) out.push({ p: fit.p, ms_residual_s2: cand.ms_residual_s2, chi2: fit.chi2 });
@@ -86,13 +87,18 @@ export function subsetMask(e: EdgeSet, count: number, tail: number): Float64Arra
   return mask;
 }
 
-/** Round-0 variances: timing noise only, slopes floored so grazing edges do not dominate. */
-export function initialVariance(p: Float64Array, e: EdgeSet, var_t_s2: number, ws: FitWorkspace): Float64Array {
+/**
+ * Round-0 variances: timing noise only, slopes floored so grazing edges do not dominate. With a
+ * mask, only edges with mask[k] > 0 get one (the others stay Infinity).
+ */
+export function initialVariance(
+  p: Float64Array, e: EdgeSet, var_t_s2: number, ws: FitWorkspace, mask: Float64Array | null = null,
+): Float64Array {
   const out = new Float64Array(e.n).fill(Infinity);
-  evaluateEdges(p, e, 0, 0, null, null, { slope: ws.slope });
+  evaluateEdges(p, e, 0, 0, mask, null, { slope: ws.slope });
   const a0 = Math.exp(p[P_LNA]);
   for (let k = 0; k < e.n; k++) {
-    if (e.m[k] !== e.m[k]) continue;
+    if (e.m[k] !== e.m[k] || (mask !== null && !(mask[k] > 0))) continue;
     const floor = 0.3 * p[P_WD] * a0 * Math.exp(-p[P_ALPHA] * e.t_s[k]);
     out[k] = var_t_s2 * (ws.slope[k] * ws.slope[k] + floor * floor);
   }
