@@ -1,6 +1,8 @@
 // The public shapes of the ring-down analysis. Times are seconds, voltages volts, everything SI;
 // uncertainties named `_u_` are expanded (k = 2, JCGM 100:2008 §6) unless a field says otherwise.
 
+import { CodedError } from "../coded-error.ts";
+
 export interface RingInput {
   /** Timer tick rate, Hz. */
   tick_hz: number;
@@ -60,11 +62,4 @@ export interface RingAnalysis {
 }
 
 /** Thrown for input that cannot be analysed; `code` is stable, the message says what to do. */
-export class AnalysisError extends Error {
-  code: string;
-  constructor(code: string, message: string) {
-    super(message);
-    this.name = "AnalysisError";
-    this.code = code;
-  }
-}
+export class AnalysisError extends CodedError {}

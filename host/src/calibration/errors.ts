@@ -1,12 +1,9 @@
 // Errors a user can meet while calibrating or loading a calibration profile. Each carries a
 // stable code and a message that ends with what to do next.
 
-export class CalibrationError extends Error {
-  constructor(readonly code: string, message: string) {
-    super(message);
-    this.name = "CalibrationError";
-  }
-}
+import { CodedError } from "../coded-error.ts";
+
+export class CalibrationError extends CodedError {}
 
 /** Stable codes, listed once so docs and tests can refer to them. */
 export const CALIBRATION_CODES = [

@@ -2,6 +2,7 @@
 // needed to analyse it again later. Written by `measure --save`, read by `analyze`.
 
 import { closeSync, fsyncSync, openSync, renameSync, readFileSync, writeSync } from "node:fs";
+import { CodedError } from "../coded-error.ts";
 
 export const CAPTURE_FORMAT = "henrytick-capture";
 export const CAPTURE_VERSION = 1;
@@ -27,11 +28,9 @@ export interface CaptureV1 {
   [extra: string]: unknown;
 }
 
-export class CaptureFileError extends Error {
-  readonly code = "BAD_CAPTURE_FILE";
+export class CaptureFileError extends CodedError<"BAD_CAPTURE_FILE"> {
   constructor(message: string) {
-    super(message);
-    this.name = "CaptureFileError";
+    super("BAD_CAPTURE_FILE", message);
   }
 }
 

@@ -76,8 +76,8 @@ export class DeviceClient {
     }
     if (client.identity.protocol_version !== PROTOCOL_VERSION) {
       throw new ProtocolError(
-        `tester speaks protocol v${client.identity.protocol_version}, this host speaks v${PROTOCOL_VERSION}; update the firmware or the host`,
         "PROTOCOL_VERSION",
+        `tester speaks protocol v${client.identity.protocol_version}, this host speaks v${PROTOCOL_VERSION}; update the firmware or the host`,
       );
     }
     client.profile = await client.readProfile();
@@ -138,7 +138,7 @@ export class DeviceClient {
             await this.command("CR", [token], 0, token);
           } catch (e) {
             if (e instanceof DeviceError && e.code === "BAD_ARGUMENT") {
-              throw new ProtocolError("the tester no longer holds the capture (it may have restarted); measure again", "CAPTURE_LOST");
+              throw new ProtocolError("CAPTURE_LOST", "the tester no longer holds the capture (it may have restarted); measure again");
             }
             throw e;
           }
@@ -154,8 +154,8 @@ export class DeviceClient {
       }
       if (lastDefect instanceof DeviceTimeoutError) throw lastDefect; // the tester stopped answering
       throw new ProtocolError(
-        `capture damaged in transit ${this.resendAttempts + 1} times (${lastDefect?.message}); check the cable and USB port, then measure again`,
         "CAPTURE_DAMAGED",
+        `capture damaged in transit ${this.resendAttempts + 1} times (${lastDefect?.message}); check the cable and USB port, then measure again`,
       );
     });
   }
@@ -204,7 +204,7 @@ export class DeviceClient {
   /** Sends an argument-less command and returns its reply frame `tag`; BAD_REPLY without one. */
   private async reply(command: string, tag: string, what: string, extraWait_ms = 0): Promise<Frame> {
     const frame = (await this.command(command, [], extraWait_ms)).find((f) => f.tag === tag);
-    if (!frame) throw new ProtocolError(`${what} reply missing`, "BAD_REPLY");
+    if (!frame) throw new ProtocolError("BAD_REPLY", `${what} reply missing`);
     return frame;
   }
 
@@ -215,7 +215,7 @@ export class DeviceClient {
     try {
       for (;;) {
         const d = await this.next(this.replyTimeout + extraWait_ms, `reply to ${tag}`);
-        if (!d.ok) throw new ProtocolError(`corrupt reply to ${tag} (error ${d.code}): ${JSON.stringify(d.line)}; check the cable and retry`, "LINK_CORRUPT");
+        if (!d.ok) throw new ProtocolError("LINK_CORRUPT", `corrupt reply to ${tag} (error ${d.code}): ${JSON.stringify(d.line)}; check the cable and retry`);
         const f = d.frame;
         if (f.tag === "OK" && f.fields[0] === tag) {
           if (token === undefined || f.fields[1] === String(token)) return frames;

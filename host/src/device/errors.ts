@@ -5,19 +5,17 @@ import {
   ERR_ABORTED, ERR_ARGUMENT, ERR_BUSY, ERR_CHARGE_LIMIT, ERR_CRC, ERR_LINE_TOO_LONG, ERR_REST,
   ERR_SYNTAX, ERR_UNKNOWN_COMMAND, ERR_RINGING, ERR_CAPTURE_FAULT,
 } from "@henrytick/shared-protocol";
+import { CodedError } from "../coded-error.ts";
 
 /** The tester refused a command with an `ER` frame. */
-export class DeviceError extends Error {
-  readonly code: string;
+export class DeviceError extends CodedError {
   readonly deviceCode: number;
   readonly command: string;
   /** Optional numeric detail from the ER frame (REST_PENDING, RINGING: milliseconds to wait). */
   readonly detail: number | undefined;
   constructor(deviceCode: number, command: string, detail?: number) {
     const [code, text] = describeDeviceError(deviceCode);
-    super(`tester refused ${command}: ${text}${detail !== undefined && (code === "REST_PENDING" || code === "RINGING") ? ` (${detail} ms)` : ""}`);
-    this.name = "DeviceError";
-    this.code = code;
+    super(code, `tester refused ${command}: ${text}${detail !== undefined && (code === "REST_PENDING" || code === "RINGING") ? ` (${detail} ms)` : ""}`);
     this.deviceCode = deviceCode;
     this.command = command;
     this.detail = detail;
@@ -25,11 +23,9 @@ export class DeviceError extends Error {
 }
 
 /** No answer within the allowed time. */
-export class DeviceTimeoutError extends Error {
-  readonly code = "DEVICE_TIMEOUT";
+export class DeviceTimeoutError extends CodedError<"DEVICE_TIMEOUT"> {
   constructor(what: string, timeout_ms: number) {
-    super(`no ${what} from the tester within ${timeout_ms} ms; check that the port is a henrytick tester, then unplug and reconnect it`);
-    this.name = "DeviceTimeoutError";
+    super("DEVICE_TIMEOUT", `no ${what} from the tester within ${timeout_ms} ms; check that the port is a henrytick tester, then unplug and reconnect it`);
   }
 }
 

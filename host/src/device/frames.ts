@@ -3,6 +3,7 @@
 // firmware runs.
 
 import { FrameReader, FrameWriter } from "@henrytick/shared-protocol";
+import { CodedError } from "../coded-error.ts";
 
 const encoder = new TextEncoder();
 const writer = new FrameWriter();
@@ -45,17 +46,10 @@ export function decodeLine(line: string): Decoded {
 export function intField(frame: Frame, index: number, name: string): number {
   const s = frame.fields[index];
   if (s === undefined || !/^-?\d{1,10}$/.test(s)) {
-    throw new ProtocolError(`frame ${frame.tag}: field ${name} (${index + 1}) is not an integer: ${JSON.stringify(s)}`, "BAD_FIELD");
+    throw new ProtocolError("BAD_FIELD", `frame ${frame.tag}: field ${name} (${index + 1}) is not an integer: ${JSON.stringify(s)}`);
   }
   return Number(s);
 }
 
 /** A link-level failure: corrupt frame, missing line, unexpected reply. */
-export class ProtocolError extends Error {
-  readonly code: string;
-  constructor(message: string, code: string) {
-    super(message);
-    this.name = "ProtocolError";
-    this.code = code;
-  }
-}
+export class ProtocolError extends CodedError {}

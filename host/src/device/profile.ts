@@ -50,7 +50,7 @@ export interface DeviceProfile {
 
 export function parseIdentity(frame: Frame): DeviceIdentity {
   if (frame.tag !== "ID" || frame.fields.length !== 4) {
-    throw new ProtocolError(`unexpected identify reply: ${frame.line}`, "BAD_REPLY");
+    throw new ProtocolError("BAD_REPLY", `unexpected identify reply: ${frame.line}`);
   }
   return {
     product: frame.fields[0],
@@ -105,7 +105,7 @@ export function parseProfile(frames: Frame[]): DeviceProfile {
   }
   const missing = ["tick_hz", "thresholds_v", "supply_v", "buffer_edges"].filter((k) => (p as Record<string, unknown>)[k] === undefined);
   if (missing.length > 0 || p.drives.length === 0 || p.tanks.length === 0) {
-    throw new ProtocolError(`device profile incomplete (missing ${missing.join(", ") || "drive or tank list"})`, "BAD_PROFILE");
+    throw new ProtocolError("BAD_PROFILE", `device profile incomplete (missing ${missing.join(", ") || "drive or tank list"})`);
   }
   p.drives.sort((a, b) => a.index - b.index);
   p.tanks.sort((a, b) => a.index - b.index);
@@ -120,7 +120,7 @@ export interface SelfTestReport {
 }
 
 export function parseSelfTest(frame: Frame): SelfTestReport {
-  if (frame.tag !== "SR" || frame.fields.length < 2) throw new ProtocolError(`unexpected self-test reply: ${frame.line}`, "BAD_REPLY");
+  if (frame.tag !== "SR" || frame.fields.length < 2) throw new ProtocolError("BAD_REPLY", `unexpected self-test reply: ${frame.line}`);
   const stray = intField(frame, 1, "stray_edges");
   return { window_us: intField(frame, 0, "window_us"), stray_edges: stray, passed: stray === 0 };
 }
@@ -134,7 +134,7 @@ export interface DeviceCounters {
 }
 
 export function parseCounters(frame: Frame): DeviceCounters {
-  if (frame.tag !== "CT" || frame.fields.length < 4) throw new ProtocolError(`unexpected counters reply: ${frame.line}`, "BAD_REPLY");
+  if (frame.tag !== "CT" || frame.fields.length < 4) throw new ProtocolError("BAD_REPLY", `unexpected counters reply: ${frame.line}`);
   return {
     measurements: intField(frame, 0, "measurements"),
     faults: intField(frame, 1, "faults"),

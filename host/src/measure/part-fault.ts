@@ -27,9 +27,12 @@ export interface PartFault {
  * ring could be analysed at all): kept for inspection and logs, not a result.
  */
 export class PartFaultError extends MeasureError {
-  constructor(code: PartFaultCode, message: string, readonly suspect?: Reading) {
+  constructor(
+    code: PartFaultCode,
+    message: string,
+    readonly suspect?: Reading,
+  ) {
     super(code, message);
-    this.name = "PartFaultError";
   }
 }
 

@@ -8,14 +8,11 @@ import type { DeviceClient, MeasureSettings } from "../device/client.ts";
 import { formatSi } from "../format/si.ts";
 import { captureFromDevice, ringInputFromCapture } from "./capture-build.ts";
 import type { MeasureOptions, Reading } from "./measure-part.ts";
+import { CodedError } from "../coded-error.ts";
 
-export class MeasureError extends Error {
+export class MeasureError extends CodedError {
   /** The capture that could not be analysed, when the error came from its analysis. */
   capture?: CaptureV1;
-  constructor(readonly code: string, message: string) {
-    super(message);
-    this.name = "MeasureError";
-  }
 }
 
 /** Pulses once on the given settings and analyses the capture. */

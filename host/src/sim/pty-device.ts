@@ -15,18 +15,12 @@ import type { ChildProcessByStdio } from "node:child_process";
 import type { Readable, Writable } from "node:stream";
 import type { PartModel } from "./scenario.ts";
 import { SimTester } from "./sim-tester.ts";
+import { CodedError } from "../coded-error.ts";
 
 export type PtyDeviceErrorCode = "SOCAT_MISSING" | "SOCAT_FAILED" | "SOCAT_NO_PTY" | "SOCAT_EXITED" | "SIM_FAULT";
 
 /** A failure to start or keep the simulated serial device; `code` is stable, the message ends with a next step. */
-export class PtyDeviceError extends Error {
-  readonly code: PtyDeviceErrorCode;
-  constructor(code: PtyDeviceErrorCode, message: string) {
-    super(message);
-    this.name = "PtyDeviceError";
-    this.code = code;
-  }
-}
+export class PtyDeviceError extends CodedError<PtyDeviceErrorCode> {}
 
 export interface PtyDeviceOptions {
   /** The part on the simulated clips; null for open terminals. */

@@ -4,6 +4,7 @@
 import { readFileSync, readdirSync } from "node:fs";
 import { basename, dirname, join } from "node:path";
 import { fileURLToPath } from "node:url";
+import { CodedError } from "../coded-error.ts";
 
 export interface PartModel {
   inductance_h: number;
@@ -36,13 +37,12 @@ export interface Scenario {
   seed: number;
 }
 
-export class ScenarioError extends Error {
-  readonly code = "BAD_SCENARIO";
-  readonly field: string;
-  constructor(field: string, message: string) {
-    super(`scenario field "${field}": ${message}`);
-    this.name = "ScenarioError";
-    this.field = field;
+export class ScenarioError extends CodedError<"BAD_SCENARIO"> {
+  constructor(
+    readonly field: string,
+    message: string,
+  ) {
+    super("BAD_SCENARIO", `scenario field "${field}": ${message}`);
   }
 }
 

@@ -2,6 +2,8 @@
 // hardware or a pseudo-terminal) and the in-process simulated tester. The device client is
 // written against this interface only.
 
+import { CodedError } from "../coded-error.ts";
+
 export interface Transport {
   /** Human-readable name of the link, for messages ("serial /dev/ttyACM0", "simulated tester"). */
   readonly description: string;
@@ -29,15 +31,16 @@ export abstract class TransportBase {
 }
 
 /** A failure of the link itself. `disconnected` is true when the device went away. */
-export class TransportError extends Error {
-  readonly disconnected: boolean;
-  /** LINK_DISCONNECTED when the device went away (unplugged, port closed), else LINK_ERROR. */
-  readonly code: string;
-  constructor(message: string, disconnected: boolean) {
-    super(disconnected ? `${message} (the tester was disconnected: check the cable and reconnect)` : message);
-    this.name = "TransportError";
-    this.disconnected = disconnected;
-    this.code = disconnected ? "LINK_DISCONNECTED" : "LINK_ERROR";
+/** Code LINK_DISCONNECTED when the device went away (unplugged, port closed), else LINK_ERROR. */
+export class TransportError extends CodedError<"LINK_DISCONNECTED" | "LINK_ERROR"> {
+  constructor(
+    message: string,
+    readonly disconnected: boolean,
+  ) {
+    super(
+      disconnected ? "LINK_DISCONNECTED" : "LINK_ERROR",
+      disconnected ? `${message} (the tester was disconnected: check the cable and reconnect)` : message,
+    );
   }
 }
 

@@ -5,12 +5,11 @@
 
 import type { DeviceClient } from "../device/client.ts";
 import { measurePart, type MeasureOptions, type Reading } from "../measure/measure-part.ts";
+import { CodedError } from "../coded-error.ts";
 
-export class MeasureAbortedError extends Error {
-  readonly code = "ABORTED";
+export class MeasureAbortedError extends CodedError<"ABORTED"> {
   constructor() {
-    super("the reading was abandoned (AbortSignal); start a new one when ready");
-    this.name = "MeasureAbortedError";
+    super("ABORTED", "the reading was abandoned (AbortSignal); start a new one when ready");
   }
 }
 

@@ -5,6 +5,7 @@
 
 import { closeSync, existsSync, fstatSync, fsyncSync, openSync, readFileSync, readSync, writeSync } from "node:fs";
 import type { PartRecord } from "./sort-session.ts";
+import { CodedError } from "../coded-error.ts";
 
 export const CSV_COLUMNS: readonly (keyof PartRecord)[] = [
   "part", "time", "lot", "label", "inductance_h", "inductance_u_h", "decision", "p_conform", "lower_h", "upper_h",
@@ -13,12 +14,7 @@ export const CSV_COLUMNS: readonly (keyof PartRecord)[] = [
 ];
 const HEADER = CSV_COLUMNS.join(",");
 
-export class SortLogError extends Error {
-  constructor(readonly code: string, message: string) {
-    super(message);
-    this.name = "SortLogError";
-  }
-}
+export class SortLogError extends CodedError {}
 
 /** RFC 4180 field: quoted when it holds a comma, quote or line break. */
 export function csvField(v: unknown): string {
