@@ -102,6 +102,20 @@ describe("link faults the host cannot repair end in a coded error, and never in 
     await rig.close();
   });
 
+  it("recall returns the tester's held capture again without a pulse; before any pulse it is CAPTURE_LOST", async () => {
+    const rig = await openRig({ seed: 26 });
+    const none = await caught(() => rig.client.recall(SETTING));
+    expect((none as { code?: string }).code).toBe("CAPTURE_LOST");
+    const raw = await rig.client.measure(SETTING);
+    const again = await rig.client.recall(SETTING);
+    await settle();
+    expect(again.ticks).toEqual(raw.ticks);
+    expect(again.levels).toEqual(raw.levels);
+    expect(matchesTruth(again, rig.link.sim)).toBe(true);
+    expect(rig.pulses()).toBe(1);
+    await rig.close();
+  });
+
   it("the port vanishing mid-capture rejects at once with a disconnected TransportError, and so does every later call", async () => {
     const rig = await openRig({ seed: 25 });
     const p = rig.client.measure(SETTING);

@@ -18,7 +18,6 @@ import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { SimDevices, type RunningDevice } from "../e2e/sim-device-process.ts";
 import { DeviceClient } from "../../host/src/device/client.ts";
-import type { MeasureSettings } from "../../host/src/device/client.ts";
 import { DeviceError } from "../../host/src/device/errors.ts";
 import { ProtocolError } from "../../host/src/device/frames.ts";
 import type { RawCapture } from "../../host/src/device/stream-reader.ts";
@@ -70,27 +69,6 @@ async function connect(path: string, faults: Omit<FaultOptions, "seed"> = {}, re
   }
 }
 
-type ClientInternals = {
-  exclusive<T>(fn: () => Promise<T>): Promise<T>;
-  command(tag: string, args: number[], extraWait_ms?: number, token?: number): Promise<unknown>;
-  readStream(s: MeasureSettings, firstWait_ms: number, token: number): Promise<RawCapture>;
-  nextToken(): number;
-};
-
-/**
- * The capture the tester holds, fetched once more with CR (which never pulses) over the link with
- * no fault armed: the client's own resend path, reached through its internals because the
- * library has no reason to offer a bare resend.
- */
-function storedCapture(client: DeviceClient, s: MeasureSettings): Promise<RawCapture> {
-  const c = client as unknown as ClientInternals;
-  return c.exclusive(async () => {
-    const token = c.nextToken();
-    await c.command("CR", [token], 0, token);
-    return c.readStream(s, REPLY_TIMEOUT_MS, token);
-  });
-}
-
 /** Pulses fired by the tester since it started (its CN counter). */
 async function pulses(client: DeviceClient): Promise<number> {
   return (await client.counters()).measurements;
@@ -106,7 +84,7 @@ async function recovers(rig: SerialRig, inject: (r: SerialRig) => void = () => {
   const raw = await rig.client.measure(SETTING);
   expect(await pulses(rig.client)).toBe(before + 1);
   expect(raw.end_reason).toBe("quiet");
-  const held = await storedCapture(rig.client, SETTING);
+  const held = await rig.client.recall(SETTING); // the tester's copy, sent again without a pulse
   expect(raw.ticks).toEqual(held.ticks);
   expect(raw.levels).toEqual(held.levels);
   expect(raw.ticks.length).toBeGreaterThan(20);

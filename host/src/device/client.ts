@@ -134,14 +134,7 @@ export class DeviceClient {
         if (attempt > 0) {
           // A resend has its own token: lines of an earlier attempt still in flight cannot pass for it.
           token = this.nextToken();
-          try {
-            await this.command("CR", [token], 0, token);
-          } catch (e) {
-            if (e instanceof DeviceError && e.code === "BAD_ARGUMENT") {
-              throw new ProtocolError("CAPTURE_LOST", "the tester no longer holds the capture (it may have restarted); measure again");
-            }
-            throw e;
-          }
+          await this.requestHeld(token);
         }
         try {
           return await this.readStream(s, attempt === 0 ? firstWait : this.replyTimeout, token);
@@ -158,6 +151,31 @@ export class DeviceClient {
         `capture damaged in transit ${this.resendAttempts + 1} times (${lastDefect?.message}); check the cable and USB port, then measure again`,
       );
     });
+  }
+
+  /**
+   * The capture the tester still holds from its last pulse, sent again (CR): the part is not
+   * pulsed. `s` must be the settings of that pulse (they bound the edge record). For a reading
+   * whose capture was lost on the host side; CAPTURE_LOST when the tester holds none.
+   */
+  recall(s: MeasureSettings): Promise<RawCapture> {
+    return this.exclusive(async () => {
+      const token = this.nextToken();
+      await this.requestHeld(token);
+      return this.readStream(s, this.replyTimeout, token);
+    });
+  }
+
+  /** Asks the tester to send its held capture again under `token`. */
+  private async requestHeld(token: number): Promise<void> {
+    try {
+      await this.command("CR", [token], 0, token);
+    } catch (e) {
+      if (e instanceof DeviceError && e.code === "BAD_ARGUMENT") {
+        throw new ProtocolError("CAPTURE_LOST", "the tester no longer holds the capture (it may have restarted); measure again");
+      }
+      throw e;
+    }
   }
 
   /** Sends MS; while the rest or ring interlock refuses, waits the time it names and asks again. */
@@ -194,7 +212,6 @@ export class DeviceClient {
     }
   }
 
-  /** Sends a command and collects data frames until its OK; throws DeviceError on ER. */
   /**
    * Sends a command and collects data frames until its OK; throws DeviceError on ER. With a
    * token, only an OK carrying that token counts: a stale OK of an earlier request is skipped.
