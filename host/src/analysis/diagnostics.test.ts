@@ -67,6 +67,9 @@ describe("diagnostics", () => {
 
   it("flags too few cycles on a heavily damped part", () => {
     expect(codes(ring(2.5, 2, 5000, 4))).toContain("TOO_FEW_CYCLES");
+    // 14 edges (6.5 cycles): too few for the stated uncertainty to hold (bench practice).
+    expect(codes(ring(5, 2, 5000, 4))).toContain("TOO_FEW_CYCLES");
+    expect(codes(ring(12, 2, 5000, 4))).not.toContain("TOO_FEW_CYCLES");
   });
 
   it("flags thresholds close to the ring amplitude", () => {
