@@ -11,24 +11,54 @@ import type { CheckedInput } from "./validate-input.ts";
  * even spread) and ranks them by the residuals they end with, best first: this is what separates
  * the basins of the (A0, alpha) likelihood (measurement notes §2). The short fits cannot always
  * tell two basins apart, so the caller may fit the runner-up in full too.
+ *
+ * Starts that end at one point are one start: a short fit that ends within SAME_POINT_D2 of an
+ * earlier one is dropped (the better of the two kept), and a start that already lies that close
+ * to an earlier fit's end is not fitted at all (it would only roll to the same minimum).
  */
 export function rankStarts(
   candidates: InitialGuess[], e: EdgeSet, c: CheckedInput, q: number, ws: FitWorkspace, limits: FitLimits,
 ): RankedStart[] {
   if (candidates.length === 1) return [{ ...candidates[0], chi2: 0 }];
   const mask = subsetMask(e, 160, 40);
+  let nSub = 0;
+  for (let k = 0; k < e.n; k++) nSub += mask[k];
   const varT = Math.max(candidates[0].ms_residual_s2, q);
-  const out: RankedStart[] = [];
+  const out: (RankedStart & { normal: Float64Array })[] = [];
+  const near = (p: Float64Array) => out.findIndex((o) => samePoint(p, o.p, o.normal, nSub / Math.max(o.chi2, 1)));
   for (const cand of candidates) {
+    if (near(cand.p) >= 0) continue;
     // The short fit sees only the subset: forms and variances are needed there alone.
     chooseResidualForms(cand.p, e, c.vh_v, c.vl_v, mask);
     const variance = initialVariance(cand.p, e, varT, ws, mask);
     for (let k = 0; k < e.n; k++) variance[k] = mask[k] > 0 ? 1 / variance[k] : 0;
     const fit = fitEdgeModel(e, c.vh_v, c.vl_v, cand.p, variance, null, ws, limits, 25, 1e-3, false, true);
-    if (Number.isFinite(fit.chi2)) out.push({ p: fit.p, ms_residual_s2: cand.ms_residual_s2, chi2: fit.chi2 });
+    if (!Number.isFinite(fit.chi2)) continue;
+    const start = { p: fit.p, ms_residual_s2: cand.ms_residual_s2, chi2: fit.chi2, normal: fit.normal };
+    const j = near(fit.p);
+    if (j < 0) out.push(start);
+    else if (fit.chi2 < out[j].chi2) out[j] = start;
   }
   if (out.length === 0) return [{ ...candidates[0], chi2: 0 }];
-  return out.sort((a, b) => a.chi2 - b.chi2);
+  return out.sort((a, b) => a.chi2 - b.chi2).map(({ p, ms_residual_s2, chi2 }) => ({ p, ms_residual_s2, chi2 }));
+}
+
+/**
+ * Two short-fit points closer than this squared distance (in standard deviations of the subset
+ * fit, Birge-normalised so that its reduced chi2 is 1) are one point: half a standard deviation.
+ * Short fits from different starts that reach one minimum end far closer (their steps stop
+ * within ~0.03 sd of it); distinct minima on the benchmark's captures lie >= 1.2 sd apart.
+ */
+const SAME_POINT_D2 = 0.25;
+
+/** (a - b)' H (a - b) * scale <= SAME_POINT_D2, H the 4 x 4 normal matrix of the fit at b. */
+function samePoint(a: Float64Array, b: Float64Array, h: Float64Array, scale: number): boolean {
+  let s = 0;
+  for (let i = 0; i < 4; i++) {
+    const di = a[i] - b[i];
+    for (let j = 0; j < 4; j++) s += di * h[4 * i + j] * (a[j] - b[j]);
+  }
+  return s * scale <= SAME_POINT_D2;
 }
 
 export interface RankedStart extends InitialGuess {
