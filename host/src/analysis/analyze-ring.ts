@@ -122,9 +122,18 @@ function quantitiesOf(s: FitState): RingQuantities {
 
 /**
  * A runner-up start is fitted in full when its short fit ended within this factor of the best
- * start's chi2: the short fits on a subset cannot always tell two basins apart.
+ * start's chi2 and within RUNNER_UP_SUBSET_NLL of its subset likelihood: the short fits on a
+ * subset cannot always tell two basins apart.
  */
 const RUNNER_UP_CHI2_RATIO = 2;
+/**
+ * A runner-up whose short fit's robust -2 ln L on the subset (fit-start.ts) ends this much above
+ * the best start's is not fitted in full: it could only matter within AMBIGUOUS_NLL of the first
+ * fit. Twice that, on a third of the edges: on the benchmark's 500-edge captures the full fits of
+ * two starts ending within 10 on the full likelihood were within 4 on the subset, and basins
+ * 200-300 apart in full were 45 or more apart there (bench practice, calibrated there).
+ */
+const RUNNER_UP_SUBSET_NLL = 20;
 /** Up to this many edges both starts are always fitted in full (cheap, and few edges leave the
  *  basins closest). */
 const FEW_EDGES_BOTH_STARTS = 100;
@@ -157,7 +166,7 @@ export function fitRing(input: RingInput): FitState {
   const fitFromStart = (k: number, reference?: FitState): FitState | null =>
     fitFrom(c, makeEdgeSet(c.t_s, c.rising, book.m.slice()), book.reasons.slice(), starts[k], q, ws, limits, reference);
   let firstError: unknown = null;
-  const tries = starts.length > 1 && (n <= FEW_EDGES_BOTH_STARTS || starts[1].chi2 <= RUNNER_UP_CHI2_RATIO * starts[0].chi2) ? 2 : 1;
+  const tries = starts.length > 1 && (n <= FEW_EDGES_BOTH_STARTS || (starts[1].chi2 <= RUNNER_UP_CHI2_RATIO * starts[0].chi2 && starts[1].nll - starts[0].nll <= RUNNER_UP_SUBSET_NLL)) ? 2 : 1;
   const fits: FitState[] = [];
   for (let k = 0; k < tries; k++) {
     try {

@@ -4,13 +4,18 @@
 import { FitWorkspace, fitEdgeModel, type FitLimits } from "./edge-fit.ts";
 import { chooseResidualForms, evaluateEdges, P_ALPHA, P_LNA, P_WD, type EdgeSet } from "./edge-model.ts";
 import type { InitialGuess } from "./initial-guess.ts";
+import { edgeTimeVariances, edgeVariances, estimateNoise } from "./noise-model.ts";
 import type { CheckedInput } from "./validate-input.ts";
 
 /**
  * Fits each start briefly on a subset of the edges (the tail, where the amplitude shows, and an
- * even spread) and ranks them by the residuals they end with, best first: this is what separates
- * the basins of the (A0, alpha) likelihood (measurement notes §2). The short fits cannot always
- * tell two basins apart, so the caller may fit the runner-up in full too.
+ * even spread) and ranks them by the likelihood they end with on the subset, best first: this is
+ * what separates the basins of the (A0, alpha) likelihood (measurement notes §2). The short fits
+ * weight with timing noise only; the ranking estimates both noise components from each fit's
+ * residuals (subsetNll), because basins that differ in amplitude explain the growth of the
+ * residuals along a decaying ring (voltage noise over a falling slope) differently, which the
+ * fits' chi2 alone hardly shows. The short fits cannot always tell two basins apart, so the
+ * caller may fit the runner-up in full too.
  *
  * Starts that end at one point are one start: a short fit that ends within SAME_POINT_D2 of an
  * earlier one is dropped (the better of the two kept), and a start that already lies that close
@@ -19,10 +24,11 @@ import type { CheckedInput } from "./validate-input.ts";
 export function rankStarts(
   candidates: InitialGuess[], e: EdgeSet, c: CheckedInput, q: number, ws: FitWorkspace, limits: FitLimits,
 ): RankedStart[] {
-  if (candidates.length === 1) return [{ ...candidates[0], chi2: 0 }];
+  if (candidates.length === 1) return [{ ...candidates[0], chi2: 0, nll: 0 }];
   const mask = subsetMask(e, 160, 40);
   let nSub = 0;
   for (let k = 0; k < e.n; k++) nSub += mask[k];
+  const scratch = new Float64Array(8 * nSub);
   const varT = Math.max(candidates[0].ms_residual_s2, q);
   const out: (RankedStart & { normal: Float64Array })[] = [];
   const near = (p: Float64Array) => out.findIndex((o) => samePoint(p, o.p, o.normal, nSub / Math.max(o.chi2, 1)));
@@ -34,13 +40,55 @@ export function rankStarts(
     for (let k = 0; k < e.n; k++) variance[k] = mask[k] > 0 ? 1 / variance[k] : 0;
     const fit = fitEdgeModel(e, c.vh_v, c.vl_v, cand.p, variance, null, ws, limits, 25, 1e-3, false, true);
     if (!Number.isFinite(fit.chi2)) continue;
-    const start = { p: fit.p, ms_residual_s2: cand.ms_residual_s2, chi2: fit.chi2, normal: fit.normal };
+    if (!fit.fresh) evaluateEdges(fit.p, e, c.vh_v, c.vl_v, mask, null, { r: ws.r, slope: ws.slope, curvature: ws.curvature });
+    const nll = subsetNll(e, mask, ws, q, varT, fit.p[P_WD], scratch);
+    if (!Number.isFinite(nll)) continue;
+    const start = { p: fit.p, ms_residual_s2: cand.ms_residual_s2, chi2: fit.chi2, nll, normal: fit.normal };
     const j = near(fit.p);
     if (j < 0) out.push(start);
-    else if (fit.chi2 < out[j].chi2) out[j] = start;
+    else if (nll < out[j].nll) out[j] = start;
   }
-  if (out.length === 0) return [{ ...candidates[0], chi2: 0 }];
-  return out.sort((a, b) => a.chi2 - b.chi2).map(({ p, ms_residual_s2, chi2 }) => ({ p, ms_residual_s2, chi2 }));
+  if (out.length === 0) return [{ ...candidates[0], chi2: 0, nll: 0 }];
+  return out.sort((a, b) => a.nll - b.nll).map(({ p, ms_residual_s2, chi2, nll }) => ({ p, ms_residual_s2, chi2, nll }));
+}
+
+/**
+ * Robust -2 ln likelihood of the subset's edge times at a short fit's end (ws.r, ws.slope and
+ * ws.curvature hold the model there), as analyze-ring's negLogLikelihood scores a full fit:
+ * sum of min(z^2, 25) + ln(time variance), with the two noise components estimated from these
+ * residuals (noise-model.ts; from the clean crossings when there are 12 or more).
+ */
+function subsetNll(e: EdgeSet, mask: Float64Array, ws: FitWorkspace, q: number, varT: number, wd: number, scratch: Float64Array): number {
+  const nSub = scratch.length / 8;
+  const r = scratch.subarray(0, nSub);
+  const slope = scratch.subarray(nSub, 2 * nSub);
+  const curv = scratch.subarray(2 * nSub, 3 * nSub);
+  const vt = scratch.subarray(3 * nSub, 4 * nSub);
+  const v = scratch.subarray(4 * nSub, 5 * nSub);
+  const lev = scratch.subarray(5 * nSub, 6 * nSub);
+  const clean = scratch.subarray(6 * nSub, 7 * nSub);
+  const all = scratch.subarray(7 * nSub, 8 * nSub);
+  let j = 0;
+  let nClean = 0;
+  for (let k = 0; k < e.n && j < nSub; k++) {
+    if (!(mask[k] > 0) || e.m[k] !== e.m[k]) continue;
+    r[j] = ws.r[k];
+    slope[j] = ws.slope[k];
+    curv[j] = ws.curvature[k];
+    vt[j] = varT;
+    lev[j] = 0;
+    clean[j] = e.form[k] === 1 ? 1 : 0;
+    all[j] = 1;
+    nClean += clean[j];
+    j++;
+  }
+  const rs = r.subarray(0, j), ss = slope.subarray(0, j), cs = curv.subarray(0, j), vts = vt.subarray(0, j);
+  const noise = estimateNoise(rs, ss, cs, vts, lev.subarray(0, j), (nClean >= 12 ? clean : all).subarray(0, j), q, null);
+  edgeTimeVariances(q, noise, ss, wd, all.subarray(0, j), vts);
+  edgeVariances(q, noise, ss, cs, vts, v.subarray(0, j));
+  let s = 0;
+  for (let i = 0; i < j; i++) s += Math.min((rs[i] * rs[i]) / v[i], 25) + Math.log(vts[i]);
+  return s;
 }
 
 /**
@@ -64,6 +112,9 @@ function samePoint(a: Float64Array, b: Float64Array, h: Float64Array, scale: num
 export interface RankedStart extends InitialGuess {
   /** chi2 at the end of the short fit (0 when there was nothing to rank). */
   chi2: number;
+  /** Robust -2 ln likelihood on the subset at the end of the short fit (subsetNll; 0 when there
+   *  was nothing to rank). */
+  nll: number;
 }
 
 /**
