@@ -2,7 +2,7 @@
 // best kept, with soft limits on the flat directions of the likelihood and round-0 weights.
 
 import { FitWorkspace, fitEdgeModel, type FitLimits } from "./edge-fit.ts";
-import { chooseResidualForms, evaluateEdges, P_ALPHA, P_LNA, P_WD, type EdgeSet } from "./edge-model.ts";
+import { chooseResidualForms, evaluateEdges, makeEdgeSet, P_ALPHA, P_LNA, P_WD, type EdgeSet } from "./edge-model.ts";
 import type { InitialGuess } from "./initial-guess.ts";
 import { edgeTimeVariances, edgeVariances, estimateNoise } from "./noise-model.ts";
 import type { CheckedInput } from "./validate-input.ts";
@@ -25,23 +25,24 @@ export function rankStarts(
   candidates: InitialGuess[], e: EdgeSet, c: CheckedInput, q: number, ws: FitWorkspace, limits: FitLimits,
 ): RankedStart[] {
   if (candidates.length === 1) return [{ ...candidates[0], chi2: 0, nll: 0 }];
-  const mask = subsetMask(e, 160, 40);
-  let nSub = 0;
-  for (let k = 0; k < e.n; k++) nSub += mask[k];
-  const scratch = new Float64Array(8 * nSub);
+  // The short fits see only the subset, so they get an edge set of its edges alone (forms,
+  // variances and fits then touch no other edge). It holds the last indexed edges of both
+  // levels, so the forms' grazing limit (edge-model.ts) is the same as on the whole set.
+  const sub = subsetEdges(e, subsetMask(e, 160, 40));
+  const nSub = sub.n;
+  const scratch = new Float64Array(5 * nSub);
   const varT = Math.max(candidates[0].ms_residual_s2, q);
   const out: (RankedStart & { normal: Float64Array })[] = [];
   const near = (p: Float64Array) => out.findIndex((o) => samePoint(p, o.p, o.normal, nSub / Math.max(o.chi2, 1)));
   for (const cand of candidates) {
     if (near(cand.p) >= 0) continue;
-    // The short fit sees only the subset: forms and variances are needed there alone.
-    chooseResidualForms(cand.p, e, c.vh_v, c.vl_v, mask);
-    const variance = initialVariance(cand.p, e, varT, ws, mask);
-    for (let k = 0; k < e.n; k++) variance[k] = mask[k] > 0 ? 1 / variance[k] : 0;
-    const fit = fitEdgeModel(e, c.vh_v, c.vl_v, cand.p, variance, null, ws, limits, 25, 1e-3, false, true);
+    chooseResidualForms(cand.p, sub, c.vh_v, c.vl_v);
+    const w = initialVariance(cand.p, sub, varT, ws);
+    for (let k = 0; k < nSub; k++) w[k] = 1 / w[k];
+    const fit = fitEdgeModel(sub, c.vh_v, c.vl_v, cand.p, w, null, ws, limits, 25, 1e-3, false, true);
     if (!Number.isFinite(fit.chi2)) continue;
-    if (!fit.fresh) evaluateEdges(fit.p, e, c.vh_v, c.vl_v, mask, null, { r: ws.r, slope: ws.slope, curvature: ws.curvature });
-    const nll = subsetNll(e, mask, ws, q, varT, fit.p[P_WD], scratch);
+    if (!fit.fresh) evaluateEdges(fit.p, sub, c.vh_v, c.vl_v, null, null, { r: ws.r, slope: ws.slope, curvature: ws.curvature });
+    const nll = subsetNll(sub, ws, q, varT, fit.p[P_WD], scratch);
     if (!Number.isFinite(nll)) continue;
     const start = { p: fit.p, ms_residual_s2: cand.ms_residual_s2, chi2: fit.chi2, nll, normal: fit.normal };
     const j = near(fit.p);
@@ -52,42 +53,50 @@ export function rankStarts(
   return out.sort((a, b) => a.nll - b.nll).map(({ p, ms_residual_s2, chi2, nll }) => ({ p, ms_residual_s2, chi2, nll }));
 }
 
+/** The indexed edges with mask[k] > 0, in order, as an edge set of their own. */
+function subsetEdges(e: EdgeSet, mask: Float64Array): EdgeSet {
+  let n = 0;
+  for (let k = 0; k < e.n; k++) if (mask[k] > 0 && e.m[k] === e.m[k]) n++;
+  const t = new Float64Array(n);
+  const m = new Float64Array(n);
+  const rising = new Uint8Array(n);
+  let j = 0;
+  for (let k = 0; k < e.n; k++) {
+    if (!(mask[k] > 0) || e.m[k] !== e.m[k]) continue;
+    t[j] = e.t_s[k];
+    m[j] = e.m[k];
+    rising[j] = e.rising[k];
+    j++;
+  }
+  return makeEdgeSet(t, rising, m);
+}
+
 /**
  * Robust -2 ln likelihood of the subset's edge times at a short fit's end (ws.r, ws.slope and
  * ws.curvature hold the model there), as analyze-ring's negLogLikelihood scores a full fit:
  * sum of min(z^2, 25) + ln(time variance), with the two noise components estimated from these
  * residuals (noise-model.ts; from the clean crossings when there are 12 or more).
  */
-function subsetNll(e: EdgeSet, mask: Float64Array, ws: FitWorkspace, q: number, varT: number, wd: number, scratch: Float64Array): number {
-  const nSub = scratch.length / 8;
-  const r = scratch.subarray(0, nSub);
-  const slope = scratch.subarray(nSub, 2 * nSub);
-  const curv = scratch.subarray(2 * nSub, 3 * nSub);
-  const vt = scratch.subarray(3 * nSub, 4 * nSub);
-  const v = scratch.subarray(4 * nSub, 5 * nSub);
-  const lev = scratch.subarray(5 * nSub, 6 * nSub);
-  const clean = scratch.subarray(6 * nSub, 7 * nSub);
-  const all = scratch.subarray(7 * nSub, 8 * nSub);
-  let j = 0;
+function subsetNll(e: EdgeSet, ws: FitWorkspace, q: number, varT: number, wd: number, scratch: Float64Array): number {
+  const n = e.n;
+  const vt = scratch.subarray(0, n).fill(varT);
+  const v = scratch.subarray(n, 2 * n);
+  const lev = scratch.subarray(2 * n, 3 * n).fill(0);
+  const clean = scratch.subarray(3 * n, 4 * n);
+  const all = scratch.subarray(4 * n, 5 * n).fill(1);
   let nClean = 0;
-  for (let k = 0; k < e.n && j < nSub; k++) {
-    if (!(mask[k] > 0) || e.m[k] !== e.m[k]) continue;
-    r[j] = ws.r[k];
-    slope[j] = ws.slope[k];
-    curv[j] = ws.curvature[k];
-    vt[j] = varT;
-    lev[j] = 0;
-    clean[j] = e.form[k] === 1 ? 1 : 0;
-    all[j] = 1;
-    nClean += clean[j];
-    j++;
+  for (let k = 0; k < n; k++) {
+    clean[k] = e.form[k] === 1 ? 1 : 0;
+    nClean += clean[k];
   }
-  const rs = r.subarray(0, j), ss = slope.subarray(0, j), cs = curv.subarray(0, j), vts = vt.subarray(0, j);
-  const noise = estimateNoise(rs, ss, cs, vts, lev.subarray(0, j), (nClean >= 12 ? clean : all).subarray(0, j), q, null);
-  edgeTimeVariances(q, noise, ss, wd, all.subarray(0, j), vts);
-  edgeVariances(q, noise, ss, cs, vts, v.subarray(0, j));
+  const r = ws.r.subarray(0, n);
+  const slope = ws.slope.subarray(0, n);
+  const curv = ws.curvature.subarray(0, n);
+  const noise = estimateNoise(r, slope, curv, vt, lev, nClean >= 12 ? clean : all, q, null);
+  edgeTimeVariances(q, noise, slope, wd, all, vt);
+  edgeVariances(q, noise, slope, curv, vt, v);
   let s = 0;
-  for (let i = 0; i < j; i++) s += Math.min((rs[i] * rs[i]) / v[i], 25) + Math.log(vts[i]);
+  for (let k = 0; k < n; k++) s += Math.min((r[k] * r[k]) / v[k], 25) + Math.log(vt[k]);
   return s;
 }
 
@@ -169,17 +178,15 @@ export function subsetMask(e: EdgeSet, count: number, tail: number): Float64Arra
 }
 
 /**
- * Round-0 variances: timing noise only, slopes floored so grazing edges do not dominate. With a
- * mask, only edges with mask[k] > 0 get one (the others stay Infinity).
+ * Round-0 variances: timing noise only, slopes floored so grazing edges do not dominate (edges
+ * without a half-cycle get Infinity).
  */
-export function initialVariance(
-  p: Float64Array, e: EdgeSet, var_t_s2: number, ws: FitWorkspace, mask: Float64Array | null = null,
-): Float64Array {
+export function initialVariance(p: Float64Array, e: EdgeSet, var_t_s2: number, ws: FitWorkspace): Float64Array {
   const out = new Float64Array(e.n).fill(Infinity);
-  evaluateEdges(p, e, 0, 0, mask, null, { slope: ws.slope });
+  evaluateEdges(p, e, 0, 0, null, null, { slope: ws.slope });
   const a0 = Math.exp(p[P_LNA]);
   for (let k = 0; k < e.n; k++) {
-    if (e.m[k] !== e.m[k] || (mask !== null && !(mask[k] > 0))) continue;
+    if (e.m[k] !== e.m[k]) continue;
     const floor = 0.3 * p[P_WD] * a0 * Math.exp(-p[P_ALPHA] * e.t_s[k]);
     out[k] = var_t_s2 * (ws.slope[k] * ws.slope[k] + floor * floor);
   }
