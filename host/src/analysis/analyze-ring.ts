@@ -130,7 +130,7 @@ const RUNNER_UP_CHI2_RATIO = 2;
  * A runner-up whose short fit's robust -2 ln L on the subset (fit-start.ts) ends this much above
  * the best start's is not fitted in full: it could only matter within AMBIGUOUS_NLL of the first
  * fit. Twice that, on a third of the edges: on the benchmark's 500-edge captures the full fits of
- * two starts ending within 10 on the full likelihood were within 4 on the subset, and basins
+ * two starts ending within 10 on the full likelihood were within 5 on the subset, and basins
  * 200-300 apart in full were 45 or more apart there (bench practice, calibrated there).
  */
 const RUNNER_UP_SUBSET_NLL = 20;

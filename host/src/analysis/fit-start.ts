@@ -18,7 +18,7 @@ import type { CheckedInput } from "./validate-input.ts";
  * caller may fit the runner-up in full too.
  *
  * Starts that end at one point are one start: a short fit that ends within SAME_POINT_D2 of an
- * earlier one is dropped (the better of the two kept), and a start that already lies that close
+ * earlier one is dropped (the likelier of the two kept), and a start that already lies that close
  * to an earlier fit's end is not fitted at all (it would only roll to the same minimum).
  */
 export function rankStarts(
@@ -102,11 +102,12 @@ function subsetNll(e: EdgeSet, ws: FitWorkspace, q: number, varT: number, wd: nu
 
 /**
  * Two short-fit points closer than this squared distance (in standard deviations of the subset
- * fit, Birge-normalised so that its reduced chi2 is 1) are one point: half a standard deviation.
- * Short fits from different starts that reach one minimum end far closer (their steps stop
- * within ~0.03 sd of it); distinct minima on the benchmark's captures lie >= 1.2 sd apart.
+ * fit, Birge-normalised so that its reduced chi2 is 1) are one point: 0.7 standard deviations.
+ * Short fits from different starts that reach one minimum mostly end far closer (their steps
+ * stop within ~0.03 sd of it); the closest distinct minima on the benchmark's captures lay
+ * 1.2 sd apart (d2 = 1.6).
  */
-const SAME_POINT_D2 = 0.25;
+const SAME_POINT_D2 = 0.5;
 
 /** (a - b)' H (a - b) * scale <= SAME_POINT_D2, H the 4 x 4 normal matrix of the fit at b. */
 function samePoint(a: Float64Array, b: Float64Array, h: Float64Array, scale: number): boolean {
