@@ -10,7 +10,7 @@ import { assignHalfCycles } from "./cycle-bookkeeping.ts";
 import { diagnose } from "./diagnostics.ts";
 import { FitWorkspace, fitEdgeModel, type FitLimits } from "./edge-fit.ts";
 import { chooseResidualForms, evaluateEdges, formChanges, makeEdgeSet, P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
-import { fitLimits, initialVariance, rankStarts, subsetMask } from "./fit-start.ts";
+import { fitLimits, initialVariance, rankStarts, subsetMask, type RankedStart } from "./fit-start.ts";
 import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
 import { reassignHalfCycles } from "./model-bookkeeping.ts";
 import { edgeTimeVariances, edgeVariances, estimateNoise, type NoiseEstimate } from "./noise-model.ts";
@@ -166,7 +166,7 @@ export function fitRing(input: RingInput): FitState {
   const fitFromStart = (k: number, reference?: FitState): FitState | null =>
     fitFrom(c, makeEdgeSet(c.t_s, c.rising, book.m.slice()), book.reasons.slice(), starts[k], q, ws, limits, reference);
   let firstError: unknown = null;
-  const tries = starts.length > 1 && (n <= FEW_EDGES_BOTH_STARTS || (starts[1].chi2 <= RUNNER_UP_CHI2_RATIO * starts[0].chi2 && starts[1].nll - starts[0].nll <= RUNNER_UP_SUBSET_NLL)) ? 2 : 1;
+  const tries = starts.length > 1 && (n <= FEW_EDGES_BOTH_STARTS || closeRunnerUp(starts[0], starts[1])) ? 2 : 1;
   const fits: FitState[] = [];
   for (let k = 0; k < tries; k++) {
     try {
@@ -181,6 +181,13 @@ export function fitRing(input: RingInput): FitState {
   const best = fits[0];
   if (fits.length > 1 && fits[1].nll - best.nll < AMBIGUOUS_NLL) best.alternative = fits[1];
   return best;
+}
+
+/** Whether the runner-up start's short fit ended close enough to the best's to fit it in full. */
+function closeRunnerUp(best: RankedStart, next: RankedStart): boolean {
+  if (!(next.chi2 <= RUNNER_UP_CHI2_RATIO * best.chi2)) return false;
+  // A runner-up whose subset likelihood could not be scored (Infinity) is not ruled out by it.
+  return !(Number.isFinite(next.nll) && next.nll - best.nll > RUNNER_UP_SUBSET_NLL);
 }
 
 /** One full fit from one start: rounds of fit, re-index, noise, reweight until settled. */

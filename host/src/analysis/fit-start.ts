@@ -42,15 +42,16 @@ export function rankStarts(
     const fit = fitEdgeModel(sub, c.vh_v, c.vl_v, cand.p, w, null, ws, limits, 25, 1e-3, false, true);
     if (!Number.isFinite(fit.chi2)) continue;
     if (!fit.fresh) evaluateEdges(fit.p, sub, c.vh_v, c.vl_v, null, null, { r: ws.r, slope: ws.slope, curvature: ws.curvature });
-    const nll = subsetNll(sub, ws, q, varT, fit.p[P_WD], scratch);
-    if (!Number.isFinite(nll)) continue;
+    // A likelihood that cannot be scored (a degenerate noise estimate) ranks last, by chi2.
+    const score = subsetNll(sub, ws, q, varT, fit.p[P_WD], scratch);
+    const nll = Number.isFinite(score) ? score : Infinity;
     const start = { p: fit.p, ms_residual_s2: cand.ms_residual_s2, chi2: fit.chi2, nll, normal: fit.normal };
     const j = near(fit.p);
     if (j < 0) out.push(start);
     else if (nll < out[j].nll) out[j] = start;
   }
   if (out.length === 0) return [{ ...candidates[0], chi2: 0, nll: 0 }];
-  return out.sort((a, b) => a.nll - b.nll).map(({ p, ms_residual_s2, chi2, nll }) => ({ p, ms_residual_s2, chi2, nll }));
+  return out.sort((a, b) => a.nll - b.nll || a.chi2 - b.chi2).map(({ p, ms_residual_s2, chi2, nll }) => ({ p, ms_residual_s2, chi2, nll }));
 }
 
 /** The indexed edges with mask[k] > 0, in order, as an edge set of their own. */
