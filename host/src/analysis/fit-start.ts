@@ -34,8 +34,16 @@ export function rankStarts(
   const varT = Math.max(candidates[0].ms_residual_s2, q);
   const out: (RankedStart & { normal: Float64Array })[] = [];
   const near = (p: Float64Array) => out.findIndex((o) => samePoint(p, o.p, o.normal, nSub / Math.max(o.chi2, 1)));
+  let beyond = false;
   for (const cand of candidates) {
     if (near(cand.p) >= 0) continue;
+    // Starts with the ring beyond the fit's limit at the last edge (E > e_max: threshold delays
+    // below e^-e_max rad) predict the edges alike, and their short fits all end on the limit at
+    // one point: the best of them stands for all.
+    if (cand.p[P_LNA] - cand.p[P_ALPHA] * limits.t_last_s - limits.ln_v_stop > limits.e_max) {
+      if (beyond) continue;
+      beyond = true;
+    }
     chooseResidualForms(cand.p, sub, c.vh_v, c.vl_v);
     const w = initialVariance(cand.p, sub, varT, ws);
     for (let k = 0; k < nSub; k++) w[k] = 1 / w[k];
