@@ -111,7 +111,8 @@ function subsetNll(e: EdgeSet, ws: FitWorkspace, q: number, varT: number, wd: nu
 
 /**
  * Two short-fit points closer than this squared distance (in standard deviations of the subset
- * fit, Birge-normalised so that its reduced chi2 is 1) are one point: 0.7 standard deviations.
+ * fit, Birge-normalised so that its reduced chi2 is 1: R. T. Birge, Phys. Rev. 40, 207, 1932)
+ * are one point: 0.7 standard deviations.
  * Short fits from different starts that reach one minimum mostly end far closer (their steps
  * stop within ~0.03 sd of it); the closest distinct minima on the benchmark's captures lay
  * 1.2 sd apart (d2 = 1.6).
