@@ -10,7 +10,7 @@ import { assignHalfCycles } from "./cycle-bookkeeping.ts";
 import { diagnose } from "./diagnostics.ts";
 import { FitWorkspace, fitEdgeModel, type FitLimits } from "./edge-fit.ts";
 import { chooseResidualForms, evaluateEdges, formChanges, makeEdgeSet, P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
-import { fitLimits, initialVariance, rankStarts, subsetMask } from "./fit-start.ts";
+import { fitLimits, initialVariance, rankStarts, subsetMask, type RankedStart } from "./fit-start.ts";
 import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
 import { reassignHalfCycles } from "./model-bookkeeping.ts";
 import { edgeTimeVariances, edgeVariances, estimateNoise, type NoiseEstimate } from "./noise-model.ts";
@@ -122,9 +122,18 @@ function quantitiesOf(s: FitState): RingQuantities {
 
 /**
  * A runner-up start is fitted in full when its short fit ended within this factor of the best
- * start's chi2: the short fits on a subset cannot always tell two basins apart.
+ * start's chi2 and within RUNNER_UP_SUBSET_NLL of its subset likelihood: the short fits on a
+ * subset cannot always tell two basins apart.
  */
 const RUNNER_UP_CHI2_RATIO = 2;
+/**
+ * A runner-up whose short fit's robust -2 ln L on the subset (fit-start.ts) ends this much above
+ * the best start's is not fitted in full: it could only matter within AMBIGUOUS_NLL of the first
+ * fit. Twice that, on a third of the edges: on the benchmark's 500-edge captures the full fits of
+ * two starts ending within 10 on the full likelihood were within 5 on the subset, and basins
+ * 200-300 apart in full were 45 or more apart there (bench practice, calibrated there).
+ */
+const RUNNER_UP_SUBSET_NLL = 20;
 /** Up to this many edges both starts are always fitted in full (cheap, and few edges leave the
  *  basins closest). */
 const FEW_EDGES_BOTH_STARTS = 100;
@@ -157,7 +166,7 @@ export function fitRing(input: RingInput): FitState {
   const fitFromStart = (k: number, reference?: FitState): FitState | null =>
     fitFrom(c, makeEdgeSet(c.t_s, c.rising, book.m.slice()), book.reasons.slice(), starts[k], q, ws, limits, reference);
   let firstError: unknown = null;
-  const tries = starts.length > 1 && (n <= FEW_EDGES_BOTH_STARTS || starts[1].chi2 <= RUNNER_UP_CHI2_RATIO * starts[0].chi2) ? 2 : 1;
+  const tries = starts.length > 1 && (n <= FEW_EDGES_BOTH_STARTS || closeRunnerUp(starts[0], starts[1])) ? 2 : 1;
   const fits: FitState[] = [];
   for (let k = 0; k < tries; k++) {
     try {
@@ -172,6 +181,13 @@ export function fitRing(input: RingInput): FitState {
   const best = fits[0];
   if (fits.length > 1 && fits[1].nll - best.nll < AMBIGUOUS_NLL) best.alternative = fits[1];
   return best;
+}
+
+/** Whether the runner-up start's short fit ended close enough to the best's to fit it in full. */
+function closeRunnerUp(best: RankedStart, next: RankedStart): boolean {
+  if (!(next.chi2 <= RUNNER_UP_CHI2_RATIO * best.chi2)) return false;
+  // A runner-up whose subset likelihood could not be scored (Infinity) is not ruled out by it.
+  return !(Number.isFinite(next.nll) && next.nll - best.nll > RUNNER_UP_SUBSET_NLL);
 }
 
 /** One full fit from one start: rounds of fit, re-index, noise, reweight until settled. */

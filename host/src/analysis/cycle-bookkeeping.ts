@@ -20,7 +20,7 @@ export function assignHalfCycles(t_s: Float64Array, rising: Uint8Array): HalfCyc
   const n = t_s.length;
   const m = new Float64Array(n).fill(NaN);
   const reasons: (string | null)[] = new Array(n).fill(null);
-  const t0 = roughPeriod(t_s, indicesOf(rising, 1, null), indicesOf(rising, 0, null));
+  const t0 = roughPeriod(t_s, rising);
   if (!(t0 > 0)) return { m, period_s: NaN, reasons };
   const keep = dropChatter(t_s, rising, t0, reasons);
   const up = indicesOf(rising, 1, keep);
@@ -46,12 +46,12 @@ export function assignHalfCycles(t_s: Float64Array, rising: Uint8Array): HalfCyc
   return { m, period_s: period, reasons };
 }
 
-function indicesOf(rising: Uint8Array, level: number, keep: Uint8Array | null): Int32Array {
+function indicesOf(rising: Uint8Array, level: number, keep: Uint8Array): Int32Array {
   let c = 0;
-  for (let i = 0; i < rising.length; i++) if (rising[i] === level && (!keep || keep[i])) c++;
+  for (let i = 0; i < rising.length; i++) if (rising[i] === level && keep[i]) c++;
   const out = new Int32Array(c);
   c = 0;
-  for (let i = 0; i < rising.length; i++) if (rising[i] === level && (!keep || keep[i])) out[c++] = i;
+  for (let i = 0; i < rising.length; i++) if (rising[i] === level && keep[i]) out[c++] = i;
   return out;
 }
 
@@ -82,17 +82,21 @@ function dropChatter(t: Float64Array, rising: Uint8Array, period: number, reason
 }
 
 /** Median interval between consecutive edges of one level (both levels pooled). */
-function roughPeriod(t: Float64Array, up: Int32Array, down: Int32Array): number {
-  const d = new Float64Array(Math.max(0, up.length - 1) + Math.max(0, down.length - 1));
+function roughPeriod(t: Float64Array, rising: Uint8Array): number {
+  const d = new Float64Array(t.length);
+  const last = [-1, -1];
   let c = 0;
-  for (const idx of [up, down]) {
-    for (let j = 1; j < idx.length; j++) {
-      const dt = t[idx[j]] - t[idx[j - 1]];
-      if (dt > 0) d[c++] = dt;
-    }
+  for (let i = 0; i < t.length; i++) {
+    const level = rising[i];
+    const prev = last[level];
+    last[level] = i;
+    if (prev < 0) continue;
+    const dt = t[i] - t[prev];
+    if (dt > 0) d[c++] = dt;
   }
   if (c === 0) return NaN;
-  const t0 = median(d, c);
+  // The medians select in place (d is scratch; its order does not matter).
+  const t0 = median(d, c, d);
   // Chatter adds short intervals and dropped edges long ones; re-take the median of the
   // intervals that look like one or two whole periods, scaled to one.
   let c2 = 0;
@@ -100,7 +104,7 @@ function roughPeriod(t: Float64Array, up: Int32Array, down: Int32Array): number 
     const ratio = Math.round(d[j] / t0);
     if (ratio >= 1 && ratio <= 3 && Math.abs(d[j] / t0 - ratio) < 0.25) d[c2++] = d[j] / ratio;
   }
-  return c2 > 0 ? median(d, c2) : t0;
+  return c2 > 0 ? median(d, c2, d) : t0;
 }
 
 function walk(t: Float64Array, idx: Int32Array, period: number): Float64Array {
@@ -163,7 +167,7 @@ function fallingShift(
     while (i + 1 < up.length && t[up[i + 1]] <= tj) i++;
     if (i >= 0 && tj - t[up[i]] < period) shifts[c++] = kUp[i] - kDown[j];
   }
-  return c > 0 ? Math.round(median(shifts, c)) : 0;
+  return c > 0 ? Math.round(median(shifts, c, shifts)) : 0;
 }
 
 /** Two edges of one level in one half-cycle: keep the one nearer the level's straight line. */

@@ -2,38 +2,139 @@
 // best kept, with soft limits on the flat directions of the likelihood and round-0 weights.
 
 import { FitWorkspace, fitEdgeModel, type FitLimits } from "./edge-fit.ts";
-import { chooseResidualForms, evaluateEdges, P_ALPHA, P_LNA, P_WD, type EdgeSet } from "./edge-model.ts";
+import { chooseResidualForms, evaluateEdges, makeEdgeSet, P_ALPHA, P_LNA, P_WD, type EdgeSet } from "./edge-model.ts";
 import type { InitialGuess } from "./initial-guess.ts";
+import { edgeTimeVariances, edgeVariances, estimateNoise } from "./noise-model.ts";
 import type { CheckedInput } from "./validate-input.ts";
 
 /**
  * Fits each start briefly on a subset of the edges (the tail, where the amplitude shows, and an
- * even spread) and ranks them by the residuals they end with, best first: this is what separates
- * the basins of the (A0, alpha) likelihood (measurement notes §2). The short fits cannot always
- * tell two basins apart, so the caller may fit the runner-up in full too.
+ * even spread) and ranks them by the likelihood they end with on the subset, best first: this is
+ * what separates the basins of the (A0, alpha) likelihood (measurement notes §2). The short fits
+ * weight with timing noise only; the ranking estimates both noise components from each fit's
+ * residuals (subsetNll), because basins that differ in amplitude explain the growth of the
+ * residuals along a decaying ring (voltage noise over a falling slope) differently, which the
+ * fits' chi2 alone hardly shows. The short fits cannot always tell two basins apart, so the
+ * caller may fit the runner-up in full too.
+ *
+ * Starts that end at one point are one start: a short fit that ends within SAME_POINT_D2 of an
+ * earlier one is dropped (the likelier of the two kept), and a start that already lies that close
+ * to an earlier fit's end is not fitted at all (it would only roll to the same minimum).
  */
 export function rankStarts(
   candidates: InitialGuess[], e: EdgeSet, c: CheckedInput, q: number, ws: FitWorkspace, limits: FitLimits,
 ): RankedStart[] {
-  if (candidates.length === 1) return [{ ...candidates[0], chi2: 0 }];
-  const mask = subsetMask(e, 160, 40);
+  if (candidates.length === 1) return [{ ...candidates[0], chi2: 0, nll: 0 }];
+  // The short fits see only the subset, so they get an edge set of its edges alone (forms,
+  // variances and fits then touch no other edge). It holds the last indexed edges of both
+  // levels, so the forms' grazing limit (edge-model.ts) is the same as on the whole set.
+  const sub = subsetEdges(e, subsetMask(e, 160, 40));
+  const nSub = sub.n;
+  const scratch = new Float64Array(5 * nSub);
   const varT = Math.max(candidates[0].ms_residual_s2, q);
-  const out: RankedStart[] = [];
+  const out: (RankedStart & { normal: Float64Array })[] = [];
+  const near = (p: Float64Array) => out.findIndex((o) => samePoint(p, o.p, o.normal, nSub / Math.max(o.chi2, 1)));
+  let beyond = false;
   for (const cand of candidates) {
-    // The short fit sees only the subset: forms and variances are needed there alone.
-    chooseResidualForms(cand.p, e, c.vh_v, c.vl_v, mask);
-    const variance = initialVariance(cand.p, e, varT, ws, mask);
-    for (let k = 0; k < e.n; k++) variance[k] = mask[k] > 0 ? 1 / variance[k] : 0;
-    const fit = fitEdgeModel(e, c.vh_v, c.vl_v, cand.p, variance, null, ws, limits, 25, 1e-3, false, true);
-    if (Number.isFinite(fit.chi2)) out.push({ p: fit.p, ms_residual_s2: cand.ms_residual_s2, chi2: fit.chi2 });
+    if (near(cand.p) >= 0) continue;
+    // Starts with the ring beyond the fit's limit at the last edge (E > e_max: threshold delays
+    // below e^-e_max rad) predict the edges alike, and their short fits all end on the limit at
+    // one point: the best of them stands for all.
+    if (cand.p[P_LNA] - cand.p[P_ALPHA] * limits.t_last_s - limits.ln_v_stop > limits.e_max) {
+      if (beyond) continue;
+      beyond = true;
+    }
+    chooseResidualForms(cand.p, sub, c.vh_v, c.vl_v);
+    const w = initialVariance(cand.p, sub, varT, ws);
+    for (let k = 0; k < nSub; k++) w[k] = 1 / w[k];
+    const fit = fitEdgeModel(sub, c.vh_v, c.vl_v, cand.p, w, null, ws, limits, 25, 1e-3, false, true);
+    if (!Number.isFinite(fit.chi2)) continue;
+    if (!fit.fresh) evaluateEdges(fit.p, sub, c.vh_v, c.vl_v, null, null, { r: ws.r, slope: ws.slope, curvature: ws.curvature });
+    // A likelihood that cannot be scored (a degenerate noise estimate) ranks last, by chi2.
+    const score = subsetNll(sub, ws, q, varT, fit.p[P_WD], scratch);
+    const nll = Number.isFinite(score) ? score : Infinity;
+    const start = { p: fit.p, ms_residual_s2: cand.ms_residual_s2, chi2: fit.chi2, nll, normal: fit.normal };
+    const j = near(fit.p);
+    if (j < 0) out.push(start);
+    else if (nll < out[j].nll) out[j] = start;
   }
-  if (out.length === 0) return [{ ...candidates[0], chi2: 0 }];
-  return out.sort((a, b) => a.chi2 - b.chi2);
+  if (out.length === 0) return [{ ...candidates[0], chi2: 0, nll: 0 }];
+  return out.sort((a, b) => a.nll - b.nll || a.chi2 - b.chi2).map(({ p, ms_residual_s2, chi2, nll }) => ({ p, ms_residual_s2, chi2, nll }));
+}
+
+/** The indexed edges with mask[k] > 0, in order, as an edge set of their own. */
+function subsetEdges(e: EdgeSet, mask: Float64Array): EdgeSet {
+  let n = 0;
+  for (let k = 0; k < e.n; k++) if (mask[k] > 0 && e.m[k] === e.m[k]) n++;
+  const t = new Float64Array(n);
+  const m = new Float64Array(n);
+  const rising = new Uint8Array(n);
+  let j = 0;
+  for (let k = 0; k < e.n; k++) {
+    if (!(mask[k] > 0) || e.m[k] !== e.m[k]) continue;
+    t[j] = e.t_s[k];
+    m[j] = e.m[k];
+    rising[j] = e.rising[k];
+    j++;
+  }
+  return makeEdgeSet(t, rising, m);
+}
+
+/**
+ * Robust -2 ln likelihood of the subset's edge times at a short fit's end (ws.r, ws.slope and
+ * ws.curvature hold the model there), as analyze-ring's negLogLikelihood scores a full fit:
+ * sum of min(z^2, 25) + ln(time variance), with the two noise components estimated from these
+ * residuals (noise-model.ts; from the clean crossings when there are 12 or more).
+ */
+function subsetNll(e: EdgeSet, ws: FitWorkspace, q: number, varT: number, wd: number, scratch: Float64Array): number {
+  const n = e.n;
+  const vt = scratch.subarray(0, n).fill(varT);
+  const v = scratch.subarray(n, 2 * n);
+  const lev = scratch.subarray(2 * n, 3 * n).fill(0);
+  const clean = scratch.subarray(3 * n, 4 * n);
+  const all = scratch.subarray(4 * n, 5 * n).fill(1);
+  let nClean = 0;
+  for (let k = 0; k < n; k++) {
+    clean[k] = e.form[k] === 1 ? 1 : 0;
+    nClean += clean[k];
+  }
+  const r = ws.r.subarray(0, n);
+  const slope = ws.slope.subarray(0, n);
+  const curv = ws.curvature.subarray(0, n);
+  const noise = estimateNoise(r, slope, curv, vt, lev, nClean >= 12 ? clean : all, q, null);
+  edgeTimeVariances(q, noise, slope, wd, all, vt);
+  edgeVariances(q, noise, slope, curv, vt, v);
+  let s = 0;
+  for (let k = 0; k < n; k++) s += Math.min((r[k] * r[k]) / v[k], 25) + Math.log(vt[k]);
+  return s;
+}
+
+/**
+ * Two short-fit points closer than this squared distance (in standard deviations of the subset
+ * fit, Birge-normalised so that its reduced chi2 is 1: R. T. Birge, Phys. Rev. 40, 207, 1932)
+ * are one point: 0.7 standard deviations.
+ * Short fits from different starts that reach one minimum mostly end far closer (their steps
+ * stop within ~0.03 sd of it); the closest distinct minima on the benchmark's captures lay
+ * 1.2 sd apart (d2 = 1.6).
+ */
+const SAME_POINT_D2 = 0.5;
+
+/** (a - b)' H (a - b) * scale <= SAME_POINT_D2, H the 4 x 4 normal matrix of the fit at b. */
+function samePoint(a: Float64Array, b: Float64Array, h: Float64Array, scale: number): boolean {
+  let s = 0;
+  for (let i = 0; i < 4; i++) {
+    const di = a[i] - b[i];
+    for (let j = 0; j < 4; j++) s += di * h[4 * i + j] * (a[j] - b[j]);
+  }
+  return s * scale <= SAME_POINT_D2;
 }
 
 export interface RankedStart extends InitialGuess {
   /** chi2 at the end of the short fit (0 when there was nothing to rank). */
   chi2: number;
+  /** Robust -2 ln likelihood on the subset at the end of the short fit (subsetNll; 0 when there
+   *  was nothing to rank). */
+  nll: number;
 }
 
 /**
@@ -88,17 +189,15 @@ export function subsetMask(e: EdgeSet, count: number, tail: number): Float64Arra
 }
 
 /**
- * Round-0 variances: timing noise only, slopes floored so grazing edges do not dominate. With a
- * mask, only edges with mask[k] > 0 get one (the others stay Infinity).
+ * Round-0 variances: timing noise only, slopes floored so grazing edges do not dominate (edges
+ * without a half-cycle get Infinity).
  */
-export function initialVariance(
-  p: Float64Array, e: EdgeSet, var_t_s2: number, ws: FitWorkspace, mask: Float64Array | null = null,
-): Float64Array {
+export function initialVariance(p: Float64Array, e: EdgeSet, var_t_s2: number, ws: FitWorkspace): Float64Array {
   const out = new Float64Array(e.n).fill(Infinity);
-  evaluateEdges(p, e, 0, 0, mask, null, { slope: ws.slope });
+  evaluateEdges(p, e, 0, 0, null, null, { slope: ws.slope });
   const a0 = Math.exp(p[P_LNA]);
   for (let k = 0; k < e.n; k++) {
-    if (e.m[k] !== e.m[k] || (mask !== null && !(mask[k] > 0))) continue;
+    if (e.m[k] !== e.m[k]) continue;
     const floor = 0.3 * p[P_WD] * a0 * Math.exp(-p[P_ALPHA] * e.t_s[k]);
     out[k] = var_t_s2 * (ws.slope[k] * ws.slope[k] + floor * floor);
   }

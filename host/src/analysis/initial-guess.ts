@@ -36,6 +36,9 @@ interface Profile {
   grow: Float64Array; // V e^(alpha t) for the current alpha
   psi: Float64Array;
   dpsi: Float64Array;
+  /** Spare psi and dpsi: a scan keeps its best point's in one pair while it tries the next. */
+  psiSpare: Float64Array;
+  dpsiSpare: Float64Array;
   r: Float64Array;
   dr: Float64Array;
   wd: number;
@@ -139,17 +142,35 @@ function evaluateD(
   for (let j = 0; j < pr.n; j++) pr.grow[j] = (pr.sign[j] > 0 ? vh_v : vl_v) * Math.exp(alpha * pr.t[j]);
   let bestL = NaN;
   let bestC = Infinity;
+  let bestWd = NaN;
+  let bestPhi = NaN;
   const tries = scan || !Number.isFinite(lnAStart) ? E_START.length : 0;
   for (let i = -1; i < tries; i++) {
     const l = i < 0 ? lnAStart : lnStop + E_START[i] + d;
     if (!Number.isFinite(l)) continue;
+    // Evaluate into the spare buffers, so that pr.psi and pr.dpsi keep the best point's.
+    swapSpare(pr);
     const c = projectedCost(pr, l);
     if (c < bestC) {
       bestC = c;
       bestL = l;
-    }
+      bestWd = pr.wd;
+      bestPhi = pr.phi;
+    } else swapSpare(pr);
   }
-  return refineLnA(pr, bestL);
+  if (!(bestC < Infinity)) return refineLnA(pr, bestL);
+  pr.wd = bestWd;
+  pr.phi = bestPhi;
+  return refineLnA(pr, bestL, bestC);
+}
+
+function swapSpare(pr: Profile): void {
+  const psi = pr.psi;
+  const dpsi = pr.dpsi;
+  pr.psi = pr.psiSpare;
+  pr.dpsi = pr.dpsiSpare;
+  pr.psiSpare = psi;
+  pr.dpsiSpare = dpsi;
 }
 
 /** Abscissa of the vertex of the parabola through three points (x sorted). */
@@ -166,6 +187,7 @@ function makeProfile(e: EdgeSet, sample: Int32Array, vh_v: number, vl_v: number)
   const pr: Profile = {
     n, t: new Float64Array(n), tc: new Float64Array(n), stt: 0, base: new Float64Array(n),
     sign: new Float64Array(n), grow: new Float64Array(n), psi: new Float64Array(n), dpsi: new Float64Array(n),
+    psiSpare: new Float64Array(n), dpsiSpare: new Float64Array(n),
     r: new Float64Array(n), dr: new Float64Array(n), wd: 0, phi: 0,
   };
   let mean = 0;
@@ -219,11 +241,12 @@ function projectedCost(pr: Profile, lnA: number): number {
 
 /**
  * Gauss-Newton on ln A0 of the projected phase residuals (variable projection, one nonlinear
- * parameter), with step halving; starts from lnA, where pr must not yet hold another point.
+ * parameter), with step halving; starts from lnA. With `cost0`, pr already holds that point
+ * (its psi, dpsi, wd, phi and cost); otherwise it is evaluated here.
  */
-function refineLnA(pr: Profile, lnA0: number): { lnA: number; cost: number; wd: number; phi: number } {
+function refineLnA(pr: Profile, lnA0: number, cost0?: number): { lnA: number; cost: number; wd: number; phi: number } {
   let lnA = lnA0;
-  let cost = projectedCost(pr, lnA);
+  let cost = cost0 ?? projectedCost(pr, lnA);
   let wd = pr.wd;
   let phi = pr.phi;
   const { n, psi, dpsi, tc, r, dr } = pr;
