@@ -65,6 +65,8 @@ export interface EdgeOutputs {
 const U_CONT = 0.9999;
 const AS_CONT = Math.asin(U_CONT);
 const INV_SQ_CONT = 1 / Math.sqrt(1 - U_CONT * U_CONT);
+/** c^2 = u^2 / (1 - u^2) at |u| = U_CONT, c = jac[2] / S_k of a phase-form edge (edge-fit.ts). */
+export const C2_CONT = (U_CONT * U_CONT) / (1 - U_CONT * U_CONT);
 
 /**
  * Evaluates the model at every edge with a finite m and (if `mask` is given) mask[k] > 0.
