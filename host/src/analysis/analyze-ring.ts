@@ -195,6 +195,8 @@ function fitFrom(
   const zWork = new Float64Array(n);
   const oldVarT = new Float64Array(n);
   const oldVariance = new Float64Array(n);
+  const oldScale = new Float64Array(n);
+  const oldForm = new Uint8Array(n);
   let p = guess.p;
   let noise: NoiseEstimate | null = null;
   const varT = new Float64Array(n).fill(q);
@@ -214,7 +216,18 @@ function fitFrom(
     // scales; unless the model has since moved an edge across the grazing limit (a phase-form
     // edge the envelope no longer clearly reaches), which is chosen again, a few times at most.
     if (round === 1 || staleForms) {
+      oldScale.set(e.scale_v);
+      oldForm.set(e.form);
       chooseResidualForms(p, e, c.vh_v, c.vl_v);
+      // A phase-form residual is S_k times a phase error, so its variance goes with S_k^2: an
+      // edge that keeps the phase form under a new scale keeps its weight and the chi2 its units
+      // (after round 0's amplitude moved, stale scales left round 1's chi2 up to ~400x too
+      // large and its stopping tolerance as much too tight).
+      for (let k = 0; k < n; k++) {
+        if (oldForm[k] !== 1 || e.form[k] !== 1) continue;
+        const f = e.scale_v[k] / oldScale[k];
+        variance[k] *= f * f;
+      }
       cached = false;
       if (round > 1) reforms++;
     }
