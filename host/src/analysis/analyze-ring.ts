@@ -210,26 +210,30 @@ function fitFrom(
   const subset = n > 400 ? subsetMask(e, 200, 50) : null;
   let reforms = 0;
   let staleForms = false;
+  // Chooses the residual forms again at p. A phase-form residual is S_k times a phase error, so
+  // its variance goes with S_k^2: an edge that keeps the phase form under a new scale keeps its
+  // weight, and chi2 its units (with the start's scales after round 0 had moved the amplitude,
+  // chi2 came out up to ~400x too large and its stopping tolerance as much too tight).
+  const reform = () => {
+    oldScale.set(e.scale_v);
+    oldForm.set(e.form);
+    chooseResidualForms(p, e, c.vh_v, c.vl_v);
+    for (let k = 0; k < n; k++) {
+      if (oldForm[k] !== 1 || e.form[k] !== 1) continue;
+      const f = e.scale_v[k] / oldScale[k];
+      variance[k] *= f * f;
+    }
+    cached = false;
+  };
   for (let round = 0; ; round++) {
-    // Residual forms follow the model while it is still moving (set at the start, again in
-    // round 1), then stay, so that the weights of a round and its residuals use the same
-    // scales; unless the model has since moved an edge across the grazing limit (a phase-form
-    // edge the envelope no longer clearly reaches), which is chosen again, a few times at most.
-    if (round === 1 || staleForms) {
-      oldScale.set(e.scale_v);
-      oldForm.set(e.form);
-      chooseResidualForms(p, e, c.vh_v, c.vl_v);
-      // A phase-form residual is S_k times a phase error, so its variance goes with S_k^2: an
-      // edge that keeps the phase form under a new scale keeps its weight and the chi2 its units
-      // (after round 0's amplitude moved, stale scales left round 1's chi2 up to ~400x too
-      // large and its stopping tolerance as much too tight).
-      for (let k = 0; k < n; k++) {
-        if (oldForm[k] !== 1 || e.form[k] !== 1) continue;
-        const f = e.scale_v[k] / oldScale[k];
-        variance[k] *= f * f;
-      }
-      cached = false;
-      if (round > 1) reforms++;
+    // Residual forms follow the model while it is still moving (set at the start, again after
+    // round 0's fit and re-indexing), then stay, so that the weights of a round and its
+    // residuals use the same scales; unless the model has since moved an edge across the
+    // grazing limit (a phase-form edge the envelope no longer clearly reaches), which is chosen
+    // again, a few times at most.
+    if (staleForms) {
+      reform();
+      reforms++;
     }
     setWeights(e, outlier, robust, variance, used, w);
     // Round 0 weights with a rough noise model and only has to bring the start near the
@@ -253,6 +257,8 @@ function fitFrom(
       pIndexed = p;
     }
     for (let k = 0; k < n; k++) assigned[k] = e.m[k] === e.m[k] ? 1 : 0;
+    // Forms for the indices just set, before the evaluation that round 1's fit starts from.
+    if (round === 0) reform();
     if (moved > 0 || !cached) {
       evaluateEdges(p, e, c.vh_v, c.vl_v, null, varT, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
       cached = true;
