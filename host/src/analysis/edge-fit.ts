@@ -128,6 +128,12 @@ export function fitEdgeModel(
         lambda *= 8;
         continue;
       }
+      // A trial whose soft-limit penalty alone exceeds chi2 at p cannot be accepted: refused
+      // without evaluating the edges (ws still holds what it held).
+      if (penalty(ws.trial, limits, ws.hp, ws.gp) > chi2) {
+        lambda *= 8;
+        continue;
+      }
       // The trial is evaluated with its Jacobian: most trials are accepted, and this saves
       // evaluating the accepted point twice.
       const trialChi2 = accumulate(ws.trial, e, vh_v, vl_v, w, var_t_s2, limits, ws, ws.h2, ws.g2);
