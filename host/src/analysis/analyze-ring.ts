@@ -181,7 +181,11 @@ function fitFrom(
 ): FitState | null {
   const n = c.t_s.length;
   chooseResidualForms(guess.p, e, c.vh_v, c.vl_v);
-  const variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, q), ws);
+  // Round 0 fits a subset of a long capture (below), and every variance is set anew from the
+  // noise estimate after it: the start's variances are needed on the subset alone (Infinity,
+  // weight zero, elsewhere).
+  const subset = n > 400 ? subsetMask(e, 200, 50) : null;
+  const variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, q), ws, subset);
   const robust = new Float64Array(n).fill(1);
   const outlier = new Uint8Array(n);
   const used = new Float64Array(n);
@@ -207,7 +211,6 @@ function fitFrom(
   // evaluate the model again at the same point.
   let cached = false;
   let pIndexed: Float64Array | null = null;
-  const subset = n > 400 ? subsetMask(e, 200, 50) : null;
   let reforms = 0;
   let staleForms = false;
   // Chooses the residual forms again at p. A phase-form residual is S_k times a phase error, so
@@ -237,8 +240,8 @@ function fitFrom(
     }
     setWeights(e, outlier, robust, variance, used, w);
     // Round 0 weights with a rough noise model and only has to bring the start near the
-    // minimum: a few steps on a subset of the edges (the tail and a spread) suffice there.
-    if (round === 0 && subset) for (let k = 0; k < n; k++) w[k] *= subset[k];
+    // minimum: a few steps on a subset of the edges (the tail and a spread) suffice there (the
+    // others have no variance yet, so weight zero).
     fit = fitEdgeModel(e, c.vh_v, c.vl_v, p, w, varT, ws, limits, round < 2 ? 6 : 60, FIT_TOL_CHI2, cached, round === 0);
     if (!Number.isFinite(fit.chi2)) throw noRing("the edge-model fit diverged");
     p = fit.p;
@@ -253,7 +256,8 @@ function fitFrom(
     let moved = 0;
     if (!pIndexed || phaseShift(pIndexed, p, limits.t_last_s) > 0.01) {
       for (let k = 0; k < n; k++) sd[k] = Math.sqrt(variance[k]);
-      moved = reassignHalfCycles(p, e, c.vh_v, c.vl_v, sd, reasons);
+      // (Duplicates are compared in plain volts while round 0's variances cover a subset only.)
+      moved = reassignHalfCycles(p, e, c.vh_v, c.vl_v, round === 0 && subset ? null : sd, reasons);
       pIndexed = p;
     }
     for (let k = 0; k < n; k++) assigned[k] = e.m[k] === e.m[k] ? 1 : 0;
