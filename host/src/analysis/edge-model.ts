@@ -174,10 +174,15 @@ function formsAt(p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number, a
   for (let k = 0; k < e.n; k++) if (e.m[k] === e.m[k]) lastM[e.rising[k]] = Math.max(lastM[e.rising[k]], e.m[k]);
   for (let k = 0; k < e.n; k++) {
     if (mask !== null && !(mask[k] > 0)) continue;
+    const mayGraze = !(e.m[k] < lastM[e.rising[k]] - 4);
+    // Only the scales need the model where an edge cannot graze: a count skips it.
+    if (!apply && !mayGraze) {
+      if (e.m[k] === e.m[k] && e.form[k] !== 1) changes++;
+      continue;
+    }
     const rise = e.rising[k] === 1;
     const amp = a0 * Math.exp(-alpha * e.t_s[k]);
     const u = (rise ? vh_v : vl_v) / amp;
-    const mayGraze = !(e.m[k] < lastM[e.rising[k]] - 4);
     const sq = Math.sqrt(Math.max(1 - u * u, 1e-6));
     let form = 1;
     if (mayGraze && (!(Math.abs(u) < 0.98) || !(wd - (alpha * (rise ? 1 : -1) * u) / sq > 0.3 * wd))) form = 0;

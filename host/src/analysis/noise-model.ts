@@ -61,11 +61,20 @@ export function estimateNoise(
   leverage: Float64Array, mask: Float64Array, q_s2: number, start: NoiseEstimate | null,
 ): NoiseEstimate {
   const n = r.length;
+  // What the iterations do not change, per edge with mask[k] > 0 and a finite residual, once:
+  // x (slope^2 until xMean is known), the curvature term and r^2 / (1 - h).
+  const xs = new Float64Array(n);
+  const curvs = new Float64Array(n);
+  const r2h = new Float64Array(n);
   let xMean = 0;
   let count = 0;
   for (let k = 0; k < n; k++) {
     if (!(mask[k] > 0) || !Number.isFinite(r[k])) continue;
-    xMean += slope[k] * slope[k];
+    const s2 = slope[k] * slope[k];
+    xs[count] = s2;
+    curvs[count] = 0.5 * curvature[k] * curvature[k] * var_t[k] * var_t[k];
+    r2h[count] = (r[k] * r[k]) / (1 - Math.min(leverage[k], 0.9));
+    xMean += s2;
     count++;
   }
   if (count < 3 || !(xMean > 0)) return start ?? { sigma_t2: 0, sigma_v2: 0 };
@@ -85,15 +94,14 @@ export function estimateNoise(
     b = Math.max(q_s2, median(ratio, c) / 0.45493642) * xMean; // median of chi-square(1)
   }
   const bMin = q_s2 * xMean;
+  for (let c = 0; c < count; c++) xs[c] = xs[c] / xMean;
   for (let it = 0; it < 30; it++) {
     let s0 = 0, sx = 0, sxx = 0, sy = 0, sxy = 0;
-    for (let k = 0; k < n; k++) {
-      if (!(mask[k] > 0) || !Number.isFinite(r[k])) continue;
-      const x = (slope[k] * slope[k]) / xMean;
-      const curv = 0.5 * curvature[k] * curvature[k] * var_t[k] * var_t[k];
+    for (let c = 0; c < count; c++) {
+      const x = xs[c];
+      const curv = curvs[c];
       const v = Math.max(a + b * x + curv, 1e-300);
-      const hk = Math.min(leverage[k], 0.9);
-      const y = Math.min((r[k] * r[k]) / (1 - hk), CLIP * CLIP * v) / CLIP_MEAN - curv;
+      const y = Math.min(r2h[c], CLIP * CLIP * v) / CLIP_MEAN - curv;
       const w = 1 / (v * v);
       s0 += w;
       sx += w * x;
