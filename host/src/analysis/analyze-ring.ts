@@ -180,11 +180,11 @@ function fitFrom(
   limits: FitLimits, reference?: FitState,
 ): FitState | null {
   const n = c.t_s.length;
-  chooseResidualForms(guess.p, e, c.vh_v, c.vl_v);
-  // Round 0 fits a subset of a long capture (below), and every variance is set anew from the
-  // noise estimate after it: the start's variances are needed on the subset alone (Infinity,
-  // weight zero, elsewhere).
+  // Round 0 fits a subset of a long capture (below), and the forms and every variance are set
+  // anew after it: the start's forms and variances are needed on the subset alone (variance
+  // Infinity, weight zero, elsewhere).
   const subset = n > 400 ? subsetMask(e, 200, 50) : null;
+  chooseResidualForms(guess.p, e, c.vh_v, c.vl_v, subset);
   const variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, q), ws, subset);
   const robust = new Float64Array(n).fill(1);
   const outlier = new Uint8Array(n);
