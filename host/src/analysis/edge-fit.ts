@@ -111,12 +111,27 @@ export function fitEdgeModel(
   if (!Number.isFinite(chi2)) return { p, chi2, normal: ws.h.slice(), iterations: 0, converged: false, fresh };
   let lambda = 1e-4;
   let converged = false;
+  // The last accepted step gained what the quadratic model predicted (within a factor 2).
+  let modelHolds = false;
   let it = 0;
   // ws.jp keeps the Jacobian at p for the geodesic acceleration (a trial overwrites ws.jac).
   ws.jp.set(ws.jac);
   for (; it < max_iterations && !converged; it++) {
     for (let i = 0; i < N_PARAMS * N_PARAMS; i++) ws.hs[i] = ws.h[i] + ws.hp1[i];
     for (let i = 0; i < N_PARAMS; i++) ws.gs[i] = -(ws.g[i] + ws.gp1[i]);
+    // Once the last step's gain matched its quadratic model, the model's own remaining gain
+    // (the Gauss-Newton decrement g^T H^-1 g: the chi2 the undamped step would gain, S. Boyd
+    // and L. Vandenberghe, Convex Optimization, 2004, §9.5.1) is trusted: a tenth of the
+    // tolerance left and the fit has converged, without evaluating a last step that could only
+    // confirm it.
+    if (modelHolds && solveDamped(N_PARAMS, ws.hs, ws.gs, 0, ws.step, ws.work)) {
+      let decrement = 0;
+      for (let i = 0; i < N_PARAMS; i++) decrement += ws.gs[i] * ws.step[i];
+      if (decrement <= DECREMENT_TOL * tol_chi2) {
+        converged = true;
+        break;
+      }
+    }
     let accepted = false;
     while (lambda < 1e12) {
       if (!solveDamped(N_PARAMS, ws.hs, ws.gs, lambda, ws.step, ws.work)) {
@@ -141,6 +156,8 @@ export function fitEdgeModel(
       if (trialChi2 <= chi2) {
         const drop = chi2 - trialChi2;
         converged = drop <= tol_chi2 + 1e-12 * chi2 || smallStep(p, ws.step);
+        const predicted = predictedGain(ws.hs, ws.gs, ws.step);
+        modelHolds = drop >= MODEL_HOLDS_LO * predicted && drop <= MODEL_HOLDS_HI * predicted;
         p.set(ws.trial);
         ws.jp.set(ws.jac);
         ws.h.set(ws.h2);
@@ -161,6 +178,23 @@ export function fitEdgeModel(
     }
   }
   return { p, chi2, normal: ws.h.slice(), iterations: it, converged, fresh };
+}
+
+/** Fraction of the tolerance the Gauss-Newton decrement must fall below to stop. */
+const DECREMENT_TOL = 0.1;
+/** Gain / predicted gain of an accepted step within which the quadratic model is trusted. */
+const MODEL_HOLDS_LO = 0.5;
+const MODEL_HOLDS_HI = 2;
+
+/** chi2 gain the quadratic model predicts for the step s: 2 s.(-g) - s^T H s (gs = -g). */
+function predictedGain(hs: Float64Array, gs: Float64Array, s: Float64Array): number {
+  let gain = 0;
+  for (let i = 0; i < N_PARAMS; i++) {
+    let hsi = 0;
+    for (let j = 0; j < N_PARAMS; j++) hsi += hs[i * N_PARAMS + j] * s[j];
+    gain += 2 * gs[i] * s[i] - s[i] * hsi;
+  }
+  return gain;
 }
 
 /** The largest acceleration accepted relative to the step (M. K. Transtrum and J. P. Sethna,
