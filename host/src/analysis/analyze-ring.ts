@@ -183,7 +183,7 @@ function fitFrom(
   // Round 0 fits a subset of a long capture (below), and the forms and every variance are set
   // anew after it: the start's forms and variances are needed on the subset alone (variance
   // Infinity, weight zero, elsewhere).
-  const subset = n > 400 ? subsetMask(e, 200, 50) : null;
+  const subset = n > 400 ? subsetMask(e, 160, 40) : null;
   chooseResidualForms(guess.p, e, c.vh_v, c.vl_v, subset);
   const variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, q), ws, subset);
   const robust = new Float64Array(n).fill(1);
