@@ -13,7 +13,7 @@ import { chooseResidualForms, evaluateEdges, formChanges, makeEdgeSet, P_ALPHA, 
 import { fitLimits, initialVariance, rankStarts, subsetMask } from "./fit-start.ts";
 import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
 import { reassignHalfCycles } from "./model-bookkeeping.ts";
-import { edgeTimeVariances, edgeVariances, estimateNoise, type NoiseEstimate } from "./noise-model.ts";
+import { estimateNoise, updateVariances, type NoiseEstimate } from "./noise-model.ts";
 import { ringQuantities, COVERAGE_K, type RingQuantities } from "./ring-quantities.ts";
 import { correlationInflation, residualCorrelation } from "./residual-correlation.ts";
 import { huberWeight, madSigma, median } from "./robust-stats.ts";
@@ -197,8 +197,6 @@ function fitFrom(
   const zUsed = new Float64Array(n);
   const noiseMask = new Float64Array(n);
   const zWork = new Float64Array(n);
-  const oldVarT = new Float64Array(n);
-  const oldVariance = new Float64Array(n);
   const oldScale = new Float64Array(n);
   const oldForm = new Uint8Array(n);
   let p = guess.p;
@@ -280,14 +278,10 @@ function fitFrom(
       clean += noiseMask[k];
     }
     noise = estimateNoise(ws.r, ws.slope, ws.curvature, varT, leverage, clean >= 12 ? noiseMask : used, q, noise);
-    oldVarT.set(varT);
-    oldVariance.set(variance);
-    edgeTimeVariances(q, noise, ws.slope, p[P_WD], assigned, varT);
-    edgeVariances(q, noise, ws.slope, ws.curvature, varT, variance);
-    // The residuals' second-order term follows the new timing variances (edge-model.ts).
-    for (let k = 0; k < n; k++) if (assigned[k] > 0) ws.r[k] -= 0.5 * ws.curvature[k] * (varT[k] - oldVarT[k]);
-    // A 5 % change of the weights moves the estimates by a negligible second-order amount.
-    const noiseMoved = meanRelChange(oldVariance, variance, used) > 0.05;
+    // New variances; the residuals' second-order term follows the new timing variances
+    // (edge-model.ts). A 5 % change of the weights moves the estimates by a negligible
+    // second-order amount.
+    const noiseMoved = updateVariances(q, noise, ws.slope, ws.curvature, p[P_WD], assigned, used, varT, variance, ws.r) > 0.05;
 
     const rw = reweight(ws.r, variance, assigned, used, outlier, robust, reasons, round > 0, z, zUsed, zWork);
     zScale = rw.zScale;
@@ -430,17 +424,6 @@ function phaseShift(a: Float64Array, b: Float64Array, t_last_s: number): number 
     Math.abs(b[P_WD] - a[P_WD]) * t_last_s + Math.abs(b[P_PHI] - a[P_PHI]) +
     Math.abs(b[P_LNA] - a[P_LNA]) + Math.abs(b[P_ALPHA] - a[P_ALPHA]) * t_last_s
   );
-}
-
-function meanRelChange(before: Float64Array, after: Float64Array, used: Float64Array): number {
-  let s = 0;
-  let c = 0;
-  for (let k = 0; k < before.length; k++) {
-    if (!(used[k] > 0)) continue;
-    s += Math.abs(after[k] - before[k]) / before[k];
-    c++;
-  }
-  return c > 0 ? s / c : 0;
 }
 
 function fmt(x: number): string {

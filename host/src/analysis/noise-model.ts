@@ -24,31 +24,38 @@ export interface NoiseEstimate {
 }
 
 /**
- * Timing variance var_k (s^2) of every edge with mask[k] > 0; the others (no current slope) get
- * the slope-free part, so that an edge indexed later starts from a finite value.
+ * Sets every edge's timing variance var_t[k] (s^2) and residual variance Var(e_k) (V^2) from a
+ * new noise estimate, in one pass. Edges with assigned[k] > 0 get the full timing variance and
+ * have their residual r[k] moved to the new second-order correction (-curvature var_t / 2,
+ * edge-model.ts); the others (no current slope) get the slope-free part, so that an edge
+ * indexed later starts from a finite value. Returns the mean relative change of Var(e_k) over
+ * the edges with used[k] > 0.
  */
-export function edgeTimeVariances(
-  q_s2: number, noise: NoiseEstimate, slope: Float64Array, wd: number, mask: Float64Array, out: Float64Array,
-): void {
+export function updateVariances(
+  q_s2: number, noise: NoiseEstimate, slope: Float64Array, curvature: Float64Array, wd: number,
+  assigned: Float64Array, used: Float64Array, var_t: Float64Array, variance: Float64Array, r: Float64Array,
+): number {
   const cap = 1 / (wd * wd);
-  for (let k = 0; k < out.length; k++) {
-    const s = slope[k];
-    out[k] = mask[k] > 0 ? Math.min(cap, q_s2 + noise.sigma_t2 + noise.sigma_v2 / (s * s)) : q_s2 + noise.sigma_t2;
-  }
-}
-
-/** Var(e_k) in V^2 from the timing variances. */
-export function edgeVariances(
-  q_s2: number, noise: NoiseEstimate, slope: Float64Array, curvature: Float64Array,
-  var_t: Float64Array, out: Float64Array,
-): void {
   const vt = q_s2 + noise.sigma_t2;
-  for (let k = 0; k < out.length; k++) {
+  const sv2 = noise.sigma_v2;
+  let change = 0;
+  let counted = 0;
+  for (let k = 0; k < var_t.length; k++) {
     const s = slope[k];
     const c = curvature[k];
-    const vk = var_t[k];
-    out[k] = noise.sigma_v2 + s * s * vt + 0.5 * c * c * vk * vk;
+    const isAssigned = assigned[k] > 0;
+    const vk = isAssigned ? Math.min(cap, vt + sv2 / (s * s)) : vt;
+    if (isAssigned) r[k] -= 0.5 * c * (vk - var_t[k]);
+    var_t[k] = vk;
+    const before = variance[k];
+    const after = sv2 + s * s * vt + 0.5 * c * c * vk * vk;
+    variance[k] = after;
+    if (used[k] > 0) {
+      change += Math.abs(after - before) / before;
+      counted++;
+    }
   }
+  return counted > 0 ? change / counted : 0;
 }
 
 /**
