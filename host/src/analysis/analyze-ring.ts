@@ -258,25 +258,30 @@ function fitFrom(
       moved = reassignHalfCycles(p, e, c.vh_v, c.vl_v, round === 0 && subset ? null : sd, reasons);
       pIndexed = p;
     }
-    for (let k = 0; k < n; k++) assigned[k] = e.m[k] === e.m[k] ? 1 : 0;
     // Forms for the indices just set, before the evaluation that round 1's fit starts from.
     if (round === 0) reform();
     if (moved > 0 || !cached) {
       evaluateEdges(p, e, c.vh_v, c.vl_v, null, varT, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
       cached = true;
     }
-    setWeights(e, outlier, robust, variance, used, w);
-    const cov = invertSymmetric(4, fit.normal);
-    if (countFinite(e.m) < MIN_EDGES || !cov) throw noRing("too few edges fit a ring");
-    computeLeverage(cov, ws.jac, w, used, leverage);
     // Grazing edges (level form) say little about the noise and their residuals are bounded by
     // the ring's excursion past the threshold, which would pull sigma_v down: the noise is
-    // estimated from the clean crossings when there are enough of them.
+    // estimated from the clean crossings when there are enough of them. (One pass: indexed
+    // edges, the weights as setWeights sets them, the clean crossings.)
+    let nAssigned = 0;
     let clean = 0;
     for (let k = 0; k < n; k++) {
+      const a = e.m[k] === e.m[k] ? 1 : 0;
+      assigned[k] = a;
+      nAssigned += a;
+      used[k] = a > 0 && !outlier[k] ? 1 : 0;
+      w[k] = used[k] > 0 ? robust[k] / variance[k] : 0;
       noiseMask[k] = used[k] > 0 && e.form[k] === 1 ? 1 : 0;
       clean += noiseMask[k];
     }
+    const cov = invertSymmetric(4, fit.normal);
+    if (nAssigned < MIN_EDGES || !cov) throw noRing("too few edges fit a ring");
+    computeLeverage(cov, ws.jac, w, used, leverage);
     noise = estimateNoise(ws.r, ws.slope, ws.curvature, varT, leverage, clean >= 12 ? noiseMask : used, q, noise);
     // New variances; the residuals' second-order term follows the new timing variances
     // (edge-model.ts). A 5 % change of the weights moves the estimates by a negligible
