@@ -282,7 +282,8 @@ function fitFrom(
     const cov = invertSymmetric(4, fit.normal);
     if (nAssigned < MIN_EDGES || !cov) throw noRing("too few edges fit a ring");
     computeLeverage(cov, ws.jac, w, used, leverage);
-    noise = estimateNoise(ws.r, ws.slope, ws.curvature, varT, leverage, clean >= 12 ? noiseMask : used, q, noise);
+    // (reweight's and the re-indexing's scratch arrays serve the estimate too.)
+    noise = estimateNoise(ws.r, ws.slope, ws.curvature, varT, leverage, clean >= 12 ? noiseMask : used, q, noise, [z, zUsed, zWork, sd]);
     // New variances; the residuals' second-order term follows the new timing variances
     // (edge-model.ts). A 5 % change of the weights moves the estimates by a negligible
     // second-order amount.

@@ -61,18 +61,22 @@ export function updateVariances(
 /**
  * Estimates (sigma_t^2, sigma_v^2) from the residuals r (volts), slopes, curvatures, current
  * timing variances and leverages of the edges with mask[k] > 0. `start` seeds the clipping;
- * null starts from the median squared residual with all noise in time.
+ * null starts from the median squared residual with all noise in time. `work`: optional scratch
+ * arrays (see below), so that a caller in a loop does not allocate.
  */
 export function estimateNoise(
   r: Float64Array, slope: Float64Array, curvature: Float64Array, var_t: Float64Array,
   leverage: Float64Array, mask: Float64Array, q_s2: number, start: NoiseEstimate | null,
+  work: Float64Array[] = [],
 ): NoiseEstimate {
   const n = r.length;
   // What the iterations do not change, per edge with mask[k] > 0 and a finite residual, once:
-  // x (slope^2 until xMean is known), the curvature term and r^2 / (1 - h).
-  const xs = new Float64Array(n);
-  const curvs = new Float64Array(n);
-  const r2h = new Float64Array(n);
+  // x (slope^2 until xMean is known), the curvature term and r^2 / (1 - h); in `work` (four
+  // arrays of at least n entries, the fourth for the median start) when the caller lends them.
+  const scratch = (i: number) => (work[i] && work[i].length >= n ? work[i] : new Float64Array(n));
+  const xs = scratch(0);
+  const curvs = scratch(1);
+  const r2h = scratch(2);
   let xMean = 0;
   let count = 0;
   for (let k = 0; k < n; k++) {
@@ -94,11 +98,11 @@ export function estimateNoise(
     a = start.sigma_v2;
     b = (q_s2 + start.sigma_t2) * xMean;
   } else {
-    const ratio = new Float64Array(count);
+    const ratio = scratch(3);
     let c = 0;
     for (let k = 0; k < n; k++) if (mask[k] > 0 && Number.isFinite(r[k])) ratio[c++] = (r[k] * r[k]) / (slope[k] * slope[k]);
     a = 0;
-    b = Math.max(q_s2, median(ratio, c) / 0.45493642) * xMean; // median of chi-square(1)
+    b = Math.max(q_s2, median(ratio, c, ratio) / 0.45493642) * xMean; // median of chi-square(1)
   }
   const bMin = q_s2 * xMean;
   for (let c = 0; c < count; c++) xs[c] = xs[c] / xMean;
