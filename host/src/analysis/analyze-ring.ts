@@ -186,22 +186,15 @@ function fitFrom(
   const subset = n > 400 ? subsetMask(e, 160, 40) : null;
   chooseResidualForms(guess.p, e, c.vh_v, c.vl_v, subset);
   const variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, q), ws, subset);
-  const robust = new Float64Array(n).fill(1);
   const outlier = new Uint8Array(n);
   const used = new Float64Array(n);
-  const assigned = new Float64Array(n);
-  const w = new Float64Array(n);
-  const leverage = new Float64Array(n);
-  const sd = new Float64Array(n);
-  const z = new Float64Array(n);
-  const zUsed = new Float64Array(n);
-  const noiseMask = new Float64Array(n);
-  const zWork = new Float64Array(n);
-  const oldScale = new Float64Array(n);
+  // Per-edge arrays that do not outlive the fit come from the capture's workspace.
+  const [robust, assigned, w, leverage, sd, z, zUsed, noiseMask, zWork, oldScale, varT] = ws.roundScratch(11);
+  robust.fill(1);
+  varT.fill(q);
   const oldForm = new Uint8Array(n);
   let p = guess.p;
   let noise: NoiseEstimate | null = null;
-  const varT = new Float64Array(n).fill(q);
   let zScale = 1;
   let fit!: ReturnType<typeof fitEdgeModel>;
   // ws.r, ws.jac, ws.slope and ws.curvature hold the model at p with the current forms and

@@ -75,6 +75,16 @@ export class FitWorkspace {
   readonly jp: Float64Array;
   readonly ga = new Float64Array(N_PARAMS);
   readonly acc = new Float64Array(N_PARAMS);
+  /** Per-edge scratch for the rounds around the fits (analyze-ring.ts), one block for the
+   *  capture: allocating a typed array of a few kB costs more than a pass over it. */
+  private roundBlock: Float64Array | null = null;
+  /** `count` per-edge arrays, contents undefined, shared by every caller of the workspace. */
+  roundScratch(count: number): Float64Array[] {
+    const n = this.r.length;
+    if (!this.roundBlock || this.roundBlock.length < count * n) this.roundBlock = new Float64Array(count * n);
+    const block = this.roundBlock;
+    return Array.from({ length: count }, (_, i) => block.subarray(i * n, (i + 1) * n));
+  }
   constructor(n: number) {
     this.r = new Float64Array(n);
     this.jac = new Float64Array(4 * n);
