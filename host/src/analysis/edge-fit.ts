@@ -96,14 +96,15 @@ export class FitWorkspace {
 
 /**
  * Minimises sum w_k r_k^2 over the edges with w_k > 0 and finite m, starting at p0. Stops when a
- * step gains less than `tol_chi2` (chi2 is in units of the noise model, so 1e-6 leaves the
- * parameters within about 1e-3 standard deviations of the minimum).
+ * step gains less than `tol_chi2`, or when the quadratic model, having just predicted a step's
+ * gain, predicts less than a tenth of it still to gain (chi2 is in units of the noise model, so
+ * 1e-6 leaves the parameters within about 1e-3 standard deviations of the minimum).
  *
  * Every indexed edge is evaluated (weight zero included, so rejected edges can be re-tested),
  * unless `only_weighted`.
  * With `reuse`, ws.r and ws.jac already hold the model at p0 and are not evaluated again. On
  * return `fresh` says whether ws.r, ws.jac, ws.slope and ws.curvature belong to the returned p
- * (false only when the last trial step was refused).
+ * (false only when the last evaluated trial step was refused).
  */
 export function fitEdgeModel(
   e: EdgeSet, vh_v: number, vl_v: number, p0: ArrayLike<number>, w: Float64Array, var_t_s2: Float64Array | null,
