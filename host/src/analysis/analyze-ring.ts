@@ -13,7 +13,7 @@ import { chooseResidualForms, evaluateEdges, formChanges, makeEdgeSet, P_ALPHA, 
 import { fitLimits, initialVariance, rankStarts, subsetMask, type RankedStart } from "./fit-start.ts";
 import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
 import { reassignHalfCycles } from "./model-bookkeeping.ts";
-import { edgeTimeVariances, edgeVariances, estimateNoise, type NoiseEstimate } from "./noise-model.ts";
+import { estimateNoise, updateVariances, type NoiseEstimate } from "./noise-model.ts";
 import { ringQuantities, COVERAGE_K, type RingQuantities } from "./ring-quantities.ts";
 import { correlationInflation, residualCorrelation } from "./residual-correlation.ts";
 import { huberWeight, madSigma, median } from "./robust-stats.ts";
@@ -27,9 +27,10 @@ const REJECT_Z = 5;
 const HUBER_C = 2;
 const MAX_ROUNDS = 8;
 /**
- * A fit stops when a step gains less than this in chi2 (units of the noise model): the
- * parameters are then within about 0.03 standard deviations of the minimum, which adds 0.1 % to
- * their variance. Tighter only spends iterations along flat directions.
+ * A fit stops when a step gains less than this in chi2 (units of the noise model), or when its
+ * quadratic model, trusted, leaves less than a tenth of it to gain (edge-fit.ts): the parameters
+ * are then within about 0.03 standard deviations of the minimum, which adds 0.1 % to their
+ * variance. Tighter only spends iterations along flat directions.
  */
 const FIT_TOL_CHI2 = 1e-3;
 
@@ -196,24 +197,21 @@ function fitFrom(
   limits: FitLimits, reference?: FitState,
 ): FitState | null {
   const n = c.t_s.length;
-  chooseResidualForms(guess.p, e, c.vh_v, c.vl_v);
-  const variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, q), ws);
-  const robust = new Float64Array(n).fill(1);
+  // Round 0 fits a subset of a long capture (below), and the forms and every variance are set
+  // anew after it: the start's forms and variances are needed on the subset alone (variance
+  // Infinity, weight zero, elsewhere).
+  const subset = n > 400 ? subsetMask(e, 160, 40) : null;
+  chooseResidualForms(guess.p, e, c.vh_v, c.vl_v, subset);
+  const variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, q), ws, subset);
   const outlier = new Uint8Array(n);
   const used = new Float64Array(n);
-  const assigned = new Float64Array(n);
-  const w = new Float64Array(n);
-  const leverage = new Float64Array(n);
-  const sd = new Float64Array(n);
-  const z = new Float64Array(n);
-  const zUsed = new Float64Array(n);
-  const noiseMask = new Float64Array(n);
-  const zWork = new Float64Array(n);
-  const oldVarT = new Float64Array(n);
-  const oldVariance = new Float64Array(n);
+  // Per-edge arrays that do not outlive the fit come from the capture's workspace.
+  const [robust, assigned, w, leverage, sd, z, zUsed, noiseMask, zWork, oldScale, varT] = ws.roundScratch(11);
+  robust.fill(1);
+  varT.fill(q);
+  const oldForm = new Uint8Array(n);
   let p = guess.p;
   let noise: NoiseEstimate | null = null;
-  const varT = new Float64Array(n).fill(q);
   let zScale = 1;
   let fit!: ReturnType<typeof fitEdgeModel>;
   // ws.r, ws.jac, ws.slope and ws.curvature hold the model at p with the current forms and
@@ -221,23 +219,37 @@ function fitFrom(
   // evaluate the model again at the same point.
   let cached = false;
   let pIndexed: Float64Array | null = null;
-  const subset = n > 400 ? subsetMask(e, 200, 50) : null;
   let reforms = 0;
   let staleForms = false;
+  // Chooses the residual forms again at p. A phase-form residual is S_k times a phase error, so
+  // its variance goes with S_k^2: an edge that keeps the phase form under a new scale keeps its
+  // weight, and chi2 its units (with the start's scales after round 0 had moved the amplitude,
+  // chi2 came out up to ~400x too large and its stopping tolerance as much too tight).
+  const reform = () => {
+    oldScale.set(e.scale_v);
+    oldForm.set(e.form);
+    chooseResidualForms(p, e, c.vh_v, c.vl_v);
+    for (let k = 0; k < n; k++) {
+      if (oldForm[k] !== 1 || e.form[k] !== 1) continue;
+      const f = e.scale_v[k] / oldScale[k];
+      variance[k] *= f * f;
+    }
+    cached = false;
+  };
   for (let round = 0; ; round++) {
-    // Residual forms follow the model while it is still moving (set at the start, again in
-    // round 1), then stay, so that the weights of a round and its residuals use the same
-    // scales; unless the model has since moved an edge across the grazing limit (a phase-form
-    // edge the envelope no longer clearly reaches), which is chosen again, a few times at most.
-    if (round === 1 || staleForms) {
-      chooseResidualForms(p, e, c.vh_v, c.vl_v);
-      cached = false;
-      if (round > 1) reforms++;
+    // Residual forms follow the model while it is still moving (set at the start, again after
+    // round 0's fit and re-indexing), then stay, so that the weights of a round and its
+    // residuals use the same scales; unless the model has since moved an edge across the
+    // grazing limit (a phase-form edge the envelope no longer clearly reaches), which is chosen
+    // again, a few times at most.
+    if (staleForms) {
+      reform();
+      reforms++;
     }
     setWeights(e, outlier, robust, variance, used, w);
     // Round 0 weights with a rough noise model and only has to bring the start near the
-    // minimum: a few steps on a subset of the edges (the tail and a spread) suffice there.
-    if (round === 0 && subset) for (let k = 0; k < n; k++) w[k] *= subset[k];
+    // minimum: a few steps on a subset of the edges (the tail and a spread) suffice there (the
+    // others have no variance yet, so weight zero).
     fit = fitEdgeModel(e, c.vh_v, c.vl_v, p, w, varT, ws, limits, round < 2 ? 6 : 60, FIT_TOL_CHI2, cached, round === 0);
     if (!Number.isFinite(fit.chi2)) throw noRing("the edge-model fit diverged");
     p = fit.p;
@@ -252,35 +264,40 @@ function fitFrom(
     let moved = 0;
     if (!pIndexed || phaseShift(pIndexed, p, limits.t_last_s) > 0.01) {
       for (let k = 0; k < n; k++) sd[k] = Math.sqrt(variance[k]);
-      moved = reassignHalfCycles(p, e, c.vh_v, c.vl_v, sd, reasons);
+      // (Duplicates are compared in plain volts while round 0's variances cover a subset only.)
+      moved = reassignHalfCycles(p, e, c.vh_v, c.vl_v, round === 0 && subset ? null : sd, reasons);
       pIndexed = p;
     }
-    for (let k = 0; k < n; k++) assigned[k] = e.m[k] === e.m[k] ? 1 : 0;
+    // Forms for the indices just set, before the evaluation that round 1's fit starts from.
+    if (round === 0) reform();
     if (moved > 0 || !cached) {
       evaluateEdges(p, e, c.vh_v, c.vl_v, null, varT, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
       cached = true;
     }
-    setWeights(e, outlier, robust, variance, used, w);
-    const cov = invertSymmetric(4, fit.normal);
-    if (countFinite(e.m) < MIN_EDGES || !cov) throw noRing("too few edges fit a ring");
-    computeLeverage(cov, ws.jac, w, used, leverage);
     // Grazing edges (level form) say little about the noise and their residuals are bounded by
     // the ring's excursion past the threshold, which would pull sigma_v down: the noise is
-    // estimated from the clean crossings when there are enough of them.
+    // estimated from the clean crossings when there are enough of them. (One pass: indexed
+    // edges, the weights as setWeights sets them, the clean crossings.)
+    let nAssigned = 0;
     let clean = 0;
     for (let k = 0; k < n; k++) {
+      const a = e.m[k] === e.m[k] ? 1 : 0;
+      assigned[k] = a;
+      nAssigned += a;
+      used[k] = a > 0 && !outlier[k] ? 1 : 0;
+      w[k] = used[k] > 0 ? robust[k] / variance[k] : 0;
       noiseMask[k] = used[k] > 0 && e.form[k] === 1 ? 1 : 0;
       clean += noiseMask[k];
     }
-    noise = estimateNoise(ws.r, ws.slope, ws.curvature, varT, leverage, clean >= 12 ? noiseMask : used, q, noise);
-    oldVarT.set(varT);
-    oldVariance.set(variance);
-    edgeTimeVariances(q, noise, ws.slope, p[P_WD], assigned, varT);
-    edgeVariances(q, noise, ws.slope, ws.curvature, varT, variance);
-    // The residuals' second-order term follows the new timing variances (edge-model.ts).
-    for (let k = 0; k < n; k++) if (assigned[k] > 0) ws.r[k] -= 0.5 * ws.curvature[k] * (varT[k] - oldVarT[k]);
-    // A 5 % change of the weights moves the estimates by a negligible second-order amount.
-    const noiseMoved = meanRelChange(oldVariance, variance, used) > 0.05;
+    const cov = invertSymmetric(4, fit.normal);
+    if (nAssigned < MIN_EDGES || !cov) throw noRing("too few edges fit a ring");
+    computeLeverage(cov, ws.jac, w, used, leverage);
+    // (reweight's and the re-indexing's scratch arrays serve the estimate too.)
+    noise = estimateNoise(ws.r, ws.slope, ws.curvature, varT, leverage, clean >= 12 ? noiseMask : used, q, noise, [z, zUsed, zWork, sd]);
+    // New variances; the residuals' second-order term follows the new timing variances
+    // (edge-model.ts). A 5 % change of the weights moves the estimates by a negligible
+    // second-order amount.
+    const noiseMoved = updateVariances(q, noise, ws.slope, ws.curvature, p[P_WD], assigned, used, varT, variance, ws.r) > 0.05;
 
     const rw = reweight(ws.r, variance, assigned, used, outlier, robust, reasons, round > 0, z, zUsed, zWork);
     zScale = rw.zScale;
@@ -423,17 +440,6 @@ function phaseShift(a: Float64Array, b: Float64Array, t_last_s: number): number 
     Math.abs(b[P_WD] - a[P_WD]) * t_last_s + Math.abs(b[P_PHI] - a[P_PHI]) +
     Math.abs(b[P_LNA] - a[P_LNA]) + Math.abs(b[P_ALPHA] - a[P_ALPHA]) * t_last_s
   );
-}
-
-function meanRelChange(before: Float64Array, after: Float64Array, used: Float64Array): number {
-  let s = 0;
-  let c = 0;
-  for (let k = 0; k < before.length; k++) {
-    if (!(used[k] > 0)) continue;
-    s += Math.abs(after[k] - before[k]) / before[k];
-    c++;
-  }
-  return c > 0 ? s / c : 0;
 }
 
 function fmt(x: number): string {

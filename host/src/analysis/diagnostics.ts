@@ -116,26 +116,34 @@ function frequencyDrift(s: FitState): { df_rel: number; df_rel_u: number } | und
   const jac = s.jac;
   const wd = p[P_WD];
   const alpha = p[P_ALPHA];
-  const h = new Float64Array(16);
-  const b = new Float64Array(4);
-  const gt = new Float64Array(4);
+  const r = s.r;
+  const variance = s.variance;
+  const ts = e.t_s;
+  let h00 = 0, h01 = 0, h02 = 0, h03 = 0, h11 = 0, h12 = 0, h13 = 0, h22 = 0, h23 = 0, h33 = 0;
+  let b0 = 0, b1 = 0, b2 = 0, b3 = 0, g0 = 0, g1 = 0, g2 = 0, g3 = 0;
   let c = 0, g = 0, chi2 = 0;
   for (let k = 0; k < n; k++) {
     if (!(used[k] > 0)) continue;
-    const w = 1 / s.variance[k];
-    const t = e.t_s[k];
+    const w = 1 / variance[k];
+    const t = ts[k];
     const o = 4 * k;
+    const j0 = jac[o], j1 = jac[o + 1], j2 = jac[o + 2], j3 = jac[o + 3];
+    const rk = r[k];
     // d r / d beta = (d r / d wd) wd (1 - e^(-alpha t)) / (alpha t)
-    const jb = (jac[o] * wd * -Math.expm1(-alpha * t)) / (alpha * t);
-    for (let i = 0; i < 4; i++) {
-      b[i] += w * jac[o + i] * jb;
-      gt[i] += w * jac[o + i] * s.r[k];
-      for (let j = 0; j < 4; j++) h[4 * i + j] += w * jac[o + i] * jac[o + j];
-    }
+    const jb = (j0 * wd * -Math.expm1(-alpha * t)) / (alpha * t);
+    const a0 = w * j0, a1 = w * j1, a2 = w * j2, a3 = w * j3;
+    b0 += a0 * jb; b1 += a1 * jb; b2 += a2 * jb; b3 += a3 * jb;
+    g0 += a0 * rk; g1 += a1 * rk; g2 += a2 * rk; g3 += a3 * rk;
+    h00 += a0 * j0; h01 += a0 * j1; h02 += a0 * j2; h03 += a0 * j3;
+    h11 += a1 * j1; h12 += a1 * j2; h13 += a1 * j3;
+    h22 += a2 * j2; h23 += a2 * j3; h33 += a3 * j3;
     c += w * jb * jb;
-    g += w * jb * s.r[k];
-    chi2 += w * s.r[k] * s.r[k];
+    g += w * jb * rk;
+    chi2 += w * rk * rk;
   }
+  const h = Float64Array.of(h00, h01, h02, h03, h01, h11, h12, h13, h02, h12, h22, h23, h03, h13, h23, h33);
+  const b = Float64Array.of(b0, b1, b2, b3);
+  const gt = Float64Array.of(g0, g1, g2, g3);
   const hi = invertSymmetric(4, h);
   if (!hi) return undefined;
   const schur = c - quadraticForm(4, hi, b);

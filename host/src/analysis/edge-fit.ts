@@ -3,7 +3,7 @@
 // J. SIAM 11(2), 1963). Weights are held fixed inside a fit; the caller re-weights between fits
 // (iteratively reweighted least squares).
 
-import { evaluateEdges, N_PARAMS, P_ALPHA, P_LNA, type EdgeSet } from "./edge-model.ts";
+import { C2_CONT, evaluateEdges, N_PARAMS, P_ALPHA, P_LNA, type EdgeSet } from "./edge-model.ts";
 import { solveDamped } from "./small-linear-algebra.ts";
 
 /**
@@ -71,37 +71,40 @@ export class FitWorkspace {
   readonly step = new Float64Array(N_PARAMS);
   readonly trial = new Float64Array(N_PARAMS);
   readonly work = new Float64Array(N_PARAMS * N_PARAMS + N_PARAMS);
-  /** Geodesic acceleration: residuals and Jacobian at the current point, a probe's residuals
-   *  (allocated on first use: most fits converge before they need them). */
-  rp = new Float64Array(0);
-  jp = new Float64Array(0);
-  rprobe = new Float64Array(0);
+  /** Geodesic acceleration: the Jacobian at the current point. */
+  readonly jp: Float64Array;
   readonly ga = new Float64Array(N_PARAMS);
   readonly acc = new Float64Array(N_PARAMS);
+  /** Per-edge scratch for the rounds around the fits (analyze-ring.ts), one block for the
+   *  capture: allocating a typed array of a few kB costs more than a pass over it. */
+  private roundBlock: Float64Array | null = null;
+  /** `count` per-edge arrays, contents undefined, shared by every caller of the workspace. */
+  roundScratch(count: number): Float64Array[] {
+    const n = this.r.length;
+    if (!this.roundBlock || this.roundBlock.length < count * n) this.roundBlock = new Float64Array(count * n);
+    const block = this.roundBlock;
+    return Array.from({ length: count }, (_, i) => block.subarray(i * n, (i + 1) * n));
+  }
   constructor(n: number) {
     this.r = new Float64Array(n);
     this.jac = new Float64Array(4 * n);
     this.slope = new Float64Array(n);
     this.curvature = new Float64Array(n);
-  }
-  geodesicBuffers(): void {
-    if (this.rp.length === this.r.length) return;
-    this.rp = new Float64Array(this.r.length);
-    this.jp = new Float64Array(this.jac.length);
-    this.rprobe = new Float64Array(this.r.length);
+    this.jp = new Float64Array(4 * n);
   }
 }
 
 /**
  * Minimises sum w_k r_k^2 over the edges with w_k > 0 and finite m, starting at p0. Stops when a
- * step gains less than `tol_chi2` (chi2 is in units of the noise model, so 1e-6 leaves the
- * parameters within about 1e-3 standard deviations of the minimum).
+ * step gains less than `tol_chi2`, or when the quadratic model, having just predicted a step's
+ * gain, predicts less than a tenth of it still to gain (chi2 is in units of the noise model, so
+ * 1e-6 leaves the parameters within about 1e-3 standard deviations of the minimum).
  *
  * Every indexed edge is evaluated (weight zero included, so rejected edges can be re-tested),
  * unless `only_weighted`.
  * With `reuse`, ws.r and ws.jac already hold the model at p0 and are not evaluated again. On
  * return `fresh` says whether ws.r, ws.jac, ws.slope and ws.curvature belong to the returned p
- * (false only when the last trial step was refused).
+ * (false only when the last evaluated trial step was refused).
  */
 export function fitEdgeModel(
   e: EdgeSet, vh_v: number, vl_v: number, p0: ArrayLike<number>, w: Float64Array, var_t_s2: Float64Array | null,
@@ -119,19 +122,26 @@ export function fitEdgeModel(
   if (!Number.isFinite(chi2)) return { p, chi2, normal: ws.h.slice(), iterations: 0, converged: false, fresh };
   let lambda = 1e-4;
   let converged = false;
+  // The last accepted step gained what the quadratic model predicted (within a factor 2).
+  let modelHolds = false;
   let it = 0;
-  // ws.rp and ws.jp hold the residuals and Jacobian at p from the third iteration on, when a
-  // fit that has not converged yet is likely crawling along a curved valley.
-  let atP = false;
+  // ws.jp keeps the Jacobian at p for the geodesic acceleration (a trial overwrites ws.jac).
+  ws.jp.set(ws.jac);
   for (; it < max_iterations && !converged; it++) {
     for (let i = 0; i < N_PARAMS * N_PARAMS; i++) ws.hs[i] = ws.h[i] + ws.hp1[i];
     for (let i = 0; i < N_PARAMS; i++) ws.gs[i] = -(ws.g[i] + ws.gp1[i]);
-    const geodesic = it >= GEODESIC_FROM;
-    if (geodesic && !atP) {
-      ws.geodesicBuffers();
-      ws.rp.set(ws.r);
-      ws.jp.set(ws.jac);
-      atP = true;
+    // Once the last step's gain matched its quadratic model, the model's own remaining gain
+    // (the Gauss-Newton decrement g^T H^-1 g: the chi2 the undamped step would gain, S. Boyd
+    // and L. Vandenberghe, Convex Optimization, 2004, §9.5.1) is trusted: a tenth of the
+    // tolerance left and the fit has converged, without evaluating a last step that could only
+    // confirm it.
+    if (modelHolds && solveDamped(N_PARAMS, ws.hs, ws.gs, 0, ws.step, ws.work)) {
+      let decrement = 0;
+      for (let i = 0; i < N_PARAMS; i++) decrement += ws.gs[i] * ws.step[i];
+      if (decrement <= DECREMENT_TOL * tol_chi2) {
+        converged = true;
+        break;
+      }
     }
     let accepted = false;
     while (lambda < 1e12) {
@@ -140,7 +150,13 @@ export function fitEdgeModel(
         continue;
       }
       for (let i = 0; i < N_PARAMS; i++) ws.trial[i] = p[i] + ws.step[i];
-      if (geodesic && !accelerate(p, e, vh_v, vl_v, w, var_t_s2, ws, lambda)) {
+      if (!accelerate(e, w, ws, lambda)) {
+        lambda *= 8;
+        continue;
+      }
+      // A trial whose soft-limit penalty alone exceeds chi2 at p cannot be accepted: refused
+      // without evaluating the edges (ws still holds what it held).
+      if (penalty(ws.trial, limits, ws.hp, ws.gp) > chi2) {
         lambda *= 8;
         continue;
       }
@@ -151,12 +167,10 @@ export function fitEdgeModel(
       if (trialChi2 <= chi2) {
         const drop = chi2 - trialChi2;
         converged = drop <= tol_chi2 + 1e-12 * chi2 || smallStep(p, ws.step);
+        const predicted = predictedGain(ws.hs, ws.gs, ws.step);
+        modelHolds = drop >= MODEL_HOLDS_LO * predicted && drop <= MODEL_HOLDS_HI * predicted;
         p.set(ws.trial);
-        if (geodesic) {
-          // ws.r and ws.jac were evaluated at the trial, now p.
-          ws.rp.set(ws.r);
-          ws.jp.set(ws.jac);
-        } else atP = false;
+        ws.jp.set(ws.jac);
         ws.h.set(ws.h2);
         ws.g.set(ws.g2);
         ws.hp1.set(ws.hp);
@@ -177,39 +191,70 @@ export function fitEdgeModel(
   return { p, chi2, normal: ws.h.slice(), iterations: it, converged, fresh };
 }
 
-/** Iteration from which steps carry geodesic acceleration (earlier ones usually converge). */
-const GEODESIC_FROM = 8;
-/** Probe distance along the step for the directional second derivative, and the largest
- *  acceleration accepted relative to the step (M. K. Transtrum and J. P. Sethna, "Improvements to
- *  the Levenberg-Marquardt algorithm for nonlinear least-squares minimization",
- *  arXiv:1201.5885, 2012: h = 0.1, alpha = 0.75). */
-const GEODESIC_H = 0.1;
+/** Fraction of the tolerance the Gauss-Newton decrement must fall below to stop. */
+const DECREMENT_TOL = 0.1;
+/** Gain / predicted gain of an accepted step within which the quadratic model is trusted. */
+const MODEL_HOLDS_LO = 0.5;
+const MODEL_HOLDS_HI = 2;
+
+/** chi2 gain the quadratic model predicts for the step s: 2 s.(-g) - s^T H s (gs = -g). */
+function predictedGain(hs: Float64Array, gs: Float64Array, s: Float64Array): number {
+  let gain = 0;
+  for (let i = 0; i < N_PARAMS; i++) {
+    let hsi = 0;
+    for (let j = 0; j < N_PARAMS; j++) hsi += hs[i * N_PARAMS + j] * s[j];
+    gain += 2 * gs[i] * s[i] - s[i] * hsi;
+  }
+  return gain;
+}
+
+/** The largest acceleration accepted relative to the step (M. K. Transtrum and J. P. Sethna,
+ *  "Improvements to the Levenberg-Marquardt algorithm for nonlinear least-squares
+ *  minimization", arXiv:1201.5885, 2012: alpha = 0.75). */
 const GEODESIC_ALPHA = 0.75;
 
 /**
  * Geodesic acceleration: adds a/2 to the trial step v (ws.trial = p + v on entry), where
  * a = -(J^T W J + lambda D)^-1 J^T W r'' and r'' is the second directional derivative of the
- * residuals along v, from one probe at p + h v. In a narrow curved valley this bends the step
- * along the valley instead of crawling. Returns false when the acceleration is too large
- * against the step (the step should shrink).
+ * residuals along v. In a narrow curved valley this bends the step along the valley instead of
+ * crawling. Returns false when the acceleration is too large against the step (the step should
+ * shrink).
+ *
+ * r'' is exact and needs no model evaluation: the parameters enter each residual through two
+ * combinations only, and the Jacobian at p (ws.jp) holds what their second derivatives need.
+ * Phase form: r = S (wd t - m pi - phi - s asin(u)), u = V e^x, x = alpha t - ln A0; with
+ * c = s u / sqrt(1 - u^2) (jac[2] = S c), d^2(s asin u)/dx^2 = c (1 + c^2), so
+ * r'' = -S c (1 + c^2) (t v_alpha - v_lnA)^2 (beyond U_CONT, where asin continues linearly,
+ * -S c (t v_alpha - v_lnA)^2). Level form: r = e^X sin Y - V, X = ln A0 - alpha t,
+ * Y = wd t - phi; with v = jac[2] and a = -jac[1] (the ring and its quadrature at the edge),
+ * r'' = v (dX^2 - dY^2) + 2 a dX dY, dX = v_lnA - t v_alpha, dY = t v_wd - v_phi. The
+ * second-order noise correction in r (edge-model.ts) is left out, as in the Jacobian.
  */
-function accelerate(
-  p: Float64Array, e: EdgeSet, vh_v: number, vl_v: number, w: Float64Array, var_t_s2: Float64Array | null,
-  ws: FitWorkspace, lambda: number,
-): boolean {
+function accelerate(e: EdgeSet, w: Float64Array, ws: FitWorkspace, lambda: number): boolean {
   const v = ws.step;
-  const h = GEODESIC_H;
-  for (let i = 0; i < N_PARAMS; i++) ws.acc[i] = p[i] + h * v[i];
-  evaluateEdges(ws.acc, e, vh_v, vl_v, ws.mask, var_t_s2, { r: ws.rprobe });
-  const { rp, jp, rprobe } = ws;
+  const v0 = v[0], v1 = v[1], v2 = v[2], v3 = v[3];
+  const { jp } = ws;
   const ms = e.m;
+  const ts = e.t_s;
+  const form = e.form;
+  const scale = e.scale_v;
   let g0 = 0, g1 = 0, g2 = 0, g3 = 0;
   for (let k = 0; k < e.n; k++) {
     const wk = w[k];
     if (!(wk > 0) || ms[k] !== ms[k]) continue;
     const o = 4 * k;
-    const jv = jp[o] * v[0] + jp[o + 1] * v[1] + jp[o + 2] * v[2] + jp[o + 3] * v[3];
-    const rpp = (2 / h) * ((rprobe[k] - rp[k]) / h - jv);
+    const t = ts[k];
+    const dX = v2 - t * v3;
+    let rpp: number;
+    if (form[k] === 1) {
+      const sc = scale[k];
+      const c = jp[o + 2] / sc;
+      const c2 = c * c;
+      rpp = -sc * c * (c2 <= C2_CONT ? 1 + c2 : 1) * dX * dX;
+    } else {
+      const dY = t * v0 - v1;
+      rpp = jp[o + 2] * (dX * dX - dY * dY) - 2 * jp[o + 1] * dX * dY;
+    }
     if (rpp !== rpp) return false;
     const a = wk * rpp;
     g0 += a * jp[o]; g1 += a * jp[o + 1]; g2 += a * jp[o + 2]; g3 += a * jp[o + 3];

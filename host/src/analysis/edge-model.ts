@@ -65,6 +65,8 @@ export interface EdgeOutputs {
 const U_CONT = 0.9999;
 const AS_CONT = Math.asin(U_CONT);
 const INV_SQ_CONT = 1 / Math.sqrt(1 - U_CONT * U_CONT);
+/** c^2 = u^2 / (1 - u^2) at |u| = U_CONT, c = jac[2] / S_k of a phase-form edge (edge-fit.ts). */
+export const C2_CONT = (U_CONT * U_CONT) / (1 - U_CONT * U_CONT);
 
 /**
  * Evaluates the model at every edge with a finite m and (if `mask` is given) mask[k] > 0.
@@ -168,21 +170,33 @@ function formsAt(p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number, a
   const wd = p[P_WD];
   const a0 = Math.exp(p[P_LNA]);
   const alpha = p[P_ALPHA];
-  const lastM = [-Infinity, -Infinity];
-  for (let k = 0; k < e.n; k++) if (e.m[k] === e.m[k]) lastM[e.rising[k]] = Math.max(lastM[e.rising[k]], e.m[k]);
-  for (let k = 0; k < e.n; k++) {
+  const { n, m: ms, rising, t_s: ts, form, scale_v: scale } = e;
+  let lastF = -Infinity, lastR = -Infinity;
+  for (let k = 0; k < n; k++) {
+    const m = ms[k];
+    if (m !== m) continue;
+    if (rising[k] === 1) lastR = Math.max(lastR, m);
+    else lastF = Math.max(lastF, m);
+  }
+  for (let k = 0; k < n; k++) {
     if (mask !== null && !(mask[k] > 0)) continue;
-    const rise = e.rising[k] === 1;
-    const amp = a0 * Math.exp(-alpha * e.t_s[k]);
+    const m = ms[k];
+    const rise = rising[k] === 1;
+    const mayGraze = !(m < (rise ? lastR : lastF) - 4);
+    // Only the scales need the model where an edge cannot graze: a count skips it.
+    if (!apply && !mayGraze) {
+      if (m === m && form[k] !== 1) changes++;
+      continue;
+    }
+    const amp = a0 * Math.exp(-alpha * ts[k]);
     const u = (rise ? vh_v : vl_v) / amp;
-    const mayGraze = !(e.m[k] < lastM[e.rising[k]] - 4);
     const sq = Math.sqrt(Math.max(1 - u * u, 1e-6));
-    let form = 1;
-    if (mayGraze && (!(Math.abs(u) < 0.98) || !(wd - (alpha * (rise ? 1 : -1) * u) / sq > 0.3 * wd))) form = 0;
-    if (e.m[k] === e.m[k] && form !== e.form[k]) changes++;
+    let f = 1;
+    if (mayGraze && (!(Math.abs(u) < 0.98) || !(wd - (alpha * (rise ? 1 : -1) * u) / sq > 0.3 * wd))) f = 0;
+    if (m === m && f !== form[k]) changes++;
     if (!apply) continue;
-    e.form[k] = form;
-    e.scale_v[k] = amp * sq;
+    form[k] = f;
+    scale[k] = amp * sq;
   }
   return changes;
 }

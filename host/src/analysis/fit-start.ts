@@ -4,7 +4,7 @@
 import { FitWorkspace, fitEdgeModel, type FitLimits } from "./edge-fit.ts";
 import { chooseResidualForms, evaluateEdges, makeEdgeSet, P_ALPHA, P_LNA, P_WD, type EdgeSet } from "./edge-model.ts";
 import type { InitialGuess } from "./initial-guess.ts";
-import { edgeTimeVariances, edgeVariances, estimateNoise } from "./noise-model.ts";
+import { estimateNoise, updateVariances } from "./noise-model.ts";
 import type { CheckedInput } from "./validate-input.ts";
 
 /**
@@ -102,8 +102,7 @@ function subsetNll(e: EdgeSet, ws: FitWorkspace, q: number, varT: number, wd: nu
   const slope = ws.slope.subarray(0, n);
   const curv = ws.curvature.subarray(0, n);
   const noise = estimateNoise(r, slope, curv, vt, lev, nClean >= 12 ? clean : all, q, null);
-  edgeTimeVariances(q, noise, slope, wd, all, vt);
-  edgeVariances(q, noise, slope, curv, vt, v);
+  updateVariances(q, noise, slope, curv, wd, all, null, vt, v, null);
   let s = 0;
   for (let k = 0; k < n; k++) s += Math.min((r[k] * r[k]) / v[k], 25) + Math.log(vt[k]);
   return s;
@@ -189,15 +188,17 @@ export function subsetMask(e: EdgeSet, count: number, tail: number): Float64Arra
 }
 
 /**
- * Round-0 variances: timing noise only, slopes floored so grazing edges do not dominate (edges
- * without a half-cycle get Infinity).
+ * Round-0 variances: timing noise only, slopes floored so grazing edges do not dominate. With a
+ * mask, only edges with mask[k] > 0 get one (the others stay Infinity).
  */
-export function initialVariance(p: Float64Array, e: EdgeSet, var_t_s2: number, ws: FitWorkspace): Float64Array {
+export function initialVariance(
+  p: Float64Array, e: EdgeSet, var_t_s2: number, ws: FitWorkspace, mask: Float64Array | null = null,
+): Float64Array {
   const out = new Float64Array(e.n).fill(Infinity);
-  evaluateEdges(p, e, 0, 0, null, null, { slope: ws.slope });
+  evaluateEdges(p, e, 0, 0, mask, null, { slope: ws.slope });
   const a0 = Math.exp(p[P_LNA]);
   for (let k = 0; k < e.n; k++) {
-    if (e.m[k] !== e.m[k]) continue;
+    if (e.m[k] !== e.m[k] || (mask !== null && !(mask[k] > 0))) continue;
     const floor = 0.3 * p[P_WD] * a0 * Math.exp(-p[P_ALPHA] * e.t_s[k]);
     out[k] = var_t_s2 * (ws.slope[k] * ws.slope[k] + floor * floor);
   }

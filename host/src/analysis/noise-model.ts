@@ -24,48 +24,70 @@ export interface NoiseEstimate {
 }
 
 /**
- * Timing variance var_k (s^2) of every edge with mask[k] > 0; the others (no current slope) get
- * the slope-free part, so that an edge indexed later starts from a finite value.
+ * Sets every edge's timing variance var_t[k] (s^2) and residual variance Var(e_k) (V^2) from a
+ * new noise estimate, in one pass. Edges with assigned[k] > 0 get the full timing variance and
+ * have their residual r[k] moved to the new second-order correction (-curvature var_t / 2,
+ * edge-model.ts; r null: residuals without that term, left alone); the others (no current
+ * slope) get the slope-free part, so that an edge indexed later starts from a finite value.
+ * Returns the mean relative change of Var(e_k) over the edges with used[k] > 0 (0 when `used`
+ * is null).
  */
-export function edgeTimeVariances(
-  q_s2: number, noise: NoiseEstimate, slope: Float64Array, wd: number, mask: Float64Array, out: Float64Array,
-): void {
+export function updateVariances(
+  q_s2: number, noise: NoiseEstimate, slope: Float64Array, curvature: Float64Array, wd: number,
+  assigned: Float64Array, used: Float64Array | null, var_t: Float64Array, variance: Float64Array,
+  r: Float64Array | null,
+): number {
   const cap = 1 / (wd * wd);
-  for (let k = 0; k < out.length; k++) {
-    const s = slope[k];
-    out[k] = mask[k] > 0 ? Math.min(cap, q_s2 + noise.sigma_t2 + noise.sigma_v2 / (s * s)) : q_s2 + noise.sigma_t2;
-  }
-}
-
-/** Var(e_k) in V^2 from the timing variances. */
-export function edgeVariances(
-  q_s2: number, noise: NoiseEstimate, slope: Float64Array, curvature: Float64Array,
-  var_t: Float64Array, out: Float64Array,
-): void {
   const vt = q_s2 + noise.sigma_t2;
-  for (let k = 0; k < out.length; k++) {
+  const sv2 = noise.sigma_v2;
+  let change = 0;
+  let counted = 0;
+  for (let k = 0; k < var_t.length; k++) {
     const s = slope[k];
     const c = curvature[k];
-    const vk = var_t[k];
-    out[k] = noise.sigma_v2 + s * s * vt + 0.5 * c * c * vk * vk;
+    const isAssigned = assigned[k] > 0;
+    const vk = isAssigned ? Math.min(cap, vt + sv2 / (s * s)) : vt;
+    if (isAssigned && r !== null) r[k] -= 0.5 * c * (vk - var_t[k]);
+    var_t[k] = vk;
+    const before = variance[k];
+    const after = sv2 + s * s * vt + 0.5 * c * c * vk * vk;
+    variance[k] = after;
+    if (used !== null && used[k] > 0) {
+      change += Math.abs(after - before) / before;
+      counted++;
+    }
   }
+  return counted > 0 ? change / counted : 0;
 }
 
 /**
  * Estimates (sigma_t^2, sigma_v^2) from the residuals r (volts), slopes, curvatures, current
  * timing variances and leverages of the edges with mask[k] > 0. `start` seeds the clipping;
- * null starts from the median squared residual with all noise in time.
+ * null starts from the median squared residual with all noise in time. `work`: optional scratch
+ * arrays (see below), so that a caller in a loop does not allocate.
  */
 export function estimateNoise(
   r: Float64Array, slope: Float64Array, curvature: Float64Array, var_t: Float64Array,
   leverage: Float64Array, mask: Float64Array, q_s2: number, start: NoiseEstimate | null,
+  work: Float64Array[] = [],
 ): NoiseEstimate {
   const n = r.length;
+  // What the iterations do not change, per edge with mask[k] > 0 and a finite residual, once:
+  // x (slope^2 until xMean is known), the curvature term and r^2 / (1 - h); in `work` (four
+  // arrays of at least n entries, the fourth for the median start) when the caller lends them.
+  const scratch = (i: number) => (work[i] && work[i].length >= n ? work[i] : new Float64Array(n));
+  const xs = scratch(0);
+  const curvs = scratch(1);
+  const r2h = scratch(2);
   let xMean = 0;
   let count = 0;
   for (let k = 0; k < n; k++) {
     if (!(mask[k] > 0) || !Number.isFinite(r[k])) continue;
-    xMean += slope[k] * slope[k];
+    const s2 = slope[k] * slope[k];
+    xs[count] = s2;
+    curvs[count] = 0.5 * curvature[k] * curvature[k] * var_t[k] * var_t[k];
+    r2h[count] = (r[k] * r[k]) / (1 - Math.min(leverage[k], 0.9));
+    xMean += s2;
     count++;
   }
   if (count < 3 || !(xMean > 0)) return start ?? { sigma_t2: 0, sigma_v2: 0 };
@@ -78,22 +100,21 @@ export function estimateNoise(
     a = start.sigma_v2;
     b = (q_s2 + start.sigma_t2) * xMean;
   } else {
-    const ratio = new Float64Array(count);
+    const ratio = scratch(3);
     let c = 0;
     for (let k = 0; k < n; k++) if (mask[k] > 0 && Number.isFinite(r[k])) ratio[c++] = (r[k] * r[k]) / (slope[k] * slope[k]);
     a = 0;
-    b = Math.max(q_s2, median(ratio, c) / 0.45493642) * xMean; // median of chi-square(1)
+    b = Math.max(q_s2, median(ratio, c, ratio) / 0.45493642) * xMean; // median of chi-square(1)
   }
   const bMin = q_s2 * xMean;
+  for (let c = 0; c < count; c++) xs[c] = xs[c] / xMean;
   for (let it = 0; it < 30; it++) {
     let s0 = 0, sx = 0, sxx = 0, sy = 0, sxy = 0;
-    for (let k = 0; k < n; k++) {
-      if (!(mask[k] > 0) || !Number.isFinite(r[k])) continue;
-      const x = (slope[k] * slope[k]) / xMean;
-      const curv = 0.5 * curvature[k] * curvature[k] * var_t[k] * var_t[k];
+    for (let c = 0; c < count; c++) {
+      const x = xs[c];
+      const curv = curvs[c];
       const v = Math.max(a + b * x + curv, 1e-300);
-      const hk = Math.min(leverage[k], 0.9);
-      const y = Math.min((r[k] * r[k]) / (1 - hk), CLIP * CLIP * v) / CLIP_MEAN - curv;
+      const y = Math.min(r2h[c], CLIP * CLIP * v) / CLIP_MEAN - curv;
       const w = 1 / (v * v);
       s0 += w;
       sx += w * x;
