@@ -120,7 +120,9 @@ export function fitEdgeModel(
   ws.hp1.set(ws.hp);
   ws.gp1.set(ws.gp);
   if (!Number.isFinite(chi2)) return { p, chi2, normal: ws.h.slice(), iterations: 0, converged: false, fresh };
-  let lambda = 1e-4;
+  // Starts lightly damped: most fits start near their minimum (later rounds, short fits from
+  // the profile's valley floor), where a Gauss-Newton step is what is wanted.
+  let lambda = 1e-5;
   let converged = false;
   // The last accepted step gained what the quadratic model predicted (within a factor 2).
   let modelHolds = false;
@@ -132,9 +134,9 @@ export function fitEdgeModel(
     for (let i = 0; i < N_PARAMS; i++) ws.gs[i] = -(ws.g[i] + ws.gp1[i]);
     // Once the last step's gain matched its quadratic model, the model's own remaining gain
     // (the Gauss-Newton decrement g^T H^-1 g: the chi2 the undamped step would gain, S. Boyd
-    // and L. Vandenberghe, Convex Optimization, 2004, §9.5.1) is trusted: a tenth of the
-    // tolerance left and the fit has converged, without evaluating a last step that could only
-    // confirm it.
+    // and L. Vandenberghe, Convex Optimization, 2004, §9.5.1) is trusted: with less than the
+    // tolerance left to gain the fit has converged, without evaluating a last step that could
+    // only confirm it.
     if (modelHolds && solveDamped(N_PARAMS, ws.hs, ws.gs, 0, ws.step, ws.work)) {
       let decrement = 0;
       for (let i = 0; i < N_PARAMS; i++) decrement += ws.gs[i] * ws.step[i];
@@ -191,8 +193,9 @@ export function fitEdgeModel(
   return { p, chi2, normal: ws.h.slice(), iterations: it, converged, fresh };
 }
 
-/** Fraction of the tolerance the Gauss-Newton decrement must fall below to stop. */
-const DECREMENT_TOL = 0.1;
+/** Fraction of the tolerance the Gauss-Newton decrement must fall below to stop (the same
+ *  gain a taken step must fall below). */
+const DECREMENT_TOL = 1;
 /** Gain / predicted gain of an accepted step within which the quadratic model is trusted. */
 const MODEL_HOLDS_LO = 0.5;
 const MODEL_HOLDS_HI = 2;
