@@ -5,6 +5,7 @@
 // L and f0 must agree with the circuit's values within the stated expanded uncertainty.
 // Shared by the reliability test (a short run) and the benchmark (10 000 readings).
 
+import { CodedError } from "../../host/src/coded-error.ts";
 import { captureFromDevice } from "../../host/src/measure/capture-build.ts";
 import { analyzeCapture } from "../../host/src/measure/read-once.ts";
 import type { MeasureSettings } from "../../host/src/device/client.ts";
@@ -67,13 +68,9 @@ export interface SoakReport {
   wrong_samples: string[];
 }
 
-const CODED = new Set(["DeviceError", "DeviceTimeoutError", "ProtocolError", "MeasureError", "TransportError"]);
-
+/** The stable code of an error the library raises on purpose; null for anything else (a crash). */
 function errorCode(e: unknown): string | null {
-  if (e instanceof TransportError) return e.disconnected ? "TRANSPORT_DISCONNECTED" : "TRANSPORT_FAILED"; // class has no code yet
-  const code = (e as { code?: unknown })?.code;
-  const name = (e as { name?: unknown })?.name;
-  return typeof code === "string" && typeof name === "string" && CODED.has(name) ? code : null;
+  return e instanceof CodedError ? e.code : null;
 }
 
 function totalInjected(r: Rig): number {
