@@ -28,7 +28,7 @@ const HUBER_C = 2;
 const MAX_ROUNDS = 8;
 /**
  * A fit stops when a step gains less than this in chi2 (units of the noise model), or when its
- * quadratic model, trusted, leaves less than a tenth of it to gain (edge-fit.ts): the parameters
+ * quadratic model, trusted, leaves less than this to gain (edge-fit.ts): the parameters
  * are then within about 0.03 standard deviations of the minimum, which adds 0.1 % to their
  * variance. Tighter only spends iterations along flat directions.
  */

@@ -97,8 +97,9 @@ export class FitWorkspace {
 /**
  * Minimises sum w_k r_k^2 over the edges with w_k > 0 and finite m, starting at p0. Stops when a
  * step gains less than `tol_chi2`, or when the quadratic model, having just predicted a step's
- * gain, predicts less than a tenth of it still to gain (chi2 is in units of the noise model, so
- * 1e-6 leaves the parameters within about 1e-3 standard deviations of the minimum).
+ * gain (within a factor 2), predicts less than `tol_chi2` still to gain (chi2 is in units of the
+ * noise model, so 1e-6 leaves the parameters within about 1e-3 standard deviations of the
+ * minimum).
  *
  * Every indexed edge is evaluated (weight zero included, so rejected edges can be re-tested),
  * unless `only_weighted`.
