@@ -12,7 +12,7 @@ import { FitWorkspace, fitEdgeModel, type FitLimits } from "./edge-fit.ts";
 import { chooseResidualForms, evaluateEdges, formChanges, makeEdgeSet, P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
 import { fitLimits, initialVariance, rankStarts, subsetMask, type RankedStart } from "./fit-start.ts";
 import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
-import { reassignHalfCycles } from "./model-bookkeeping.ts";
+import { indicesHold, reassignHalfCycles, type IndexMargin } from "./model-bookkeeping.ts";
 import { estimateNoise, updateVariances, type NoiseEstimate } from "./noise-model.ts";
 import { ringQuantities, COVERAGE_K, type RingQuantities } from "./ring-quantities.ts";
 import { correlationInflation, residualCorrelation } from "./residual-correlation.ts";
@@ -51,6 +51,7 @@ export interface FitState {
   /** Robust standard deviation of the standardised residuals. */
   z_scale: number;
   noise: NoiseEstimate;
+  /** Why each edge with used[k] = 0 was set aside (entries of used edges mean nothing). */
   reasons: (string | null)[];
   chi2: number;
   /** Robust -2 ln likelihood (negLogLikelihood), for comparing fits from different starts. */
@@ -219,6 +220,7 @@ function fitFrom(
   // evaluate the model again at the same point.
   let cached = false;
   let pIndexed: Float64Array | null = null;
+  const margin: IndexMargin = { margin_rad: 0, max_u: 0, max_t_s: 0, duplicates: true };
   let reforms = 0;
   let staleForms = false;
   // Chooses the residual forms again at p. A phase-form residual is S_k times a phase error, so
@@ -260,12 +262,15 @@ function fitFrom(
     if (round === MAX_ROUNDS) break;
 
     // Re-index from the model unless it has barely moved since the last re-indexing (then no
-    // edge can change half-cycle: the model phase at the last edge moved by under 0.01 rad).
+    // edge can change half-cycle: the model phase at the last edge moved by under 0.01 rad), or
+    // unless no edge's model phase can have moved as far as the nearest half-cycle boundary
+    // (indicesHold: re-indexing would change nothing, except clearing the reasons of edges no
+    // longer rejected, which nothing reads).
     let moved = 0;
-    if (!pIndexed || phaseShift(pIndexed, p, limits.t_last_s) > 0.01) {
+    if (!pIndexed || (phaseShift(pIndexed, p, limits.t_last_s) > 0.01 && !indicesHold(pIndexed, p, margin))) {
       for (let k = 0; k < n; k++) sd[k] = Math.sqrt(variance[k]);
       // (Duplicates are compared in plain volts while round 0's variances cover a subset only.)
-      moved = reassignHalfCycles(p, e, c.vh_v, c.vl_v, round === 0 && subset ? null : sd, reasons);
+      moved = reassignHalfCycles(p, e, c.vh_v, c.vl_v, round === 0 && subset ? null : sd, reasons, margin);
       pIndexed = p;
     }
     // Forms for the indices just set, before the evaluation that round 1's fit starts from.
