@@ -227,10 +227,11 @@ function fitFrom(
   // its variance goes with S_k^2: an edge that keeps the phase form under a new scale keeps its
   // weight, and chi2 its units (with the start's scales after round 0 had moved the amplitude,
   // chi2 came out up to ~400x too large and its stopping tolerance as much too tight).
-  const reform = () => {
+  // (amp: the model envelope at p per edge, when the re-indexing at p has just computed it.)
+  const reform = (amp: Float64Array | null = null) => {
     oldScale.set(e.scale_v);
     oldForm.set(e.form);
-    chooseResidualForms(p, e, c.vh_v, c.vl_v);
+    chooseResidualForms(p, e, c.vh_v, c.vl_v, null, amp);
     for (let k = 0; k < n; k++) {
       if (oldForm[k] !== 1 || e.form[k] !== 1) continue;
       const f = e.scale_v[k] / oldScale[k];
@@ -267,14 +268,17 @@ function fitFrom(
     // (indicesHold: re-indexing would change nothing, except clearing the reasons of edges no
     // longer rejected, which nothing reads).
     let moved = 0;
+    let ampAtP: Float64Array | null = null;
     if (!pIndexed || (phaseShift(pIndexed, p, limits.t_last_s) > 0.01 && !indicesHold(pIndexed, p, margin))) {
       for (let k = 0; k < n; k++) sd[k] = Math.sqrt(variance[k]);
       // (Duplicates are compared in plain volts while round 0's variances cover a subset only.)
-      moved = reassignHalfCycles(p, e, c.vh_v, c.vl_v, round === 0 && subset ? null : sd, reasons, margin);
+      // (z is free until reweight: it takes the envelope for reform.)
+      moved = reassignHalfCycles(p, e, c.vh_v, c.vl_v, round === 0 && subset ? null : sd, reasons, margin, z);
       pIndexed = p;
+      ampAtP = z;
     }
     // Forms for the indices just set, before the evaluation that round 1's fit starts from.
-    if (round === 0) reform();
+    if (round === 0) reform(ampAtP);
     if (moved > 0 || !cached) {
       evaluateEdges(p, e, c.vh_v, c.vl_v, null, varT, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
       cached = true;

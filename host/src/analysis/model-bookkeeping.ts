@@ -26,11 +26,12 @@ export interface IndexMargin {
  * Re-indexes every edge of `e` (overwriting e.m) from the model p. `sd_v[k]` scales the
  * residuals compared between duplicates (null: plain volts). `reasons[k]` is set for edges that
  * lose their index and cleared for the others. Returns how many indices changed. `margin`, when
- * given, is filled in for indicesHold.
+ * given, is filled in for indicesHold; `amp_v`, when given, gets each edge's model envelope
+ * A0 e^(-alpha t_k) (for chooseResidualForms at the same p).
  */
 export function reassignHalfCycles(
   p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number, sd_v: Float64Array | null,
-  reasons: (string | null)[], margin?: IndexMargin,
+  reasons: (string | null)[], margin?: IndexMargin, amp_v?: Float64Array,
 ): number {
   const wd = p[P_WD];
   const phi = p[P_PHI];
@@ -46,6 +47,7 @@ export function reassignHalfCycles(
     const level = rise ? vh_v : vl_v;
     const t = e.t_s[k];
     const amp = a0 * Math.exp(-alpha * t);
+    if (amp_v) amp_v[k] = amp;
     const u0 = level / amp;
     const u = Math.max(-1, Math.min(1, u0));
     const psi = wd * t - phi - (rise ? 1 : -1) * Math.asin(u);
