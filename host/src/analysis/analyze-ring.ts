@@ -12,7 +12,7 @@ import { FitWorkspace, fitEdgeModel, type FitLimits } from "./edge-fit.ts";
 import { chooseResidualForms, evaluateEdges, formChanges, makeEdgeSet, P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
 import { fitLimits, initialVariance, rankStarts, subsetMask, type RankedStart } from "./fit-start.ts";
 import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
-import { reassignHalfCycles } from "./model-bookkeeping.ts";
+import { indicesHold, reassignHalfCycles, type IndexMargin } from "./model-bookkeeping.ts";
 import { estimateNoise, updateVariances, type NoiseEstimate } from "./noise-model.ts";
 import { ringQuantities, COVERAGE_K, type RingQuantities } from "./ring-quantities.ts";
 import { correlationInflation, residualCorrelation } from "./residual-correlation.ts";
@@ -51,6 +51,7 @@ export interface FitState {
   /** Robust standard deviation of the standardised residuals. */
   z_scale: number;
   noise: NoiseEstimate;
+  /** Why each edge with used[k] = 0 was set aside (entries of used edges mean nothing). */
   reasons: (string | null)[];
   chi2: number;
   /** Robust -2 ln likelihood (negLogLikelihood), for comparing fits from different starts. */
@@ -219,16 +220,18 @@ function fitFrom(
   // evaluate the model again at the same point.
   let cached = false;
   let pIndexed: Float64Array | null = null;
+  const margin: IndexMargin = { margin_rad: 0, max_u: 0, max_t_s: 0, duplicates: true };
   let reforms = 0;
   let staleForms = false;
   // Chooses the residual forms again at p. A phase-form residual is S_k times a phase error, so
   // its variance goes with S_k^2: an edge that keeps the phase form under a new scale keeps its
   // weight, and chi2 its units (with the start's scales after round 0 had moved the amplitude,
   // chi2 came out up to ~400x too large and its stopping tolerance as much too tight).
-  const reform = () => {
+  // (amp: the model envelope at p per edge, when the re-indexing at p has just computed it.)
+  const reform = (amp: Float64Array | null = null) => {
     oldScale.set(e.scale_v);
     oldForm.set(e.form);
-    chooseResidualForms(p, e, c.vh_v, c.vl_v);
+    chooseResidualForms(p, e, c.vh_v, c.vl_v, null, amp);
     for (let k = 0; k < n; k++) {
       if (oldForm[k] !== 1 || e.form[k] !== 1) continue;
       const f = e.scale_v[k] / oldScale[k];
@@ -260,16 +263,22 @@ function fitFrom(
     if (round === MAX_ROUNDS) break;
 
     // Re-index from the model unless it has barely moved since the last re-indexing (then no
-    // edge can change half-cycle: the model phase at the last edge moved by under 0.01 rad).
+    // edge can change half-cycle: the model phase at the last edge moved by under 0.01 rad), or
+    // unless no edge's model phase can have moved as far as the nearest half-cycle boundary
+    // (indicesHold: re-indexing would change nothing, except clearing the reasons of edges no
+    // longer rejected, which nothing reads).
     let moved = 0;
-    if (!pIndexed || phaseShift(pIndexed, p, limits.t_last_s) > 0.01) {
+    let ampAtP: Float64Array | null = null;
+    if (!pIndexed || (phaseShift(pIndexed, p, limits.t_last_s) > 0.01 && !indicesHold(pIndexed, p, margin))) {
       for (let k = 0; k < n; k++) sd[k] = Math.sqrt(variance[k]);
       // (Duplicates are compared in plain volts while round 0's variances cover a subset only.)
-      moved = reassignHalfCycles(p, e, c.vh_v, c.vl_v, round === 0 && subset ? null : sd, reasons);
+      // (z is free until reweight: it takes the envelope for reform.)
+      moved = reassignHalfCycles(p, e, c.vh_v, c.vl_v, round === 0 && subset ? null : sd, reasons, margin, z);
       pIndexed = p;
+      ampAtP = z;
     }
     // Forms for the indices just set, before the evaluation that round 1's fit starts from.
-    if (round === 0) reform();
+    if (round === 0) reform(ampAtP);
     if (moved > 0 || !cached) {
       evaluateEdges(p, e, c.vh_v, c.vl_v, null, varT, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
       cached = true;

@@ -1,6 +1,6 @@
 // Weighted Levenberg-Marquardt fit of the edge model (edge-model.ts). Marquardt's scaling of the
 // damping by diag(J^T W J) makes the steps independent of parameter units (D. W. Marquardt,
-// J. SIAM 11(2), 1963). Weights are held fixed inside a fit; the caller re-weights between fits
+// J. SIAM 11(2), 1963); the diagonal is taken in centred coordinates (centre, below). Weights are held fixed inside a fit; the caller re-weights between fits
 // (iteratively reweighted least squares).
 
 import { C2_CONT, evaluateEdges, N_PARAMS, P_ALPHA, P_LNA, type EdgeSet } from "./edge-model.ts";
@@ -49,6 +49,15 @@ export interface EdgeFitResult {
   fresh: boolean;
 }
 
+/**
+ * The block behind FitWorkspace.roundScratch, kept from capture to capture: allocating tens of
+ * kB per capture (and collecting them) cost more than a pass over them. Safe because a fit runs
+ * to its end without yielding, and no caller relies on the contents; blocks above
+ * SHARED_BLOCK_MAX doubles (8 MB) are not kept.
+ */
+let sharedBlock: Float64Array | null = null;
+const SHARED_BLOCK_MAX = 1 << 20;
+
 /** Scratch buffers sized for one capture, reused across fits of the same capture. */
 export class FitWorkspace {
   readonly r: Float64Array;
@@ -75,15 +84,25 @@ export class FitWorkspace {
   readonly jp: Float64Array;
   readonly ga = new Float64Array(N_PARAMS);
   readonly acc = new Float64Array(N_PARAMS);
-  /** Per-edge scratch for the rounds around the fits (analyze-ring.ts), one block for the
-   *  capture: allocating a typed array of a few kB costs more than a pass over it. */
-  private roundBlock: Float64Array | null = null;
-  /** `count` per-edge arrays, contents undefined, shared by every caller of the workspace. */
+  /** The damped system in centred coordinates (centre): its matrix, right-hand side, the two
+   *  reference times, and the step and acceleration in those coordinates. */
+  readonly hc = new Float64Array(N_PARAMS * N_PARAMS);
+  readonly bc = new Float64Array(N_PARAMS);
+  readonly tc = new Float64Array(2);
+  readonly vc = new Float64Array(N_PARAMS);
+  readonly ac = new Float64Array(N_PARAMS);
+  /** `count` per-edge arrays for the rounds around the fits (analyze-ring.ts), contents
+   *  undefined, shared by every caller of the workspace and by every capture (sharedBlock). */
   roundScratch(count: number): Float64Array[] {
     const n = this.r.length;
-    if (!this.roundBlock || this.roundBlock.length < count * n) this.roundBlock = new Float64Array(count * n);
-    const block = this.roundBlock;
-    return Array.from({ length: count }, (_, i) => block.subarray(i * n, (i + 1) * n));
+    let block = sharedBlock;
+    if (!block || block.length < count * n) {
+      block = new Float64Array(count * n);
+      if (block.length <= SHARED_BLOCK_MAX) sharedBlock = block;
+    }
+    const out: Float64Array[] = [];
+    for (let i = 0; i < count; i++) out.push(block.subarray(i * n, (i + 1) * n));
+    return out;
   }
   constructor(n: number) {
     this.r = new Float64Array(n);
@@ -133,6 +152,7 @@ export function fitEdgeModel(
   for (; it < max_iterations && !converged; it++) {
     for (let i = 0; i < N_PARAMS * N_PARAMS; i++) ws.hs[i] = ws.h[i] + ws.hp1[i];
     for (let i = 0; i < N_PARAMS; i++) ws.gs[i] = -(ws.g[i] + ws.gp1[i]);
+    centre(ws);
     // Once the last step's gain matched its quadratic model, the model's own remaining gain
     // (the Gauss-Newton decrement g^T H^-1 g: the chi2 the undamped step would gain, S. Boyd
     // and L. Vandenberghe, Convex Optimization, 2004, §9.5.1) is trusted: with less than the
@@ -148,7 +168,7 @@ export function fitEdgeModel(
     }
     let accepted = false;
     while (lambda < 1e12) {
-      if (!solveDamped(N_PARAMS, ws.hs, ws.gs, lambda, ws.step, ws.work)) {
+      if (!solveCentred(ws, ws.gs, lambda, ws.step)) {
         lambda = Math.max(lambda * 10, 1e-8);
         continue;
       }
@@ -264,16 +284,79 @@ function accelerate(e: EdgeSet, w: Float64Array, ws: FitWorkspace, lambda: numbe
     g0 += a * jp[o]; g1 += a * jp[o + 1]; g2 += a * jp[o + 2]; g3 += a * jp[o + 3];
   }
   ws.ga[0] = -g0; ws.ga[1] = -g1; ws.ga[2] = -g2; ws.ga[3] = -g3;
-  if (!solveDamped(N_PARAMS, ws.hs, ws.ga, lambda, ws.acc, ws.work)) return false;
+  if (!solveCentred(ws, ws.ga, lambda, ws.acc)) return false;
+  // Both measured in the centred coordinates the damping uses.
+  toCentred(ws, v, ws.vc);
+  toCentred(ws, ws.acc, ws.ac);
   let na = 0, nv = 0;
   for (let i = 0; i < N_PARAMS; i++) {
-    const d = ws.hs[i * N_PARAMS + i];
-    na += d * ws.acc[i] * ws.acc[i];
-    nv += d * v[i] * v[i];
+    const d = ws.hc[i * N_PARAMS + i];
+    na += d * ws.ac[i] * ws.ac[i];
+    nv += d * ws.vc[i] * ws.vc[i];
   }
   if (!(2 * Math.sqrt(na) <= GEODESIC_ALPHA * Math.sqrt(nv))) return false;
   for (let i = 0; i < N_PARAMS; i++) ws.trial[i] += 0.5 * ws.acc[i];
   return true;
+}
+
+/**
+ * Centred coordinates for the damping. The edges pin down phase and log amplitude best near the
+ * middle of the ring, not at t = 0, so phi and wd, and ln A0 and alpha, are strongly
+ * correlated, and the diagonal of J^T W J that scales the damping measures phi and ln A0 at the
+ * wrong time. In the coordinates phi' = phi - t1 wd and lnA' = ln A0 - t2 alpha, with t1 and t2
+ * chosen so that the system has no phi'-wd and lnA'-alpha terms (the information-weighted mean
+ * edge times: the same centring that decorrelates the intercept and slope of a straight-line
+ * fit), the damping is Marquardt's diagonal in those coordinates: in the original ones it is a
+ * general scaling matrix D^T D, which the method allows (J. J. Moré, "The Levenberg-Marquardt
+ * algorithm: implementation and theory", Numerical Analysis, LNM 630, 1978, §2). The undamped
+ * step is the same in any coordinates; the damped steps follow the correlated valleys instead of
+ * the axes. Sets ws.tc and ws.hc = M^T ws.hs M, where p = M p' (phi = phi' + t1 wd,
+ * ln A0 = lnA' + t2 alpha).
+ */
+function centre(ws: FitWorkspace): void {
+  const h = ws.hs;
+  const hc = ws.hc;
+  const t1 = h[5] > 0 ? -h[1] / h[5] : 0;
+  const t2 = h[10] > 0 ? -h[11] / h[10] : 0;
+  ws.tc[0] = t1;
+  ws.tc[1] = t2;
+  // H M: column 0 gains t1 times column 1, column 3 gains t2 times column 2.
+  for (let i = 0; i < N_PARAMS; i++) {
+    const o = i * N_PARAMS;
+    hc[o] = h[o] + t1 * h[o + 1];
+    hc[o + 1] = h[o + 1];
+    hc[o + 2] = h[o + 2];
+    hc[o + 3] = h[o + 3] + t2 * h[o + 2];
+  }
+  // M^T (H M): row 0 gains t1 times row 1, row 3 gains t2 times row 2.
+  for (let j = 0; j < N_PARAMS; j++) {
+    hc[j] += t1 * hc[N_PARAMS + j];
+    hc[3 * N_PARAMS + j] += t2 * hc[2 * N_PARAMS + j];
+  }
+}
+
+/** Solves (H + lambda diag(H)) x = b in the centred coordinates of `centre`; x in the original
+ *  ones. */
+function solveCentred(ws: FitWorkspace, b: Float64Array, lambda: number, x: Float64Array): boolean {
+  const t1 = ws.tc[0], t2 = ws.tc[1];
+  // b' = M^T b
+  ws.bc[0] = b[0] + t1 * b[1];
+  ws.bc[1] = b[1];
+  ws.bc[2] = b[2];
+  ws.bc[3] = b[3] + t2 * b[2];
+  if (!solveDamped(N_PARAMS, ws.hc, ws.bc, lambda, x, ws.work)) return false;
+  // x = M x'
+  x[1] += t1 * x[0];
+  x[2] += t2 * x[3];
+  return true;
+}
+
+/** x' = M^-1 x: a step in the centred coordinates of `centre`. */
+function toCentred(ws: FitWorkspace, x: Float64Array, out: Float64Array): void {
+  out[0] = x[0];
+  out[1] = x[1] - ws.tc[0] * x[0];
+  out[2] = x[2] - ws.tc[1] * x[3];
+  out[3] = x[3];
 }
 
 /** Relative parameter steps at the level of double rounding: nothing left to gain. */

@@ -155,8 +155,11 @@ export function evaluateEdges(
  * This keeps a fit from lowering the envelope onto the threshold to make many edges "grazing"
  * (the level form is weakly sensitive to timing there) and so hide their timing.
  */
-export function chooseResidualForms(p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number, mask: Float64Array | null = null): void {
-  formsAt(p, e, vh_v, vl_v, true, mask);
+export function chooseResidualForms(
+  p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number, mask: Float64Array | null = null,
+  amp_v: Float64Array | null = null,
+): void {
+  formsAt(p, e, vh_v, vl_v, true, mask, amp_v);
 }
 
 /** How many edges would change residual form if the forms were chosen again at p. */
@@ -164,8 +167,12 @@ export function formChanges(p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v
   return formsAt(p, e, vh_v, vl_v, false, null);
 }
 
-/** `mask`: only edges with mask[k] > 0 are looked at (null: all). */
-function formsAt(p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number, apply: boolean, mask: Float64Array | null): number {
+/** `mask`: only edges with mask[k] > 0 are looked at (null: all). `amp_v`: the model envelope
+ *  A0 e^(-alpha t_k) at p when already at hand (reassignHalfCycles), else null. */
+function formsAt(
+  p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number, apply: boolean, mask: Float64Array | null,
+  amp_v: Float64Array | null = null,
+): number {
   let changes = 0;
   const wd = p[P_WD];
   const a0 = Math.exp(p[P_LNA]);
@@ -188,7 +195,7 @@ function formsAt(p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number, a
       if (m === m && form[k] !== 1) changes++;
       continue;
     }
-    const amp = a0 * Math.exp(-alpha * ts[k]);
+    const amp = amp_v !== null ? amp_v[k] : a0 * Math.exp(-alpha * ts[k]);
     const u = (rise ? vh_v : vl_v) / amp;
     const sq = Math.sqrt(Math.max(1 - u * u, 1e-6));
     let f = 1;
