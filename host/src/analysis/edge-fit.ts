@@ -49,15 +49,6 @@ export interface EdgeFitResult {
   fresh: boolean;
 }
 
-/**
- * The block behind FitWorkspace.roundScratch, kept from capture to capture: allocating tens of
- * kB per capture (and collecting them) cost more than a pass over them. Safe because a fit runs
- * to its end without yielding, and no caller relies on the contents; blocks above
- * SHARED_BLOCK_MAX doubles (8 MB) are not kept.
- */
-let sharedBlock: Float64Array | null = null;
-const SHARED_BLOCK_MAX = 1 << 20;
-
 /** Scratch buffers sized for one capture, reused across fits of the same capture. */
 export class FitWorkspace {
   readonly r: Float64Array;
@@ -91,18 +82,15 @@ export class FitWorkspace {
   readonly tc = new Float64Array(2);
   readonly vc = new Float64Array(N_PARAMS);
   readonly ac = new Float64Array(N_PARAMS);
-  /** `count` per-edge arrays for the rounds around the fits (analyze-ring.ts), contents
-   *  undefined, shared by every caller of the workspace and by every capture (sharedBlock). */
+  /** Per-edge scratch for the rounds around the fits (analyze-ring.ts), one block for the
+   *  capture: allocating a typed array of a few kB costs more than a pass over it. */
+  private roundBlock: Float64Array | null = null;
+  /** `count` per-edge arrays, contents undefined, shared by every caller of the workspace. */
   roundScratch(count: number): Float64Array[] {
     const n = this.r.length;
-    let block = sharedBlock;
-    if (!block || block.length < count * n) {
-      block = new Float64Array(count * n);
-      if (block.length <= SHARED_BLOCK_MAX) sharedBlock = block;
-    }
-    const out: Float64Array[] = [];
-    for (let i = 0; i < count; i++) out.push(block.subarray(i * n, (i + 1) * n));
-    return out;
+    if (!this.roundBlock || this.roundBlock.length < count * n) this.roundBlock = new Float64Array(count * n);
+    const block = this.roundBlock;
+    return Array.from({ length: count }, (_, i) => block.subarray(i * n, (i + 1) * n));
   }
   constructor(n: number) {
     this.r = new Float64Array(n);
