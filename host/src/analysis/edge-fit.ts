@@ -1,7 +1,8 @@
 // Weighted Levenberg-Marquardt fit of the edge model (edge-model.ts). Marquardt's scaling of the
 // damping by diag(J^T W J) makes the steps independent of parameter units (D. W. Marquardt,
-// J. SIAM 11(2), 1963); the diagonal is taken in centred coordinates (centre, below). Weights are held fixed inside a fit; the caller re-weights between fits
-// (iteratively reweighted least squares).
+// J. SIAM 11(2), 1963); the diagonal is taken in centred coordinates (centre, below). Weights
+// are held fixed inside a fit; the caller re-weights between fits (iteratively reweighted least
+// squares).
 
 import { C2_CONT, evaluateEdges, N_PARAMS, P_ALPHA, P_LNA, type EdgeSet } from "./edge-model.ts";
 import { solveDamped } from "./small-linear-algebra.ts";
