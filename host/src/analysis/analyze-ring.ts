@@ -19,7 +19,7 @@ import { correlationInflation, residualCorrelation } from "./residual-correlatio
 import { huberWeight, madSigma, median } from "./robust-stats.ts";
 import { invertSymmetric } from "./small-linear-algebra.ts";
 import { checkInput, MIN_EDGES, type CheckedInput } from "./validate-input.ts";
-import { AnalysisError, type RingAnalysis, type RingInput } from "./types.ts";
+import { AnalysisError, type RingAnalysis, type RingInput, type Warning } from "./types.ts";
 
 /** Edges beyond this many robust standard deviations are rejected (Gaussian odds ~6e-7). */
 const REJECT_Z = 5;
@@ -73,10 +73,10 @@ export function analyzeFit(s: FitState): RingAnalysis {
     rejected.push({ index: k, reason: s.reasons[k] ?? "rejected" });
   }
   const used = s.edges.n - rejected.length;
-  const diagnosis = diagnose(s, rq);
   const U = {
     l: COVERAGE_K * rq.u.inductance_h, q: COVERAGE_K * rq.u.q, esr: COVERAGE_K * rq.u.esr_ohm, f0: COVERAGE_K * rq.u.f0_hz,
   };
+  let ambiguous: Warning | null = null;
   if (s.alternative) {
     // Two basins the edges cannot tell apart: each interval is widened to cover the other
     // fit's interval too, and a warning says so.
@@ -88,12 +88,18 @@ export function analyzeFit(s: FitState): RingAnalysis {
     U.f0 = cover(rq.f0_hz, U.f0, ra.f0_hz, COVERAGE_K * ra.u.f0_hz);
     const dl = Math.abs(ra.inductance_h / rq.inductance_h - 1);
     if (dl > 0.5 * (COVERAGE_K * rq.u.inductance_h) / rq.inductance_h || Math.abs(ra.q - rq.q) > 0.5 * COVERAGE_K * rq.u.q) {
-      diagnosis.warnings.push({
+      ambiguous = {
         code: "AMBIGUOUS_DECAY",
         message: `the edges fit two different decays almost equally well (Q ${fmt(rq.q)} or ${fmt(ra.q)}, L ${(dl * 1e6).toFixed(0)} ppm apart): the uncertainties cover both; use offset thresholds, a higher drive current or a longer ring to tell them apart`,
-      });
+      };
     }
   }
+  // The warnings judge the uncertainties as reported (widened when ambiguous).
+  const reported: RingQuantities = {
+    ...rq, u: { inductance_h: U.l / COVERAGE_K, q: U.q / COVERAGE_K, esr_ohm: U.esr / COVERAGE_K, f0_hz: U.f0 / COVERAGE_K },
+  };
+  const diagnosis = diagnose(s, reported);
+  if (ambiguous) diagnosis.warnings.push(ambiguous);
   return {
     f0_hz: rq.f0_hz,
     fd_hz: rq.fd_hz,

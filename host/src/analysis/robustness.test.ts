@@ -219,6 +219,7 @@ describe("the end of the ring", () => {
       clean += (full.inductance_h / w.l_h - 1) ** 2;
       lost += (cut.inductance_h / w.l_h - 1) ** 2;
     }
+    // One lost edge of ~140 may cost a little, not the 36x it cost before (bench practice, no source).
     expect(Math.sqrt(lost / clean)).toBeLessThan(1.3);
   });
 
@@ -263,7 +264,10 @@ describe("the end of the ring", () => {
       if (!w) continue;
       flagged++;
       expect(w.message).toMatch(/Q [0-9.]+ or [0-9.]+/);
+      // Twice U: a k = 2 interval misses now and then (bench practice, no source).
       expect(Math.abs(a.inductance_h - l_h)).toBeLessThan(2 * a.inductance_u_h);
+      // Q_UNCERTAIN judges the widened U that is reported, not the single fit's.
+      expect(a.warnings.some((x) => x.code === "Q_UNCERTAIN")).toBe(a.q_u > 0.2 * a.q);
     }
     expect(flagged).toBeGreaterThan(0);
   });
