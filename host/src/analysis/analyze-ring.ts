@@ -10,10 +10,10 @@ import { assignHalfCycles } from "./cycle-bookkeeping.ts";
 import { diagnose } from "./diagnostics.ts";
 import { FitWorkspace, fitEdgeModel, type FitLimits } from "./edge-fit.ts";
 import { chooseResidualForms, evaluateEdges, formChanges, makeEdgeSet, P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
-import { fitLimits, initialVariance, rankStarts, subsetMask, type RankedStart } from "./fit-start.ts";
+import { fitLimits, initialVariance, rankingSubset, rankStarts, type RankedStart } from "./fit-start.ts";
 import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
 import { indicesHold, reassignHalfCycles, type IndexMargin } from "./model-bookkeeping.ts";
-import { estimateNoise, updateVariances, type NoiseEstimate } from "./noise-model.ts";
+import { estimateNoise, negLogLikelihood, REJECT_Z, updateVariances, type NoiseEstimate } from "./noise-model.ts";
 import { ringQuantities, COVERAGE_K, type RingQuantities } from "./ring-quantities.ts";
 import { correlationInflation, residualCorrelation } from "./residual-correlation.ts";
 import { huberWeight, madSigma, median } from "./robust-stats.ts";
@@ -21,8 +21,6 @@ import { invertSymmetric } from "./small-linear-algebra.ts";
 import { checkInput, MIN_EDGES, type CheckedInput } from "./validate-input.ts";
 import { AnalysisError, type RingAnalysis, type RingInput, type Warning } from "./types.ts";
 
-/** Edges beyond this many robust standard deviations are rejected (Gaussian odds ~6e-7). */
-const REJECT_Z = 5;
 /** Huber tuning constant in robust standard deviations. */
 const HUBER_C = 2;
 const MAX_ROUNDS = 8;
@@ -169,10 +167,13 @@ export function fitRing(input: RingInput): FitState {
 
   const ws = new FitWorkspace(n);
   const limits = fitLimits(e0, c, candidates[0].p[P_WD]);
-  const starts = rankStarts(candidates, e0, c, q, ws, limits);
+  const subset = rankingSubset(e0);
+  const starts = rankStarts(candidates, e0, subset, c, q, ws, limits);
   // Each full fit re-indexes edges and sets residual forms: it gets its own copy of the edges.
+  // Round 0 of a long capture fits the ranking's subset (fitFrom).
+  const round0 = n > 400 ? subset : null;
   const fitFromStart = (k: number, reference?: FitState): FitState | null =>
-    fitFrom(c, makeEdgeSet(c.t_s, c.rising, book.m.slice()), book.reasons.slice(), starts[k], q, ws, limits, reference);
+    fitFrom(c, makeEdgeSet(c.t_s, c.rising, book.m.slice()), book.reasons.slice(), starts[k], q, ws, limits, round0, reference);
   let firstError: unknown = null;
   const tries = starts.length > 1 && (n <= FEW_EDGES_BOTH_STARTS || closeRunnerUp(starts[0], starts[1])) ? 2 : 1;
   const fits: FitState[] = [];
@@ -201,13 +202,12 @@ function closeRunnerUp(best: RankedStart, next: RankedStart): boolean {
 /** One full fit from one start: rounds of fit, re-index, noise, reweight until settled. */
 function fitFrom(
   c: CheckedInput, e: EdgeSet, reasons: (string | null)[], guess: InitialGuess, q: number, ws: FitWorkspace,
-  limits: FitLimits, reference?: FitState,
+  limits: FitLimits, subset: Float64Array | null, reference?: FitState,
 ): FitState | null {
   const n = c.t_s.length;
-  // Round 0 fits a subset of a long capture (below), and the forms and every variance are set
-  // anew after it: the start's forms and variances are needed on the subset alone (variance
-  // Infinity, weight zero, elsewhere).
-  const subset = n > 400 ? subsetMask(e, 160, 40) : null;
+  // Round 0 fits `subset` of a long capture (null: all edges), and the forms and every
+  // variance are set anew after it: the start's forms and variances are needed on the subset
+  // alone (variance Infinity, weight zero, elsewhere).
   chooseResidualForms(guess.p, e, c.vh_v, c.vl_v, subset);
   const variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, q), ws, subset);
   const outlier = new Uint8Array(n);
@@ -351,34 +351,6 @@ function fitFrom(
     checked: c, edges: e, p, cov, r: ws.r.slice(), jac: ws.jac.slice(), slope: ws.slope.slice(), variance, used,
     z_scale: zScale, noise, reasons, chi2: fit.chi2, nll: negLogLikelihood(ws.r, varT, variance, e, used),
   };
-}
-
-/**
- * -2 ln likelihood of the edge times under the fit's own noise model (up to a constant),
- * robust: each edge contributes min(z^2, REJECT_Z^2) + ln(its time variance), an edge without
- * a half-cycle the rejection cost and the mean ln(time variance). Fits from different starts
- * are compared on it: a fit that explains misfit with a larger noise pays in the ln term. The
- * variance is taken in time (varT: tick^2/12 + sigma_t^2 + (sigma_v/slope)^2, capped where the
- * ring grazes its threshold): the data are times, and a model with a smaller ring has smaller
- * slopes, so variances in volts would favour it for no reason.
- */
-function negLogLikelihood(r: Float64Array, varT: Float64Array, variance: Float64Array, e: EdgeSet, used: Float64Array): number {
-  let s = 0;
-  let lnSum = 0;
-  let counted = 0;
-  let unassigned = 0;
-  for (let k = 0; k < e.n; k++) {
-    if (e.m[k] !== e.m[k]) {
-      unassigned++;
-      continue;
-    }
-    const z2 = used[k] > 0 ? (r[k] * r[k]) / variance[k] : REJECT_Z * REJECT_Z;
-    const lv = Math.log(varT[k]);
-    s += Math.min(z2, REJECT_Z * REJECT_Z) + lv;
-    lnSum += lv;
-    counted++;
-  }
-  return s + unassigned * (REJECT_Z * REJECT_Z + (counted > 0 ? lnSum / counted : 0));
 }
 
 /**

@@ -106,8 +106,8 @@ export class FitWorkspace {
  * Minimises sum w_k r_k^2 over the edges with w_k > 0 and finite m, starting at p0. Stops when a
  * step gains less than `tol_chi2`, or when the quadratic model, having just predicted a step's
  * gain (within a factor 2), predicts less than `tol_chi2` still to gain (chi2 is in units of the
- * noise model, so 1e-6 leaves the parameters within about 1e-3 standard deviations of the
- * minimum).
+ * noise model: the analysis's 1e-3 leaves the parameters within about 0.03 standard deviations
+ * of the minimum, analyze-ring.ts FIT_TOL_CHI2).
  *
  * Every indexed edge is evaluated (weight zero included, so rejected edges can be re-tested),
  * unless `only_weighted`.
@@ -150,7 +150,7 @@ export function fitEdgeModel(
     if (modelHolds && solveDamped(N_PARAMS, ws.hs, ws.gs, 0, ws.step, ws.work)) {
       let decrement = 0;
       for (let i = 0; i < N_PARAMS; i++) decrement += ws.gs[i] * ws.step[i];
-      if (decrement <= DECREMENT_TOL * tol_chi2) {
+      if (decrement <= tol_chi2) {
         converged = true;
         break;
       }
@@ -167,7 +167,8 @@ export function fitEdgeModel(
         continue;
       }
       // A trial whose soft-limit penalty alone exceeds chi2 at p cannot be accepted: refused
-      // without evaluating the edges (ws still holds what it held).
+      // without evaluating the edges (ws.r and ws.jac still hold what they held; penalty() has
+      // overwritten ws.hp and ws.gp, but the system at p uses the copies hp1 and gp1).
       if (penalty(ws.trial, limits, ws.hp, ws.gp) > chi2) {
         lambda *= 8;
         continue;
@@ -203,9 +204,6 @@ export function fitEdgeModel(
   return { p, chi2, normal: ws.h.slice(), iterations: it, converged, fresh };
 }
 
-/** Fraction of the tolerance the Gauss-Newton decrement must fall below to stop (the same
- *  gain a taken step must fall below). */
-const DECREMENT_TOL = 1;
 /** Gain / predicted gain of an accepted step within which the quadratic model is trusted. */
 const MODEL_HOLDS_LO = 0.5;
 const MODEL_HOLDS_HI = 2;

@@ -4,7 +4,7 @@
 import { FitWorkspace, fitEdgeModel, type FitLimits } from "./edge-fit.ts";
 import { chooseResidualForms, evaluateEdges, makeEdgeSet, P_ALPHA, P_LNA, P_WD, type EdgeSet } from "./edge-model.ts";
 import type { InitialGuess } from "./initial-guess.ts";
-import { estimateNoise, updateVariances } from "./noise-model.ts";
+import { estimateNoise, negLogLikelihood, updateVariances } from "./noise-model.ts";
 import type { CheckedInput } from "./validate-input.ts";
 
 /**
@@ -22,13 +22,14 @@ import type { CheckedInput } from "./validate-input.ts";
  * to an earlier fit's end is not fitted at all (it would only roll to the same minimum).
  */
 export function rankStarts(
-  candidates: InitialGuess[], e: EdgeSet, c: CheckedInput, q: number, ws: FitWorkspace, limits: FitLimits,
+  candidates: InitialGuess[], e: EdgeSet, subset: Float64Array, c: CheckedInput, q: number, ws: FitWorkspace,
+  limits: FitLimits,
 ): RankedStart[] {
   if (candidates.length === 1) return [{ ...candidates[0], chi2: 0, nll: 0 }];
   // The short fits see only the subset, so they get an edge set of its edges alone (forms,
   // variances and fits then touch no other edge). It holds the last indexed edges of both
   // levels, so the forms' grazing limit (edge-model.ts) is the same as on the whole set.
-  const sub = subsetEdges(e, subsetMask(e, 160, 40));
+  const sub = subsetEdges(e, subset);
   const nSub = sub.n;
   const scratch = new Float64Array(5 * nSub);
   const varT = Math.max(candidates[0].ms_residual_s2, q);
@@ -82,8 +83,8 @@ function subsetEdges(e: EdgeSet, mask: Float64Array): EdgeSet {
 
 /**
  * Robust -2 ln likelihood of the subset's edge times at a short fit's end (ws.r, ws.slope and
- * ws.curvature hold the model there), as analyze-ring's negLogLikelihood scores a full fit:
- * sum of min(z^2, 25) + ln(time variance), with the two noise components estimated from these
+ * ws.curvature hold the model there), as a full fit is scored (noise-model.ts
+ * negLogLikelihood), with the two noise components estimated from these
  * residuals (noise-model.ts; from the clean crossings when there are 12 or more).
  */
 function subsetNll(e: EdgeSet, ws: FitWorkspace, q: number, varT: number, wd: number, scratch: Float64Array): number {
@@ -103,9 +104,7 @@ function subsetNll(e: EdgeSet, ws: FitWorkspace, q: number, varT: number, wd: nu
   const curv = ws.curvature.subarray(0, n);
   const noise = estimateNoise(r, slope, curv, vt, lev, nClean >= 12 ? clean : all, q, null);
   updateVariances(q, noise, slope, curv, wd, all, null, vt, v, null);
-  let s = 0;
-  for (let k = 0; k < n; k++) s += Math.min((r[k] * r[k]) / v[k], 25) + Math.log(vt[k]);
-  return s;
+  return negLogLikelihood(r, vt, v, e, all);
 }
 
 /**
@@ -168,8 +167,16 @@ export function fitLimits(e: EdgeSet, c: CheckedInput, wd: number): FitLimits {
   return limits;
 }
 
+/**
+ * The edges the start ranking's short fits (and a long capture's round 0) work on: up to 160
+ * indexed edges, the last 40 (where the amplitude shows) and an even spread of the rest.
+ */
+export function rankingSubset(e: EdgeSet): Float64Array {
+  return subsetMask(e, 160, 40);
+}
+
 /** 1 for up to `count` indexed edges: the last `tail` of them and an even spread of the rest. */
-export function subsetMask(e: EdgeSet, count: number, tail: number): Float64Array {
+function subsetMask(e: EdgeSet, count: number, tail: number): Float64Array {
   const mask = new Float64Array(e.n);
   let total = 0;
   for (let k = 0; k < e.n; k++) if (e.m[k] === e.m[k]) total++;

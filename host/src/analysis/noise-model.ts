@@ -10,6 +10,7 @@
 // E[min(Z^2, c^2)]: a Huber-type variance M-estimate (Huber's "proposal 2", Huber & Ronchetti,
 // Robust Statistics, 2009, §6.4) that a surviving glitch cannot inflate.
 
+import type { EdgeSet } from "./edge-model.ts";
 import { median } from "./robust-stats.ts";
 
 const CLIP = 2.5;
@@ -146,4 +147,38 @@ export function estimateNoise(
     if (change < 1e-2) break; // the weights need the noise to a few per cent at most
   }
   return { sigma_t2: Math.max(0, b / xMean - q_s2), sigma_v2: a };
+}
+
+/** Edges beyond this many robust standard deviations are rejected (Gaussian odds ~6e-7); the
+ *  likelihood below charges a rejected edge that much. */
+export const REJECT_Z = 5;
+
+/**
+ * -2 ln likelihood of the edge times under the fit's own noise model (up to a constant),
+ * robust: each edge contributes min(z^2, REJECT_Z^2) + ln(its time variance), an edge without
+ * a half-cycle the rejection cost and the mean ln(time variance). Fits from different starts
+ * are compared on it: a fit that explains misfit with a larger noise pays in the ln term. The
+ * variance is taken in time (varT: tick^2/12 + sigma_t^2 + (sigma_v/slope)^2, capped where the
+ * ring grazes its threshold): the data are times, and a model with a smaller ring has smaller
+ * slopes, so variances in volts would favour it for no reason.
+ */
+export function negLogLikelihood(
+  r: Float64Array, varT: Float64Array, variance: Float64Array, e: EdgeSet, used: Float64Array,
+): number {
+  let s = 0;
+  let lnSum = 0;
+  let counted = 0;
+  let unassigned = 0;
+  for (let k = 0; k < e.n; k++) {
+    if (e.m[k] !== e.m[k]) {
+      unassigned++;
+      continue;
+    }
+    const z2 = used[k] > 0 ? (r[k] * r[k]) / variance[k] : REJECT_Z * REJECT_Z;
+    const lv = Math.log(varT[k]);
+    s += Math.min(z2, REJECT_Z * REJECT_Z) + lv;
+    lnSum += lv;
+    counted++;
+  }
+  return s + unassigned * (REJECT_Z * REJECT_Z + (counted > 0 ? lnSum / counted : 0));
 }
