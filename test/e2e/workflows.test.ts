@@ -180,7 +180,11 @@ describe("henrytick measure --watch", () => {
 
   it("prints CSV rows, and plain lines with a trend when not on a terminal", () => {
     const c = runCli(["measure", "--sim", "--watch", "--count", "2", "--interval-ms", "0", "--csv"]);
-    expect(c.stdout.trimEnd().split("\n").length).toBe(3);
+    const rows = c.stdout.trimEnd().split("\n");
+    expect(rows.length).toBe(3);
+    // The same columns as measure --csv, with the reading's number, time and stability in front.
+    expect(rows[0]).toMatch(/^reading,time,stability,label,inductance_h,inductance_u_h,q,/);
+    expect(rows[1].split(",")[0]).toBe("1");
     const p = runCli(["measure", "--sim", "--watch", "--count", "3", "--interval-ms", "0"]);
     expect(p.stdout).toMatch(/^#3 {2}\d+\.\d µH ± \d\.\d µH {2}Q \d+ {2}steady {2}[▁-█]{3}$/m);
     expect(p.stdout).not.toContain("\x1b[");

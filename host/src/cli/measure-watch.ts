@@ -12,6 +12,7 @@ import { bigText } from "../workflows/big-digits.ts";
 import { makeStyle, type Style } from "../workflows/terminal.ts";
 import { assessStability, History, sparkline, type StabilityResult } from "../workflows/watch-trend.ts";
 import { intOption } from "./args.ts";
+import { csvHeader, csvRow } from "./result-csv.ts";
 
 /** Options measure accepts for --watch (spread into its parse table). */
 export const WATCH_OPTIONS = {
@@ -27,7 +28,7 @@ export const WATCH_USAGE = `  --watch              read continuously: trend line
   --big                with --watch: the value in large characters
   --count N            with --watch: stop after N readings
   --interval-ms N      with --watch: pause between readings (default 300)
-  --csv                with --watch: one CSV row per reading
+  --csv                one CSV row per reading (with --watch: reading, time and stability first)
   --series E12         with --watch: also show the nearest E6 … E192 preferred value`;
 
 interface WatchValues {
@@ -39,7 +40,7 @@ interface WatchValues {
   series?: string;
 }
 
-const CSV_HEADER = "reading,time,inductance_h,inductance_u_h,q,esr_ohm,stability,warnings";
+const CSV_FRONT = ["reading", "time", "stability"];
 
 export async function runWatch(tester: OpenedTester, values: WatchValues, measure: MeasureOptions, title: string): Promise<number> {
   const count = intOption(values.count, "count", 1, 10_000_000);
@@ -54,7 +55,7 @@ export async function runWatch(tester: OpenedTester, values: WatchValues, measur
   process.on("SIGINT", onSigint);
   let drawn = 0;
   let n = 0;
-  if (values.csv) process.stdout.write(CSV_HEADER + "\n");
+  if (values.csv) process.stdout.write(csvHeader(CSV_FRONT));
   process.stderr.write("   caution: the part is pulsed at every reading; keep fingers off transformer windings (Ctrl-C stops)\n");
   try {
     while (!stop.signal.aborted && (count === undefined || n < count)) {
@@ -74,7 +75,7 @@ export async function runWatch(tester: OpenedTester, values: WatchValues, measur
       if (values.json) {
         process.stdout.write(JSON.stringify(result ? { reading: n, time, ...result, stability: st.state, ...(series ? { preferred_h: nearestPreferred(result.inductance_h, series).value } : {}) } : { reading: n, time, error: problem }) + "\n");
       } else if (values.csv) {
-        if (result) process.stdout.write([n, time, result.inductance_h, result.inductance_u_h, result.q, result.esr_ohm, st.state, result.warnings.map((w) => w.code).join(" ")].join(",") + "\n");
+        if (result) process.stdout.write(csvRow(result, [n, time, st.state]));
       } else {
         let block = values.big ? bigBlock(result, problem, st, history, n, style) : smallBlock(result, problem, st, history, n, title, style);
         if (series && result) block = [...block, preferredLine(result.inductance_h, series)];

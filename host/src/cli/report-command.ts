@@ -4,6 +4,7 @@ import { formatMeasured } from "../values/format-value.ts";
 import { writeReport } from "../report/write-report.ts";
 import { parse } from "./args.ts";
 import { CliUsageError } from "./errors.ts";
+import { csvField } from "../format/csv.ts";
 
 export const REPORT_HELP = `henrytick report — HTML report with plots for saved captures
 
@@ -43,7 +44,7 @@ export async function runReportCommand(args: string[]): Promise<number> {
     process.stdout.write("file,inductance_h,inductance_u_h,q,esr_ohm\n");
     for (const e of entries) {
       const r = e.data.result;
-      process.stdout.write([JSON.stringify(e.source), r.inductance_h, r.inductance_u_h, r.q, r.esr_ohm].join(",") + "\n");
+      process.stdout.write([e.source, r.inductance_h, r.inductance_u_h, r.q, r.esr_ohm].map(csvField).join(",") + "\n");
     }
   } else {
     for (const e of entries) process.stdout.write(`   ${e.source}: ${formatMeasured(e.data.result.inductance_h, e.data.result.inductance_u_h, "H")}\n`);

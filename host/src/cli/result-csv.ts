@@ -1,17 +1,14 @@
 // One reading as CSV: a header line and one row per result, the figures of the result JSON that
-// a spreadsheet wants (SI units in the column names, as in the JSON keys).
+// a spreadsheet wants (SI units in the column names, as in the JSON keys). Used by measure,
+// measure --watch (with reading, time and stability in front) and analyze.
 
+import { csvField } from "../format/csv.ts";
 import type { ResultJson } from "../measure/result.ts";
 
 const COLUMNS = [
   "label", "inductance_h", "inductance_u_h", "q", "q_u", "esr_ohm", "esr_u_ohm", "f0_hz", "f0_u_hz",
   "ring_amplitude_v", "edges_used", "edges_rejected", "tank_c_f", "warnings", "suspect",
 ] as const;
-
-function cell(v: unknown): string {
-  const s = v === undefined || v === null ? "" : String(v);
-  return /[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
 
 export function csvHeader(extra: string[] = []): string {
   return [...extra, ...COLUMNS].join(",") + "\n";
@@ -26,5 +23,5 @@ export function csvRow(r: ResultJson, extra: unknown[] = []): string {
     // The part fault of a reading kept with --keep-suspect; empty for a verified reading.
     suspect: r.suspect?.code,
   };
-  return [...extra.map(cell), ...COLUMNS.map((c) => cell(values[c]))].join(",") + "\n";
+  return [...extra.map(csvField), ...COLUMNS.map((c) => csvField(values[c]))].join(",") + "\n";
 }

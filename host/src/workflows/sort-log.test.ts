@@ -2,7 +2,8 @@ import { mkdtempSync, readFileSync, truncateSync, writeFileSync } from "node:fs"
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { csvField, CSV_COLUMNS, SortLog } from "./sort-log.ts";
+import { csvField } from "../format/csv.ts";
+import { CSV_COLUMNS, SortLog } from "./sort-log.ts";
 import type { PartRecord } from "./sort-session.ts";
 
 const rec = (part: number, label = ""): PartRecord => ({

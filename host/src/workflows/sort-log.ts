@@ -6,6 +6,7 @@
 import { closeSync, existsSync, fstatSync, fsyncSync, openSync, readFileSync, readSync, writeSync } from "node:fs";
 import type { PartRecord } from "./sort-session.ts";
 import { CodedError } from "../coded-error.ts";
+import { csvField } from "../format/csv.ts";
 
 export const CSV_COLUMNS: readonly (keyof PartRecord)[] = [
   "part", "time", "lot", "label", "inductance_h", "inductance_u_h", "decision", "p_conform", "lower_h", "upper_h",
@@ -15,12 +16,6 @@ export const CSV_COLUMNS: readonly (keyof PartRecord)[] = [
 const HEADER = CSV_COLUMNS.join(",");
 
 export class SortLogError extends CodedError {}
-
-/** RFC 4180 field: quoted when it holds a comma, quote or line break. */
-export function csvField(v: unknown): string {
-  const s = v === null || v === undefined ? "" : String(v);
-  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
 
 export function csvRow(r: PartRecord): string {
   return CSV_COLUMNS.map((k) => csvField(r[k])).join(",") + "\n";
