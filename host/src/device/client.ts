@@ -212,12 +212,6 @@ export class DeviceClient {
     }
   }
 
-  /**
-   * Sends a command and collects data frames until its OK; throws DeviceError on ER. With a
-   * token, only an OK carrying that token counts: a stale OK of an earlier request is skipped.
-   * After a reply that is corrupt or late, the link is drained until quiet before the error is
-   * raised, so that the rest of that reply cannot be taken for the next command's.
-   */
   /** Sends an argument-less command and returns its reply frame `tag`; BAD_REPLY without one. */
   private async reply(command: string, tag: string, what: string, extraWait_ms = 0): Promise<Frame> {
     const frame = (await this.command(command, [], extraWait_ms)).find((f) => f.tag === tag);
@@ -225,6 +219,12 @@ export class DeviceClient {
     return frame;
   }
 
+  /**
+   * Sends a command and collects data frames until its OK; throws DeviceError on ER. With a
+   * token, only an OK carrying that token counts: a stale OK of an earlier request is skipped.
+   * After a reply that is corrupt or late, the link is drained until quiet before the error is
+   * raised, so that the rest of that reply cannot be taken for the next command's.
+   */
   private async command(tag: string, args: number[], extraWait_ms = 0, token?: number): Promise<Frame[]> {
     this.inbox = []; // lines left from an earlier exchange belong to no one
     await this.transport.write(encodeCommand(tag, args));
