@@ -189,7 +189,7 @@ describe("part faults get a diagnosis, not a bare number", () => {
     expect((e as MeasureError).code).toBe("NO_RING");
   });
 
-  it("a small drift from a class II tank (x7r-tank-mixup, 1 mA into 1 uF) still reads, with its warning", async () => {
+  it("a small drift from a class II tank (x7r-tank-mixup, an X7R tank whose capacitance falls with voltage) still reads, with its warning", async () => {
     const t = await openTester({ scenario: "x7r-tank-mixup" }, { reply_timeout_ms: 10_000 });
     const auto = await measurePart(t.client, {});
     const estimate = estimateFromReading(t.client.profile, auto.settings, auto.analysis);

@@ -5,7 +5,7 @@ import { MeasureError, measurePart, PartFaultError } from "../measure/measure-pa
 import { buildResult } from "../measure/result.ts";
 import { openTester } from "../open-tester.ts";
 import { intOption, numberOption, parse, testerTarget } from "./args.ts";
-import { CliUsageError } from "./errors.ts";
+import { CliUsageError, reportError } from "./errors.ts";
 import { renderReading } from "./render.ts";
 import { csvHeader, csvRow } from "./result-csv.ts";
 import { runWatch, WATCH_OPTIONS } from "./measure-watch.ts";
@@ -111,10 +111,10 @@ export async function runMeasure(args: string[]): Promise<number> {
 
 /**
  * No reading: the diagnosis and advice on stderr (as for every refusal), and with --json an error
- * object on stdout, as measure --watch --json prints one per refused reading.
+ * object { code, message, part_fault, suspect_available } on stdout.
  */
 function refused(e: MeasureError, json: boolean): number {
-  process.stderr.write(`henrytick: [${e.code}] ${e.message}\n`);
+  reportError(e);
   const kept = e instanceof PartFaultError && e.suspect !== undefined;
   if (kept) process.stderr.write("   no reading given; --keep-suspect returns it anyway, marked suspect\n");
   if (json) process.stdout.write(JSON.stringify({ error: { code: e.code, message: e.message, ...(e instanceof PartFaultError ? { part_fault: true, suspect_available: kept } : {}) } }, null, 2) + "\n");

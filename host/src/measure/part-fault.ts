@@ -44,7 +44,7 @@ export class PartFaultError extends MeasureError {
 export const CLIP_CLAMP_RATIO = 0.7;
 /**
  * Saturation: the inductance swings by 2 |df/f| across one ring (L ∝ 1/f²). Refused above 0.1 %,
- * about the expanded uncertainty of a calibrated tester (docs/calibration.md: ±0.061 % standard),
+ * about the expanded uncertainty of a calibrated tester (docs/calibration.md: ±0.061 %, k = 2),
  * so a value quoted to that accuracy is not an average over a changing part.
  */
 export const SATURATION_SWING_REL = 1e-3;
