@@ -12,7 +12,7 @@ import type { PartEstimate } from "../ranging/estimate.ts";
 import { estimateFromProbe, estimateFromReading, refineEstimate } from "../ranging/estimate.ts";
 import type { PlanLimits } from "../ranging/predict.ts";
 import type { MeasureOptions, Reading } from "./measure-part.ts";
-import { MeasureError, describeSetting, readOnce } from "./read-once.ts";
+import { MeasureError, NO_USABLE_RING, describeSetting, readOnce } from "./read-once.ts";
 import { explainFailure, shortedPart, SHORT_MAX_L_H } from "./part-fault.ts";
 
 const PROBE_CHARGE_US = 5000;
@@ -92,7 +92,7 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
     try {
       reading = await readOnce(client, settingsFor(client, next), opts, progress);
     } catch (e) {
-      if (!(e instanceof MeasureError) || !["TOO_FEW_EDGES", "NO_RING", "EMPTY_CAPTURE"].includes(e.code)) throw e;
+      if (!(e instanceof MeasureError) || !NO_USABLE_RING.includes(e.code)) throw e;
       const why = explainFailure(e);
       if (why !== e) chatter ??= why;
       failures.push(`${next.reason} It gave no usable ring (${e.code}).`);

@@ -12,7 +12,7 @@ import { predictSetting } from "../ranging/predict.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
 import { autoRange, probePart } from "./auto-range.ts";
 import type { AppliedCalibration } from "./capture-build.ts";
-import { MeasureError, describeSetting, readOnce } from "./read-once.ts";
+import { MeasureError, NO_USABLE_RING, describeSetting, readOnce } from "./read-once.ts";
 import { explainFailure, finishReading, shortedPart, SHORT_MAX_L_H } from "./part-fault.ts";
 import type { PartFault } from "./part-fault.ts";
 
@@ -96,7 +96,7 @@ async function settle(client: DeviceClient, opts: MeasureOptions): Promise<Readi
     if (!(e instanceof MeasureError)) throw e;
     const why = explainFailure(e);
     if (why !== e) throw why;
-    if (!est.fitted && est.l_h < SHORT_MAX_L_H && ["TOO_FEW_EDGES", "NO_RING", "EMPTY_CAPTURE"].includes(e.code)) throw shortedPart(est.l_h, `the capture on this setting gave no usable ring (${e.code})`);
+    if (!est.fitted && est.l_h < SHORT_MAX_L_H && NO_USABLE_RING.includes(e.code)) throw shortedPart(est.l_h, `the capture on this setting gave no usable ring (${e.code})`);
     throw e;
   }
 }

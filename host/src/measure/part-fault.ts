@@ -159,11 +159,7 @@ export function judgeCapture(
   try {
     analysis = analyzeCapture(capture);
   } catch (e) {
-    if (e instanceof MeasureError) {
-      e.capture = capture;
-      throw explainFailure(e);
-    }
-    throw e;
+    throw e instanceof MeasureError ? explainFailure(e) : e;
   }
   const rg = capture.range;
   const settings = {

@@ -20,12 +20,7 @@ export async function readOnce(client: DeviceClient, settings: MeasureSettings, 
   progress(`measuring: ${describeSetting(client, settings)}`);
   const raw = await client.measure(settings);
   const capture = captureFromDevice(raw, client.identity, client.profile, client.transport.description, opts.label, opts.calibration);
-  try {
-    return { capture, analysis: analyzeCapture(capture), settings };
-  } catch (e) {
-    if (e instanceof MeasureError) e.capture = capture;
-    throw e;
-  }
+  return { capture, analysis: analyzeCapture(capture), settings };
 }
 
 /** Analysis of a capture, with ring-level failures turned into a user-facing MeasureError. */
@@ -33,16 +28,23 @@ export function analyzeCapture(capture: CaptureV1): RingAnalysis {
   return fitCapture(capture).analysis;
 }
 
-/** The same with the fit behind it (residuals, model, edge use), for plots of the ring. */
+/**
+ * The same with the fit behind it (residuals, model, edge use), for plots of the ring. A
+ * MeasureError from here carries the capture, for the part-fault judgement and the record.
+ */
 export function fitCapture(capture: CaptureV1): { fit: FitState; analysis: RingAnalysis } {
   try {
     const fit = fitRing(ringInputFromCapture(capture));
     return { fit, analysis: analyzeFit(fit) };
   } catch (e) {
-    if (e instanceof AnalysisError) throw new MeasureError(e.code, e.message);
-    throw e;
+    const m = e instanceof AnalysisError ? new MeasureError(e.code, e.message) : e;
+    if (m instanceof MeasureError) m.capture ??= capture;
+    throw m;
   }
 }
+
+/** Codes of a capture that held no usable ring (as opposed to a link or setting problem). */
+export const NO_USABLE_RING = ["TOO_FEW_EDGES", "NO_RING", "EMPTY_CAPTURE"];
 
 export function describeSetting(client: DeviceClient, s: { drive: number; tank: number; charge_us: number }): string {
   const r = client.profile.drives[s.drive].ohm;
