@@ -5,14 +5,10 @@
 // interpolated between samples, Gaussian jitter of half a tick as notes §3 advise, 64 MHz ticks)
 // and analysed. Required (issue 3): L within 0.05 %, Q within 2 % of the circuit's values.
 
-import { spawnSync } from "node:child_process";
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
-import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { analyzeRing } from "../../host/src/analysis/index.ts";
 import { Random } from "../../host/src/sim/random.ts";
-import { hasNgspice } from "./spice.ts";
+import { hasNgspice, runSpice } from "./spice.ts";
 
 interface Part { name: string; l_h: number; rs_ohm: number; rp_ohm?: number; c_f: number; i0_a: number }
 
@@ -40,10 +36,7 @@ function spiceRing(p: Part): { t: number[]; v: number[] } {
   const period = (2 * Math.PI) / w0;
   const a0 = p.i0_a / (p.c_f * w0);
   const stop = Math.min(Math.log(a0 / 0.004) / alpha, 4000 * period); // until well below the thresholds
-  const dir = mkdtempSync(join(tmpdir(), "henrytick-spice-ring-"));
-  try {
-    const out = join(dir, "out.txt");
-    const net = `* notes §1 ring-down
+  const net = `* notes §1 ring-down
 L1 a m ${p.l_h} ic=${p.i0_a}
 R1 m b ${p.rs_ohm}
 C1 a b ${p.c_f} ic=0
@@ -52,18 +45,13 @@ ${p.rp_ohm ? `RP a b ${p.rp_ohm}\n` : ""}RG b 0 1e-3
 .tran ${period / 2000} ${stop} 0 ${period / 2000} uic
 .control
 run
-wrdata ${out} v(b,a)
+wrdata OUT v(b,a)
 quit 0
 .endc
 .end
 `;
-    writeFileSync(join(dir, "ring.cir"), net);
-    spawnSync("ngspice", ["-b", join(dir, "ring.cir")], { stdio: "pipe", timeout: 120_000 });
-    const rows = readFileSync(out, "utf8").trim().split("\n").map((r) => r.trim().split(/\s+/).map(Number));
-    return { t: rows.map((r) => r[0]), v: rows.map((r) => r[1]) };
-  } finally {
-    rmSync(dir, { recursive: true, force: true });
-  }
+  const r = runSpice(net, 0);
+  return { t: Array.from(r.t_s), v: Array.from(r.v_v) };
 }
 
 /** Comparator with hysteresis on the sampled ring (starts low), then jitter and the timer. */
