@@ -9,6 +9,8 @@ export { DeviceError, DeviceTimeoutError } from "./device/errors.ts";
 export { ProtocolError } from "./device/frames.ts";
 export { TransportError } from "./transport/transport.ts";
 export type { Transport } from "./transport/transport.ts";
+export { listSerialPorts } from "./transport/serial-transport.ts";
+export type { SerialPortInfo } from "./transport/serial-transport.ts";
 export { measurePart, analyzeCapture, MeasureError, PartFaultError } from "./measure/measure-part.ts";
 export type { Reading, MeasureOptions } from "./measure/measure-part.ts";
 export { buildResult } from "./measure/result.ts";

@@ -165,7 +165,13 @@ describe("machine-readable output and help", () => {
 
   it("ports lists serial ports, or says why it cannot and what to type instead", () => {
     const r = runCli(["ports"]);
-    if (r.status === 0) expect(r.stdout.length).toBeGreaterThan(0);
-    else expect(r.stderr).toMatch(/PORTS_UNAVAILABLE.*--port/);
+    if (r.status === 0) {
+      // Either the no-ports advice or one device path per line.
+      const lines = r.stdout.trimEnd().split("\n");
+      if (!/^no serial ports found: plug the tester in/.test(lines[0])) for (const l of lines) expect(l).toMatch(/^(\/dev\/|COM\d)/);
+    } else {
+      expect(r.status).toBe(1);
+      expect(r.stderr).toMatch(/^henrytick: \[PORTS_UNAVAILABLE\] .*--port \/dev\/ttyACM0/);
+    }
   });
 });

@@ -5,6 +5,7 @@ import { autoDetect } from "@serialport/bindings-cpp";
 import { ReadlineParser } from "@serialport/parser-readline";
 import { SerialPortStream } from "@serialport/stream";
 import type { Transport } from "./transport.ts";
+import { CodedError } from "../coded-error.ts";
 import { TransportBase, TransportError } from "./transport.ts";
 
 export interface SerialOptions {
@@ -68,5 +69,30 @@ export class SerialTransport extends TransportBase implements Transport {
     if (!this.port.isOpen) return Promise.resolve();
     this.closing = true;
     return new Promise((resolve) => this.port.close(() => resolve()));
+  }
+}
+
+export interface SerialPortInfo {
+  path: string;
+  manufacturer?: string;
+  serialNumber?: string;
+  vendorId?: string;
+  productId?: string;
+}
+
+/**
+ * The serial ports this computer offers. PORTS_UNAVAILABLE when the system cannot list them
+ * (listing needs the device database, udev on Linux, which containers often lack).
+ */
+export async function listSerialPorts(): Promise<SerialPortInfo[]> {
+  try {
+    return await autoDetect().list();
+  } catch (e) {
+    throw new CodedError(
+      "PORTS_UNAVAILABLE",
+      `this system cannot list serial ports (${(e as Error).message.split("\n")[0]}); ` +
+        "give the path directly, e.g. --port /dev/ttyACM0 (Linux), --port /dev/cu.usbmodem1101 (macOS) or --port COM3 (Windows); " +
+        "on Linux, ls /dev/ttyACM* /dev/ttyUSB* shows the candidates",
+    );
   }
 }
