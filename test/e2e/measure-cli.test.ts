@@ -89,13 +89,10 @@ describe("henrytick measure --sim (CLI, end to end)", () => {
 
 describe("henrytick in a pipe", () => {
   it("stops quietly when the reader closes the pipe early", () => {
-    // common command-line practice, no source: `henrytick scenarios | head -1` prints one line
-    // and no EPIPE stack trace.
+    // common command-line practice, no source: `henrytick scenarios | head -c 20` stops with no
+    // EPIPE stack trace (the list is written in several pieces, so the pipe closes under it).
     const r = spawnSync("sh", ["-c", `"${process.execPath}" "${CLI}" scenarios | head -c 20 >/dev/null`], { encoding: "utf8" });
     expect(r.stderr).not.toMatch(/EPIPE|Unhandled/);
-    const h = spawnSync("sh", ["-c", `"${process.execPath}" "${CLI}" --help | head -n 1`], { encoding: "utf8" });
-    expect(h.stdout.trim()).toMatch(/henrytick/);
-    expect(h.stderr).not.toMatch(/EPIPE|Unhandled/);
   });
 });
 

@@ -7,8 +7,8 @@ import { mkdtempSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
-import { loadScenario } from "../sim/scenario.ts";
-import { runCli } from "../../../test/e2e/run-cli.ts";
+import { loadScenario } from "../../host/src/sim/scenario.ts";
+import { runCli } from "./run-cli.ts";
 
 const dir = mkdtempSync(join(tmpdir(), "henrytick-suspect-"));
 const scenario = join(dir, "toroid-driven.json");
@@ -52,5 +52,8 @@ describe("henrytick measure on a saturating core (fixed strong setting)", () => 
   it("a clean reading has no suspect marker (empty csv cell, no JSON key)", () => {
     const json = JSON.parse(runCli(["measure", "--sim", "powder-toroid-47u", "--json", "--keep-suspect"]).stdout);
     expect(json.suspect).toBeUndefined();
+    const [header, row] = runCli(["measure", "--sim", "powder-toroid-47u", "--csv", "--keep-suspect"]).stdout.trim().split("\n");
+    expect(header.split(",").at(-1)).toBe("suspect");
+    expect(row.split(",").at(-1)).toBe("");
   });
 });
