@@ -179,6 +179,9 @@ export function fitEdgeModel(
       fresh = trialChi2 <= chi2;
       if (trialChi2 <= chi2) {
         const drop = chi2 - trialChi2;
+        // The step taken, geodesic acceleration included, is what the model's prediction and the
+        // small-step test must judge.
+        for (let i = 0; i < N_PARAMS; i++) ws.step[i] = ws.trial[i] - p[i];
         converged = drop <= tol_chi2 + 1e-12 * chi2 || smallStep(p, ws.step);
         const predicted = predictedGain(ws.hs, ws.gs, ws.step);
         modelHolds = drop >= MODEL_HOLDS_LO * predicted && drop <= MODEL_HOLDS_HI * predicted;
