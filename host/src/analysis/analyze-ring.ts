@@ -291,16 +291,13 @@ function fitFrom(
     }
     // Grazing edges (level form) say little about the noise and their residuals are bounded by
     // the ring's excursion past the threshold, which would pull sigma_v down: the noise is
-    // estimated from the clean crossings when there are enough of them. (One pass: indexed
-    // edges, the weights as setWeights sets them, the clean crossings.)
+    // estimated from the clean crossings when there are enough of them.
+    setWeights(e, outlier, robust, variance, used, w);
     let nAssigned = 0;
     let clean = 0;
     for (let k = 0; k < n; k++) {
-      const a = e.m[k] === e.m[k] ? 1 : 0;
-      assigned[k] = a;
-      nAssigned += a;
-      used[k] = a > 0 && !outlier[k] ? 1 : 0;
-      w[k] = used[k] > 0 ? robust[k] / variance[k] : 0;
+      assigned[k] = e.m[k] === e.m[k] ? 1 : 0;
+      nAssigned += assigned[k];
       noiseMask[k] = used[k] > 0 && e.form[k] === 1 ? 1 : 0;
       clean += noiseMask[k];
     }
