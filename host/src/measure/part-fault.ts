@@ -123,7 +123,9 @@ export function judgeReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v" 
     const timedOut = end === "timeout" && end_ratio >= OUTLAST_THRESHOLD_RATIO;
     const full = end === "full" && end_ratio >= OUTLAST_THRESHOLD_RATIO && decay >= OUTLAST_DECAY_RATIO;
     if (timedOut || full) {
-      const window = full ? `the ${r.capture.range?.edge_limit ?? "buffer's"}-edge buffer` : `the ${r.settings.timeout_ms} ms window`;
+      // (A saved capture judged by judgeCapture may not record its settings.)
+      const limit = r.capture.range?.edge_limit;
+      const window = full ? (limit ? `the ${limit}-edge buffer` : "the edge buffer") : r.settings.timeout_ms > 0 ? `the ${r.settings.timeout_ms} ms window` : "the capture window";
       return {
         code: "RING_OUTLASTS_WINDOW",
         message: `the ring outlasts the capture: it was still ${end_ratio.toFixed(1)}x the threshold when ${window} ended, so the decay — and with it Q, ESR and the check that this is one clean ring — is not seen (about ${L}). The part rings longer than this window (a large inductance or a very high Q): ${fixedAdvice} (it sizes the window to the ring, up to ${profile.max_timeout_ms} ms), or use a shorter --charge-us so the ring starts lower and ends sooner`,
