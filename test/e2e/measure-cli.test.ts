@@ -1,7 +1,7 @@
 // End to end: CLI -> device client -> firmware wasm in the simulated tester -> analysis.
 // Ground truth is the scenario file's part. Uncalibrated, a reading divides by the tank's
 // nominal value, so it carries the tank's actual deviation, the fixture's and switch node's
-// capacitance and the part's own (measurement notes §4): the simulator's expectedReading()
+// capacitance and the part's own (docs/method.md §7): the simulator's expectedReading()
 // gives that value from the same circuit, and the reading must match it closely, while the
 // part's true inductance must lie within 0.5 % and within the stated uncertainty.
 

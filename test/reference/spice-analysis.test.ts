@@ -1,8 +1,8 @@
 // The analysis on ring-downs simulated by an independent circuit solver: ngspice (Debian package
 // "ngspice", batch mode, trapezoidal integration, step 1/2000 of a period) rings the part of
-// measurement notes §1 (L with Rs, optional Rp, across C, released with I0 and zero voltage);
+// docs/method.md §1 (L with Rs, optional Rp, across C, released with I0 and zero voltage);
 // its waveform is turned into comparator edges (rising +35 mV / falling -5 mV, crossings
-// interpolated between samples, Gaussian jitter of half a tick as notes §3 advise, 64 MHz ticks)
+// interpolated between samples, Gaussian jitter of half a tick as docs/method.md §4 advise, 64 MHz ticks)
 // and analysed. Required (issue 3): L within 0.05 %, Q within 2 % of the circuit's values.
 
 import { describe, expect, it } from "vitest";
@@ -13,7 +13,7 @@ import { hasNgspice, runSpice } from "./spice.ts";
 interface Part { name: string; l_h: number; rs_ohm: number; rp_ohm?: number; c_f: number; i0_a: number }
 
 const PARTS: Part[] = [
-  { name: "10 µH, 0.5 Ω on 10 nF (notes §1 check circuit)", l_h: 10e-6, rs_ohm: 0.5, c_f: 10e-9, i0_a: 0.1 },
+  { name: "10 µH, 0.5 Ω on 10 nF (docs/method.md §1 check circuit)", l_h: 10e-6, rs_ohm: 0.5, c_f: 10e-9, i0_a: 0.1 },
   { name: "1.2 µH, 12 mΩ on 1 µF", l_h: 1.2e-6, rs_ohm: 0.012, c_f: 1e-6, i0_a: 0.5 },
   { name: "330 µH, 0.42 Ω on 100 nF", l_h: 330e-6, rs_ohm: 0.42, c_f: 100e-9, i0_a: 0.05 },
   { name: "4.7 mH, 2.9 Ω on 100 nF", l_h: 4.7e-3, rs_ohm: 2.9, c_f: 100e-9, i0_a: 0.02 },
@@ -36,7 +36,7 @@ function spiceRing(p: Part): { t: number[]; v: number[] } {
   const period = (2 * Math.PI) / w0;
   const a0 = p.i0_a / (p.c_f * w0);
   const stop = Math.min(Math.log(a0 / 0.004) / alpha, 4000 * period); // until well below the thresholds
-  const net = `* notes §1 ring-down
+  const net = `* docs/method.md §1 ring-down
 L1 a m ${p.l_h} ic=${p.i0_a}
 R1 m b ${p.rs_ohm}
 C1 a b ${p.c_f} ic=0

@@ -37,7 +37,7 @@ const GRID: Case[] = [
 ];
 
 describe("analyzeRing on noiseless edges", () => {
-  it("recovers the ring to 1e-9 with offset thresholds (measurement notes §2)", () => {
+  it("recovers the ring to 1e-9 with offset thresholds (docs/method.md §2)", () => {
     // The notes: a model fit recovers T and alpha to < 1e-12 on noiseless edges. Ticks of 10 as
     // (rounding 5e-18 s on times up to 1e-4 s) bound this check at 1e-9.
     const w0 = 2 * Math.PI * 100e3;
@@ -57,7 +57,7 @@ describe("analyzeRing on noiseless edges", () => {
   });
 
   it("reads the notes' §1 part from its noiseless edges", () => {
-    // Measurement notes §1 [calc], standard circuit theory (Terman 1943, value from memory):
+    // docs/method.md §1 (computed), standard circuit theory (Terman 1943, value from memory):
     // L = 10 µH, C = 10 nF, Rs = 0.5 Ω -> f0 = 503 292.12 Hz, Q = 63.2456, ESR = 0.5000 Ω;
     // with I0 = 10 mA the ring amplitude is 0.31624 V.
     const part = { l_h: 10e-6, rs_ohm: 0.5 };
@@ -76,7 +76,7 @@ describe("analyzeRing on noiseless edges", () => {
   });
 
   it("reports the GUM budget of the notes' §5 example when the fit is exact", () => {
-    // Measurement notes §5 [calc] (JCGM 100:2008): 1 nF ±1 % rect., 159 154.94 Hz with ±100 ppm
+    // docs/method.md §5 (computed) (JCGM 100:2008): 1 nF ±1 % rect., 159 154.94 Hz with ±100 ppm
     // rect. timebase -> L = 1.0000 mH, U(k = 2) = 11.55 µH; the capacitance dominates.
     const c = 1e-9;
     const w0 = 2 * Math.PI * 159154.94;

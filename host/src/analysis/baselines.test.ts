@@ -4,9 +4,9 @@ import { Random } from "../sim/random.ts";
 import { fitLinePeriod, linePeriodVariance, reciprocalPeriod, reciprocalPeriodVariance } from "./baselines.ts";
 import { analyzeRing } from "./analyze-ring.ts";
 
-describe("least squares vs reciprocal counting (measurement notes §3)", () => {
+describe("least squares vs reciprocal counting (docs/method.md §4)", () => {
   it("has the variance ratio N(N+1)/(6(N-1))", () => {
-    // Measurement notes §3 [calc] from Kay 1993 ch. 3-4 (value from memory): N = 10, 100, 1000 ->
+    // docs/method.md §4 (computed) from Kay 1993 ch. 3-4 (value from memory): N = 10, 100, 1000 ->
     // 2.0370, 17.0034, 167.0003.
     const ratio = (n: number) => reciprocalPeriodVariance(1, n) / linePeriodVariance(1, n);
     expect(ratio(10)).toBeCloseTo(2.037, 4);
@@ -15,7 +15,7 @@ describe("least squares vs reciprocal counting (measurement notes §3)", () => {
   });
 
   it("gives the notes' period spreads for tick 62.5 ns, jitter 10 ns, T = 10 µs, N = 200", () => {
-    // Measurement notes §3 [calc]: sigma = 20.628 ns; LS 25.26 ps, reciprocal 146.6 ps.
+    // docs/method.md §4 (computed): sigma = 20.628 ns; LS 25.26 ps, reciprocal 146.6 ps.
     const sigma = Math.sqrt(62.5e-9 ** 2 / 12 + 10e-9 ** 2);
     expect(sigma).toBeCloseTo(20.628e-9, 12);
     expect(Math.sqrt(linePeriodVariance(sigma, 200))).toBeCloseTo(25.26e-12, 14);
@@ -68,7 +68,7 @@ describe("threshold-crossing bias on the notes' reference ring (§2)", () => {
   const period = (2 * Math.PI) / wd;
 
   it("reads the period long with a straight line, and the edge model does not", () => {
-    // Measurement notes §2 [calc]: +1.325e-3 for a straight line; that is the line through the
+    // docs/method.md §2 (computed): +1.325e-3 for a straight line; that is the line through the
     // 52 rising edges with A >= 2h (reproduced here), while the pooled line through all 103
     // edges (one offset per level, as fitLinePeriod does) reads +1.3183e-3.
     const rising = keep.filter((i) => cr.levels[i] === 1).map((i) => cr.times[i]);
@@ -83,7 +83,7 @@ describe("threshold-crossing bias on the notes' reference ring (§2)", () => {
     const line = fitLinePeriod(input).period_s / period - 1;
     expect(line).toBeCloseTo(1.3183e-3, 6);
     expect(reciprocalPeriod(input).period_s / period - 1).toBeGreaterThan(line);
-    // Measurement notes §2: a model fit recovers T and alpha to < 1e-12 on these noiseless edges;
+    // docs/method.md §2: a model fit recovers T and alpha to < 1e-12 on these noiseless edges;
     // with 10 as ticks the check here is 1e-9.
     const a = analyzeRing(input);
     expect(Math.abs(a.fd_hz * period - 1)).toBeLessThan(1e-9);

@@ -1,6 +1,6 @@
 // What a simple scopeless meter would do with the same edges, for comparison in the benchmark:
 // a straight line through all edges, and reciprocal counting (first to last edge over the cycle
-// count). Both ignore the threshold delays asin(V/A) of measurement notes §2, so both read the
+// count). Both ignore the threshold delays asin(V/A) of docs/method.md §2, so both read the
 // period long on a decaying ring; both use the same first-pass cycle bookkeeping as the fit.
 
 import { assignHalfCycles } from "./cycle-bookkeeping.ts";

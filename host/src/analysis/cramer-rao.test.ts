@@ -37,7 +37,7 @@ describe("Cramér-Rao bound of the edge model (Kay 1993 §3.9)", () => {
         lo[i] -= h;
         return (modelEdgeTime(hi, m, th[0], th[1]) - modelEdgeTime(lo, m, th[0], th[1])) / (2 * h);
       });
-      // Slope of the ring at the crossing, for the voltage-noise term (measurement notes §3).
+      // Slope of the ring at the crossing, for the voltage-noise term (docs/method.md §4).
       const t = times[m];
       const slope = Math.exp(-alpha * t) * (wd * Math.cos(wd * t) - alpha * Math.sin(wd * t));
       const v = q + noise.sigma_t_s ** 2 + (noise.sigma_v_v / slope) ** 2;
@@ -55,7 +55,7 @@ describe("Cramér-Rao bound of the edge model (Kay 1993 §3.9)", () => {
   });
 
   it("is approached by the analysis (efficiency over 60 seeded captures)", () => {
-    // Measurement notes §3: efficiency = bound / achieved rms error; issue 3 asks >= 0.8.
+    // docs/method.md §4: efficiency = bound / achieved rms error; issue 3 asks >= 0.8.
     const l_h = 330e-6, c_f = 10e-9; // demo coil, about 88 kHz
     const k = ringOfQ(l_h, c_f, 40, 1);
     const ring = k.ring;

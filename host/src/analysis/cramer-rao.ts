@@ -1,4 +1,4 @@
-// Cramér-Rao bound for a ring-down capture (measurement notes §3): the Fisher information of
+// Cramér-Rao bound for a ring-down capture (docs/method.md §4): the Fisher information of
 // the edge model (edge-model.ts) with independent Gaussian timing errors of variance
 //   tick^2/12 + sigma_t^2 + (sigma_v / slope_k)^2
 // is F = sum_k J_k^T J_k / var_k with J_k = d t_k / d(wd, phi, ln A0, alpha), computed here in

@@ -97,7 +97,7 @@ describe("diagnostics", () => {
   });
 
   it("flags a tick rate locked to the ring and widens the uncertainty to cover it", () => {
-    // Measurement notes §3: pure quantisation is not i.i.d. With 12.01 ticks per period and
+    // docs/method.md §4: pure quantisation is not i.i.d. With 12.01 ticks per period and
     // 0.3 ns of jitter the quantisation error repeats from edge to edge.
     const tick_hz = 40e6;
     const f = tick_hz / 12.01;

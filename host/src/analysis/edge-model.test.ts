@@ -2,15 +2,15 @@ import { describe, expect, it } from "vitest";
 import { crossingTimes } from "../sim/comparator-edges.ts";
 import { chooseResidualForms, evaluateEdges, makeEdgeSet, modelEdgeTime } from "./edge-model.ts";
 
-// Measurement notes §2 reference ring: f0 = 100 kHz, Q = 50, A0 = 1 V, VH = -VL = 20 mV.
+// docs/method.md §2 reference ring: f0 = 100 kHz, Q = 50, A0 = 1 V, VH = -VL = 20 mV.
 const w0 = 2 * Math.PI * 100e3;
 const alpha = w0 / 100;
 const wd = Math.sqrt(w0 * w0 - alpha * alpha);
 const p = [wd, 0, 0, alpha];
 
-describe("edge model (measurement notes §2)", () => {
+describe("edge model (docs/method.md §2)", () => {
   it("puts the first edges where the notes do", () => {
-    // Measurement notes §2 [calc]: rising at 31.841, 10 034.407, 20 037.107 ns; falling at
+    // docs/method.md §2 (computed): rising at 31.841, 10 034.407, 20 037.107 ns; falling at
     // 5 033.108, 15 035.739 ns.
     const ns = [0, 1, 2, 3, 4].map((m) => modelEdgeTime(p, m, 0.02, -0.02) * 1e9);
     expect(ns[0]).toBeCloseTo(31.841, 3);
@@ -60,7 +60,7 @@ describe("edge model (measurement notes §2)", () => {
   });
 
   it("makes straight-line edge timing read the period long (threshold-crossing bias)", () => {
-    // Measurement notes §2: edges are late by asin(h/A)/wd, growing as the ring decays.
+    // docs/method.md §2: edges are late by asin(h/A)/wd, growing as the ring decays.
     const late = [0, 2, 4, 40, 80].map((m) => modelEdgeTime(p, m, 0.02, -0.02) - (m * Math.PI) / wd);
     for (let i = 1; i < late.length; i++) expect(late[i]).toBeGreaterThan(late[i - 1]);
     const a = (t: number) => Math.exp(-alpha * t);

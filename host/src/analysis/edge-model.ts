@@ -1,4 +1,4 @@
-// The comparator-edge model of measurement notes §2 (derived from standard circuit theory): the
+// The comparator-edge model of docs/method.md §2 (derived from standard circuit theory): the
 // ring v(t) = A0 e^(-alpha t) sin(wd t - phi) crosses the rising threshold VH upward at
 //   wd t = 2 pi k + phi + asin(VH / A(t))
 // and the falling threshold VL downward at

@@ -10,7 +10,7 @@ import type { CheckedInput } from "./validate-input.ts";
 /**
  * Fits each start briefly on a subset of the edges (the tail, where the amplitude shows, and an
  * even spread) and ranks them by the likelihood they end with on the subset, best first: this is
- * what separates the basins of the (A0, alpha) likelihood (measurement notes §2). The short fits
+ * what separates the basins of the (A0, alpha) likelihood (docs/method.md §2). The short fits
  * weight with timing noise only; the ranking estimates both noise components from each fit's
  * residuals (subsetNll), because basins that differ in amplitude explain the growth of the
  * residuals along a decaying ring (voltage noise over a falling slope) differently, which the

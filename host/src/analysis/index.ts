@@ -2,9 +2,9 @@
 // and diagnostics. Pure numerical code: no I/O, no clock, no device or transport imports.
 //
 //   analyzeRing(input)       the measurement: a weighted fit of the edge model of measurement
-//                            notes §2 with robust cycle bookkeeping; throws AnalysisError
+//                            docs/method.md §2 with robust cycle bookkeeping; throws AnalysisError
 //                            (EMPTY_CAPTURE, TOO_FEW_EDGES, BAD_INPUT, NO_RING)
-//   ringCramerRao(...)       the bound on L and Q for a ring, edge set and noise (notes §3)
+//   ringCramerRao(...)       the bound on L and Q for a ring, edge set and noise (docs/method.md §4)
 //   fitLinePeriod(input)     baselines for the benchmark: a straight line through the edges,
 //   reciprocalPeriod(input)  and first-to-last counting; both read the period long
 //   ringQuantities(...)      (wd, alpha) and their covariance to f0, L, Q, ESR and the budget

@@ -1,5 +1,5 @@
 // Starting points for the edge-model fit. The likelihood in (A0, alpha) has several basins
-// (measurement notes §2), so the start is found globally. For fixed (A0, alpha) the model is
+// (docs/method.md §2), so the start is found globally. For fixed (A0, alpha) the model is
 // linear in (wd, phi) (u depends only on the observed times), so those two follow in closed
 // form (variable projection: G. H. Golub and V. Pereyra, SIAM J. Numer. Anal. 10(2), 1973).
 // The search is laid out in robust features of the ring: D = alpha * t_last, the log-decay

@@ -1,4 +1,4 @@
-// Per-edge noise (measurement notes §3): an edge's timing error has variance
+// Per-edge noise (docs/method.md §4): an edge's timing error has variance
 //   var_k = tick^2/12 + sigma_t^2 + (sigma_v / slope_k)^2,
 // capped at (1 rad / wd)^2 where the ring grazes the threshold and the linear picture fails.
 // The fit works with level-crossing residuals in volts (edge-model.ts), whose variance is

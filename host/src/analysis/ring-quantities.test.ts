@@ -3,9 +3,9 @@ import { ringConstants } from "../physics/ring.ts";
 import { Random } from "../sim/random.ts";
 import { inductanceFromFrequency, inductanceRelU, ringQuantities } from "./ring-quantities.ts";
 
-describe("ring quantities (measurement notes §1)", () => {
+describe("ring quantities (docs/method.md §1)", () => {
   it("reproduces the §1 check values from (wd, alpha)", () => {
-    // Measurement notes §1 [calc], standard circuit theory (Terman 1943, value from memory):
+    // docs/method.md §1 (computed), standard circuit theory (Terman 1943, value from memory):
     // L = 10 µH, C = 10 nF, Rs = 0.5 Ω -> f0 = 503 292.12 Hz, alpha = 25 000 /s, Q = 63.2456,
     // fd = 503 276.39 Hz, ESR = 0.5000 Ω.
     const k = ringConstants({ l_h: 10e-6, rs_ohm: 0.5 }, 10e-9);
@@ -19,7 +19,7 @@ describe("ring quantities (measurement notes §1)", () => {
   });
 
   it("with a parallel loss reports the total tank loss", () => {
-    // Measurement notes §1 [calc]: adding Rp = 100 kΩ gives alpha = 25 500 /s and Q = 62.006.
+    // docs/method.md §1 (computed): adding Rp = 100 kΩ gives alpha = 25 500 /s and Q = 62.006.
     const k = ringConstants({ l_h: 10e-6, rs_ohm: 0.5, rp_ohm: 100e3 }, 10e-9);
     const rq = ringQuantities(k.wd_rad_s, k.alpha_per_s, [0, 0, 0], 10e-9, 0, 0);
     expect(rq.alpha_per_s).toBeCloseTo(25500, 6);
@@ -27,7 +27,7 @@ describe("ring quantities (measurement notes §1)", () => {
   });
 
   it("uses w0, not wd: L from wd alone would read high by 1/(1 - 1/(4Q^2))", () => {
-    // Measurement notes §1: +0.25 % at Q = 10, about +3 % at Q = 3 (standard circuit theory).
+    // docs/method.md §1: +0.25 % at Q = 10, about +3 % at Q = 3 (standard circuit theory).
     for (const [q, high] of [[10, 0.0025], [3, 0.029]]) {
       const w0 = 1e6;
       const alpha = w0 / (2 * q);
@@ -55,7 +55,7 @@ describe("ring quantities (measurement notes §1)", () => {
 });
 
 describe("uncertainty of L (JCGM 100:2008)", () => {
-  // Measurement notes §5 [calc]: C = 1.000 nF ±1 % rectangular, f = 159 154.94 Hz with a ±100 ppm
+  // docs/method.md §5 (computed): C = 1.000 nF ±1 % rectangular, f = 159 154.94 Hz with a ±100 ppm
   // rectangular timebase -> L = 1.0000 mH, u_rel = 0.57747 %, U(k = 2) = 11.55 µH.
   const c = 1e-9;
   const f = 159154.94;

@@ -1,7 +1,7 @@
 // From the fitted (wd, alpha) to what the user reads, with the uncertainty propagation of
 // JCGM 100:2008 (the GUM) §5.1 (law of propagation for uncorrelated inputs, first order):
 //   w0^2 = wd^2 + alpha^2,  L = 1/(w0^2 C),  Q = w0/(2 alpha),  ESR = w0 L / Q = 2 alpha L
-// (measurement notes §1, standard circuit theory). A timebase error scales every time by the
+// (docs/method.md §1, standard circuit theory). A timebase error scales every time by the
 // same factor, so it scales wd and alpha alike: it enters f0 once, L twice, ESR once, Q not.
 
 export const COVERAGE_K = 2;
@@ -63,7 +63,7 @@ export function ringQuantities(
   };
 }
 
-/** L = 1/((2 pi f)^2 C), the undamped tank relation (measurement notes §1). */
+/** L = 1/((2 pi f)^2 C), the undamped tank relation (docs/method.md §1). */
 export function inductanceFromFrequency(f_hz: number, c_f: number): number {
   const w = 2 * Math.PI * f_hz;
   return 1 / (w * w * c_f);

@@ -129,7 +129,7 @@ describe("cycle bookkeeping and outliers", () => {
   });
 });
 
-describe("the multimodal (A0, alpha) likelihood (measurement notes §2)", () => {
+describe("the multimodal (A0, alpha) likelihood (docs/method.md §2)", () => {
   it("has a false basin that a local fit falls into, and the analysis does not", () => {
     // The notes' reference ring (f0 = 100 kHz, Q = 50, ±20 mV), cut where A = 2h: with symmetric
     // thresholds and no ring end, the amplitude shows only in the curvature of the edge delays.
@@ -171,7 +171,7 @@ describe("the multimodal (A0, alpha) likelihood (measurement notes §2)", () => 
   });
 
   it("takes the true basin at every cut-off of the notes' reference ring", () => {
-    // Noiseless edges have one exact solution (measurement notes §2), so a period off by more
+    // Noiseless edges have one exact solution (docs/method.md §2), so a period off by more
     // than 1 ppm means a false basin. Each capture is the reference ring cut after 20, 21, ...
     // edges, with symmetric (±20 mV) and offset (+35/-5 mV) thresholds.
     const w0 = 2 * Math.PI * 100e3;

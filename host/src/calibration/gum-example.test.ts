@@ -1,4 +1,4 @@
-// The GUM example of the measurement notes §5 ([calc] there, JCGM 100:2008 and JCGM 101:2008):
+// The GUM example of docs/method.md §5 (computed; JCGM 100:2008 and JCGM 101:2008):
 // C = 1.000 nF ±1 % rectangular, f = 159 154.94 Hz with ±100 ppm rectangular timebase.
 
 import { describe, expect, it } from "vitest";
@@ -10,7 +10,7 @@ const C = 1e-9;
 const F = 159_154.94;
 const model = (x: number[]) => [1 / ((2 * Math.PI * x[0] * x[1]) ** 2 * x[2])];
 
-describe("GUM example (measurement notes §5)", () => {
+describe("GUM example (docs/method.md §5)", () => {
   const inputs = [
     { name: "f", value: F, u: 0, group: "fit" },
     { name: "timebase", value: 1, u: rectangularU(100e-6), group: "timebase" },

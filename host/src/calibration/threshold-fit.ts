@@ -1,7 +1,7 @@
 // Comparator threshold ratio from a high-Q ring. Scaling both thresholds only rescales the
 // fitted amplitude, so what the edges can tell is their ratio; in the hardware it moves with the
 // comparator's input offset, which shifts both thresholds alike. A wrong ratio mis-predicts how
-// late each edge is as the ring decays (measurement notes §2), and the fit turns that into an
+// late each edge is as the ring decays (docs/method.md §2), and the fit turns that into an
 // apparent change of frequency between the strong and the weak half of the ring. So the offset
 // is the one at which the analysis's drift diagnostic says the frequency is the same in both
 // halves; on a C0G/film tank nothing else makes it move. Overdrive-dependent comparator delay

@@ -1,5 +1,5 @@
-// The two-capacitance method against the worked example of the measurement notes §4 (values
-// [calc] there; method: Terman and Pettit, Electronic Measurements, 1952, from memory), and its
+// The two-capacitance method against the worked example of docs/method.md §7 (values
+// computed; method: Terman and Pettit, Electronic Measurements, 1952, from memory), and its
 // propagated uncertainty against a JCGM 101:2008 Monte Carlo.
 
 import { describe, expect, it } from "vitest";
@@ -11,7 +11,7 @@ const CS = 5e-12;
 const C1 = 100e-12;
 const C2 = 1000e-12;
 
-describe("two-capacitance method (measurement notes §4)", () => {
+describe("two-capacitance method (docs/method.md §7)", () => {
   it("reproduces the worked example's frequencies", () => {
     expect(ringFrequencyHz(L, C1, CS)).toBeCloseTo(4_911_628.2, 1);
     expect(ringFrequencyHz(L, C2, CS)).toBeCloseTo(1_587_585.4, 1);

@@ -1,5 +1,5 @@
 // Self-capacitance and self-resonance from two rings of the same part on two known tank
-// capacitances (measurement notes §4): 1/w^2 = L (C + Cs), so
+// capacitances (docs/method.md §7): 1/w^2 = L (C + Cs), so
 //   L  = (1/w2^2 - 1/w1^2) / (C2 - C1)
 //   Cs = (f2^2 C2 - f1^2 C1) / (f1^2 - f2^2)
 //   SRF = 1 / (2 pi sqrt(L Cs))

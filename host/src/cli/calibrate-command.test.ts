@@ -1,5 +1,5 @@
 // Values on the calibrate command line: SI prefixes and the IEC 60062 letter-for-decimal-point
-// style (measurement notes §6: 4n7 = 4.7 nF), with or without the unit letter.
+// style (IEC 60062: 4n7 = 4.7 nF), with or without the unit letter.
 
 import { describe, expect, it } from "vitest";
 import { parseQuantity } from "./calibrate-command.ts";

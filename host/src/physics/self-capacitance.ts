@@ -10,7 +10,7 @@
 import { requirePositiveFinite } from "./solenoid.ts";
 
 export type MedhurstRowSource =
-  /** Quoted in the project's measurement notes §4 from Medhurst 1947 (read in the source). */
+  /** From Medhurst 1947 (read in the source). */
   | "notes"
   /** Medhurst's table as quoted second-hand (Tesla-coil mailing list post by M. S.
    *  Rzeszotarski, January 1997, citing Wireless Engineer 24 (1947) 35 and 80). */

@@ -51,7 +51,7 @@ describe("complete elliptic integrals (AGM)", () => {
 });
 
 describe("Nagaoka's coefficient", () => {
-  it("reproduces the measurement notes §4 check K = 0.59505 [calc]", () => {
+  it("reproduces the Nagaoka coefficient K = 0.59505 for 15 mm x 10 mm (computed)", () => {
     expect(nagaokaCoefficient(10 / 15)).toBeCloseTo(0.59505, 5);
   });
 
@@ -91,7 +91,7 @@ describe("Nagaoka's coefficient", () => {
 });
 
 describe("solenoid inductance", () => {
-  it("reproduces the measurement notes §4 worked example [calc]", () => {
+  it("reproduces the Wheeler 1928 / Nagaoka worked example (computed)", () => {
     // Wheeler 1928 formula → 1.3221 µH; Nagaoka current sheet → 1.3214 µH.
     expect(wheelerInductanceH(NOTES_COIL) * 1e6).toBeCloseTo(1.3221, 4);
     expect(nagaokaInductanceH(NOTES_COIL) * 1e6).toBeCloseTo(1.3214, 4);

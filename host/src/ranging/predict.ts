@@ -1,6 +1,6 @@
 // Prediction for one drive-resistor x tank-capacitor setting (pure): what a pulse there would
 // do to the part and the resistor, what ring and how many usable edges it would give, and the
-// uncertainty of L and Q to expect. Physics: measurement notes §1 (ring), §2-§3 (edges, bound),
+// uncertainty of L and Q to expect. Physics: docs/method.md §1 (ring), §2-§3 (edges, bound),
 // §7 (flyback). The charge phase rings too (the part and tank form a parallel tank fed through
 // R), so the charge time covers both the L/R rise and that ring's decay.
 

@@ -2,16 +2,16 @@ import { describe, expect, it } from "vitest";
 import { flybackEnergyJ, flybackPeakV, HAZARDOUS_PEAK_V, otherWindingPeakV, resolvePeakLimit } from "./safety.ts";
 
 describe("flyback safety figures", () => {
-  it("50 mH on 10 nF released at 20 mA peaks near 44.7 V (measurement notes §7 [calc], I0 sqrt(L/C))", () => {
+  it("50 mH on 10 nF released at 20 mA peaks near 44.7 V (I0 sqrt(L/C), standard circuit theory, computed)", () => {
     expect(flybackPeakV(50e-3, 10e-9, 20e-3)).toBeCloseTo(44.72, 2);
   });
 
-  it("the same current in 1 H on 100 pF gives 2 kV by I0 sqrt(L/C) (measurement notes §7 quote 5 kV, which needs 50 mA: the notes' figure does not follow from their formula)", () => {
+  it("the same current in 1 H on 100 pF gives 2 kV by I0 sqrt(L/C) (standard circuit theory, computed; 5 kV would need 50 mA)", () => {
     expect(flybackPeakV(1, 100e-12, 20e-3)).toBeCloseTo(2000, 6);
     expect(flybackPeakV(1, 100e-12, 50e-3)).toBeCloseTo(5000, 6);
   });
 
-  it("a 230 V : 12 V transformer pulsed on its 12 V side at 44.7 V shows about 850 V on the mains side (measurement notes §7 [calc])", () => {
+  it("a 230 V : 12 V transformer pulsed on its 12 V side at 44.7 V shows about 850 V on the mains side (turns ratio times the pulsed winding's peak, computed)", () => {
     expect(otherWindingPeakV(44.7, 230 / 12)).toBeCloseTo(856.75, 1);
   });
 
@@ -19,7 +19,7 @@ describe("flyback safety figures", () => {
     expect(flybackEnergyJ(50e-3, 20e-3)).toBeCloseTo(10e-6, 12);
   });
 
-  it("reduces the first peak by e^(-pi / 4Q) (quarter-period decay, measurement notes §7)", () => {
+  it("reduces the first peak by e^(-pi / 4Q) (quarter-period decay, standard circuit theory)", () => {
     expect(flybackPeakV(1e-3, 1e-9, 1e-3, 10) / flybackPeakV(1e-3, 1e-9, 1e-3)).toBeCloseTo(Math.exp(-Math.PI / 40), 12);
   });
 });

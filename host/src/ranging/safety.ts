@@ -1,4 +1,4 @@
-// Flyback safety figures (measurement notes §7). Interrupting the current I0 in an inductor L
+// Flyback safety figures (standard circuit theory; IEC 61010-1 for the hazardous-live level). Interrupting the current I0 in an inductor L
 // returns the energy ½ L I0² as voltage: across a tank C the first peak is about I0 sqrt(L/C),
 // reduced by the decay over the first quarter period; a transformer's other winding sees that
 // times its turns ratio.

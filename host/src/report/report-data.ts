@@ -1,8 +1,8 @@
 // What the report plots, computed from a capture: the fitted ring (the analysis' own model,
-// measurement notes §2: v = A0 e^(-alpha t) sin(wd t - phi)) with its envelope and the edges on
+// docs/method.md §2: v = A0 e^(-alpha t) sin(wd t - phi)) with its envelope and the edges on
 // their thresholds; each edge's timing residual; the period between like edges against the ring
 // amplitude at that moment, beside what the model predicts (a tank whose capacitance depends on
-// the voltage makes the measured periods leave the model line, notes §7); and the budget.
+// the voltage makes the measured periods leave the model line, docs/method.md §6); and the budget.
 // Pure: no I/O.
 
 import { modelEdgeTime, P_ALPHA, P_LNA, P_PHI, P_WD } from "../analysis/edge-model.ts";

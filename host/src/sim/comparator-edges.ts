@@ -1,4 +1,4 @@
-// Comparator edges of a ring (measurement notes §2). The comparator has a rising threshold VH
+// Comparator edges of a ring (docs/method.md §2). The comparator has a rising threshold VH
 // and a falling threshold VL (VH > VL: hysteresis), both shifted by its input offset, and starts
 // low when the switch opens. It goes high where v(t) crosses VH upward and low where v(t) crosses
 // VL downward. Crossing times are solved exactly on each monotonic stretch of the ring; then the

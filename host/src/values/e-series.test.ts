@@ -1,12 +1,12 @@
 import { describe, expect, it } from "vitest";
 import { nearestPreferred, parseSeriesName, seriesValues } from "./e-series.ts";
 
-// Lists from IEC 60063 as given in measurement notes §6.
+// Lists from IEC 60063 (value from memory of the standard's tables).
 const E6 = [1.0, 1.5, 2.2, 3.3, 4.7, 6.8];
 const E12 = [1.0, 1.2, 1.5, 1.8, 2.2, 2.7, 3.3, 3.9, 4.7, 5.6, 6.8, 8.2];
 const E24 = [1.0, 1.1, 1.2, 1.3, 1.5, 1.6, 1.8, 2.0, 2.2, 2.4, 2.7, 3.0, 3.3, 3.6, 3.9, 4.3, 4.7, 5.1, 5.6, 6.2, 6.8, 7.5, 8.2, 9.1];
 
-describe("IEC 60063 E-series (measurement notes §6)", () => {
+describe("IEC 60063 E-series", () => {
   it("E6, E12 and E24 match the published lists", () => {
     expect(seriesValues("E6")).toEqual(E6);
     expect(seriesValues("E12")).toEqual(E12);
@@ -18,7 +18,7 @@ describe("IEC 60063 E-series (measurement notes §6)", () => {
     expect(differ).toEqual([2.7, 3.0, 3.3, 3.6, 3.9, 4.3, 4.7, 8.2]);
   });
 
-  it("E48/E96/E192 are three figures of 10^(i/n); E192 has 9.20 where rounding gives 9.19 (from memory, notes §6 [mem])", () => {
+  it("E48/E96/E192 are three figures of 10^(i/n); E192 has 9.20 where rounding gives 9.19 (IEC 60063, value from memory)", () => {
     for (const n of [48, 96, 192] as const) {
       const s = seriesValues(`E${n}`);
       expect(s.length).toBe(n);

@@ -1,7 +1,7 @@
 // IEC 60063 preferred-number series E6 ... E192 and the nearest preferred value to a reading.
 // E6-E24 are published tables (two significant figures; several E24 members differ from rounding
 // the geometric series, so they are listed, not computed). E48-E192 are three significant figures
-// of 10^(i/n), with the published exception 9.20 (not 9.19) in E192 (measurement notes §6,
+// of 10^(i/n), with the published exception 9.20 (not 9.19) in E192 (IEC 60063,
 // value from memory). Pure: no I/O.
 
 export type SeriesName = "E6" | "E12" | "E24" | "E48" | "E96" | "E192";

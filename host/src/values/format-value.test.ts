@@ -10,7 +10,7 @@ describe("formatting values", () => {
     expect(formatMeasured(4.7e-6, undefined, "H")).toBe("4.700 µH");
   });
 
-  it("writes IEC 60062 codes that read back to the same value (notes §6 style: 4u7, 330u, 1m5)", () => {
+  it("writes IEC 60062 codes that read back to the same value (IEC 60062 style: 4u7, 330u, 1m5)", () => {
     expect(iecCode(4.7e-6)).toBe("4u7");
     expect(iecCode(330e-6)).toBe("330u");
     expect(iecCode(1.5e-3)).toBe("1m5");

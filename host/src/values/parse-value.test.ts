@@ -5,14 +5,14 @@ import { parseTolerance, toleranceLimits, TOLERANCE_LETTERS } from "./tolerance.
 const close = (a: number, b: number) => expect(Math.abs(a / b - 1)).toBeLessThan(1e-12);
 
 describe("parseValue: IEC 60062 letter-and-digit codes", () => {
-  // Source: IEC 60062 as quoted in measurement notes §6 ([src, secondary]).
+  // Source: IEC 60062 (secondary source; value from memory of the standard's table).
   it.each([
     ["4R7", "Ω", 4.7],
     ["4K7", "Ω", 4700],
     ["4n7", "F", 4.7e-9],
     ["2u2", "F", 2.2e-6],
     ["47p", "F", 47e-12],
-  ])("%s = %f %s (measurement notes §6 table)", (text, unit, value) => {
+  ])("%s = %f %s (IEC 60062 letter code)", (text, unit, value) => {
     close(parseValue(text, unit).value, value);
   });
 
@@ -25,7 +25,7 @@ describe("parseValue: IEC 60062 letter-and-digit codes", () => {
     ["100n", 100e-9],
   ])("%s henries", (text, value) => close(parseValue(text).value, value));
 
-  it("reads a trailing tolerance letter after a code (IEC 60062, notes §6)", () => {
+  it("reads a trailing tolerance letter after a code (IEC 60062)", () => {
     expect(parseValue("4u7J")).toMatchObject({ toleranceLetter: "J", tolerance_rel: 0.05 });
     expect(parseValue("330uK")).toMatchObject({ toleranceLetter: "K", tolerance_rel: 0.1 });
     expect(parseValue("1m5M")).toMatchObject({ toleranceLetter: "M", tolerance_rel: 0.2 });
@@ -57,7 +57,7 @@ describe("parseValue: SI prefixes", () => {
 });
 
 describe("tolerances", () => {
-  it("has the IEC 60062 letters of measurement notes §6", () => {
+  it("has the IEC 60062 tolerance letters", () => {
     expect(TOLERANCE_LETTERS).toEqual({ B: 0.001, C: 0.0025, D: 0.005, F: 0.01, G: 0.02, J: 0.05, K: 0.1, M: 0.2 });
   });
 

@@ -1,4 +1,4 @@
-// IEC 60062 tolerance letters, as listed in measurement notes §6 ([src, secondary]): the letter
+// IEC 60062 tolerance letters, (secondary source, value from memory of the standard's table): the letter
 // that follows a value code (`4u7J`) and stands for a symmetric relative tolerance.
 
 export const TOLERANCE_LETTERS: Readonly<Record<string, number>> = {

@@ -1,4 +1,4 @@
-// Tolerances: IEC 60062 letters (measurement notes §6), percentages and absolute half-widths,
+// Tolerances: IEC 60062 letters, percentages and absolute half-widths,
 // symmetric or not, and the limits they put around a nominal value. Pure: no I/O.
 
 import { parseValue, ValueSyntaxError } from "./parse-value.ts";

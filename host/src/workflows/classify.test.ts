@@ -4,7 +4,7 @@ import { measureAbortable, MeasureAbortedError } from "./abortable-measure.ts";
 import { classify } from "./classify.ts";
 
 describe("classify (library entry point)", () => {
-  it("takes trade notation and reproduces the notes §6 ISO 14253-1 example", () => {
+  it("takes trade notation and reproduces an ISO 14253-1 decision (10 µH ±5 %, 10.42 µH, U = 0.10 µH, computed)", () => {
     const c = classify({ inductance_h: 10.42e-6, inductance_u_h: 0.1e-6 }, { nominal: "10u", tolerance: "5%" });
     expect(c.decision).toBe("inconclusive");
     expect(c.p_conform).toBeCloseTo(0.9452, 4);

@@ -4,7 +4,7 @@ import { conformanceProbability, decideConformity, normalCdf } from "./conformit
 describe("ISO 14253-1 conformity decisions", () => {
   const spec = { lower: 9.5e-6, upper: 10.5e-6 }; // 10 µH ±5 %
 
-  it("measurement notes §6 check [calc]: 10 µH ±5 %, 10.42 µH, U = 0.10 µH → inconclusive, P = 0.94520", () => {
+  it("ISO 14253-1:2017 decision rule, normal model, computed: 10 µH ±5 %, 10.42 µH, U = 0.10 µH → inconclusive, P = 0.94520", () => {
     const r = decideConformity(10.42e-6, 0.1e-6, spec);
     expect(r.decision).toBe("inconclusive");
     // Reproduced here: u = U/2 = 0.05 µH, P = Φ((10.5 - 10.42)/0.05) - Φ((9.5 - 10.42)/0.05) = Φ(1.6) - Φ(-18.4).

@@ -18,7 +18,7 @@ describe("sort session", () => {
     const s = new SortSession({ nominal_h: 10e-6, tolerance: parseTolerance("5%"), lot: "L1", bins: makeBins([9.8e-6, 10.2e-6]), series: "E12" });
     const recs = [10.0, 10.42, 11.0, 9.85, 9.7].map((v) => s.add(result(v * 1e-6, 0.1e-6), "2026-01-01T00:00:00Z"));
     expect(recs.map((r) => r.decision)).toEqual(["conforming", "inconclusive", "nonconforming", "conforming", "conforming"]);
-    expect(recs[1].p_conform).toBeCloseTo(0.9452, 4); // notes §6 check value again, through the session
+    expect(recs[1].p_conform).toBeCloseTo(0.9452, 4); // the ISO 14253-1 check value again (computed), through the session
     expect(recs.map((r) => r.bin)).toEqual(["9.80µH–10.2µH", "≥10.2µH", "≥10.2µH", "9.80µH–10.2µH", "<9.80µH"]);
     expect(recs[0].bin_certain).toBe(true);
     expect(recs[3].bin_certain).toBe(false);

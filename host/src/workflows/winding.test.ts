@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { fitWindingModel, predictInductance, windingAdvice } from "./winding.ts";
 
-// Winding arithmetic. With a fixed geometry L ∝ N² (e.g. Wheeler 1928, measurement notes §4:
+// Winding arithmetic. With a fixed geometry L ∝ N² (e.g. Wheeler 1928, docs/method.md §7:
 // L = r²N²/(9r + 10l) at fixed r, l), so one reading at N1 gives N = N1 sqrt(L_target / L1).
 describe("winding advice", () => {
   it("one reading: the N² rule (30 turns, 13.5 µH, target 22 µH → 38.30 turns, add 8)", () => {

@@ -4,7 +4,7 @@
 //
 // Noise: jitter is at least half a tick everywhere, because the tick^2/12 model (and so the bound)
 // holds only when quantisation errors are nearly uniform and independent; pure quantisation of
-// a slowly drifting phase is not (measurement notes §3). With jitter = tick/2 the uniform model's
+// a slowly drifting phase is not (docs/method.md §4). With jitter = tick/2 the uniform model's
 // leading error term is exp(-2 pi^2 (1/2)^2) ~ 0.7 %.
 
 import { ringOfQ, type DampedSine } from "../../../host/src/physics/ring.ts";
@@ -19,7 +19,7 @@ export interface GridPoint {
   q: number;
   /** Initial ring amplitude, volts. */
   a0_v: number;
-  /** "sym": VH = -VL = h; "offset": VH = +1.75 h, VL = -0.25 h (measurement notes §2). */
+  /** "sym": VH = -VL = h; "offset": VH = +1.75 h, VL = -0.25 h (docs/method.md §2). */
   thresholds: "sym" | "offset";
   h_v: number;
   tick_hz: number;
@@ -87,7 +87,7 @@ export function preparePoint(g: GridPoint): PreparedPoint {
   const k = ringOfQ(g.l_h, g.c_f, g.q, g.a0_v);
   const ring = k.ring;
   const [vh, vl] = thresholdsOf(g);
-  // A fixed 40 ns propagation delay: constant delays move only the phase (notes §2).
+  // A fixed 40 ns propagation delay: constant delays move only the phase (docs/method.md §2).
   const comp: ComparatorModel = { rising_v: vh, falling_v: vl, jitter_s: g.jitter_s, noise_v: g.noise_v, delay_s: 40e-9 };
   // The same crossings captureEdges would solve; solved once per point, not once per seed. One
   // more than the buffer tells whether the buffer cut the ring short.

@@ -1,4 +1,4 @@
-// Period bias on the noiseless reference ring of measurement notes §2: f0 = 100 kHz (w0), Q = 50,
+// Period bias on the noiseless reference ring of docs/method.md §2: f0 = 100 kHz (w0), Q = 50,
 // A0 = 1 V, thresholds ±20 mV (±2 % of A0). Edges are exact crossings (host/src/sim), timed with
 // 10 as ticks so that quantisation (5e-18 s on 5e-4 s) sits far below 1 ppm.
 //

@@ -24,7 +24,7 @@ export const analysisSection: BenchSection = {
     const grid = runGrid(SEEDS_PER_POINT, progress);
     Object.assign(figures, efficiencyFigures(grid, notes));
 
-    progress("reference ring (notes §2): period bias");
+    progress("reference ring (docs/method.md §2): period bias");
     const rb = referenceBias();
     figures["analysis.bias_model_ppm"] = rb.model_ppm;
     figures["analysis.bias_line_ppm"] = rb.line_ppm;
