@@ -16,7 +16,7 @@ interface Case {
 /** A part of inductance L and quality Q on tank C, rung to about a0_v, through the simulator. */
 function capture(k: Case, seed: number, noise = { jitter_s: 2e-9, noise_v: 0.3e-3 }, maxEdges = 3000) {
   const { ring, q } = ringOfQ(k.l_h, k.c_f, k.q, k.a0_v);
-  const comp = { rising_v: k.thresholds_v[0], falling_v: k.thresholds_v[1], ...noise, delay_s: 40e-9 };
+  const comp = { rising_v: k.thresholds_v[0], falling_v: k.thresholds_v[1], ...noise, delay_rise_s: 40e-9, delay_fall_s: 40e-9 };
   const edges = captureEdges(ring, comp, { tick_hz: k.tick_hz, ppm: 0, dead_time_s: 0 }, new Random(seed), maxEdges, 10);
   const input: RingInput = { tick_hz: k.tick_hz, ticks: edges.ticks, levels: edges.levels, tank_c_f: k.c_f, thresholds_v: k.thresholds_v, tank_c_u_f: 0, timebase_u_rel: 0 };
   return { input, ring, q, comp };

@@ -60,7 +60,7 @@ describe("Cramér-Rao bound of the edge model (Kay 1993 §3.9)", () => {
     const k = ringOfQ(l_h, c_f, 40, 1);
     const ring = k.ring;
     const th: [number, number] = [0.035, -0.005];
-    const comp = { rising_v: th[0], falling_v: th[1], jitter_s: 8e-9, noise_v: 0.5e-3, delay_s: 40e-9 };
+    const comp = { rising_v: th[0], falling_v: th[1], jitter_s: 8e-9, noise_v: 0.5e-3, delay_rise_s: 40e-9, delay_fall_s: 40e-9 };
     const tick_hz = 64e6;
     const cr = crossingTimes(ring, th[0], th[1], 5000, 10);
     const bound = ringCramerRao(
@@ -92,7 +92,7 @@ describe("Cramér-Rao bound of the edge model (Kay 1993 §3.9)", () => {
     const k = ringOfQ(l_h, c_f, 100, 1);
     const ring = k.ring;
     const th: [number, number] = [0.035, -0.005];
-    const comp = { rising_v: th[0], falling_v: th[1], jitter_s: 8e-9, noise_v: 0.5e-3, delay_s: 40e-9 };
+    const comp = { rising_v: th[0], falling_v: th[1], jitter_s: 8e-9, noise_v: 0.5e-3, delay_rise_s: 40e-9, delay_fall_s: 40e-9 };
     let inL = 0, inQ = 0, inL1 = 0;
     for (let s = 0; s < 100; s++) {
       const e = captureEdges(ring, comp, { tick_hz: 64e6, ppm: 0, dead_time_s: 0 }, new Random(7000 + s), 5000, 10);

@@ -9,7 +9,7 @@ const TH: [number, number] = [0.035, -0.005];
 function ring(q: number, a0_v: number, maxEdges: number, seed: number, tick_hz = 64e6) {
   const l_h = 68e-6, c_f = 33e-9; // demo coil, about 106 kHz
   const wave = ringOfQ(l_h, c_f, q, a0_v).ring;
-  const comp = { rising_v: TH[0], falling_v: TH[1], jitter_s: 3e-9, noise_v: 0.2e-3, delay_s: 40e-9 };
+  const comp = { rising_v: TH[0], falling_v: TH[1], jitter_s: 3e-9, noise_v: 0.2e-3, delay_rise_s: 40e-9, delay_fall_s: 40e-9 };
   const e = captureEdges(wave, comp, { tick_hz, ppm: 0, dead_time_s: 0 }, new Random(seed), maxEdges, 10);
   return { tick_hz, ticks: e.ticks, levels: e.levels, tank_c_f: c_f, thresholds_v: TH } as RingInput;
 }
@@ -104,7 +104,7 @@ describe("diagnostics", () => {
     const c_f = 1e-9;
     const l_h = 1 / ((2 * Math.PI * f) ** 2 * c_f);
     const wave = ringOfQ(l_h, c_f, 100, 1).ring;
-    const comp = { rising_v: TH[0], falling_v: TH[1], jitter_s: 0.3e-9, noise_v: 0.2e-3, delay_s: 0 };
+    const comp = { rising_v: TH[0], falling_v: TH[1], jitter_s: 0.3e-9, noise_v: 0.2e-3, delay_rise_s: 0, delay_fall_s: 0 };
     const e = captureEdges(wave, comp, { tick_hz, ppm: 0, dead_time_s: 0 }, new Random(3), 5000, 10);
     const a = analyzeRing({ tick_hz, ticks: e.ticks, levels: e.levels, tank_c_f: c_f, thresholds_v: TH, tank_c_u_f: 0, timebase_u_rel: 0 });
     expect(a.warnings.map((w) => w.code)).toContain("POOR_FIT");

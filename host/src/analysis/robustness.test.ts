@@ -16,7 +16,7 @@ interface Edges {
 function choke(seed: number, tick_hz = 64e6, maxEdges = 3000, l_h = 220e-6, c_f = 22e-9, q = 60) {
   const rung = ringOfQ(l_h, c_f, q, 1);
   const ring = rung.ring;
-  const comp = { rising_v: 0.035, falling_v: -0.005, jitter_s: 3e-9, noise_v: 0.3e-3, delay_s: 40e-9 };
+  const comp = { rising_v: 0.035, falling_v: -0.005, jitter_s: 3e-9, noise_v: 0.3e-3, delay_rise_s: 40e-9, delay_fall_s: 40e-9 };
   const edges = captureEdges(ring, comp, { tick_hz, ppm: 0, dead_time_s: 0 }, new Random(seed), maxEdges, 10);
   return { edges, l_h, q: rung.q, c_f, tick_hz, period_ticks: (tick_hz * 2 * Math.PI) / ring.wd_rad_s };
 }
@@ -197,7 +197,7 @@ describe("the end of the ring", () => {
   function winding(seed: number, th: [number, number], maxEdges = 5000) {
     const l_h = 100e-3, c_f = 1e-9, tick_hz = 64e6;
     const { ring } = ringOfQ(l_h, c_f, 250, 1);
-    const comp = { rising_v: th[0], falling_v: th[1], jitter_s: 0.5 / tick_hz, noise_v: 0.3e-3, delay_s: 40e-9 };
+    const comp = { rising_v: th[0], falling_v: th[1], jitter_s: 0.5 / tick_hz, noise_v: 0.3e-3, delay_rise_s: 40e-9, delay_fall_s: 40e-9 };
     const edges = captureEdges(ring, comp, { tick_hz, ppm: 0, dead_time_s: 0 }, new Random(seed), maxEdges, 10);
     const inp = (e: Edges): RingInput => ({
       tick_hz, ticks: e.ticks, levels: e.levels, tank_c_f: c_f, thresholds_v: th, tank_c_u_f: 0, timebase_u_rel: 0,
@@ -255,7 +255,7 @@ describe("the end of the ring", () => {
     // little now and then), and the warning must name both Q values.
     const l_h = 150e-6, c_f = 47e-9, tick_hz = 64e6, th: [number, number] = [0.02, -0.02];
     const { ring } = ringOfQ(l_h, c_f, 5, 1);
-    const comp = { rising_v: th[0], falling_v: th[1], jitter_s: 0.5 / tick_hz, noise_v: 0.3e-3, delay_s: 40e-9 };
+    const comp = { rising_v: th[0], falling_v: th[1], jitter_s: 0.5 / tick_hz, noise_v: 0.3e-3, delay_rise_s: 40e-9, delay_fall_s: 40e-9 };
     let flagged = 0;
     for (let seed = 1; seed <= 100; seed++) {
       const e = captureEdges(ring, comp, { tick_hz, ppm: 0, dead_time_s: 0 }, new Random(seed), 5000, 10);

@@ -1,14 +1,20 @@
 // Comparator edges of a ring (docs/method.md §2). The comparator has a rising threshold VH
 // and a falling threshold VL (VH > VL: hysteresis), both shifted by its input offset, and starts
 // low when the switch opens. It goes high where v(t) crosses VH upward and low where v(t) crosses
-// VL downward. Crossing times are solved exactly on each monotonic stretch of the ring; then the
-// comparator's timing (fixed delay plus an overdrive-dependent part, jitter, band-limited input
-// noise acting through the ring's slope) and the timer (crystal error, tick quantisation, dead
-// time between captures, buffer size) are applied. Deterministic for a given Random state.
+// VL downward.
+//
+// Two noise models. The simulated tester's: continuous band-limited input noise, the decision
+// being the first passage of ring + noise (comparator-physics.ts), used by captureEdges whenever
+// the comparator has a noise bandwidth. The per-crossing model: crossing times solved exactly on
+// each monotonic stretch of the ring, one noise value per crossing (applyComparator), kept for
+// white noise and for the analysis benchmark's grid so its figures stay comparable. Both apply
+// the same timing (rise and fall delays, overdrive delay, jitter) and timer (crystal error, tick
+// quantisation, dead time between captures, buffer size). Deterministic for a given Random state.
 
 import type { DampedSine } from "../physics/ring.ts";
 import type { RingWave } from "../physics/ring-wave.ts";
 import { sineWave, waveExtremum, waveSlope, waveValue } from "../physics/ring-wave.ts";
+import { physicalEdges, ringWaveform } from "./comparator-physics.ts";
 import type { Random } from "./random.ts";
 
 export interface ComparatorModel {
@@ -23,13 +29,29 @@ export interface ComparatorModel {
   noise_v: number;
   /** Noise bandwidth (first-order), Hz; edges closer than 1/(2 pi bw) see correlated noise. Default: white. */
   noise_bw_hz?: number;
-  /** Constant propagation delay, seconds. */
-  delay_s: number;
+  /** Propagation delay of a low->high output transition, seconds. */
+  delay_rise_s: number;
+  /** Propagation delay of a high->low output transition, seconds (skew = rise - fall). */
+  delay_fall_s: number;
   /**
    * Overdrive-dependent delay: the comparator switches once the overdrive integrated over time
    * reaches this many volt-seconds, so a ramp of slope S adds sqrt(2 q / S). Default 0.
    */
   overdrive_v_s?: number;
+  /**
+   * How input noise decides an edge. "first-passage" (the default when noise_bw_hz is set, or
+   * when there is no noise): the first time ring + continuous noise reaches the threshold.
+   * "per-crossing": one noise value added to the threshold per crossing (the only choice for
+   * white noise, where a first passage is not defined).
+   */
+  noise_model?: "first-passage" | "per-crossing";
+}
+
+/** True when captureEdges decides this comparator's edges by first passage. */
+export function usesFirstPassage(comp: ComparatorModel): boolean {
+  if (comp.noise_model === "per-crossing") return false;
+  const bw = comp.noise_bw_hz;
+  return comp.noise_v === 0 || (bw !== undefined && Number.isFinite(bw) && bw > 0);
 }
 
 export interface TimerModel {
@@ -120,10 +142,16 @@ export function ringSlope(ring: Ring, t: number): number {
   return waveSlope(asWave(ring), t);
 }
 
-/** Captured edges of an exactly solved ring, with comparator timing and the timer applied. */
+/**
+ * Captured edges of an exactly solved ring, with comparator timing and the timer applied: by
+ * first passage (physicalEdges) when usesFirstPassage(comp), else per crossing.
+ */
 export function captureEdges(
   ring: Ring, comp: ComparatorModel, timer: TimerModel, rng: Random, max_edges: number, window_s: number,
 ): EdgeList {
+  if (usesFirstPassage(comp)) {
+    return physicalEdges(ringWaveform(ring), { ...comp, noise_bw_hz: comp.noise_bw_hz ?? 1e9 }, timer, rng, { max_edges, window_s });
+  }
   const w = asWave(ring);
   const offset = comp.offset_v ?? 0;
   // First-order (Ornstein-Uhlenbeck) input noise, sampled at each crossing attempt and added to
@@ -146,8 +174,8 @@ export function captureEdges(
 }
 
 /**
- * From exact threshold crossings (times, levels, ring slope at each) to captured ticks: delay,
- * overdrive delay, jitter, band-limited noise through the slope, crystal error, quantisation,
+ * From exact threshold crossings (times, levels, ring slope at each) to captured ticks: the
+ * level's delay, overdrive delay, jitter, band-limited noise through the slope, crystal error, quantisation,
  * dead time and the buffer's capacity.
  */
 export function applyComparator(
@@ -169,7 +197,8 @@ export function applyComparator(
     const slope = Math.abs(slopes[k]);
     const noiseShift = slope > 0 ? noise / slope : 0;
     const overdrive = comp.overdrive_v_s && slope > 0 ? Math.sqrt((2 * comp.overdrive_v_s) / slope) : 0;
-    const t = times[k] + comp.delay_s + overdrive + comp.jitter_s * rng.normal() + noiseShift;
+    const delay = levels[k] === 1 ? comp.delay_rise_s : comp.delay_fall_s;
+    const t = times[k] + delay + overdrive + comp.jitter_s * rng.normal() + noiseShift;
     if (t - lastT < timer.dead_time_s || t < 0) continue;
     lastT = t;
     ticks.push(Math.floor(t * rate));

@@ -88,7 +88,7 @@ export function preparePoint(g: GridPoint): PreparedPoint {
   const ring = k.ring;
   const [vh, vl] = thresholdsOf(g);
   // A fixed 40 ns propagation delay: constant delays move only the phase (docs/method.md §2).
-  const comp: ComparatorModel = { rising_v: vh, falling_v: vl, jitter_s: g.jitter_s, noise_v: g.noise_v, delay_s: 40e-9 };
+  const comp: ComparatorModel = { rising_v: vh, falling_v: vl, jitter_s: g.jitter_s, noise_v: g.noise_v, delay_rise_s: 40e-9, delay_fall_s: 40e-9 };
   // The same crossings captureEdges would solve; solved once per point, not once per seed. One
   // more than the buffer tells whether the buffer cut the ring short.
   const cr = crossingTimes(ring, vh, vl, g.max_edges + 1, 10);
