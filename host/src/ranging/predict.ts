@@ -1,13 +1,11 @@
 // Prediction for one drive-resistor x tank-capacitor setting (pure): what a pulse there would
 // do to the part and the resistor, what ring and how many usable edges it would give, and the
-// uncertainty of L and Q to expect. Physics: docs/method.md §1 (ring), §2-§3 (edges, bound),
-// §7 (flyback). The charge phase rings too (the part and tank form a parallel tank fed through
-// R), so the charge time covers both the L/R rise and that ring's decay.
+// uncertainty of L and Q to expect (bound-cache.ts). Physics: docs/method.md §1 (ring), §2-§3
+// (edges, bound), §7 (flyback). The charge phase rings too (the part and tank form a parallel
+// tank fed through R), so the charge time covers both the L/R rise and that ring's decay.
 
-import { ringCramerRao } from "../analysis/index.ts";
 import type { DeviceProfile } from "../device/profile.ts";
-import { sineWave } from "../physics/ring-wave.ts";
-import { crossingTimes } from "../sim/comparator-edges.ts";
+import { predictedRingBound, rangingWork } from "./bound-cache.ts";
 import type { PartEstimate } from "./estimate.ts";
 import { lossModel, thresholdScale } from "./estimate.ts";
 
@@ -75,6 +73,7 @@ const TICKS_PER_EDGE_MIN = 32;
 export function predictSetting(
   profile: DeviceProfile, est: PartEstimate, drive: number, tank: number, limits: PlanLimits, tankValue?: TankValue,
 ): SettingPrediction {
+  rangingWork.predictions++;
   const r = profile.drives[drive];
   const c = tankValue?.c_f ?? profile.tanks[tank].nominal_f;
   const u_c = tankValue?.u_f ?? (c * 0.01) / Math.sqrt(3);
@@ -176,18 +175,10 @@ export function chargePlan(
 /** Fit-only standard uncertainties of L and Q from the Cramér-Rao bound of the predicted edges. */
 function fitUncertainty(profile: DeviceProfile, est: PartEstimate, a0: number, alpha: number, w0: number, c: number, cycles: number): { l_rel: number; q_rel: number } {
   if (!(cycles >= 3) || !(w0 > alpha)) return { l_rel: Infinity, q_rel: Infinity };
-  const wd = Math.sqrt(w0 * w0 - alpha * alpha);
   const [vh, vl] = profile.thresholds_v;
-  const edges = crossingTimes(sineWave(a0, alpha, wd), vh, vl, profile.buffer_edges, 1e3);
-  if (edges.times.length < 6) return { l_rel: Infinity, q_rel: Infinity };
   const noise = est.noise ?? DEFAULT_NOISE;
-  const b = ringCramerRao(
-    { wd_rad_s: wd, alpha_per_s: alpha, a0_v: a0, tank_c_f: c },
-    { times_s: edges.times, levels: edges.levels },
-    { tick_hz: profile.tick_hz, sigma_t_s: noise.sigma_t_s, sigma_v_v: noise.sigma_v_v },
-    [vh, vl],
-  );
-  const l = 1 / (w0 * w0 * c);
-  const q = w0 / (2 * alpha);
-  return { l_rel: b.l_sd_h / l, q_rel: b.q_sd / q };
+  return predictedRingBound({
+    a0_v: a0, alpha_per_s: alpha, wd_rad_s: Math.sqrt(w0 * w0 - alpha * alpha), tank_c_f: c, vh_v: vh, vl_v: vl,
+    max_edges: profile.buffer_edges, tick_hz: profile.tick_hz, sigma_t_s: noise.sigma_t_s, sigma_v_v: noise.sigma_v_v,
+  });
 }
