@@ -51,7 +51,8 @@ function sessionScript(): string {
     extendedRecord(ring),
     ms(1, 2, 200, 8192, 1000, 2000),
     `rx ${hex("CR")}`,
-    ms(1, 2, 200, 8192, 1000, 2000), // refused: rest
+    ms(0, 0, 2000, 10, 1, 100), // the longest pulse on the 10 ohm resistor...
+    ms(0, 0, 2000, 10, 1, 100), // ...and another at once: refused, rest
     `idle ${25 * MS_TICKS}`,
     extendedRecord({ ticks: ring.ticks.slice(0, 40), levels: ring.levels.slice(0, 40) }),
     record("heard", [3000, 9000], [6001, 18000]), // the ring goes on after the limit

@@ -102,7 +102,7 @@ export function predictSetting(
   const cycles = a0 > h && q > 0.5 ? (q / Math.PI) * Math.log(a0 / h) : 0;
   const f = w0 / (2 * Math.PI);
   const tpp = profile.tick_hz / f;
-  const rest_s = Math.max(profile.min_rest_ms * 1e-3, profile.rest_per_charge * charge.charge_us * 1e-6);
+  const rest_s = restBetweenPulses_s(profile, drive, charge.charge_us);
   const energy = charge.i_final * charge.i_final * r.ohm * charge.charge_us * 1e-6;
   const avgPower = energy / (charge.charge_us * 1e-6 + rest_s);
   const edgeRateLimit = profile.tick_hz / TICKS_PER_EDGE_MIN;
@@ -130,6 +130,28 @@ function refusal(p: SettingPrediction, limits: PlanLimits, a0_worst: number): st
   if (p.resistor_avg_power_w > p.resistor_rating_w) return `the drive resistor would average ${p.resistor_avg_power_w.toFixed(2)} W, over its ${p.resistor_rating_w} W rating`;
   if (p.usable_edges < 8) return `too few edges would clear the comparator thresholds (${p.usable_edges.toFixed(0)})`;
   return "";
+}
+
+/**
+ * Rest the tester owes between repeats of a pulse of `charge_us` on `drive`, s. With the
+ * profile's thermal time constant (docs/protocol.md, "Profile frames"), the steady state of the
+ * tester's first-order model: after each pulse the heat is H = P tau (1 - a) / (1 - a b), with
+ * a = e^(-t/tau) over the charge t and b = e^(-rest/tau), and it must stay within
+ * min(E_pulse, P_cont tau); P is the worst case, the whole supply across the resistor. Older
+ * firmware: its fixed floor and duty-cycle rule.
+ */
+export function restBetweenPulses_s(profile: DeviceProfile, drive: number, charge_us: number): number {
+  const r = profile.drives[drive];
+  const tau = r.thermal_time_constant_s;
+  if (tau === undefined || r.energy_rating_j === undefined) {
+    return Math.max(profile.min_rest_ms * 1e-3, profile.rest_per_charge * charge_us * 1e-6);
+  }
+  const ptau = (profile.supply_v ** 2 / r.ohm) * tau;
+  const budget = Math.min(r.energy_rating_j, r.power_rating_w * tau);
+  const a = Math.exp(-(charge_us * 1e-6) / tau);
+  const b = (1 - (ptau * (1 - a)) / budget) / a;
+  if (b >= 1) return 0;
+  return b > 0 ? -tau * Math.log(b) : Infinity;
 }
 
 /**
