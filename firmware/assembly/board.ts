@@ -16,15 +16,30 @@ export const CLAMP_MV: i32 = 36000;
 
 /**
  * Drive resistors: value in milliohms, continuous power rating in mW, single-pulse energy rating
- * in µJ. The firmware derives each resistor's charge-time limit and duty-cycle rest from these
- * (interlocks.ts), assuming the worst case: the whole supply across the resistor (a shorted part).
+ * in µJ, thermal time constant in µs. The firmware derives each resistor's charge-time limit and
+ * the rest between pulses from these (interlocks.ts), assuming the worst case: the whole supply
+ * across the resistor (a shorted part).
+ *
+ * The rest follows the resistor makers' rule for repeated pulses: a pulse on a resistor that is
+ * already warm counts as more energy the closer its mean dissipation is to the continuous rating
+ * (E_equivalent = E / (1 - P_mean / P_rated), which must stay within the single-pulse rating,
+ * with P_mean <= P_rated; Vishay Sfernice DTO25 datasheet, doc. 51054, "Repetitive or superimposed
+ * pulses"). The firmware tracks that mean as a first-order thermal model, the heat in the resistor
+ * decaying with the time constant below.
+ *
+ * The ratings are those of the parts listed in docs/hardware.md. The time constants are not
+ * datasheet figures (bench practice): each is the single-pulse rating over the continuous one,
+ * the time constant of a one-node model that meets both ratings at once (from cold it takes one
+ * rated pulse; pulse after pulse it holds the continuous rating). A longer one would let a burst
+ * of pulses count as one long pulse beyond the single-pulse rating.
  */
 export const DRIVE_COUNT: i32 = 4;
 export const DRIVE_MILLIOHM: StaticArray<i32> = [10000, 100000, 1000000, 10000000];
 export const DRIVE_POWER_MW: StaticArray<i32> = [1000, 500, 250, 250];
-// 10 ohm at 5 V dissipates 2.5 W: 5 mJ allows 2 ms. The larger resistors dissipate little and
-// reach MAX_CHARGE_US, which bounds how long the switch is ever closed.
+// 10 ohm at 5 V dissipates 2.5 W: 5 mJ allows 2 ms; 100 ohm dissipates 0.25 W: 20 ms. The larger
+// resistors dissipate little and reach MAX_CHARGE_US, which bounds how long the switch is ever closed.
 export const DRIVE_ENERGY_UJ: StaticArray<i32> = [5000, 5000, 2500, 250];
+export const DRIVE_TAU_US: StaticArray<i32> = [5000, 10000, 10000, 1000];
 /** Longest charge time on any resistor: keeps the flyback energy and the wait bounded. */
 export const MAX_CHARGE_US: i32 = 100000;
 
@@ -38,9 +53,6 @@ export const THRESHOLD_FALLING_UV: i32 = -5000;
 
 /** Edge buffer size, timing limits. */
 export const BUFFER_EDGES: i32 = 8192;
-export const MIN_REST_MS: i32 = 20;
-/** The rest after a pulse is also at least this many times its charge time (duty-cycle limit). */
-export const REST_PER_CHARGE: i32 = 10;
 export const MAX_TIMEOUT_MS: i32 = 5000;
 export const SETTLE_US: i32 = 500;
 

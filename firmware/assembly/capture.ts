@@ -8,7 +8,7 @@ import {
 import * as board from "./board.ts";
 import { counters } from "./counters.ts";
 import { halCaptureBits, halCaptureCount, halNow, halPulse, halSelect, halStop } from "./hal.ts";
-import { restRemaining, startRest } from "./interlocks.ts";
+import { bookPulse } from "./interlocks.ts";
 import * as ring from "./ring-watch.ts";
 import * as ext from "./timer-extend.ts";
 
@@ -66,9 +66,9 @@ export function stopAll(): void {
   phase = PHASE_IDLE;
 }
 
-/** What every pulse leaves behind: the rest it costs and, if the ring may go on, a watch. */
+/** What every pulse leaves behind: heat in its resistor and, if the ring may go on, a watch. */
 function afterPulse(ringMayContinue: bool): void {
-  startRest(settings.drive, settings.chargeUs);
+  bookPulse(settings.drive, settings.chargeUs);
   if (ringMayContinue) ring.watch(settings.quietUs);
 }
 
@@ -167,9 +167,6 @@ export function reported(): void {
 
 /** Ticks until the idle firmware next has something to do (0: nothing until input). */
 export function idleWait(): i32 {
-  const rest: i32 = restRemaining();
-  const watch: i32 = ring.nextLook();
-  if (rest == 0) return watch;
-  if (watch == 0) return rest;
-  return rest < watch ? rest : watch;
+  // The rest needs no wake-up: the thermal budget is judged when the next pulse is asked for.
+  return ring.nextLook();
 }

@@ -10,7 +10,7 @@ import * as board from "./board.ts";
 import * as capture from "./capture.ts";
 import { counters } from "./counters.ts";
 import { halDeviceId, halNow } from "./hal.ts";
-import { maxChargeUs, restPending, restRemaining } from "./interlocks.ts";
+import { maxChargeUs, restOwedTicks } from "./interlocks.ts";
 import { LINE_DAMAGED, line, out, send, sendError, sendErrorDetail, sendOk } from "./link.ts";
 import { sendProfile } from "./profile.ts";
 import * as ring from "./ring-watch.ts";
@@ -103,7 +103,8 @@ function measure(): void {
   if (reader.error != 0) return sendError(ERR_ARGUMENT, "MS");
   // Interlocks: the host cannot talk the firmware past these.
   if (chargeUs > maxChargeUs(drive)) return sendError(ERR_CHARGE_LIMIT, "MS");
-  if (restPending()) return sendErrorDetail(ERR_REST, "MS", ticksToMsCeil(restRemaining()));
+  const rest: i32 = restOwedTicks(drive, chargeUs);
+  if (rest > 0) return sendErrorDetail(ERR_REST, "MS", ticksToMsCeil(rest));
   const ringing: i32 = ring.remaining();
   if (ringing > 0) return sendErrorDetail(ERR_RINGING, "MS", ticksToMsCeil(ringing));
   if (!captureUsable) return sendError(ERR_CAPTURE_FAULT, "MS");

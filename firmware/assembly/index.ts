@@ -48,3 +48,16 @@ export function fw_poll(): i32 {
 export function fw_busy(): i32 {
   return busy() ? 1 : 0;
 }
+
+// The end of everything the module allocated while it started (this file's top level runs after
+// every module it imports, so all buffers exist by now): one empty block marks it.
+const memoryEnd: usize = heap.alloc(0) + 12;
+
+/**
+ * Bytes of linear memory the firmware uses: its data and every buffer, all allocated while the
+ * module started (it allocates nothing later). A C port backs linear memory with at least this
+ * much and checks it once at start (docs/porting.md, "The C build").
+ */
+export function fw_memory_used(): i32 {
+  return <i32>memoryEnd;
+}

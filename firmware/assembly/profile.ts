@@ -3,7 +3,7 @@
 // not know (docs/protocol.md).
 
 import * as board from "./board.ts";
-import { maxChargeUs, restTicksAfter } from "./interlocks.ts";
+import { maxChargeUs, restAfterMaxUs } from "./interlocks.ts";
 import { out, send } from "./link.ts";
 
 export function sendProfile(captureBits: i32): void {
@@ -18,8 +18,9 @@ export function sendProfile(captureBits: i32): void {
     out.putInt(board.DRIVE_POWER_MW[i]);
     out.putInt(maxUs);
     out.putInt(board.DRIVE_ENERGY_UJ[i]);
-    // Rest owed after the longest allowed pulse, ms (rounded up): the resistor's duty cycle.
-    out.putInt((restTicksAfter(i, maxUs) + board.TICKS_PER_MS - 1) / board.TICKS_PER_MS);
+    // Rest owed after the longest allowed pulse on a cold resistor before another, ms (rounded up).
+    out.putInt((restAfterMaxUs(i) + 999) / 1000);
+    out.putInt(board.DRIVE_TAU_US[i]);
     send();
   }
   for (let i: i32 = 0; i < board.TANK_COUNT; i++) {
@@ -38,8 +39,10 @@ export function sendProfile(captureBits: i32): void {
   send();
   out.begin("PL");
   out.putInt(board.BUFFER_EDGES);
-  out.putInt(board.MIN_REST_MS);
-  out.putInt(board.REST_PER_CHARGE);
+  // No fixed rest and no duty-cycle rule: the rest comes from each resistor's thermal budget
+  // (PR). The two fields stay, as zeros, for hosts that read the fields after them.
+  out.putInt(0);
+  out.putInt(0);
   out.putInt(board.MAX_TIMEOUT_MS);
   out.putInt(board.SETTLE_US);
   out.putInt(board.MAX_CHARGE_US);

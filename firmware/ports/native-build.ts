@@ -7,6 +7,7 @@ import { execFileSync, spawnSync } from "node:child_process";
 import { copyFileSync, existsSync, mkdirSync, statSync } from "node:fs";
 import { dirname, join } from "node:path";
 import { fileURLToPath } from "node:url";
+import { firmwareMemoryUsed, memoryBacking } from "./memory-size.ts";
 
 const PORTS = dirname(fileURLToPath(import.meta.url));
 const FIRMWARE = join(PORTS, "..");
@@ -31,8 +32,18 @@ export const hasHostGcc = found("gcc");
 export const hasArmGcc = found("arm-none-eabi-gcc") &&
   spawnSync("arm-none-eabi-gcc", ["-print-file-name=nano.specs"], { encoding: "utf8" }).stdout.trim() !== "nano.specs";
 
-/** Flags for compiling the generated C: our runtime's configuration, forced in first. */
-const GENERATED_FLAGS = ["-std=c11", "-Werror=implicit-function-declaration", "-include", join(PORTS, "runtime", "henrytick-rt.h")];
+/** Bytes behind the firmware's linear memory in the native builds (memory-size.ts). */
+export function linearMemoryBacking(): number {
+  return memoryBacking(firmwareMemoryUsed());
+}
+
+/**
+ * Flags for compiling the generated C: our runtime's configuration, forced in first, with the
+ * linear memory backed by what the current firmware uses (or by `backing_bytes` when given).
+ */
+function generatedFlags(backing_bytes = linearMemoryBacking()): string[] {
+  return ["-std=c11", "-Werror=implicit-function-declaration", `-DHT_RT_MEMORY_BYTES=${backing_bytes}u`, "-include", join(PORTS, "runtime", "henrytick-rt.h")];
+}
 const INCLUDES = (dir: string) => ["-I", dir, "-I", join(PORTS, "runtime")];
 
 /** Runs wasm2c on the release wasm (if newer than its output); returns the output directory. */
@@ -53,25 +64,31 @@ function gcc(cc: string, args: string[]): void {
   if (r.status !== 0) throw new Error(`${cc} failed:\n${r.stderr}`);
 }
 
-/** Builds the host harness (firmware/ports/host/harness.c); returns the executable's path. */
-export function buildHostHarness(): string {
+/**
+ * Builds the host harness (firmware/ports/host/harness.c); returns the executable's path. With
+ * `backing_bytes` the linear memory is backed by that many bytes instead of the measured size.
+ */
+export function buildHostHarness(backing_bytes?: number): string {
   const gen = generateC();
-  const out = join(NATIVE_DIR, "harness");
+  const out = join(NATIVE_DIR, backing_bytes === undefined ? "harness" : `harness-${backing_bytes}`);
   gcc("gcc", [
     // The harness reads its script with POSIX getline/strtok_r; the forced include comes first,
     // so the feature macro must be on the command line.
-    "-O2", "-Wall", "-D_POSIX_C_SOURCE=200809L", ...GENERATED_FLAGS, ...INCLUDES(gen), "-o", out,
+    "-O2", "-Wall", "-D_POSIX_C_SOURCE=200809L", ...generatedFlags(backing_bytes), ...INCLUDES(gen), "-o", out,
     join(gen, "henrytick.c"), join(PORTS, "runtime", "henrytick-rt.c"), join(PORTS, "host", "harness.c"),
   ]);
   return out;
 }
+
+/** Bytes behind the linear memory in the runtime's own checks: less than a page, on purpose. */
+export const RUNTIME_CHECK_BACKING_BYTES = 4096;
 
 /** Builds the runtime's own checks (firmware/ports/host/runtime-check.c). */
 export function buildRuntimeCheck(): string {
   const gen = generateC();
   const out = join(NATIVE_DIR, "runtime-check");
   gcc("gcc", [
-    "-O2", "-Wall", "-Wextra", ...GENERATED_FLAGS, ...INCLUDES(gen), "-o", out,
+    "-O2", "-Wall", "-Wextra", ...generatedFlags(RUNTIME_CHECK_BACKING_BYTES), ...INCLUDES(gen), "-o", out,
     join(PORTS, "runtime", "henrytick-rt.c"), join(PORTS, "host", "runtime-check.c"),
   ]);
   return out;
@@ -82,7 +99,7 @@ export function buildTemplateHost(): string {
   const gen = generateC();
   const out = join(NATIVE_DIR, "template-host");
   gcc("gcc", [
-    "-O2", "-Wall", "-Wextra", ...GENERATED_FLAGS, ...INCLUDES(gen), "-o", out,
+    "-O2", "-Wall", "-Wextra", ...generatedFlags(), ...INCLUDES(gen), "-o", out,
     join(gen, "henrytick.c"), join(PORTS, "runtime", "henrytick-rt.c"), join(PORTS, "template", "port-template.c"),
   ]);
   return out;
@@ -104,7 +121,7 @@ export function buildArm(target: keyof typeof ARM_TARGETS): ArmSizes {
   const gen = generateC();
   const out = join(NATIVE_DIR, `template-${target}.elf`);
   gcc("arm-none-eabi-gcc", [
-    ...ARM_TARGETS[target], "-Os", "-DNDEBUG", "-ffunction-sections", "-fdata-sections", ...GENERATED_FLAGS, ...INCLUDES(gen),
+    ...ARM_TARGETS[target], "-Os", "-DNDEBUG", "-ffunction-sections", "-fdata-sections", ...generatedFlags(), ...INCLUDES(gen),
     "-nostartfiles", "--specs=nano.specs", "--specs=nosys.specs", "-Wl,--gc-sections", "-T", join(PORTS, "arm", "generic.ld"),
     "-o", out,
     join(gen, "henrytick.c"), join(PORTS, "runtime", "henrytick-rt.c"), join(PORTS, "template", "port-template.c"),

@@ -108,17 +108,18 @@ describe("firmware commands", () => {
   });
 
   it("enforces the rest between pulses and says how long remains", () => {
-    const link = new SimLink();
-    link.send("MS", 1, 2, 200, 8192, 1000, 2000);
-    const refused = link.send("MS", 1, 2, 200, 8192, 1000, 2000);
+    // The longest pulse on the 10 ohm resistor twice: the second must wait for it to cool.
+    const link = new SimLink({ part: null });
+    link.send("MS", 0, 3, 2000, 10, 1, 1000);
+    const refused = link.send("MS", 0, 3, 2000, 10, 1, 1000);
     expect(refused).toHaveLength(1);
     expect(refused[0].tag).toBe("ER");
     expect(Number(refused[0].fields[0])).toBe(ERR_REST);
     const ms = Number(refused[0].fields[2]);
     expect(ms).toBeGreaterThan(0);
-    expect(ms).toBeLessThanOrEqual(20); // MIN_REST_MS 20 ms dominates 10 x 200 µs
+    expect(ms).toBeLessThanOrEqual(6); // the profile's rest after the longest pulse (PR field 6)
     link.sim.advance(ms / 1000);
-    expect(show(link.send("MS", 1, 2, 200, 8192, 1000, 2000)[0])).toBe("OK MS");
+    expect(show(link.send("MS", 0, 3, 2000, 10, 1, 1000)[0])).toBe("OK MS");
     expect(link.sim.stats.pulses).toBe(2);
   });
 
@@ -177,8 +178,8 @@ describe("firmware commands", () => {
   it("counts measurements, faults, refused commands and lost bytes", () => {
     const link = new SimLink();
     expect(link.send("CN").map(show)).toEqual(["CT 0 0 0 0", "OK CN"]);
-    link.send("MS", 1, 2, 200, 8192, 1000, 2000);
-    link.send("MS", 1, 2, 200, 8192, 1000, 2000); // refused: rest
+    link.send("MS", 0, 3, 2000, 10, 1, 1000);
+    link.send("MS", 0, 3, 2000, 10, 1, 1000); // refused: rest
     link.raw(text("ZZ") + "garbage\n");
     link.sim.fw.fw_rx_overrun();
     link.raw("\n");

@@ -15,7 +15,7 @@ const exports = WebAssembly.Module.exports(mod).map((e) => e.name);
 describe("HAL contract", () => {
   it("imports only functions from module hal, one memory page exported, nothing else", () => {
     expect(imports.every((i) => i.module === "hal" && i.kind === "function")).toBe(true);
-    expect(exports.sort()).toEqual(["fw_busy", "fw_init", "fw_poll", "fw_rx", "fw_rx_overrun", "memory"]);
+    expect(exports.sort()).toEqual(["fw_busy", "fw_init", "fw_memory_used", "fw_poll", "fw_rx", "fw_rx_overrun", "memory"]);
   });
 
   it.each(imports.map((i) => i.name))("hal.%s is documented and implemented by every port", (name) => {

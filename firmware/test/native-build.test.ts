@@ -10,7 +10,8 @@ import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { encodeCommand } from "../../host/src/device/frames.ts";
 import { SimTester } from "../../host/src/sim/sim-tester.ts";
-import { NATIVE_DIR, buildArm, buildHostHarness, buildRuntimeCheck, buildTemplateHost, hasArmGcc, hasHostGcc, hasWasm2c } from "../ports/native-build.ts";
+import { MEMORY_MARGIN_BYTES, firmwareMemoryUsed, memoryBacking } from "../ports/memory-size.ts";
+import { NATIVE_DIR, buildArm, buildHostHarness, buildRuntimeCheck, buildTemplateHost, hasArmGcc, hasHostGcc, hasWasm2c, linearMemoryBacking } from "../ports/native-build.ts";
 import { rawEntries } from "./capture-stream.ts";
 import { ScriptedPort } from "./scripted-port.ts";
 
@@ -50,7 +51,8 @@ function sessionScript(): string {
     extendedRecord(ring),
     ms(1, 2, 200, 8192, 1000, 2000),
     `rx ${hex("CR")}`,
-    ms(1, 2, 200, 8192, 1000, 2000), // refused: rest
+    ms(0, 0, 2000, 10, 1, 100), // the longest pulse on the 10 ohm resistor...
+    ms(0, 0, 2000, 10, 1, 100), // ...and another at once: refused, rest
     `idle ${25 * MS_TICKS}`,
     extendedRecord({ ticks: ring.ticks.slice(0, 40), levels: ring.levels.slice(0, 40) }),
     record("heard", [3000, 9000], [6001, 18000]), // the ring goes on after the limit
@@ -86,10 +88,15 @@ function rawScript(): string {
   return lines.join("\n") + "\n";
 }
 
-function runBoth(name: string, script: string): { wasm: Buffer; c: Buffer } {
+function writeScript(name: string, script: string): string {
   mkdirSync(NATIVE_DIR, { recursive: true });
   const file = join(NATIVE_DIR, `${name}.script`);
   writeFileSync(file, script);
+  return file;
+}
+
+function runBoth(name: string, script: string): { wasm: Buffer; c: Buffer } {
+  const file = writeScript(name, script);
   const wasm = Buffer.from(ScriptedPort.runScript(script).output);
   const r = spawnSync(buildHostHarness(), [file], { maxBuffer: 64 << 20 });
   if (r.status !== 0) throw new Error(`harness exited ${r.status}: ${r.stderr}`);
@@ -118,8 +125,36 @@ describe(`native C build (wasm2c)${nativeNote}`, () => {
   it.skipIf(!canNative)(`runtime: bounded memory, refused growth, traps through the port's hook${nativeNote}`, () => {
     const r = spawnSync(buildRuntimeCheck(), [], { encoding: "utf8" });
     expect(r.stdout).not.toContain("FAIL");
-    expect(r.stdout.trim().split("\n")).toHaveLength(10);
+    expect(r.stdout.trim().split("\n")).toHaveLength(11);
     expect(r.status).toBe(0);
+  });
+
+  it.skipIf(!canNative)(`backs linear memory with the firmware's high-water mark plus ${MEMORY_MARGIN_BYTES} B, not the whole page${nativeNote}`, () => {
+    // The byte-identical runs above use this backing; here: it is what the firmware reports it
+    // allocated (rounded up to 1 KiB after the margin), well under the 64 KiB page.
+    const used = firmwareMemoryUsed();
+    const backing = linearMemoryBacking();
+    expect(backing).toBe(memoryBacking(used));
+    expect(backing - used).toBeGreaterThanOrEqual(MEMORY_MARGIN_BYTES);
+    expect(backing - used).toBeLessThan(MEMORY_MARGIN_BYTES + 1024);
+    expect(backing).toBeLessThan(65536);
+  });
+
+  it.skipIf(!canNative)(`a backing smaller than the firmware's memory traps at start, before any output${nativeNote}`, () => {
+    const file = writeScript("short-memory", `rx ${hex("ID")}\n`);
+    const used = firmwareMemoryUsed();
+    // 1 KiB short: the module's own start-up (zeroing the edge buffer) runs off the end. Eight
+    // bytes short: start-up fits (the last block's payload is never written), the check at start
+    // catches it.
+    for (const backing of [Math.floor(used / 1024) * 1024 - 1024, Math.floor((used - 1) / 8) * 8]) {
+      const r = spawnSync(buildHostHarness(backing), [file], { encoding: "utf8" });
+      expect(r.status, `backing ${backing}`).toBe(3);
+      expect(r.stderr).toContain("out-of-bounds memory access");
+      expect(r.stdout).toBe("");
+    }
+    const ok = spawnSync(buildHostHarness(memoryBacking(used)), [file], { encoding: "utf8" });
+    expect(ok.status).toBe(0);
+    expect(ok.stdout).toMatch(/^ID henrytick /);
   });
 
   it.skipIf(!canNative)(`compiles and links the template port with the host compiler${nativeNote}`, () => {
@@ -128,9 +163,11 @@ describe(`native C build (wasm2c)${nativeNote}`, () => {
 });
 
 describe(`Cortex-M builds of the template port${armNote}`, () => {
-  it.skipIf(!(canNative && hasArmGcc)).each(["armv6m", "armv7em"] as const)(`links for %s with the linear memory in .bss${armNote}`, (target) => {
+  it.skipIf(!(canNative && hasArmGcc)).each(["armv6m", "armv7em"] as const)(`links for %s with the linear memory's backing in .bss${armNote}`, (target) => {
     const s = buildArm(target);
-    expect(s.bss_bytes).toBeGreaterThanOrEqual(65536); // the firmware's one page lives in RAM
+    const backing = linearMemoryBacking();
+    expect(s.bss_bytes).toBeGreaterThanOrEqual(backing); // the backed part of the page lives in RAM
+    expect(s.bss_bytes).toBeLessThan(backing + 4096); // and little else: not the whole 64 KiB page
     expect(s.text_bytes).toBeGreaterThan(0);
   });
 });

@@ -44,7 +44,10 @@ export class ScriptedPort {
   output: number[] = [];
   /** HAL activity, for interlock tests. */
   readonly log = { pulses: 0, listens: 0, stops: 0, selects: 0, switchClosed: false };
+  /** Every switch closing: ticks since the port started (not wrapped) and the charge asked for. */
+  readonly pulseLog: { at_ticks: number; charge_ticks: number }[] = [];
   private now = 0; // u32
+  private sinceStart = 0; // the same time, not wrapped
   private deviceId = 0;
   private bits = 0;
   private captures: Record[] = [];
@@ -109,6 +112,7 @@ export class ScriptedPort {
 
   idle(ticks: number): void {
     this.now = (this.now + ticks) >>> 0;
+    this.sinceStart += ticks;
     this.run();
   }
 
@@ -121,6 +125,7 @@ export class ScriptedPort {
       const wait = this.fw.fw_poll() | 0;
       if (wait <= 0 || this.fw.fw_busy() === 0) return;
       this.now = (this.now + wait) >>> 0;
+      this.sinceStart += wait;
     }
     throw new Error("scripted firmware did not go idle");
   }
@@ -142,6 +147,7 @@ export class ScriptedPort {
         else {
           this.log.pulses++;
           this.log.switchClosed = true;
+          this.pulseLog.push({ at_ticks: this.sinceStart, charge_ticks: charge });
         }
         this.active = { ...r, openTick: (this.now + charge) >>> 0, buf, capacity, written: 0, stopped: false };
       },

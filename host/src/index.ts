@@ -5,6 +5,7 @@ export { DeviceClient } from "./device/client.ts";
 export type { MeasureSettings, ClientOptions } from "./device/client.ts";
 export type { DeviceIdentity, DeviceProfile } from "./device/profile.ts";
 export { CodedError } from "./coded-error.ts";
+export { packageVersion } from "./version.ts";
 export { DeviceError, DeviceTimeoutError } from "./device/errors.ts";
 export { ProtocolError } from "./device/frames.ts";
 export { TransportError } from "./transport/transport.ts";

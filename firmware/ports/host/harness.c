@@ -152,6 +152,7 @@ static void start_firmware(void) {
   Z_henrytick_init_module();
   if (!HT_RT_TRY()) guard_failed();
   Z_henrytick_instantiate(&fw, &hal);
+  ht_rt_require_memory(Z_henrytickZ_fw_memory_used(&fw));
   Z_henrytickZ_fw_init(&fw);
   HT_RT_DONE();
 }

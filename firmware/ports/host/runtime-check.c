@@ -1,5 +1,6 @@
 /*
- * Checks of the runtime on its own (no firmware): bounded memory, refused growth, function-type
+ * Checks of the runtime on its own (no firmware): bounded memory backed by less than a page
+ * (built with HT_RT_MEMORY_BYTES = 4096), refused growth, the check at start, function-type
  * indices, and the trap path (hook first, then back to the guarded call site). Prints one line per
  * check, "ok <name>" or "FAIL <name>", and exits non-zero on any failure.
  */
@@ -27,10 +28,22 @@ int main(void) {
 
   wasm_rt_memory_t mem;
   wasm_rt_allocate_memory(&mem, 1, 1);
-  check(mem.size == 65536 && mem.pages == 1 && mem.data != 0, "one page of linear memory");
+  check(mem.size == HT_RT_MEMORY_BYTES && HT_RT_MEMORY_BYTES < 65536 && mem.pages == 1 && mem.data != 0,
+        "one page of linear memory, backed by HT_RT_MEMORY_BYTES");
   check(((uintptr_t)mem.data & 7u) == 0, "linear memory 8-byte aligned");
   check(wasm_rt_grow_memory(&mem, 1) == (uint32_t)-1 && mem.pages == 1, "growth beyond one page refused");
   check(wasm_rt_grow_memory(&mem, 0) == 1, "growth by zero pages reports the size");
+
+  volatile int fits = 0; /* set between setjmp and longjmp */
+  if (HT_RT_TRY()) {
+    ht_rt_require_memory(HT_RT_MEMORY_BYTES);
+    fits = 1;
+    ht_rt_require_memory(HT_RT_MEMORY_BYTES + 1); /* one byte more than the backing: must trap */
+    HT_RT_DONE();
+    fits = 2;
+  }
+  check(fits == 1 && hook_calls == 1 && hook_code == WASM_RT_TRAP_OOB, "check at start: a firmware larger than the backing traps");
+  hook_calls = 0;
 
   wasm_rt_memory_t second;
   int returned = 0;
@@ -56,6 +69,6 @@ int main(void) {
 
   wasm_rt_free_memory(&mem);
   wasm_rt_allocate_memory(&second, 1, 1);
-  check(second.size == 65536, "memory can be taken again after it is freed (re-instantiation)");
+  check(second.size == HT_RT_MEMORY_BYTES, "memory can be taken again after it is freed (re-instantiation)");
   return failures == 0 ? 0 : 1;
 }

@@ -15,8 +15,8 @@ uint32_t wasm_rt_call_stack_depth = 0;
 
 static int initialized = 0;
 static int memory_taken = 0;
-/* The linear memory. Word-aligned so that the firmware's i32 edge buffer can be read by DMA. */
-static uint8_t linear_memory[HT_RT_MEMORY_PAGES * HT_RT_PAGE_BYTES] __attribute__((aligned(8)));
+/* The linear memory's backing. Word-aligned so that DMA can write the firmware's i32 edge buffer. */
+static uint8_t linear_memory[HT_RT_MEMORY_BYTES] __attribute__((aligned(8)));
 
 void wasm_rt_init(void) {
   initialized = 1;
@@ -82,25 +82,34 @@ uint32_t wasm_rt_register_func_type(uint32_t params, uint32_t results, ...) {
   return func_type_count++;
 }
 
+/* Bytes of the page that are backed: the generated code bounds-checks every access against it. */
+static uint32_t backed_bytes(uint32_t pages) {
+  uint64_t page_bytes = (uint64_t)pages * HT_RT_PAGE_BYTES;
+  return page_bytes < HT_RT_MEMORY_BYTES ? (uint32_t)page_bytes : HT_RT_MEMORY_BYTES;
+}
+
 void wasm_rt_allocate_memory(wasm_rt_memory_t* memory, uint32_t initial_pages, uint32_t max_pages) {
   /* Bounded memory: one static region, handed out once, never more than it holds. */
   if (memory_taken || initial_pages > HT_RT_MEMORY_PAGES) wasm_rt_trap(WASM_RT_TRAP_OOB);
   (void)max_pages;
   memory_taken = 1;
-  memset(linear_memory, 0, initial_pages * HT_RT_PAGE_BYTES);
+  memset(linear_memory, 0, sizeof linear_memory);
   memory->data = linear_memory;
-  memory->pages = initial_pages;
+  memory->pages = initial_pages; /* what memory.size reports: the module's own view */
   memory->max_pages = HT_RT_MEMORY_PAGES;
-  memory->size = initial_pages * HT_RT_PAGE_BYTES;
+  memory->size = backed_bytes(initial_pages);
 }
 
 uint32_t wasm_rt_grow_memory(wasm_rt_memory_t* memory, uint32_t delta) {
   uint32_t old = memory->pages;
   if (delta > HT_RT_MEMORY_PAGES - old) return (uint32_t)-1; /* the wasm way to say "no" */
-  memset(linear_memory + old * HT_RT_PAGE_BYTES, 0, delta * HT_RT_PAGE_BYTES);
   memory->pages = old + delta;
-  memory->size = memory->pages * HT_RT_PAGE_BYTES;
+  memory->size = backed_bytes(memory->pages);
   return old;
+}
+
+void ht_rt_require_memory(uint32_t used_bytes) {
+  if (used_bytes > HT_RT_MEMORY_BYTES) wasm_rt_trap(WASM_RT_TRAP_OOB);
 }
 
 void wasm_rt_free_memory(wasm_rt_memory_t* memory) {

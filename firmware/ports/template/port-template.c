@@ -96,6 +96,8 @@ void ht_port_trap(wasm_rt_trap_t code) {
 
 static void start_firmware(void) {
   Z_henrytick_instantiate(&fw, &hal);
+  /* The linear memory's backing must hold what the firmware allocated: traps (switch open) if not. */
+  ht_rt_require_memory(Z_henrytickZ_fw_memory_used(&fw));
   Z_henrytickZ_fw_init(&fw);
 }
 

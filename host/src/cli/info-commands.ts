@@ -21,9 +21,12 @@ export async function runProfile(args: string[]): Promise<number> {
       `   timer        ${formatSi(profile.tick_hz, "Hz", 4)}, buffer ${profile.buffer_edges} edges`,
       `   thresholds   rising ${formatSi(profile.thresholds_v[0], "V", 3)}, falling ${formatSi(profile.thresholds_v[1], "V", 3)}`,
       `   supply       ${formatSi(profile.supply_v, "V", 3)}, clamp ${formatSi(profile.clamp_v, "V", 3)}`,
-      ...profile.drives.map((d) => `   drive ${d.index}      ${formatSi(d.ohm, "Ω", 3)}, ${formatSi(d.power_rating_w, "W", 2)}, charge ≤ ${d.max_charge_us} µs`),
+      ...profile.drives.map((d) => `   drive ${d.index}      ${formatSi(d.ohm, "Ω", 3)}, ${formatSi(d.power_rating_w, "W", 2)}, charge ≤ ${d.max_charge_us} µs` +
+        (d.thermal_time_constant_s !== undefined ? `, thermal τ ${formatSi(d.thermal_time_constant_s, "s", 2)}, rest after the longest ${d.rest_after_max_ms} ms` : "")),
       ...profile.tanks.map((t) => `   tank ${t.index}       ${formatSi(t.nominal_f, "F", 3)} nominal`),
-      `   rest         ≥ ${profile.min_rest_ms} ms and ≥ ${profile.rest_per_charge}× the charge time between pulses`,
+      profile.drives.every((d) => d.thermal_time_constant_s !== undefined)
+        ? "   rest         from each drive resistor's heat budget: short pulses owe none"
+        : `   rest         ≥ ${profile.min_rest_ms} ms and ≥ ${profile.rest_per_charge}× the charge time between pulses`,
     ];
     process.stdout.write(out.join("\n") + "\n");
     return 0;

@@ -14,6 +14,7 @@ import { runWindCommand } from "./wind-command.ts";
 import { runReportCommand } from "./report-command.ts";
 import { CliUsageError, reportError } from "./errors.ts";
 import { SAFETY_TEXT } from "./safety.ts";
+import { packageVersion } from "../version.ts";
 
 export const USAGE = `henrytick — scopeless inductance meter
 
@@ -25,6 +26,7 @@ Usage:
   henrytick advise (--sim [SCENARIO] | --port PATH)
                                        probe the part and rank every setting, with reasons
   henrytick scenarios                  list the simulated demo parts
+  henrytick --version                  print the installed package's version
   henrytick ports                      list this computer's serial ports
   henrytick sort (--sim | --port PATH) --nominal 10u --tol 5%   sort parts against a tolerance
   henrytick wind (--sim | --port PATH) --target 22u      turns to add or remove to reach a target
@@ -110,6 +112,9 @@ export async function main(argv: string[]): Promise<number> {
         return runScenarios(rest);
       case "ports":
         return await runPorts(rest);
+      case "--version":
+        process.stdout.write(`henrytick ${packageVersion()}\n`);
+        return 0;
       case undefined:
       case "help":
       case "--help":

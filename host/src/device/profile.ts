@@ -19,6 +19,12 @@ export interface DriveResistor {
   energy_rating_j?: number;
   /** Rest the tester enforces after the longest allowed pulse, ms (absent from older firmware). */
   rest_after_max_ms?: number;
+  /**
+   * Time constant of the tester's thermal model of this resistor, s: with it, the rest between
+   * pulses comes from the resistor's heat budget (docs/protocol.md, "Profile frames") instead
+   * of `min_rest_ms` and `rest_per_charge` (absent from older firmware).
+   */
+  thermal_time_constant_s?: number;
 }
 
 export interface TankCapacitor {
@@ -75,6 +81,7 @@ export function parseProfile(frames: Frame[]): DeviceProfile {
           max_charge_us: intField(f, 3, "max_charge_us"),
           ...(f.fields.length > 4 ? { energy_rating_j: intField(f, 4, "energy_uj") / 1e6 } : {}),
           ...(f.fields.length > 5 ? { rest_after_max_ms: intField(f, 5, "rest_after_max_ms") } : {}),
+          ...(f.fields.length > 6 ? { thermal_time_constant_s: intField(f, 6, "tau_us") / 1e6 } : {}),
         });
         break;
       case "PC":

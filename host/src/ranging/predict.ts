@@ -1,13 +1,11 @@
 // Prediction for one drive-resistor x tank-capacitor setting (pure): what a pulse there would
 // do to the part and the resistor, what ring and how many usable edges it would give, and the
-// uncertainty of L and Q to expect. Physics: docs/method.md §1 (ring), §2-§3 (edges, bound),
-// §7 (flyback). The charge phase rings too (the part and tank form a parallel tank fed through
-// R), so the charge time covers both the L/R rise and that ring's decay.
+// uncertainty of L and Q to expect (bound-cache.ts). Physics: docs/method.md §1 (ring), §2-§3
+// (edges, bound), §7 (flyback). The charge phase rings too (the part and tank form a parallel
+// tank fed through R), so the charge time covers both the L/R rise and that ring's decay.
 
-import { ringCramerRao } from "../analysis/index.ts";
 import type { DeviceProfile } from "../device/profile.ts";
-import { sineWave } from "../physics/ring-wave.ts";
-import { crossingTimes } from "../sim/comparator-edges.ts";
+import { predictedRingBound, rangingWork } from "./bound-cache.ts";
 import type { PartEstimate } from "./estimate.ts";
 import { lossModel, thresholdScale } from "./estimate.ts";
 
@@ -75,6 +73,7 @@ const TICKS_PER_EDGE_MIN = 32;
 export function predictSetting(
   profile: DeviceProfile, est: PartEstimate, drive: number, tank: number, limits: PlanLimits, tankValue?: TankValue,
 ): SettingPrediction {
+  rangingWork.predictions++;
   const r = profile.drives[drive];
   const c = tankValue?.c_f ?? profile.tanks[tank].nominal_f;
   const u_c = tankValue?.u_f ?? (c * 0.01) / Math.sqrt(3);
@@ -102,7 +101,7 @@ export function predictSetting(
   const cycles = a0 > h && q > 0.5 ? (q / Math.PI) * Math.log(a0 / h) : 0;
   const f = w0 / (2 * Math.PI);
   const tpp = profile.tick_hz / f;
-  const rest_s = Math.max(profile.min_rest_ms * 1e-3, profile.rest_per_charge * charge.charge_us * 1e-6);
+  const rest_s = restBetweenPulses_s(profile, drive, charge.charge_us);
   const energy = charge.i_final * charge.i_final * r.ohm * charge.charge_us * 1e-6;
   const avgPower = energy / (charge.charge_us * 1e-6 + rest_s);
   const edgeRateLimit = profile.tick_hz / TICKS_PER_EDGE_MIN;
@@ -133,6 +132,28 @@ function refusal(p: SettingPrediction, limits: PlanLimits, a0_worst: number): st
 }
 
 /**
+ * Rest the tester owes between repeats of a pulse of `charge_us` on `drive`, s. With the
+ * profile's thermal time constant (docs/protocol.md, "Profile frames"), the steady state of the
+ * tester's first-order model: after each pulse the heat is H = P tau (1 - a) / (1 - a b), with
+ * a = e^(-t/tau) over the charge t and b = e^(-rest/tau), and it must stay within
+ * min(E_pulse, P_cont tau); P is the worst case, the whole supply across the resistor. Older
+ * firmware: its fixed floor and duty-cycle rule.
+ */
+export function restBetweenPulses_s(profile: DeviceProfile, drive: number, charge_us: number): number {
+  const r = profile.drives[drive];
+  const tau = r.thermal_time_constant_s;
+  if (tau === undefined || r.energy_rating_j === undefined) {
+    return Math.max(profile.min_rest_ms * 1e-3, profile.rest_per_charge * charge_us * 1e-6);
+  }
+  const ptau = (profile.supply_v ** 2 / r.ohm) * tau;
+  const budget = Math.min(r.energy_rating_j, r.power_rating_w * tau);
+  const a = Math.exp(-(charge_us * 1e-6) / tau);
+  const b = (1 - (ptau * (1 - a)) / budget) / a;
+  if (b >= 1) return 0;
+  return b > 0 ? -tau * Math.log(b) : Infinity;
+}
+
+/**
  * Charge time and current at opening. Charging until both the L/R rise and the charge-phase
  * ring (decay Rs/2L + 1/2RC) have settled gives I_final; when the firmware's interlock cuts it
  * short, the current may still be on an overshoot, bounded by (1 + e^(-a t)) I_final.
@@ -154,18 +175,10 @@ export function chargePlan(
 /** Fit-only standard uncertainties of L and Q from the Cramér-Rao bound of the predicted edges. */
 function fitUncertainty(profile: DeviceProfile, est: PartEstimate, a0: number, alpha: number, w0: number, c: number, cycles: number): { l_rel: number; q_rel: number } {
   if (!(cycles >= 3) || !(w0 > alpha)) return { l_rel: Infinity, q_rel: Infinity };
-  const wd = Math.sqrt(w0 * w0 - alpha * alpha);
   const [vh, vl] = profile.thresholds_v;
-  const edges = crossingTimes(sineWave(a0, alpha, wd), vh, vl, profile.buffer_edges, 1e3);
-  if (edges.times.length < 6) return { l_rel: Infinity, q_rel: Infinity };
   const noise = est.noise ?? DEFAULT_NOISE;
-  const b = ringCramerRao(
-    { wd_rad_s: wd, alpha_per_s: alpha, a0_v: a0, tank_c_f: c },
-    { times_s: edges.times, levels: edges.levels },
-    { tick_hz: profile.tick_hz, sigma_t_s: noise.sigma_t_s, sigma_v_v: noise.sigma_v_v },
-    [vh, vl],
-  );
-  const l = 1 / (w0 * w0 * c);
-  const q = w0 / (2 * alpha);
-  return { l_rel: b.l_sd_h / l, q_rel: b.q_sd / q };
+  return predictedRingBound({
+    a0_v: a0, alpha_per_s: alpha, wd_rad_s: Math.sqrt(w0 * w0 - alpha * alpha), tank_c_f: c, vh_v: vh, vl_v: vl,
+    max_edges: profile.buffer_edges, tick_hz: profile.tick_hz, sigma_t_s: noise.sigma_t_s, sigma_v_v: noise.sigma_v_v,
+  });
 }

@@ -1,19 +1,12 @@
 // Report files: read captures, build the page, write it atomically (temporary name, then
 // rename), so a browser refreshing the file never sees half a report.
 
-import { readFileSync, renameSync, writeFileSync } from "node:fs";
+import { renameSync, writeFileSync } from "node:fs";
 import { readCaptureFile } from "../capture/capture-file.ts";
 import type { CaptureV1 } from "../capture/capture-file.ts";
 import { reportData } from "./report-data.ts";
 import { reportHtml, type ReportEntry } from "./report-html.ts";
-
-export function packageVersion(): string {
-  try {
-    return JSON.parse(readFileSync(new URL("../../package.json", import.meta.url), "utf8")).version ?? "?";
-  } catch {
-    return "?";
-  }
-}
+import { packageVersion } from "../version.ts";
 
 /** Builds the page for captures already in memory. */
 export function buildReport(captures: { source: string; capture: CaptureV1 }[], generated = new Date().toISOString()): { html: string; entries: ReportEntry[] } {
