@@ -108,3 +108,13 @@ describe("turns ratio and cautions (CLI)", () => {
     expect(r.stderr).toMatch(/--winding-ratio .*e\.g\. 19 or 230:12/);
   });
 });
+
+describe("the safety text's figures", () => {
+  it("match the limits ranging applies", async () => {
+    const { SAFETY_TEXT } = await import("../../host/src/cli/safety.ts");
+    const { DEFAULT_MAX_PEAK_V, HAZARDOUS_PEAK_V, CLAMP_SHARE } = await import("../../host/src/ranging/safety.ts");
+    expect(SAFETY_TEXT).toContain(`${DEFAULT_MAX_PEAK_V} V peak`);
+    expect(SAFETY_TEXT).toContain(`${HAZARDOUS_PEAK_V} V peak`);
+    expect(SAFETY_TEXT).toContain(`${Number((CLAMP_SHARE * 36).toFixed(2))} V: ${CLAMP_SHARE * 100} % of its 36 V clamp`);
+  });
+});

@@ -5,7 +5,7 @@ import { probePart } from "../measure/auto-range.ts";
 import { openTester } from "../open-tester.ts";
 import { adviseSettings } from "../ranging/advice.ts";
 import { resolvePeakLimit, volts } from "../ranging/safety.ts";
-import { PulseCaution, windingRatioOption } from "./safety.ts";
+import { PulseCaution, windingRatioOption } from "./caution.ts";
 import { formatSi } from "../format/si.ts";
 import { numberOption, parse, testerTarget } from "./args.ts";
 import { CliUsageError } from "./errors.ts";

@@ -12,7 +12,7 @@ import { runWatch, WATCH_OPTIONS } from "./measure-watch.ts";
 import { CalibrationError, deviceCalibration, measureSelfCapacitance, singleTankBudget, timebaseKnowledge } from "../calibration/index.ts";
 import { renderBudget, renderSelfCapacitance } from "./render.ts";
 import { otherWindingPeakV, resolvePeakLimit, volts } from "../ranging/safety.ts";
-import { PulseCaution, windingRatioOption } from "./safety.ts";
+import { PulseCaution, windingRatioOption } from "./caution.ts";
 
 export async function runMeasure(args: string[]): Promise<number> {
   const { values, positionals } = parse(args, {

@@ -17,7 +17,7 @@ import { makeStyle, stdinLines, type Style } from "../workflows/terminal.ts";
 import { intOption, numberOption, parse, testerTarget } from "./args.ts";
 import { CliUsageError } from "./errors.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
-import { PulseCaution, windingRatioOption } from "./safety.ts";
+import { PulseCaution, windingRatioOption } from "./caution.ts";
 
 export const SORT_HELP = `henrytick sort — sort parts against a tolerance
 

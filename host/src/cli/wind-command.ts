@@ -15,7 +15,7 @@ import { windingAdvice, type WindingAdvice, type WindingReading } from "../workf
 import { numberOption, parse, testerTarget } from "./args.ts";
 import { CliUsageError } from "./errors.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
-import { PulseCaution, windingRatioOption } from "./safety.ts";
+import { PulseCaution, windingRatioOption } from "./caution.ts";
 
 export const WIND_HELP = `henrytick wind — wind a coil to a target inductance
 
