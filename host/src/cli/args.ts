@@ -5,6 +5,8 @@ import type { ParseArgsConfig } from "node:util";
 
 type OptionsConfig = NonNullable<ParseArgsConfig["options"]>;
 import { CliUsageError } from "./errors.ts";
+import { parseValue, parseValueIn, ValueError, type ParsedValue } from "../values/parse-value.ts";
+import { parseTolerance, type Tolerance } from "../values/tolerance.ts";
 
 type Parsed<T extends OptionsConfig> = ReturnType<typeof parseArgs<{ args: string[]; options: T; allowPositionals: true; strict: true }>>;
 
@@ -45,4 +47,34 @@ export function testerTarget(values: { sim?: boolean; port?: string; seed?: stri
   }
   if (positionals.length > 1) throw new CliUsageError(`unexpected argument "${positionals[1]}"`);
   return { scenario: positionals[0], seed };
+}
+
+/**
+ * A value option in `unit` through the one value parser (values/parse-value.ts), with the option
+ * named in the message; `range` refuses what is outside it up front.
+ */
+export function valueOption(v: string | undefined, name: string, unit: string, range?: { min: number; max: number; what: string }): ParsedValue | undefined {
+  if (v === undefined) return undefined;
+  try {
+    return range ? parseValueIn(v, unit, range) : parseValue(v, unit);
+  } catch (e) {
+    if (e instanceof ValueError) throw new CliUsageError(`--${name}: ${e.message}`);
+    throw e;
+  }
+}
+
+/** The same, for an option that must be given. */
+export function requiredValue(v: string | undefined, name: string, unit: string, example: string, range?: { min: number; max: number; what: string }): ParsedValue {
+  if (v === undefined) throw new CliUsageError(`--${name} is required (a value in ${unit}, e.g. --${name} ${example})`);
+  return valueOption(v, name, unit, range)!;
+}
+
+/** A tolerance option (5%, J, +10%/-5%, 0.5u) with the option named in the message. */
+export function toleranceOption(v: string, name: string, unit = "H"): Tolerance {
+  try {
+    return parseTolerance(v, unit);
+  } catch (e) {
+    if (e instanceof ValueError) throw new CliUsageError(`--${name}: ${e.message}`);
+    throw e;
+  }
 }
