@@ -1,7 +1,6 @@
 #!/usr/bin/env node
 import { main } from "../dist/cli/main.js";
-import { outputStreamError } from "../dist/cli/errors.js";
-import { guardOutput } from "../dist/workflows/terminal.js";
+import { guardOutput, outputStreamError } from "../dist/cli/errors.js";
 
 // Labels, tester ids and messages from files reach these streams: every control character but
 // the program's own colour and redraw sequences is shown as a visible stand-in.
