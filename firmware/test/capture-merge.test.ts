@@ -18,7 +18,6 @@ const note = hasHostGcc ? "" : " (skipped: Debian package gcc not installed)";
 
 const LAPPED = 0x01;
 const SAME_LEVEL = 0x02;
-const EARLY = 0x04;
 const LATE = 0x08;
 const PORT = 0x20;
 const FAULT_ENTRY = 0x80000000;
@@ -44,6 +43,7 @@ interface Run {
   steps: number[];
   count: number;
   fault: number;
+  beforeZero: number;
   entries: number[];
   lines: string[];
 }
@@ -61,7 +61,7 @@ function run(script: string[]): Run {
   const steps = lines.filter((l) => l.startsWith("n ")).map((l) => Number(l.slice(2)));
   const end = lines.find((l) => l.startsWith("end "))?.split(" ").map(Number) ?? [0, 0, 0];
   const list = lines.find((l) => l.startsWith("entries"))?.split(" ").slice(1).map(Number) ?? [];
-  return { steps, count: end[1], fault: end[2], entries: list, lines };
+  return { steps, count: end[1], fault: end[2], beforeZero: end[3], entries: list, lines };
 }
 
 /**
@@ -203,11 +203,20 @@ describe(`capture merge on the host${note}`, () => {
     expect(run(boardScript({ ticks: ring.ticks.slice(0, 80), levels: ring.levels.slice(0, 80) }, 0, 16, 8192)).fault).toBe(0);
   });
 
-  it.skipIf(!hasHostGcc)(`refuses edges before the zero or beyond 2^30 ticks, and port-reported faults${note}`, () => {
-    const early = run(["open 1000 8 100", "edge 900 1", "final", "end"]);
-    expect(early).toMatchObject({ fault: EARLY, entries: [FAULT_ENTRY + EARLY] });
-    // An edge before the zero is refused at once, without waiting for the horizon.
-    expect(run(["open 1000 8 100", "edge 1100 1", "edge 990 0", "step 1050", "end"]).fault).toBe(EARLY);
+  it.skipIf(!hasHostGcc)(`drops edges before the zero (the comparator falling as the switch closes) but keeps their level${note}`, () => {
+    // Left high by the last ring, the comparator falls while the part charges: not an entry.
+    const fell = run(["open 1000 8 100", "edge 900 0", "edge 1100 1", "step 1050", "edge 1200 0", "final", "end"]);
+    expect(fell.steps).toEqual([0, 2]);
+    expect(fell).toMatchObject({ fault: 0, beforeZero: 1, entries: [201, 400] });
+    // Dropped without waiting for the horizon; an edge exactly at the zero is tick 0.
+    const at = run(["open 1000 8 100", "edge 990 1", "edge 995 0", "step 1000", "edge 1000 1", "final", "end"]);
+    expect(at.steps).toEqual([0, 1]);
+    expect(at).toMatchObject({ fault: 0, beforeZero: 2, entries: [1] });
+    // A rising edge before the zero and another after it: one falling edge was lost between.
+    expect(run(["open 1000 8 100", "edge 990 1", "edge 1100 1", "final", "end"]).fault).toBe(SAME_LEVEL);
+  });
+
+  it.skipIf(!hasHostGcc)(`refuses edges at or beyond 2^30 ticks, and port-reported faults${note}`, () => {
     const late = run(["open 0 8 100", "edge 5 1", `edge ${2 ** 30} 0`, "final", "end"]);
     expect(late).toMatchObject({ fault: LATE, entries: [11, FAULT_ENTRY + LATE] });
     const port = run(["open 0 8 100", "edge 5 1", "step 6", "portfault", "edge 7 0", "final", "end"]);

@@ -21,7 +21,6 @@
 /* Why a capture was given up (bits, sticky until the next cm_open). */
 #define CM_FAULT_LAPPED 0x01u     /* a DMA ring was overwritten before it was read */
 #define CM_FAULT_SAME_LEVEL 0x02u /* two edges of one level in a row: an edge was lost */
-#define CM_FAULT_EARLY 0x04u      /* an edge latched before the capture's zero */
 #define CM_FAULT_LATE 0x08u       /* an edge at or beyond 2^30 ticks: past what an entry can hold */
 #define CM_FAULT_ORDER 0x10u      /* a ring's values went backwards (corrupt data) */
 #define CM_FAULT_PORT 0x20u       /* reported by the port: timer over-capture, DMA error */
@@ -49,13 +48,17 @@ typedef struct {
   uint32_t capacity;
   uint32_t count;       /* entries written to out */
   uint32_t last_tick;
-  int last_level;       /* level of the last entry, -1 before the first */
+  int last_level;       /* level of the last edge (entry or dropped), -1 before the first */
   uint32_t fault;       /* CM_FAULT_* bits */
+  uint32_t before_zero; /* edges latched before the zero: dropped (not part of the ring) */
 } cm_merge;
 
 /*
  * Starts a capture. `zero` is the raw counter value the entries count from; the rings are the
- * two DMA targets, `ring_size` entries each, and their DMA must start at index 0 after this.
+ * two DMA targets, `ring_size` entries each (a power of two), and their DMA must start at
+ * index 0 after this. Edges latched before the zero (the comparator falling as the switch
+ * closes, while the part charges) are not entries: they are dropped and counted in
+ * `before_zero`, and their level still counts for the alternation check.
  */
 void cm_open(cm_merge* m, uint32_t zero, volatile int32_t* out, uint32_t capacity,
              const volatile uint32_t* ring_fall, const volatile uint32_t* ring_rise, uint32_t ring_size);

@@ -13,7 +13,7 @@
  *   dma RING_SIZE HALVES REMAINING prints "dma WRITTEN" (cm_dma_written)
  *   replay ZERO RING_SIZE CAPACITY POLL_EVERY N E1 .. EN
  *                                  cm_replay; prints "replay COUNT FAULT CHECKSUM"
- *   end                            prints "end COUNT FAULT" and "entries E1 E2 .." (unsigned)
+ *   end                            prints "end COUNT FAULT BEFORE_ZERO" and "entries E1 E2 .."
  */
 #define _POSIX_C_SOURCE 200809L
 #include <stdio.h>
@@ -65,7 +65,7 @@ int main(int argc, char** argv) {
       uint32_t zero = (uint32_t)num(&save);
       ring_size = (uint32_t)num(&save);
       capacity = (uint32_t)num(&save);
-      if (ring_size > MAX_RING || capacity > MAX_OUT || ring_size < 2 || ring_size % 2) return 2;
+      if (ring_size > MAX_RING || capacity > MAX_OUT || ring_size < 2 || (ring_size & (ring_size - 1u))) return 2;
       memset(totals, 0, sizeof totals);
       memset(halves, 0, sizeof halves);
       memset(out, 0, sizeof out);
@@ -105,7 +105,7 @@ int main(int argc, char** argv) {
       free(rr);
       free(o);
     } else if (!strcmp(cmd, "end")) {
-      printf("end %u %u\nentries", m.count, m.fault);
+      printf("end %u %u %u\nentries", m.count, m.fault, m.before_zero);
       for (uint32_t i = 0; i < m.count; i++) printf(" %u", (uint32_t)out[i]);
       printf("\n");
     } else {
