@@ -2,7 +2,7 @@
 // a timeout; a capture stream is checked line by line (CRC, sequence, count, checksum) and, if
 // damaged, fetched again with the resend command: a damaged capture never triggers a new pulse.
 
-import { PROTOCOL_VERSION } from "@henrytick/shared-protocol";
+import { ERR_ABORTED, PROTOCOL_VERSION } from "@henrytick/shared-protocol";
 import type { Transport, TransportError } from "../transport/transport.ts";
 import { DeviceError, DeviceTimeoutError } from "./errors.ts";
 import type { Decoded, Frame } from "./frames.ts";
@@ -31,6 +31,25 @@ export interface ClientOptions {
   resend_attempts?: number;
 }
 
+/** Options of one pulse. */
+export interface PulseOptions {
+  /**
+   * Abandons the pulse: the client sends `AB` at once (the tester opens the switch and stops the
+   * capture), waits for its acknowledgement so the link is clean for the next command, and
+   * rejects with DeviceError ABORTED, unless the capture was already whole (then it is returned).
+   */
+  signal?: AbortSignal;
+}
+
+/** An abort sent out of turn during one pulse. */
+interface AbortState {
+  sent: boolean;
+  /** `OK AB` lines counted before it was sent. */
+  acksBefore: number;
+  written: Promise<void>;
+  wakeSleep: (() => void) | null;
+}
+
 const MAX_REST_WAITS = 5;
 const MAX_REST_WAIT_MS = 10_000;
 
@@ -44,6 +63,8 @@ export class DeviceClient {
   private waiter: (() => void) | null = null;
   private linkError: TransportError | null = null;
   private busy: Promise<unknown> = Promise.resolve();
+  /** Counts `OK AB` lines as they arrive, whoever reads them from the inbox. */
+  private abortAcks = 0;
   private readonly replyTimeout: number;
   private readonly resendAttempts: number;
   identity!: DeviceIdentity;
@@ -53,7 +74,9 @@ export class DeviceClient {
     this.replyTimeout = opts.reply_timeout_ms ?? 2000;
     this.resendAttempts = opts.resend_attempts ?? 2;
     transport.onLine((line) => {
-      this.inbox.push(decodeLine(line));
+      const d = decodeLine(line);
+      if (d.ok && d.frame.tag === "OK" && d.frame.fields[0] === "AB") this.abortAcks++;
+      this.inbox.push(d);
       this.wake();
     });
     transport.onClose((err) => {
@@ -123,34 +146,73 @@ export class DeviceClient {
   }
 
   /** Pulses the part once and returns the verified edge record. */
-  measure(s: MeasureSettings): Promise<RawCapture> {
+  measure(s: MeasureSettings, opts: PulseOptions = {}): Promise<RawCapture> {
     return this.exclusive(async () => {
-      let token = this.nextToken();
-      await this.startMeasurement(s, token);
-      // Settle + charge + capture window, plus a reply margin.
-      const firstWait = this.profile.settle_us / 1000 + s.charge_us / 1000 + s.timeout_ms + this.replyTimeout;
-      let lastDefect: Error | null = null;
-      for (let attempt = 0; attempt <= this.resendAttempts; attempt++) {
-        if (attempt > 0) {
-          // A resend has its own token: lines of an earlier attempt still in flight cannot pass for it.
-          token = this.nextToken();
-          await this.requestHeld(token);
-        }
-        try {
-          return await this.readStream(s, attempt === 0 ? firstWait : this.replyTimeout, token);
-        } catch (e) {
-          // A damaged stream, or one that stalled, is fetched again; nothing is pulsed again.
-          if (!(e instanceof StreamDefect) && !(e instanceof DeviceTimeoutError)) throw e;
-          lastDefect = e;
-          await this.drainUntilQuiet();
+      const signal = opts.signal;
+      if (signal?.aborted) throw new DeviceError(ERR_ABORTED, "MS");
+      if (!signal) return this.pulse(s, null);
+      // Sent out of turn, as the protocol allows for AB: the tester stops the capture now.
+      const abort: AbortState = { sent: false, acksBefore: this.abortAcks, written: Promise.resolve(), wakeSleep: null };
+      const onAbort = () => {
+        abort.sent = true;
+        abort.written = this.transport.write(encodeCommand("AB", [])).catch(() => undefined);
+        abort.wakeSleep?.();
+      };
+      signal.addEventListener("abort", onAbort, { once: true });
+      try {
+        return await this.pulse(s, abort);
+      } catch (e) {
+        if (abort.sent) throw new DeviceError(ERR_ABORTED, "MS");
+        throw e;
+      } finally {
+        signal.removeEventListener("abort", onAbort);
+        if (abort.sent) {
+          await abort.written;
+          await this.awaitAbortAck(abort.acksBefore);
         }
       }
-      if (lastDefect instanceof DeviceTimeoutError) throw lastDefect; // the tester stopped answering
-      throw new ProtocolError(
-        "CAPTURE_DAMAGED",
-        `capture damaged in transit ${this.resendAttempts + 1} times (${lastDefect?.message}); check the cable and USB port, then measure again`,
-      );
     });
+  }
+
+  /** Waits until the tester has acknowledged an AB sent out of turn; drains what comes with it. */
+  private async awaitAbortAck(acksBefore: number): Promise<void> {
+    try {
+      while (this.abortAcks === acksBefore) await this.next(this.replyTimeout, "acknowledgement of AB");
+    } catch (e) {
+      // No acknowledgement: wait out whatever is still coming. A closed link is reported by the
+      // next command; the abort itself has been answered already.
+      if (e instanceof DeviceTimeoutError) await this.drainUntilQuiet().catch(() => undefined);
+    }
+    this.inbox = [];
+  }
+
+  private async pulse(s: MeasureSettings, abort: AbortState | null): Promise<RawCapture> {
+    let token = this.nextToken();
+    await this.startMeasurement(s, token, abort);
+    // Settle + charge + capture window, plus a reply margin.
+    const firstWait = this.profile.settle_us / 1000 + s.charge_us / 1000 + s.timeout_ms + this.replyTimeout;
+    let lastDefect: Error | null = null;
+    for (let attempt = 0; attempt <= this.resendAttempts; attempt++) {
+      if (abort?.sent) throw new DeviceError(ERR_ABORTED, "MS");
+      if (attempt > 0) {
+        // A resend has its own token: lines of an earlier attempt still in flight cannot pass for it.
+        token = this.nextToken();
+        await this.requestHeld(token);
+      }
+      try {
+        return await this.readStream(s, attempt === 0 ? firstWait : this.replyTimeout, token);
+      } catch (e) {
+        // A damaged stream, or one that stalled, is fetched again; nothing is pulsed again.
+        if (!(e instanceof StreamDefect) && !(e instanceof DeviceTimeoutError)) throw e;
+        lastDefect = e;
+        await this.drainUntilQuiet();
+      }
+    }
+    if (lastDefect instanceof DeviceTimeoutError) throw lastDefect; // the tester stopped answering
+    throw new ProtocolError(
+      "CAPTURE_DAMAGED",
+      `capture damaged in transit ${this.resendAttempts + 1} times (${lastDefect?.message}); check the cable and USB port, then measure again`,
+    );
   }
 
   /**
@@ -179,9 +241,10 @@ export class DeviceClient {
   }
 
   /** Sends MS; while the rest or ring interlock refuses, waits the time it names and asks again. */
-  private async startMeasurement(s: MeasureSettings, token: number): Promise<void> {
+  private async startMeasurement(s: MeasureSettings, token: number, abort: AbortState | null): Promise<void> {
     const args = [s.drive, s.tank, s.charge_us, s.edge_limit, s.timeout_ms, s.quiet_us, token];
     for (let attempt = 0; ; attempt++) {
+      if (abort?.sent) throw new DeviceError(ERR_ABORTED, "MS");
       try {
         await this.command("MS", args, 0, token);
         return;
@@ -189,7 +252,7 @@ export class DeviceClient {
         const waitable = e instanceof DeviceError && (e.code === "REST_PENDING" || e.code === "RINGING");
         if (!waitable || attempt >= MAX_REST_WAITS) throw e;
         const wait = Math.min(Math.max(e.detail ?? this.profile.min_rest_ms, 1), MAX_REST_WAIT_MS);
-        await new Promise((r) => setTimeout(r, wait + 1));
+        await this.sleep(wait + 1, abort);
       }
     }
   }
@@ -289,6 +352,19 @@ export class DeviceClient {
           this.waiter = null;
         }
       };
+    });
+  }
+
+  /** Sleeps, or less when an abort is sent meanwhile. */
+  private sleep(ms: number, abort: AbortState | null): Promise<void> {
+    return new Promise((resolve) => {
+      const done = () => {
+        clearTimeout(timer);
+        if (abort) abort.wakeSleep = null;
+        resolve();
+      };
+      const timer = setTimeout(done, ms);
+      if (abort) abort.wakeSleep = done;
     });
   }
 
