@@ -1,41 +1,28 @@
 // The JSON Schemas (draft 2020-12) of the project's file formats, shipped in the package under
-// schemas/ for other bench applications, and the one validator (ajv) every reader checks shape
-// with. A reader turns the first problem into its own coded, field-naming error; rules a schema
-// cannot state (order of edges, plausibility of a calibration) stay in the reader.
+// schemas/ for other bench applications, and the one check every reader runs against them: the
+// schemas compiled by ajv into plain functions at build time (schema-validators.generated.ts,
+// from scripts/build-validators.mjs), so reading a file costs no schema compile. A reader turns
+// the first problem into its own coded, field-naming error; rules a schema cannot state (order
+// of edges, plausibility of a calibration) stay in the reader.
 
-import { readFileSync } from "node:fs";
-import ajvModule from "ajv/dist/2020.js";
-import type { ErrorObject, ValidateFunction } from "ajv/dist/2020.js";
+import * as generated from "./schema-validators.generated.ts";
 
-export const SCHEMA_NAMES = ["capture", "result", "calibration-profile", "scenario"] as const;
-export type SchemaName = (typeof SCHEMA_NAMES)[number];
+/** Schema name (file schemas/NAME.schema.json, $id urn:henrytick:schema:NAME:1). */
+export type SchemaName = "capture" | "result" | "calibration-profile" | "scenario";
 
-/** The shipped schema file (host/schemas/NAME.schema.json; the same path from src/ and dist/). */
-export function schemaUrl(name: SchemaName): URL {
-  return new URL(`../schemas/${name}.schema.json`, import.meta.url);
+interface ErrorObject {
+  keyword: string;
+  instancePath: string;
+  params: Record<string, unknown>;
+  message?: string;
+  data?: unknown;
+  parentSchema?: { description?: string };
 }
+type Validator = ((data: unknown) => boolean) & { errors?: ErrorObject[] | null };
 
-/** The parsed schema, as other applications get it from `henrytick/schemas/NAME.schema.json`. */
-export function loadSchema(name: SchemaName): Record<string, unknown> {
-  return JSON.parse(readFileSync(schemaUrl(name), "utf8"));
-}
-
-let ajv: InstanceType<typeof ajvModule.default> | undefined;
-const compiled = new Map<SchemaName, ValidateFunction>();
-
-function validator(name: SchemaName): ValidateFunction {
-  let v = compiled.get(name);
-  if (v) return v;
-  if (!ajv) {
-    ajv = new ajvModule.default({ strict: true, allErrors: false, verbose: true });
-    // Times are ISO 8601 as Date.toISOString writes them; any time Date.parse reads is taken.
-    ajv.addFormat("date-time", (s: string) => !Number.isNaN(Date.parse(s)));
-    for (const n of SCHEMA_NAMES) ajv.addSchema(loadSchema(n));
-  }
-  v = ajv.getSchema(loadSchema(name).$id as string) as ValidateFunction;
-  compiled.set(name, v);
-  return v;
-}
+const VALIDATORS: Record<SchemaName, Validator> = {
+  capture: generated.capture, result: generated.result, "calibration-profile": generated.calibrationProfile, scenario: generated.scenario,
+};
 
 /** The first way a value breaks a schema: the field in the project's notation and what is wrong. */
 export interface SchemaProblem {
@@ -47,7 +34,7 @@ export interface SchemaProblem {
 
 /** Checks a value against one of the shipped schemas; undefined when it conforms. */
 export function schemaProblem(name: SchemaName, value: unknown): SchemaProblem | undefined {
-  const v = validator(name);
+  const v = VALIDATORS[name];
   if (v(value)) return undefined;
   return describe(v.errors![0]);
 }
@@ -73,7 +60,7 @@ function fieldOf(pointer: string, extra?: string): string {
 function describe(e: ErrorObject): SchemaProblem {
   const p = e.params as Record<string, unknown>;
   const got = `, got ${shown(e.data)}`;
-  const described = (e.parentSchema as { description?: string } | undefined)?.description;
+  const described = e.parentSchema?.description;
   switch (e.keyword) {
     case "required":
       return { field: fieldOf(e.instancePath, String(p.missingProperty)), message: "is missing" };
@@ -96,10 +83,8 @@ function describe(e: ErrorObject): SchemaProblem {
     case "minItems":
     case "maxItems":
       return { field: fieldOf(e.instancePath), message: `must be ${described ?? `an array of ${p.limit}`}${got}` };
-    case "format":
-      return { field: fieldOf(e.instancePath), message: `must be ${p.format === "date-time" ? "an ISO 8601 time" : `in ${p.format} format`}${got}` };
     case "pattern":
-      return { field: fieldOf(e.instancePath), message: `must match ${p.pattern}${got}` };
+      return { field: fieldOf(e.instancePath), message: `must be ${described ?? `text matching ${p.pattern}`}${got}` };
     default:
       return { field: fieldOf(e.instancePath), message: `${e.message ?? "is not valid"}${got}` };
   }

@@ -2,10 +2,10 @@
 // writes: captures from `measure --save` (uncalibrated, calibrated, a suspect reading kept on
 // request), results from `measure --json` and `analyze --json`, profiles from `calibrate`, and
 // the shipped scenarios. The files are checked the way another bench application would check
-// them: a fresh ajv instance given only the schema files, with an RFC 3339 date-time check of
-// its own. Then the readers: optional fields of the wrong type are refused with the project's
+// them: a fresh ajv instance given only the schema files. Then the readers: optional fields of the wrong type are refused with the project's
 // coded, field-naming message. Needs the built checkout (`npm run build`).
 
+import { spawnSync } from "node:child_process";
 import { mkdtempSync, readFileSync, readdirSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
@@ -19,9 +19,8 @@ import { runCli } from "./run-cli.ts";
 
 const HOST = fileURLToPath(new URL("../../host/", import.meta.url));
 const schemaFiles = readdirSync(join(HOST, "schemas")).filter((f) => f.endsWith(".schema.json")).sort();
+// Strict mode and no format plugin: the schemas must compile as they are for another application.
 const ajv = new ajvModule.default({ strict: true, allErrors: true });
-// RFC 3339 §5.6 date-time (the form Date.toISOString writes).
-ajv.addFormat("date-time", /^\d{4}-\d{2}-\d{2}[Tt]\d{2}:\d{2}:\d{2}(\.\d+)?([Zz]|[+-]\d{2}:\d{2})$/);
 for (const f of schemaFiles) ajv.addSchema(JSON.parse(readFileSync(join(HOST, "schemas", f), "utf8")));
 
 function expectValid(schema: string, value: unknown, what: string) {
@@ -70,6 +69,11 @@ describe("the published schemas", () => {
     }
   });
 
+  it("the validators the readers run are the committed schemas compiled as they are now", () => {
+    const r = spawnSync(process.execPath, [join(HOST, "scripts", "build-validators.mjs"), "--check"], { encoding: "utf8" });
+    expect(r.status, r.stderr).toBe(0);
+  });
+
   it("every capture measure --save writes validates, calibrated and suspect ones included", () => {
     expect(written.captures).toHaveLength(4);
     for (const f of written.captures) expectValid("capture", JSON.parse(readFileSync(f, "utf8")), f);
@@ -113,7 +117,7 @@ describe("readers refuse what the schemas refuse, with the coded, field-naming m
     [(c: any) => delete c.range.charge_us, 'capture field "range.charge_us": is missing'],
     [(c: any) => (c.device.protocol_version = "1"), 'capture field "device.protocol_version": must be an integer, got "1"'],
     [(c: any) => (c.meta.end_reason = "bored"), 'capture field "meta.end_reason": must be one of "quiet", "full", "timeout", "no-edges", got "bored"'],
-    [(c: any) => (c.meta.time = "yesterday"), 'capture field "meta.time": must be an ISO 8601 time, got "yesterday"'],
+    [(c: any) => (c.meta.time = "yesterday"), 'capture field "meta.time": must be an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z), got "yesterday"'],
     [(c: any) => (c.calibration.timebase_ppm = null), 'capture field "calibration.timebase_ppm": must be a finite number, got null'],
     [(c: any) => (c.tank_c_u_f = 0), 'capture field "tank_c_u_f": must be positive, got 0'],
     [(c: any) => (c.edges[3] = [c.edges[3][0], 2]), "capture edges[3]: level must be one of 0, 1, got 2"],
