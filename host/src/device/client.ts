@@ -4,7 +4,7 @@
 
 import { ERR_ABORTED, PROTOCOL_VERSION } from "@henrytick/shared-protocol";
 import type { Transport, TransportError } from "../transport/transport.ts";
-import { DeviceError, DeviceTimeoutError } from "./errors.ts";
+import { DeviceError, DeviceTimeoutError, STRAY_CAUSE, STRAY_NEXT } from "./errors.ts";
 import type { Decoded, Frame } from "./frames.ts";
 import { decodeLine, encodeCommand, intField, ProtocolError } from "./frames.ts";
 import type { DeviceCounters, DeviceIdentity, DeviceProfile, SelfTestReport } from "./profile.ts";
@@ -51,6 +51,13 @@ interface AbortState {
 }
 
 const MAX_REST_WAITS = 5;
+/** Codes of a line the tester could not read. */
+const GARBLED = ["LINK_CRC", "LINK_SYNTAX", "LINE_TOO_LONG"];
+/** Attempts to bring the link into step at connect. */
+const SYNC_ATTEMPTS = 4;
+const NEWLINE = new TextEncoder().encode("\n");
+/** The link counts as quiet after this long without a line, ms. */
+const QUIET_MS = 200;
 const MAX_REST_WAIT_MS = 10_000;
 
 function errorFrame(f: Frame, command: string): DeviceError {
@@ -88,15 +95,7 @@ export class DeviceClient {
   /** Identifies the tester, checks the protocol version and reads its profile. */
   static async connect(transport: Transport, opts: ClientOptions = {}): Promise<DeviceClient> {
     const client = new DeviceClient(transport, opts);
-    // A newline first flushes any partial line left in the tester's receiver.
-    await transport.write(new TextEncoder().encode("\n"));
-    try {
-      client.identity = await client.identify();
-    } catch (e) {
-      // Noise left on the link before we opened it can prefix the first reply; ask once more.
-      if (!(e instanceof ProtocolError) || e.code !== "LINK_CORRUPT") throw e;
-      client.identity = await client.identify();
-    }
+    client.identity = await client.synchronise();
     if (client.identity.protocol_version !== PROTOCOL_VERSION) {
       throw new ProtocolError(
         "PROTOCOL_VERSION",
@@ -105,6 +104,32 @@ export class DeviceClient {
     }
     client.profile = await client.readProfile();
     return client;
+  }
+
+  /**
+   * Brings the link into step before the first exchange. A newline flushes any partial line in
+   * the tester's receiver (stray bytes another program wrote into the port: the tester answers
+   * them with an error of its own), then ID; while the answer shows stray bytes (an unreadable
+   * reply, or the tester unable to read the line), the link is drained until quiet and both are
+   * sent again. LINK_NOISE when the stray bytes do not stop.
+   */
+  private async synchronise(): Promise<DeviceIdentity> {
+    const seen: string[] = [];
+    for (let attempt = 0; attempt < SYNC_ATTEMPTS; attempt++) {
+      await this.transport.write(NEWLINE);
+      try {
+        return await this.identify(); // a garbled answer was drained until quiet in command()
+      } catch (e) {
+        const stray = (e instanceof ProtocolError && e.code === "LINK_CORRUPT") || (e instanceof DeviceError && GARBLED.includes(e.code));
+        if (!stray) throw e;
+        seen.push((e as ProtocolError | DeviceError).code);
+      }
+    }
+    throw new ProtocolError(
+      "LINK_NOISE",
+      `${this.transport.description}: stray bytes on the port at every one of ${SYNC_ATTEMPTS} attempts to identify the tester (${seen.join(", ")}): ` +
+        `the cause is ${STRAY_CAUSE}; ${STRAY_NEXT}`,
+    );
   }
 
   identify(): Promise<DeviceIdentity> {
@@ -292,22 +317,39 @@ export class DeviceClient {
     this.inbox = []; // lines left from an earlier exchange belong to no one
     await this.transport.write(encodeCommand(tag, args));
     const frames: Frame[] = [];
+    // A line the tester could not read ("ER n ?") may be ours, or stray bytes that arrived as a
+    // line of their own ahead of ours: ours is answered too in that case, so listen until quiet.
+    let unreadable: DeviceError | null = null;
     try {
       for (;;) {
-        const d = await this.next(this.replyTimeout + extraWait_ms, `reply to ${tag}`);
+        let d: Decoded;
+        try {
+          d = await this.next(unreadable ? QUIET_MS : this.replyTimeout + extraWait_ms, `reply to ${tag}`);
+        } catch (e) {
+          if (unreadable && e instanceof DeviceTimeoutError) throw unreadable; // quiet already
+          throw e;
+        }
         if (!d.ok) throw new ProtocolError("LINK_CORRUPT", `corrupt reply to ${tag} (error ${d.code}): ${JSON.stringify(d.line)}; check the cable and retry`);
         const f = d.frame;
         if (f.tag === "OK" && f.fields[0] === tag) {
           if (token === undefined || f.fields[1] === String(token)) return frames;
           continue; // an earlier request's acknowledgement
         }
-        if (f.tag === "ER") throw errorFrame(f, tag);
+        if (f.tag === "ER") {
+          const err = errorFrame(f, tag);
+          if (f.fields[1] === "?" && GARBLED.includes(err.code)) {
+            unreadable ??= err;
+            continue;
+          }
+          throw err;
+        }
         frames.push(f);
       }
     } catch (e) {
       // A corrupt or late reply, or a tester that could not read our line (which a damaged
       // newline may have split in two, each half answered): wait out whatever else is coming.
-      const garbled = e instanceof DeviceError && ["LINK_CRC", "LINK_SYNTAX", "LINE_TOO_LONG"].includes(e.code);
+      const garbled = e instanceof DeviceError && GARBLED.includes(e.code);
+      if (e === unreadable) throw e;
       if (e instanceof ProtocolError || e instanceof DeviceTimeoutError || garbled) await this.drainUntilQuiet();
       throw e;
     }
@@ -322,7 +364,7 @@ export class DeviceClient {
 
   private async drainUntilQuiet(): Promise<void> {
     try {
-      for (;;) await this.next(200, "drain");
+      for (;;) await this.next(QUIET_MS, "drain");
     } catch (e) {
       if (!(e instanceof DeviceTimeoutError)) throw e;
     }

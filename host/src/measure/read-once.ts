@@ -7,6 +7,7 @@ import type { CaptureV1 } from "../capture/capture-file.ts";
 import type { DeviceClient, MeasureSettings } from "../device/client.ts";
 import { formatSi } from "../format/si.ts";
 import { captureFromDevice, ringInputFromCapture } from "./capture-build.ts";
+import { withUnaccountedCapacitance } from "./reading-uncertainty.ts";
 import type { MeasureOptions, Reading } from "./measure-part.ts";
 import { CodedError } from "../coded-error.ts";
 import { ReadingProgress, type MeasurePhase } from "./events.ts";
@@ -41,7 +42,7 @@ export function analyzeCapture(capture: CaptureV1): RingAnalysis {
 export function fitCapture(capture: CaptureV1): { fit: FitState; analysis: RingAnalysis } {
   try {
     const fit = fitRing(ringInputFromCapture(capture));
-    return { fit, analysis: analyzeFit(fit) };
+    return { fit, analysis: withUnaccountedCapacitance(analyzeFit(fit), capture) };
   } catch (e) {
     const m = e instanceof AnalysisError ? new MeasureError(e.code, e.message) : e;
     if (m instanceof MeasureError) m.capture ??= capture;
