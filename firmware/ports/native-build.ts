@@ -131,6 +131,20 @@ export function buildArm(target: keyof typeof ARM_TARGETS): ArmSizes {
   return { text_bytes: Number(text[0]), data_bytes: Number(text[1]), bss_bytes: Number(text[2]) };
 }
 
+/** The capture merge shared by the board ports (firmware/ports/common/), as plain C. */
+export const CAPTURE_MERGE_SOURCES = [join(PORTS, "common", "capture-merge.c"), join(PORTS, "common", "merge-replay.c")];
+
+/** Builds the capture merge's host driver (firmware/ports/host/capture-merge-check.c); needs only gcc. */
+export function buildCaptureMergeCheck(): string {
+  mkdirSync(NATIVE_DIR, { recursive: true });
+  const out = join(NATIVE_DIR, "capture-merge-check");
+  gcc("gcc", [
+    "-std=c11", "-O2", "-Wall", "-Wextra", "-Werror", "-I", join(PORTS, "common"), "-o", out,
+    ...CAPTURE_MERGE_SOURCES, join(PORTS, "host", "capture-merge-check.c"),
+  ]);
+  return out;
+}
+
 /** Cores of the emulated STM32F405 port (firmware/ports/qemu-f405), with QEMU's -cpu name. */
 export const QEMU_CORES = {
   m0: { flags: ["-mcpu=cortex-m0", "-mthumb"], qemu_cpu: "cortex-m0", id: 0 },

@@ -14,6 +14,7 @@ export { listSerialPorts } from "./transport/serial-transport.ts";
 export type { SerialPortInfo } from "./transport/serial-transport.ts";
 export { measurePart, analyzeCapture, MeasureError, PartFaultError } from "./measure/measure-part.ts";
 export type { Reading, MeasureOptions } from "./measure/measure-part.ts";
+export type { MeasureEvent, MeasurePhase, PulseEvent, StepEvent, CautionEvent, DoneEvent, SettingInfo } from "./measure/events.ts";
 export { buildResult } from "./measure/result.ts";
 export type { ResultJson } from "./measure/result.ts";
 export { readCaptureFile, writeCaptureFile, parseCapture, CaptureFileError } from "./capture/capture-file.ts";

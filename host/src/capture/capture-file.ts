@@ -1,8 +1,9 @@
 // Capture file v1 (docs/capture-format.md): the edge record of one ring-down with everything
 // needed to analyse it again later. Written by `measure --save`, read by `analyze`.
 
-import { closeSync, fsyncSync, openSync, renameSync, readFileSync, writeSync } from "node:fs";
+import { readFileSync } from "node:fs";
 import { CodedError } from "../coded-error.ts";
+import { writeFileAtomic } from "../fs/atomic-write.ts";
 
 export const CAPTURE_FORMAT = "henrytick-capture";
 export const CAPTURE_VERSION = 1;
@@ -108,15 +109,7 @@ export function serializeCapture(c: CaptureV1): string {
   return `${head.slice(0, -2)},\n  "edges": [${edgeText}]\n}\n`;
 }
 
-/** Writes atomically: a reader never sees a half-written capture, and a crash keeps the old file. */
+/** Writes atomically (fs/atomic-write.ts): a reader never sees a half-written capture, and a crash keeps the old file. */
 export function writeCaptureFile(path: string, c: CaptureV1): void {
-  const tmp = `${path}.${process.pid}.tmp`;
-  const fd = openSync(tmp, "w");
-  try {
-    writeSync(fd, serializeCapture(c));
-    fsyncSync(fd); // on disk before the rename makes it the file: a power cut keeps old or new
-  } finally {
-    closeSync(fd);
-  }
-  renameSync(tmp, path);
+  writeFileAtomic(path, serializeCapture(c));
 }

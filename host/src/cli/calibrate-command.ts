@@ -14,18 +14,6 @@ import { openTester } from "../open-tester.ts";
 import { intOption, parse, testerTarget } from "./args.ts";
 import { CliUsageError } from "./errors.ts";
 
-export const CALIBRATE_USAGE = `  henrytick calibrate show (--sim | --port PATH)      the tester's calibration profile
-  henrytick calibrate reference … --ref-h L --ref-u-h U [--ref-cs-f C --ref-u-cs-f U] [--tanks 0,1,…]
-                                       reference inductor on the clips → each tank's capacitance
-  henrytick calibrate parallel … --tank N --cap-f C --cap-u-f U [--part-cs-f C]
-                                       any coil on the clips, rung without and with a known capacitor
-  henrytick calibrate thresholds …     high-Q coil on the clips → comparator threshold ratio
-  henrytick calibrate timebase … [--seconds N]     time the tester's crystal against this computer's clock (default 60 s)
-  henrytick calibrate timebase … --ppm P --u-ppm U   or enter a crystal error measured with a frequency counter
-  henrytick calibrate restore …        make the previous profile current again
-    (uncertainties are standard, k = 1; values take SI prefixes: 330u, 4n7, 0.5p;
-     --config-dir DIR overrides $HENRYTICK_CONFIG_DIR / $XDG_CONFIG_HOME/henrytick)`;
-
 const PREFIX: Record<string, number> = { f: 1e-15, p: 1e-12, n: 1e-9, u: 1e-6, µ: 1e-6, m: 1e-3, k: 1e3, M: 1e6 };
 
 /** "330u", "4n7", "330uH", "1.5e-3" → number; the unit letter is optional. */

@@ -1,17 +1,11 @@
 // henrytick command line. Commands only parse arguments and format output; the work is done by
 // the library (open-tester, measure, capture, analysis).
+//
+// Each command's module is imported when that command runs, so `--help`, `--version` and
+// commands that need no tester load neither the serial stack nor the simulator nor the report
+// code (test/bench/sections/cli.ts counts the files `--help` loads).
 
-import { runAnalyze } from "./analyze-command.ts";
-import { runMeasure } from "./measure-command.ts";
-import { CALIBRATE_USAGE, runCalibrate } from "./calibrate-command.ts";
-import { runProfile, runScenarios } from "./info-commands.ts";
-import { runAdvise } from "./advise-command.ts";
-import { runPorts } from "./ports-command.ts";
-import { runSimDevice } from "./sim-device-command.ts";
-import { runSortCommand } from "./sort-command.ts";
-import { WATCH_USAGE } from "./measure-watch.ts";
-import { runWindCommand } from "./wind-command.ts";
-import { runReportCommand } from "./report-command.ts";
+import { CALIBRATE_USAGE, WATCH_USAGE } from "./help-text.ts";
 import { CliUsageError, reportError } from "./errors.ts";
 import { SAFETY_TEXT } from "./safety.ts";
 import { packageVersion } from "../version.ts";
@@ -98,22 +92,22 @@ export async function main(argv: string[]): Promise<number> {
     }
     switch (command) {
       case "measure":
-        return await runMeasure(rest);
+        return await (await import("./measure-command.ts")).runMeasure(rest);
       case "analyze":
-        return await runAnalyze(rest);
+        return await (await import("./analyze-command.ts")).runAnalyze(rest);
       case "profile":
-        return await runProfile(rest);
+        return await (await import("./info-commands.ts")).runProfile(rest);
       case "advise":
-        return await runAdvise(rest);
-      case "sim-device": return await runSimDevice(rest);
-      case "sort": return await runSortCommand(rest);
-      case "wind": return await runWindCommand(rest);
-      case "report": return await runReportCommand(rest);
-      case "calibrate": return await runCalibrate(rest);
+        return await (await import("./advise-command.ts")).runAdvise(rest);
+      case "sim-device": return await (await import("./sim-device-command.ts")).runSimDevice(rest);
+      case "sort": return await (await import("./sort-command.ts")).runSortCommand(rest);
+      case "wind": return await (await import("./wind-command.ts")).runWindCommand(rest);
+      case "report": return await (await import("./report-command.ts")).runReportCommand(rest);
+      case "calibrate": return await (await import("./calibrate-command.ts")).runCalibrate(rest);
       case "scenarios":
-        return runScenarios(rest);
+        return (await import("./info-commands.ts")).runScenarios(rest);
       case "ports":
-        return await runPorts(rest);
+        return await (await import("./ports-command.ts")).runPorts(rest);
       case "--version":
         process.stdout.write(`henrytick ${packageVersion()}\n`);
         return 0;

@@ -24,13 +24,6 @@ export const WATCH_OPTIONS = {
   series: { type: "string" },
 } as const;
 
-export const WATCH_USAGE = `  --watch              read continuously: trend line and stability (Ctrl-C stops)
-  --big                with --watch: the value in large characters
-  --count N            with --watch: stop after N readings
-  --interval-ms N      with --watch: pause between readings (default 300)
-  --csv                one CSV row per reading (with --watch: reading, time and stability first)
-  --series E12         with --watch: also show the nearest E6 … E192 preferred value`;
-
 interface WatchValues {
   json?: boolean;
   csv?: boolean;

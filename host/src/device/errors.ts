@@ -29,12 +29,24 @@ export class DeviceTimeoutError extends CodedError<"DEVICE_TIMEOUT"> {
   }
 }
 
+/**
+ * The likely cause when the tester cannot read a line the host wrote: the host's lines come from
+ * the codec the firmware itself uses, so bytes were added on the way.
+ */
+export const STRAY_CAUSE =
+  "another program writing to the port (a modem manager probing new serial ports with AT commands, a terminal program left open), or noise on the line";
+/** What to do about stray bytes. */
+export const STRAY_NEXT =
+  "close any other program that has the port open (on Linux, ModemManager can be told to leave the tester alone with a udev rule " +
+  "setting ID_MM_DEVICE_IGNORE=1), then retry";
+export const STRAY_BYTES = `bytes the host did not send reached it, most often from ${STRAY_CAUSE}; ${STRAY_NEXT}`;
+
 export function describeDeviceError(n: number): [string, string] {
   switch (n) {
     case ERR_CRC:
-      return ["LINK_CRC", "the command arrived corrupted (CRC mismatch); check the cable and retry"];
+      return ["LINK_CRC", `the command arrived corrupted (CRC mismatch): noise on the cable, or ${STRAY_CAUSE.replace(/, or noise on the line$/, "")}; check the cable and that no other program has the port open, then retry`];
     case ERR_SYNTAX:
-      return ["LINK_SYNTAX", "the command was malformed; update the host software to match the firmware"];
+      return ["LINK_SYNTAX", `the tester could not read the command line: ${STRAY_BYTES}`];
     case ERR_UNKNOWN_COMMAND:
       return ["UNKNOWN_COMMAND", "the firmware does not know this command; update the firmware or the host"];
     case ERR_ARGUMENT:
@@ -46,7 +58,7 @@ export function describeDeviceError(n: number): [string, string] {
     case ERR_REST:
       return ["REST_PENDING", "the tester enforces a rest between pulses to protect its resistors; wait and retry"];
     case ERR_LINE_TOO_LONG:
-      return ["LINE_TOO_LONG", "the command line was too long; update the host software"];
+      return ["LINE_TOO_LONG", `the tester received a line over 120 bytes, longer than any the host sends: ${STRAY_BYTES}`];
     case ERR_ABORTED:
       return ["ABORTED", "the measurement was aborted; the switch is open"];
     case ERR_RINGING:

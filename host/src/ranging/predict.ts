@@ -8,6 +8,7 @@ import type { DeviceProfile } from "../device/profile.ts";
 import { predictedRingBound, rangingWork } from "./bound-cache.ts";
 import type { PartEstimate } from "./estimate.ts";
 import { lossModel, thresholdScale } from "./estimate.ts";
+import { unaccountedCapacitanceRelU } from "./unaccounted-capacitance.ts";
 
 export interface PlanLimits {
   /** Highest ring peak allowed, volts (never above the board's clamp). */
@@ -55,15 +56,6 @@ export interface SettingPrediction {
   refused: string;
 }
 
-/**
- * Capacitance in parallel with the tank that the reading cannot separate from it, as a standard
- * uncertainty: the part's own self-capacitance (typically a few to a few tens of pF for small
- * wound parts: 10 pF, common bench practice, no source) and, until calibrated, the fixture and
- * switch node (about 20 pF on the reference board: 10 pF). With a calibrated tank only the part's
- * share remains. This is why the advice prefers the largest tank that still rings long enough.
- */
-export const SELF_CAPACITANCE_U_F = 10e-12;
-export const UNCALIBRATED_STRAY_U_F = 10e-12;
 /** Timebase: ±50 ppm crystal, rectangular, until calibrated. */
 export const TIMEBASE_REL_U = 50e-6 / Math.sqrt(3);
 const DEFAULT_NOISE = { sigma_t_s: 3e-9, sigma_v_v: 0.6e-3 };
@@ -106,8 +98,10 @@ export function predictSetting(
   const avgPower = energy / (charge.charge_us * 1e-6 + rest_s);
   const edgeRateLimit = profile.tick_hz / TICKS_PER_EDGE_MIN;
   const fit = fitUncertainty(profile, est, a0, alpha, w0, c, cycles);
-  const stray_u = tankValue ? SELF_CAPACITANCE_U_F : Math.hypot(SELF_CAPACITANCE_U_F, UNCALIBRATED_STRAY_U_F);
-  const budget = { fit: fit.l_rel, tank: u_c / c, timebase: 2 * TIMEBASE_REL_U, stray: stray_u / c };
+  // What the reading will not separate from the tank: the same model as the reading's own U. This
+  // is why the advice prefers the largest tank that still rings long enough.
+  const stray = unaccountedCapacitanceRelU(c, { tank_calibrated: tankValue !== undefined });
+  const budget = { fit: fit.l_rel, tank: u_c / c, timebase: 2 * TIMEBASE_REL_U, stray };
   const p: SettingPrediction = {
     drive, tank, charge_us: charge.charge_us, i0_a: charge.i0, i0_worst_a: charge.i0_worst,
     supply_current_a: charge.i_final, resistor_energy_j: energy, resistor_avg_power_w: avgPower, resistor_rating_w: r.power_rating_w,
