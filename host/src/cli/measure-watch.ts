@@ -49,7 +49,7 @@ export async function runWatch(tester: OpenedTester, values: WatchValues, measur
   let drawn = 0;
   let n = 0;
   if (values.csv) process.stdout.write(csvHeader(CSV_FRONT));
-  process.stderr.write("   caution: the part is pulsed at every reading; keep fingers off transformer windings (Ctrl-C stops)\n");
+  process.stderr.write("   reading again and again (Ctrl-C stops)\n");
   try {
     while (!stop.signal.aborted && (count === undefined || n < count)) {
       let result: ResultJson | null = null;
