@@ -12,7 +12,7 @@ import { parseTolerance, toleranceLimits, type Limits } from "../values/toleranc
 import { coilOnFormer, formerTurnRange } from "../workflows/sim-coil.ts";
 import { makeStyle, stdinLines, type Style } from "../workflows/terminal.ts";
 import { windingAdvice, type WindingAdvice, type WindingReading } from "../workflows/winding.ts";
-import { numberOption, parse, testerTarget } from "./args.ts";
+import { numberOption, optionValue, parse, testerTarget } from "./args.ts";
 import { CliUsageError } from "./errors.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
 import { PulseCaution, windingRatioOption } from "./caution.ts";
@@ -66,7 +66,7 @@ export async function runWindCommand(args: string[]): Promise<number> {
   const target = parseValue(values.target);
   if (!(target.value > 0)) throw new CliUsageError(`--target must be a positive inductance, got "${values.target}"`);
   const tolText = values.tol ?? target.toleranceLetter;
-  const limits: Limits | undefined = tolText ? toleranceLimits(target.value, parseTolerance(tolText)) : undefined;
+  const limits: Limits | undefined = tolText ? optionValue("tol", () => toleranceLimits(target.value, parseTolerance(tolText))) : undefined;
   const max_peak_v = numberOption(values["max-peak-v"], "max-peak-v", 0.1, 1000);
   const other_winding_ratio = windingRatioOption(values["winding-ratio"]);
   const listed = values.turns?.split(",").map((t) => turnCount(t.trim()));
