@@ -50,17 +50,26 @@ export function testerTarget(values: { sim?: boolean; port?: string; seed?: stri
 }
 
 /**
+ * Reads an option's value with a library function whose RangeError means the value itself is
+ * wrong (an unknown series name, a tolerance reaching below zero, a value the value parser
+ * refuses): that is a usage error naming the option, never an internal one.
+ */
+export function optionValue<T>(name: string, read: () => T): T {
+  try {
+    return read();
+  } catch (e) {
+    if (e instanceof ValueError || (e instanceof RangeError && (e as { code?: unknown }).code === undefined)) throw new CliUsageError(`--${name}: ${e.message}`);
+    throw e;
+  }
+}
+
+/**
  * A value option in `unit` through the one value parser (values/parse-value.ts), with the option
  * named in the message; `range` refuses what is outside it up front.
  */
 export function valueOption(v: string | undefined, name: string, unit: string, range?: { min: number; max: number; what: string }): ParsedValue | undefined {
   if (v === undefined) return undefined;
-  try {
-    return range ? parseValueIn(v, unit, range) : parseValue(v, unit);
-  } catch (e) {
-    if (e instanceof ValueError) throw new CliUsageError(`--${name}: ${e.message}`);
-    throw e;
-  }
+  return optionValue(name, () => (range ? parseValueIn(v, unit, range) : parseValue(v, unit)));
 }
 
 /** The same, for an option that must be given. */
@@ -71,10 +80,5 @@ export function requiredValue(v: string | undefined, name: string, unit: string,
 
 /** A tolerance option (5%, J, +10%/-5%, 0.5u) with the option named in the message. */
 export function toleranceOption(v: string, name: string, unit = "H"): Tolerance {
-  try {
-    return parseTolerance(v, unit);
-  } catch (e) {
-    if (e instanceof ValueError) throw new CliUsageError(`--${name}: ${e.message}`);
-    throw e;
-  }
+  return optionValue(name, () => parseTolerance(v, unit));
 }

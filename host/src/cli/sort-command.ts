@@ -6,14 +6,14 @@ import { openTester } from "../open-tester.ts";
 import { formatSi } from "../format/si.ts";
 import { formatMeasured, formatValue } from "../values/format-value.ts";
 import { parseSeriesName } from "../values/e-series.ts";
-import { parseTolerance, type Tolerance } from "../values/tolerance.ts";
+import { parseTolerance, toleranceLimits, type Tolerance } from "../values/tolerance.ts";
 import { makeBins } from "../workflows/bins.ts";
 import { drawTray, SimTray } from "../workflows/sim-tray.ts";
 import { csvRow, CSV_COLUMNS, SortLog } from "../workflows/sort-log.ts";
 import { runSort, type SortEvent } from "../workflows/sort-runner.ts";
 import { SortSession, type PartRecord } from "../workflows/sort-session.ts";
 import { makeStyle, stdinLines, type Style } from "../workflows/terminal.ts";
-import { intOption, numberOption, parse, testerTarget, toleranceOption, valueOption } from "./args.ts";
+import { intOption, numberOption, optionValue, parse, testerTarget, toleranceOption, valueOption } from "./args.ts";
 import { MEASURABLE_RANGE } from "../values/range.ts";
 import { CliUsageError } from "./errors.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
@@ -146,12 +146,13 @@ function sortSpec(values: { nominal?: string; tol?: string; lot?: string; bins?:
   if (values.tol) tolerance = toleranceOption(values.tol, "tol");
   else if (nominal.toleranceLetter) tolerance = parseTolerance(nominal.toleranceLetter);
   else throw new CliUsageError("sort needs --tol (5%, J, 0.5u …) or a tolerance letter on the nominal (10uJ)");
+  optionValue("tol", () => toleranceLimits(nominal.value, tolerance));
   return {
     nominal_h: nominal.value,
     tolerance,
     lot: values.lot,
     bins: values.bins ? makeBins(values.bins.split(",").map((t) => valueOption(t, "bins", "H")!.value)) : undefined,
-    series: values.series ? parseSeriesName(values.series) : undefined,
+    series: values.series ? optionValue("series", () => parseSeriesName(values.series!)) : undefined,
   };
 }
 

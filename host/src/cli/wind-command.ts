@@ -10,7 +10,7 @@ import { toleranceLimits, type Limits } from "../values/tolerance.ts";
 import { coilOnFormer, formerTurnRange } from "../workflows/sim-coil.ts";
 import { makeStyle, stdinLines, type Style } from "../workflows/terminal.ts";
 import { windingAdvice, type WindingAdvice, type WindingReading } from "../workflows/winding.ts";
-import { numberOption, parse, testerTarget, toleranceOption, valueOption } from "./args.ts";
+import { numberOption, optionValue, parse, testerTarget, toleranceOption, valueOption } from "./args.ts";
 import { MEASURABLE_RANGE } from "../values/range.ts";
 import { CliUsageError } from "./errors.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
@@ -64,7 +64,7 @@ export async function runWindCommand(args: string[]): Promise<number> {
   if (!values.target) throw new CliUsageError("wind needs --target, e.g. --target 22u");
   const target = valueOption(values.target, "target", "H", MEASURABLE_RANGE)!;
   const tolText = values.tol ?? target.toleranceLetter;
-  const limits: Limits | undefined = tolText ? toleranceLimits(target.value, toleranceOption(tolText, "tol")) : undefined;
+  const limits: Limits | undefined = tolText ? optionValue("tol", () => toleranceLimits(target.value, toleranceOption(tolText, "tol"))) : undefined;
   const max_peak_v = numberOption(values["max-peak-v"], "max-peak-v", 0.1, 1000);
   const other_winding_ratio = windingRatioOption(values["winding-ratio"]);
   const listed = values.turns?.split(",").map((t) => turnCount(t.trim()));
