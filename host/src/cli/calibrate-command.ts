@@ -13,6 +13,8 @@ import type { OpenedTester } from "../open-tester.ts";
 import { openTester } from "../open-tester.ts";
 import { intOption, parse, testerTarget } from "./args.ts";
 import { CliUsageError } from "./errors.ts";
+import { resolvePeakLimit } from "../ranging/safety.ts";
+import { PulseCaution } from "./caution.ts";
 
 const PREFIX: Record<string, number> = { f: 1e-15, p: 1e-12, n: 1e-9, u: 1e-6, µ: 1e-6, m: 1e-3, k: 1e3, M: 1e6 };
 
@@ -45,11 +47,11 @@ export async function runCalibrate(args: string[]): Promise<number> {
     case "reference": return withTester(rest, {
       "ref-h": { type: "string" }, "ref-u-h": { type: "string" }, "ref-cs-f": { type: "string" }, "ref-u-cs-f": { type: "string" },
       tanks: { type: "string" }, repeats: { type: "string" }, "ref-label": { type: "string" },
-    }, reference);
+    }, reference, true);
     case "parallel": return withTester(rest, {
       tank: { type: "string" }, "cap-f": { type: "string" }, "cap-u-f": { type: "string" }, "part-cs-f": { type: "string" }, "part-u-cs-f": { type: "string" }, repeats: { type: "string" },
-    }, parallel);
-    case "thresholds": return withTester(rest, { captures: { type: "string" } }, thresholds);
+    }, parallel, true);
+    case "thresholds": return withTester(rest, { captures: { type: "string" } }, thresholds, true);
     case "timebase": return withTester(rest, { ppm: { type: "string" }, "u-ppm": { type: "string" }, seconds: { type: "string" } }, timebase);
     default:
       throw new CliUsageError(`calibrate needs one of: show, reference, parallel, thresholds, timebase, restore${sub ? ` (got "${sub}")` : ""}`);
@@ -59,13 +61,17 @@ export async function runCalibrate(args: string[]): Promise<number> {
 type Values = Record<string, string | boolean | undefined>;
 type Action = (t: OpenedTester, store: StoreOptions, v: Values) => Promise<number>;
 
-async function withTester(args: string[], extra: Record<string, { type: "string" | "boolean" }>, action: Action): Promise<number> {
+async function withTester(args: string[], extra: Record<string, { type: "string" | "boolean" }>, action: Action, pulses = false): Promise<number> {
   const { values, positionals } = parse(args, { ...COMMON, ...extra });
   const v = values as Values;
   const target = testerTarget(v as { sim?: boolean; port?: string; seed?: string }, positionals);
   const store: StoreOptions = v["config-dir"] ? { dir: v["config-dir"] as string } : {};
   const tester = await openTester(target);
   try {
+    if (pulses) {
+      const limit = resolvePeakLimit(undefined, tester.client.profile.clamp_v, false);
+      new PulseCaution({ describe: [tester.scenario?.name, tester.scenario?.story], limit, quiet: v.json === true, repeated: true }).start();
+    }
     return await action(tester, store, v);
   } finally {
     await tester.close();

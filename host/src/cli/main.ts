@@ -7,7 +7,7 @@
 
 import { CALIBRATE_USAGE, WATCH_USAGE } from "./help-text.ts";
 import { CliUsageError, reportError } from "./errors.ts";
-import { SAFETY_TEXT } from "./safety.ts";
+import { SAFETY_TEXT, WINDING_RATIO_HELP } from "./safety.ts";
 import { packageVersion } from "../version.ts";
 
 export const USAGE = `henrytick — scopeless inductance meter
@@ -38,10 +38,13 @@ Options for measure:
   --drive N --tank N   use a fixed setting (indices from "henrytick profile"); it is still
                        checked against the limits before it is pulsed
   --charge-us N        charge time with a fixed setting (default: enough to settle, within the interlock)
-  --max-peak-v V       ring-peak limit (default 30 V or 80 % of the clamp); may be lowered,
-                       or raised up to the tester's clamp
+  --max-peak-v V       ring-peak limit (default 30 V or 80 % of the clamp: 28.8 V on the
+                       reference board's 36 V clamp); may be lowered, or raised up to the clamp.
+                       Until the first full reading, predictions keep 70 % of it (20.16 V)
+${WINDING_RATIO_HELP}
   --hazardous-ok       allow a limit above 42.4 V peak (hazardous live, IEC 61010-1); only with
-                       the part and any other winding guarded
+                       the part and any other winding guarded. It cannot take effect on a board
+                       whose clamp is below 42.4 V (the reference board's is 36 V)
   --seed N             noise seed for the simulated tester
   --self-cap           ring on two tanks: L corrected for self-capacitance, Cs and self-resonance
   --budget             show the uncertainty budget (fit, capacitance, timebase, self-capacitance)

@@ -14,13 +14,12 @@ import type { PlanLimits } from "../ranging/predict.ts";
 import type { MeasureOptions, Reading } from "./measure-part.ts";
 import { MeasureError, NO_USABLE_RING, describeSetting, readOnce } from "./read-once.ts";
 import { explainFailure, shortedPart, SHORT_MAX_L_H } from "./part-fault.ts";
+import { ROUGH_PREDICTION_SHARE as ROUGH_MARGIN, volts } from "../ranging/safety.ts";
 import { ReadingProgress, settingInfo } from "./events.ts";
 
 const PROBE_CHARGE_US = 5000;
 const PROBE_QUIET_US = 20000;
 const PROBE_TIMEOUT_MS = 1000;
-/** Peak predictions from the rough probe estimate get this margin below the limit. */
-const ROUGH_MARGIN = 0.7;
 const MAX_STEPS = 4;
 /** Fewest edges a ranged reading should rest on; fewer is reported with the reason. */
 export const MIN_EDGES_AUTO = 20;
@@ -82,8 +81,8 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
   // or a class II capacitor reads truest at a gentler ring.
   let gentleLimit_v = limits.max_peak_v;
   for (let step = 0; step < MAX_STEPS; step++) {
-    const base = { ...limits, max_peak_v: gentleLimit_v };
-    const stepLimits = est.fitted ? base : { ...base, max_peak_v: base.max_peak_v * ROUGH_MARGIN };
+    const base = gentleLimit_v < limits.max_peak_v ? { ...limits, max_peak_v: gentleLimit_v, why: "half the ring that changed with its amplitude" } : limits;
+    const stepLimits = est.fitted ? base : { ...base, max_peak_v: base.max_peak_v * ROUGH_MARGIN, why: `${ROUGH_MARGIN * 100} % of the ${volts(base.max_peak_v)} limit${base.why ? ` (${base.why})` : ""} while the part is known only from the probe` };
     lastAdvice = adviseSettings(profile, est, stepLimits, tanks);
     const next = lastAdvice.find((a) => a.refused === "" && !tried.has(key(a)));
     if (!next) break;
@@ -93,6 +92,7 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
     const nextSettings = settingsFor(client, next);
     const fraction = progress.stepFraction(step, MAX_STEPS);
     progress.emit({ type: "step", phase: "ranging", step: step + 1, of: MAX_STEPS, setting: settingInfo(client, nextSettings), reason: next.reason, fraction, message: `step ${step + 1}: ${next.reason}` });
+    opts.onBeforePulse?.(next);
     let reading: Reading;
     try {
       reading = await readOnce(client, nextSettings, opts, progress, "ranging", fraction);
@@ -106,7 +106,7 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
     if (reading.analysis.amplitude_v > limits.max_peak_v) {
       // The physics said otherwise; keep the reading but go no further up.
       const amplitude_v = reading.analysis.amplitude_v;
-      progress.emit({ type: "caution", code: "RING_OVER_LIMIT", phase: "ranging", amplitude_v, fraction, message: `caution: the ring reached ${amplitude_v.toFixed(1)} V, above the ${limits.max_peak_v} V limit; stopping here` });
+      progress.emit({ type: "caution", code: "RING_OVER_LIMIT", phase: "ranging", amplitude_v, fraction, message: `caution: the ring reached ${volts(amplitude_v)}, above the ${volts(limits.max_peak_v)} limit; stopping here` });
       return { ...reading, prediction: next, advice: lastAdvice };
     }
     est = refineEstimate(est, estimateFromReading(profile, next, reading.analysis));
@@ -128,7 +128,7 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
   if (best.analysis.edges_used < MIN_EDGES_AUTO) {
     best.analysis.warnings.push({
       code: "FEW_EDGES_BEST_SETTING",
-      message: `the best setting found gives only ${best.analysis.edges_used} edges: the part is too heavily damped for a longer ring within the ${limits.max_peak_v} V limit; the reading rests on few cycles`,
+      message: `the best setting found gives only ${best.analysis.edges_used} edges: the part is too heavily damped for a longer ring within the ${volts(limits.max_peak_v)} limit; the reading rests on few cycles`,
     });
   }
   return best;

@@ -8,8 +8,8 @@ import type { DeviceClient, MeasureSettings } from "../device/client.ts";
 import type { Advice } from "../ranging/advice.ts";
 import type { PartEstimate } from "../ranging/estimate.ts";
 import type { PlanLimits } from "../ranging/predict.ts";
-import { predictSetting } from "../ranging/predict.ts";
-import { resolvePeakLimit } from "../ranging/safety.ts";
+import { predictSetting, type SettingPrediction } from "../ranging/predict.ts";
+import { resolvePeakLimit, volts } from "../ranging/safety.ts";
 import { autoRange, probePart } from "./auto-range.ts";
 import type { AppliedCalibration } from "./capture-build.ts";
 import { MeasureError, NO_USABLE_RING, describeSetting, readOnce } from "./read-once.ts";
@@ -32,6 +32,13 @@ export interface MeasureOptions {
   max_peak_v?: number;
   /** Consent to a limit above the hazardous-live level (42.4 V peak). Default false. */
   hazardous_ok?: boolean;
+  /**
+   * The part is one winding of a transformer whose other winding has this many turns per pulsed
+   * turn: it sees the pulse times this ratio, so every pulse is kept at max_peak_v / ratio.
+   */
+  other_winding_ratio?: number;
+  /** Called with each setting's prediction just before it is pulsed (not for the gentle probe). */
+  onBeforePulse?: (p: SettingPrediction) => void;
   /** What is already known about the part (from an earlier reading): skips the probe. */
   estimate?: PartEstimate;
   label?: string;
@@ -96,9 +103,12 @@ export async function measurePart(client: DeviceClient, opts: MeasureOptions = {
 
 async function settle(client: DeviceClient, opts: MeasureOptions, progress: ReadingProgress): Promise<Reading> {
   const profile = client.profile;
-  const peak = resolvePeakLimit(opts.max_peak_v, profile.clamp_v, opts.hazardous_ok ?? false);
+  const peak = resolvePeakLimit(opts.max_peak_v, profile.clamp_v, opts.hazardous_ok ?? false, { other_winding_ratio: opts.other_winding_ratio });
   if (!peak.ok) throw new MeasureError("PEAK_LIMIT", peak.message);
-  const limits: PlanLimits = { max_peak_v: peak.limit_v, min_ticks_per_period: 40 };
+  const limits: PlanLimits = {
+    max_peak_v: peak.limit_v, min_ticks_per_period: 40,
+    ...(peak.limit_v < peak.winding_limit_v ? { why: `${volts(peak.winding_limit_v)} / ${peak.other_winding_ratio} for the other winding` } : {}),
+  };
   if (opts.drive === undefined && opts.tank === undefined) return autoRange(client, limits, opts, progress);
 
   const drive = opts.drive ?? 0;
@@ -116,6 +126,7 @@ async function settle(client: DeviceClient, opts: MeasureOptions, progress: Read
     throw new MeasureError("CHARGE_LIMIT", `the charge time ${charge} µs exceeds the drive resistor's ${profile.drives[drive].max_charge_us} µs interlock`);
   }
   const settings = { drive, tank, charge_us: charge, edge_limit: profile.buffer_edges, timeout_ms: FIXED_TIMEOUT_MS, quiet_us: FIXED_QUIET_US };
+  opts.onBeforePulse?.(p);
   try {
     return await readOnce(client, settings, opts, progress, "fixed", 0.5);
   } catch (e) {

@@ -8,6 +8,7 @@ import type { DeviceProfile } from "../device/profile.ts";
 import { predictedRingBound, rangingWork } from "./bound-cache.ts";
 import type { PartEstimate } from "./estimate.ts";
 import { lossModel, thresholdScale } from "./estimate.ts";
+import { volts } from "./safety.ts";
 import { unaccountedCapacitanceRelU } from "./unaccounted-capacitance.ts";
 
 export interface PlanLimits {
@@ -15,6 +16,8 @@ export interface PlanLimits {
   max_peak_v: number;
   /** Fewest timer ticks per ring period for a sound fit. */
   min_ticks_per_period: number;
+  /** Where max_peak_v comes from when it is not the plain limit, for refusal messages. */
+  why?: string;
 }
 
 export interface TankValue {
@@ -116,7 +119,7 @@ export function predictSetting(
 
 function refusal(p: SettingPrediction, limits: PlanLimits, a0_worst: number): string {
   // The limit is checked on the undamped amplitude at the worst-case current: a bound, not a guess.
-  if (a0_worst > limits.max_peak_v) return `its ring could reach ${a0_worst.toFixed(1)} V, above the ${limits.max_peak_v} V limit`;
+  if (a0_worst > limits.max_peak_v) return `its ring could reach ${volts(a0_worst)}, above the ${volts(limits.max_peak_v)} limit${limits.why ? ` (${limits.why})` : ""}`;
   if (p.q <= 0.5) return "the part would not ring on this tank (overdamped)";
   if (p.ticks_per_period < limits.min_ticks_per_period) return `the ring is too fast for the timer (${p.ticks_per_period.toFixed(0)} ticks per period, ${limits.min_ticks_per_period} needed)`;
   if (p.edge_rate_hz > p.edge_rate_limit_hz) return `edges would come faster than the capture can store them`;
