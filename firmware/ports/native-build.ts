@@ -144,3 +144,41 @@ export function buildCaptureMergeCheck(): string {
   ]);
   return out;
 }
+
+/** Cores of the emulated STM32F405 port (firmware/ports/qemu-f405), with QEMU's -cpu name. */
+export const QEMU_CORES = {
+  m0: { flags: ["-mcpu=cortex-m0", "-mthumb"], qemu_cpu: "cortex-m0", id: 0 },
+  m4: { flags: ["-mcpu=cortex-m4", "-mthumb", "-mfloat-abi=soft"], qemu_cpu: "cortex-m4", id: 1 },
+} as const;
+export type QemuCore = keyof typeof QEMU_CORES;
+
+/** Links the emulated-board port for QEMU's netduinoplus2 machine; returns the ELF's path. */
+export function buildQemuF405(core: QemuCore): string {
+  const gen = generateC();
+  const dir = join(PORTS, "qemu-f405");
+  const out = join(NATIVE_DIR, `qemu-f405-${core}.elf`);
+  gcc("arm-none-eabi-gcc", [
+    ...QEMU_CORES[core].flags, "-Os", "-DNDEBUG", `-DQEMU_PORT_CORE=${QEMU_CORES[core].id}`, "-Wall", "-ffunction-sections", "-fdata-sections",
+    ...generatedFlags(), ...INCLUDES(gen),
+    "-nostartfiles", "--specs=nano.specs", "--specs=nosys.specs", "-Wl,--gc-sections", "-T", join(dir, "qemu-f405.ld"),
+    "-o", out,
+    join(gen, "henrytick.c"), join(PORTS, "runtime", "henrytick-rt.c"), join(dir, "port-qemu-f405.c"), join(dir, "startup.c"),
+  ]);
+  return out;
+}
+
+// npx tsx firmware/ports/native-build.ts qemu-f405 [m0|m4 ...]: builds the emulated board's images.
+if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) {
+  const [what, ...cores] = process.argv.slice(2);
+  if (what !== "qemu-f405") {
+    process.stderr.write("usage: native-build.ts qemu-f405 [m0|m4 ...]\n");
+    process.exit(2);
+  }
+  for (const core of cores.length ? cores : Object.keys(QEMU_CORES)) {
+    if (!(core in QEMU_CORES)) {
+      process.stderr.write(`unknown core "${core}" (m0 or m4)\n`);
+      process.exit(2);
+    }
+    process.stdout.write(buildQemuF405(core as QemuCore) + "\n");
+  }
+}
