@@ -11,7 +11,9 @@
 import { formatValue } from "./format-value.ts";
 import { TOLERANCE_LETTERS } from "./tolerance-letters.ts";
 
-export type ValueErrorCode = "BAD_VALUE" | "WRONG_UNIT" | "AMBIGUOUS_VALUE" | "OUT_OF_RANGE";
+import type { VALUE_ERROR_MEANINGS } from "../codes.ts";
+
+export type ValueErrorCode = keyof typeof VALUE_ERROR_MEANINGS;
 
 /** A text that is not a usable value (a RangeError: a bad argument); the message says how to write one. */
 export class ValueError extends RangeError {
