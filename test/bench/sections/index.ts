@@ -1,5 +1,5 @@
 // The benchmark sections, in the order they run. Each owner adds its own file here.
-import { analysisSection } from "./analysis.ts";
+import { analysisRealSection, analysisSection } from "./analysis.ts";
 import { e2eSection } from "./e2e.ts";
 import { firmwareSection } from "./firmware.ts";
 import { simSection } from "./sim.ts";
@@ -8,4 +8,4 @@ import { adviceSection } from "./advice.ts";
 import { reliabilitySection } from "./reliability.ts";
 import type { BenchSection } from "./types.ts";
 
-export const sections: BenchSection[] = [firmwareSection, e2eSection, ptySection, simSection, analysisSection, adviceSection, reliabilitySection];
+export const sections: BenchSection[] = [firmwareSection, e2eSection, ptySection, simSection, analysisSection, analysisRealSection, adviceSection, reliabilitySection];
