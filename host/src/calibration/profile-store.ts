@@ -1,12 +1,13 @@
 // Where calibration profiles live and how they are written: one file per tester in the user's
 // config directory ($HENRYTICK_CONFIG_DIR, else $XDG_CONFIG_HOME/henrytick, else
-// ~/.config/henrytick; XDG Base Directory Specification). Every write goes to a temporary file
-// that is flushed and then renamed over the target, so a reader sees the old file or the new
-// one, never half of either; the profile being replaced is kept as the "previous" file.
+// ~/.config/henrytick; XDG Base Directory Specification). Every write goes through
+// fs/atomic-write.ts, so a reader sees the old file or the new one, never half of either; the
+// profile being replaced is kept as the "previous" file.
 
-import { closeSync, existsSync, fsyncSync, mkdirSync, openSync, readFileSync, renameSync, writeSync } from "node:fs";
+import { existsSync, mkdirSync, readFileSync, renameSync } from "node:fs";
 import { homedir } from "node:os";
 import { join } from "node:path";
+import { writeFileAtomic } from "../fs/atomic-write.ts";
 import { CalibrationError } from "./errors.ts";
 import type { CalibrationProfile } from "./profile-schema.ts";
 import { validateProfile } from "./profile-schema.ts";
@@ -72,15 +73,7 @@ export function loadProfile(device_id: string, opts: StoreOptions = {}): Calibra
 }
 
 function writeAtomically(path: string, text: string): void {
-  const tmp = `${path}.${process.pid}.${Math.random().toString(36).slice(2)}.tmp`;
-  const fd = openSync(tmp, "w", 0o644);
-  try {
-    writeSync(fd, text);
-    fsyncSync(fd); // the data must be on disk before the rename makes it the profile
-  } finally {
-    closeSync(fd);
-  }
-  renameSync(tmp, path);
+  writeFileAtomic(path, text, { mode: 0o644 });
 }
 
 /**

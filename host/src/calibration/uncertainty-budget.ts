@@ -1,8 +1,11 @@
 // Uncertainty budget of one inductance value: the standard relative contributions of the fit,
-// the tank capacitance, the timebase and the part's self-capacitance, combined in quadrature
+// the tank capacitance, the timebase and the capacitance the reading cannot separate from the
+// tank (the part's self-capacitance, strays of an uncalibrated tank), combined in quadrature
 // (uncorrelated groups, JCGM 100:2008 §5.1.2) and expanded with k = 2 (§6.2-6.3). Pure.
 
+import type { ReadingBudgetLine } from "../codes.ts";
 import type { RingAnalysis } from "../analysis/index.ts";
+import { SELF_CAPACITANCE_LINE, STRAY_CAPACITANCE_LINE } from "../measure/reading-uncertainty.ts";
 import type { TwoCapacitanceResult } from "./two-capacitance.ts";
 
 export const BUDGET_GROUPS = ["fit", "capacitance", "timebase", "self-capacitance"] as const;
@@ -41,14 +44,17 @@ export interface TimebaseKnowledge {
 /**
  * Budget of a single-tank reading. The analysis supplies fit and capacitance; the timebase line
  * is replaced when the caller knows better (a calibrated timebase, or a tank calibrated against
- * a reference inductor on this very timebase, where the error cancels). The part's own
- * self-capacitance is not removed from a single-tank reading: the line says so and is zero
- * unless `cs` gives an estimate of it.
+ * a reference inductor on this very timebase, where the error cancels). The self-capacitance
+ * line holds the capacitance the reading cannot separate from the tank (the reading layer's
+ * lines, measure/reading-uncertainty.ts): the part's own Cs, and the fixture and switch node
+ * until the tank is calibrated. With `cs` (an estimate of the part's Cs) the value is corrected
+ * and the part's share is that estimate's uncertainty.
  */
 export function singleTankBudget(
   a: RingAnalysis, tank_c_f: number, timebase?: TimebaseKnowledge, cs?: { cs_f: number; u_cs_f: number },
 ): UncertaintyBudget {
-  const from = (name: string) => a.budget.find((b) => b.name === name)?.rel_u ?? 0;
+  const from = (name: ReadingBudgetLine) => a.budget.find((b) => b.name === name)?.rel_u ?? 0;
+  const stray = from(STRAY_CAPACITANCE_LINE);
   const lines: BudgetLine[] = [
     { group: "fit", rel_u: from("fit"), note: `edge-model fit, ${a.edges_used} edges` },
     { group: "capacitance", rel_u: from("capacitance"), note: "tank capacitance as applied to the capture" },
@@ -56,13 +62,17 @@ export function singleTankBudget(
       ? { group: "timebase", rel_u: 2 * timebase.u_rel, note: timebase.note }
       : { group: "timebase", rel_u: from("timebase"), note: "uncalibrated crystal (analysis default)" },
   ];
+  const strayNote = stray > 0 ? "; fixture and switch node: tank not calibrated" : "";
   if (cs) {
     // Corrected value L = L_app C / (C + Cs): relative sensitivity to Cs is -1/(C + Cs).
     const l = (a.inductance_h * tank_c_f) / (tank_c_f + cs.cs_f);
-    lines.push({ group: "self-capacitance", rel_u: cs.u_cs_f / (tank_c_f + cs.cs_f), note: "correction for the part's self-capacitance" });
+    lines.push({ group: "self-capacitance", rel_u: Math.hypot(cs.u_cs_f / (tank_c_f + cs.cs_f), stray), note: `correction for the part's self-capacitance${strayNote}` });
     return combineBudget("corrected", l, lines);
   }
-  lines.push({ group: "self-capacitance", rel_u: 0, note: "not removed: apparent inductance (use --self-cap for the corrected value)" });
+  lines.push({
+    group: "self-capacitance", rel_u: Math.hypot(from(SELF_CAPACITANCE_LINE), stray),
+    note: `part's self-capacitance not removed (use --self-cap for the corrected value)${strayNote}`,
+  });
   return combineBudget("apparent", a.inductance_h, lines);
 }
 

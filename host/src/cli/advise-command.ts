@@ -4,7 +4,8 @@
 import { probePart } from "../measure/auto-range.ts";
 import { openTester } from "../open-tester.ts";
 import { adviseSettings } from "../ranging/advice.ts";
-import { resolvePeakLimit } from "../ranging/safety.ts";
+import { resolvePeakLimit, volts } from "../ranging/safety.ts";
+import { PulseCaution, windingRatioOption } from "./caution.ts";
 import { formatSi } from "../format/si.ts";
 import { numberOption, parse, testerTarget } from "./args.ts";
 import { CliUsageError } from "./errors.ts";
@@ -12,23 +13,30 @@ import { CliUsageError } from "./errors.ts";
 export async function runAdvise(args: string[]): Promise<number> {
   const { values, positionals } = parse(args, {
     sim: { type: "boolean" }, port: { type: "string" }, json: { type: "boolean" }, seed: { type: "string" },
-    "max-peak-v": { type: "string" }, "hazardous-ok": { type: "boolean" },
+    "max-peak-v": { type: "string" }, "hazardous-ok": { type: "boolean" }, "winding-ratio": { type: "string" },
   });
+  const other_winding_ratio = windingRatioOption(values["winding-ratio"]);
   const tester = await openTester(testerTarget(values, positionals));
   try {
     const profile = tester.client.profile;
-    const limit = resolvePeakLimit(numberOption(values["max-peak-v"], "max-peak-v", 0.1, 1000), profile.clamp_v, values["hazardous-ok"] ?? false);
+    const limit = resolvePeakLimit(numberOption(values["max-peak-v"], "max-peak-v", 0.1, 1000), profile.clamp_v, values["hazardous-ok"] ?? false, { other_winding_ratio });
     if (!limit.ok) throw new CliUsageError(limit.message);
+    new PulseCaution({ describe: [tester.scenario?.name, tester.scenario?.story], limit, quiet: values.json === true }).start();
     const progress = (m: string) => {
       if (!values.json) process.stderr.write(`   ${m}\n`);
     };
     const est = await probePart(tester.client, progress, limit.limit_v);
-    const advice = adviseSettings(profile, est, { max_peak_v: limit.limit_v, min_ticks_per_period: 40 });
+    const advice = adviseSettings(profile, est, {
+      max_peak_v: limit.limit_v, min_ticks_per_period: 40,
+      ...(limit.limit_v < limit.winding_limit_v ? { why: `${volts(limit.winding_limit_v)} / ${limit.other_winding_ratio} for the other winding` } : {}),
+    });
     if (values.json) {
-      process.stdout.write(JSON.stringify({ estimate: est, limit_v: limit.limit_v, advice }, null, 2) + "\n");
+      const { ok: _ok, ...limitJson } = limit;
+      process.stdout.write(JSON.stringify({ estimate: est, limit_v: limit.limit_v, limit: limitJson, advice }, null, 2) + "\n");
       return 0;
     }
     const lines = [`── advice for a part of about ${formatSi(est.l_h, "H", 3)} (from a probe; ${limit.message})`];
+    lines.push(...limit.basis.map((b) => `   limit  ${b}`));
     advice.forEach((a, i) => lines.push(`   ${a.refused ? " -" : String(i + 1).padStart(2)}  ${a.reason}`));
     process.stdout.write(lines.join("\n") + "\n");
     return 0;

@@ -46,3 +46,17 @@ export function testerTarget(values: { sim?: boolean; port?: string; seed?: stri
   if (positionals.length > 1) throw new CliUsageError(`unexpected argument "${positionals[1]}"`);
   return { scenario: positionals[0], seed };
 }
+
+/**
+ * Reads an option's value with a library function whose RangeError means the value itself is
+ * wrong (an unknown series name, a tolerance reaching below zero): that is a usage error naming
+ * the option, never an internal one.
+ */
+export function optionValue<T>(name: string, read: () => T): T {
+  try {
+    return read();
+  } catch (e) {
+    if (e instanceof RangeError && (e as { code?: unknown }).code === undefined) throw new CliUsageError(`--${name}: ${e.message}`);
+    throw e;
+  }
+}

@@ -13,18 +13,8 @@ import type { OpenedTester } from "../open-tester.ts";
 import { openTester } from "../open-tester.ts";
 import { intOption, parse, testerTarget } from "./args.ts";
 import { CliUsageError } from "./errors.ts";
-
-export const CALIBRATE_USAGE = `  henrytick calibrate show (--sim | --port PATH)      the tester's calibration profile
-  henrytick calibrate reference … --ref-h L --ref-u-h U [--ref-cs-f C --ref-u-cs-f U] [--tanks 0,1,…]
-                                       reference inductor on the clips → each tank's capacitance
-  henrytick calibrate parallel … --tank N --cap-f C --cap-u-f U [--part-cs-f C]
-                                       any coil on the clips, rung without and with a known capacitor
-  henrytick calibrate thresholds …     high-Q coil on the clips → comparator threshold ratio
-  henrytick calibrate timebase … [--seconds N]     time the tester's crystal against this computer's clock (default 60 s)
-  henrytick calibrate timebase … --ppm P --u-ppm U   or enter a crystal error measured with a frequency counter
-  henrytick calibrate restore …        make the previous profile current again
-    (uncertainties are standard, k = 1; values take SI prefixes: 330u, 4n7, 0.5p;
-     --config-dir DIR overrides $HENRYTICK_CONFIG_DIR / $XDG_CONFIG_HOME/henrytick)`;
+import { resolvePeakLimit } from "../ranging/safety.ts";
+import { PulseCaution } from "./caution.ts";
 
 const PREFIX: Record<string, number> = { f: 1e-15, p: 1e-12, n: 1e-9, u: 1e-6, µ: 1e-6, m: 1e-3, k: 1e3, M: 1e6 };
 
@@ -57,11 +47,11 @@ export async function runCalibrate(args: string[]): Promise<number> {
     case "reference": return withTester(rest, {
       "ref-h": { type: "string" }, "ref-u-h": { type: "string" }, "ref-cs-f": { type: "string" }, "ref-u-cs-f": { type: "string" },
       tanks: { type: "string" }, repeats: { type: "string" }, "ref-label": { type: "string" },
-    }, reference);
+    }, reference, true);
     case "parallel": return withTester(rest, {
       tank: { type: "string" }, "cap-f": { type: "string" }, "cap-u-f": { type: "string" }, "part-cs-f": { type: "string" }, "part-u-cs-f": { type: "string" }, repeats: { type: "string" },
-    }, parallel);
-    case "thresholds": return withTester(rest, { captures: { type: "string" } }, thresholds);
+    }, parallel, true);
+    case "thresholds": return withTester(rest, { captures: { type: "string" } }, thresholds, true);
     case "timebase": return withTester(rest, { ppm: { type: "string" }, "u-ppm": { type: "string" }, seconds: { type: "string" } }, timebase);
     default:
       throw new CliUsageError(`calibrate needs one of: show, reference, parallel, thresholds, timebase, restore${sub ? ` (got "${sub}")` : ""}`);
@@ -71,13 +61,17 @@ export async function runCalibrate(args: string[]): Promise<number> {
 type Values = Record<string, string | boolean | undefined>;
 type Action = (t: OpenedTester, store: StoreOptions, v: Values) => Promise<number>;
 
-async function withTester(args: string[], extra: Record<string, { type: "string" | "boolean" }>, action: Action): Promise<number> {
+async function withTester(args: string[], extra: Record<string, { type: "string" | "boolean" }>, action: Action, pulses = false): Promise<number> {
   const { values, positionals } = parse(args, { ...COMMON, ...extra });
   const v = values as Values;
   const target = testerTarget(v as { sim?: boolean; port?: string; seed?: string }, positionals);
   const store: StoreOptions = v["config-dir"] ? { dir: v["config-dir"] as string } : {};
   const tester = await openTester(target);
   try {
+    if (pulses) {
+      const limit = resolvePeakLimit(undefined, tester.client.profile.clamp_v, false);
+      new PulseCaution({ describe: [tester.scenario?.name, tester.scenario?.story], limit, quiet: v.json === true, repeated: true }).start();
+    }
     return await action(tester, store, v);
   } finally {
     await tester.close();

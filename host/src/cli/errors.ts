@@ -1,4 +1,21 @@
-// Maps errors to one line on stderr and an exit status. Errors a user can meet carry a code.
+// Maps errors to one line on stderr and an exit status (docs/user-guide.md, "exit status"):
+// 1 for every coded error (no reading, a device or file problem), 2 for usage errors only (a
+// CliUsageError, or a value the user typed that cannot be read: BAD_VALUE), 70 for anything the
+// program did not expect (an uncoded TypeError or RangeError is a bug, never the user's usage).
+// Errors a user can meet carry a code.
+
+// Every string written to stdout and stderr also passes the one terminal sanitiser below: labels,
+// tester ids, file names and messages from files and testers can hold control characters (clear
+// screen, window-title and cursor sequences, a carriage return that overwrites a line,
+// bidirectional overrides that reorder it); each is shown as a visible stand-in instead.
+
+import { randomBytes } from "node:crypto";
+
+export const EXIT_OK = 0;
+export const EXIT_FAILED = 1;
+export const EXIT_USAGE = 2;
+/** EX_SOFTWARE of BSD sysexits.h: an internal software error. */
+export const EXIT_INTERNAL = 70;
 
 export class CliUsageError extends Error {
   constructor(message: string) {
@@ -7,21 +24,114 @@ export class CliUsageError extends Error {
   }
 }
 
+const say = (line: string) => process.stderr.write(`henrytick: ${sanitizeForTerminal(line)}\n`);
+
+const PROGRAMMING_ERRORS = [TypeError, RangeError, ReferenceError, SyntaxError, EvalError, URIError];
+
 export function reportError(e: unknown): number {
   if (e instanceof CliUsageError) {
-    process.stderr.write(`henrytick: ${e.message}\nRun "henrytick --help" for usage.\n`);
-    return 2;
+    say(e.message);
+    process.stderr.write(`Run "henrytick --help" for usage.\n`);
+    return EXIT_USAGE;
   }
-  if (e instanceof TypeError || e instanceof RangeError) {
-    process.stderr.write(`henrytick: ${e.message}\n`);
-    return 2;
+  const code = e instanceof Error ? (e as { code?: unknown }).code : undefined;
+  if (code === "BAD_VALUE") {
+    say(`[BAD_VALUE] ${(e as Error).message}`);
+    process.stderr.write(`Run "henrytick --help" for usage.\n`);
+    return EXIT_USAGE;
+  }
+  if (e instanceof Error && typeof code === "string") {
+    say(`[${code}] ${e.message}`);
+    if (process.env.HENRYTICK_DEBUG) process.stderr.write(`${e.stack}\n`);
+    return EXIT_FAILED;
+  }
+  if (e instanceof Error && PROGRAMMING_ERRORS.some((k) => e instanceof k)) {
+    say(`internal error: ${e.name}: ${e.message}; please report it with the output of the same command run with HENRYTICK_DEBUG=1`);
+    if (process.env.HENRYTICK_DEBUG) process.stderr.write(`${e.stack}\n`);
+    return EXIT_INTERNAL;
   }
   if (e instanceof Error) {
-    const code = (e as { code?: unknown }).code;
-    process.stderr.write(`henrytick: ${typeof code === "string" ? `[${code}] ` : ""}${e.message}\n`);
+    say(e.message);
     if (process.env.HENRYTICK_DEBUG) process.stderr.write(`${e.stack}\n`);
-    return 1;
+    return EXIT_FAILED;
   }
-  process.stderr.write(`henrytick: ${String(e)}\n`);
-  return 1;
+  say(String(e));
+  return EXIT_FAILED;
+}
+
+/**
+ * A write to stdout or stderr failed (`> /dev/full`, a closed pipe). A reader that went away
+ * (EPIPE) ends the command quietly with the status so far; any other failure is OUTPUT_FAILED on
+ * stderr (when stderr still works), exit status 1. Returns the status to exit with.
+ */
+export function outputStreamError(err: unknown, stream: "stdout" | "stderr", statusSoFar: number | undefined): number {
+  const code = (err as NodeJS.ErrnoException | undefined)?.code;
+  if (code === "EPIPE") return statusSoFar ?? EXIT_OK;
+  if (stream === "stdout") {
+    const why = code === "ENOSPC" ? "no space left on the device" : code === "EDQUOT" ? "disk quota exceeded" : code === "EFBIG" ? "file too large" : "the write failed";
+    try {
+      process.stderr.write(`henrytick: [OUTPUT_FAILED] cannot write the output (${code ?? "error"}: ${why}); free some space or send the output elsewhere, and run the command again\n`);
+    } catch {
+      // stderr is gone too: the status says it
+    }
+  }
+  return EXIT_FAILED;
+}
+
+/** C0 controls but tab and newline, DEL, C1 controls, bidirectional embedding/override/isolate marks. */
+const UNSAFE = /[\x00-\x08\x0a-\x1f\x7f\x80-\x9f\u202a-\u202e\u2066-\u2069\u200e\u200f\u061c]/;
+
+function standIn(c: string): string {
+  const k = c.charCodeAt(0);
+  if (k < 0x20) return String.fromCharCode(0x2400 + k); // Unicode control pictures: ␛ ␍ ␇ …
+  if (k === 0x7f) return "\u2421"; // ␡
+  return "\ufffd";
+}
+
+/**
+ * Text safe to print on a terminal: every control character except tab and (unless `oneLine`)
+ * newline becomes a visible stand-in (ESC → ␛, CR → ␍, a C1 or bidirectional control → �).
+ */
+export function sanitizeForTerminal(text: string, opts: { oneLine?: boolean } = {}): string {
+  let out = "";
+  for (const c of text) {
+    if (c === "\n") out += opts.oneLine ? "\u2424" : c; // ␤
+    else if (UNSAFE.test(c)) out += standIn(c);
+    else out += c;
+  }
+  return out;
+}
+
+/**
+ * On a guarded stream the program's own escape sequences (colours, measure-watch's redraw) are
+ * written with this per-process random mark in place of ESC; the guard turns the mark back into
+ * ESC after sanitising, so text from a file cannot forge one (it cannot know the mark).
+ */
+const OWN_ESC = `\ue000${randomBytes(12).toString("base64url")}\ue001`;
+
+type Guarded = { __henrytickGuarded?: boolean };
+const isGuarded = (stream: unknown) => (stream as Guarded | undefined)?.__henrytickGuarded === true;
+
+/** The escape character for this program's own sequences on `stream`. */
+export function ownEsc(stream: unknown = process.stdout): string {
+  return isGuarded(stream) ? OWN_ESC : "\x1b";
+}
+
+/** Moves the cursor up `lines` lines and erases below (redrawing a block in place). */
+export function eraseUp(lines: number, stream: unknown = process.stdout): string {
+  const e = ownEsc(stream);
+  return `${e}[${Math.max(1, Math.floor(lines))}F${e}[J`;
+}
+
+/**
+ * Makes every string written to `stream` pass through the sanitiser; only this program's own
+ * escape sequences (written with `ownEsc`) survive. One guard for all printers, however the text
+ * was assembled. Idempotent.
+ */
+export function guardOutput(stream: NodeJS.WriteStream): void {
+  if (isGuarded(stream)) return;
+  (stream as Guarded).__henrytickGuarded = true;
+  const write = stream.write.bind(stream) as (...args: unknown[]) => boolean;
+  (stream as { write: unknown }).write = (chunk: unknown, ...rest: unknown[]) =>
+    write(typeof chunk === "string" ? sanitizeForTerminal(chunk).split(OWN_ESC).join("\x1b") : chunk, ...rest);
 }

@@ -1,19 +1,13 @@
 // henrytick command line. Commands only parse arguments and format output; the work is done by
 // the library (open-tester, measure, capture, analysis).
+//
+// Each command's module is imported when that command runs, so `--help`, `--version` and
+// commands that need no tester load neither the serial stack nor the simulator nor the report
+// code (test/bench/sections/cli.ts counts the files `--help` loads).
 
-import { runAnalyze } from "./analyze-command.ts";
-import { runMeasure } from "./measure-command.ts";
-import { CALIBRATE_USAGE, runCalibrate } from "./calibrate-command.ts";
-import { runProfile, runScenarios } from "./info-commands.ts";
-import { runAdvise } from "./advise-command.ts";
-import { runPorts } from "./ports-command.ts";
-import { runSimDevice } from "./sim-device-command.ts";
-import { runSortCommand } from "./sort-command.ts";
-import { WATCH_USAGE } from "./measure-watch.ts";
-import { runWindCommand } from "./wind-command.ts";
-import { runReportCommand } from "./report-command.ts";
+import { CALIBRATE_USAGE, WATCH_USAGE } from "./help-text.ts";
 import { CliUsageError, reportError } from "./errors.ts";
-import { SAFETY_TEXT } from "./safety.ts";
+import { SAFETY_TEXT, WINDING_RATIO_HELP } from "./safety.ts";
 import { packageVersion } from "../version.ts";
 
 export const USAGE = `henrytick — scopeless inductance meter
@@ -34,6 +28,8 @@ Usage:
 ${CALIBRATE_USAGE}
   henrytick sim-device [SCENARIO] [--seed N]   serve a simulated tester on a pseudo-terminal
                                        (prints its path for --port; needs socat; Ctrl-C stops)
+  henrytick sim-device … --emulated m4|m0   the same, with the firmware's C build running on an
+                                       emulated STM32F405 (needs qemu-system-arm, wabt, gcc-arm-none-eabi)
 
 Options for measure:
   --json               print the result as JSON (SI units in the key names)
@@ -44,10 +40,13 @@ Options for measure:
   --drive N --tank N   use a fixed setting (indices from "henrytick profile"); it is still
                        checked against the limits before it is pulsed
   --charge-us N        charge time with a fixed setting (default: enough to settle, within the interlock)
-  --max-peak-v V       ring-peak limit (default 30 V or 80 % of the clamp); may be lowered,
-                       or raised up to the tester's clamp
+  --max-peak-v V       ring-peak limit (default 30 V or 80 % of the clamp: 28.8 V on the
+                       reference board's 36 V clamp); may be lowered, or raised up to the clamp.
+                       Until the first full reading, predictions keep 70 % of it (20.16 V)
+${WINDING_RATIO_HELP}
   --hazardous-ok       allow a limit above 42.4 V peak (hazardous live, IEC 61010-1); only with
-                       the part and any other winding guarded
+                       the part and any other winding guarded. It cannot take effect on a board
+                       whose clamp is below 42.4 V (the reference board's is 36 V)
   --seed N             noise seed for the simulated tester
   --self-cap           ring on two tanks: L corrected for self-capacitance, Cs and self-resonance
   --budget             show the uncertainty budget (fit, capacitance, timebase, self-capacitance)
@@ -96,22 +95,22 @@ export async function main(argv: string[]): Promise<number> {
     }
     switch (command) {
       case "measure":
-        return await runMeasure(rest);
+        return await (await import("./measure-command.ts")).runMeasure(rest);
       case "analyze":
-        return await runAnalyze(rest);
+        return await (await import("./analyze-command.ts")).runAnalyze(rest);
       case "profile":
-        return await runProfile(rest);
+        return await (await import("./info-commands.ts")).runProfile(rest);
       case "advise":
-        return await runAdvise(rest);
-      case "sim-device": return await runSimDevice(rest);
-      case "sort": return await runSortCommand(rest);
-      case "wind": return await runWindCommand(rest);
-      case "report": return await runReportCommand(rest);
-      case "calibrate": return await runCalibrate(rest);
+        return await (await import("./advise-command.ts")).runAdvise(rest);
+      case "sim-device": return await (await import("./sim-device-command.ts")).runSimDevice(rest);
+      case "sort": return await (await import("./sort-command.ts")).runSortCommand(rest);
+      case "wind": return await (await import("./wind-command.ts")).runWindCommand(rest);
+      case "report": return await (await import("./report-command.ts")).runReportCommand(rest);
+      case "calibrate": return await (await import("./calibrate-command.ts")).runCalibrate(rest);
       case "scenarios":
-        return runScenarios(rest);
+        return (await import("./info-commands.ts")).runScenarios(rest);
       case "ports":
-        return await runPorts(rest);
+        return await (await import("./ports-command.ts")).runPorts(rest);
       case "--version":
         process.stdout.write(`henrytick ${packageVersion()}\n`);
         return 0;

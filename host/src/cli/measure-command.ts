@@ -11,6 +11,8 @@ import { csvHeader, csvRow } from "./result-csv.ts";
 import { runWatch, WATCH_OPTIONS } from "./measure-watch.ts";
 import { CalibrationError, deviceCalibration, measureSelfCapacitance, singleTankBudget, timebaseKnowledge } from "../calibration/index.ts";
 import { renderBudget, renderSelfCapacitance } from "./render.ts";
+import { otherWindingPeakV, resolvePeakLimit, volts } from "../ranging/safety.ts";
+import { PulseCaution, windingRatioOption } from "./caution.ts";
 
 export async function runMeasure(args: string[]): Promise<number> {
   const { values, positionals } = parse(args, {
@@ -24,6 +26,7 @@ export async function runMeasure(args: string[]): Promise<number> {
     "charge-us": { type: "string" },
     "max-peak-v": { type: "string" },
     "hazardous-ok": { type: "boolean" },
+    "winding-ratio": { type: "string" },
     auto: { type: "boolean" },
     seed: { type: "string" },
     uncalibrated: { type: "boolean" },
@@ -42,6 +45,7 @@ export async function runMeasure(args: string[]): Promise<number> {
   const charge_us = intOption(values["charge-us"], "charge-us", 1, 10_000_000);
   if (charge_us !== undefined && drive === undefined) throw new CliUsageError("--charge-us needs --drive and --tank");
   const max_peak_v = numberOption(values["max-peak-v"], "max-peak-v", 0.1, 1000);
+  const other_winding_ratio = windingRatioOption(values["winding-ratio"]);
   const keep_suspect = values["keep-suspect"] ?? false;
   if (keep_suspect && values.watch) throw new CliUsageError("--keep-suspect gives one reading for inspection; leave out --watch");
   const progress = (m: string) => {
@@ -52,17 +56,25 @@ export async function runMeasure(args: string[]): Promise<number> {
   try {
     const label = values.label ?? tester.scenario?.name;
     progress(`tester ${tester.client.identity.device_id} (firmware ${tester.client.identity.firmware_version}) via ${tester.client.transport.description}`);
+    const limit = resolvePeakLimit(max_peak_v, tester.client.profile.clamp_v, hazardous_ok, { other_winding_ratio });
+    if (!limit.ok) throw new CliUsageError(limit.message);
+    const caution = new PulseCaution({ describe: [values.label, tester.scenario?.name, tester.scenario?.story], limit, quiet: values.json === true || values.csv === true, repeated: values.watch === true });
+    caution.start();
+    const onBeforePulse = caution.beforePulse;
     // The tester's calibration profile applies to every reading unless --uncalibrated says not.
     const cal = values.uncalibrated ? null : deviceCalibration(tester.client, values["config-dir"] ? { dir: values["config-dir"] } : {});
     const calibration = cal?.applied;
     if (cal?.applied) progress(`calibration ${cal.path}`);
-    if (values.watch) return await runWatch(tester, values, { drive, tank, charge_us, max_peak_v, hazardous_ok, label, calibration }, label ?? "part on the clips");
+    if (values.watch) return await runWatch(tester, values, { drive, tank, charge_us, max_peak_v, hazardous_ok, other_winding_ratio, onBeforePulse, label, calibration }, label ?? "part on the clips");
     let reading;
     try {
-      reading = await measurePart(tester.client, { drive, tank, charge_us, max_peak_v, hazardous_ok, label, calibration, keep_suspect, onProgress: progress });
+      reading = await measurePart(tester.client, { drive, tank, charge_us, max_peak_v, hazardous_ok, other_winding_ratio, onBeforePulse, label, calibration, keep_suspect, onProgress: progress });
     } catch (e) {
       if (!(e instanceof MeasureError)) throw e;
       return refused(e, values.json === true);
+    }
+    if (other_winding_ratio !== undefined && other_winding_ratio > 1) {
+      progress(`the other winding saw about ${volts(otherWindingPeakV(reading.analysis.amplitude_v, other_winding_ratio))} (${other_winding_ratio}× the ${volts(reading.analysis.amplitude_v)} ring)`);
     }
     if (reading.suspect) progress(`suspect reading kept on request (${reading.suspect.code}): not a verified result`);
     if (values.save) {

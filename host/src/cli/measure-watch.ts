@@ -9,9 +9,9 @@ import type { OpenedTester } from "../open-tester.ts";
 import { nearestPreferred, parseSeriesName, type SeriesName } from "../values/e-series.ts";
 import { formatMeasured, formatValueOnly } from "../values/format-value.ts";
 import { bigText } from "../workflows/big-digits.ts";
-import { makeStyle, type Style } from "../workflows/terminal.ts";
+import { eraseUp, makeStyle, type Style } from "../workflows/terminal.ts";
 import { assessStability, History, sparkline, type StabilityResult } from "../workflows/watch-trend.ts";
-import { intOption } from "./args.ts";
+import { intOption, optionValue } from "./args.ts";
 import { csvHeader, csvRow } from "./result-csv.ts";
 
 /** Options measure accepts for --watch (spread into its parse table). */
@@ -23,13 +23,6 @@ export const WATCH_OPTIONS = {
   csv: { type: "boolean" },
   series: { type: "string" },
 } as const;
-
-export const WATCH_USAGE = `  --watch              read continuously: trend line and stability (Ctrl-C stops)
-  --big                with --watch: the value in large characters
-  --count N            with --watch: stop after N readings
-  --interval-ms N      with --watch: pause between readings (default 300)
-  --csv                one CSV row per reading (with --watch: reading, time and stability first)
-  --series E12         with --watch: also show the nearest E6 … E192 preferred value`;
 
 interface WatchValues {
   json?: boolean;
@@ -45,7 +38,7 @@ const CSV_FRONT = ["reading", "time", "stability"];
 export async function runWatch(tester: OpenedTester, values: WatchValues, measure: MeasureOptions, title: string): Promise<number> {
   const count = intOption(values.count, "count", 1, 10_000_000);
   const interval = intOption(values["interval-ms"], "interval-ms", 0, 3_600_000) ?? 300;
-  const series = values.series ? parseSeriesName(values.series) : undefined;
+  const series = values.series ? optionValue("series", () => parseSeriesName(values.series!)) : undefined;
   const style = makeStyle();
   const tty = process.stdout.isTTY === true && !values.json && !values.csv;
   const history = new History(40);
@@ -56,7 +49,7 @@ export async function runWatch(tester: OpenedTester, values: WatchValues, measur
   let drawn = 0;
   let n = 0;
   if (values.csv) process.stdout.write(csvHeader(CSV_FRONT));
-  process.stderr.write("   caution: the part is pulsed at every reading; keep fingers off transformer windings (Ctrl-C stops)\n");
+  process.stderr.write("   reading again and again (Ctrl-C stops)\n");
   try {
     while (!stop.signal.aborted && (count === undefined || n < count)) {
       let result: ResultJson | null = null;
@@ -80,7 +73,7 @@ export async function runWatch(tester: OpenedTester, values: WatchValues, measur
         let block = values.big ? bigBlock(result, problem, st, history, n, style) : smallBlock(result, problem, st, history, n, title, style);
         if (series && result) block = [...block, preferredLine(result.inductance_h, series)];
         if (tty) {
-          if (drawn > 0) process.stdout.write(`\x1b[${drawn}F\x1b[J`);
+          if (drawn > 0) process.stdout.write(eraseUp(drawn));
           process.stdout.write(block.join("\n") + "\n");
           drawn = block.length;
         } else {

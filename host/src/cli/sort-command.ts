@@ -7,15 +7,17 @@ import { openTester } from "../open-tester.ts";
 import { formatMeasured } from "../values/format-value.ts";
 import { parseSeriesName } from "../values/e-series.ts";
 import { parseValue } from "../values/parse-value.ts";
-import { parseTolerance, type Tolerance } from "../values/tolerance.ts";
+import { parseTolerance, toleranceLimits, type Tolerance } from "../values/tolerance.ts";
 import { makeBins } from "../workflows/bins.ts";
 import { drawTray, SimTray } from "../workflows/sim-tray.ts";
 import { csvRow, CSV_COLUMNS, SortLog } from "../workflows/sort-log.ts";
 import { runSort, type SortEvent } from "../workflows/sort-runner.ts";
 import { SortSession, type PartRecord } from "../workflows/sort-session.ts";
 import { makeStyle, stdinLines, type Style } from "../workflows/terminal.ts";
-import { intOption, numberOption, parse, testerTarget } from "./args.ts";
+import { intOption, numberOption, optionValue, parse, testerTarget } from "./args.ts";
 import { CliUsageError } from "./errors.ts";
+import { resolvePeakLimit } from "../ranging/safety.ts";
+import { PulseCaution, windingRatioOption } from "./caution.ts";
 
 export const SORT_HELP = `henrytick sort — sort parts against a tolerance
 
@@ -38,7 +40,9 @@ Options:
   --settle N        agreeing readings before a part is recorded (default 2)
   --poll-ms N       pause between readings while watching the clips (default 200, simulated 0)
   --sim-tray LIST   simulated tester: the tray's inductances, e.g. 10u,10.6u,9.4u
-  --max-peak-v V    lower the ring-peak limit (default 30 V)
+  --max-peak-v V    lower the ring-peak limit (default 30 V; 28.8 V on a 36 V clamp)
+  --winding-ratio N transformers: the other winding has N times the pulsed turns (19 or 230:12);
+                    every pulse is kept at the limit / N
   --uncalibrated    ignore the tester's calibration profile (nominal tank values)
   --config-dir DIR  where calibration profiles live (default $XDG_CONFIG_HOME/henrytick)
   --seed N          noise and tray seed for the simulated tester
@@ -60,7 +64,7 @@ export async function runSortCommand(args: string[]): Promise<number> {
     nominal: { type: "string" }, tol: { type: "string" }, lot: { type: "string" }, bins: { type: "string" },
     series: { type: "string" }, log: { type: "string" }, trigger: { type: "string" }, count: { type: "string" },
     settle: { type: "string" }, "poll-ms": { type: "string" }, "sim-tray": { type: "string" },
-    "max-peak-v": { type: "string" }, uncalibrated: { type: "boolean" }, "config-dir": { type: "string" }, json: { type: "boolean" }, csv: { type: "boolean" },
+    "max-peak-v": { type: "string" }, "winding-ratio": { type: "string" }, uncalibrated: { type: "boolean" }, "config-dir": { type: "string" }, json: { type: "boolean" }, csv: { type: "boolean" },
   });
   if (values.help) {
     process.stdout.write(SORT_HELP);
@@ -76,6 +80,7 @@ export async function runSortCommand(args: string[]): Promise<number> {
   const settle = intOption(values.settle, "settle", 1, 10);
   const pollMs = intOption(values["poll-ms"], "poll-ms", 0, 60_000) ?? (values.sim ? 0 : 200);
   const max_peak_v = numberOption(values["max-peak-v"], "max-peak-v", 0.1, 1000);
+  const other_winding_ratio = windingRatioOption(values["winding-ratio"]);
   if (values["sim-tray"] && !values.sim) throw new CliUsageError("--sim-tray needs --sim");
   const session = new SortSession(spec);
 
@@ -102,7 +107,10 @@ export async function runSortCommand(args: string[]): Promise<number> {
     }
     note(`sorting against ${formatSi(spec.nominal_h, "H", 4)} ${spec.tolerance.text}: limits ${formatSi(session.limits.lower, "H", 4)} … ${formatSi(session.limits.upper, "H", 4)}`);
     note(trigger === "ring" ? "put a part on the clips; take it off when it has been recorded (Ctrl-C finishes)" : "press Enter to measure the part on the clips, q to finish");
-    note("caution: every part is pulsed repeatedly while on the clips; keep fingers off transformer windings (henrytick --help, Safety)");
+    const limit = resolvePeakLimit(max_peak_v, tester.client.profile.clamp_v, false, { other_winding_ratio });
+    if (!limit.ok) throw new CliUsageError(limit.message);
+    const caution = new PulseCaution({ describe: [spec.lot, tester.scenario?.name, tester.scenario?.story], limit, quiet: false, repeated: true });
+    caution.start();
     if (values.csv) process.stdout.write(CSV_COLUMNS.join(",") + "\n");
     const onEvent = (e: SortEvent) => {
       if (e.kind === "part") {
@@ -117,7 +125,7 @@ export async function runSortCommand(args: string[]): Promise<number> {
     await runSort({
       client: tester.client, session, log, trigger, tray, maxParts: count, pollMs,
       lines: trigger === "enter" ? stdinLines("Enter = measure, q = finish: ") : undefined,
-      presence: { settle }, measure: { max_peak_v, calibration: cal?.applied }, signal: stop.signal, onEvent,
+      presence: { settle }, measure: { max_peak_v, other_winding_ratio, onBeforePulse: caution.beforePulse, calibration: cal?.applied }, signal: stop.signal, onEvent,
     });
   } finally {
     process.off("SIGINT", onSigint);
@@ -139,12 +147,13 @@ function sortSpec(values: { nominal?: string; tol?: string; lot?: string; bins?:
   if (values.tol) tolerance = parseTolerance(values.tol);
   else if (nominal.toleranceLetter) tolerance = parseTolerance(nominal.toleranceLetter);
   else throw new CliUsageError("sort needs --tol (5%, J, 0.5u …) or a tolerance letter on the nominal (10uJ)");
+  optionValue("tol", () => toleranceLimits(nominal.value, tolerance));
   return {
     nominal_h: nominal.value,
     tolerance,
     lot: values.lot,
     bins: values.bins ? makeBins(values.bins.split(",").map((t) => parseValue(t).value)) : undefined,
-    series: values.series ? parseSeriesName(values.series) : undefined,
+    series: values.series ? optionValue("series", () => parseSeriesName(values.series!)) : undefined,
   };
 }
 

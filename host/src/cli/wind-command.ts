@@ -12,8 +12,10 @@ import { parseTolerance, toleranceLimits, type Limits } from "../values/toleranc
 import { coilOnFormer, formerTurnRange } from "../workflows/sim-coil.ts";
 import { makeStyle, stdinLines, type Style } from "../workflows/terminal.ts";
 import { windingAdvice, type WindingAdvice, type WindingReading } from "../workflows/winding.ts";
-import { numberOption, parse, testerTarget } from "./args.ts";
+import { numberOption, optionValue, parse, testerTarget } from "./args.ts";
 import { CliUsageError } from "./errors.ts";
+import { resolvePeakLimit } from "../ranging/safety.ts";
+import { PulseCaution, windingRatioOption } from "./caution.ts";
 
 export const WIND_HELP = `henrytick wind — wind a coil to a target inductance
 
@@ -29,7 +31,9 @@ Options:
   --target VALUE    target inductance: 22u, 22 µH, 2m2, 2.2e-3
   --tol TOL         done when the reading conforms to the target ± TOL (5%, J, 0.5u …)
   --turns LIST      turn counts to measure in order, e.g. 30,38,43
-  --max-peak-v V    lower the ring-peak limit (default 30 V)
+  --max-peak-v V    lower the ring-peak limit (default 30 V; 28.8 V on a 36 V clamp)
+  --winding-ratio N a second winding on the core has N times the turns (19 or 230:12):
+                    every pulse is kept at the limit / N
   --uncalibrated    ignore the tester's calibration profile (nominal tank values)
   --config-dir DIR  where calibration profiles live (default $XDG_CONFIG_HOME/henrytick)
   --seed N          noise seed for the simulated tester
@@ -49,7 +53,7 @@ const CSV_HEADER = "turns,inductance_h,inductance_u_h,error_rel,decision,recomme
 export async function runWindCommand(args: string[]): Promise<number> {
   const { values, positionals } = parse(args, {
     sim: { type: "boolean" }, port: { type: "string" }, seed: { type: "string" }, help: { type: "boolean", short: "h" },
-    target: { type: "string" }, tol: { type: "string" }, turns: { type: "string" }, "max-peak-v": { type: "string" }, uncalibrated: { type: "boolean" }, "config-dir": { type: "string" },
+    target: { type: "string" }, tol: { type: "string" }, turns: { type: "string" }, "max-peak-v": { type: "string" }, "winding-ratio": { type: "string" }, uncalibrated: { type: "boolean" }, "config-dir": { type: "string" },
     json: { type: "boolean" }, csv: { type: "boolean" },
   });
   if (values.help) {
@@ -62,8 +66,9 @@ export async function runWindCommand(args: string[]): Promise<number> {
   const target = parseValue(values.target);
   if (!(target.value > 0)) throw new CliUsageError(`--target must be a positive inductance, got "${values.target}"`);
   const tolText = values.tol ?? target.toleranceLetter;
-  const limits: Limits | undefined = tolText ? toleranceLimits(target.value, parseTolerance(tolText)) : undefined;
+  const limits: Limits | undefined = tolText ? optionValue("tol", () => toleranceLimits(target.value, parseTolerance(tolText))) : undefined;
   const max_peak_v = numberOption(values["max-peak-v"], "max-peak-v", 0.1, 1000);
+  const other_winding_ratio = windingRatioOption(values["winding-ratio"]);
   const listed = values.turns?.split(",").map((t) => turnCount(t.trim()));
   const testerAt = testerTarget(values, []);
 
@@ -77,7 +82,10 @@ export async function runWindCommand(args: string[]): Promise<number> {
   try {
     note(`winding to ${formatSi(target.value, "H", 4)}${limits ? `, done within ${formatSi(limits.lower, "H", 4)} … ${formatSi(limits.upper, "H", 4)}` : ""}`);
     if (cal?.applied) note(`calibration ${cal.path}`);
-    note("caution: the coil is pulsed at every reading; keep fingers off it and off any other winding on the core");
+    const limit = resolvePeakLimit(max_peak_v, tester.client.profile.clamp_v, false, { other_winding_ratio });
+    if (!limit.ok) throw new CliUsageError(limit.message);
+    const caution = new PulseCaution({ describe: [tester.scenario?.name, tester.scenario?.story], limit, quiet: false, repeated: true });
+    caution.start();
     if (values.csv) process.stdout.write(CSV_HEADER + "\n");
     const counts = listed ? listSource(listed) : stdinLines("turns on the coil now (36, +3, -2; Enter repeats; q finishes): ");
     let turns = 0;
@@ -95,7 +103,7 @@ export async function runWindCommand(args: string[]): Promise<number> {
         tester.sim.part = coilOnFormer(turns);
       }
       if (!values.json && !values.csv) note(`measuring ${turns} turns …`);
-      const r = await measurePart(tester.client, { max_peak_v, label: `${turns} turns`, calibration: cal?.applied });
+      const r = await measurePart(tester.client, { max_peak_v, other_winding_ratio, onBeforePulse: caution.beforePulse, label: `${turns} turns`, calibration: cal?.applied });
       const result = buildResult(r.analysis, r.capture);
       readings.push({ turns, inductance_h: result.inductance_h, inductance_u_h: result.inductance_u_h });
       advice = windingAdvice(readings, target.value, limits);

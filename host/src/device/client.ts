@@ -2,9 +2,9 @@
 // a timeout; a capture stream is checked line by line (CRC, sequence, count, checksum) and, if
 // damaged, fetched again with the resend command: a damaged capture never triggers a new pulse.
 
-import { PROTOCOL_VERSION } from "@henrytick/shared-protocol";
+import { ERR_ABORTED, PROTOCOL_VERSION } from "@henrytick/shared-protocol";
 import type { Transport, TransportError } from "../transport/transport.ts";
-import { DeviceError, DeviceTimeoutError } from "./errors.ts";
+import { DeviceError, DeviceTimeoutError, STRAY_CAUSE, STRAY_NEXT } from "./errors.ts";
 import type { Decoded, Frame } from "./frames.ts";
 import { decodeLine, encodeCommand, intField, ProtocolError } from "./frames.ts";
 import type { DeviceCounters, DeviceIdentity, DeviceProfile, SelfTestReport } from "./profile.ts";
@@ -31,7 +31,33 @@ export interface ClientOptions {
   resend_attempts?: number;
 }
 
+/** Options of one pulse. */
+export interface PulseOptions {
+  /**
+   * Abandons the pulse: the client sends `AB` at once (the tester opens the switch and stops the
+   * capture), waits for its acknowledgement so the link is clean for the next command, and
+   * rejects with DeviceError ABORTED, unless the capture was already whole (then it is returned).
+   */
+  signal?: AbortSignal;
+}
+
+/** An abort sent out of turn during one pulse. */
+interface AbortState {
+  sent: boolean;
+  /** `OK AB` lines counted before it was sent. */
+  acksBefore: number;
+  written: Promise<void>;
+  wakeSleep: (() => void) | null;
+}
+
 const MAX_REST_WAITS = 5;
+/** Codes of a line the tester could not read. */
+const GARBLED = ["LINK_CRC", "LINK_SYNTAX", "LINE_TOO_LONG"];
+/** Attempts to bring the link into step at connect. */
+const SYNC_ATTEMPTS = 4;
+const NEWLINE = new TextEncoder().encode("\n");
+/** The link counts as quiet after this long without a line, ms. */
+const QUIET_MS = 200;
 const MAX_REST_WAIT_MS = 10_000;
 
 function errorFrame(f: Frame, command: string): DeviceError {
@@ -44,6 +70,11 @@ export class DeviceClient {
   private waiter: (() => void) | null = null;
   private linkError: TransportError | null = null;
   private busy: Promise<unknown> = Promise.resolve();
+  /** Counts `OK AB` lines as they arrive, whoever reads them from the inbox. */
+  private abortAcks = 0;
+  /** Whole frames received on this link, and their count when the current command was written. */
+  private linesSeen = 0;
+  private exchangeStart = 0;
   private readonly replyTimeout: number;
   private readonly resendAttempts: number;
   identity!: DeviceIdentity;
@@ -53,7 +84,10 @@ export class DeviceClient {
     this.replyTimeout = opts.reply_timeout_ms ?? 2000;
     this.resendAttempts = opts.resend_attempts ?? 2;
     transport.onLine((line) => {
-      this.inbox.push(decodeLine(line));
+      const d = decodeLine(line);
+      if (d.ok) this.linesSeen++; // frames only: a device that is not a tester sends none
+      if (d.ok && d.frame.tag === "OK" && d.frame.fields[0] === "AB") this.abortAcks++;
+      this.inbox.push(d);
       this.wake();
     });
     transport.onClose((err) => {
@@ -65,15 +99,7 @@ export class DeviceClient {
   /** Identifies the tester, checks the protocol version and reads its profile. */
   static async connect(transport: Transport, opts: ClientOptions = {}): Promise<DeviceClient> {
     const client = new DeviceClient(transport, opts);
-    // A newline first flushes any partial line left in the tester's receiver.
-    await transport.write(new TextEncoder().encode("\n"));
-    try {
-      client.identity = await client.identify();
-    } catch (e) {
-      // Noise left on the link before we opened it can prefix the first reply; ask once more.
-      if (!(e instanceof ProtocolError) || e.code !== "LINK_CORRUPT") throw e;
-      client.identity = await client.identify();
-    }
+    client.identity = await client.synchronise();
     if (client.identity.protocol_version !== PROTOCOL_VERSION) {
       throw new ProtocolError(
         "PROTOCOL_VERSION",
@@ -82,6 +108,32 @@ export class DeviceClient {
     }
     client.profile = await client.readProfile();
     return client;
+  }
+
+  /**
+   * Brings the link into step before the first exchange. A newline flushes any partial line in
+   * the tester's receiver (stray bytes another program wrote into the port: the tester answers
+   * them with an error of its own), then ID; while the answer shows stray bytes (an unreadable
+   * reply, or the tester unable to read the line), the link is drained until quiet and both are
+   * sent again. LINK_NOISE when the stray bytes do not stop.
+   */
+  private async synchronise(): Promise<DeviceIdentity> {
+    const seen: string[] = [];
+    for (let attempt = 0; attempt < SYNC_ATTEMPTS; attempt++) {
+      await this.transport.write(NEWLINE);
+      try {
+        return await this.identify(); // a garbled answer was drained until quiet in command()
+      } catch (e) {
+        const stray = (e instanceof ProtocolError && e.code === "LINK_CORRUPT") || (e instanceof DeviceError && GARBLED.includes(e.code));
+        if (!stray) throw e;
+        seen.push((e as ProtocolError | DeviceError).code);
+      }
+    }
+    throw new ProtocolError(
+      "LINK_NOISE",
+      `${this.transport.description}: stray bytes on the port at every one of ${SYNC_ATTEMPTS} attempts to identify the tester (${seen.join(", ")}): ` +
+        `the cause is ${STRAY_CAUSE}; ${STRAY_NEXT}`,
+    );
   }
 
   identify(): Promise<DeviceIdentity> {
@@ -123,34 +175,80 @@ export class DeviceClient {
   }
 
   /** Pulses the part once and returns the verified edge record. */
-  measure(s: MeasureSettings): Promise<RawCapture> {
+  measure(s: MeasureSettings, opts: PulseOptions = {}): Promise<RawCapture> {
     return this.exclusive(async () => {
-      let token = this.nextToken();
-      await this.startMeasurement(s, token);
-      // Settle + charge + capture window, plus a reply margin.
-      const firstWait = this.profile.settle_us / 1000 + s.charge_us / 1000 + s.timeout_ms + this.replyTimeout;
-      let lastDefect: Error | null = null;
-      for (let attempt = 0; attempt <= this.resendAttempts; attempt++) {
-        if (attempt > 0) {
-          // A resend has its own token: lines of an earlier attempt still in flight cannot pass for it.
-          token = this.nextToken();
-          await this.requestHeld(token);
-        }
-        try {
-          return await this.readStream(s, attempt === 0 ? firstWait : this.replyTimeout, token);
-        } catch (e) {
-          // A damaged stream, or one that stalled, is fetched again; nothing is pulsed again.
-          if (!(e instanceof StreamDefect) && !(e instanceof DeviceTimeoutError)) throw e;
-          lastDefect = e;
-          await this.drainUntilQuiet();
+      const signal = opts.signal;
+      if (signal?.aborted) throw new DeviceError(ERR_ABORTED, "MS");
+      if (!signal) return this.pulse(s, null);
+      // Sent out of turn, as the protocol allows for AB: the tester stops the capture now.
+      const abort: AbortState = { sent: false, acksBefore: this.abortAcks, written: Promise.resolve(), wakeSleep: null };
+      const onAbort = () => {
+        abort.sent = true;
+        abort.written = this.transport.write(encodeCommand("AB", [])).catch(() => undefined);
+        abort.wakeSleep?.();
+      };
+      signal.addEventListener("abort", onAbort, { once: true });
+      try {
+        return await this.pulse(s, abort);
+      } catch (e) {
+        if (abort.sent) throw new DeviceError(ERR_ABORTED, "MS");
+        throw e;
+      } finally {
+        signal.removeEventListener("abort", onAbort);
+        if (abort.sent) {
+          await abort.written;
+          await this.awaitAbortAck(abort.acksBefore);
         }
       }
-      if (lastDefect instanceof DeviceTimeoutError) throw lastDefect; // the tester stopped answering
-      throw new ProtocolError(
-        "CAPTURE_DAMAGED",
-        `capture damaged in transit ${this.resendAttempts + 1} times (${lastDefect?.message}); check the cable and USB port, then measure again`,
-      );
     });
+  }
+
+  /** Waits until the tester has acknowledged an AB sent out of turn; drains what comes with it. */
+  private async awaitAbortAck(acksBefore: number): Promise<void> {
+    try {
+      while (this.abortAcks === acksBefore) await this.next(this.replyTimeout, "acknowledgement of AB");
+    } catch (e) {
+      // No acknowledgement: wait out whatever is still coming. A closed link is reported by the
+      // next command; the abort itself has been answered already.
+      if (e instanceof DeviceTimeoutError) await this.drainUntilQuiet().catch(() => undefined);
+    }
+    this.inbox = [];
+  }
+
+  private async pulse(s: MeasureSettings, abort: AbortState | null): Promise<RawCapture> {
+    let token = this.nextToken();
+    await this.startMeasurement(s, token, abort);
+    // Settle + charge + capture window, plus a reply margin.
+    const firstWait = this.profile.settle_us / 1000 + s.charge_us / 1000 + s.timeout_ms + this.replyTimeout;
+    let lastDefect: Error | null = null;
+    let firstSilence: DeviceTimeoutError | null = null;
+    for (let attempt = 0; attempt <= this.resendAttempts; attempt++) {
+      if (abort?.sent) throw new DeviceError(ERR_ABORTED, "MS");
+      if (attempt > 0) {
+        // A resend has its own token: lines of an earlier attempt still in flight cannot pass for it.
+        token = this.nextToken();
+        try {
+          await this.requestHeld(token);
+        } catch (e) {
+          throw e instanceof DeviceTimeoutError ? (firstSilence ?? e) : e;
+        }
+      }
+      try {
+        return await this.readStream(s, attempt === 0 ? firstWait : this.replyTimeout, token);
+      } catch (e) {
+        // A damaged stream, or one that stalled, is fetched again; nothing is pulsed again.
+        if (!(e instanceof StreamDefect) && !(e instanceof DeviceTimeoutError)) throw e;
+        lastDefect = e;
+        if (e instanceof DeviceTimeoutError) firstSilence ??= e;
+        await this.drainUntilQuiet();
+      }
+    }
+    // The tester stopped answering: the first silence says where (a resend then went unanswered too).
+    if (lastDefect instanceof DeviceTimeoutError) throw firstSilence ?? lastDefect;
+    throw new ProtocolError(
+      "CAPTURE_DAMAGED",
+      `capture damaged in transit ${this.resendAttempts + 1} times (${lastDefect?.message}); check the cable and USB port, then measure again`,
+    );
   }
 
   /**
@@ -179,9 +277,10 @@ export class DeviceClient {
   }
 
   /** Sends MS; while the rest or ring interlock refuses, waits the time it names and asks again. */
-  private async startMeasurement(s: MeasureSettings, token: number): Promise<void> {
+  private async startMeasurement(s: MeasureSettings, token: number, abort: AbortState | null): Promise<void> {
     const args = [s.drive, s.tank, s.charge_us, s.edge_limit, s.timeout_ms, s.quiet_us, token];
     for (let attempt = 0; ; attempt++) {
+      if (abort?.sent) throw new DeviceError(ERR_ABORTED, "MS");
       try {
         await this.command("MS", args, 0, token);
         return;
@@ -189,7 +288,7 @@ export class DeviceClient {
         const waitable = e instanceof DeviceError && (e.code === "REST_PENDING" || e.code === "RINGING");
         if (!waitable || attempt >= MAX_REST_WAITS) throw e;
         const wait = Math.min(Math.max(e.detail ?? this.profile.min_rest_ms, 1), MAX_REST_WAIT_MS);
-        await new Promise((r) => setTimeout(r, wait + 1));
+        await this.sleep(wait + 1, abort);
       }
     }
   }
@@ -227,24 +326,42 @@ export class DeviceClient {
    */
   private async command(tag: string, args: number[], extraWait_ms = 0, token?: number): Promise<Frame[]> {
     this.inbox = []; // lines left from an earlier exchange belong to no one
+    this.exchangeStart = this.linesSeen;
     await this.transport.write(encodeCommand(tag, args));
     const frames: Frame[] = [];
+    // A line the tester could not read ("ER n ?") may be ours, or stray bytes that arrived as a
+    // line of their own ahead of ours: ours is answered too in that case, so listen until quiet.
+    let unreadable: DeviceError | null = null;
     try {
       for (;;) {
-        const d = await this.next(this.replyTimeout + extraWait_ms, `reply to ${tag}`);
+        let d: Decoded;
+        try {
+          d = await this.next(unreadable ? QUIET_MS : this.replyTimeout + extraWait_ms, `reply to ${tag}`);
+        } catch (e) {
+          if (unreadable && e instanceof DeviceTimeoutError) throw unreadable; // quiet already
+          throw e;
+        }
         if (!d.ok) throw new ProtocolError("LINK_CORRUPT", `corrupt reply to ${tag} (error ${d.code}): ${JSON.stringify(d.line)}; check the cable and retry`);
         const f = d.frame;
         if (f.tag === "OK" && f.fields[0] === tag) {
           if (token === undefined || f.fields[1] === String(token)) return frames;
           continue; // an earlier request's acknowledgement
         }
-        if (f.tag === "ER") throw errorFrame(f, tag);
+        if (f.tag === "ER") {
+          const err = errorFrame(f, tag);
+          if (f.fields[1] === "?" && GARBLED.includes(err.code)) {
+            unreadable ??= err;
+            continue;
+          }
+          throw err;
+        }
         frames.push(f);
       }
     } catch (e) {
       // A corrupt or late reply, or a tester that could not read our line (which a damaged
       // newline may have split in two, each half answered): wait out whatever else is coming.
-      const garbled = e instanceof DeviceError && ["LINK_CRC", "LINK_SYNTAX", "LINE_TOO_LONG"].includes(e.code);
+      const garbled = e instanceof DeviceError && GARBLED.includes(e.code);
+      if (e === unreadable) throw e;
       if (e instanceof ProtocolError || e instanceof DeviceTimeoutError || garbled) await this.drainUntilQuiet();
       throw e;
     }
@@ -259,7 +376,7 @@ export class DeviceClient {
 
   private async drainUntilQuiet(): Promise<void> {
     try {
-      for (;;) await this.next(200, "drain");
+      for (;;) await this.next(QUIET_MS, "drain");
     } catch (e) {
       if (!(e instanceof DeviceTimeoutError)) throw e;
     }
@@ -281,7 +398,8 @@ export class DeviceClient {
       if (check()) return;
       const timer = setTimeout(() => {
         this.waiter = null;
-        reject(new DeviceTimeoutError(what, timeout_ms));
+        const silence = this.linesSeen === 0 ? "never" : this.linesSeen > this.exchangeStart ? "mid-reply" : "stopped";
+        reject(new DeviceTimeoutError(what, timeout_ms, silence));
       }, timeout_ms);
       this.waiter = () => {
         if (check()) {
@@ -289,6 +407,19 @@ export class DeviceClient {
           this.waiter = null;
         }
       };
+    });
+  }
+
+  /** Sleeps, or less when an abort is sent meanwhile. */
+  private sleep(ms: number, abort: AbortState | null): Promise<void> {
+    return new Promise((resolve) => {
+      const done = () => {
+        clearTimeout(timer);
+        if (abort) abort.wakeSleep = null;
+        resolve();
+      };
+      const timer = setTimeout(done, ms);
+      if (abort) abort.wakeSleep = done;
     });
   }
 

@@ -14,12 +14,12 @@ import type { PlanLimits } from "../ranging/predict.ts";
 import type { MeasureOptions, Reading } from "./measure-part.ts";
 import { MeasureError, NO_USABLE_RING, describeSetting, readOnce } from "./read-once.ts";
 import { explainFailure, shortedPart, SHORT_MAX_L_H } from "./part-fault.ts";
+import { ROUGH_PREDICTION_SHARE as ROUGH_MARGIN, volts } from "../ranging/safety.ts";
+import { ReadingProgress, settingInfo } from "./events.ts";
 
 const PROBE_CHARGE_US = 5000;
 const PROBE_QUIET_US = 20000;
 const PROBE_TIMEOUT_MS = 1000;
-/** Peak predictions from the rough probe estimate get this margin below the limit. */
-const ROUGH_MARGIN = 0.7;
 const MAX_STEPS = 4;
 /** Fewest edges a ranged reading should rest on; fewer is reported with the reason. */
 export const MIN_EDGES_AUTO = 20;
@@ -44,18 +44,20 @@ export function safeProbeChargeUs(supply_v: number, r_ohm: number, c_f: number, 
  * resistors from the largest down, each charge short enough to be safe for any part, until
  * something rings. Returns the first estimate of the part, or throws NO_RING.
  */
-export async function probePart(client: DeviceClient, progress: (m: string) => void, limit_v: number): Promise<PartEstimate> {
+export async function probePart(client: DeviceClient, progress: ReadingProgress | ((m: string) => void), limit_v: number): Promise<PartEstimate> {
+  const ctx = ReadingProgress.from(progress);
   const profile = client.profile;
   const tanks = profile.tanks.map((t) => t.index).sort((a, b) => profile.tanks[b].nominal_f - profile.tanks[a].nominal_f);
   const drives = profile.drives.map((d) => d.index).sort((a, b) => profile.drives[b].ohm - profile.drives[a].ohm);
+  let attempt = 0;
   for (const tank of tanks) {
     for (const drive of drives) {
+      attempt++;
       const safe = safeProbeChargeUs(profile.supply_v, profile.drives[drive].ohm, profile.tanks[tank].nominal_f, limit_v);
       const charge = Math.min(PROBE_CHARGE_US, profile.drives[drive].max_charge_us, safe);
       if (charge < 1) continue;
       const s: MeasureSettings = { drive, tank, charge_us: charge, edge_limit: profile.buffer_edges, timeout_ms: PROBE_TIMEOUT_MS, quiet_us: PROBE_QUIET_US };
-      progress(`probing: ${describeSetting(client, s)}`);
-      const raw: RawCapture = await client.measure(s);
+      const raw: RawCapture = await ctx.pulse(client, s, "probe", ctx.probeFraction(attempt, tanks.length * drives.length), `probing: ${describeSetting(client, s)}`);
       const est = estimateFromProbe(profile, drive, tank, charge, raw.ticks, raw.levels);
       if (est) return est;
     }
@@ -66,7 +68,7 @@ export async function probePart(client: DeviceClient, progress: (m: string) => v
   );
 }
 
-export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: MeasureOptions, progress: (m: string) => void): Promise<Reading> {
+export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: MeasureOptions, progress: ReadingProgress): Promise<Reading> {
   const profile = client.profile;
   const tanks = opts.calibration?.tanks;
   let est = opts.estimate ?? (await probePart(client, progress, limits.max_peak_v));
@@ -79,18 +81,21 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
   // or a class II capacitor reads truest at a gentler ring.
   let gentleLimit_v = limits.max_peak_v;
   for (let step = 0; step < MAX_STEPS; step++) {
-    const base = { ...limits, max_peak_v: gentleLimit_v };
-    const stepLimits = est.fitted ? base : { ...base, max_peak_v: base.max_peak_v * ROUGH_MARGIN };
+    const base = gentleLimit_v < limits.max_peak_v ? { ...limits, max_peak_v: gentleLimit_v, why: "half the ring that changed with its amplitude" } : limits;
+    const stepLimits = est.fitted ? base : { ...base, max_peak_v: base.max_peak_v * ROUGH_MARGIN, why: `${ROUGH_MARGIN * 100} % of the ${volts(base.max_peak_v)} limit${base.why ? ` (${base.why})` : ""} while the part is known only from the probe` };
     lastAdvice = adviseSettings(profile, est, stepLimits, tanks);
     const next = lastAdvice.find((a) => a.refused === "" && !tried.has(key(a)));
     if (!next) break;
     // Precision target: stop once a reading is as good as the best setting is expected to be.
     if (best && clean(best) && best.analysis.edges_used >= MIN_EDGES_AUTO && relU(best) <= 1.1 * Math.min(...lastAdvice.filter((a) => a.refused === "").map((a) => a.l_rel_u))) break;
     tried.add(key(next));
-    progress(`step ${step + 1}: ${next.reason}`);
+    const nextSettings = settingsFor(client, next);
+    const fraction = progress.stepFraction(step, MAX_STEPS);
+    progress.emit({ type: "step", phase: "ranging", step: step + 1, of: MAX_STEPS, setting: settingInfo(client, nextSettings), reason: next.reason, fraction, message: `step ${step + 1}: ${next.reason}` });
+    opts.onBeforePulse?.(next);
     let reading: Reading;
     try {
-      reading = await readOnce(client, settingsFor(client, next), opts, progress);
+      reading = await readOnce(client, nextSettings, opts, progress, "ranging", fraction);
     } catch (e) {
       if (!(e instanceof MeasureError) || !NO_USABLE_RING.includes(e.code)) throw e;
       const why = explainFailure(e);
@@ -100,14 +105,16 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
     }
     if (reading.analysis.amplitude_v > limits.max_peak_v) {
       // The physics said otherwise; keep the reading but go no further up.
-      progress(`caution: the ring reached ${reading.analysis.amplitude_v.toFixed(1)} V, above the ${limits.max_peak_v} V limit; stopping here`);
+      const amplitude_v = reading.analysis.amplitude_v;
+      progress.emit({ type: "caution", code: "RING_OVER_LIMIT", phase: "ranging", amplitude_v, fraction, message: `caution: the ring reached ${volts(amplitude_v)}, above the ${volts(limits.max_peak_v)} limit; stopping here` });
       return { ...reading, prediction: next, advice: lastAdvice };
     }
     est = refineEstimate(est, estimateFromReading(profile, next, reading.analysis));
     if (!best || better(reading, best)) best = { ...reading, prediction: next, advice: lastAdvice };
     if (!clean(reading)) {
       gentleLimit_v = Math.min(gentleLimit_v, 0.5 * reading.analysis.amplitude_v);
-      progress(`the ring changes with its amplitude (${reading.analysis.warnings.map((w) => w.code).join(", ")}); trying a gentler setting`);
+      const amplitude_v = reading.analysis.amplitude_v;
+      progress.emit({ type: "caution", code: "AMPLITUDE_DEPENDENT", phase: "ranging", amplitude_v, fraction, message: `the ring changes with its amplitude (${reading.analysis.warnings.map((w) => w.code).join(", ")}); trying a gentler setting` });
     }
   }
   if (!best) {
@@ -121,7 +128,7 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
   if (best.analysis.edges_used < MIN_EDGES_AUTO) {
     best.analysis.warnings.push({
       code: "FEW_EDGES_BEST_SETTING",
-      message: `the best setting found gives only ${best.analysis.edges_used} edges: the part is too heavily damped for a longer ring within the ${limits.max_peak_v} V limit; the reading rests on few cycles`,
+      message: `the best setting found gives only ${best.analysis.edges_used} edges: the part is too heavily damped for a longer ring within the ${volts(limits.max_peak_v)} limit; the reading rests on few cycles`,
     });
   }
   return best;

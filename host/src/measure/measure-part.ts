@@ -8,17 +8,20 @@ import type { DeviceClient, MeasureSettings } from "../device/client.ts";
 import type { Advice } from "../ranging/advice.ts";
 import type { PartEstimate } from "../ranging/estimate.ts";
 import type { PlanLimits } from "../ranging/predict.ts";
-import { predictSetting } from "../ranging/predict.ts";
-import { resolvePeakLimit } from "../ranging/safety.ts";
+import { predictSetting, type SettingPrediction } from "../ranging/predict.ts";
+import { resolvePeakLimit, volts } from "../ranging/safety.ts";
 import { autoRange, probePart } from "./auto-range.ts";
 import type { AppliedCalibration } from "./capture-build.ts";
 import { MeasureError, NO_USABLE_RING, describeSetting, readOnce } from "./read-once.ts";
 import { explainFailure, finishReading, shortedPart, SHORT_MAX_L_H } from "./part-fault.ts";
 import type { PartFault } from "./part-fault.ts";
+import { MeasureAbortedError, ReadingProgress, type MeasureEvent } from "./events.ts";
 
 export { MeasureError, analyzeCapture, describeSetting, readOnce } from "./read-once.ts";
 export { PartFaultError, judgeCapture, judgeReading } from "./part-fault.ts";
 export type { PartFault, PartFaultCode } from "./part-fault.ts";
+export { MeasureAbortedError } from "./events.ts";
+export type { CautionEvent, DoneEvent, MeasureEvent, MeasurePhase, PulseEvent, SettingInfo, StepEvent } from "./events.ts";
 
 export interface MeasureOptions {
   /** Fixed drive-resistor index; with `tank`, skips ranging (the setting is still safety-checked). */
@@ -29,12 +32,28 @@ export interface MeasureOptions {
   max_peak_v?: number;
   /** Consent to a limit above the hazardous-live level (42.4 V peak). Default false. */
   hazardous_ok?: boolean;
+  /**
+   * The part is one winding of a transformer whose other winding has this many turns per pulsed
+   * turn: it sees the pulse times this ratio, so every pulse is kept at max_peak_v / ratio.
+   */
+  other_winding_ratio?: number;
+  /** Called with each setting's prediction just before it is pulsed (not for the gentle probe). */
+  onBeforePulse?: (p: SettingPrediction) => void;
   /** What is already known about the part (from an earlier reading): skips the probe. */
   estimate?: PartEstimate;
   label?: string;
   /** Applied to every capture of this reading (see calibration/); nominal values without it. */
   calibration?: AppliedCalibration;
+  /** One line of text per step (probe, chosen setting, capture): each event's `message`. */
   onProgress?: (message: string) => void;
+  /** The same progress as typed events (events.ts): phase, setting, pulse count, fraction done. */
+  onEvent?: (e: MeasureEvent) => void;
+  /**
+   * Abandons the reading: no pulse starts after it fires, a capture in flight is stopped (the
+   * tester is sent `AB`), and the call rejects with MeasureAbortedError (code ABORTED) once the
+   * tester has stopped, leaving the client ready for the next reading.
+   */
+  signal?: AbortSignal;
   /**
    * Return a reading even when it shows a part fault (a clipped first cycle, a saturating core,
    * a chattering fixture, a ring that outlasts the window), marked `suspect`, instead of refusing
@@ -64,15 +83,32 @@ const FIXED_TIMEOUT_MS = 1000;
  * advice, unless `keep_suspect` asks for the reading marked suspect.
  */
 export async function measurePart(client: DeviceClient, opts: MeasureOptions = {}): Promise<Reading> {
-  return finishReading(await settle(client, opts), client.profile, opts);
+  const progress = new ReadingProgress(opts);
+  try {
+    progress.checkAborted();
+    const reading = finishReading(await settle(client, opts, progress), client.profile, opts);
+    progress.done(false);
+    return reading;
+  } catch (e) {
+    if (!opts.signal?.aborted) {
+      progress.done(false);
+      throw e;
+    }
+    // Stopped at a pulse boundary: tell the tester unless the client did during the pulse.
+    if (!progress.testerTold && progress.pulses > 0) await client.abort().catch(() => undefined);
+    progress.done(true);
+    throw new MeasureAbortedError();
+  }
 }
 
-async function settle(client: DeviceClient, opts: MeasureOptions): Promise<Reading> {
-  const progress = opts.onProgress ?? (() => {});
+async function settle(client: DeviceClient, opts: MeasureOptions, progress: ReadingProgress): Promise<Reading> {
   const profile = client.profile;
-  const peak = resolvePeakLimit(opts.max_peak_v, profile.clamp_v, opts.hazardous_ok ?? false);
+  const peak = resolvePeakLimit(opts.max_peak_v, profile.clamp_v, opts.hazardous_ok ?? false, { other_winding_ratio: opts.other_winding_ratio });
   if (!peak.ok) throw new MeasureError("PEAK_LIMIT", peak.message);
-  const limits: PlanLimits = { max_peak_v: peak.limit_v, min_ticks_per_period: 40 };
+  const limits: PlanLimits = {
+    max_peak_v: peak.limit_v, min_ticks_per_period: 40,
+    ...(peak.limit_v < peak.winding_limit_v ? { why: `${volts(peak.winding_limit_v)} / ${peak.other_winding_ratio} for the other winding` } : {}),
+  };
   if (opts.drive === undefined && opts.tank === undefined) return autoRange(client, limits, opts, progress);
 
   const drive = opts.drive ?? 0;
@@ -90,8 +126,9 @@ async function settle(client: DeviceClient, opts: MeasureOptions): Promise<Readi
     throw new MeasureError("CHARGE_LIMIT", `the charge time ${charge} µs exceeds the drive resistor's ${profile.drives[drive].max_charge_us} µs interlock`);
   }
   const settings = { drive, tank, charge_us: charge, edge_limit: profile.buffer_edges, timeout_ms: FIXED_TIMEOUT_MS, quiet_us: FIXED_QUIET_US };
+  opts.onBeforePulse?.(p);
   try {
-    return await readOnce(client, settings, opts, progress);
+    return await readOnce(client, settings, opts, progress, "fixed", 0.5);
   } catch (e) {
     if (!(e instanceof MeasureError)) throw e;
     const why = explainFailure(e);

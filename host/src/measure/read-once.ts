@@ -7,18 +7,25 @@ import type { CaptureV1 } from "../capture/capture-file.ts";
 import type { DeviceClient, MeasureSettings } from "../device/client.ts";
 import { formatSi } from "../format/si.ts";
 import { captureFromDevice, ringInputFromCapture } from "./capture-build.ts";
+import { withUnaccountedCapacitance } from "./reading-uncertainty.ts";
 import type { MeasureOptions, Reading } from "./measure-part.ts";
 import { CodedError } from "../coded-error.ts";
+import { ReadingProgress, type MeasurePhase } from "./events.ts";
 
 export class MeasureError extends CodedError {
   /** The capture that could not be analysed, when the error came from its analysis. */
   capture?: CaptureV1;
 }
 
-/** Pulses once on the given settings and analyses the capture. */
-export async function readOnce(client: DeviceClient, settings: MeasureSettings, opts: MeasureOptions, progress: (m: string) => void): Promise<Reading> {
-  progress(`measuring: ${describeSetting(client, settings)}`);
-  const raw = await client.measure(settings);
+/**
+ * Pulses once on the given settings and analyses the capture. `progress` is the reading's
+ * progress and abort state (a bare string callback is accepted too).
+ */
+export async function readOnce(
+  client: DeviceClient, settings: MeasureSettings, opts: MeasureOptions,
+  progress: ReadingProgress | ((m: string) => void), phase: MeasurePhase = "fixed", fraction = 0.5,
+): Promise<Reading> {
+  const raw = await ReadingProgress.from(progress).pulse(client, settings, phase, fraction, `measuring: ${describeSetting(client, settings)}`);
   const capture = captureFromDevice(raw, client.identity, client.profile, client.transport.description, opts.label, opts.calibration);
   return { capture, analysis: analyzeCapture(capture), settings };
 }
@@ -35,7 +42,7 @@ export function analyzeCapture(capture: CaptureV1): RingAnalysis {
 export function fitCapture(capture: CaptureV1): { fit: FitState; analysis: RingAnalysis } {
   try {
     const fit = fitRing(ringInputFromCapture(capture));
-    return { fit, analysis: analyzeFit(fit) };
+    return { fit, analysis: withUnaccountedCapacitance(analyzeFit(fit), capture) };
   } catch (e) {
     const m = e instanceof AnalysisError ? new MeasureError(e.code, e.message) : e;
     if (m instanceof MeasureError) m.capture ??= capture;
@@ -44,7 +51,7 @@ export function fitCapture(capture: CaptureV1): { fit: FitState; analysis: RingA
 }
 
 /** Codes of a capture that held no usable ring (as opposed to a link or setting problem). */
-export const NO_USABLE_RING = ["TOO_FEW_EDGES", "NO_RING", "EMPTY_CAPTURE"];
+export { NO_USABLE_RING } from "../codes.ts";
 
 export function describeSetting(client: DeviceClient, s: { drive: number; tank: number; charge_us: number }): string {
   const r = client.profile.drives[s.drive].ohm;

@@ -8,12 +8,16 @@ import type { DeviceProfile } from "../device/profile.ts";
 import { predictedRingBound, rangingWork } from "./bound-cache.ts";
 import type { PartEstimate } from "./estimate.ts";
 import { lossModel, thresholdScale } from "./estimate.ts";
+import { volts } from "./safety.ts";
+import { unaccountedCapacitanceRelU } from "./unaccounted-capacitance.ts";
 
 export interface PlanLimits {
   /** Highest ring peak allowed, volts (never above the board's clamp). */
   max_peak_v: number;
   /** Fewest timer ticks per ring period for a sound fit. */
   min_ticks_per_period: number;
+  /** Where max_peak_v comes from when it is not the plain limit, for refusal messages. */
+  why?: string;
 }
 
 export interface TankValue {
@@ -55,15 +59,6 @@ export interface SettingPrediction {
   refused: string;
 }
 
-/**
- * Capacitance in parallel with the tank that the reading cannot separate from it, as a standard
- * uncertainty: the part's own self-capacitance (typically a few to a few tens of pF for small
- * wound parts: 10 pF, common bench practice, no source) and, until calibrated, the fixture and
- * switch node (about 20 pF on the reference board: 10 pF). With a calibrated tank only the part's
- * share remains. This is why the advice prefers the largest tank that still rings long enough.
- */
-export const SELF_CAPACITANCE_U_F = 10e-12;
-export const UNCALIBRATED_STRAY_U_F = 10e-12;
 /** Timebase: ±50 ppm crystal, rectangular, until calibrated. */
 export const TIMEBASE_REL_U = 50e-6 / Math.sqrt(3);
 const DEFAULT_NOISE = { sigma_t_s: 3e-9, sigma_v_v: 0.6e-3 };
@@ -106,8 +101,10 @@ export function predictSetting(
   const avgPower = energy / (charge.charge_us * 1e-6 + rest_s);
   const edgeRateLimit = profile.tick_hz / TICKS_PER_EDGE_MIN;
   const fit = fitUncertainty(profile, est, a0, alpha, w0, c, cycles);
-  const stray_u = tankValue ? SELF_CAPACITANCE_U_F : Math.hypot(SELF_CAPACITANCE_U_F, UNCALIBRATED_STRAY_U_F);
-  const budget = { fit: fit.l_rel, tank: u_c / c, timebase: 2 * TIMEBASE_REL_U, stray: stray_u / c };
+  // What the reading will not separate from the tank: the same model as the reading's own U. This
+  // is why the advice prefers the largest tank that still rings long enough.
+  const stray = unaccountedCapacitanceRelU(c, { tank_calibrated: tankValue !== undefined });
+  const budget = { fit: fit.l_rel, tank: u_c / c, timebase: 2 * TIMEBASE_REL_U, stray };
   const p: SettingPrediction = {
     drive, tank, charge_us: charge.charge_us, i0_a: charge.i0, i0_worst_a: charge.i0_worst,
     supply_current_a: charge.i_final, resistor_energy_j: energy, resistor_avg_power_w: avgPower, resistor_rating_w: r.power_rating_w,
@@ -122,7 +119,7 @@ export function predictSetting(
 
 function refusal(p: SettingPrediction, limits: PlanLimits, a0_worst: number): string {
   // The limit is checked on the undamped amplitude at the worst-case current: a bound, not a guess.
-  if (a0_worst > limits.max_peak_v) return `its ring could reach ${a0_worst.toFixed(1)} V, above the ${limits.max_peak_v} V limit`;
+  if (a0_worst > limits.max_peak_v) return `its ring could reach ${volts(a0_worst)}, above the ${volts(limits.max_peak_v)} limit${limits.why ? ` (${limits.why})` : ""}`;
   if (p.q <= 0.5) return "the part would not ring on this tank (overdamped)";
   if (p.ticks_per_period < limits.min_ticks_per_period) return `the ring is too fast for the timer (${p.ticks_per_period.toFixed(0)} ticks per period, ${limits.min_ticks_per_period} needed)`;
   if (p.edge_rate_hz > p.edge_rate_limit_hz) return `edges would come faster than the capture can store them`;

@@ -29,6 +29,22 @@ describe("ring-peak limit", () => {
     expect(resolvePeakLimit(undefined, 36, false)).toMatchObject({ ok: true, limit_v: 28.8 });
     expect(resolvePeakLimit(undefined, 100, false)).toMatchObject({ ok: true, limit_v: 30 });
   });
+  it("with a turns ratio, divides the pulsed winding's limit so the other winding (ratio × pulse) stays under it", () => {
+    const r = resolvePeakLimit(undefined, 36, false, { other_winding_ratio: 19 });
+    expect(r).toMatchObject({ ok: true, winding_limit_v: 28.8, other_winding_ratio: 19 });
+    expect(otherWindingPeakV(r.limit_v, 19)).toBeCloseTo(28.8, 9);
+    expect(r.basis.join("\n")).toMatch(/1\.52 V = 28\.8 V \/ 19/);
+    // A ratio at or below 1 (the other winding has fewer turns) changes nothing.
+    expect(resolvePeakLimit(undefined, 36, false, { other_winding_ratio: 0.5 }).limit_v).toBe(28.8);
+    expect(resolvePeakLimit(undefined, 36, false, { other_winding_ratio: 0 }).ok).toBe(false);
+  });
+  it("says where each figure comes from: 80 % of the clamp, the probe's 70 % share, and that consent cannot pass a 36 V clamp", () => {
+    const text = resolvePeakLimit(undefined, 36, false).basis.join("\n");
+    expect(text).toMatch(/28\.8 V = 80 % of this tester's 36 V flyback clamp/);
+    expect(text).toMatch(/20\.2 V: 70 % of the limit/);
+    expect(text).toMatch(/--hazardous-ok cannot take effect on this tester/);
+    expect(resolvePeakLimit(undefined, 100, false).basis.join("\n")).not.toMatch(/cannot take effect/);
+  });
   it("may be lowered freely", () => {
     expect(resolvePeakLimit(5, 36, false)).toMatchObject({ ok: true, limit_v: 5 });
   });

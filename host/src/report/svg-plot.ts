@@ -1,6 +1,9 @@
 // A small SVG chart writer for the report: one x-y panel with 1-2-5 ticks, lines, point marks,
-// reference lines and labels. Output is a string; styling comes from classes the page's style
-// sheet defines, so every chart shares one look. Pure: no I/O.
+// reference lines and labels. Output is Markup from the report's one escaping template (html.ts):
+// every label is escaped there. Styling comes from classes the page's style sheet defines, so
+// every chart shares one look. Pure: no I/O.
+
+import { html, joinMarkup, type Markup } from "./html.ts";
 
 export interface Axis {
   label: string;
@@ -36,10 +39,6 @@ export interface Chart {
 }
 
 const M = { left: 64, right: 16, top: 30, bottom: 42 };
-
-export function escapeXml(s: string): string {
-  return s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
-}
 
 /** Tick positions at 1, 2 or 5 times a power of ten, about `target` of them. */
 export function niceTicks(lo: number, hi: number, target = 6): number[] {
@@ -96,7 +95,7 @@ function tickLabel(v: number): string {
   return Number(v.toPrecision(6)).toString();
 }
 
-export function renderChart(c: Chart): string {
+export function renderChart(c: Chart): Markup {
   const W = c.width ?? 760;
   const H = c.height ?? 300;
   const pw = W - M.left - M.right;
@@ -116,69 +115,69 @@ export function renderChart(c: Chart): string {
   const sy = (v: number) => M.top + (1 - (v - y0) / (y1 - y0)) * ph;
   const xs = c.x.scale ?? 1;
   const ys = c.y.scale ?? 1;
-  const parts: string[] = [];
-  parts.push(`<svg xmlns="http://www.w3.org/2000/svg" class="chart" viewBox="0 0 ${W} ${H}" width="${W}" height="${H}" role="img" aria-label="${escapeXml(c.title)}">`);
-  parts.push(`<rect class="plot-bg" x="${M.left}" y="${M.top}" width="${pw}" height="${ph}"/>`);
-  parts.push(`<text class="chart-title" x="${M.left}" y="${M.top - 10}">${escapeXml(c.title)}</text>`);
+  const parts: Markup[] = [];
+  parts.push(html`<svg xmlns="http://www.w3.org/2000/svg" class="chart" viewBox="0 0 ${W} ${H}" width="${W}" height="${H}" role="img" aria-label="${c.title}">`);
+  parts.push(html`<rect class="plot-bg" x="${M.left}" y="${M.top}" width="${pw}" height="${ph}"/>`);
+  parts.push(html`<text class="chart-title" x="${M.left}" y="${M.top - 10}">${c.title}</text>`);
   for (const t of logX ? logTicks(x0 * xs, x1 * xs) : niceTicks(x0 * xs, x1 * xs)) {
     const X = num(sx(t / xs));
-    parts.push(`<line class="grid" x1="${X}" x2="${X}" y1="${M.top}" y2="${M.top + ph}"/>`);
-    parts.push(`<text class="tick" x="${X}" y="${M.top + ph + 16}" text-anchor="middle">${tickLabel(t)}</text>`);
+    parts.push(html`<line class="grid" x1="${X}" x2="${X}" y1="${M.top}" y2="${M.top + ph}"/>`);
+    parts.push(html`<text class="tick" x="${X}" y="${M.top + ph + 16}" text-anchor="middle">${tickLabel(t)}</text>`);
   }
   for (const t of niceTicks(y0 * ys, y1 * ys, 5)) {
     const Y = num(sy(t / ys));
-    parts.push(`<line class="grid" x1="${M.left}" x2="${M.left + pw}" y1="${Y}" y2="${Y}"/>`);
-    parts.push(`<text class="tick" x="${M.left - 6}" y="${Y}" dy="4" text-anchor="end">${tickLabel(t)}</text>`);
+    parts.push(html`<line class="grid" x1="${M.left}" x2="${M.left + pw}" y1="${Y}" y2="${Y}"/>`);
+    parts.push(html`<text class="tick" x="${M.left - 6}" y="${Y}" dy="4" text-anchor="end">${tickLabel(t)}</text>`);
   }
-  parts.push(`<text class="axis-label" x="${M.left + pw / 2}" y="${H - 6}" text-anchor="middle">${escapeXml(c.x.label)}</text>`);
-  parts.push(`<text class="axis-label" transform="translate(14 ${M.top + ph / 2}) rotate(-90)" text-anchor="middle">${escapeXml(c.y.label)}</text>`);
-  parts.push(`<clipPath id="clip-${hash(c.id)}"><rect x="${M.left}" y="${M.top}" width="${pw}" height="${ph}"/></clipPath>`);
-  parts.push(`<g clip-path="url(#clip-${hash(c.id)})">`);
+  parts.push(html`<text class="axis-label" x="${M.left + pw / 2}" y="${H - 6}" text-anchor="middle">${c.x.label}</text>`);
+  parts.push(html`<text class="axis-label" transform="translate(14 ${M.top + ph / 2}) rotate(-90)" text-anchor="middle">${c.y.label}</text>`);
+  parts.push(html`<clipPath id="clip-${hash(c.id)}"><rect x="${M.left}" y="${M.top}" width="${pw}" height="${ph}"/></clipPath>`);
+  parts.push(html`<g clip-path="url(#clip-${hash(c.id)})">`);
   // Labels alternate right-above / left-below so two close reference lines stay readable.
   (c.hlines ?? []).forEach((h, k) => {
     const Y = num(sy(h.y));
     const label = k % 2 === 0
-      ? `<text class="ref-label" x="${M.left + pw - 4}" y="${Y}" dy="-4" text-anchor="end">${escapeXml(h.label)}</text>`
-      : `<text class="ref-label" x="${M.left + 4}" y="${Y}" dy="11">${escapeXml(h.label)}</text>`;
-    parts.push(`<line class="ref" x1="${M.left}" x2="${M.left + pw}" y1="${Y}" y2="${Y}"/>${label}`);
+      ? html`<text class="ref-label" x="${M.left + pw - 4}" y="${Y}" dy="-4" text-anchor="end">${h.label}</text>`
+      : html`<text class="ref-label" x="${M.left + 4}" y="${Y}" dy="11">${h.label}</text>`;
+    parts.push(html`<line class="ref" x1="${M.left}" x2="${M.left + pw}" y1="${Y}" y2="${Y}"/>${label}`);
   });
   for (const s of c.series) parts.push(renderSeries(s, sx, sy));
-  parts.push(`</g>`);
+  parts.push(html`</g>`);
   parts.push(legend(c.series, M.left + pw, M.top - 10));
-  parts.push(`</svg>`);
-  return parts.join("\n");
+  parts.push(html`</svg>`);
+  return joinMarkup(parts, "\n");
 }
 
-function renderSeries(s: Series, sx: (v: number) => number, sy: (v: number) => number): string {
+function renderSeries(s: Series, sx: (v: number) => number, sy: (v: number) => number): Markup {
   const n = Math.min(s.xs.length, s.ys.length);
   if (s.kind === "line") {
     const pts: string[] = [];
     for (let i = 0; i < n; i++) if (Number.isFinite(s.ys[i])) pts.push(`${num(sx(s.xs[i]))},${num(sy(s.ys[i]))}`);
-    return `<polyline class="${s.cls}" points="${pts.join(" ")}"/>`;
+    return html`<polyline class="${s.cls}" points="${pts.join(" ")}"/>`;
   }
   if (s.kind === "bars-h") {
-    const out: string[] = [];
+    const out: Markup[] = [];
     for (let i = 0; i < n; i++) {
       const y = sy(s.ys[i]);
-      out.push(`<rect class="${s.cls}" x="${num(sx(0))}" y="${num(y - 9)}" width="${num(Math.max(1, sx(s.xs[i]) - sx(0)))}" height="18"/>`);
+      out.push(html`<rect class="${s.cls}" x="${num(sx(0))}" y="${num(y - 9)}" width="${num(Math.max(1, sx(s.xs[i]) - sx(0)))}" height="18"/>`);
     }
-    return out.join("");
+    return joinMarkup(out);
   }
-  const out: string[] = [];
-  for (let i = 0; i < n; i++) if (Number.isFinite(s.ys[i])) out.push(`<circle class="${s.cls}" cx="${num(sx(s.xs[i]))}" cy="${num(sy(s.ys[i]))}" r="2.6"/>`);
-  return `<g>${out.join("")}</g>`;
+  const out: Markup[] = [];
+  for (let i = 0; i < n; i++) if (Number.isFinite(s.ys[i])) out.push(html`<circle class="${s.cls}" cx="${num(sx(s.xs[i]))}" cy="${num(sy(s.ys[i]))}" r="2.6"/>`);
+  return html`<g>${out}</g>`;
 }
 
-function legend(series: Series[], right: number, y: number): string {
+function legend(series: Series[], right: number, y: number): Markup {
   const named = series.filter((s) => s.name);
   let x = right;
-  const out: string[] = [];
+  const out: Markup[] = [];
   for (const s of named.slice().reverse()) {
     const w = 18 + 7 * s.name!.length;
     x -= w;
-    out.push(`<g class="legend"><rect class="${s.cls} key" x="${x}" y="${y - 8}" width="10" height="10"/><text x="${x + 14}" y="${y + 1}">${escapeXml(s.name!)}</text></g>`);
+    out.push(html`<g class="legend"><rect class="${s.cls} key" x="${x}" y="${y - 8}" width="10" height="10"/><text x="${x + 14}" y="${y + 1}">${s.name!}</text></g>`);
   }
-  return out.join("");
+  return joinMarkup(out);
 }
 
 function hash(s: string): string {

@@ -1,7 +1,7 @@
-// Report files: read captures, build the page, write it atomically (temporary name, then
-// rename), so a browser refreshing the file never sees half a report.
+// Report files: read captures, build the page, write it atomically (fs/atomic-write.ts), so a
+// browser refreshing the file never sees half a report.
 
-import { renameSync, writeFileSync } from "node:fs";
+import { writeFileAtomic } from "../fs/atomic-write.ts";
 import { readCaptureFile } from "../capture/capture-file.ts";
 import type { CaptureV1 } from "../capture/capture-file.ts";
 import { reportData } from "./report-data.ts";
@@ -17,8 +17,6 @@ export function buildReport(captures: { source: string; capture: CaptureV1 }[], 
 /** Reads capture files, writes the report to `out`; returns the page's size in bytes. */
 export function writeReport(files: string[], out: string): { bytes: number; entries: ReportEntry[] } {
   const { html, entries } = buildReport(files.map((f) => ({ source: f, capture: readCaptureFile(f) })));
-  const tmp = `${out}.${process.pid}.tmp`;
-  writeFileSync(tmp, html);
-  renameSync(tmp, out);
+  writeFileAtomic(out, html);
   return { bytes: Buffer.byteLength(html), entries };
 }

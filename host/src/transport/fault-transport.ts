@@ -13,7 +13,7 @@ import { LineSplitter, TransportBase, TransportError } from "./transport.ts";
 
 export type RxFault = "drop_byte" | "flip_bit" | "duplicate_line" | "reorder_lines" | "stall" | "reset";
 export type TxFault = "tx_drop_byte" | "tx_flip_bit";
-export type FaultKind = RxFault | TxFault | "vanish" | "garbage_at_connect";
+export type FaultKind = RxFault | TxFault | "vanish" | "garbage_at_connect" | "stray_to_tester";
 
 export interface FaultOptions {
   seed: number;
@@ -21,6 +21,11 @@ export interface FaultOptions {
   rates?: Partial<Record<RxFault | TxFault, number>>;
   /** Bytes already in the pipe when the host first writes (boot noise, a previous session's tail). */
   garbage_at_connect?: string;
+  /**
+   * Bytes another program wrote into the port before the host opened it (a modem manager's AT
+   * probe, a terminal): they reach the tester ahead of the host's first write.
+   */
+  stray_to_tester?: string;
   /** Delay of every received line, ms: a slow device or a congested hub. Default 0. */
   line_delay_ms?: number;
   /** How long a stall holds the lines back, ms; Infinity: the rest of the burst is lost (the tester answers the next command). */
@@ -31,7 +36,7 @@ export interface FaultOptions {
   onReset?: () => void;
 }
 
-const FAULT_KINDS: FaultKind[] = ["drop_byte", "flip_bit", "duplicate_line", "reorder_lines", "stall", "reset", "tx_drop_byte", "tx_flip_bit", "vanish", "garbage_at_connect"];
+const FAULT_KINDS: FaultKind[] = ["drop_byte", "flip_bit", "duplicate_line", "reorder_lines", "stall", "reset", "tx_drop_byte", "tx_flip_bit", "vanish", "garbage_at_connect", "stray_to_tester"];
 const RX_BYTE_FAULTS: RxFault[] = ["drop_byte", "flip_bit"];
 
 export class FaultTransport extends TransportBase implements Transport {
@@ -58,6 +63,7 @@ export class FaultTransport extends TransportBase implements Transport {
   /** Output is cut (a reset, or a stall that never ends) until the host writes again. */
   private cut = false;
   private garbagePending: string | null;
+  private strayPending: string | null;
   private closed = false;
   private rateApplies = true;
 
@@ -67,6 +73,7 @@ export class FaultTransport extends TransportBase implements Transport {
     this.rng = new Random(opts.seed);
     this.rates = opts.rates ?? {};
     this.garbagePending = opts.garbage_at_connect ?? null;
+    this.strayPending = opts.stray_to_tester ?? null;
     inner.onLine((line) => this.receive(line));
     inner.onClose((err) => this.shutDown(err));
   }
@@ -96,6 +103,11 @@ export class FaultTransport extends TransportBase implements Transport {
       this.injected.garbage_at_connect++;
       this.rxLines.pushText(g);
     }
+    if (this.strayPending !== null) {
+      const stray = this.strayPending;
+      this.strayPending = null;
+      await this.sendStray(stray);
+    }
     this.writes++;
     const text = new TextDecoder("latin1").decode(data);
     const tag = /^([A-Z]{2})[ *]/.exec(text)?.[1];
@@ -109,6 +121,12 @@ export class FaultTransport extends TransportBase implements Transport {
     }
     if (this.take("tx_flip_bit", true) && bytes.length > 0) bytes[this.bytePosition(bytes.length)] ^= 1 << this.bit();
     await this.inner.write(bytes);
+  }
+
+  /** Bytes from another program reach the tester now, between the host's commands. */
+  async sendStray(bytes: string): Promise<void> {
+    this.injected.stray_to_tester++;
+    await this.inner.write(Uint8Array.from(bytes, (c) => c.charCodeAt(0) & 0xff));
   }
 
   async close(): Promise<void> {

@@ -1,43 +1,15 @@
-// A reading that a bench application can abandon through an AbortSignal. The device client runs
-// one command at a time, so an abort cannot cut a pulse short: the call rejects at once with
-// code ABORTED, the capture in flight (milliseconds to about a second) completes in the
-// background and is discarded, and the tester is then told to stop anything still queued.
+// A reading that a bench application can abandon through an AbortSignal: `measurePart` with its
+// `signal` option. No pulse starts after the abort, a capture in flight is stopped (the tester is
+// sent AB), and the call rejects with code ABORTED once the tester has stopped, so the client is
+// ready for the next reading as soon as the promise settles.
 
 import type { DeviceClient } from "../device/client.ts";
 import { measurePart, type MeasureOptions, type Reading } from "../measure/measure-part.ts";
-import { CodedError } from "../coded-error.ts";
 
-export class MeasureAbortedError extends CodedError<"ABORTED"> {
-  constructor() {
-    super("ABORTED", "the reading was abandoned (AbortSignal); start a new one when ready");
-  }
-}
+export { MeasureAbortedError } from "../measure/events.ts";
 
-export interface AbortableMeasureOptions extends MeasureOptions {
-  signal?: AbortSignal;
-}
+export type AbortableMeasureOptions = MeasureOptions;
 
 export function measureAbortable(client: DeviceClient, opts: AbortableMeasureOptions = {}): Promise<Reading> {
-  const { signal, ...rest } = opts;
-  if (signal?.aborted) return Promise.reject(new MeasureAbortedError());
-  const work = measurePart(client, rest);
-  if (!signal) return work;
-  return new Promise<Reading>((resolve, reject) => {
-    const onAbort = () => {
-      reject(new MeasureAbortedError());
-      // The result no longer matters; let the tester drop whatever is still queued.
-      work.catch(() => undefined).finally(() => client.abort().catch(() => undefined));
-    };
-    signal.addEventListener("abort", onAbort, { once: true });
-    work.then(
-      (r) => {
-        signal.removeEventListener("abort", onAbort);
-        resolve(r);
-      },
-      (e) => {
-        signal.removeEventListener("abort", onAbort);
-        reject(e);
-      },
-    );
-  });
+  return measurePart(client, opts);
 }

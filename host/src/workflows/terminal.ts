@@ -1,8 +1,13 @@
 // Small terminal helpers shared by the workflow commands: colour only on a terminal and never
-// when NO_COLOR is set (https://no-color.org), and input lines from stdin that end cleanly at
-// end of input so scripted sessions never wait on a terminal.
+// when NO_COLOR is set (https://no-color.org), input lines from stdin that end cleanly at end of
+// input so scripted sessions never wait on a terminal, and (from cli/errors.ts) the one sanitiser
+// for text that reaches the terminal.
 
 import { createInterface } from "node:readline";
+import { ownEsc } from "../cli/errors.ts";
+
+// The one sanitiser for terminal text lives beside the error printer, which the CLI loads first.
+export { eraseUp, guardOutput, ownEsc, sanitizeForTerminal } from "../cli/errors.ts";
 
 export interface Style {
   good(s: string): string;
@@ -17,7 +22,8 @@ const plain = (s: string) => s;
 export function makeStyle(stream: { isTTY?: boolean } = process.stdout, env: NodeJS.ProcessEnv = process.env): Style {
   const on = stream.isTTY === true && !("NO_COLOR" in env && env.NO_COLOR !== "") && env.TERM !== "dumb";
   if (!on) return { good: plain, bad: plain, unsure: plain, dim: plain, bold: plain };
-  const sgr = (code: string) => (s: string) => `\x1b[${code}m${s}\x1b[0m`;
+  const e = ownEsc(stream);
+  const sgr = (code: string) => (s: string) => `${e}[${code}m${s}${e}[0m`;
   return { good: sgr("32"), bad: sgr("31"), unsure: sgr("33"), dim: sgr("2"), bold: sgr("1") };
 }
 
@@ -37,3 +43,4 @@ export async function* stdinLines(prompt?: string): AsyncGenerator<string> {
     rl.close();
   }
 }
+
