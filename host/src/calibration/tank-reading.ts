@@ -5,7 +5,7 @@
 
 import { ErrorCode, NO_USABLE_RING } from "../codes.ts";
 import type { DeviceClient } from "../device/client.ts";
-import type { AppliedCalibration } from "../measure/capture-build.ts";
+import type { AppliedCalibration } from "./applied.ts";
 import type { Reading } from "../measure/measure-part.ts";
 import { MeasureError, measurePart } from "../measure/measure-part.ts";
 import type { PartEstimate } from "../ranging/estimate.ts";
