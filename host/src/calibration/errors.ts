@@ -11,6 +11,7 @@ export const CALIBRATION_CODES = [
   "PROFILE_VERSION", // a stored profile is of a version this build cannot read
   "PROFILE_UNREADABLE", // the file exists but cannot be read or is not JSON
   "PROFILE_WRONG_DEVICE", // the profile belongs to another tester
+  "PROFILE_BOARD_MISMATCH", // the profile's tanks do not fit the tester's board-reported tanks
   "NO_PREVIOUS", // restore asked for with no previous profile kept
   "BAD_REFERENCE", // reference value or uncertainty makes no sense
   "OUT_OF_SPAN", // reference outside the usable span of the tank range
