@@ -12,6 +12,7 @@ import { describe, expect, it } from "vitest";
 import { encodeCommand } from "../../host/src/device/frames.ts";
 import { SimTester } from "../../host/src/sim/sim-tester.ts";
 import { NATIVE_DIR, buildCaptureMergeCheck, hasHostGcc } from "../ports/native-build.ts";
+import { fnv1a } from "./capture-checksum.ts";
 import { ScriptedPort } from "./scripted-port.ts";
 
 const note = hasHostGcc ? "" : " (skipped: Debian package gcc not installed)";
@@ -244,15 +245,3 @@ describe(`capture merge on the host${note}`, () => {
     expect(r.lines[0]).toBe(`replay ${e.length} 0 ${fnv1a(e)}`);
   });
 });
-
-/** 32-bit FNV-1a over the words' little-endian bytes (as cm_checksum). */
-export function fnv1a(words: number[]): number {
-  let h = 2166136261;
-  for (const w of words) {
-    for (let b = 0; b < 4; b++) {
-      h ^= (w >>> (8 * b)) & 0xff;
-      h = Math.imul(h, 16777619) >>> 0;
-    }
-  }
-  return h >>> 0;
-}

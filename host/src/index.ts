@@ -48,7 +48,7 @@ export type { Tolerance, Limits } from "./values/tolerance.ts";
 export { seriesValues, nearestPreferred, parseSeriesName, SERIES_NAMES } from "./values/e-series.ts";
 export type { SeriesName, Preferred } from "./values/e-series.ts";
 export { formatMeasured, formatValueOnly, iecCode } from "./values/format-value.ts";
-export { decideConformity, conformanceProbability, normalCdf } from "./workflows/conformity.ts";
+export { decideConformity, conformanceProbability, normalCdf, roundProbability } from "./workflows/conformity.ts";
 export type { Decision, ConformityResult } from "./workflows/conformity.ts";
 export { classify } from "./workflows/classify.ts";
 export type { ToleranceSpec, Classification } from "./workflows/classify.ts";

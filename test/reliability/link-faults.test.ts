@@ -157,7 +157,7 @@ describe("link faults the host cannot repair end in a coded error, and never in 
     const rig = await openRig({ seed: 28 });
     rig.faults.arm("tx_drop_byte", 0, -1);
     const e = await caught(() => rig.client.measure(SETTING));
-    expect((e as { code?: string }).code).toBe("DEVICE_TIMEOUT");
+    expect((e as { code?: string }).code).toBe("DEVICE_SILENT"); // it answered ID and PF before
     const e2 = await caught(() => rig.client.measure(SETTING));
     expect(["LINK_CRC", "LINK_SYNTAX", "LINE_TOO_LONG"]).toContain((e2 as { code?: string }).code);
     expect(rig.pulses()).toBe(0);
@@ -213,7 +213,7 @@ describe("late replies after a timeout", () => {
     const rig = await openRig({ seed: 41, faults: { stall_ms: 1000 }, client: { reply_timeout_ms: 500 } });
     rig.faults.arm("stall", OK_MS); // everything from OK MS on is held back
     const e = await caught(() => rig.client.measure(SETTING));
-    expect((e as { code?: string }).code).toBe("DEVICE_TIMEOUT");
+    expect((e as { code?: string }).code).toBe("DEVICE_SILENT");
     // The operator puts the next part on the clips and measures again while the old reply is in flight.
     await new Promise((r) => setTimeout(r, 200));
     rig.link.sim.part = { ...QUICK_PART, inductance_h: 1.5e-3 };

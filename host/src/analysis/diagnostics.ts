@@ -63,7 +63,7 @@ export function diagnose(s: FitState, rq: RingQuantities): Diagnosis {
     warnings.push({ code: "MISSING_EDGES", message: `${missing} half-cycles have no usable edge: the capture is losing edges (capture dead time or buffer overrun); use a larger tank capacitance to slow the ring, or check the capture settings` });
   }
   const clip = firstCycleDeviation(s);
-  if (clip > 5) {
+  if (clip > 5 && settlesAfterStart(s)) {
     warnings.push({ code: "SUSPECTED_CLIPPING", message: `the first cycle's edges sit ${clip.toFixed(1)} sd off the ring model: the front end may clip or the switch transient may leak in; lower the drive current` });
   }
   const white = residualCorrelation(s.r, s.variance, s.used, s.edges.rising);
@@ -78,6 +78,28 @@ export function diagnose(s: FitState, rq: RingQuantities): Diagnosis {
     warnings.push({ code: "Q_UNCERTAIN", message: `Q is determined only to ±${((200 * rq.u.q) / rq.q).toFixed(0)} % (k = 2): use offset thresholds, a longer capture or a higher drive current` });
   }
   return { warnings, drift };
+}
+
+/**
+ * A clamp acts only while the ring is above its voltage: it flattens the first peak or two, and
+ * from then on the ring is a free linear ring again, whose edges fit the model. A part whose L
+ * (or a tank whose C) depends on the amplitude bends the edges smoothly instead, cycle after
+ * cycle, and its first edges sit off the model for the same reason as the next dozen: that is
+ * frequency drift, not clipping. Clipping is suspected only when the edges after the first two
+ * cycles (the next twelve edges) are back on the model: median |z| below CLIP_SETTLED_Z.
+ */
+const CLIP_SETTLED_Z = 3;
+function settlesAfterStart(s: FitState): boolean {
+  const z: number[] = [];
+  let seen = 0;
+  for (let k = 0; k < s.edges.n && z.length < 12; k++) {
+    const rk = s.r[k];
+    if (rk !== rk) continue;
+    if (++seen > 4) z.push(Math.abs(rk) / Math.sqrt(s.variance[k]) / s.z_scale);
+  }
+  if (z.length === 0) return true;
+  z.sort((a, b) => a - b);
+  return z[z.length >> 1] < CLIP_SETTLED_Z;
 }
 
 /** Largest |z| (robust sd) among the first two fitted or rejected edges of the ring. */

@@ -28,6 +28,8 @@ Usage:
 ${CALIBRATE_USAGE}
   henrytick sim-device [SCENARIO] [--seed N]   serve a simulated tester on a pseudo-terminal
                                        (prints its path for --port; needs socat; Ctrl-C stops)
+  henrytick sim-device … --emulated m4|m0   the same, with the firmware's C build running on an
+                                       emulated STM32F405 (needs qemu-system-arm, wabt, gcc-arm-none-eabi)
 
 Options for measure:
   --json               print the result as JSON (SI units in the key names)

@@ -72,6 +72,9 @@ export class DeviceClient {
   private busy: Promise<unknown> = Promise.resolve();
   /** Counts `OK AB` lines as they arrive, whoever reads them from the inbox. */
   private abortAcks = 0;
+  /** Whole frames received on this link, and their count when the current command was written. */
+  private linesSeen = 0;
+  private exchangeStart = 0;
   private readonly replyTimeout: number;
   private readonly resendAttempts: number;
   identity!: DeviceIdentity;
@@ -82,6 +85,7 @@ export class DeviceClient {
     this.resendAttempts = opts.resend_attempts ?? 2;
     transport.onLine((line) => {
       const d = decodeLine(line);
+      if (d.ok) this.linesSeen++; // frames only: a device that is not a tester sends none
       if (d.ok && d.frame.tag === "OK" && d.frame.fields[0] === "AB") this.abortAcks++;
       this.inbox.push(d);
       this.wake();
@@ -217,12 +221,17 @@ export class DeviceClient {
     // Settle + charge + capture window, plus a reply margin.
     const firstWait = this.profile.settle_us / 1000 + s.charge_us / 1000 + s.timeout_ms + this.replyTimeout;
     let lastDefect: Error | null = null;
+    let firstSilence: DeviceTimeoutError | null = null;
     for (let attempt = 0; attempt <= this.resendAttempts; attempt++) {
       if (abort?.sent) throw new DeviceError(ERR_ABORTED, "MS");
       if (attempt > 0) {
         // A resend has its own token: lines of an earlier attempt still in flight cannot pass for it.
         token = this.nextToken();
-        await this.requestHeld(token);
+        try {
+          await this.requestHeld(token);
+        } catch (e) {
+          throw e instanceof DeviceTimeoutError ? (firstSilence ?? e) : e;
+        }
       }
       try {
         return await this.readStream(s, attempt === 0 ? firstWait : this.replyTimeout, token);
@@ -230,10 +239,12 @@ export class DeviceClient {
         // A damaged stream, or one that stalled, is fetched again; nothing is pulsed again.
         if (!(e instanceof StreamDefect) && !(e instanceof DeviceTimeoutError)) throw e;
         lastDefect = e;
+        if (e instanceof DeviceTimeoutError) firstSilence ??= e;
         await this.drainUntilQuiet();
       }
     }
-    if (lastDefect instanceof DeviceTimeoutError) throw lastDefect; // the tester stopped answering
+    // The tester stopped answering: the first silence says where (a resend then went unanswered too).
+    if (lastDefect instanceof DeviceTimeoutError) throw firstSilence ?? lastDefect;
     throw new ProtocolError(
       "CAPTURE_DAMAGED",
       `capture damaged in transit ${this.resendAttempts + 1} times (${lastDefect?.message}); check the cable and USB port, then measure again`,
@@ -315,6 +326,7 @@ export class DeviceClient {
    */
   private async command(tag: string, args: number[], extraWait_ms = 0, token?: number): Promise<Frame[]> {
     this.inbox = []; // lines left from an earlier exchange belong to no one
+    this.exchangeStart = this.linesSeen;
     await this.transport.write(encodeCommand(tag, args));
     const frames: Frame[] = [];
     // A line the tester could not read ("ER n ?") may be ours, or stray bytes that arrived as a
@@ -386,7 +398,8 @@ export class DeviceClient {
       if (check()) return;
       const timer = setTimeout(() => {
         this.waiter = null;
-        reject(new DeviceTimeoutError(what, timeout_ms));
+        const silence = this.linesSeen === 0 ? "never" : this.linesSeen > this.exchangeStart ? "mid-reply" : "stopped";
+        reject(new DeviceTimeoutError(what, timeout_ms, silence));
       }, timeout_ms);
       this.waiter = () => {
         if (check()) {

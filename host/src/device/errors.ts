@@ -22,11 +22,32 @@ export class DeviceError extends CodedError {
   }
 }
 
-/** No answer within the allowed time. */
-export class DeviceTimeoutError extends CodedError<"DEVICE_TIMEOUT"> {
-  constructor(what: string, timeout_ms: number) {
-    super("DEVICE_TIMEOUT", `no ${what} from the tester within ${timeout_ms} ms; check that the port is a henrytick tester, then unplug and reconnect it`);
+/**
+ * Whether the tester had spoken before the wait that timed out: `never` (nothing on this link since
+ * it was opened), `stopped` (it answered earlier commands, not this one) or `mid-reply` (part of
+ * this reply came, then nothing).
+ */
+export type SilenceKind = "never" | "stopped" | "mid-reply";
+
+/**
+ * No answer within the allowed time. DEVICE_TIMEOUT when nothing ever answered on this link (it
+ * may not be a tester at all); DEVICE_SILENT when a tester that was talking went quiet (reset,
+ * power lost, unplugged, firmware stuck, the USB link stalled).
+ */
+export class DeviceTimeoutError extends CodedError<"DEVICE_TIMEOUT" | "DEVICE_SILENT"> {
+  readonly silence: SilenceKind;
+  constructor(what: string, timeout_ms: number, silence: SilenceKind = "never") {
+    super(silence === "never" ? "DEVICE_TIMEOUT" : "DEVICE_SILENT", silenceMessage(what, timeout_ms, silence));
+    this.silence = silence;
   }
+}
+
+function silenceMessage(what: string, ms: number, silence: SilenceKind): string {
+  if (silence === "never") {
+    return `no ${what} from the tester within ${ms} ms, and nothing else since the port was opened: check that the port is a henrytick tester (henrytick ports lists the candidates) and that it is powered, then unplug and reconnect it`;
+  }
+  const how = silence === "mid-reply" ? `stopped answering in the middle of its ${what} (nothing for ${ms} ms)` : `answered earlier but sent no ${what} within ${ms} ms`;
+  return `the tester ${how}: it may have been reset, lost power or been unplugged, or its USB link stalled; check its power and cable and measure again (the part is never pulsed twice for one reading); if it keeps happening, unplug and reconnect it and run the self-test`;
 }
 
 /**

@@ -12,7 +12,8 @@ import type { CaptureV1 } from "../capture/capture-file.ts";
 import type { DeviceProfile } from "../device/profile.ts";
 import { formatSi } from "../format/si.ts";
 import type { Reading } from "./measure-part.ts";
-import { MeasureError, analyzeCapture } from "./read-once.ts";
+import { frequencySwing } from "./frequency-swing.ts";
+import { MeasureError, analyzeCapture, fitCapture } from "./read-once.ts";
 
 export type PartFaultCode = "RING_OUTLASTS_WINDOW" | "FIRST_CYCLE_CLIPPED" | "FIXTURE_CHATTER" | "CORE_SATURATING" | "PART_SHORTED";
 
@@ -43,7 +44,8 @@ export class PartFaultError extends MeasureError {
  */
 export const CLIP_CLAMP_RATIO = 0.7;
 /**
- * Saturation: the inductance swings by 2 |df/f| across one ring (L ∝ 1/f²). Refused above 0.1 %,
+ * Saturation: the inductance swings by 2 |df/f| across one ring (L ∝ 1/f², df/f from the first
+ * edge to the last, frequency-swing.ts). Refused above 0.1 %,
  * about the expanded uncertainty of a calibrated tester (docs/calibration.md: ±0.061 %, k = 2),
  * so a value quoted to that accuracy is not an average over a changing part.
  */
@@ -85,6 +87,18 @@ function ringAtEnd(r: Reading): { end_ratio: number; decay: number } {
   return { end_ratio: aLast / vStop, decay: aLast / a.amplitude_v };
 }
 
+/**
+ * The frequency change over the whole ring (frequency-swing.ts), from the capture's fit; the
+ * analysis's drift figure when the capture gives no better one.
+ */
+function ringFrequencySwing(r: Reading, drift_df_rel: number): number {
+  try {
+    return frequencySwing(fitCapture(r.capture).fit) ?? drift_df_rel;
+  } catch {
+    return drift_df_rel;
+  }
+}
+
 const has = (r: Reading, code: string) => r.analysis.warnings.some((w) => w.code === code);
 const fixedAdvice = "drop --drive and --tank to let automatic ranging choose";
 
@@ -101,12 +115,13 @@ export function judgeReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v" 
       message: `the first cycle was clipped: the ring started at about ${a.amplitude_v.toFixed(1)} V, at the ${profile.clamp_v} V clamp, and its first edges sit off the ring model, so the value (about ${L}) rests on a distorted ring. The part carries more current or has more inductance than the setting was chosen for: lower the drive current (a larger drive resistor, a shorter --charge-us) or ${fixedAdvice}, then measure again`,
     };
   }
-  if (has(r, "FREQUENCY_DRIFT") && a.drift && 2 * Math.abs(a.drift.df_rel) > SATURATION_SWING_REL) {
-    const ppm = a.drift.df_rel * 1e6;
-    const swing = 2 * Math.abs(a.drift.df_rel) * 100;
+  const df = has(r, "FREQUENCY_DRIFT") && a.drift ? ringFrequencySwing(r, a.drift.df_rel) : 0;
+  if (2 * Math.abs(df) > SATURATION_SWING_REL) {
+    const ppm = df * 1e6;
+    const swing = 2 * Math.abs(df) * 100;
     return {
       code: "CORE_SATURATING",
-      message: `the inductance changes with the current: the ring frequency ${ppm < 0 ? "falls" : "rises"} by ${Math.abs(ppm).toFixed(0)} ppm as the ring decays, so L swings by ${swing.toFixed(2)} % within one ring (about ${L} on average) — the core is near saturation at ${a.amplitude_v.toFixed(2)} V of ring. Lower the drive current (a larger drive resistor or a shorter --charge-us; with automatic ranging, a lower --max-peak-v) or ${fixedAdvice}; if parts with air cores drift the same way, the tester's tank capacitor is voltage dependent (it must be C0G/film)`,
+      message: `the inductance changes with the current: the ring frequency ${ppm < 0 ? "falls" : "rises"} by ${Math.abs(ppm).toFixed(0)} ppm from the first edge to the last, so L swings by ${swing.toFixed(2)} % within one ring (about ${L} on average) — the core is near saturation at ${a.amplitude_v.toFixed(2)} V of ring. Lower the drive current (a larger drive resistor or a shorter --charge-us; with automatic ranging, a lower --max-peak-v) or ${fixedAdvice}; if parts with air cores drift the same way, the tester's tank capacitor is voltage dependent (it must be C0G/film)`,
     };
   }
   if (has(r, "MANY_REJECTED")) {

@@ -61,10 +61,85 @@ export interface SimTesterOptions {
 /** Longest run of polls without the firmware going idle; guards against a firmware bug. */
 const MAX_POLLS_PER_RUN = 1_000_000;
 
-export class SimTester {
+/** Edges of one capture, in ticks since the switch opened (or the listen began). */
+export interface CaptureEdges {
+  ticks: number[];
+  levels: number[];
+}
+
+/**
+ * The simulated front end without the firmware: the part on the clips, the ring each pulse
+ * starts and the comparator edges it produces, with the noise stream the tester draws from. The
+ * simulated tester runs the firmware on it; the emulated board's edge server (qemu-edge-server.ts)
+ * answers an emulated chip's pulses from it. The same sequence of pulses and listens gives the
+ * same edges in both.
+ */
+export class SimFrontEnd {
   readonly board: BoardModel;
   part: PartModel | null;
   private rng: Random;
+  private readonly seed: number;
+  private lastRing: { part: PartModel; drive: number; tank: number; charge_s: number; openTick: number; tail: CaptureEdges | null } | null = null;
+  /** Counts of physical events, for tests and diagnostics. */
+  readonly stats = { pulses: 0, switchClosedTicks: 0, peakRingV: 0 };
+
+  constructor(board: BoardModel, part: PartModel | null, seed: number) {
+    this.board = board;
+    this.part = part;
+    this.seed = seed;
+    this.rng = new Random(seed);
+  }
+
+  /**
+   * A pulse of `chargeTicks` through drive resistor `drive` into tank `tank`, the switch opening
+   * at `openTick` (ticks on the tester's clock): the edges of the ring, at most `capacity`.
+   */
+  pulse(drive: number, tank: number, chargeTicks: number, capacity: number, openTick: number): CaptureEdges {
+    this.stats.pulses++;
+    this.stats.switchClosedTicks += chargeTicks;
+    this.lastRing = null;
+    const b = this.board;
+    const part = this.part;
+    if (!part) return { ticks: [], levels: [] }; // open terminals: no current, no ring
+    const window_s = (2 ** 30 - 1) / b.timer.tick_hz;
+    const charge_s = chargeTicks / b.timer.tick_hz;
+    const r = simulatePulse(b, part, drive, tank, charge_s, capacity, this.rng, window_s);
+    this.stats.peakRingV = Math.max(this.stats.peakRingV, r.peak_v);
+    this.lastRing = { part, drive, tank, charge_s, openTick, tail: null };
+    return r.edges;
+  }
+
+  /**
+   * What a listen with the switch open, begun at `openTick`, hears: the rest of the last pulse's
+   * ring. The tail is drawn once per ring from its own random stream, so listening never changes
+   * what later pulses record.
+   */
+  listen(openTick: number): CaptureEdges {
+    const heard: CaptureEdges = { ticks: [], levels: [] };
+    const last = this.lastRing;
+    if (!last) return heard;
+    if (!last.tail) {
+      const b = this.board;
+      const rng = new Random((this.seed ^ 0x7a11) + this.stats.pulses);
+      const window_s = Math.min((2 ** 30 - 1) / b.timer.tick_hz, (openTick - last.openTick) / b.timer.tick_hz + 10);
+      last.tail = simulatePulse(b, last.part, last.drive, last.tank, last.charge_s, 400_000, rng, window_s).edges;
+    }
+    const tail = last.tail;
+    const shift = openTick - last.openTick;
+    for (let k = 0; k < tail.ticks.length; k++) {
+      const t = tail.ticks[k] - shift;
+      if (t < 0) continue;
+      heard.ticks.push(Math.floor(t));
+      heard.levels.push(tail.levels[k]);
+    }
+    return heard;
+  }
+}
+
+export class SimTester {
+  readonly board: BoardModel;
+  /** The part, ring and comparator this tester's firmware pulses. */
+  readonly frontEnd: SimFrontEnd;
   /** The firmware instance's exports (tests reach diagnostic exports through it). */
   readonly fw: FirmwareExports;
   private nowTicks = 0; // virtual time, float64 ticks since reset
@@ -74,21 +149,26 @@ export class SimTester {
   /** The capture the HAL is currently writing: the last pulse's, or a listen with the switch open. */
   private active: PendingCapture | null = null;
   private readonly raw: RawCaptureOptions | null;
-  private lastRing: { part: PartModel; drive: number; tank: number; charge_s: number; openTick: number; tail: EdgeTail | null } | null = null;
-  private readonly seed: number;
   private output: (bytes: Uint8Array) => void = () => {};
   /** Counts of physical events, for tests and diagnostics. */
-  readonly stats = { pulses: 0, switchClosedTicks: 0, peakRingV: 0 };
+  readonly stats: SimFrontEnd["stats"];
 
   constructor(opts: SimTesterOptions) {
     this.board = opts.board ?? referenceBoard();
-    this.part = opts.part;
-    this.rng = new Random(opts.seed);
-    this.seed = opts.seed;
+    this.frontEnd = new SimFrontEnd(this.board, opts.part, opts.seed);
+    this.stats = this.frontEnd.stats;
     this.raw = opts.raw_capture ?? null;
     const instance = new WebAssembly.Instance(firmwareModule(opts.firmware), { hal: this.hal() });
     this.fw = instance.exports as unknown as FirmwareExports;
     this.fw.fw_init();
+  }
+
+  /** The part on the clips (null: open terminals); set it to swap parts between pulses. */
+  get part(): PartModel | null {
+    return this.frontEnd.part;
+  }
+  set part(p: PartModel | null) {
+    this.frontEnd.part = p;
   }
 
   /** Receives everything the firmware sends to the host. */
@@ -161,52 +241,14 @@ export class SimTester {
   }
 
   private pulse(chargeTicks: number, buf: number, capacity: number): void {
-    const pending: PendingCapture = {
-      openTick: this.nowTicks + chargeTicks, ticks: [], levels: [], written: 0, buf, capacity, stopped: false, nextEdge: 0, nextWrap: 1,
-    };
+    const openTick = this.nowTicks + chargeTicks;
+    const pending: PendingCapture = { openTick, ticks: [], levels: [], written: 0, buf, capacity, stopped: false, nextEdge: 0, nextWrap: 1 };
     this.active = pending;
-    if (chargeTicks === 0) {
-      this.listen(pending); // the switch stays open: only what is still ringing is heard
-      return;
-    }
-    this.stats.pulses++;
-    this.stats.switchClosedTicks += chargeTicks;
-    this.capture = pending;
-    this.lastRing = null;
-    const b = this.board;
-    const part = this.part;
-    if (!part) return; // open terminals: no current, no ring
-    const window_s = (2 ** 30 - 1) / b.timer.tick_hz;
-    const charge_s = chargeTicks / b.timer.tick_hz;
-    const r = simulatePulse(b, part, this.drive, this.tank, charge_s, capacity, this.rng, window_s);
-    this.stats.peakRingV = Math.max(this.stats.peakRingV, r.peak_v);
-    const edges = r.edges;
+    // A charge time of 0 leaves the switch open: only what is still ringing is heard.
+    const edges = chargeTicks === 0 ? this.frontEnd.listen(openTick) : this.frontEnd.pulse(this.drive, this.tank, chargeTicks, capacity, openTick);
     pending.ticks = edges.ticks;
     pending.levels = edges.levels;
-    this.lastRing = { part, drive: this.drive, tank: this.tank, charge_s, openTick: pending.openTick, tail: null };
-  }
-
-  /**
-   * A listen after a pulse hears the rest of that pulse's ring. The tail is drawn once per ring
-   * from its own random stream, so listening never changes what later pulses record.
-   */
-  private listen(pending: PendingCapture): void {
-    const last = this.lastRing;
-    if (!last) return;
-    if (!last.tail) {
-      const b = this.board;
-      const rng = new Random((this.seed ^ 0x7a11) + this.stats.pulses);
-      const window_s = Math.min((2 ** 30 - 1) / b.timer.tick_hz, (this.nowTicks - last.openTick) / b.timer.tick_hz + 10);
-      last.tail = simulatePulse(b, last.part, last.drive, last.tank, last.charge_s, 400_000, rng, window_s).edges;
-    }
-    const tail = last.tail;
-    const shift = pending.openTick - last.openTick;
-    for (let k = 0; k < tail.ticks.length; k++) {
-      const t = tail.ticks[k] - shift;
-      if (t < 0) continue;
-      pending.ticks.push(Math.floor(t));
-      pending.levels.push(tail.levels[k]);
-    }
+    if (chargeTicks !== 0) this.capture = pending;
   }
 
   /** DMA emulation: copies edges that have happened by now into firmware memory. */
@@ -258,9 +300,4 @@ export class SimTester {
     }
     return cap.written;
   }
-}
-
-interface EdgeTail {
-  ticks: number[];
-  levels: number[];
 }

@@ -48,7 +48,7 @@ export class SerialTransport extends TransportBase implements Transport {
       });
       port.open((err) => {
         if (err) {
-          reject(new TransportError(`cannot open ${opts.path}: ${err.message} (check the path, that the tester is plugged in, and that you may access the port)`, false));
+          reject(openError(opts.path, err));
           return;
         }
         resolve(new SerialTransport(port, opts.path));
@@ -70,6 +70,25 @@ export class SerialTransport extends TransportBase implements Transport {
     this.closing = true;
     return new Promise((resolve) => this.port.close(() => resolve()));
   }
+}
+
+/**
+ * Another program holds the port: node-serialport's exclusive lock failed (Linux, macOS: "Cannot
+ * lock port"), the port is busy, or Windows refused a port that is open elsewhere.
+ */
+const IN_USE = /Cannot lock port|Resource busy|EBUSY|Access denied/i;
+
+function openError(path: string, err: Error): TransportError {
+  const reason = err.message.replace(/^Error:?\s*/, "");
+  if (IN_USE.test(err.message)) {
+    return new TransportError(
+      `${path} is in use by another program (${reason}): another henrytick command or bench application, a terminal program, or a modem manager probing the port. ` +
+        `Close it and try again; on Linux and macOS, "lsof ${path}" or "fuser ${path}" names the process that holds it`,
+      false,
+      "PORT_IN_USE",
+    );
+  }
+  return new TransportError(`cannot open ${path}: ${reason} (check the path, that the tester is plugged in, and that you may access the port)`, false);
 }
 
 export interface SerialPortInfo {

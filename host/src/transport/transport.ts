@@ -32,13 +32,15 @@ export abstract class TransportBase {
 
 /** A failure of the link itself. `disconnected` is true when the device went away. */
 /** Code LINK_DISCONNECTED when the device went away (unplugged, port closed), else LINK_ERROR. */
-export class TransportError extends CodedError<"LINK_DISCONNECTED" | "LINK_ERROR"> {
+/** PORT_IN_USE when another program holds the port. */
+export class TransportError extends CodedError<"LINK_DISCONNECTED" | "LINK_ERROR" | "PORT_IN_USE"> {
   constructor(
     message: string,
     readonly disconnected: boolean,
+    code?: "PORT_IN_USE",
   ) {
     super(
-      disconnected ? "LINK_DISCONNECTED" : "LINK_ERROR",
+      code ?? (disconnected ? "LINK_DISCONNECTED" : "LINK_ERROR"),
       disconnected ? `${message} (the tester was disconnected: check the cable and reconnect)` : message,
     );
   }

@@ -1,0 +1,496 @@
+/*
+ * Emulated-board port: the henrytick firmware (wasm2c build) on QEMU's STM32F405 machine
+ * (`netduinoplus2`), for the Cortex-M4 it models and, with `-cpu cortex-m0`, the ARMv6-M build.
+ * Register-level, no vendor code. docs/porting.md ("The emulated board") describes how it is run.
+ *
+ *   USART1  host link: the firmware's serial protocol, on QEMU's first -serial (a pseudo-terminal).
+ *           Receive by interrupt into a ring, transmit polled.
+ *   USART2  front-end link to the host's edge server, on QEMU's second -serial (a unix socket).
+ *           QEMU models no input capture and no comparator, so for every pulse (and every listen
+ *           with the switch open) this port asks the edge server, which runs the host simulator's
+ *           board model, for the edges the ring produces. The exchange is framed, sequence-numbered
+ *           and CRC-checked (format below); the emulated time it takes is hidden from now().
+ *   SysTick now(): the core clock (168 MHz in QEMU's model) scaled to the profile's 64 MHz tick by
+ *           a 0.32 fixed-point factor the edge server sends (it carries the board's crystal error).
+ *
+ * The capture is emulated like a timer with DMA: the reply's entries go straight into the
+ * firmware's buffer (already in extended format, ticks since the switch opened << 1 | level), and
+ * capture_count() reveals an entry only once now() has passed its tick. The gate is emulated too:
+ * closed by pulse(), opened when now() passes the charge time or at once by stop().
+ *
+ * A stalled or corrupted front-end link forces the switch open and makes the capture report a
+ * count beyond its capacity, which the firmware treats as a capture fault (ER 11, switch open).
+ * The link then stays down until reset: every later pulse faults the same way.
+ *
+ * Front-end link frames, both directions (little-endian):
+ *   0xE5 0x1D | type u8 | seq u8 | length u16 | payload[length] | CRC-16/CCITT-FALSE u16
+ * The CRC covers type, seq, length and payload. A reply carries its request's type | 0x80 and its
+ * seq; a frame with another seq is skipped (a late reply to an earlier request).
+ *   HELLO  (1)  port: cpu_hz u32, core u8 (0 Cortex-M0, 1 Cortex-M4)
+ *        (0x81) server: device_id u32, tick_mul u32 (64 MHz ticks per core cycle << 32)
+ *   PULSE  (2)  port: drive u8, tank u8, 0 u16, charge_ticks u32, capacity u32, open_tick u32
+ *               (charge_ticks 0: a listen with the switch open; open_tick is now() + charge)
+ *        (0x82) server: count u32 (<= capacity), count entries u32
+ */
+#include <stdint.h>
+#include <string.h>
+
+#include "henrytick-rt.h"
+#include "henrytick.h"
+
+#define REG(a) (*(volatile uint32_t*)(uintptr_t)(a))
+
+/* ---- STM32F405 registers (RM0090) and Cortex-M system registers ---- */
+#define RCC_APB1ENR REG(0x40023840u)
+#define RCC_APB2ENR REG(0x40023844u)
+#define RCC_APB1ENR_USART2EN (1u << 17)
+#define RCC_APB2ENR_USART1EN (1u << 4)
+
+#define USART1 0x40011000u
+#define USART2 0x40004400u
+#define USART_SR(b) REG((b) + 0x00u)
+#define USART_DR(b) REG((b) + 0x04u)
+#define USART_BRR(b) REG((b) + 0x08u)
+#define USART_CR1(b) REG((b) + 0x0Cu)
+#define SR_RXNE (1u << 5)
+#define SR_TXE (1u << 7)
+#define CR1_UE (1u << 13)
+#define CR1_TE (1u << 3)
+#define CR1_RE (1u << 2)
+#define CR1_RXNEIE (1u << 5)
+
+#define SYST_CSR REG(0xE000E010u)
+#define SYST_RVR REG(0xE000E014u)
+#define SYST_CVR REG(0xE000E018u)
+#define SCB_ICSR REG(0xE000ED04u)
+#define ICSR_PENDSTSET (1u << 26)
+#define NVIC_ISER(n) REG(0xE000E100u + 4u * (n))
+
+#define IRQ_USART1 37u
+#define IRQ_USART2 38u
+
+/* QEMU's STM32F405 model runs the core (and SysTick's processor clock) at 168 MHz, with no clock
+   tree to program: RCC is a placeholder there, so the enables below are what a real chip needs. */
+#define CPU_HZ 168000000u
+#define SYSTICK_PERIOD (CPU_HZ / 1000u) /* 1 ms */
+/* 64 MHz / 168 MHz in 0.32 fixed point, until the edge server sends the board's own factor. */
+#define TICK_MUL_NOMINAL 1636178018u
+#define TICKS_PER_SECOND 64000000u
+/* Longest silence inside a front-end exchange before the link counts as stalled (emulated time). */
+#define LINK_TIMEOUT_TICKS (1u * TICKS_PER_SECOND) /* well inside the host's 2 s reply margin */
+
+#ifndef QEMU_PORT_CORE
+#define QEMU_PORT_CORE 1
+#endif
+
+/* ---- state the host reads back through QEMU's monitor (symbols in the ELF) ---- */
+/* 1 while the emulated low-side switch is closed. */
+__attribute__((used)) volatile uint32_t ht_qemu_gate = 0;
+/* Front-end exchanges that failed: 0 healthy; the link is down from the first one on. */
+__attribute__((used)) volatile uint32_t ht_qemu_link_faults = 0;
+/* Front-end exchanges completed (HELLO included). */
+__attribute__((used)) volatile uint32_t ht_qemu_link_exchanges = 0;
+/* Set by a fault exception (the gate is opened first). */
+__attribute__((used)) volatile uint32_t ht_qemu_hard_fault = 0;
+
+static inline uint32_t irq_save(void) {
+  uint32_t primask;
+  __asm volatile("mrs %0, primask\n cpsid i" : "=r"(primask)::"memory");
+  return primask;
+}
+static inline void irq_restore(uint32_t primask) {
+  __asm volatile("msr primask, %0" ::"r"(primask) : "memory");
+}
+/* Sleeps until an interrupt is pending. Called with interrupts masked, so a wake-up that arrives
+   between the caller's check and the WFI is not lost; the handler runs once they are unmasked. */
+static inline void wait_for_interrupt(void) {
+  __asm volatile("wfi" ::: "memory");
+}
+
+/* ---- time ---- */
+static volatile uint64_t ticks_at_wrap; /* 64 MHz ticks, 32.32 fixed point, at the last SysTick wrap */
+static uint32_t tick_mul = TICK_MUL_NOMINAL;
+static uint32_t hidden_ticks; /* emulated time spent in front-end exchanges: not the firmware's */
+
+void SysTick_Handler(void) {
+  ticks_at_wrap += (uint64_t)SYSTICK_PERIOD * tick_mul;
+}
+
+/* Emulated time in 64 MHz ticks, including the front-end exchanges. */
+static uint32_t raw_ticks(void) {
+  uint32_t m = irq_save();
+  uint32_t v = SYST_CVR;
+  uint64_t acc = ticks_at_wrap;
+  if (SCB_ICSR & ICSR_PENDSTSET) {
+    /* Wrapped, handler not run yet: count the wrap, and read the counter again after it. */
+    v = SYST_CVR;
+    acc += (uint64_t)SYSTICK_PERIOD * tick_mul;
+  }
+  irq_restore(m);
+  uint32_t cycles = SYSTICK_PERIOD - 1u - v;
+  return (uint32_t)((acc + (uint64_t)cycles * tick_mul) >> 32);
+}
+
+/* ---- host link: USART1 ---- */
+#define RX_RING 256u
+static volatile uint8_t rx_ring[RX_RING];
+static volatile uint32_t rx_head, rx_tail;
+
+void USART1_IRQHandler(void) {
+  while (USART_SR(USART1) & SR_RXNE) {
+    uint32_t next = (rx_head + 1u) % RX_RING;
+    if (next == rx_tail) {
+      /* Ring full: stop taking bytes. QEMU's USART then holds the rest back (it cannot overrun),
+         which is flow control; the main loop re-enables reception once it has drained the ring. */
+      USART_CR1(USART1) &= ~CR1_RXNEIE;
+      return;
+    }
+    rx_ring[rx_head] = (uint8_t)USART_DR(USART1);
+    rx_head = next;
+  }
+}
+
+static void uart_put(uint32_t base, const uint8_t* p, uint32_t n) {
+  for (uint32_t i = 0; i < n; i++) {
+    while (!(USART_SR(base) & SR_TXE)) {
+    }
+    USART_DR(base) = p[i];
+  }
+}
+
+/* ---- front-end link: USART2 ---- */
+#define FE_RING 512u
+static volatile uint8_t fe_ring[FE_RING];
+static volatile uint32_t fe_head, fe_tail;
+
+void USART2_IRQHandler(void) {
+  while (USART_SR(USART2) & SR_RXNE) {
+    uint32_t next = (fe_head + 1u) % FE_RING;
+    if (next == fe_tail) {
+      USART_CR1(USART2) &= ~CR1_RXNEIE; /* as on USART1: held back until there is room */
+      return;
+    }
+    fe_ring[fe_head] = (uint8_t)USART_DR(USART2);
+    fe_head = next;
+  }
+}
+
+/* Next front-end byte, or -1 when none arrived within LINK_TIMEOUT_TICKS. */
+static int fe_getc(void) {
+  uint32_t start = raw_ticks();
+  for (;;) {
+    uint32_t m = irq_save();
+    if (fe_tail != fe_head) {
+      uint8_t b = fe_ring[fe_tail];
+      fe_tail = (fe_tail + 1u) % FE_RING;
+      USART_CR1(USART2) |= CR1_RXNEIE;
+      irq_restore(m);
+      return b;
+    }
+    if (raw_ticks() - start >= LINK_TIMEOUT_TICKS) {
+      irq_restore(m);
+      return -1;
+    }
+    wait_for_interrupt(); /* SysTick wakes it every millisecond, a byte at once */
+    irq_restore(m);
+  }
+}
+
+#define LINK_MAGIC0 0xE5u
+#define LINK_MAGIC1 0x1Du
+#define LINK_HELLO 1u
+#define LINK_PULSE 2u
+#define LINK_REPLY 0x80u
+
+static uint16_t crc16_update(uint16_t crc, uint8_t byte) {
+  crc ^= (uint16_t)byte << 8;
+  for (int bit = 0; bit < 8; bit++) crc = (crc & 0x8000u) ? (uint16_t)((crc << 1) ^ 0x1021u) : (uint16_t)(crc << 1);
+  return crc;
+}
+
+static void put_u32(uint8_t* p, uint32_t v) {
+  p[0] = (uint8_t)v;
+  p[1] = (uint8_t)(v >> 8);
+  p[2] = (uint8_t)(v >> 16);
+  p[3] = (uint8_t)(v >> 24);
+}
+static uint32_t get_u32(const uint8_t* p) {
+  return (uint32_t)p[0] | ((uint32_t)p[1] << 8) | ((uint32_t)p[2] << 16) | ((uint32_t)p[3] << 24);
+}
+
+static uint8_t link_seq;
+static int link_down;
+
+static void link_send(uint8_t type, const uint8_t* payload, uint16_t len) {
+  uint8_t head[6] = {LINK_MAGIC0, LINK_MAGIC1, type, link_seq, (uint8_t)len, (uint8_t)(len >> 8)};
+  uint16_t crc = 0xFFFFu;
+  for (int i = 2; i < 6; i++) crc = crc16_update(crc, head[i]);
+  for (uint16_t i = 0; i < len; i++) crc = crc16_update(crc, payload[i]);
+  uint8_t tail[2] = {(uint8_t)crc, (uint8_t)(crc >> 8)};
+  uart_put(USART2, head, 6);
+  uart_put(USART2, payload, len);
+  uart_put(USART2, tail, 2);
+}
+
+/*
+ * Receives the reply to the request just sent. The first `small_len` payload bytes go to `small`;
+ * the rest (a pulse's entries) straight to `bulk`, at most `bulk_max` bytes. Returns the payload
+ * length, or -1 on a stall, a CRC error or a malformed frame.
+ */
+static int32_t link_receive(uint8_t type, uint8_t* small, uint32_t small_len, uint8_t* bulk, uint32_t bulk_max) {
+  for (;;) {
+    int c = fe_getc();
+    if (c < 0) return -1;
+    if ((uint8_t)c != LINK_MAGIC0) continue; /* resynchronise on the frame start */
+    c = fe_getc();
+    if (c < 0) return -1;
+    if ((uint8_t)c != LINK_MAGIC1) continue;
+    uint8_t head[4];
+    uint16_t crc = 0xFFFFu;
+    for (int i = 0; i < 4; i++) {
+      c = fe_getc();
+      if (c < 0) return -1;
+      head[i] = (uint8_t)c;
+      crc = crc16_update(crc, head[i]);
+    }
+    uint32_t len = (uint32_t)head[2] | ((uint32_t)head[3] << 8);
+    int mine = head[0] == (type | LINK_REPLY) && head[1] == link_seq;
+    if (mine && len > small_len + bulk_max) return -1; /* longer than asked for: malformed */
+    for (uint32_t i = 0; i < len; i++) {
+      c = fe_getc();
+      if (c < 0) return -1;
+      crc = crc16_update(crc, (uint8_t)c);
+      if (!mine) continue;
+      if (i < small_len) small[i] = (uint8_t)c;
+      else bulk[i - small_len] = (uint8_t)c;
+    }
+    int lo = fe_getc();
+    int hi = lo < 0 ? -1 : fe_getc();
+    if (hi < 0) return -1;
+    if ((uint16_t)(lo | (hi << 8)) != crc) return -1; /* corrupted: its seq cannot be trusted either */
+    if (mine) return (int32_t)len;
+    /* A complete, intact frame for an earlier request: skip it and wait for ours. */
+  }
+}
+
+/* One request/reply. The emulated time it takes is hidden from now(): on hardware the edges
+   arrive with no such pause. */
+static int32_t link_exchange(uint8_t type, const uint8_t* req, uint16_t req_len, uint8_t* small, uint32_t small_len,
+                             uint8_t* bulk, uint32_t bulk_max) {
+  if (link_down) return -1;
+  uint32_t t0 = raw_ticks();
+  link_seq++;
+  link_send(type, req, req_len);
+  int32_t n = link_receive(type, small, small_len, bulk, bulk_max);
+  hidden_ticks += raw_ticks() - t0;
+  if (n < 0) {
+    link_down = 1;
+    ht_qemu_link_faults++;
+  } else {
+    ht_qemu_link_exchanges++;
+  }
+  return n;
+}
+
+static uint32_t board_id = 0;
+
+static void link_hello(void) {
+  uint8_t req[5];
+  put_u32(req, CPU_HZ);
+  req[4] = QEMU_PORT_CORE;
+  uint8_t rep[8];
+  if (link_exchange(LINK_HELLO, req, sizeof req, rep, sizeof rep, 0, 0) == (int32_t)sizeof rep) {
+    board_id = get_u32(rep);
+    tick_mul = get_u32(rep + 4);
+  }
+}
+
+/* ---- the HAL ---- */
+struct Z_hal_instance_t {
+  Z_henrytick_instance_t* fw;
+};
+
+static Z_henrytick_instance_t fw;
+static struct Z_hal_instance_t hal = {&fw};
+
+static struct {
+  uint8_t* entries; /* the firmware's buffer */
+  uint32_t capacity, total, shown, open_tick;
+  int live, stopped, faulted;
+} cap;
+static uint32_t gate_open_at;
+
+static uint32_t now_ticks(void) {
+  uint32_t t = raw_ticks() - hidden_ticks;
+  /* The one-pulse timer: the gate opens by itself once the charge time is over. */
+  if (ht_qemu_gate && (int32_t)(t - gate_open_at) >= 0) ht_qemu_gate = 0;
+  return t;
+}
+
+static void gate_off_capture_stop(void) {
+  ht_qemu_gate = 0;
+  if (cap.live && !cap.stopped) {
+    /* Keep what has been captured up to now, then freeze the count. */
+    int32_t elapsed = (int32_t)(now_ticks() - cap.open_tick);
+    while (!cap.faulted && cap.shown < cap.total && (int32_t)(get_u32(cap.entries + 4u * cap.shown) >> 1) <= elapsed) cap.shown++;
+    cap.stopped = 1;
+  }
+}
+
+u32 Z_halZ_now(struct Z_hal_instance_t* h) {
+  (void)h;
+  return now_ticks();
+}
+
+static uint32_t range_drive, range_tank;
+
+void Z_halZ_select(struct Z_hal_instance_t* h, u32 drive, u32 tank) {
+  (void)h;
+  range_drive = drive; /* the range outputs: sent with each pulse to the edge server */
+  range_tank = tank;
+}
+
+void Z_halZ_pulse(struct Z_hal_instance_t* h, u32 charge_ticks, u32 buf, u32 capacity) {
+  uint32_t t = now_ticks();
+  ht_qemu_gate = 0;
+  cap.entries = h->fw->w2c_memory.data + buf;
+  cap.capacity = capacity;
+  cap.total = 0;
+  cap.shown = 0;
+  cap.open_tick = t + charge_ticks;
+  cap.live = 1;
+  cap.stopped = 0;
+  cap.faulted = 0;
+  if (charge_ticks > 0) {
+    ht_qemu_gate = 1;
+    gate_open_at = cap.open_tick;
+  }
+  uint8_t req[16];
+  req[0] = (uint8_t)range_drive;
+  req[1] = (uint8_t)range_tank;
+  req[2] = 0;
+  req[3] = 0;
+  put_u32(req + 4, charge_ticks);
+  put_u32(req + 8, capacity);
+  put_u32(req + 12, cap.open_tick);
+  uint8_t count[4];
+  int32_t n = link_exchange(LINK_PULSE, req, sizeof req, count, sizeof count, cap.entries, 4u * capacity);
+  if (n < 4 || get_u32(count) > capacity || (uint32_t)n != 4u + 4u * get_u32(count)) {
+    if (n >= 0) { /* intact but inconsistent: as bad as a corrupted one */
+      link_down = 1;
+      ht_qemu_link_faults++;
+    }
+    ht_qemu_gate = 0; /* no edges to show: the switch must not stay closed on a broken link */
+    cap.faulted = 1;
+    return;
+  }
+  cap.total = get_u32(count);
+}
+
+u32 Z_halZ_capture_count(struct Z_hal_instance_t* h) {
+  (void)h;
+  if (!cap.live) return 0;
+  if (cap.faulted) return cap.capacity + 1u; /* beyond capacity: the firmware's capture fault */
+  if (cap.stopped) return cap.shown;
+  int32_t elapsed = (int32_t)(now_ticks() - cap.open_tick);
+  while (cap.shown < cap.total && (int32_t)(get_u32(cap.entries + 4u * cap.shown) >> 1) <= elapsed) cap.shown++;
+  return cap.shown;
+}
+
+void Z_halZ_stop(struct Z_hal_instance_t* h) {
+  (void)h;
+  gate_off_capture_stop();
+}
+
+void Z_halZ_uart_write(struct Z_hal_instance_t* h, u32 ptr, u32 len) {
+  uart_put(USART1, h->fw->w2c_memory.data + ptr, len);
+}
+
+u32 Z_halZ_device_id(struct Z_hal_instance_t* h) {
+  (void)h;
+  return board_id;
+}
+
+u32 Z_halZ_capture_bits(struct Z_hal_instance_t* h) {
+  (void)h;
+  return 0; /* extended mode */
+}
+
+void ht_port_trap(wasm_rt_trap_t code) {
+  (void)code;
+  gate_off_capture_stop();
+}
+
+void qemu_port_fault_handler(void) {
+  ht_qemu_gate = 0;
+  ht_qemu_hard_fault = 1;
+  for (;;) {
+  }
+}
+
+/* ---- start-up and main loop ---- */
+static void board_init(void) {
+  RCC_APB2ENR |= RCC_APB2ENR_USART1EN;
+  RCC_APB1ENR |= RCC_APB1ENR_USART2EN;
+  USART_BRR(USART1) = 0x2D9u; /* 115 200 Bd from the 84 MHz APB2 clock (QEMU ignores it) */
+  USART_BRR(USART2) = 0x16Cu; /* 115 200 Bd from the 42 MHz APB1 clock */
+  USART_CR1(USART1) = CR1_UE | CR1_TE | CR1_RE | CR1_RXNEIE;
+  USART_CR1(USART2) = CR1_UE | CR1_TE | CR1_RE | CR1_RXNEIE;
+  SYST_RVR = SYSTICK_PERIOD - 1u;
+  SYST_CVR = 0;
+  SYST_CSR = 7u; /* processor clock, interrupt, enable */
+  NVIC_ISER(IRQ_USART1 / 32u) = 1u << (IRQ_USART1 % 32u);
+  NVIC_ISER(IRQ_USART2 / 32u) = 1u << (IRQ_USART2 % 32u);
+}
+
+static void start_firmware(void) {
+  Z_henrytick_instantiate(&fw, &hal);
+  ht_rt_require_memory(Z_henrytickZ_fw_memory_used(&fw));
+  Z_henrytickZ_fw_init(&fw);
+}
+
+int main(void) {
+  ht_qemu_gate = 0;
+  board_init();
+  link_hello();
+  wasm_rt_init();
+  Z_henrytick_init_module();
+  if (HT_RT_TRY()) {
+    start_firmware();
+    HT_RT_DONE();
+  }
+  for (;;) {
+    if (!HT_RT_TRY()) {
+      Z_henrytick_free(&fw);
+      start_firmware();
+      continue;
+    }
+    while (rx_tail != rx_head && Z_henrytickZ_fw_rx(&fw, rx_ring[rx_tail])) {
+      rx_tail = (rx_tail + 1u) % RX_RING;
+      USART_CR1(USART1) |= CR1_RXNEIE;
+    }
+    uint32_t wait = Z_henrytickZ_fw_poll(&fw);
+    int busy = Z_henrytickZ_fw_busy(&fw) != 0;
+    HT_RT_DONE();
+    if (rx_tail != rx_head) continue;
+    if (busy || wait > 0) {
+      /* A deadline: sleep through whole SysTick periods (emulated time then follows the host's
+         clock), and run the clock through the last one by executing (it advances by instructions,
+         so the deadline is met to a few of them). */
+      uint32_t deadline = now_ticks() + (wait > 0 ? wait : 1u);
+      for (;;) {
+        int32_t left = (int32_t)(deadline - now_ticks());
+        if (left <= 0 || rx_tail != rx_head) break;
+        if (left > (int32_t)(2u * TICKS_PER_SECOND / 1000u)) {
+          uint32_t m = irq_save();
+          if (rx_tail == rx_head) wait_for_interrupt();
+          irq_restore(m);
+        }
+      }
+    } else {
+      uint32_t m = irq_save();
+      if (rx_tail == rx_head) wait_for_interrupt(); /* idle: until a byte (or the next SysTick) */
+      irq_restore(m);
+    }
+  }
+}
