@@ -5,6 +5,11 @@ export { DeviceClient } from "./device/client.ts";
 export type { MeasureSettings, ClientOptions } from "./device/client.ts";
 export type { DeviceIdentity, DeviceProfile } from "./device/profile.ts";
 export { CodedError } from "./coded-error.ts";
+export {
+  WarningCode, CautionCode, PartFaultCode, ErrorCode, NO_USABLE_RING, isNoUsableRing, isAnalysisFailure,
+  WARNING_MEANINGS, CAUTION_MEANINGS, PART_FAULT_MEANINGS, ERROR_GROUPS,
+} from "./codes.ts";
+export type { AnalysisErrorCode, CalibrationErrorCode } from "./codes.ts";
 export { packageVersion } from "./version.ts";
 export { DeviceError, DeviceTimeoutError } from "./device/errors.ts";
 export { ProtocolError } from "./device/frames.ts";

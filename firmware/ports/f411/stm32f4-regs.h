@@ -148,7 +148,10 @@
 /* 96-bit unique device ID (RM0383 §24.1) */
 #define UID_BASE 0x1FFF7A10u
 
-/* Cortex-M4 core: NVIC */
+/* Cortex-M4 core: SysTick, NVIC */
+#define SYST_CSR REG(0xE000E010u)
+#define SYST_RVR REG(0xE000E014u)
+#define SYST_CVR REG(0xE000E018u)
 #define NVIC_ISER(n) REG(0xE000E100u + 4u * (n))
 #define NVIC_IPR_BYTE(irq) (*(volatile uint8_t*)(uintptr_t)(0xE000E400u + (irq)))
 

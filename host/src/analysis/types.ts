@@ -2,6 +2,7 @@
 // uncertainties named `_u_` are expanded (k = 2, JCGM 100:2008 §6) unless a field says otherwise.
 
 import { CodedError } from "../coded-error.ts";
+import type { AnalysisErrorCode, ReadingBudgetLine, WarningCode } from "../codes.ts";
 
 export interface RingInput {
   /** Timer tick rate, Hz. */
@@ -29,7 +30,7 @@ export interface RingInput {
 
 /** A condition the user should know about; `code` is stable, `message` says what to do next. */
 export interface Warning {
-  code: string;
+  code: WarningCode;
   message: string;
 }
 
@@ -54,7 +55,7 @@ export interface RingAnalysis {
   rejected: { index: number; reason: string }[];
   warnings: Warning[];
   /** Standard relative contributions to u(L)/L: fit, capacitance, timebase. */
-  budget: { name: string; rel_u: number }[];
+  budget: { name: ReadingBudgetLine; rel_u: number }[];
   /** Estimated noise: timing jitter (s rms) and input-referred voltage noise (V rms). */
   noise: { sigma_t_s: number; sigma_v_v: number };
   /** Relative change of the ring frequency from the strong half to the weak half of the ring. */
@@ -62,4 +63,4 @@ export interface RingAnalysis {
 }
 
 /** Thrown for input that cannot be analysed; `code` is stable, the message says what to do. */
-export class AnalysisError extends CodedError {}
+export class AnalysisError extends CodedError<AnalysisErrorCode> {}

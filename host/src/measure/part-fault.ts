@@ -11,11 +11,12 @@
 import type { CaptureV1 } from "../capture/capture-file.ts";
 import type { DeviceProfile } from "../device/profile.ts";
 import { formatSi } from "../format/si.ts";
+import { isAnalysisFailure, WarningCode, type PartFaultCode } from "../codes.ts";
 import type { Reading } from "./measure-part.ts";
 import { frequencySwing } from "./frequency-swing.ts";
 import { MeasureError, analyzeCapture, fitCapture } from "./read-once.ts";
 
-export type PartFaultCode = "RING_OUTLASTS_WINDOW" | "FIRST_CYCLE_CLIPPED" | "FIXTURE_CHATTER" | "CORE_SATURATING" | "PART_SHORTED";
+export type { PartFaultCode } from "../codes.ts";
 
 /** A part fault found in a reading: a stable code and a message with the diagnosis and the next step. */
 export interface PartFault {
@@ -99,7 +100,7 @@ function ringFrequencySwing(r: Reading, drift_df_rel: number): number {
   }
 }
 
-const has = (r: Reading, code: string) => r.analysis.warnings.some((w) => w.code === code);
+const has = (r: Reading, code: WarningCode) => r.analysis.warnings.some((w) => w.code === code);
 const fixedAdvice = "drop --drive and --tank to let automatic ranging choose";
 
 /**
@@ -109,13 +110,13 @@ const fixedAdvice = "drop --drive and --tank to let automatic ranging choose";
 export function judgeReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v" | "max_timeout_ms">): PartFault | null {
   const a = r.analysis;
   const L = formatSi(a.inductance_h, "H", 3);
-  if (has(r, "SUSPECTED_CLIPPING") && a.amplitude_v >= CLIP_CLAMP_RATIO * profile.clamp_v) {
+  if (has(r, WarningCode.SUSPECTED_CLIPPING) && a.amplitude_v >= CLIP_CLAMP_RATIO * profile.clamp_v) {
     return {
       code: "FIRST_CYCLE_CLIPPED",
       message: `the first cycle was clipped: the ring started at about ${a.amplitude_v.toFixed(1)} V, at the ${profile.clamp_v} V clamp, and its first edges sit off the ring model, so the value (about ${L}) rests on a distorted ring. The part carries more current or has more inductance than the setting was chosen for: lower the drive current (a larger drive resistor, a shorter --charge-us) or ${fixedAdvice}, then measure again`,
     };
   }
-  const df = has(r, "FREQUENCY_DRIFT") && a.drift ? ringFrequencySwing(r, a.drift.df_rel) : 0;
+  const df = has(r, WarningCode.FREQUENCY_DRIFT) && a.drift ? ringFrequencySwing(r, a.drift.df_rel) : 0;
   if (2 * Math.abs(df) > SATURATION_SWING_REL) {
     const ppm = df * 1e6;
     const swing = 2 * Math.abs(df) * 100;
@@ -124,7 +125,7 @@ export function judgeReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v" 
       message: `the inductance changes with the current: the ring frequency ${ppm < 0 ? "falls" : "rises"} by ${Math.abs(ppm).toFixed(0)} ppm from the first edge to the last, so L swings by ${swing.toFixed(2)} % within one ring (about ${L} on average) — the core is near saturation at ${a.amplitude_v.toFixed(2)} V of ring. Lower the drive current (a larger drive resistor or a shorter --charge-us; with automatic ranging, a lower --max-peak-v) or ${fixedAdvice}; if parts with air cores drift the same way, the tester's tank capacitor is voltage dependent (it must be C0G/film)`,
     };
   }
-  if (has(r, "MANY_REJECTED")) {
+  if (has(r, WarningCode.MANY_REJECTED)) {
     const ch = chatterOf(r.capture);
     const extra = ch.glitch_pairs > 0 ? ` (${ch.glitch_pairs} toggles inside ${ch.half_cycles} half-cycles)` : "";
     return {
@@ -133,7 +134,7 @@ export function judgeReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v" 
     };
   }
   const end = r.capture.meta?.end_reason;
-  if (has(r, "RING_TRUNCATED")) {
+  if (has(r, WarningCode.RING_TRUNCATED)) {
     const { end_ratio, decay } = ringAtEnd(r);
     const timedOut = end === "timeout" && end_ratio >= OUTLAST_THRESHOLD_RATIO;
     const full = end === "full" && end_ratio >= OUTLAST_THRESHOLD_RATIO && decay >= OUTLAST_DECAY_RATIO;
@@ -156,7 +157,7 @@ export function judgeReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v" 
  */
 export function explainFailure(e: MeasureError): MeasureError {
   const c = e.capture;
-  if (!c || !["NO_RING", "TOO_FEW_EDGES", "BAD_INPUT"].includes(e.code)) return e;
+  if (!c || !isAnalysisFailure(e.code)) return e;
   const ch = chatterOf(c);
   if (ch.half_cycles <= 0 || ch.glitch_pairs < CHATTER_PAIR_RATIO * ch.half_cycles) return e;
   return new PartFaultError(

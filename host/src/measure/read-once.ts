@@ -55,7 +55,7 @@ export function fitCapture(capture: CaptureV1): { fit: FitState; analysis: RingA
 }
 
 /** Codes of a capture that held no usable ring (as opposed to a link or setting problem). */
-export const NO_USABLE_RING = ["TOO_FEW_EDGES", "NO_RING", "EMPTY_CAPTURE"];
+export { NO_USABLE_RING } from "../codes.ts";
 
 export function describeSetting(client: DeviceClient, s: { drive: number; tank: number; charge_us: number }): string {
   const r = client.profile.drives[s.drive].ohm;
