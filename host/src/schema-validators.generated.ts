@@ -2517,7 +2517,7 @@ return errors === 0;
 validate22.evaluated = {"props":{"format":true,"version":true,"device_id":true,"updated":true,"tanks":true,"thresholds":true,"timebase":true},"dynamicProps":false,"dynamicItems":false};
 
 export const scenario = validate33;
-const schema55 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:scenario:1","title":"henrytick simulated-tester scenario, version 1","description":"A demo part for the simulated tester and, optionally, the bench conditions it is measured under. Units are SI and in the key names.","type":"object","required":["format","version","name","part"],"properties":{"format":{"const":"henrytick-scenario"},"version":{"const":1},"name":{"type":"string","minLength":1},"story":{"type":"string","description":"what the part is and what the scenario shows"},"part":{"type":"object","required":["inductance_h","series_ohm"],"properties":{"inductance_h":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"parallel_ohm":{"type":"number","exclusiveMinimum":0,"description":"core (parallel) loss resistance; absent for an air core"},"self_capacitance_f":{"type":"number","minimum":0,"description":"the part's own self-capacitance (0 when left out)"},"saturation_current_a":{"type":"number","exclusiveMinimum":0,"description":"current where the differential inductance has fallen halfway to its floor"},"saturation_floor_ratio":{"type":"number","exclusiveMinimum":0,"exclusiveMaximum":1,"description":"differential inductance deep in saturation, as a fraction of the small-signal value"}}},"fixture":{"type":"object","properties":{"capacitance_f":{"type":"number","minimum":0,"description":"test-lead capacitance in parallel with the tank (replaces the board's)"},"tank_voltage_coefficient_per_v2":{"type":"number","exclusiveMinimum":0,"description":"k in C(v) = C0 (1 - k v^2): a class II ceramic fitted as the tank"}}},"geometry":{"type":"object","description":"the coil geometry a part was computed from (kept for the record; the part values are what the simulator uses)","additionalProperties":{"type":"number"}},"seed":{"type":"integer","description":"noise seed (1 when left out)"}}};
+const schema55 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:scenario:1","title":"henrytick simulated-tester scenario, version 1","description":"A demo part for the simulated tester and, optionally, the bench conditions it is measured under. Units are SI and in the key names.","type":"object","required":["format","version","name","part"],"properties":{"format":{"const":"henrytick-scenario"},"version":{"const":1},"name":{"type":"string","minLength":1},"story":{"type":"string","description":"what the part is and what the scenario shows"},"part":{"type":"object","required":["inductance_h","series_ohm"],"properties":{"inductance_h":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"parallel_ohm":{"type":"number","exclusiveMinimum":0,"description":"core (parallel) loss resistance; absent for an air core"},"self_capacitance_f":{"type":"number","minimum":0,"description":"the part's own self-capacitance (0 when left out)"},"saturation_current_a":{"type":"number","exclusiveMinimum":0,"description":"current where the differential inductance has fallen halfway to its floor"},"saturation_floor_ratio":{"type":"number","exclusiveMinimum":0,"exclusiveMaximum":1,"description":"differential inductance deep in saturation, as a fraction of the small-signal value"}}},"fixture":{"type":"object","properties":{"capacitance_f":{"type":"number","minimum":0,"description":"test-lead capacitance in parallel with the tank (replaces the board's)"},"tank_voltage_coefficient_per_v2":{"type":"number","exclusiveMinimum":0,"description":"k in C(v) = C0 (1 - k v^2): a class II ceramic fitted as the tank"},"chatter":{"type":"object","description":"an intermittent clip contact during the ring: moments open or resistive, at random (seeded)","required":["events_per_s"],"additionalProperties":false,"properties":{"events_per_s":{"type":"number","minimum":0,"maximum":100000,"description":"mean contact events per second of ring"},"open_share":{"type":"number","minimum":0,"maximum":1,"description":"share of events that open the contact (the rest are resistance bursts); 0.5 when left out"},"open_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest open interval, seconds"},"burst_ohm":{"type":"array","items":{"type":"number","minimum":0,"maximum":1000000},"minItems":2,"maxItems":2,"description":"smallest and largest burst resistance, ohms"},"burst_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest burst, seconds"}}}}},"geometry":{"type":"object","description":"the coil geometry a part was computed from (kept for the record; the part values are what the simulator uses)","additionalProperties":{"type":"number"}},"seed":{"type":"integer","description":"noise seed (1 when left out)"}}};
 
 function validate33(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 /*# sourceURL="urn:henrytick:schema:scenario:1" */;
@@ -2804,6 +2804,269 @@ var valid2 = _errs25 === errors;
 else {
 var valid2 = true;
 }
+if(valid2){
+if(data11.chatter !== undefined){
+let data14 = data11.chatter;
+const _errs27 = errors;
+if(errors === _errs27){
+if(data14 && typeof data14 == "object" && !Array.isArray(data14)){
+let missing2;
+if((data14.events_per_s === undefined) && (missing2 = "events_per_s")){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema55.properties.fixture.properties.chatter.required,parentSchema:schema55.properties.fixture.properties.chatter,data:data14}];
+return false;
+}
+else {
+const _errs29 = errors;
+for(const key0 in data14){
+if(!(((((key0 === "events_per_s") || (key0 === "open_share")) || (key0 === "open_s")) || (key0 === "burst_ohm")) || (key0 === "burst_s"))){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/additionalProperties",keyword:"additionalProperties",params:{additionalProperty: key0},message:"must NOT have additional properties",schema:false,parentSchema:schema55.properties.fixture.properties.chatter,data:data14}];
+return false;
+break;
+}
+}
+if(_errs29 === errors){
+if(data14.events_per_s !== undefined){
+let data15 = data14.events_per_s;
+const _errs30 = errors;
+if(errors === _errs30){
+if((typeof data15 == "number") && (isFinite(data15))){
+if(data15 > 100000 || isNaN(data15)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/maximum",keyword:"maximum",params:{comparison: "<=", limit: 100000},message:"must be <= 100000",schema:100000,parentSchema:schema55.properties.fixture.properties.chatter.properties.events_per_s,data:data15}];
+return false;
+}
+else {
+if(data15 < 0 || isNaN(data15)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema55.properties.fixture.properties.chatter.properties.events_per_s,data:data15}];
+return false;
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.fixture.properties.chatter.properties.events_per_s.type,parentSchema:schema55.properties.fixture.properties.chatter.properties.events_per_s,data:data15}];
+return false;
+}
+}
+var valid3 = _errs30 === errors;
+}
+else {
+var valid3 = true;
+}
+if(valid3){
+if(data14.open_share !== undefined){
+let data16 = data14.open_share;
+const _errs32 = errors;
+if(errors === _errs32){
+if((typeof data16 == "number") && (isFinite(data16))){
+if(data16 > 1 || isNaN(data16)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_share,data:data16}];
+return false;
+}
+else {
+if(data16 < 0 || isNaN(data16)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_share,data:data16}];
+return false;
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.fixture.properties.chatter.properties.open_share.type,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_share,data:data16}];
+return false;
+}
+}
+var valid3 = _errs32 === errors;
+}
+else {
+var valid3 = true;
+}
+if(valid3){
+if(data14.open_s !== undefined){
+let data17 = data14.open_s;
+const _errs34 = errors;
+if(errors === _errs34){
+if(Array.isArray(data17)){
+if(data17.length > 2){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_s,data:data17}];
+return false;
+}
+else {
+if(data17.length < 2){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_s,data:data17}];
+return false;
+}
+else {
+var valid4 = true;
+const len0 = data17.length;
+for(let i0=0; i0<len0; i0++){
+let data18 = data17[i0];
+const _errs36 = errors;
+if(errors === _errs36){
+if((typeof data18 == "number") && (isFinite(data18))){
+if(data18 > 1 || isNaN(data18)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_s.items,data:data18}];
+return false;
+}
+else {
+if(data18 <= 0 || isNaN(data18)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_s.items,data:data18}];
+return false;
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.fixture.properties.chatter.properties.open_s.items.type,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_s.items,data:data18}];
+return false;
+}
+}
+var valid4 = _errs36 === errors;
+if(!valid4){
+break;
+}
+}
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema55.properties.fixture.properties.chatter.properties.open_s.type,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_s,data:data17}];
+return false;
+}
+}
+var valid3 = _errs34 === errors;
+}
+else {
+var valid3 = true;
+}
+if(valid3){
+if(data14.burst_ohm !== undefined){
+let data19 = data14.burst_ohm;
+const _errs38 = errors;
+if(errors === _errs38){
+if(Array.isArray(data19)){
+if(data19.length > 2){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_ohm,data:data19}];
+return false;
+}
+else {
+if(data19.length < 2){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_ohm,data:data19}];
+return false;
+}
+else {
+var valid5 = true;
+const len1 = data19.length;
+for(let i1=0; i1<len1; i1++){
+let data20 = data19[i1];
+const _errs40 = errors;
+if(errors === _errs40){
+if((typeof data20 == "number") && (isFinite(data20))){
+if(data20 > 1000000 || isNaN(data20)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1000000},message:"must be <= 1000000",schema:1000000,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data20}];
+return false;
+}
+else {
+if(data20 < 0 || isNaN(data20)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data20}];
+return false;
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.fixture.properties.chatter.properties.burst_ohm.items.type,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data20}];
+return false;
+}
+}
+var valid5 = _errs40 === errors;
+if(!valid5){
+break;
+}
+}
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema55.properties.fixture.properties.chatter.properties.burst_ohm.type,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_ohm,data:data19}];
+return false;
+}
+}
+var valid3 = _errs38 === errors;
+}
+else {
+var valid3 = true;
+}
+if(valid3){
+if(data14.burst_s !== undefined){
+let data21 = data14.burst_s;
+const _errs42 = errors;
+if(errors === _errs42){
+if(Array.isArray(data21)){
+if(data21.length > 2){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_s,data:data21}];
+return false;
+}
+else {
+if(data21.length < 2){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_s,data:data21}];
+return false;
+}
+else {
+var valid6 = true;
+const len2 = data21.length;
+for(let i2=0; i2<len2; i2++){
+let data22 = data21[i2];
+const _errs44 = errors;
+if(errors === _errs44){
+if((typeof data22 == "number") && (isFinite(data22))){
+if(data22 > 1 || isNaN(data22)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_s.items,data:data22}];
+return false;
+}
+else {
+if(data22 <= 0 || isNaN(data22)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_s.items,data:data22}];
+return false;
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.fixture.properties.chatter.properties.burst_s.items.type,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_s.items,data:data22}];
+return false;
+}
+}
+var valid6 = _errs44 === errors;
+if(!valid6){
+break;
+}
+}
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema55.properties.fixture.properties.chatter.properties.burst_s.type,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_s,data:data21}];
+return false;
+}
+}
+var valid3 = _errs42 === errors;
+}
+else {
+var valid3 = true;
+}
+}
+}
+}
+}
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema55.properties.fixture.properties.chatter.type,parentSchema:schema55.properties.fixture.properties.chatter,data:data14}];
+return false;
+}
+}
+var valid2 = _errs27 === errors;
+}
+else {
+var valid2 = true;
+}
+}
 }
 }
 else {
@@ -2818,42 +3081,42 @@ var valid0 = true;
 }
 if(valid0){
 if(data.geometry !== undefined){
-let data14 = data.geometry;
-const _errs27 = errors;
-if(errors === _errs27){
-if(data14 && typeof data14 == "object" && !Array.isArray(data14)){
-for(const key0 in data14){
-let data15 = data14[key0];
-const _errs30 = errors;
-if(!((typeof data15 == "number") && (isFinite(data15)))){
-validate33.errors = [{instancePath:instancePath+"/geometry/" + key0.replace(/~/g, "~0").replace(/\//g, "~1"),schemaPath:"#/properties/geometry/additionalProperties/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.geometry.additionalProperties.type,parentSchema:schema55.properties.geometry.additionalProperties,data:data15}];
+let data23 = data.geometry;
+const _errs46 = errors;
+if(errors === _errs46){
+if(data23 && typeof data23 == "object" && !Array.isArray(data23)){
+for(const key1 in data23){
+let data24 = data23[key1];
+const _errs49 = errors;
+if(!((typeof data24 == "number") && (isFinite(data24)))){
+validate33.errors = [{instancePath:instancePath+"/geometry/" + key1.replace(/~/g, "~0").replace(/\//g, "~1"),schemaPath:"#/properties/geometry/additionalProperties/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.geometry.additionalProperties.type,parentSchema:schema55.properties.geometry.additionalProperties,data:data24}];
 return false;
 }
-var valid3 = _errs30 === errors;
-if(!valid3){
+var valid7 = _errs49 === errors;
+if(!valid7){
 break;
 }
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/geometry",schemaPath:"#/properties/geometry/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema55.properties.geometry.type,parentSchema:schema55.properties.geometry,data:data14}];
+validate33.errors = [{instancePath:instancePath+"/geometry",schemaPath:"#/properties/geometry/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema55.properties.geometry.type,parentSchema:schema55.properties.geometry,data:data23}];
 return false;
 }
 }
-var valid0 = _errs27 === errors;
+var valid0 = _errs46 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.seed !== undefined){
-let data16 = data.seed;
-const _errs32 = errors;
-if(!(((typeof data16 == "number") && (!(data16 % 1) && !isNaN(data16))) && (isFinite(data16)))){
-validate33.errors = [{instancePath:instancePath+"/seed",schemaPath:"#/properties/seed/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema55.properties.seed.type,parentSchema:schema55.properties.seed,data:data16}];
+let data25 = data.seed;
+const _errs51 = errors;
+if(!(((typeof data25 == "number") && (!(data25 % 1) && !isNaN(data25))) && (isFinite(data25)))){
+validate33.errors = [{instancePath:instancePath+"/seed",schemaPath:"#/properties/seed/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema55.properties.seed.type,parentSchema:schema55.properties.seed,data:data25}];
 return false;
 }
-var valid0 = _errs32 === errors;
+var valid0 = _errs51 === errors;
 }
 else {
 var valid0 = true;
