@@ -46,6 +46,8 @@ export function fitCapture(capture: CaptureV1): { fit: FitState; analysis: RingA
     const fit = fitRing(ringInputFromCapture(capture));
     const analysis = withUnaccountedCapacitance(analyzeFit(fit), capture);
     checkReadingPlausible(capture, analysis);
+    // Warnings the reading added when it was taken (automatic ranging's) come back with it.
+    if (capture.reading_warnings?.length) analysis.warnings = [...analysis.warnings, ...capture.reading_warnings];
     return { fit, analysis };
   } catch (e) {
     const m = e instanceof AnalysisError || e instanceof ImplausibleError ? new MeasureError(e.code, e.message) : e;
