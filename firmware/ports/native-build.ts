@@ -229,10 +229,15 @@ export function buildQemuF405(core: QemuCore): string {
 }
 
 // npx tsx firmware/ports/native-build.ts qemu-f405 [m0|m4 ...]: builds the emulated board's images.
+// npx tsx firmware/ports/native-build.ts f411: builds the STM32F411CE board image (prints its path).
 if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) {
   const [what, ...cores] = process.argv.slice(2);
+  if (what === "f411") {
+    process.stdout.write(buildBoard().elf + "\n");
+    process.exit(0);
+  }
   if (what !== "qemu-f405") {
-    process.stderr.write("usage: native-build.ts qemu-f405 [m0|m4 ...]\n");
+    process.stderr.write("usage: native-build.ts qemu-f405 [m0|m4 ...] | f411\n");
     process.exit(2);
   }
   for (const core of cores.length ? cores : Object.keys(QEMU_CORES)) {

@@ -217,9 +217,11 @@ describe(`capture merge on the host${note}`, () => {
     expect(run(["open 1000 8 100", "edge 990 1", "edge 1100 1", "final", "end"]).fault).toBe(SAME_LEVEL);
   });
 
-  it.skipIf(!hasHostGcc)(`refuses edges at or beyond 2^30 ticks, and port-reported faults${note}`, () => {
-    const late = run(["open 0 8 100", "edge 5 1", `edge ${2 ** 30} 0`, "final", "end"]);
+  it.skipIf(!hasHostGcc)(`refuses edges at or beyond 2^29 ticks (the firmware reads bit 30 of an entry as a flag), and port-reported faults${note}`, () => {
+    const late = run(["open 0 8 100", "edge 5 1", `edge ${2 ** 29} 0`, "final", "end"]);
     expect(late).toMatchObject({ fault: LATE, entries: [11, FAULT_ENTRY + LATE] });
+    const last = run(["open 0 8 100", "edge 5 1", `edge ${2 ** 29 - 1} 0`, "final", "end"]);
+    expect(last).toMatchObject({ fault: 0, entries: [11, (2 ** 29 - 1) * 2] });
     const port = run(["open 0 8 100", "edge 5 1", "step 6", "portfault", "edge 7 0", "final", "end"]);
     expect(port).toMatchObject({ fault: PORT, entries: [11, FAULT_ENTRY + PORT] });
   });

@@ -19,6 +19,7 @@ export const WARNING_MEANINGS = {
   SUSPECTED_CLIPPING: "the first cycle's edges sit off the ring model: the front end may clip",
   POOR_FIT: "the residuals are correlated: the ring is not a clean damped sine; the uncertainty is widened",
   FREQUENCY_DRIFT: "the ring frequency changes from start to end (voltage-dependent tank or a core near saturation)",
+  COMPARATOR_SKEW: "rising and falling edges sit apart by a constant time: the comparator's rise and fall delays differ from what the reading assumed",
   Q_UNCERTAIN: "Q is determined only loosely",
   AMBIGUOUS_DECAY: "the edges fit two different decays almost equally well; the uncertainties cover both",
   FEW_EDGES_BEST_SETTING: "automatic ranging found no setting with enough edges and kept the best one",

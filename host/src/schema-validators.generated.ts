@@ -3,12 +3,14 @@
 // code). Do not edit: change the schema and run npm run build.
 
 export const capture = validate20;
-const schema31 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:capture:1","title":"henrytick capture file, version 1","description":"The edge record of one ring-down with everything needed to analyse it again (docs/capture-format.md). Units are SI and in the key names. Rules a schema cannot state (rising threshold above the falling one, edge ticks non-decreasing) are checked by the reader too.","type":"object","required":["format","version","tick_hz","edges","tank_c_f","thresholds_v"],"properties":{"format":{"const":"henrytick-capture"},"version":{"const":1},"tick_hz":{"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"},"edges":{"type":"array","description":"[tick, level] pairs: integer ticks since the switch opened, non-decreasing; level 1 after a rising edge, 0 after a falling edge","items":{"description":"[tick, level]","type":"array","prefixItems":[{"type":"integer","minimum":0,"maximum":9007199254740991},{"enum":[0,1]}],"minItems":2,"maxItems":2}},"tank_c_f":{"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"},"tank_c_u_f":{"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"},"thresholds_v":{"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2},"drive":{"$ref":"#/$defs/drive"},"range":{"$ref":"#/$defs/range"},"device":{"$ref":"#/$defs/device"},"meta":{"type":"object","properties":{"label":{"type":"string"},"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"end_reason":{"enum":["quiet","full","timeout","no-edges"]}}},"calibration":{"$ref":"#/$defs/calibration"}},"$defs":{"drive":{"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0}}},"range":{"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}},"device":{"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"}}},"calibration":{"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0}}}}};
+const schema31 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:capture:1","title":"henrytick capture file, version 1","description":"The edge record of one ring-down with everything needed to analyse it again (docs/capture-format.md). Units are SI and in the key names. Rules a schema cannot state (rising threshold above the falling one, edge ticks non-decreasing) are checked by the reader too.","type":"object","required":["format","version","tick_hz","edges","tank_c_f","thresholds_v"],"properties":{"format":{"const":"henrytick-capture"},"version":{"const":1},"tick_hz":{"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"},"edges":{"type":"array","description":"[tick, level] pairs: integer ticks since the switch opened, non-decreasing; level 1 after a rising edge, 0 after a falling edge","items":{"description":"[tick, level]","type":"array","prefixItems":[{"type":"integer","minimum":0,"maximum":9007199254740991},{"enum":[0,1]}],"minItems":2,"maxItems":2}},"tank_c_f":{"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"},"tank_c_u_f":{"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"},"thresholds_v":{"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2},"drive":{"$ref":"#/$defs/drive"},"range":{"$ref":"#/$defs/range"},"device":{"$ref":"#/$defs/device"},"meta":{"type":"object","properties":{"label":{"type":"string"},"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"end_reason":{"enum":["quiet","full","timeout","no-edges"]}}},"calibration":{"$ref":"#/$defs/calibration"},"reading_warnings":{"type":"array","description":"warnings the reading added to the analysis's own (automatic ranging's); a re-analysis gives them again","items":{"$ref":"#/$defs/warning"}}},"$defs":{"drive":{"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0}}},"range":{"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}},"device":{"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}},"calibration":{"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0}}},"warning":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}}}};
 const schema32 = {"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0}}};
 const schema33 = {"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}};
-const schema34 = {"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"}}};
+const schema34 = {"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}};
 const schema35 = {"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0}}};
+const schema36 = {"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}};
 const pattern4 = new RegExp("^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$", "u");
+const pattern5 = new RegExp("^[A-Z][A-Z0-9_]*$", "u");
 
 function validate20(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 /*# sourceURL="urn:henrytick:schema:capture:1" */;
@@ -543,6 +545,50 @@ var valid9 = _errs53 === errors;
 else {
 var valid9 = true;
 }
+if(valid9){
+if(data22.clamp_v !== undefined){
+let data27 = data22.clamp_v;
+const _errs55 = errors;
+if(errors === _errs55){
+if((typeof data27 == "number") && (isFinite(data27))){
+if(data27 <= 0 || isNaN(data27)){
+validate20.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"#/$defs/device/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.clamp_v,data:data27}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"#/$defs/device/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.clamp_v.type,parentSchema:schema34.properties.clamp_v,data:data27}];
+return false;
+}
+}
+var valid9 = _errs55 === errors;
+}
+else {
+var valid9 = true;
+}
+if(valid9){
+if(data22.max_timeout_ms !== undefined){
+let data28 = data22.max_timeout_ms;
+const _errs57 = errors;
+if(errors === _errs57){
+if((typeof data28 == "number") && (isFinite(data28))){
+if(data28 <= 0 || isNaN(data28)){
+validate20.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"#/$defs/device/properties/max_timeout_ms/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.max_timeout_ms,data:data28}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"#/$defs/device/properties/max_timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.max_timeout_ms.type,parentSchema:schema34.properties.max_timeout_ms,data:data28}];
+return false;
+}
+}
+var valid9 = _errs57 === errors;
+}
+else {
+var valid9 = true;
+}
+}
+}
 }
 }
 }
@@ -560,49 +606,15 @@ var valid0 = true;
 }
 if(valid0){
 if(data.meta !== undefined){
-let data27 = data.meta;
-const _errs55 = errors;
-if(errors === _errs55){
-if(data27 && typeof data27 == "object" && !Array.isArray(data27)){
-if(data27.label !== undefined){
-let data28 = data27.label;
-const _errs57 = errors;
-if(typeof data28 !== "string"){
-validate20.errors = [{instancePath:instancePath+"/meta/label",schemaPath:"#/properties/meta/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema31.properties.meta.properties.label.type,parentSchema:schema31.properties.meta.properties.label,data:data28}];
-return false;
-}
-var valid10 = _errs57 === errors;
-}
-else {
-var valid10 = true;
-}
-if(valid10){
-if(data27.time !== undefined){
-let data29 = data27.time;
+let data29 = data.meta;
 const _errs59 = errors;
 if(errors === _errs59){
-if(typeof data29 === "string"){
-if(!pattern4.test(data29)){
-validate20.errors = [{instancePath:instancePath+"/meta/time",schemaPath:"#/properties/meta/properties/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema31.properties.meta.properties.time,data:data29}];
-return false;
-}
-}
-else {
-validate20.errors = [{instancePath:instancePath+"/meta/time",schemaPath:"#/properties/meta/properties/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema31.properties.meta.properties.time.type,parentSchema:schema31.properties.meta.properties.time,data:data29}];
-return false;
-}
-}
-var valid10 = _errs59 === errors;
-}
-else {
-var valid10 = true;
-}
-if(valid10){
-if(data27.end_reason !== undefined){
-let data30 = data27.end_reason;
+if(data29 && typeof data29 == "object" && !Array.isArray(data29)){
+if(data29.label !== undefined){
+let data30 = data29.label;
 const _errs61 = errors;
-if(!((((data30 === "quiet") || (data30 === "full")) || (data30 === "timeout")) || (data30 === "no-edges"))){
-validate20.errors = [{instancePath:instancePath+"/meta/end_reason",schemaPath:"#/properties/meta/properties/end_reason/enum",keyword:"enum",params:{allowedValues: schema31.properties.meta.properties.end_reason.enum},message:"must be equal to one of the allowed values",schema:schema31.properties.meta.properties.end_reason.enum,parentSchema:schema31.properties.meta.properties.end_reason,data:data30}];
+if(typeof data30 !== "string"){
+validate20.errors = [{instancePath:instancePath+"/meta/label",schemaPath:"#/properties/meta/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema31.properties.meta.properties.label.type,parentSchema:schema31.properties.meta.properties.label,data:data30}];
 return false;
 }
 var valid10 = _errs61 === errors;
@@ -610,72 +622,72 @@ var valid10 = _errs61 === errors;
 else {
 var valid10 = true;
 }
+if(valid10){
+if(data29.time !== undefined){
+let data31 = data29.time;
+const _errs63 = errors;
+if(errors === _errs63){
+if(typeof data31 === "string"){
+if(!pattern4.test(data31)){
+validate20.errors = [{instancePath:instancePath+"/meta/time",schemaPath:"#/properties/meta/properties/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema31.properties.meta.properties.time,data:data31}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/meta/time",schemaPath:"#/properties/meta/properties/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema31.properties.meta.properties.time.type,parentSchema:schema31.properties.meta.properties.time,data:data31}];
+return false;
+}
+}
+var valid10 = _errs63 === errors;
+}
+else {
+var valid10 = true;
+}
+if(valid10){
+if(data29.end_reason !== undefined){
+let data32 = data29.end_reason;
+const _errs65 = errors;
+if(!((((data32 === "quiet") || (data32 === "full")) || (data32 === "timeout")) || (data32 === "no-edges"))){
+validate20.errors = [{instancePath:instancePath+"/meta/end_reason",schemaPath:"#/properties/meta/properties/end_reason/enum",keyword:"enum",params:{allowedValues: schema31.properties.meta.properties.end_reason.enum},message:"must be equal to one of the allowed values",schema:schema31.properties.meta.properties.end_reason.enum,parentSchema:schema31.properties.meta.properties.end_reason,data:data32}];
+return false;
+}
+var valid10 = _errs65 === errors;
+}
+else {
+var valid10 = true;
+}
 }
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/meta",schemaPath:"#/properties/meta/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema31.properties.meta.type,parentSchema:schema31.properties.meta,data:data27}];
+validate20.errors = [{instancePath:instancePath+"/meta",schemaPath:"#/properties/meta/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema31.properties.meta.type,parentSchema:schema31.properties.meta,data:data29}];
 return false;
 }
 }
-var valid0 = _errs55 === errors;
+var valid0 = _errs59 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.calibration !== undefined){
-let data31 = data.calibration;
-const _errs62 = errors;
-const _errs63 = errors;
-if(errors === _errs63){
-if(data31 && typeof data31 == "object" && !Array.isArray(data31)){
-let missing4;
-if((((((data31.source === undefined) && (missing4 = "source")) || ((data31.tank_calibrated === undefined) && (missing4 = "tank_calibrated"))) || ((data31.nominal_tank_c_f === undefined) && (missing4 = "nominal_tank_c_f"))) || ((data31.nominal_tick_hz === undefined) && (missing4 = "nominal_tick_hz"))) || ((data31.timebase_ppm === undefined) && (missing4 = "timebase_ppm"))){
-validate20.errors = [{instancePath:instancePath+"/calibration",schemaPath:"#/$defs/calibration/required",keyword:"required",params:{missingProperty: missing4},message:"must have required property '"+missing4+"'",schema:schema35.required,parentSchema:schema35,data:data31}];
-return false;
-}
-else {
-if(data31.source !== undefined){
-let data32 = data31.source;
-const _errs65 = errors;
-if(typeof data32 !== "string"){
-validate20.errors = [{instancePath:instancePath+"/calibration/source",schemaPath:"#/$defs/calibration/properties/source/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema35.properties.source.type,parentSchema:schema35.properties.source,data:data32}];
-return false;
-}
-var valid12 = _errs65 === errors;
-}
-else {
-var valid12 = true;
-}
-if(valid12){
-if(data31.tank_calibrated !== undefined){
-let data33 = data31.tank_calibrated;
+let data33 = data.calibration;
+const _errs66 = errors;
 const _errs67 = errors;
-if(typeof data33 !== "boolean"){
-validate20.errors = [{instancePath:instancePath+"/calibration/tank_calibrated",schemaPath:"#/$defs/calibration/properties/tank_calibrated/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema35.properties.tank_calibrated.type,parentSchema:schema35.properties.tank_calibrated,data:data33}];
+if(errors === _errs67){
+if(data33 && typeof data33 == "object" && !Array.isArray(data33)){
+let missing4;
+if((((((data33.source === undefined) && (missing4 = "source")) || ((data33.tank_calibrated === undefined) && (missing4 = "tank_calibrated"))) || ((data33.nominal_tank_c_f === undefined) && (missing4 = "nominal_tank_c_f"))) || ((data33.nominal_tick_hz === undefined) && (missing4 = "nominal_tick_hz"))) || ((data33.timebase_ppm === undefined) && (missing4 = "timebase_ppm"))){
+validate20.errors = [{instancePath:instancePath+"/calibration",schemaPath:"#/$defs/calibration/required",keyword:"required",params:{missingProperty: missing4},message:"must have required property '"+missing4+"'",schema:schema35.required,parentSchema:schema35,data:data33}];
 return false;
 }
-var valid12 = _errs67 === errors;
-}
 else {
-var valid12 = true;
-}
-if(valid12){
-if(data31.nominal_tank_c_f !== undefined){
-let data34 = data31.nominal_tank_c_f;
+if(data33.source !== undefined){
+let data34 = data33.source;
 const _errs69 = errors;
-if(errors === _errs69){
-if((typeof data34 == "number") && (isFinite(data34))){
-if(data34 <= 0 || isNaN(data34)){
-validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tank_c_f",schemaPath:"#/$defs/calibration/properties/nominal_tank_c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tank_c_f,data:data34}];
+if(typeof data34 !== "string"){
+validate20.errors = [{instancePath:instancePath+"/calibration/source",schemaPath:"#/$defs/calibration/properties/source/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema35.properties.source.type,parentSchema:schema35.properties.source,data:data34}];
 return false;
-}
-}
-else {
-validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tank_c_f",schemaPath:"#/$defs/calibration/properties/nominal_tank_c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tank_c_f.type,parentSchema:schema35.properties.nominal_tank_c_f,data:data34}];
-return false;
-}
 }
 var valid12 = _errs69 === errors;
 }
@@ -683,20 +695,12 @@ else {
 var valid12 = true;
 }
 if(valid12){
-if(data31.nominal_tick_hz !== undefined){
-let data35 = data31.nominal_tick_hz;
+if(data33.tank_calibrated !== undefined){
+let data35 = data33.tank_calibrated;
 const _errs71 = errors;
-if(errors === _errs71){
-if((typeof data35 == "number") && (isFinite(data35))){
-if(data35 <= 0 || isNaN(data35)){
-validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tick_hz",schemaPath:"#/$defs/calibration/properties/nominal_tick_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tick_hz,data:data35}];
+if(typeof data35 !== "boolean"){
+validate20.errors = [{instancePath:instancePath+"/calibration/tank_calibrated",schemaPath:"#/$defs/calibration/properties/tank_calibrated/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema35.properties.tank_calibrated.type,parentSchema:schema35.properties.tank_calibrated,data:data35}];
 return false;
-}
-}
-else {
-validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tick_hz",schemaPath:"#/$defs/calibration/properties/nominal_tick_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tick_hz.type,parentSchema:schema35.properties.nominal_tick_hz,data:data35}];
-return false;
-}
 }
 var valid12 = _errs71 === errors;
 }
@@ -704,12 +708,20 @@ else {
 var valid12 = true;
 }
 if(valid12){
-if(data31.timebase_ppm !== undefined){
-let data36 = data31.timebase_ppm;
+if(data33.nominal_tank_c_f !== undefined){
+let data36 = data33.nominal_tank_c_f;
 const _errs73 = errors;
-if(!((typeof data36 == "number") && (isFinite(data36)))){
-validate20.errors = [{instancePath:instancePath+"/calibration/timebase_ppm",schemaPath:"#/$defs/calibration/properties/timebase_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_ppm.type,parentSchema:schema35.properties.timebase_ppm,data:data36}];
+if(errors === _errs73){
+if((typeof data36 == "number") && (isFinite(data36))){
+if(data36 <= 0 || isNaN(data36)){
+validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tank_c_f",schemaPath:"#/$defs/calibration/properties/nominal_tank_c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tank_c_f,data:data36}];
 return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tank_c_f",schemaPath:"#/$defs/calibration/properties/nominal_tank_c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tank_c_f.type,parentSchema:schema35.properties.nominal_tank_c_f,data:data36}];
+return false;
+}
 }
 var valid12 = _errs73 === errors;
 }
@@ -717,18 +729,18 @@ else {
 var valid12 = true;
 }
 if(valid12){
-if(data31.timebase_u_ppm !== undefined){
-let data37 = data31.timebase_u_ppm;
+if(data33.nominal_tick_hz !== undefined){
+let data37 = data33.nominal_tick_hz;
 const _errs75 = errors;
 if(errors === _errs75){
 if((typeof data37 == "number") && (isFinite(data37))){
-if(data37 < 0 || isNaN(data37)){
-validate20.errors = [{instancePath:instancePath+"/calibration/timebase_u_ppm",schemaPath:"#/$defs/calibration/properties/timebase_u_ppm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema35.properties.timebase_u_ppm,data:data37}];
+if(data37 <= 0 || isNaN(data37)){
+validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tick_hz",schemaPath:"#/$defs/calibration/properties/nominal_tick_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tick_hz,data:data37}];
 return false;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/calibration/timebase_u_ppm",schemaPath:"#/$defs/calibration/properties/timebase_u_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_u_ppm.type,parentSchema:schema35.properties.timebase_u_ppm,data:data37}];
+validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tick_hz",schemaPath:"#/$defs/calibration/properties/nominal_tick_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tick_hz.type,parentSchema:schema35.properties.nominal_tick_hz,data:data37}];
 return false;
 }
 }
@@ -737,22 +749,134 @@ var valid12 = _errs75 === errors;
 else {
 var valid12 = true;
 }
+if(valid12){
+if(data33.timebase_ppm !== undefined){
+let data38 = data33.timebase_ppm;
+const _errs77 = errors;
+if(!((typeof data38 == "number") && (isFinite(data38)))){
+validate20.errors = [{instancePath:instancePath+"/calibration/timebase_ppm",schemaPath:"#/$defs/calibration/properties/timebase_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_ppm.type,parentSchema:schema35.properties.timebase_ppm,data:data38}];
+return false;
 }
-}
-}
-}
-}
-}
+var valid12 = _errs77 === errors;
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/calibration",schemaPath:"#/$defs/calibration/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema35.type,parentSchema:schema35,data:data31}];
+var valid12 = true;
+}
+if(valid12){
+if(data33.timebase_u_ppm !== undefined){
+let data39 = data33.timebase_u_ppm;
+const _errs79 = errors;
+if(errors === _errs79){
+if((typeof data39 == "number") && (isFinite(data39))){
+if(data39 < 0 || isNaN(data39)){
+validate20.errors = [{instancePath:instancePath+"/calibration/timebase_u_ppm",schemaPath:"#/$defs/calibration/properties/timebase_u_ppm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema35.properties.timebase_u_ppm,data:data39}];
 return false;
 }
 }
-var valid0 = _errs62 === errors;
+else {
+validate20.errors = [{instancePath:instancePath+"/calibration/timebase_u_ppm",schemaPath:"#/$defs/calibration/properties/timebase_u_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_u_ppm.type,parentSchema:schema35.properties.timebase_u_ppm,data:data39}];
+return false;
+}
+}
+var valid12 = _errs79 === errors;
+}
+else {
+var valid12 = true;
+}
+}
+}
+}
+}
+}
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/calibration",schemaPath:"#/$defs/calibration/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema35.type,parentSchema:schema35,data:data33}];
+return false;
+}
+}
+var valid0 = _errs66 === errors;
 }
 else {
 var valid0 = true;
+}
+if(valid0){
+if(data.reading_warnings !== undefined){
+let data40 = data.reading_warnings;
+const _errs81 = errors;
+if(errors === _errs81){
+if(Array.isArray(data40)){
+var valid13 = true;
+const len3 = data40.length;
+for(let i1=0; i1<len3; i1++){
+let data41 = data40[i1];
+const _errs83 = errors;
+const _errs84 = errors;
+if(errors === _errs84){
+if(data41 && typeof data41 == "object" && !Array.isArray(data41)){
+let missing5;
+if(((data41.code === undefined) && (missing5 = "code")) || ((data41.message === undefined) && (missing5 = "message"))){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/required",keyword:"required",params:{missingProperty: missing5},message:"must have required property '"+missing5+"'",schema:schema36.required,parentSchema:schema36,data:data41}];
+return false;
+}
+else {
+if(data41.code !== undefined){
+let data42 = data41.code;
+const _errs86 = errors;
+if(errors === _errs86){
+if(typeof data42 === "string"){
+if(!pattern5.test(data42)){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema36.properties.code,data:data42}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.code.type,parentSchema:schema36.properties.code,data:data42}];
+return false;
+}
+}
+var valid15 = _errs86 === errors;
+}
+else {
+var valid15 = true;
+}
+if(valid15){
+if(data41.message !== undefined){
+let data43 = data41.message;
+const _errs88 = errors;
+if(typeof data43 !== "string"){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/message",schemaPath:"#/$defs/warning/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.message.type,parentSchema:schema36.properties.message,data:data43}];
+return false;
+}
+var valid15 = _errs88 === errors;
+}
+else {
+var valid15 = true;
+}
+}
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema36.type,parentSchema:schema36,data:data41}];
+return false;
+}
+}
+var valid13 = _errs83 === errors;
+if(!valid13){
+break;
+}
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/reading_warnings",schemaPath:"#/properties/reading_warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema31.properties.reading_warnings.type,parentSchema:schema31.properties.reading_warnings,data:data40}];
+return false;
+}
+}
+var valid0 = _errs81 === errors;
+}
+else {
+var valid0 = true;
+}
 }
 }
 }
@@ -775,16 +899,15 @@ return false;
 validate20.errors = vErrors;
 return errors === 0;
 }
-validate20.evaluated = {"props":{"format":true,"version":true,"tick_hz":true,"edges":true,"tank_c_f":true,"tank_c_u_f":true,"thresholds_v":true,"drive":true,"range":true,"device":true,"meta":true,"calibration":true},"dynamicProps":false,"dynamicItems":false};
+validate20.evaluated = {"props":{"format":true,"version":true,"tick_hz":true,"edges":true,"tank_c_f":true,"tank_c_u_f":true,"thresholds_v":true,"drive":true,"range":true,"device":true,"meta":true,"calibration":true,"reading_warnings":true},"dynamicProps":false,"dynamicItems":false};
 
 export const result = validate21;
-const schema36 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:result:1","title":"henrytick reading result","description":"What `henrytick measure --json` and `henrytick analyze FILE --json` print for one reading (docs/capture-format.md). Units are SI and in the key names; uncertainties named _u_ are expanded (coverage_factor 2). The settings reuse the capture schema's definitions.","type":"object","required":["f0_hz","f0_u_hz","fd_hz","inductance_h","inductance_u_h","coverage_factor","q","q_u","esr_ohm","esr_u_ohm","ring_amplitude_v","edges_used","edges_rejected","warnings","settings"],"properties":{"suspect":{"$ref":"#/$defs/coded","description":"present only for a reading kept on request although it shows a part fault: not a verified result"},"f0_hz":{"type":"number","exclusiveMinimum":0,"description":"undamped resonance"},"f0_u_hz":{"type":"number","minimum":0},"fd_hz":{"type":"number","exclusiveMinimum":0,"description":"damped ring frequency"},"inductance_h":{"type":"number","exclusiveMinimum":0},"inductance_u_h":{"type":"number","minimum":0},"coverage_factor":{"const":2},"q":{"type":"number","exclusiveMinimum":0},"q_u":{"type":"number","minimum":0},"esr_ohm":{"type":"number","minimum":0},"esr_u_ohm":{"type":"number","minimum":0},"ring_amplitude_v":{"type":"number","minimum":0},"edges_used":{"type":"integer","minimum":0},"edges_rejected":{"type":"integer","minimum":0},"warnings":{"type":"array","items":{"$ref":"#/$defs/coded"}},"settings":{"type":"object","required":["tick_hz","tank_c_f","thresholds_v"],"properties":{"tick_hz":{"$ref":"urn:henrytick:schema:capture:1#/properties/tick_hz"},"tank_c_f":{"$ref":"urn:henrytick:schema:capture:1#/properties/tank_c_f"},"tank_c_u_f":{"$ref":"urn:henrytick:schema:capture:1#/properties/tank_c_u_f"},"thresholds_v":{"$ref":"urn:henrytick:schema:capture:1#/properties/thresholds_v"},"drive":{"$ref":"urn:henrytick:schema:capture:1#/$defs/drive"},"range":{"$ref":"urn:henrytick:schema:capture:1#/$defs/range"},"calibration":{"$ref":"urn:henrytick:schema:capture:1#/$defs/calibration"}}},"device":{"$ref":"urn:henrytick:schema:capture:1#/$defs/device"},"label":{"type":"string"}},"$defs":{"coded":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code such as NO_RING (docs/library.md lists them)"},"message":{"type":"string"}}}}};
-const schema37 = {"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code such as NO_RING (docs/library.md lists them)"},"message":{"type":"string"}}};
-const schema39 = {"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"};
-const schema40 = {"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"};
-const schema41 = {"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"};
-const schema42 = {"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2};
-const pattern5 = new RegExp("^[A-Z][A-Z0-9_]*$", "u");
+const schema37 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:result:1","title":"henrytick reading result","description":"What `henrytick measure --json` and `henrytick analyze FILE --json` print for one reading (docs/capture-format.md). Units are SI and in the key names; uncertainties named _u_ are expanded (coverage_factor 2). The settings reuse the capture schema's definitions.","type":"object","required":["f0_hz","f0_u_hz","fd_hz","inductance_h","inductance_u_h","coverage_factor","q","q_u","esr_ohm","esr_u_ohm","ring_amplitude_v","edges_used","edges_rejected","warnings","settings"],"properties":{"suspect":{"$ref":"#/$defs/coded","description":"present only for a reading kept on request although it shows a part fault: not a verified result"},"f0_hz":{"type":"number","exclusiveMinimum":0,"description":"undamped resonance"},"f0_u_hz":{"type":"number","minimum":0},"fd_hz":{"type":"number","exclusiveMinimum":0,"description":"damped ring frequency"},"inductance_h":{"type":"number","exclusiveMinimum":0},"inductance_u_h":{"type":"number","minimum":0},"coverage_factor":{"const":2},"q":{"type":"number","exclusiveMinimum":0},"q_u":{"type":"number","minimum":0},"esr_ohm":{"type":"number","minimum":0},"esr_u_ohm":{"type":"number","minimum":0},"ring_amplitude_v":{"type":"number","minimum":0},"edges_used":{"type":"integer","minimum":0},"edges_rejected":{"type":"integer","minimum":0},"warnings":{"type":"array","items":{"$ref":"#/$defs/coded"}},"settings":{"type":"object","required":["tick_hz","tank_c_f","thresholds_v"],"properties":{"tick_hz":{"$ref":"urn:henrytick:schema:capture:1#/properties/tick_hz"},"tank_c_f":{"$ref":"urn:henrytick:schema:capture:1#/properties/tank_c_f"},"tank_c_u_f":{"$ref":"urn:henrytick:schema:capture:1#/properties/tank_c_u_f"},"thresholds_v":{"$ref":"urn:henrytick:schema:capture:1#/properties/thresholds_v"},"drive":{"$ref":"urn:henrytick:schema:capture:1#/$defs/drive"},"range":{"$ref":"urn:henrytick:schema:capture:1#/$defs/range"},"calibration":{"$ref":"urn:henrytick:schema:capture:1#/$defs/calibration"}}},"device":{"$ref":"urn:henrytick:schema:capture:1#/$defs/device"},"label":{"type":"string"}},"$defs":{"coded":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code such as NO_RING (docs/library.md lists them)"},"message":{"type":"string"}}}}};
+const schema38 = {"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code such as NO_RING (docs/library.md lists them)"},"message":{"type":"string"}}};
+const schema40 = {"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"};
+const schema41 = {"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"};
+const schema42 = {"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"};
+const schema43 = {"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2};
 
 function validate21(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 /*# sourceURL="urn:henrytick:schema:result:1" */;
@@ -801,7 +924,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if((((((((((((((((data.f0_hz === undefined) && (missing0 = "f0_hz")) || ((data.f0_u_hz === undefined) && (missing0 = "f0_u_hz"))) || ((data.fd_hz === undefined) && (missing0 = "fd_hz"))) || ((data.inductance_h === undefined) && (missing0 = "inductance_h"))) || ((data.inductance_u_h === undefined) && (missing0 = "inductance_u_h"))) || ((data.coverage_factor === undefined) && (missing0 = "coverage_factor"))) || ((data.q === undefined) && (missing0 = "q"))) || ((data.q_u === undefined) && (missing0 = "q_u"))) || ((data.esr_ohm === undefined) && (missing0 = "esr_ohm"))) || ((data.esr_u_ohm === undefined) && (missing0 = "esr_u_ohm"))) || ((data.ring_amplitude_v === undefined) && (missing0 = "ring_amplitude_v"))) || ((data.edges_used === undefined) && (missing0 = "edges_used"))) || ((data.edges_rejected === undefined) && (missing0 = "edges_rejected"))) || ((data.warnings === undefined) && (missing0 = "warnings"))) || ((data.settings === undefined) && (missing0 = "settings"))){
-validate21.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema36.required,parentSchema:schema36,data}];
+validate21.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema37.required,parentSchema:schema37,data}];
 return false;
 }
 else {
@@ -813,7 +936,7 @@ if(errors === _errs2){
 if(data0 && typeof data0 == "object" && !Array.isArray(data0)){
 let missing1;
 if(((data0.code === undefined) && (missing1 = "code")) || ((data0.message === undefined) && (missing1 = "message"))){
-validate21.errors = [{instancePath:instancePath+"/suspect",schemaPath:"#/$defs/coded/required",keyword:"required",params:{missingProperty: missing1},message:"must have required property '"+missing1+"'",schema:schema37.required,parentSchema:schema37,data:data0}];
+validate21.errors = [{instancePath:instancePath+"/suspect",schemaPath:"#/$defs/coded/required",keyword:"required",params:{missingProperty: missing1},message:"must have required property '"+missing1+"'",schema:schema38.required,parentSchema:schema38,data:data0}];
 return false;
 }
 else {
@@ -823,12 +946,12 @@ const _errs4 = errors;
 if(errors === _errs4){
 if(typeof data1 === "string"){
 if(!pattern5.test(data1)){
-validate21.errors = [{instancePath:instancePath+"/suspect/code",schemaPath:"#/$defs/coded/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema37.properties.code,data:data1}];
+validate21.errors = [{instancePath:instancePath+"/suspect/code",schemaPath:"#/$defs/coded/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema38.properties.code,data:data1}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/suspect/code",schemaPath:"#/$defs/coded/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.code.type,parentSchema:schema37.properties.code,data:data1}];
+validate21.errors = [{instancePath:instancePath+"/suspect/code",schemaPath:"#/$defs/coded/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.code.type,parentSchema:schema38.properties.code,data:data1}];
 return false;
 }
 }
@@ -842,7 +965,7 @@ if(data0.message !== undefined){
 let data2 = data0.message;
 const _errs6 = errors;
 if(typeof data2 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/suspect/message",schemaPath:"#/$defs/coded/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.message.type,parentSchema:schema37.properties.message,data:data2}];
+validate21.errors = [{instancePath:instancePath+"/suspect/message",schemaPath:"#/$defs/coded/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.message.type,parentSchema:schema38.properties.message,data:data2}];
 return false;
 }
 var valid2 = _errs6 === errors;
@@ -854,7 +977,7 @@ var valid2 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/suspect",schemaPath:"#/$defs/coded/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.type,parentSchema:schema37,data:data0}];
+validate21.errors = [{instancePath:instancePath+"/suspect",schemaPath:"#/$defs/coded/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema38.type,parentSchema:schema38,data:data0}];
 return false;
 }
 }
@@ -870,12 +993,12 @@ const _errs8 = errors;
 if(errors === _errs8){
 if((typeof data3 == "number") && (isFinite(data3))){
 if(data3 <= 0 || isNaN(data3)){
-validate21.errors = [{instancePath:instancePath+"/f0_hz",schemaPath:"#/properties/f0_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.f0_hz,data:data3}];
+validate21.errors = [{instancePath:instancePath+"/f0_hz",schemaPath:"#/properties/f0_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.f0_hz,data:data3}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/f0_hz",schemaPath:"#/properties/f0_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.f0_hz.type,parentSchema:schema36.properties.f0_hz,data:data3}];
+validate21.errors = [{instancePath:instancePath+"/f0_hz",schemaPath:"#/properties/f0_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.f0_hz.type,parentSchema:schema37.properties.f0_hz,data:data3}];
 return false;
 }
 }
@@ -891,12 +1014,12 @@ const _errs10 = errors;
 if(errors === _errs10){
 if((typeof data4 == "number") && (isFinite(data4))){
 if(data4 < 0 || isNaN(data4)){
-validate21.errors = [{instancePath:instancePath+"/f0_u_hz",schemaPath:"#/properties/f0_u_hz/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.f0_u_hz,data:data4}];
+validate21.errors = [{instancePath:instancePath+"/f0_u_hz",schemaPath:"#/properties/f0_u_hz/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.f0_u_hz,data:data4}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/f0_u_hz",schemaPath:"#/properties/f0_u_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.f0_u_hz.type,parentSchema:schema36.properties.f0_u_hz,data:data4}];
+validate21.errors = [{instancePath:instancePath+"/f0_u_hz",schemaPath:"#/properties/f0_u_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.f0_u_hz.type,parentSchema:schema37.properties.f0_u_hz,data:data4}];
 return false;
 }
 }
@@ -912,12 +1035,12 @@ const _errs12 = errors;
 if(errors === _errs12){
 if((typeof data5 == "number") && (isFinite(data5))){
 if(data5 <= 0 || isNaN(data5)){
-validate21.errors = [{instancePath:instancePath+"/fd_hz",schemaPath:"#/properties/fd_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.fd_hz,data:data5}];
+validate21.errors = [{instancePath:instancePath+"/fd_hz",schemaPath:"#/properties/fd_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.fd_hz,data:data5}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/fd_hz",schemaPath:"#/properties/fd_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.fd_hz.type,parentSchema:schema36.properties.fd_hz,data:data5}];
+validate21.errors = [{instancePath:instancePath+"/fd_hz",schemaPath:"#/properties/fd_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.fd_hz.type,parentSchema:schema37.properties.fd_hz,data:data5}];
 return false;
 }
 }
@@ -933,12 +1056,12 @@ const _errs14 = errors;
 if(errors === _errs14){
 if((typeof data6 == "number") && (isFinite(data6))){
 if(data6 <= 0 || isNaN(data6)){
-validate21.errors = [{instancePath:instancePath+"/inductance_h",schemaPath:"#/properties/inductance_h/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.inductance_h,data:data6}];
+validate21.errors = [{instancePath:instancePath+"/inductance_h",schemaPath:"#/properties/inductance_h/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.inductance_h,data:data6}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/inductance_h",schemaPath:"#/properties/inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.inductance_h.type,parentSchema:schema36.properties.inductance_h,data:data6}];
+validate21.errors = [{instancePath:instancePath+"/inductance_h",schemaPath:"#/properties/inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.inductance_h.type,parentSchema:schema37.properties.inductance_h,data:data6}];
 return false;
 }
 }
@@ -954,12 +1077,12 @@ const _errs16 = errors;
 if(errors === _errs16){
 if((typeof data7 == "number") && (isFinite(data7))){
 if(data7 < 0 || isNaN(data7)){
-validate21.errors = [{instancePath:instancePath+"/inductance_u_h",schemaPath:"#/properties/inductance_u_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.inductance_u_h,data:data7}];
+validate21.errors = [{instancePath:instancePath+"/inductance_u_h",schemaPath:"#/properties/inductance_u_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.inductance_u_h,data:data7}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/inductance_u_h",schemaPath:"#/properties/inductance_u_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.inductance_u_h.type,parentSchema:schema36.properties.inductance_u_h,data:data7}];
+validate21.errors = [{instancePath:instancePath+"/inductance_u_h",schemaPath:"#/properties/inductance_u_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.inductance_u_h.type,parentSchema:schema37.properties.inductance_u_h,data:data7}];
 return false;
 }
 }
@@ -973,7 +1096,7 @@ if(data.coverage_factor !== undefined){
 let data8 = data.coverage_factor;
 const _errs18 = errors;
 if(2 !== data8){
-validate21.errors = [{instancePath:instancePath+"/coverage_factor",schemaPath:"#/properties/coverage_factor/const",keyword:"const",params:{allowedValue: 2},message:"must be equal to constant",schema:2,parentSchema:schema36.properties.coverage_factor,data:data8}];
+validate21.errors = [{instancePath:instancePath+"/coverage_factor",schemaPath:"#/properties/coverage_factor/const",keyword:"const",params:{allowedValue: 2},message:"must be equal to constant",schema:2,parentSchema:schema37.properties.coverage_factor,data:data8}];
 return false;
 }
 var valid0 = _errs18 === errors;
@@ -988,12 +1111,12 @@ const _errs19 = errors;
 if(errors === _errs19){
 if((typeof data9 == "number") && (isFinite(data9))){
 if(data9 <= 0 || isNaN(data9)){
-validate21.errors = [{instancePath:instancePath+"/q",schemaPath:"#/properties/q/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.q,data:data9}];
+validate21.errors = [{instancePath:instancePath+"/q",schemaPath:"#/properties/q/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.q,data:data9}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/q",schemaPath:"#/properties/q/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.q.type,parentSchema:schema36.properties.q,data:data9}];
+validate21.errors = [{instancePath:instancePath+"/q",schemaPath:"#/properties/q/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.q.type,parentSchema:schema37.properties.q,data:data9}];
 return false;
 }
 }
@@ -1009,12 +1132,12 @@ const _errs21 = errors;
 if(errors === _errs21){
 if((typeof data10 == "number") && (isFinite(data10))){
 if(data10 < 0 || isNaN(data10)){
-validate21.errors = [{instancePath:instancePath+"/q_u",schemaPath:"#/properties/q_u/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.q_u,data:data10}];
+validate21.errors = [{instancePath:instancePath+"/q_u",schemaPath:"#/properties/q_u/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.q_u,data:data10}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/q_u",schemaPath:"#/properties/q_u/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.q_u.type,parentSchema:schema36.properties.q_u,data:data10}];
+validate21.errors = [{instancePath:instancePath+"/q_u",schemaPath:"#/properties/q_u/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.q_u.type,parentSchema:schema37.properties.q_u,data:data10}];
 return false;
 }
 }
@@ -1030,12 +1153,12 @@ const _errs23 = errors;
 if(errors === _errs23){
 if((typeof data11 == "number") && (isFinite(data11))){
 if(data11 < 0 || isNaN(data11)){
-validate21.errors = [{instancePath:instancePath+"/esr_ohm",schemaPath:"#/properties/esr_ohm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.esr_ohm,data:data11}];
+validate21.errors = [{instancePath:instancePath+"/esr_ohm",schemaPath:"#/properties/esr_ohm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.esr_ohm,data:data11}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/esr_ohm",schemaPath:"#/properties/esr_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.esr_ohm.type,parentSchema:schema36.properties.esr_ohm,data:data11}];
+validate21.errors = [{instancePath:instancePath+"/esr_ohm",schemaPath:"#/properties/esr_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.esr_ohm.type,parentSchema:schema37.properties.esr_ohm,data:data11}];
 return false;
 }
 }
@@ -1051,12 +1174,12 @@ const _errs25 = errors;
 if(errors === _errs25){
 if((typeof data12 == "number") && (isFinite(data12))){
 if(data12 < 0 || isNaN(data12)){
-validate21.errors = [{instancePath:instancePath+"/esr_u_ohm",schemaPath:"#/properties/esr_u_ohm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.esr_u_ohm,data:data12}];
+validate21.errors = [{instancePath:instancePath+"/esr_u_ohm",schemaPath:"#/properties/esr_u_ohm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.esr_u_ohm,data:data12}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/esr_u_ohm",schemaPath:"#/properties/esr_u_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.esr_u_ohm.type,parentSchema:schema36.properties.esr_u_ohm,data:data12}];
+validate21.errors = [{instancePath:instancePath+"/esr_u_ohm",schemaPath:"#/properties/esr_u_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.esr_u_ohm.type,parentSchema:schema37.properties.esr_u_ohm,data:data12}];
 return false;
 }
 }
@@ -1072,12 +1195,12 @@ const _errs27 = errors;
 if(errors === _errs27){
 if((typeof data13 == "number") && (isFinite(data13))){
 if(data13 < 0 || isNaN(data13)){
-validate21.errors = [{instancePath:instancePath+"/ring_amplitude_v",schemaPath:"#/properties/ring_amplitude_v/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.ring_amplitude_v,data:data13}];
+validate21.errors = [{instancePath:instancePath+"/ring_amplitude_v",schemaPath:"#/properties/ring_amplitude_v/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.ring_amplitude_v,data:data13}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/ring_amplitude_v",schemaPath:"#/properties/ring_amplitude_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.ring_amplitude_v.type,parentSchema:schema36.properties.ring_amplitude_v,data:data13}];
+validate21.errors = [{instancePath:instancePath+"/ring_amplitude_v",schemaPath:"#/properties/ring_amplitude_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.ring_amplitude_v.type,parentSchema:schema37.properties.ring_amplitude_v,data:data13}];
 return false;
 }
 }
@@ -1091,13 +1214,13 @@ if(data.edges_used !== undefined){
 let data14 = data.edges_used;
 const _errs29 = errors;
 if(!(((typeof data14 == "number") && (!(data14 % 1) && !isNaN(data14))) && (isFinite(data14)))){
-validate21.errors = [{instancePath:instancePath+"/edges_used",schemaPath:"#/properties/edges_used/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema36.properties.edges_used.type,parentSchema:schema36.properties.edges_used,data:data14}];
+validate21.errors = [{instancePath:instancePath+"/edges_used",schemaPath:"#/properties/edges_used/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema37.properties.edges_used.type,parentSchema:schema37.properties.edges_used,data:data14}];
 return false;
 }
 if(errors === _errs29){
 if((typeof data14 == "number") && (isFinite(data14))){
 if(data14 < 0 || isNaN(data14)){
-validate21.errors = [{instancePath:instancePath+"/edges_used",schemaPath:"#/properties/edges_used/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.edges_used,data:data14}];
+validate21.errors = [{instancePath:instancePath+"/edges_used",schemaPath:"#/properties/edges_used/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.edges_used,data:data14}];
 return false;
 }
 }
@@ -1112,13 +1235,13 @@ if(data.edges_rejected !== undefined){
 let data15 = data.edges_rejected;
 const _errs31 = errors;
 if(!(((typeof data15 == "number") && (!(data15 % 1) && !isNaN(data15))) && (isFinite(data15)))){
-validate21.errors = [{instancePath:instancePath+"/edges_rejected",schemaPath:"#/properties/edges_rejected/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema36.properties.edges_rejected.type,parentSchema:schema36.properties.edges_rejected,data:data15}];
+validate21.errors = [{instancePath:instancePath+"/edges_rejected",schemaPath:"#/properties/edges_rejected/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema37.properties.edges_rejected.type,parentSchema:schema37.properties.edges_rejected,data:data15}];
 return false;
 }
 if(errors === _errs31){
 if((typeof data15 == "number") && (isFinite(data15))){
 if(data15 < 0 || isNaN(data15)){
-validate21.errors = [{instancePath:instancePath+"/edges_rejected",schemaPath:"#/properties/edges_rejected/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.edges_rejected,data:data15}];
+validate21.errors = [{instancePath:instancePath+"/edges_rejected",schemaPath:"#/properties/edges_rejected/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.edges_rejected,data:data15}];
 return false;
 }
 }
@@ -1144,7 +1267,7 @@ if(errors === _errs36){
 if(data17 && typeof data17 == "object" && !Array.isArray(data17)){
 let missing2;
 if(((data17.code === undefined) && (missing2 = "code")) || ((data17.message === undefined) && (missing2 = "message"))){
-validate21.errors = [{instancePath:instancePath+"/warnings/" + i0,schemaPath:"#/$defs/coded/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema37.required,parentSchema:schema37,data:data17}];
+validate21.errors = [{instancePath:instancePath+"/warnings/" + i0,schemaPath:"#/$defs/coded/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema38.required,parentSchema:schema38,data:data17}];
 return false;
 }
 else {
@@ -1154,12 +1277,12 @@ const _errs38 = errors;
 if(errors === _errs38){
 if(typeof data18 === "string"){
 if(!pattern5.test(data18)){
-validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/code",schemaPath:"#/$defs/coded/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema37.properties.code,data:data18}];
+validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/code",schemaPath:"#/$defs/coded/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema38.properties.code,data:data18}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/code",schemaPath:"#/$defs/coded/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.code.type,parentSchema:schema37.properties.code,data:data18}];
+validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/code",schemaPath:"#/$defs/coded/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.code.type,parentSchema:schema38.properties.code,data:data18}];
 return false;
 }
 }
@@ -1173,7 +1296,7 @@ if(data17.message !== undefined){
 let data19 = data17.message;
 const _errs40 = errors;
 if(typeof data19 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/message",schemaPath:"#/$defs/coded/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.message.type,parentSchema:schema37.properties.message,data:data19}];
+validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/message",schemaPath:"#/$defs/coded/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.message.type,parentSchema:schema38.properties.message,data:data19}];
 return false;
 }
 var valid5 = _errs40 === errors;
@@ -1185,7 +1308,7 @@ var valid5 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/warnings/" + i0,schemaPath:"#/$defs/coded/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.type,parentSchema:schema37,data:data17}];
+validate21.errors = [{instancePath:instancePath+"/warnings/" + i0,schemaPath:"#/$defs/coded/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema38.type,parentSchema:schema38,data:data17}];
 return false;
 }
 }
@@ -1196,7 +1319,7 @@ break;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/warnings",schemaPath:"#/properties/warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema36.properties.warnings.type,parentSchema:schema36.properties.warnings,data:data16}];
+validate21.errors = [{instancePath:instancePath+"/warnings",schemaPath:"#/properties/warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema37.properties.warnings.type,parentSchema:schema37.properties.warnings,data:data16}];
 return false;
 }
 }
@@ -1213,7 +1336,7 @@ if(errors === _errs42){
 if(data20 && typeof data20 == "object" && !Array.isArray(data20)){
 let missing3;
 if((((data20.tick_hz === undefined) && (missing3 = "tick_hz")) || ((data20.tank_c_f === undefined) && (missing3 = "tank_c_f"))) || ((data20.thresholds_v === undefined) && (missing3 = "thresholds_v"))){
-validate21.errors = [{instancePath:instancePath+"/settings",schemaPath:"#/properties/settings/required",keyword:"required",params:{missingProperty: missing3},message:"must have required property '"+missing3+"'",schema:schema36.properties.settings.required,parentSchema:schema36.properties.settings,data:data20}];
+validate21.errors = [{instancePath:instancePath+"/settings",schemaPath:"#/properties/settings/required",keyword:"required",params:{missingProperty: missing3},message:"must have required property '"+missing3+"'",schema:schema37.properties.settings.required,parentSchema:schema37.properties.settings,data:data20}];
 return false;
 }
 else {
@@ -1224,12 +1347,12 @@ const _errs45 = errors;
 if(errors === _errs45){
 if((typeof data21 == "number") && (isFinite(data21))){
 if(data21 <= 0 || isNaN(data21)){
-validate21.errors = [{instancePath:instancePath+"/settings/tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/properties/tick_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema39,data:data21}];
+validate21.errors = [{instancePath:instancePath+"/settings/tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/properties/tick_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema40,data:data21}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/properties/tick_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema39.type,parentSchema:schema39,data:data21}];
+validate21.errors = [{instancePath:instancePath+"/settings/tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/properties/tick_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema40.type,parentSchema:schema40,data:data21}];
 return false;
 }
 }
@@ -1246,12 +1369,12 @@ const _errs48 = errors;
 if(errors === _errs48){
 if((typeof data22 == "number") && (isFinite(data22))){
 if(data22 <= 0 || isNaN(data22)){
-validate21.errors = [{instancePath:instancePath+"/settings/tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema40,data:data22}];
+validate21.errors = [{instancePath:instancePath+"/settings/tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema41,data:data22}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema40.type,parentSchema:schema40,data:data22}];
+validate21.errors = [{instancePath:instancePath+"/settings/tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema41.type,parentSchema:schema41,data:data22}];
 return false;
 }
 }
@@ -1268,12 +1391,12 @@ const _errs51 = errors;
 if(errors === _errs51){
 if((typeof data23 == "number") && (isFinite(data23))){
 if(data23 <= 0 || isNaN(data23)){
-validate21.errors = [{instancePath:instancePath+"/settings/tank_c_u_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_u_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema41,data:data23}];
+validate21.errors = [{instancePath:instancePath+"/settings/tank_c_u_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_u_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema42,data:data23}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/tank_c_u_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema41.type,parentSchema:schema41,data:data23}];
+validate21.errors = [{instancePath:instancePath+"/settings/tank_c_u_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema42.type,parentSchema:schema42,data:data23}];
 return false;
 }
 }
@@ -1290,12 +1413,12 @@ const _errs54 = errors;
 if(errors === _errs54){
 if(Array.isArray(data24)){
 if(data24.length > 2){
-validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema42,data:data24}];
+validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema43,data:data24}];
 return false;
 }
 else {
 if(data24.length < 2){
-validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema42,data:data24}];
+validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema43,data:data24}];
 return false;
 }
 else {
@@ -1304,7 +1427,7 @@ if(len1 > 0){
 let data25 = data24[0];
 const _errs56 = errors;
 if(!((typeof data25 == "number") && (isFinite(data25)))){
-validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v/0",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/prefixItems/0/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema42.prefixItems[0].type,parentSchema:schema42.prefixItems[0],data:data25}];
+validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v/0",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/prefixItems/0/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema43.prefixItems[0].type,parentSchema:schema43.prefixItems[0],data:data25}];
 return false;
 }
 var valid11 = _errs56 === errors;
@@ -1314,7 +1437,7 @@ if(len1 > 1){
 let data26 = data24[1];
 const _errs58 = errors;
 if(!((typeof data26 == "number") && (isFinite(data26)))){
-validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v/1",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/prefixItems/1/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema42.prefixItems[1].type,parentSchema:schema42.prefixItems[1],data:data26}];
+validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v/1",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/prefixItems/1/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema43.prefixItems[1].type,parentSchema:schema43.prefixItems[1],data:data26}];
 return false;
 }
 var valid11 = _errs58 === errors;
@@ -1324,7 +1447,7 @@ var valid11 = _errs58 === errors;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema42.type,parentSchema:schema42,data:data24}];
+validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema43.type,parentSchema:schema43,data:data24}];
 return false;
 }
 }
@@ -1695,7 +1818,7 @@ var valid6 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings",schemaPath:"#/properties/settings/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema36.properties.settings.type,parentSchema:schema36.properties.settings,data:data20}];
+validate21.errors = [{instancePath:instancePath+"/settings",schemaPath:"#/properties/settings/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.properties.settings.type,parentSchema:schema37.properties.settings,data:data20}];
 return false;
 }
 }
@@ -1776,6 +1899,50 @@ var valid19 = _errs106 === errors;
 else {
 var valid19 = true;
 }
+if(valid19){
+if(data44.clamp_v !== undefined){
+let data49 = data44.clamp_v;
+const _errs108 = errors;
+if(errors === _errs108){
+if((typeof data49 == "number") && (isFinite(data49))){
+if(data49 <= 0 || isNaN(data49)){
+validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.clamp_v,data:data49}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.clamp_v.type,parentSchema:schema34.properties.clamp_v,data:data49}];
+return false;
+}
+}
+var valid19 = _errs108 === errors;
+}
+else {
+var valid19 = true;
+}
+if(valid19){
+if(data44.max_timeout_ms !== undefined){
+let data50 = data44.max_timeout_ms;
+const _errs110 = errors;
+if(errors === _errs110){
+if((typeof data50 == "number") && (isFinite(data50))){
+if(data50 <= 0 || isNaN(data50)){
+validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.max_timeout_ms,data:data50}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.max_timeout_ms.type,parentSchema:schema34.properties.max_timeout_ms,data:data50}];
+return false;
+}
+}
+var valid19 = _errs110 === errors;
+}
+else {
+var valid19 = true;
+}
+}
+}
 }
 }
 }
@@ -1793,13 +1960,13 @@ var valid0 = true;
 }
 if(valid0){
 if(data.label !== undefined){
-let data49 = data.label;
-const _errs108 = errors;
-if(typeof data49 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/label",schemaPath:"#/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.label.type,parentSchema:schema36.properties.label,data:data49}];
+let data51 = data.label;
+const _errs112 = errors;
+if(typeof data51 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/label",schemaPath:"#/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.label.type,parentSchema:schema37.properties.label,data:data51}];
 return false;
 }
-var valid0 = _errs108 === errors;
+var valid0 = _errs112 === errors;
 }
 else {
 var valid0 = true;
@@ -1824,7 +1991,7 @@ var valid0 = true;
 }
 }
 else {
-validate21.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema36.type,parentSchema:schema36,data}];
+validate21.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.type,parentSchema:schema37,data}];
 return false;
 }
 }
@@ -1834,12 +2001,12 @@ return errors === 0;
 validate21.evaluated = {"props":{"suspect":true,"f0_hz":true,"f0_u_hz":true,"fd_hz":true,"inductance_h":true,"inductance_u_h":true,"coverage_factor":true,"q":true,"q_u":true,"esr_ohm":true,"esr_u_ohm":true,"ring_amplitude_v":true,"edges_used":true,"edges_rejected":true,"warnings":true,"settings":true,"device":true,"label":true},"dynamicProps":false,"dynamicItems":false};
 
 export const calibrationProfile = validate22;
-const schema47 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:calibration-profile:1","title":"henrytick calibration profile, version 1","description":"What calibration found about one tester (docs/calibration.md). Units are SI and in the key names; uncertainties are standard (k = 1). Rules a schema cannot state (a tank index only once, c_f within a factor 2 of nominal_f, u_f at most 20 % of c_f, rising threshold above falling, |ppm| at most 1000) are checked by the reader too.","type":"object","required":["format","version","device_id","updated","tanks"],"properties":{"format":{"const":"henrytick-calibration"},"version":{"const":1},"device_id":{"type":"string","minLength":1},"updated":{"$ref":"#/$defs/time"},"tanks":{"type":"array","description":"empty when no tank is calibrated","items":{"$ref":"#/$defs/tank"}},"thresholds":{"$ref":"#/$defs/thresholds"},"timebase":{"$ref":"#/$defs/timebase"}},"$defs":{"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"method":{"enum":["reference-inductor","parallel-capacitor","threshold-fit","host-clock","entered"],"description":"the procedure that produced the value"},"provenance":{"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}},"tank":{"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"}}},"thresholds":{"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}},"timebase":{"type":"object","$ref":"#/$defs/provenance","required":["ppm","u_ppm"],"properties":{"ppm":{"type":"number","description":"the tick counter runs fast by ppm: true rate = nominal (1 + ppm 1e-6)"},"u_ppm":{"type":"number","minimum":0}}}}};
-const schema48 = {"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"};
+const schema48 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:calibration-profile:1","title":"henrytick calibration profile, version 1","description":"What calibration found about one tester (docs/calibration.md). Units are SI and in the key names; uncertainties are standard (k = 1). Rules a schema cannot state (a tank index only once, c_f within a factor 2 of nominal_f, u_f at most 20 % of c_f, rising threshold above falling, |ppm| at most 1000) are checked by the reader too.","type":"object","required":["format","version","device_id","updated","tanks"],"properties":{"format":{"const":"henrytick-calibration"},"version":{"const":1},"device_id":{"type":"string","minLength":1},"updated":{"$ref":"#/$defs/time"},"tanks":{"type":"array","description":"empty when no tank is calibrated","items":{"$ref":"#/$defs/tank"}},"thresholds":{"$ref":"#/$defs/thresholds"},"timebase":{"$ref":"#/$defs/timebase"}},"$defs":{"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"method":{"enum":["reference-inductor","parallel-capacitor","threshold-fit","host-clock","entered"],"description":"the procedure that produced the value"},"provenance":{"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}},"tank":{"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"}}},"thresholds":{"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}},"timebase":{"type":"object","$ref":"#/$defs/provenance","required":["ppm","u_ppm"],"properties":{"ppm":{"type":"number","description":"the tick counter runs fast by ppm: true rate = nominal (1 + ppm 1e-6)"},"u_ppm":{"type":"number","minimum":0}}}}};
+const schema49 = {"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"};
 const func1 = ((s) => [...s].length);
-const schema49 = {"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"}}};
-const schema50 = {"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}};
-const schema51 = {"enum":["reference-inductor","parallel-capacitor","threshold-fit","host-clock","entered"],"description":"the procedure that produced the value"};
+const schema50 = {"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"}}};
+const schema51 = {"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}};
+const schema52 = {"enum":["reference-inductor","parallel-capacitor","threshold-fit","host-clock","entered"],"description":"the procedure that produced the value"};
 
 function validate24(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 let vErrors = null;
@@ -1855,7 +2022,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if(((data.method === undefined) && (missing0 = "method")) || ((data.time === undefined) && (missing0 = "time"))){
-validate24.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema50.required,parentSchema:schema50,data}];
+validate24.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema51.required,parentSchema:schema51,data}];
 return false;
 }
 else {
@@ -1863,7 +2030,7 @@ if(data.method !== undefined){
 let data0 = data.method;
 const _errs1 = errors;
 if(!(((((data0 === "reference-inductor") || (data0 === "parallel-capacitor")) || (data0 === "threshold-fit")) || (data0 === "host-clock")) || (data0 === "entered"))){
-validate24.errors = [{instancePath:instancePath+"/method",schemaPath:"#/$defs/method/enum",keyword:"enum",params:{allowedValues: schema51.enum},message:"must be equal to one of the allowed values",schema:schema51.enum,parentSchema:schema51,data:data0}];
+validate24.errors = [{instancePath:instancePath+"/method",schemaPath:"#/$defs/method/enum",keyword:"enum",params:{allowedValues: schema52.enum},message:"must be equal to one of the allowed values",schema:schema52.enum,parentSchema:schema52,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -1879,12 +2046,12 @@ const _errs4 = errors;
 if(errors === _errs4){
 if(typeof data1 === "string"){
 if(!pattern4.test(data1)){
-validate24.errors = [{instancePath:instancePath+"/time",schemaPath:"#/$defs/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema48,data:data1}];
+validate24.errors = [{instancePath:instancePath+"/time",schemaPath:"#/$defs/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema49,data:data1}];
 return false;
 }
 }
 else {
-validate24.errors = [{instancePath:instancePath+"/time",schemaPath:"#/$defs/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema48.type,parentSchema:schema48,data:data1}];
+validate24.errors = [{instancePath:instancePath+"/time",schemaPath:"#/$defs/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema49.type,parentSchema:schema49,data:data1}];
 return false;
 }
 }
@@ -1898,7 +2065,7 @@ if(data.detail !== undefined){
 let data2 = data.detail;
 const _errs6 = errors;
 if(typeof data2 !== "string"){
-validate24.errors = [{instancePath:instancePath+"/detail",schemaPath:"#/properties/detail/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema50.properties.detail.type,parentSchema:schema50.properties.detail,data:data2}];
+validate24.errors = [{instancePath:instancePath+"/detail",schemaPath:"#/properties/detail/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema51.properties.detail.type,parentSchema:schema51.properties.detail,data:data2}];
 return false;
 }
 var valid0 = _errs6 === errors;
@@ -1911,7 +2078,7 @@ var valid0 = true;
 }
 }
 else {
-validate24.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema50.type,parentSchema:schema50,data}];
+validate24.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema51.type,parentSchema:schema51,data}];
 return false;
 }
 }
@@ -1939,7 +2106,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if(((((data.index === undefined) && (missing0 = "index")) || ((data.nominal_f === undefined) && (missing0 = "nominal_f"))) || ((data.c_f === undefined) && (missing0 = "c_f"))) || ((data.u_f === undefined) && (missing0 = "u_f"))){
-validate23.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema49.required,parentSchema:schema49,data}];
+validate23.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema50.required,parentSchema:schema50,data}];
 return false;
 }
 else {
@@ -1947,13 +2114,13 @@ if(data.index !== undefined){
 let data0 = data.index;
 const _errs1 = errors;
 if(!(((typeof data0 == "number") && (!(data0 % 1) && !isNaN(data0))) && (isFinite(data0)))){
-validate23.errors = [{instancePath:instancePath+"/index",schemaPath:"#/properties/index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema49.properties.index.type,parentSchema:schema49.properties.index,data:data0}];
+validate23.errors = [{instancePath:instancePath+"/index",schemaPath:"#/properties/index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema50.properties.index.type,parentSchema:schema50.properties.index,data:data0}];
 return false;
 }
 if(errors === _errs1){
 if((typeof data0 == "number") && (isFinite(data0))){
 if(data0 < 0 || isNaN(data0)){
-validate23.errors = [{instancePath:instancePath+"/index",schemaPath:"#/properties/index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema49.properties.index,data:data0}];
+validate23.errors = [{instancePath:instancePath+"/index",schemaPath:"#/properties/index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema50.properties.index,data:data0}];
 return false;
 }
 }
@@ -1970,12 +2137,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if((typeof data1 == "number") && (isFinite(data1))){
 if(data1 <= 0 || isNaN(data1)){
-validate23.errors = [{instancePath:instancePath+"/nominal_f",schemaPath:"#/properties/nominal_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema49.properties.nominal_f,data:data1}];
+validate23.errors = [{instancePath:instancePath+"/nominal_f",schemaPath:"#/properties/nominal_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema50.properties.nominal_f,data:data1}];
 return false;
 }
 }
 else {
-validate23.errors = [{instancePath:instancePath+"/nominal_f",schemaPath:"#/properties/nominal_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema49.properties.nominal_f.type,parentSchema:schema49.properties.nominal_f,data:data1}];
+validate23.errors = [{instancePath:instancePath+"/nominal_f",schemaPath:"#/properties/nominal_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.nominal_f.type,parentSchema:schema50.properties.nominal_f,data:data1}];
 return false;
 }
 }
@@ -1991,12 +2158,12 @@ const _errs5 = errors;
 if(errors === _errs5){
 if((typeof data2 == "number") && (isFinite(data2))){
 if(data2 <= 0 || isNaN(data2)){
-validate23.errors = [{instancePath:instancePath+"/c_f",schemaPath:"#/properties/c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema49.properties.c_f,data:data2}];
+validate23.errors = [{instancePath:instancePath+"/c_f",schemaPath:"#/properties/c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema50.properties.c_f,data:data2}];
 return false;
 }
 }
 else {
-validate23.errors = [{instancePath:instancePath+"/c_f",schemaPath:"#/properties/c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema49.properties.c_f.type,parentSchema:schema49.properties.c_f,data:data2}];
+validate23.errors = [{instancePath:instancePath+"/c_f",schemaPath:"#/properties/c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.c_f.type,parentSchema:schema50.properties.c_f,data:data2}];
 return false;
 }
 }
@@ -2012,12 +2179,12 @@ const _errs7 = errors;
 if(errors === _errs7){
 if((typeof data3 == "number") && (isFinite(data3))){
 if(data3 < 0 || isNaN(data3)){
-validate23.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema49.properties.u_f,data:data3}];
+validate23.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema50.properties.u_f,data:data3}];
 return false;
 }
 }
 else {
-validate23.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema49.properties.u_f.type,parentSchema:schema49.properties.u_f,data:data3}];
+validate23.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.u_f.type,parentSchema:schema50.properties.u_f,data:data3}];
 return false;
 }
 }
@@ -2033,12 +2200,12 @@ const _errs9 = errors;
 if(errors === _errs9){
 if((typeof data4 == "number") && (isFinite(data4))){
 if(data4 < 0 || isNaN(data4)){
-validate23.errors = [{instancePath:instancePath+"/shared_u_rel",schemaPath:"#/properties/shared_u_rel/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema49.properties.shared_u_rel,data:data4}];
+validate23.errors = [{instancePath:instancePath+"/shared_u_rel",schemaPath:"#/properties/shared_u_rel/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema50.properties.shared_u_rel,data:data4}];
 return false;
 }
 }
 else {
-validate23.errors = [{instancePath:instancePath+"/shared_u_rel",schemaPath:"#/properties/shared_u_rel/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema49.properties.shared_u_rel.type,parentSchema:schema49.properties.shared_u_rel,data:data4}];
+validate23.errors = [{instancePath:instancePath+"/shared_u_rel",schemaPath:"#/properties/shared_u_rel/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.shared_u_rel.type,parentSchema:schema50.properties.shared_u_rel,data:data4}];
 return false;
 }
 }
@@ -2054,12 +2221,12 @@ const _errs11 = errors;
 if(errors === _errs11){
 if((typeof data5 == "number") && (isFinite(data5))){
 if(data5 < 0 || isNaN(data5)){
-validate23.errors = [{instancePath:instancePath+"/shared_offset_u_f",schemaPath:"#/properties/shared_offset_u_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema49.properties.shared_offset_u_f,data:data5}];
+validate23.errors = [{instancePath:instancePath+"/shared_offset_u_f",schemaPath:"#/properties/shared_offset_u_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema50.properties.shared_offset_u_f,data:data5}];
 return false;
 }
 }
 else {
-validate23.errors = [{instancePath:instancePath+"/shared_offset_u_f",schemaPath:"#/properties/shared_offset_u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema49.properties.shared_offset_u_f.type,parentSchema:schema49.properties.shared_offset_u_f,data:data5}];
+validate23.errors = [{instancePath:instancePath+"/shared_offset_u_f",schemaPath:"#/properties/shared_offset_u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.shared_offset_u_f.type,parentSchema:schema50.properties.shared_offset_u_f,data:data5}];
 return false;
 }
 }
@@ -2073,7 +2240,7 @@ if(data.timebase_ppm !== undefined){
 let data6 = data.timebase_ppm;
 const _errs13 = errors;
 if(!((typeof data6 == "number") && (isFinite(data6)))){
-validate23.errors = [{instancePath:instancePath+"/timebase_ppm",schemaPath:"#/properties/timebase_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema49.properties.timebase_ppm.type,parentSchema:schema49.properties.timebase_ppm,data:data6}];
+validate23.errors = [{instancePath:instancePath+"/timebase_ppm",schemaPath:"#/properties/timebase_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.timebase_ppm.type,parentSchema:schema50.properties.timebase_ppm,data:data6}];
 return false;
 }
 var valid0 = _errs13 === errors;
@@ -2086,13 +2253,13 @@ if(data.drive !== undefined){
 let data7 = data.drive;
 const _errs15 = errors;
 if(!(((typeof data7 == "number") && (!(data7 % 1) && !isNaN(data7))) && (isFinite(data7)))){
-validate23.errors = [{instancePath:instancePath+"/drive",schemaPath:"#/properties/drive/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema49.properties.drive.type,parentSchema:schema49.properties.drive,data:data7}];
+validate23.errors = [{instancePath:instancePath+"/drive",schemaPath:"#/properties/drive/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema50.properties.drive.type,parentSchema:schema50.properties.drive,data:data7}];
 return false;
 }
 if(errors === _errs15){
 if((typeof data7 == "number") && (isFinite(data7))){
 if(data7 < 0 || isNaN(data7)){
-validate23.errors = [{instancePath:instancePath+"/drive",schemaPath:"#/properties/drive/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema49.properties.drive,data:data7}];
+validate23.errors = [{instancePath:instancePath+"/drive",schemaPath:"#/properties/drive/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema50.properties.drive,data:data7}];
 return false;
 }
 }
@@ -2112,7 +2279,7 @@ var valid0 = true;
 }
 }
 else {
-validate23.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema49.type,parentSchema:schema49,data}];
+validate23.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema50.type,parentSchema:schema50,data}];
 return false;
 }
 }
@@ -2121,7 +2288,7 @@ return errors === 0;
 }
 validate23.evaluated = {"props":{"index":true,"nominal_f":true,"c_f":true,"u_f":true,"shared_u_rel":true,"shared_offset_u_f":true,"timebase_ppm":true,"drive":true,"method":true,"time":true,"detail":true},"dynamicProps":false,"dynamicItems":false};
 
-const schema53 = {"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}};
+const schema54 = {"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}};
 
 function validate27(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 let vErrors = null;
@@ -2141,7 +2308,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if((((data.ratio === undefined) && (missing0 = "ratio")) || ((data.u_ratio === undefined) && (missing0 = "u_ratio"))) || ((data.thresholds_v === undefined) && (missing0 = "thresholds_v"))){
-validate27.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema53.required,parentSchema:schema53,data}];
+validate27.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema54.required,parentSchema:schema54,data}];
 return false;
 }
 else {
@@ -2149,7 +2316,7 @@ if(data.ratio !== undefined){
 let data0 = data.ratio;
 const _errs1 = errors;
 if(!((typeof data0 == "number") && (isFinite(data0)))){
-validate27.errors = [{instancePath:instancePath+"/ratio",schemaPath:"#/properties/ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema53.properties.ratio.type,parentSchema:schema53.properties.ratio,data:data0}];
+validate27.errors = [{instancePath:instancePath+"/ratio",schemaPath:"#/properties/ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema54.properties.ratio.type,parentSchema:schema54.properties.ratio,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -2164,12 +2331,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if((typeof data1 == "number") && (isFinite(data1))){
 if(data1 < 0 || isNaN(data1)){
-validate27.errors = [{instancePath:instancePath+"/u_ratio",schemaPath:"#/properties/u_ratio/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema53.properties.u_ratio,data:data1}];
+validate27.errors = [{instancePath:instancePath+"/u_ratio",schemaPath:"#/properties/u_ratio/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema54.properties.u_ratio,data:data1}];
 return false;
 }
 }
 else {
-validate27.errors = [{instancePath:instancePath+"/u_ratio",schemaPath:"#/properties/u_ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema53.properties.u_ratio.type,parentSchema:schema53.properties.u_ratio,data:data1}];
+validate27.errors = [{instancePath:instancePath+"/u_ratio",schemaPath:"#/properties/u_ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema54.properties.u_ratio.type,parentSchema:schema54.properties.u_ratio,data:data1}];
 return false;
 }
 }
@@ -2185,12 +2352,12 @@ const _errs5 = errors;
 if(errors === _errs5){
 if(Array.isArray(data2)){
 if(data2.length > 2){
-validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema53.properties.thresholds_v,data:data2}];
+validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema54.properties.thresholds_v,data:data2}];
 return false;
 }
 else {
 if(data2.length < 2){
-validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema53.properties.thresholds_v,data:data2}];
+validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema54.properties.thresholds_v,data:data2}];
 return false;
 }
 else {
@@ -2199,7 +2366,7 @@ if(len0 > 0){
 let data3 = data2[0];
 const _errs7 = errors;
 if(!((typeof data3 == "number") && (isFinite(data3)))){
-validate27.errors = [{instancePath:instancePath+"/thresholds_v/0",schemaPath:"#/properties/thresholds_v/prefixItems/0/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema53.properties.thresholds_v.prefixItems[0].type,parentSchema:schema53.properties.thresholds_v.prefixItems[0],data:data3}];
+validate27.errors = [{instancePath:instancePath+"/thresholds_v/0",schemaPath:"#/properties/thresholds_v/prefixItems/0/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema54.properties.thresholds_v.prefixItems[0].type,parentSchema:schema54.properties.thresholds_v.prefixItems[0],data:data3}];
 return false;
 }
 var valid1 = _errs7 === errors;
@@ -2209,7 +2376,7 @@ if(len0 > 1){
 let data4 = data2[1];
 const _errs9 = errors;
 if(!((typeof data4 == "number") && (isFinite(data4)))){
-validate27.errors = [{instancePath:instancePath+"/thresholds_v/1",schemaPath:"#/properties/thresholds_v/prefixItems/1/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema53.properties.thresholds_v.prefixItems[1].type,parentSchema:schema53.properties.thresholds_v.prefixItems[1],data:data4}];
+validate27.errors = [{instancePath:instancePath+"/thresholds_v/1",schemaPath:"#/properties/thresholds_v/prefixItems/1/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema54.properties.thresholds_v.prefixItems[1].type,parentSchema:schema54.properties.thresholds_v.prefixItems[1],data:data4}];
 return false;
 }
 var valid1 = _errs9 === errors;
@@ -2219,7 +2386,7 @@ var valid1 = _errs9 === errors;
 }
 }
 else {
-validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema53.properties.thresholds_v.type,parentSchema:schema53.properties.thresholds_v,data:data2}];
+validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema54.properties.thresholds_v.type,parentSchema:schema54.properties.thresholds_v,data:data2}];
 return false;
 }
 }
@@ -2233,7 +2400,7 @@ var valid0 = true;
 }
 }
 else {
-validate27.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema53.type,parentSchema:schema53,data}];
+validate27.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema54.type,parentSchema:schema54,data}];
 return false;
 }
 }
@@ -2242,7 +2409,7 @@ return errors === 0;
 }
 validate27.evaluated = {"props":{"ratio":true,"u_ratio":true,"thresholds_v":true,"method":true,"time":true,"detail":true},"dynamicProps":false,"dynamicItems":false};
 
-const schema54 = {"type":"object","$ref":"#/$defs/provenance","required":["ppm","u_ppm"],"properties":{"ppm":{"type":"number","description":"the tick counter runs fast by ppm: true rate = nominal (1 + ppm 1e-6)"},"u_ppm":{"type":"number","minimum":0}}};
+const schema55 = {"type":"object","$ref":"#/$defs/provenance","required":["ppm","u_ppm"],"properties":{"ppm":{"type":"number","description":"the tick counter runs fast by ppm: true rate = nominal (1 + ppm 1e-6)"},"u_ppm":{"type":"number","minimum":0}}};
 
 function validate30(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 let vErrors = null;
@@ -2262,7 +2429,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if(((data.ppm === undefined) && (missing0 = "ppm")) || ((data.u_ppm === undefined) && (missing0 = "u_ppm"))){
-validate30.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema54.required,parentSchema:schema54,data}];
+validate30.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema55.required,parentSchema:schema55,data}];
 return false;
 }
 else {
@@ -2270,7 +2437,7 @@ if(data.ppm !== undefined){
 let data0 = data.ppm;
 const _errs1 = errors;
 if(!((typeof data0 == "number") && (isFinite(data0)))){
-validate30.errors = [{instancePath:instancePath+"/ppm",schemaPath:"#/properties/ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema54.properties.ppm.type,parentSchema:schema54.properties.ppm,data:data0}];
+validate30.errors = [{instancePath:instancePath+"/ppm",schemaPath:"#/properties/ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.ppm.type,parentSchema:schema55.properties.ppm,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -2285,12 +2452,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if((typeof data1 == "number") && (isFinite(data1))){
 if(data1 < 0 || isNaN(data1)){
-validate30.errors = [{instancePath:instancePath+"/u_ppm",schemaPath:"#/properties/u_ppm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema54.properties.u_ppm,data:data1}];
+validate30.errors = [{instancePath:instancePath+"/u_ppm",schemaPath:"#/properties/u_ppm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema55.properties.u_ppm,data:data1}];
 return false;
 }
 }
 else {
-validate30.errors = [{instancePath:instancePath+"/u_ppm",schemaPath:"#/properties/u_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema54.properties.u_ppm.type,parentSchema:schema54.properties.u_ppm,data:data1}];
+validate30.errors = [{instancePath:instancePath+"/u_ppm",schemaPath:"#/properties/u_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.u_ppm.type,parentSchema:schema55.properties.u_ppm,data:data1}];
 return false;
 }
 }
@@ -2303,7 +2470,7 @@ var valid0 = true;
 }
 }
 else {
-validate30.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema54.type,parentSchema:schema54,data}];
+validate30.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema55.type,parentSchema:schema55,data}];
 return false;
 }
 }
@@ -2328,7 +2495,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if((((((data.format === undefined) && (missing0 = "format")) || ((data.version === undefined) && (missing0 = "version"))) || ((data.device_id === undefined) && (missing0 = "device_id"))) || ((data.updated === undefined) && (missing0 = "updated"))) || ((data.tanks === undefined) && (missing0 = "tanks"))){
-validate22.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema47.required,parentSchema:schema47,data}];
+validate22.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema48.required,parentSchema:schema48,data}];
 return false;
 }
 else {
@@ -2336,7 +2503,7 @@ if(data.format !== undefined){
 let data0 = data.format;
 const _errs1 = errors;
 if("henrytick-calibration" !== data0){
-validate22.errors = [{instancePath:instancePath+"/format",schemaPath:"#/properties/format/const",keyword:"const",params:{allowedValue: "henrytick-calibration"},message:"must be equal to constant",schema:"henrytick-calibration",parentSchema:schema47.properties.format,data:data0}];
+validate22.errors = [{instancePath:instancePath+"/format",schemaPath:"#/properties/format/const",keyword:"const",params:{allowedValue: "henrytick-calibration"},message:"must be equal to constant",schema:"henrytick-calibration",parentSchema:schema48.properties.format,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -2349,7 +2516,7 @@ if(data.version !== undefined){
 let data1 = data.version;
 const _errs2 = errors;
 if(1 !== data1){
-validate22.errors = [{instancePath:instancePath+"/version",schemaPath:"#/properties/version/const",keyword:"const",params:{allowedValue: 1},message:"must be equal to constant",schema:1,parentSchema:schema47.properties.version,data:data1}];
+validate22.errors = [{instancePath:instancePath+"/version",schemaPath:"#/properties/version/const",keyword:"const",params:{allowedValue: 1},message:"must be equal to constant",schema:1,parentSchema:schema48.properties.version,data:data1}];
 return false;
 }
 var valid0 = _errs2 === errors;
@@ -2364,12 +2531,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if(typeof data2 === "string"){
 if(func1(data2) < 1){
-validate22.errors = [{instancePath:instancePath+"/device_id",schemaPath:"#/properties/device_id/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters",schema:1,parentSchema:schema47.properties.device_id,data:data2}];
+validate22.errors = [{instancePath:instancePath+"/device_id",schemaPath:"#/properties/device_id/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters",schema:1,parentSchema:schema48.properties.device_id,data:data2}];
 return false;
 }
 }
 else {
-validate22.errors = [{instancePath:instancePath+"/device_id",schemaPath:"#/properties/device_id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema47.properties.device_id.type,parentSchema:schema47.properties.device_id,data:data2}];
+validate22.errors = [{instancePath:instancePath+"/device_id",schemaPath:"#/properties/device_id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema48.properties.device_id.type,parentSchema:schema48.properties.device_id,data:data2}];
 return false;
 }
 }
@@ -2386,12 +2553,12 @@ const _errs6 = errors;
 if(errors === _errs6){
 if(typeof data3 === "string"){
 if(!pattern4.test(data3)){
-validate22.errors = [{instancePath:instancePath+"/updated",schemaPath:"#/$defs/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema48,data:data3}];
+validate22.errors = [{instancePath:instancePath+"/updated",schemaPath:"#/$defs/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema49,data:data3}];
 return false;
 }
 }
 else {
-validate22.errors = [{instancePath:instancePath+"/updated",schemaPath:"#/$defs/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema48.type,parentSchema:schema48,data:data3}];
+validate22.errors = [{instancePath:instancePath+"/updated",schemaPath:"#/$defs/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema49.type,parentSchema:schema49,data:data3}];
 return false;
 }
 }
@@ -2421,7 +2588,7 @@ break;
 }
 }
 else {
-validate22.errors = [{instancePath:instancePath+"/tanks",schemaPath:"#/properties/tanks/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema47.properties.tanks.type,parentSchema:schema47.properties.tanks,data:data4}];
+validate22.errors = [{instancePath:instancePath+"/tanks",schemaPath:"#/properties/tanks/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema48.properties.tanks.type,parentSchema:schema48.properties.tanks,data:data4}];
 return false;
 }
 }
@@ -2463,7 +2630,7 @@ var valid0 = true;
 }
 }
 else {
-validate22.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema47.type,parentSchema:schema47,data}];
+validate22.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema48.type,parentSchema:schema48,data}];
 return false;
 }
 }
@@ -2473,7 +2640,7 @@ return errors === 0;
 validate22.evaluated = {"props":{"format":true,"version":true,"device_id":true,"updated":true,"tanks":true,"thresholds":true,"timebase":true},"dynamicProps":false,"dynamicItems":false};
 
 export const scenario = validate33;
-const schema55 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:scenario:1","title":"henrytick simulated-tester scenario, version 1","description":"A demo part for the simulated tester and, optionally, the bench conditions it is measured under. Units are SI and in the key names.","type":"object","required":["format","version","name","part"],"properties":{"format":{"const":"henrytick-scenario"},"version":{"const":1},"name":{"type":"string","minLength":1},"story":{"type":"string","description":"what the part is and what the scenario shows"},"part":{"type":"object","required":["inductance_h","series_ohm"],"properties":{"inductance_h":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"parallel_ohm":{"type":"number","exclusiveMinimum":0,"description":"core (parallel) loss resistance; absent for an air core"},"self_capacitance_f":{"type":"number","minimum":0,"description":"the part's own self-capacitance (0 when left out)"},"saturation_current_a":{"type":"number","exclusiveMinimum":0,"description":"current where the differential inductance has fallen halfway to its floor"},"saturation_floor_ratio":{"type":"number","exclusiveMinimum":0,"exclusiveMaximum":1,"description":"differential inductance deep in saturation, as a fraction of the small-signal value"}}},"fixture":{"type":"object","properties":{"capacitance_f":{"type":"number","minimum":0,"description":"test-lead capacitance in parallel with the tank (replaces the board's)"},"tank_voltage_coefficient_per_v2":{"type":"number","exclusiveMinimum":0,"description":"k in C(v) = C0 (1 - k v^2): a class II ceramic fitted as the tank"},"chatter":{"type":"object","description":"an intermittent clip contact during the ring: moments open or resistive, at random (seeded)","required":["events_per_s"],"additionalProperties":false,"properties":{"events_per_s":{"type":"number","minimum":0,"maximum":100000,"description":"mean contact events per second of ring"},"open_share":{"type":"number","minimum":0,"maximum":1,"description":"share of events that open the contact (the rest are resistance bursts); 0.5 when left out"},"open_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest open interval, seconds"},"burst_ohm":{"type":"array","items":{"type":"number","minimum":0,"maximum":1000000},"minItems":2,"maxItems":2,"description":"smallest and largest burst resistance, ohms"},"burst_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest burst, seconds"}}}}},"geometry":{"type":"object","description":"the coil geometry a part was computed from (kept for the record; the part values are what the simulator uses)","additionalProperties":{"type":"number"}},"seed":{"type":"integer","description":"noise seed (1 when left out)"}}};
+const schema56 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:scenario:1","title":"henrytick simulated-tester scenario, version 1","description":"A demo part for the simulated tester and, optionally, the bench conditions it is measured under. Units are SI and in the key names.","type":"object","required":["format","version","name","part"],"properties":{"format":{"const":"henrytick-scenario"},"version":{"const":1},"name":{"type":"string","minLength":1},"story":{"type":"string","description":"what the part is and what the scenario shows"},"part":{"type":"object","required":["inductance_h","series_ohm"],"properties":{"inductance_h":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"parallel_ohm":{"type":"number","exclusiveMinimum":0,"description":"core (parallel) loss resistance; absent for an air core"},"self_capacitance_f":{"type":"number","minimum":0,"description":"the part's own self-capacitance (0 when left out)"},"saturation_current_a":{"type":"number","exclusiveMinimum":0,"description":"current where the differential inductance has fallen halfway to its floor"},"saturation_floor_ratio":{"type":"number","exclusiveMinimum":0,"exclusiveMaximum":1,"description":"differential inductance deep in saturation, as a fraction of the small-signal value"}}},"fixture":{"type":"object","properties":{"capacitance_f":{"type":"number","minimum":0,"description":"test-lead capacitance in parallel with the tank (replaces the board's)"},"tank_voltage_coefficient_per_v2":{"type":"number","exclusiveMinimum":0,"description":"k in C(v) = C0 (1 - k v^2): a class II ceramic fitted as the tank"},"chatter":{"type":"object","description":"an intermittent clip contact during the ring: moments open or resistive, at random (seeded)","required":["events_per_s"],"additionalProperties":false,"properties":{"events_per_s":{"type":"number","minimum":0,"maximum":100000,"description":"mean contact events per second of ring"},"open_share":{"type":"number","minimum":0,"maximum":1,"description":"share of events that open the contact (the rest are resistance bursts); 0.5 when left out"},"open_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest open interval, seconds"},"burst_ohm":{"type":"array","items":{"type":"number","minimum":0,"maximum":1000000},"minItems":2,"maxItems":2,"description":"smallest and largest burst resistance, ohms"},"burst_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest burst, seconds"}}}}},"geometry":{"type":"object","description":"the coil geometry a part was computed from (kept for the record; the part values are what the simulator uses)","additionalProperties":{"type":"number"}},"seed":{"type":"integer","description":"noise seed (1 when left out)"}}};
 
 function validate33(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 /*# sourceURL="urn:henrytick:schema:scenario:1" */;
@@ -2490,7 +2657,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if(((((data.format === undefined) && (missing0 = "format")) || ((data.version === undefined) && (missing0 = "version"))) || ((data.name === undefined) && (missing0 = "name"))) || ((data.part === undefined) && (missing0 = "part"))){
-validate33.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema55.required,parentSchema:schema55,data}];
+validate33.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema56.required,parentSchema:schema56,data}];
 return false;
 }
 else {
@@ -2498,7 +2665,7 @@ if(data.format !== undefined){
 let data0 = data.format;
 const _errs1 = errors;
 if("henrytick-scenario" !== data0){
-validate33.errors = [{instancePath:instancePath+"/format",schemaPath:"#/properties/format/const",keyword:"const",params:{allowedValue: "henrytick-scenario"},message:"must be equal to constant",schema:"henrytick-scenario",parentSchema:schema55.properties.format,data:data0}];
+validate33.errors = [{instancePath:instancePath+"/format",schemaPath:"#/properties/format/const",keyword:"const",params:{allowedValue: "henrytick-scenario"},message:"must be equal to constant",schema:"henrytick-scenario",parentSchema:schema56.properties.format,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -2511,7 +2678,7 @@ if(data.version !== undefined){
 let data1 = data.version;
 const _errs2 = errors;
 if(1 !== data1){
-validate33.errors = [{instancePath:instancePath+"/version",schemaPath:"#/properties/version/const",keyword:"const",params:{allowedValue: 1},message:"must be equal to constant",schema:1,parentSchema:schema55.properties.version,data:data1}];
+validate33.errors = [{instancePath:instancePath+"/version",schemaPath:"#/properties/version/const",keyword:"const",params:{allowedValue: 1},message:"must be equal to constant",schema:1,parentSchema:schema56.properties.version,data:data1}];
 return false;
 }
 var valid0 = _errs2 === errors;
@@ -2526,12 +2693,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if(typeof data2 === "string"){
 if(func1(data2) < 1){
-validate33.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters",schema:1,parentSchema:schema55.properties.name,data:data2}];
+validate33.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters",schema:1,parentSchema:schema56.properties.name,data:data2}];
 return false;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema55.properties.name.type,parentSchema:schema55.properties.name,data:data2}];
+validate33.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema56.properties.name.type,parentSchema:schema56.properties.name,data:data2}];
 return false;
 }
 }
@@ -2545,7 +2712,7 @@ if(data.story !== undefined){
 let data3 = data.story;
 const _errs5 = errors;
 if(typeof data3 !== "string"){
-validate33.errors = [{instancePath:instancePath+"/story",schemaPath:"#/properties/story/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema55.properties.story.type,parentSchema:schema55.properties.story,data:data3}];
+validate33.errors = [{instancePath:instancePath+"/story",schemaPath:"#/properties/story/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema56.properties.story.type,parentSchema:schema56.properties.story,data:data3}];
 return false;
 }
 var valid0 = _errs5 === errors;
@@ -2561,7 +2728,7 @@ if(errors === _errs7){
 if(data4 && typeof data4 == "object" && !Array.isArray(data4)){
 let missing1;
 if(((data4.inductance_h === undefined) && (missing1 = "inductance_h")) || ((data4.series_ohm === undefined) && (missing1 = "series_ohm"))){
-validate33.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/required",keyword:"required",params:{missingProperty: missing1},message:"must have required property '"+missing1+"'",schema:schema55.properties.part.required,parentSchema:schema55.properties.part,data:data4}];
+validate33.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/required",keyword:"required",params:{missingProperty: missing1},message:"must have required property '"+missing1+"'",schema:schema56.properties.part.required,parentSchema:schema56.properties.part,data:data4}];
 return false;
 }
 else {
@@ -2571,12 +2738,12 @@ const _errs9 = errors;
 if(errors === _errs9){
 if((typeof data5 == "number") && (isFinite(data5))){
 if(data5 <= 0 || isNaN(data5)){
-validate33.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema55.properties.part.properties.inductance_h,data:data5}];
+validate33.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema56.properties.part.properties.inductance_h,data:data5}];
 return false;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.part.properties.inductance_h.type,parentSchema:schema55.properties.part.properties.inductance_h,data:data5}];
+validate33.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.part.properties.inductance_h.type,parentSchema:schema56.properties.part.properties.inductance_h,data:data5}];
 return false;
 }
 }
@@ -2592,12 +2759,12 @@ const _errs11 = errors;
 if(errors === _errs11){
 if((typeof data6 == "number") && (isFinite(data6))){
 if(data6 <= 0 || isNaN(data6)){
-validate33.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema55.properties.part.properties.series_ohm,data:data6}];
+validate33.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema56.properties.part.properties.series_ohm,data:data6}];
 return false;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.part.properties.series_ohm.type,parentSchema:schema55.properties.part.properties.series_ohm,data:data6}];
+validate33.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.part.properties.series_ohm.type,parentSchema:schema56.properties.part.properties.series_ohm,data:data6}];
 return false;
 }
 }
@@ -2613,12 +2780,12 @@ const _errs13 = errors;
 if(errors === _errs13){
 if((typeof data7 == "number") && (isFinite(data7))){
 if(data7 <= 0 || isNaN(data7)){
-validate33.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema55.properties.part.properties.parallel_ohm,data:data7}];
+validate33.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema56.properties.part.properties.parallel_ohm,data:data7}];
 return false;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.part.properties.parallel_ohm.type,parentSchema:schema55.properties.part.properties.parallel_ohm,data:data7}];
+validate33.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.part.properties.parallel_ohm.type,parentSchema:schema56.properties.part.properties.parallel_ohm,data:data7}];
 return false;
 }
 }
@@ -2634,12 +2801,12 @@ const _errs15 = errors;
 if(errors === _errs15){
 if((typeof data8 == "number") && (isFinite(data8))){
 if(data8 < 0 || isNaN(data8)){
-validate33.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema55.properties.part.properties.self_capacitance_f,data:data8}];
+validate33.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema56.properties.part.properties.self_capacitance_f,data:data8}];
 return false;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.part.properties.self_capacitance_f.type,parentSchema:schema55.properties.part.properties.self_capacitance_f,data:data8}];
+validate33.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.part.properties.self_capacitance_f.type,parentSchema:schema56.properties.part.properties.self_capacitance_f,data:data8}];
 return false;
 }
 }
@@ -2655,12 +2822,12 @@ const _errs17 = errors;
 if(errors === _errs17){
 if((typeof data9 == "number") && (isFinite(data9))){
 if(data9 <= 0 || isNaN(data9)){
-validate33.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema55.properties.part.properties.saturation_current_a,data:data9}];
+validate33.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema56.properties.part.properties.saturation_current_a,data:data9}];
 return false;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.part.properties.saturation_current_a.type,parentSchema:schema55.properties.part.properties.saturation_current_a,data:data9}];
+validate33.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.part.properties.saturation_current_a.type,parentSchema:schema56.properties.part.properties.saturation_current_a,data:data9}];
 return false;
 }
 }
@@ -2676,18 +2843,18 @@ const _errs19 = errors;
 if(errors === _errs19){
 if((typeof data10 == "number") && (isFinite(data10))){
 if(data10 >= 1 || isNaN(data10)){
-validate33.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMaximum",keyword:"exclusiveMaximum",params:{comparison: "<", limit: 1},message:"must be < 1",schema:1,parentSchema:schema55.properties.part.properties.saturation_floor_ratio,data:data10}];
+validate33.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMaximum",keyword:"exclusiveMaximum",params:{comparison: "<", limit: 1},message:"must be < 1",schema:1,parentSchema:schema56.properties.part.properties.saturation_floor_ratio,data:data10}];
 return false;
 }
 else {
 if(data10 <= 0 || isNaN(data10)){
-validate33.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema55.properties.part.properties.saturation_floor_ratio,data:data10}];
+validate33.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema56.properties.part.properties.saturation_floor_ratio,data:data10}];
 return false;
 }
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.part.properties.saturation_floor_ratio.type,parentSchema:schema55.properties.part.properties.saturation_floor_ratio,data:data10}];
+validate33.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.part.properties.saturation_floor_ratio.type,parentSchema:schema56.properties.part.properties.saturation_floor_ratio,data:data10}];
 return false;
 }
 }
@@ -2704,7 +2871,7 @@ var valid1 = true;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema55.properties.part.type,parentSchema:schema55.properties.part,data:data4}];
+validate33.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema56.properties.part.type,parentSchema:schema56.properties.part,data:data4}];
 return false;
 }
 }
@@ -2725,12 +2892,12 @@ const _errs23 = errors;
 if(errors === _errs23){
 if((typeof data12 == "number") && (isFinite(data12))){
 if(data12 < 0 || isNaN(data12)){
-validate33.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema55.properties.fixture.properties.capacitance_f,data:data12}];
+validate33.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema56.properties.fixture.properties.capacitance_f,data:data12}];
 return false;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.fixture.properties.capacitance_f.type,parentSchema:schema55.properties.fixture.properties.capacitance_f,data:data12}];
+validate33.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.fixture.properties.capacitance_f.type,parentSchema:schema56.properties.fixture.properties.capacitance_f,data:data12}];
 return false;
 }
 }
@@ -2746,12 +2913,12 @@ const _errs25 = errors;
 if(errors === _errs25){
 if((typeof data13 == "number") && (isFinite(data13))){
 if(data13 <= 0 || isNaN(data13)){
-validate33.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema55.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data13}];
+validate33.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema56.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data13}];
 return false;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.fixture.properties.tank_voltage_coefficient_per_v2.type,parentSchema:schema55.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data13}];
+validate33.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.fixture.properties.tank_voltage_coefficient_per_v2.type,parentSchema:schema56.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data13}];
 return false;
 }
 }
@@ -2768,14 +2935,14 @@ if(errors === _errs27){
 if(data14 && typeof data14 == "object" && !Array.isArray(data14)){
 let missing2;
 if((data14.events_per_s === undefined) && (missing2 = "events_per_s")){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema55.properties.fixture.properties.chatter.required,parentSchema:schema55.properties.fixture.properties.chatter,data:data14}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema56.properties.fixture.properties.chatter.required,parentSchema:schema56.properties.fixture.properties.chatter,data:data14}];
 return false;
 }
 else {
 const _errs29 = errors;
 for(const key0 in data14){
 if(!(((((key0 === "events_per_s") || (key0 === "open_share")) || (key0 === "open_s")) || (key0 === "burst_ohm")) || (key0 === "burst_s"))){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/additionalProperties",keyword:"additionalProperties",params:{additionalProperty: key0},message:"must NOT have additional properties",schema:false,parentSchema:schema55.properties.fixture.properties.chatter,data:data14}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/additionalProperties",keyword:"additionalProperties",params:{additionalProperty: key0},message:"must NOT have additional properties",schema:false,parentSchema:schema56.properties.fixture.properties.chatter,data:data14}];
 return false;
 break;
 }
@@ -2787,18 +2954,18 @@ const _errs30 = errors;
 if(errors === _errs30){
 if((typeof data15 == "number") && (isFinite(data15))){
 if(data15 > 100000 || isNaN(data15)){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/maximum",keyword:"maximum",params:{comparison: "<=", limit: 100000},message:"must be <= 100000",schema:100000,parentSchema:schema55.properties.fixture.properties.chatter.properties.events_per_s,data:data15}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/maximum",keyword:"maximum",params:{comparison: "<=", limit: 100000},message:"must be <= 100000",schema:100000,parentSchema:schema56.properties.fixture.properties.chatter.properties.events_per_s,data:data15}];
 return false;
 }
 else {
 if(data15 < 0 || isNaN(data15)){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema55.properties.fixture.properties.chatter.properties.events_per_s,data:data15}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema56.properties.fixture.properties.chatter.properties.events_per_s,data:data15}];
 return false;
 }
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.fixture.properties.chatter.properties.events_per_s.type,parentSchema:schema55.properties.fixture.properties.chatter.properties.events_per_s,data:data15}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.fixture.properties.chatter.properties.events_per_s.type,parentSchema:schema56.properties.fixture.properties.chatter.properties.events_per_s,data:data15}];
 return false;
 }
 }
@@ -2814,18 +2981,18 @@ const _errs32 = errors;
 if(errors === _errs32){
 if((typeof data16 == "number") && (isFinite(data16))){
 if(data16 > 1 || isNaN(data16)){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_share,data:data16}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_share,data:data16}];
 return false;
 }
 else {
 if(data16 < 0 || isNaN(data16)){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_share,data:data16}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_share,data:data16}];
 return false;
 }
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.fixture.properties.chatter.properties.open_share.type,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_share,data:data16}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.fixture.properties.chatter.properties.open_share.type,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_share,data:data16}];
 return false;
 }
 }
@@ -2841,12 +3008,12 @@ const _errs34 = errors;
 if(errors === _errs34){
 if(Array.isArray(data17)){
 if(data17.length > 2){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_s,data:data17}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_s,data:data17}];
 return false;
 }
 else {
 if(data17.length < 2){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_s,data:data17}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_s,data:data17}];
 return false;
 }
 else {
@@ -2858,18 +3025,18 @@ const _errs36 = errors;
 if(errors === _errs36){
 if((typeof data18 == "number") && (isFinite(data18))){
 if(data18 > 1 || isNaN(data18)){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_s.items,data:data18}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_s.items,data:data18}];
 return false;
 }
 else {
 if(data18 <= 0 || isNaN(data18)){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_s.items,data:data18}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_s.items,data:data18}];
 return false;
 }
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.fixture.properties.chatter.properties.open_s.items.type,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_s.items,data:data18}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.fixture.properties.chatter.properties.open_s.items.type,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_s.items,data:data18}];
 return false;
 }
 }
@@ -2882,7 +3049,7 @@ break;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema55.properties.fixture.properties.chatter.properties.open_s.type,parentSchema:schema55.properties.fixture.properties.chatter.properties.open_s,data:data17}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema56.properties.fixture.properties.chatter.properties.open_s.type,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_s,data:data17}];
 return false;
 }
 }
@@ -2898,12 +3065,12 @@ const _errs38 = errors;
 if(errors === _errs38){
 if(Array.isArray(data19)){
 if(data19.length > 2){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_ohm,data:data19}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_ohm,data:data19}];
 return false;
 }
 else {
 if(data19.length < 2){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_ohm,data:data19}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_ohm,data:data19}];
 return false;
 }
 else {
@@ -2915,18 +3082,18 @@ const _errs40 = errors;
 if(errors === _errs40){
 if((typeof data20 == "number") && (isFinite(data20))){
 if(data20 > 1000000 || isNaN(data20)){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1000000},message:"must be <= 1000000",schema:1000000,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data20}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1000000},message:"must be <= 1000000",schema:1000000,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data20}];
 return false;
 }
 else {
 if(data20 < 0 || isNaN(data20)){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data20}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data20}];
 return false;
 }
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.fixture.properties.chatter.properties.burst_ohm.items.type,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data20}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.fixture.properties.chatter.properties.burst_ohm.items.type,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data20}];
 return false;
 }
 }
@@ -2939,7 +3106,7 @@ break;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema55.properties.fixture.properties.chatter.properties.burst_ohm.type,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_ohm,data:data19}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema56.properties.fixture.properties.chatter.properties.burst_ohm.type,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_ohm,data:data19}];
 return false;
 }
 }
@@ -2955,12 +3122,12 @@ const _errs42 = errors;
 if(errors === _errs42){
 if(Array.isArray(data21)){
 if(data21.length > 2){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_s,data:data21}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_s,data:data21}];
 return false;
 }
 else {
 if(data21.length < 2){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_s,data:data21}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_s,data:data21}];
 return false;
 }
 else {
@@ -2972,18 +3139,18 @@ const _errs44 = errors;
 if(errors === _errs44){
 if((typeof data22 == "number") && (isFinite(data22))){
 if(data22 > 1 || isNaN(data22)){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_s.items,data:data22}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_s.items,data:data22}];
 return false;
 }
 else {
 if(data22 <= 0 || isNaN(data22)){
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_s.items,data:data22}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_s.items,data:data22}];
 return false;
 }
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.fixture.properties.chatter.properties.burst_s.items.type,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_s.items,data:data22}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.fixture.properties.chatter.properties.burst_s.items.type,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_s.items,data:data22}];
 return false;
 }
 }
@@ -2996,7 +3163,7 @@ break;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema55.properties.fixture.properties.chatter.properties.burst_s.type,parentSchema:schema55.properties.fixture.properties.chatter.properties.burst_s,data:data21}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema56.properties.fixture.properties.chatter.properties.burst_s.type,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_s,data:data21}];
 return false;
 }
 }
@@ -3013,7 +3180,7 @@ var valid3 = true;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema55.properties.fixture.properties.chatter.type,parentSchema:schema55.properties.fixture.properties.chatter,data:data14}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema56.properties.fixture.properties.chatter.type,parentSchema:schema56.properties.fixture.properties.chatter,data:data14}];
 return false;
 }
 }
@@ -3026,7 +3193,7 @@ var valid2 = true;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/fixture",schemaPath:"#/properties/fixture/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema55.properties.fixture.type,parentSchema:schema55.properties.fixture,data:data11}];
+validate33.errors = [{instancePath:instancePath+"/fixture",schemaPath:"#/properties/fixture/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema56.properties.fixture.type,parentSchema:schema56.properties.fixture,data:data11}];
 return false;
 }
 }
@@ -3045,7 +3212,7 @@ for(const key1 in data23){
 let data24 = data23[key1];
 const _errs49 = errors;
 if(!((typeof data24 == "number") && (isFinite(data24)))){
-validate33.errors = [{instancePath:instancePath+"/geometry/" + key1.replace(/~/g, "~0").replace(/\//g, "~1"),schemaPath:"#/properties/geometry/additionalProperties/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.geometry.additionalProperties.type,parentSchema:schema55.properties.geometry.additionalProperties,data:data24}];
+validate33.errors = [{instancePath:instancePath+"/geometry/" + key1.replace(/~/g, "~0").replace(/\//g, "~1"),schemaPath:"#/properties/geometry/additionalProperties/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.geometry.additionalProperties.type,parentSchema:schema56.properties.geometry.additionalProperties,data:data24}];
 return false;
 }
 var valid7 = _errs49 === errors;
@@ -3055,7 +3222,7 @@ break;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/geometry",schemaPath:"#/properties/geometry/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema55.properties.geometry.type,parentSchema:schema55.properties.geometry,data:data23}];
+validate33.errors = [{instancePath:instancePath+"/geometry",schemaPath:"#/properties/geometry/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema56.properties.geometry.type,parentSchema:schema56.properties.geometry,data:data23}];
 return false;
 }
 }
@@ -3069,7 +3236,7 @@ if(data.seed !== undefined){
 let data25 = data.seed;
 const _errs51 = errors;
 if(!(((typeof data25 == "number") && (!(data25 % 1) && !isNaN(data25))) && (isFinite(data25)))){
-validate33.errors = [{instancePath:instancePath+"/seed",schemaPath:"#/properties/seed/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema55.properties.seed.type,parentSchema:schema55.properties.seed,data:data25}];
+validate33.errors = [{instancePath:instancePath+"/seed",schemaPath:"#/properties/seed/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema56.properties.seed.type,parentSchema:schema56.properties.seed,data:data25}];
 return false;
 }
 var valid0 = _errs51 === errors;
@@ -3087,7 +3254,7 @@ var valid0 = true;
 }
 }
 else {
-validate33.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema55.type,parentSchema:schema55,data}];
+validate33.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema56.type,parentSchema:schema56,data}];
 return false;
 }
 }

@@ -10,7 +10,7 @@
  *
  * Time: ticks = raw - zero in 32-bit unsigned arithmetic, so the counter may wrap (every 67 s at
  * 64 MHz) anywhere inside a capture. An edge before the zero shows up as a negative difference
- * (read as signed) and is dropped; one at or beyond 2^30 ticks is a fault.
+ * (read as signed) and is dropped; one at or beyond 2^29 ticks (CM_TICK_LIMIT) is a fault.
  */
 #include "capture-merge.h"
 

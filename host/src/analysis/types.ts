@@ -3,6 +3,9 @@
 
 import { CodedError } from "../coded-error.ts";
 import type { AnalysisErrorCode, ReadingBudgetLine, WarningCode } from "../codes.ts";
+import type { ComparatorTiming } from "./comparator-timing.ts";
+
+export type { ComparatorTiming } from "./comparator-timing.ts";
 
 export interface RingInput {
   /** Timer tick rate, Hz. */
@@ -26,6 +29,15 @@ export interface RingInput {
    * few edges (low Q) this is much of what fixes the decay.
    */
   ring_ended?: boolean;
+  /**
+   * The comparator's timing beyond its thresholds: rise/fall delay skew (with its uncertainty:
+   * from calibration, or the board's prior), the bandwidth of its continuous input noise
+   * (first-passage correction) and its overdrive charge (docs/method.md §2a). When given, the
+   * edge times are corrected for them and what is not known exactly enters U. When absent the
+   * edge model is that of the thresholds alone; a skew the capture shows is then named by the
+   * COMPARATOR_SKEW warning.
+   */
+  comparator?: ComparatorTiming;
 }
 
 /** A condition the user should know about; `code` is stable, `message` says what to do next. */

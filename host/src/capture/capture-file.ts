@@ -5,6 +5,7 @@ import { readFileSync } from "node:fs";
 import { CodedError } from "../coded-error.ts";
 import { writeFileAtomic } from "../fs/atomic-write.ts";
 import { schemaProblem } from "../schemas.ts";
+import type { Warning } from "../analysis/types.ts";
 
 export const CAPTURE_FORMAT = "henrytick-capture";
 export const CAPTURE_VERSION = 1;
@@ -23,7 +24,10 @@ export interface CaptureV1 {
   thresholds_v: [number, number];
   drive?: { supply_v: number; series_ohm: number };
   range?: { drive_index: number; tank_index: number; charge_us: number; edge_limit: number; timeout_ms: number; quiet_us: number };
-  device?: { id: string; firmware_version: string; protocol_version: number; transport: string };
+  /** The tester; `clamp_v` and `max_timeout_ms` (its profile's) let a saved capture be judged for part faults as the reading was. */
+  device?: { id: string; firmware_version: string; protocol_version: number; transport: string; clamp_v?: number; max_timeout_ms?: number };
+  /** Warnings the reading added to the analysis's own (automatic ranging's), so that a re-analysis gives them too. */
+  reading_warnings?: Warning[];
   meta?: { label?: string; time?: string; end_reason?: string; [k: string]: unknown };
   /** Which values the capture's tank_c_f, thresholds_v and tick_hz came from. */
   calibration?: { source: string; tank_calibrated: boolean; nominal_tank_c_f: number; nominal_tick_hz: number; timebase_ppm: number; timebase_u_ppm?: number };

@@ -39,7 +39,7 @@ export function captureFromDevice(
     },
     device: {
       id: identity.device_id, firmware_version: identity.firmware_version,
-      protocol_version: identity.protocol_version, transport,
+      protocol_version: identity.protocol_version, transport, clamp_v: profile.clamp_v, max_timeout_ms: profile.max_timeout_ms,
     },
     meta: { ...(label ? { label } : {}), time: new Date().toISOString(), end_reason: raw.end_reason },
     edges: raw.ticks.map((t, i) => [t, raw.levels[i]] as [number, number]),

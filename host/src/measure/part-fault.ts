@@ -130,13 +130,22 @@ const has = (r: Reading, code: WarningCode) => r.analysis.warnings.some((w) => w
 const fixedAdvice = "drop --drive and --tank to let automatic ranging choose";
 
 /**
- * Judges a reading for part faults; null when it can be given as a result. `profile` gives the
- * clamp voltage and the tester's longest window.
+ * What the judgement needs to know of the tester: its clamp voltage and its longest window
+ * (its profile's; a saved capture records them in `device`). A check that needs one it does not
+ * know is skipped (a capture saved before they were recorded).
  */
-export function judgeReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v" | "max_timeout_ms">): PartFault | null {
+export type TesterLimits = Partial<Pick<DeviceProfile, "clamp_v" | "max_timeout_ms">>;
+
+/** The tester limits a capture records. */
+export function limitsOf(capture: CaptureV1): TesterLimits {
+  return { clamp_v: capture.device?.clamp_v, max_timeout_ms: capture.device?.max_timeout_ms };
+}
+
+/** Judges a reading for part faults; null when it can be given as a result. */
+export function judgeReading(r: Reading, profile: TesterLimits): PartFault | null {
   const a = r.analysis;
   const L = formatSi(a.inductance_h, "H", 3);
-  if (has(r, WarningCode.SUSPECTED_CLIPPING) && a.amplitude_v >= CLIP_CLAMP_RATIO * profile.clamp_v) {
+  if (has(r, WarningCode.SUSPECTED_CLIPPING) && profile.clamp_v !== undefined && a.amplitude_v >= CLIP_CLAMP_RATIO * profile.clamp_v) {
     return {
       code: "FIRST_CYCLE_CLIPPED",
       message: `the first cycle was clipped: the ring started at about ${a.amplitude_v.toFixed(1)} V, at the ${profile.clamp_v} V clamp, and its first edges sit off the ring model, so the value (about ${L}) rests on a distorted ring. The part carries more current or has more inductance than the setting was chosen for: lower the drive current (a larger drive resistor, a shorter --charge-us) or ${fixedAdvice}, then measure again`,
@@ -177,7 +186,7 @@ export function judgeReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v" 
       const window = full ? (limit ? `the ${limit}-edge buffer` : "the edge buffer") : r.settings.timeout_ms > 0 ? `the ${r.settings.timeout_ms} ms window` : "the capture window";
       return {
         code: "RING_OUTLASTS_WINDOW",
-        message: `the ring outlasts the capture: it was still ${end_ratio.toFixed(1)}x the threshold when ${window} ended, so the decay — and with it Q, ESR and the check that this is one clean ring — is not seen (about ${L}). The part rings longer than this window (a large inductance or a very high Q): ${fixedAdvice} (it sizes the window to the ring, up to ${profile.max_timeout_ms} ms), or use a shorter --charge-us so the ring starts lower and ends sooner`,
+        message: `the ring outlasts the capture: it was still ${end_ratio.toFixed(1)}x the threshold when ${window} ended, so the decay — and with it Q, ESR and the check that this is one clean ring — is not seen (about ${L}). The part rings longer than this window (a large inductance or a very high Q): ${fixedAdvice} (it sizes the window to the ring${profile.max_timeout_ms !== undefined ? `, up to ${profile.max_timeout_ms} ms` : ""}), or use a shorter --charge-us so the ring starts lower and ends sooner`,
       };
     }
   }
@@ -200,12 +209,12 @@ export function explainFailure(e: MeasureError): MeasureError {
 }
 
 /**
- * What `measurePart` does with a capture after the pulse: analysis, a failure explained, and the
- * reading judged. Throws a PartFaultError for a part fault unless `keep_suspect`.
+ * A capture analysed and judged the way `measurePart` judges a reading: a failure explained, a
+ * part fault refused with a PartFaultError unless `keep_suspect` (then the reading is marked
+ * suspect). `profile` defaults to what the capture records of its tester; `henrytick analyze`
+ * reads saved captures this way, with `keep_suspect`, so it prints what `measure` printed.
  */
-export function judgeCapture(
-  capture: CaptureV1, profile: Pick<DeviceProfile, "clamp_v" | "max_timeout_ms">, opts: { keep_suspect?: boolean } = {},
-): Reading {
+export function judgeCapture(capture: CaptureV1, profile: TesterLimits = limitsOf(capture), opts: { keep_suspect?: boolean } = {}): Reading {
   let analysis;
   try {
     analysis = analyzeCapture(capture);
@@ -221,7 +230,7 @@ export function judgeCapture(
 }
 
 /** The final step of a reading: judged, then returned, marked suspect on request, or refused. */
-export function finishReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v" | "max_timeout_ms">, opts: { keep_suspect?: boolean }): Reading {
+export function finishReading(r: Reading, profile: TesterLimits, opts: { keep_suspect?: boolean }): Reading {
   const fault = judgeReading(r, profile);
   if (!fault) return r;
   if (opts.keep_suspect) return { ...r, suspect: fault };

@@ -42,7 +42,10 @@ export function analyzeCapture(capture: CaptureV1): RingAnalysis {
 export function fitCapture(capture: CaptureV1): { fit: FitState; analysis: RingAnalysis } {
   try {
     const fit = fitRing(ringInputFromCapture(capture));
-    return { fit, analysis: withUnaccountedCapacitance(analyzeFit(fit), capture) };
+    const analysis = withUnaccountedCapacitance(analyzeFit(fit), capture);
+    // Warnings the reading added when it was taken (automatic ranging's) come back with it.
+    if (capture.reading_warnings?.length) analysis.warnings = [...analysis.warnings, ...capture.reading_warnings];
+    return { fit, analysis };
   } catch (e) {
     const m = e instanceof AnalysisError ? new MeasureError(e.code, e.message) : e;
     if (m instanceof MeasureError) m.capture ??= capture;
