@@ -143,6 +143,7 @@ export const FILE_ERROR_MEANINGS = {
   BAD_SCENARIO: "a scenario file breaks its schema or cannot be read (the field is named)",
   LOG_HEADER_MISMATCH: "a sort log has other columns than this version writes",
   LOG_UNWRITABLE: "a sort log cannot be opened for appending",
+  LOG_DISAGREE: "a sort's CSV log holds rows its JSON Lines log does not",
   NO_SUCH_FOLDER: "the folder to write into does not exist",
   WRITE_DENIED: "writing is not allowed there",
   DISK_FULL: "no space left to write",
