@@ -43,13 +43,14 @@ export type {
 } from "./calibration/index.ts";
 // Bench workflows: values as the trade writes them, conformity decisions, sorting, winding,
 // continuous reading, reports, and an abortable reading.
-export { parseValue, ValueSyntaxError } from "./values/parse-value.ts";
+export { parseValue, parseValueIn, ValueError, ValueSyntaxError } from "./values/parse-value.ts";
+export { MEASURABLE_L_H, MEASURABLE_TEXT } from "./values/range.ts";
 export type { ParsedValue } from "./values/parse-value.ts";
 export { parseTolerance, toleranceLimits, TOLERANCE_LETTERS } from "./values/tolerance.ts";
 export type { Tolerance, Limits } from "./values/tolerance.ts";
 export { seriesValues, nearestPreferred, parseSeriesName, SERIES_NAMES } from "./values/e-series.ts";
 export type { SeriesName, Preferred } from "./values/e-series.ts";
-export { formatMeasured, formatValueOnly, iecCode } from "./values/format-value.ts";
+export { formatMeasured, formatPercent, formatValue, formatValueOnly, iecCode } from "./values/format-value.ts";
 export { decideConformity, conformanceProbability, normalCdf, roundProbability } from "./workflows/conformity.ts";
 export type { Decision, ConformityResult } from "./workflows/conformity.ts";
 export { classify } from "./workflows/classify.ts";
