@@ -6,7 +6,8 @@
 //
 // Frames, both directions (little-endian), as the port's header comment describes:
 //   0xE5 0x1D | type u8 | seq u8 | length u16 | payload | CRC-16/CCITT-FALSE u16 over type..payload
-// HELLO (1) → 0x81 device id and tick factor; PULSE (2) → 0x82 the capture's entries.
+// HELLO (1) → 0x81 device id and tick factor; PULSE (2) → 0x82 the capture's entries;
+// TIME (3) → 0x83 the host's clock in board ticks (the port's idle time follows it).
 
 import { createServer } from "node:net";
 import type { Server, Socket } from "node:net";
@@ -18,6 +19,7 @@ import { SimFrontEnd } from "./sim-tester.ts";
 export const LINK_MAGIC = [0xe5, 0x1d] as const;
 export const LINK_HELLO = 1;
 export const LINK_PULSE = 2;
+export const LINK_TIME = 3;
 export const LINK_REPLY = 0x80;
 const HEADER_BYTES = 6;
 const MAX_PAYLOAD = 0xffff;
@@ -103,7 +105,8 @@ export class EdgeServer {
   frontEnd: SimFrontEnd;
   /** Pulses (charge > 0) answered, in order. */
   readonly pulses: PulseRecord[] = [];
-  readonly stats = { hellos: 0, listens: 0, rejected_frames: 0, bytes_out: 0, core: -1 };
+  readonly stats = { hellos: 0, listens: 0, time_syncs: 0, rejected_frames: 0, bytes_out: 0, core: -1 };
+  private readonly started_ms = performance.now();
   private server: Server | null = null;
   private socket: Socket | null = null;
   private readonly fault?: LinkFault;
@@ -193,6 +196,15 @@ export class EdgeServer {
       out.setUint32(0, this.frontEnd.board.device_id >>> 0, true);
       out.setUint32(4, tickFactor(this.frontEnd.board, cpu_hz), true);
       return encodeLinkFrame({ type: LINK_HELLO | LINK_REPLY, seq: f.seq, payload: new Uint8Array(out.buffer) });
+    }
+    if (f.type === LINK_TIME) {
+      // The host's monotonic clock as the board's crystal counts it (its error included).
+      this.stats.time_syncs++;
+      const t = this.frontEnd.board.timer;
+      const ticks = BigInt(Math.round(((performance.now() - this.started_ms) / 1000) * t.tick_hz * (1 + t.ppm * 1e-6)));
+      const out = new DataView(new ArrayBuffer(8));
+      out.setBigUint64(0, ticks, true);
+      return encodeLinkFrame({ type: LINK_TIME | LINK_REPLY, seq: f.seq, payload: new Uint8Array(out.buffer) });
     }
     if (f.type === LINK_PULSE && f.payload.length >= 16) {
       const drive = f.payload[0];
