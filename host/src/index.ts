@@ -5,6 +5,11 @@ export { DeviceClient } from "./device/client.ts";
 export type { MeasureSettings, ClientOptions } from "./device/client.ts";
 export type { DeviceIdentity, DeviceProfile } from "./device/profile.ts";
 export { CodedError } from "./coded-error.ts";
+export {
+  WarningCode, CautionCode, PartFaultCode, ErrorCode, NO_USABLE_RING, isNoUsableRing, isAnalysisFailure,
+  WARNING_MEANINGS, CAUTION_MEANINGS, PART_FAULT_MEANINGS, ERROR_GROUPS,
+} from "./codes.ts";
+export type { AnalysisErrorCode, CalibrationErrorCode } from "./codes.ts";
 export { packageVersion } from "./version.ts";
 export { DeviceError, DeviceTimeoutError } from "./device/errors.ts";
 export { ProtocolError } from "./device/frames.ts";
@@ -12,7 +17,7 @@ export { TransportError } from "./transport/transport.ts";
 export type { Transport } from "./transport/transport.ts";
 export { listSerialPorts } from "./transport/serial-transport.ts";
 export type { SerialPortInfo } from "./transport/serial-transport.ts";
-export { measurePart, analyzeCapture, MeasureError, PartFaultError } from "./measure/measure-part.ts";
+export { measurePart, analyzeCapture, judgeCapture, MeasureError, PartFaultError } from "./measure/measure-part.ts";
 export type { Reading, MeasureOptions } from "./measure/measure-part.ts";
 export type { MeasureEvent, MeasurePhase, PulseEvent, StepEvent, CautionEvent, DoneEvent, SettingInfo } from "./measure/events.ts";
 export { buildResult } from "./measure/result.ts";
@@ -48,7 +53,7 @@ export type { Tolerance, Limits } from "./values/tolerance.ts";
 export { seriesValues, nearestPreferred, parseSeriesName, SERIES_NAMES } from "./values/e-series.ts";
 export type { SeriesName, Preferred } from "./values/e-series.ts";
 export { formatMeasured, formatValueOnly, iecCode } from "./values/format-value.ts";
-export { decideConformity, conformanceProbability, normalCdf } from "./workflows/conformity.ts";
+export { decideConformity, conformanceProbability, normalCdf, roundProbability } from "./workflows/conformity.ts";
 export type { Decision, ConformityResult } from "./workflows/conformity.ts";
 export { classify } from "./workflows/classify.ts";
 export type { ToleranceSpec, Classification } from "./workflows/classify.ts";

@@ -79,7 +79,8 @@ describe("the packed henrytick package", () => {
     const installed = join(app, "node_modules", "henrytick");
     const list = files(installed);
     expect(list.filter((f) => f.startsWith("src/") || f.endsWith(".ts") && !f.endsWith(".d.ts") || /\.test\./.test(f))).toEqual([]);
-    for (const f of ["README.md", "LICENSE", "package.json", "bin/henrytick.js", "dist/index.js", "dist/index.d.ts", "firmware/henrytick.wasm", `scenarios/${SCENARIO}.json`]) {
+    const schemas = ["capture", "result", "calibration-profile", "scenario"].map((n) => `schemas/${n}.schema.json`);
+    for (const f of ["README.md", "LICENSE", "package.json", "bin/henrytick.js", "dist/index.js", "dist/index.d.ts", "firmware/henrytick.wasm", `scenarios/${SCENARIO}.json`, ...schemas]) {
       expect(list, f).toContain(f);
     }
     expect(readFileSync(join(installed, "LICENSE"), "utf8")).toBe(readFileSync(join(ROOT, "LICENSE"), "utf8"));
@@ -134,6 +135,11 @@ try {
   it("keeps internals out of reach: only the entry points the exports map names resolve", () => {
     const r = run(process.execPath, ["--input-type=module", "-e", `import("henrytick/dist/sim/sim-tester.js").then(() => console.log("reachable"), (e) => console.log(e.code))`], { cwd: app });
     expect(r.stdout.trim()).toBe("ERR_PACKAGE_PATH_NOT_EXPORTED");
+    // The file-format schemas are public: another application resolves them by package path.
+    const schema = run(process.execPath, ["--input-type=module", "-e",
+      `import { createRequire } from "node:module"; import { readFileSync } from "node:fs";
+       console.log(JSON.parse(readFileSync(createRequire(import.meta.url).resolve("henrytick/schemas/capture.schema.json"), "utf8")).$id)`], { cwd: app });
+    expect(schema.stdout.trim(), schema.stderr).toBe("urn:henrytick:schema:capture:1");
   });
 
   it("runs a simulated measure and an analyze through the installed binary", () => {

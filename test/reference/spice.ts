@@ -6,7 +6,9 @@ import { spawnSync } from "node:child_process";
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
+import type { CaptureV1 } from "../../host/src/capture/capture-file.ts";
 import type { FrontEndCircuit } from "../../host/src/physics/front-end-circuit.ts";
+import { Random } from "../../host/src/sim/random.ts";
 
 export const hasNgspice = spawnSync("ngspice", ["--version"], { encoding: "utf8" }).status === 0;
 
@@ -125,4 +127,104 @@ export function slope(x: number[], y: number[]): number {
     sxx += (x[i] - mx) ** 2;
   }
   return sxy / sxx;
+}
+
+/**
+ * The ring-down of docs/method.md §1 as a netlist: L (with Rs, optional core loss Rp) across C,
+ * released with current I0 and zero voltage; the output is the voltage across C, positive first.
+ * Optional, for the part-fault checks: a winding whose flux saturates, i = phi/L + k phi³ (a
+ * differential inductance falling with current; built from a flux integrator and a behavioural
+ * current source), and a clamp across the ring (a diode in series with a stand-off voltage, 1 Ω).
+ */
+export interface SpiceRingPart {
+  l_h: number;
+  rs_ohm: number;
+  rp_ohm?: number;
+  c_f: number;
+  i0_a: number;
+  /** Cubic flux law coefficient k, A/Wb³ (0: linear). */
+  cubic_a_per_wb3?: number;
+  /** Clamp stand-off voltage across the ring (absent: none). */
+  clamp_v?: number;
+}
+
+export function ringNetlist(p: SpiceRingPart, step_s: number, stop_s: number): string {
+  const k = p.cubic_a_per_wb3 ?? 0;
+  let winding: string;
+  if (k === 0) {
+    winding = `L1 a m ${p.l_h} ic=${p.i0_a}\n`;
+  } else {
+    // Flux phi0 that carries I0: Newton on phi/L + k phi^3 = I0.
+    let phi = p.i0_a * p.l_h;
+    for (let i = 0; i < 60; i++) phi -= (phi / p.l_h + k * phi ** 3 - p.i0_a) / (1 / p.l_h + 3 * k * phi ** 2);
+    winding = `BV 0 phi I=V(a,m)\nCPHI phi 0 1 ic=${phi}\nRPHI phi 0 1e15\nBL a m I=V(phi)/${p.l_h}+${k}*V(phi)*V(phi)*V(phi)\n`;
+  }
+  const clamp = p.clamp_v !== undefined ? `DCL b x DCLAMP\nVCL x a ${p.clamp_v}\n.model DCLAMP D(IS=1e-12 N=1 RS=1)\n` : "";
+  return `* docs/method.md §1 ring-down
+${winding}R1 m b ${p.rs_ohm}
+C1 a b ${p.c_f} ic=0
+${p.rp_ohm ? `RP a b ${p.rp_ohm}\n` : ""}${clamp}RG b 0 1e-3
+.options reltol=1e-9 abstol=1e-15 vntol=1e-12 method=trap
+.tran ${step_s} ${stop_s} 0 ${step_s} uic
+.control
+run
+wrdata OUT v(b,a)
+quit 0
+.endc
+.end
+`;
+}
+
+/** w0 and alpha of the linear §1 circuit. */
+export function ringCircuit(p: SpiceRingPart): { w0: number; alpha: number } {
+  const gp = p.rp_ohm ? 1 / p.rp_ohm : 0;
+  const w0sq = (1 + p.rs_ohm * gp) / (p.l_h * p.c_f);
+  return { w0: Math.sqrt(w0sq), alpha: p.rs_ohm / (2 * p.l_h) + gp / (2 * p.c_f) };
+}
+
+/** ngspice transient of a §1 ring, step 1/2000 of a period, until it is well below `floor_v`. */
+export function spiceRing(p: SpiceRingPart, floor_v = 0.004, max_periods = 4000): SpiceRun {
+  const { w0, alpha } = ringCircuit(p);
+  const period = (2 * Math.PI) / w0;
+  const a0 = p.i0_a / (p.c_f * w0);
+  const stop = Math.min(Math.log(a0 / floor_v) / alpha, max_periods * period);
+  return runSpice(ringNetlist(p, period / 2000, stop), 0);
+}
+
+/**
+ * A plain comparator with hysteresis on a sampled ring (starts low): crossings interpolated
+ * between samples, Gaussian jitter of half a tick (docs/method.md §3: jitter >= tick/2 for the
+ * tick²/12 model), floored to ticks.
+ */
+export function hysteresisEdges(ring: SpiceRun, vh: number, vl: number, tick_hz: number, seed: number): { ticks: number[]; levels: number[] } {
+  const rng = new Random(seed);
+  const ticks: number[] = [];
+  const levels: number[] = [];
+  let high = false;
+  for (let i = 1; i < ring.t_s.length; i++) {
+    const level = high ? vl : vh;
+    const a = ring.v_v[i - 1] - level;
+    const b = ring.v_v[i] - level;
+    if (high ? a > 0 && b <= 0 : a < 0 && b >= 0) {
+      const t = ring.t_s[i - 1] + (a / (a - b)) * (ring.t_s[i] - ring.t_s[i - 1]) + (0.5 / tick_hz) * rng.normal();
+      ticks.push(Math.max(Math.floor(t * tick_hz), ticks.length ? ticks[ticks.length - 1] : 0));
+      levels.push(high ? 0 : 1);
+      high = !high;
+    }
+  }
+  return { ticks, levels };
+}
+
+/** A capture record of edges on a known tank, as `analyze` would read it from a file (uncalibrated unless said). */
+export function spiceCapture(
+  edges: { ticks: number[]; levels: number[] }, o: { tick_hz: number; tank_c_f: number; thresholds_v: [number, number]; tank_calibrated?: boolean; tank_c_u_f?: number },
+): CaptureV1 {
+  return {
+    format: "henrytick-capture", version: 1, tick_hz: o.tick_hz, tank_c_f: o.tank_c_f,
+    ...(o.tank_c_u_f !== undefined ? { tank_c_u_f: o.tank_c_u_f } : {}),
+    thresholds_v: o.thresholds_v,
+    calibration: { source: "ngspice reference", tank_calibrated: o.tank_calibrated ?? false, nominal_tank_c_f: o.tank_c_f, nominal_tick_hz: o.tick_hz, timebase_ppm: 0 },
+    meta: { end_reason: "quiet" },
+    edges: edges.ticks.map((t, i) => [t, edges.levels[i]] as [number, number]),
+  };
 }

@@ -1,7 +1,7 @@
 // From a stored profile to what a measurement applies (AppliedCalibration, measure/), and what
 // the uncertainty budget should say about the timebase. Pure.
 
-import type { AppliedCalibration } from "../measure/capture-build.ts";
+import type { AppliedCalibration } from "./applied.ts";
 import type { CalibrationProfile, TankEntry } from "./profile-schema.ts";
 import type { TimebaseKnowledge } from "./uncertainty-budget.ts";
 

@@ -3,7 +3,7 @@
 // its calibration without the caller handling files.
 
 import type { DeviceClient } from "../device/client.ts";
-import type { AppliedCalibration } from "../measure/capture-build.ts";
+import type { AppliedCalibration } from "./applied.ts";
 import { appliedCalibration } from "./apply-profile.ts";
 import type { CalibrationProfile } from "./profile-schema.ts";
 import type { StoreOptions } from "./profile-store.ts";

@@ -2,15 +2,23 @@
 // JSON with units in the key names. Validation names the first bad field, so a hand-edited or
 // damaged file is refused with a message that says where it went wrong.
 
+import { schemaProblem } from "../schemas.ts";
 import { CalibrationError } from "./errors.ts";
 
 export const PROFILE_FORMAT = "henrytick-calibration";
 export const PROFILE_VERSION = 1;
 
+/**
+ * The procedures a profile value can come from: a reference inductor, a coil rung without and
+ * with a known capacitor, the comparator threshold fit, the crystal timed against the host's
+ * clock, or a value entered by hand (e.g. a crystal error from a frequency counter).
+ */
+export const CALIBRATION_METHODS = ["reference-inductor", "parallel-capacitor", "threshold-fit", "host-clock", "entered"] as const;
+export type CalibrationMethod = (typeof CALIBRATION_METHODS)[number];
+
 /** How a value was obtained, and when: kept with each value so a user can judge it later. */
 export interface Provenance {
-  /** Procedure name: reference-inductor, parallel-capacitor, threshold-fit, timebase-ticks, entered. */
-  method: string;
+  method: CalibrationMethod;
   /** ISO 8601 time of the procedure. */
   time: string;
   /** One line: the reference used, the settings, the readings it rests on. */
@@ -73,99 +81,54 @@ function bad(field: string, what: string): never {
 
 type Obj = Record<string, unknown>;
 
-function object(v: unknown, field: string): Obj {
-  if (typeof v !== "object" || v === null || Array.isArray(v)) bad(field, "must be an object");
-  return v as Obj;
-}
-
-function num(o: Obj, key: string, path: string, rule: "positive" | "nonneg" | "any"): number {
-  const v = o[key];
-  if (typeof v !== "number" || !Number.isFinite(v)) bad(path + key, `must be a finite number, got ${JSON.stringify(v) ?? "nothing"}`);
-  if (rule === "positive" && !(v > 0)) bad(path + key, `must be positive, got ${v}`);
-  if (rule === "nonneg" && !(v >= 0)) bad(path + key, `must not be negative, got ${v}`);
-  return v;
-}
-
-function text(o: Obj, key: string, path: string): string {
-  const v = o[key];
-  if (typeof v !== "string" || v.length === 0) bad(path + key, "must be a non-empty string");
-  return v;
-}
-
-function time(o: Obj, key: string, path: string): string {
-  const v = text(o, key, path);
-  if (Number.isNaN(Date.parse(v))) bad(path + key, `must be an ISO 8601 time, got ${JSON.stringify(v)}`);
-  return v;
-}
-
-function provenance(o: Obj, path: string): Provenance {
-  return { method: text(o, "method", path), time: time(o, "time", path), detail: typeof o.detail === "string" ? o.detail : "" };
-}
-
-function tankEntry(v: unknown, i: number, seen: Set<number>): TankEntry {
+function tankEntry(o: Obj, i: number, seen: Set<number>): TankEntry {
   const path = `tanks[${i}].`;
-  const o = object(v, `tanks[${i}]`);
-  const index = num(o, "index", path, "nonneg");
-  if (!Number.isInteger(index)) bad(path + "index", `must be an integer tank index, got ${index}`);
-  if (seen.has(index)) bad(path + "index", `tank ${index} appears twice`);
-  seen.add(index);
-  const e: TankEntry = {
-    index,
-    nominal_f: num(o, "nominal_f", path, "positive"),
-    c_f: num(o, "c_f", path, "positive"),
-    u_f: num(o, "u_f", path, "nonneg"),
-    shared_u_rel: o.shared_u_rel === undefined ? 0 : num(o, "shared_u_rel", path, "nonneg"),
-    timebase_ppm: o.timebase_ppm === undefined ? 0 : num(o, "timebase_ppm", path, "any"),
-    ...(o.drive !== undefined ? { drive: num(o, "drive", path, "nonneg") } : {}),
-    ...(o.shared_offset_u_f !== undefined ? { shared_offset_u_f: num(o, "shared_offset_u_f", path, "nonneg") } : {}),
-    ...provenance(o, path),
-  };
-  if (e.drive !== undefined && !Number.isInteger(e.drive)) bad(path + "drive", `must be an integer drive index, got ${e.drive}`);
+  const e = { ...o, shared_u_rel: o.shared_u_rel ?? 0, timebase_ppm: o.timebase_ppm ?? 0, detail: o.detail ?? "" } as unknown as TankEntry;
+  if (seen.has(e.index)) bad(path + "index", `tank ${e.index} appears twice`);
+  seen.add(e.index);
   // A calibrated tank far from its nominal value is a mix-up (wrong index, wrong unit), not a tolerance.
   if (e.c_f < 0.5 * e.nominal_f || e.c_f > 2 * e.nominal_f) bad(path + "c_f", `${e.c_f} F is not within a factor 2 of the nominal ${e.nominal_f} F`);
   if (e.u_f > 0.2 * e.c_f) bad(path + "u_f", `${e.u_f} F is over 20 % of c_f: not a calibration`);
   return e;
 }
 
-function thresholdEntry(v: unknown): ThresholdEntry {
-  const path = "thresholds.";
-  const o = object(v, "thresholds");
-  const tv = o.thresholds_v;
-  if (!Array.isArray(tv) || tv.length !== 2 || !tv.every((x) => typeof x === "number" && Number.isFinite(x))) {
-    bad(path + "thresholds_v", "must be [rising, falling], two finite numbers of volts");
-  }
-  if (!(tv[0] > tv[1])) bad(path + "thresholds_v", `rising (${tv[0]}) must be above falling (${tv[1]})`);
-  return { ratio: num(o, "ratio", path, "any"), u_ratio: num(o, "u_ratio", path, "nonneg"), thresholds_v: [tv[0], tv[1]], ...provenance(o, path) };
+function thresholdEntry(o: Obj): ThresholdEntry {
+  const e = { ...o, detail: o.detail ?? "" } as unknown as ThresholdEntry;
+  const tv = e.thresholds_v;
+  if (!(tv[0] > tv[1])) bad("thresholds.thresholds_v", `rising (${tv[0]}) must be above falling (${tv[1]})`);
+  return e;
 }
 
-function timebaseEntry(v: unknown): TimebaseEntry {
-  const path = "timebase.";
-  const o = object(v, "timebase");
-  const ppm = num(o, "ppm", path, "any");
+function timebaseEntry(o: Obj): TimebaseEntry {
+  const e = { ...o, detail: o.detail ?? "" } as unknown as TimebaseEntry;
   // A crystal off by more than 0.1 % is broken or the measurement was; either way do not apply it.
-  if (Math.abs(ppm) > 1000) bad(path + "ppm", `${ppm} ppm is beyond any working crystal (|ppm| <= 1000)`);
-  return { ppm, u_ppm: num(o, "u_ppm", path, "nonneg"), ...provenance(o, path) };
+  if (Math.abs(e.ppm) > 1000) bad("timebase.ppm", `${e.ppm} ppm is beyond any working crystal (|ppm| <= 1000)`);
+  return e;
 }
 
-/** Checks a parsed profile; throws CalibrationError naming the first bad field. */
+/**
+ * Checks a parsed profile (its shape by schemas/calibration-profile.schema.json, then the rules a
+ * schema cannot state); throws CalibrationError naming the first bad field. Optional numbers left
+ * out read as 0, a missing detail as "".
+ */
 export function validateProfile(raw: unknown): CalibrationProfile {
-  const o = object(raw, "(root)");
-  if (o.format !== PROFILE_FORMAT) bad("format", `must be "${PROFILE_FORMAT}", got ${JSON.stringify(o.format) ?? "nothing"}`);
-  if (typeof o.version !== "number" || !Number.isInteger(o.version)) bad("version", "must be an integer");
-  if (o.version !== PROFILE_VERSION) {
+  if (typeof raw !== "object" || raw === null || Array.isArray(raw)) bad("(root)", "must be an object");
+  const o = raw as Obj;
+  if (typeof o.version === "number" && Number.isInteger(o.version) && o.version !== PROFILE_VERSION && o.format === PROFILE_FORMAT) {
     throw new CalibrationError(
       "PROFILE_VERSION",
       `calibration profile field "version": ${o.version} is not readable by this build (reads ${PROFILE_VERSION}); ` +
         (o.version > PROFILE_VERSION ? "update henrytick, or " : "") + 'restore the previous profile ("henrytick calibrate restore") or calibrate again',
     );
   }
-  const device_id = text(o, "device_id", "");
-  const updated = time(o, "updated", "");
-  if (!Array.isArray(o.tanks)) bad("tanks", "must be an array (empty when no tank is calibrated)");
+  const problem = schemaProblem("calibration-profile", raw);
+  if (problem) bad(problem.field, problem.message);
   const seen = new Set<number>();
-  const tanks = o.tanks.map((t, i) => tankEntry(t, i, seen));
-  const p: CalibrationProfile = { format: PROFILE_FORMAT, version: PROFILE_VERSION, device_id, updated, tanks };
-  if (o.thresholds !== undefined) p.thresholds = thresholdEntry(o.thresholds);
-  if (o.timebase !== undefined) p.timebase = timebaseEntry(o.timebase);
+  const p: CalibrationProfile = {
+    format: PROFILE_FORMAT, version: PROFILE_VERSION, device_id: o.device_id as string, updated: o.updated as string,
+    tanks: (o.tanks as Obj[]).map((t, i) => tankEntry(t, i, seen)),
+  };
+  if (o.thresholds !== undefined) p.thresholds = thresholdEntry(o.thresholds as Obj);
+  if (o.timebase !== undefined) p.timebase = timebaseEntry(o.timebase as Obj);
   return p;
 }

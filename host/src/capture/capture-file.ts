@@ -4,6 +4,8 @@
 import { readFileSync } from "node:fs";
 import { CodedError } from "../coded-error.ts";
 import { writeFileAtomic } from "../fs/atomic-write.ts";
+import { schemaProblem } from "../schemas.ts";
+import type { Warning } from "../analysis/types.ts";
 
 export const CAPTURE_FORMAT = "henrytick-capture";
 export const CAPTURE_VERSION = 1;
@@ -22,7 +24,10 @@ export interface CaptureV1 {
   thresholds_v: [number, number];
   drive?: { supply_v: number; series_ohm: number };
   range?: { drive_index: number; tank_index: number; charge_us: number; edge_limit: number; timeout_ms: number; quiet_us: number };
-  device?: { id: string; firmware_version: string; protocol_version: number; transport: string };
+  /** The tester; `clamp_v` and `max_timeout_ms` (its profile's) let a saved capture be judged for part faults as the reading was. */
+  device?: { id: string; firmware_version: string; protocol_version: number; transport: string; clamp_v?: number; max_timeout_ms?: number };
+  /** Warnings the reading added to the analysis's own (automatic ranging's), so that a re-analysis gives them too. */
+  reading_warnings?: Warning[];
   meta?: { label?: string; time?: string; end_reason?: string; [k: string]: unknown };
   /** Which values the capture's tank_c_f, thresholds_v and tick_hz came from. */
   calibration?: { source: string; tank_calibrated: boolean; nominal_tank_c_f: number; nominal_tick_hz: number; timebase_ppm: number; timebase_u_ppm?: number };
@@ -39,13 +44,10 @@ function fail(where: string, what: string): never {
   throw new CaptureFileError(`capture ${where}: ${what}`);
 }
 
-function positiveNumber(o: Record<string, unknown>, key: string): number {
-  const v = o[key];
-  if (typeof v !== "number" || !Number.isFinite(v) || v <= 0) fail(`field "${key}"`, `must be a positive number, got ${JSON.stringify(v)}`);
-  return v;
-}
-
-/** Checks a parsed object against capture v1; throws CaptureFileError naming the first problem. */
+/**
+ * Checks a parsed object against capture v1 (its shape by schemas/capture.schema.json, then the
+ * rules a schema cannot state); throws CaptureFileError naming the first problem.
+ */
 export function validateCapture(raw: unknown): CaptureV1 {
   if (typeof raw !== "object" || raw === null || Array.isArray(raw)) fail("file", "is not a JSON object");
   const o = raw as Record<string, unknown>;
@@ -53,23 +55,19 @@ export function validateCapture(raw: unknown): CaptureV1 {
   if (o.version !== CAPTURE_VERSION) {
     fail('field "version"', `version ${JSON.stringify(o.version)} is not supported; this henrytick reads version ${CAPTURE_VERSION} (update henrytick to read newer files)`);
   }
-  positiveNumber(o, "tick_hz");
-  positiveNumber(o, "tank_c_f");
-  if (o.tank_c_u_f !== undefined) positiveNumber(o, "tank_c_u_f");
-  const th = o.thresholds_v;
-  if (!Array.isArray(th) || th.length !== 2 || !th.every((x) => typeof x === "number" && Number.isFinite(x))) {
-    fail('field "thresholds_v"', "must be [rising, falling] in volts");
+  const problem = schemaProblem("capture", raw);
+  if (problem) {
+    // An edge's parts by name: "edges[12]: tick must be ...", "edges[12]: level must be ...".
+    const edge = /^(edges\[\d+\])(?:\[([01])\])?$/.exec(problem.field);
+    if (edge) fail(edge[1], `${edge[2] === undefined ? "" : edge[2] === "0" ? "tick " : "level "}${problem.message}`);
+    fail(`field "${problem.field}"`, problem.message);
   }
+  const th = o.thresholds_v as [number, number];
   if (!(th[0] > th[1])) fail('field "thresholds_v"', "rising threshold must be above the falling one");
-  const edges = o.edges;
-  if (!Array.isArray(edges)) fail('field "edges"', "must be an array of [tick, level]");
+  const edges = o.edges as [number, number][];
   let prev = -1;
   for (let i = 0; i < edges.length; i++) {
-    const e = edges[i];
-    if (!Array.isArray(e) || e.length !== 2) fail(`edges[${i}]`, "must be [tick, level]");
-    const [t, l] = e as unknown[];
-    if (typeof t !== "number" || !Number.isSafeInteger(t) || t < 0) fail(`edges[${i}]`, `tick must be a non-negative integer, got ${JSON.stringify(t)}`);
-    if (l !== 0 && l !== 1) fail(`edges[${i}]`, `level must be 0 or 1, got ${JSON.stringify(l)}`);
+    const t = edges[i][0];
     if (t < prev) fail(`edges[${i}]`, `tick ${t} is earlier than the previous edge (${prev})`);
     prev = t;
   }

@@ -42,7 +42,10 @@ export function analyzeCapture(capture: CaptureV1): RingAnalysis {
 export function fitCapture(capture: CaptureV1): { fit: FitState; analysis: RingAnalysis } {
   try {
     const fit = fitRing(ringInputFromCapture(capture));
-    return { fit, analysis: withUnaccountedCapacitance(analyzeFit(fit), capture) };
+    const analysis = withUnaccountedCapacitance(analyzeFit(fit), capture);
+    // Warnings the reading added when it was taken (automatic ranging's) come back with it.
+    if (capture.reading_warnings?.length) analysis.warnings = [...analysis.warnings, ...capture.reading_warnings];
+    return { fit, analysis };
   } catch (e) {
     const m = e instanceof AnalysisError ? new MeasureError(e.code, e.message) : e;
     if (m instanceof MeasureError) m.capture ??= capture;
@@ -51,7 +54,7 @@ export function fitCapture(capture: CaptureV1): { fit: FitState; analysis: RingA
 }
 
 /** Codes of a capture that held no usable ring (as opposed to a link or setting problem). */
-export const NO_USABLE_RING = ["TOO_FEW_EDGES", "NO_RING", "EMPTY_CAPTURE"];
+export { NO_USABLE_RING } from "../codes.ts";
 
 export function describeSetting(client: DeviceClient, s: { drive: number; tank: number; charge_us: number }): string {
   const r = client.profile.drives[s.drive].ohm;

@@ -1,10 +1,12 @@
 // Simulated-tester scenarios: a demo part (and its bench story) in a JSON file with units in the
 // keys. Malformed files are refused with the offending field named.
 
+import type { ContactChatter } from "./fixture-chatter.ts";
 import { readFileSync, readdirSync } from "node:fs";
 import { basename, dirname, join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { CodedError } from "../coded-error.ts";
+import { schemaProblem } from "../schemas.ts";
 
 export interface PartModel {
   inductance_h: number;
@@ -25,6 +27,8 @@ export interface FixtureModel {
   capacitance_f?: number;
   /** Tank voltage coefficient k, C(v) = C0 (1 - k v^2): a class II ceramic fitted as the tank. */
   tank_voltage_coefficient_per_v2?: number;
+  /** An intermittent clip contact during the ring (sim/fixture-chatter.ts). */
+  chatter?: ContactChatter;
 }
 
 export interface Scenario {
@@ -46,54 +50,32 @@ export class ScenarioError extends CodedError<"BAD_SCENARIO"> {
   }
 }
 
-function positive(obj: Record<string, unknown>, key: string, path: string, optional = false): number | undefined {
-  const v = obj[key];
-  if (v === undefined || v === null) {
-    if (optional) return undefined;
-    throw new ScenarioError(path + key, "is missing (a positive number in SI units is required)");
-  }
-  const zeroAllowed = key === "self_capacitance_f" || key === "capacitance_f";
-  if (typeof v !== "number" || !Number.isFinite(v) || v < 0 || (v === 0 && !zeroAllowed)) {
-    throw new ScenarioError(path + key, `must be a positive finite number, got ${JSON.stringify(v)}`);
-  }
-  return v;
-}
-
-/** Checks a parsed scenario object; throws ScenarioError naming the first bad field. */
+/**
+ * Checks a parsed scenario object (its shape by schemas/scenario.schema.json); throws
+ * ScenarioError naming the first bad field. A missing self-capacitance reads as 0, a missing
+ * story as "", a missing seed as 1.
+ */
 export function validateScenario(raw: unknown): Scenario {
-  if (typeof raw !== "object" || raw === null || Array.isArray(raw)) {
-    throw new ScenarioError("(root)", "must be a JSON object");
-  }
+  if (typeof raw !== "object" || raw === null || Array.isArray(raw)) throw new ScenarioError("(root)", "must be a JSON object");
   const o = raw as Record<string, unknown>;
-  if (o.format !== "henrytick-scenario") throw new ScenarioError("format", 'must be "henrytick-scenario"');
-  if (o.version !== 1) throw new ScenarioError("version", `unsupported version ${JSON.stringify(o.version)}; this build reads version 1`);
-  if (typeof o.name !== "string" || o.name.length === 0) throw new ScenarioError("name", "must be a non-empty string");
-  const story = typeof o.story === "string" ? o.story : "";
-  if (typeof o.part !== "object" || o.part === null) throw new ScenarioError("part", "must be an object");
-  const p = o.part as Record<string, unknown>;
+  if (o.format === "henrytick-scenario" && o.version !== 1) throw new ScenarioError("version", `unsupported version ${JSON.stringify(o.version)}; this build reads version 1`);
+  const problem = schemaProblem("scenario", raw);
+  if (problem) throw new ScenarioError(problem.field, problem.message);
+  const p = o.part as PartModel;
   const part: PartModel = {
-    inductance_h: positive(p, "inductance_h", "part.")!,
-    series_ohm: positive(p, "series_ohm", "part.")!,
-    parallel_ohm: positive(p, "parallel_ohm", "part.", true),
-    self_capacitance_f: positive(p, "self_capacitance_f", "part.", true) ?? 0,
-    saturation_current_a: positive(p, "saturation_current_a", "part.", true),
-    saturation_floor_ratio: positive(p, "saturation_floor_ratio", "part.", true),
+    inductance_h: p.inductance_h,
+    series_ohm: p.series_ohm,
+    parallel_ohm: p.parallel_ohm,
+    self_capacitance_f: p.self_capacitance_f ?? 0,
+    saturation_current_a: p.saturation_current_a,
+    saturation_floor_ratio: p.saturation_floor_ratio,
   };
-  if (part.saturation_floor_ratio !== undefined && part.saturation_floor_ratio >= 1) {
-    throw new ScenarioError("part.saturation_floor_ratio", "must be below 1 (a fraction of the small-signal inductance)");
-  }
-  let fixture: FixtureModel | undefined;
-  if (o.fixture !== undefined) {
-    if (typeof o.fixture !== "object" || o.fixture === null || Array.isArray(o.fixture)) throw new ScenarioError("fixture", "must be an object");
-    const f = o.fixture as Record<string, unknown>;
-    fixture = {
-      capacitance_f: positive(f, "capacitance_f", "fixture.", true),
-      tank_voltage_coefficient_per_v2: positive(f, "tank_voltage_coefficient_per_v2", "fixture.", true),
-    };
-  }
-  const seed = o.seed === undefined ? 1 : o.seed;
-  if (typeof seed !== "number" || !Number.isInteger(seed)) throw new ScenarioError("seed", "must be an integer");
-  return { format: "henrytick-scenario", version: 1, name: o.name, story, part, ...(fixture ? { fixture } : {}), seed };
+  const f = o.fixture as FixtureModel | undefined;
+  const fixture = f ? { capacitance_f: f.capacitance_f, tank_voltage_coefficient_per_v2: f.tank_voltage_coefficient_per_v2, ...(f.chatter ? { chatter: f.chatter } : {}) } : undefined;
+  return {
+    format: "henrytick-scenario", version: 1, name: o.name as string, story: (o.story as string | undefined) ?? "", part,
+    ...(fixture ? { fixture } : {}), seed: (o.seed as number | undefined) ?? 1,
+  };
 }
 
 /** Folder of the demo scenarios shipped with the host package. */

@@ -4,6 +4,7 @@
 // part per line; `q` or the end of input finishes). I/O lives here; the decisions are in
 // sort-session.ts and part-presence.ts.
 
+import { ErrorCode } from "../codes.ts";
 import type { DeviceClient } from "../device/client.ts";
 import { MeasureError, measurePart, type MeasureOptions } from "../measure/measure-part.ts";
 import { buildResult } from "../measure/result.ts";
@@ -102,7 +103,7 @@ async function observe(o: SortRunOptions): Promise<Observed> {
     return { kind: "ring", result: buildResult(r.analysis, r.capture) };
   } catch (e) {
     if (!(e instanceof MeasureError)) throw e;
-    if (e.code === "NO_RING") return { kind: "open" };
+    if (e.code === ErrorCode.NO_RING) return { kind: "open" };
     return { kind: "unreadable", code: e.code, message: e.message };
   }
 }

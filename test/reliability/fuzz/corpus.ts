@@ -77,7 +77,7 @@ export function corpus(): Corpus {
     format: "henrytick-calibration", version: 1, device_id: identity.device_id, updated: now,
     tanks: [{ index: 1, nominal_f: 10e-9, c_f: 10.02e-9, u_f: 0.01e-9, shared_u_rel: 0.0005, timebase_ppm: 0, drive: 2, method: "reference-inductor", time: now, detail: "fuzz corpus" }],
     thresholds: { ratio: -0.14, u_ratio: 0.01, thresholds_v: [0.035, -0.005], method: "threshold-fit", time: now, detail: "fuzz corpus" },
-    timebase: { ppm: 11, u_ppm: 2, method: "timebase-ticks", time: now, detail: "fuzz corpus" },
+    timebase: { ppm: 11, u_ppm: 2, method: "host-clock", time: now, detail: "fuzz corpus" },
   };
   cached = {
     commands,
