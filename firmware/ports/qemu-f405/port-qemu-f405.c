@@ -34,6 +34,8 @@
  *        (0x82) server: count u32 (<= capacity), count entries u32
  *   TIME   (3)  port: nothing
  *        (0x83) server: the host's clock u64, in profile ticks at the board's crystal rate
+ * Before computing a pulse's ring the server sends WORKING (0x42, same seq, no payload), so a
+ * server that is alive but busy is told from one that has stalled.
  */
 #include <stdint.h>
 #include <string.h>
@@ -86,14 +88,20 @@
 /* QEMU's STM32F405 model runs the core (and SysTick's processor clock) at 168 MHz, with no clock
    tree to program: RCC is a placeholder there, so the enables below are what a real chip needs. */
 #define CPU_HZ 168000000u
-#define SYSTICK_PERIOD (CPU_HZ / 1000u) /* 1 ms */
+/* SysTick's longest period (24 bits, 0.1 s): it only extends the counter, and every wake-up it
+   causes costs QEMU a pass of its main loop. TIM2 wakes the timed sleeps. */
+#define SYSTICK_PERIOD (1u << 24)
 /* 64 MHz / 168 MHz in 0.32 fixed point, until the edge server sends the board's own factor. */
 #define TICK_MUL_NOMINAL 1636178018u
 #define TICKS_PER_SECOND 64000000u
-/* Longest silence inside a front-end exchange before the link counts as stalled: turns of a
-   loop of about six instructions, some 0.2 s of host time at QEMU's usual pace (well inside the
-   host's 2 s reply margin, far beyond the edge server's few milliseconds per reply). */
-#define LINK_TIMEOUT_SPINS 10000000u
+/* Longest silence inside a front-end exchange before the link counts as stalled (see fe_getc):
+   the server's first frame comes from its event loop at once (for a pulse, a WORKING frame
+   before it computes the ring), and a frame's bytes follow one another. */
+#ifndef LINK_TIMEOUT_WAKES
+#define LINK_TIMEOUT_WAKES 8000u
+#endif
+/* While the server computes a ring (after its WORKING frame): many times longer. */
+#define LINK_WORKING_WAKES (100u * LINK_TIMEOUT_WAKES)
 
 #ifndef QEMU_PORT_CORE
 #define QEMU_PORT_CORE 1
@@ -241,20 +249,25 @@ void USART2_IRQHandler(void) {
 }
 
 /*
- * Next front-end byte, or -1 when none arrived within LINK_TIMEOUT_SPINS turns of the loop. It
- * waits by executing, not sleeping: under `-icount sleep=off` a sleeping core's time jumps to the
- * next timer at once, so only executed instructions make the timeout a span the host's edge server
- * can keep within. The loop touches RAM only: a loop reading the timer registers would keep QEMU's
- * I/O thread from delivering the bytes it waits for.
+ * Next front-end byte, or -1 when none arrived within LINK_TIMEOUT_WAKES wake-ups. The core sleeps
+ * between bytes: a busy core would compete with QEMU's I/O thread, which delivers them one at a
+ * time. Under `-icount sleep=off` each sleep ends at once at the next timer deadline (SysTick,
+ * 0.1 s of emulated time, all of it hidden from the firmware), so the timeout is a count of QEMU
+ * main-loop passes: some 0.5 s of host time or more, far beyond the edge server's few ms per reply.
  */
+static uint32_t fe_budget = LINK_TIMEOUT_WAKES;
 static int fe_getc(void) {
-  for (uint32_t n = 0; n < LINK_TIMEOUT_SPINS; n++) {
+  for (uint32_t wakes = 0; wakes < fe_budget; wakes++) {
+    uint32_t m = irq_save();
     if (fe_tail != fe_head) {
       uint8_t b = fe_ring[fe_tail];
       fe_tail = (fe_tail + 1u) % FE_RING;
-      if (!(USART_CR1(USART2) & CR1_RXNEIE)) USART_CR1(USART2) |= CR1_RXNEIE;
+      USART_CR1(USART2) |= CR1_RXNEIE;
+      irq_restore(m);
       return b;
     }
+    wait_for_interrupt();
+    irq_restore(m);
   }
   return -1;
 }
@@ -265,6 +278,7 @@ static int fe_getc(void) {
 #define LINK_PULSE 2u
 #define LINK_TIME 3u
 #define LINK_REPLY 0x80u
+#define LINK_WORKING 0x40u
 
 static uint16_t crc16_update(uint16_t crc, uint8_t byte) {
   crc ^= (uint16_t)byte << 8;
@@ -302,9 +316,11 @@ static void link_send(uint8_t type, const uint8_t* payload, uint16_t len) {
  * length, or -1 on a stall, a CRC error or a malformed frame.
  */
 static int32_t link_receive(uint8_t type, uint8_t* small, uint32_t small_len, uint8_t* bulk, uint32_t bulk_max) {
+  fe_budget = LINK_TIMEOUT_WAKES;
   for (;;) {
     int c = fe_getc();
     if (c < 0) return -1;
+    fe_budget = LINK_TIMEOUT_WAKES;
     if ((uint8_t)c != LINK_MAGIC0) continue; /* resynchronise on the frame start */
     c = fe_getc();
     if (c < 0) return -1;
@@ -319,6 +335,7 @@ static int32_t link_receive(uint8_t type, uint8_t* small, uint32_t small_len, ui
     }
     uint32_t len = (uint32_t)head[2] | ((uint32_t)head[3] << 8);
     int mine = head[0] == (type | LINK_REPLY) && head[1] == link_seq;
+    int working = head[0] == (type | LINK_WORKING) && head[1] == link_seq && len == 0;
     if (mine && len > small_len + bulk_max) return -1; /* longer than asked for: malformed */
     for (uint32_t i = 0; i < len; i++) {
       c = fe_getc();
@@ -333,7 +350,9 @@ static int32_t link_receive(uint8_t type, uint8_t* small, uint32_t small_len, ui
     if (hi < 0) return -1;
     if ((uint16_t)(lo | (hi << 8)) != crc) return -1; /* corrupted: its seq cannot be trusted either */
     if (mine) return (int32_t)len;
-    /* A complete, intact frame for an earlier request: skip it and wait for ours. */
+    /* The server is computing our reply: wait longer for its first byte. Any other complete,
+       intact frame is for an earlier request: skip it and wait for ours. */
+    fe_budget = working ? LINK_WORKING_WAKES : LINK_TIMEOUT_WAKES;
   }
 }
 
@@ -547,16 +566,19 @@ int main(void) {
     start_firmware();
     HT_RT_DONE();
   }
-  int idled = 0;
+  int idled = 0, at_line_start = 1;
   for (;;) {
     if (!HT_RT_TRY()) {
       Z_henrytick_free(&fw);
       start_firmware();
       continue;
     }
-    if (idled && rx_tail != rx_head) clock_sync(); /* the host speaks after an idle spell */
+    /* The host starts a line after an idle spell: catch up with its clock. Not within a line,
+       whose bytes arrive one by one: the sync then reads the host's clock as the line begins. */
+    if (idled && at_line_start && rx_tail != rx_head) clock_sync();
     idled = 0;
     while (rx_tail != rx_head && Z_henrytickZ_fw_rx(&fw, rx_ring[rx_tail])) {
+      at_line_start = rx_ring[rx_tail] == '\n';
       rx_tail = (rx_tail + 1u) % RX_RING;
       USART_CR1(USART1) |= CR1_RXNEIE;
     }
