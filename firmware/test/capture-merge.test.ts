@@ -12,6 +12,7 @@ import { describe, expect, it } from "vitest";
 import { encodeCommand } from "../../host/src/device/frames.ts";
 import { SimTester } from "../../host/src/sim/sim-tester.ts";
 import { NATIVE_DIR, buildCaptureMergeCheck, hasHostGcc } from "../ports/native-build.ts";
+import { fnv1a } from "./capture-checksum.ts";
 import { ScriptedPort } from "./scripted-port.ts";
 
 const note = hasHostGcc ? "" : " (skipped: Debian package gcc not installed)";
@@ -216,11 +217,20 @@ describe(`capture merge on the host${note}`, () => {
     expect(run(["open 1000 8 100", "edge 990 1", "edge 1100 1", "final", "end"]).fault).toBe(SAME_LEVEL);
   });
 
-  it.skipIf(!hasHostGcc)(`refuses edges at or beyond 2^30 ticks, and port-reported faults${note}`, () => {
-    const late = run(["open 0 8 100", "edge 5 1", `edge ${2 ** 30} 0`, "final", "end"]);
+  it.skipIf(!hasHostGcc)(`refuses edges at or beyond 2^29 ticks (the firmware reads bit 30 of an entry as a flag), and port-reported faults${note}`, () => {
+    const late = run(["open 0 8 100", "edge 5 1", `edge ${2 ** 29} 0`, "final", "end"]);
     expect(late).toMatchObject({ fault: LATE, entries: [11, FAULT_ENTRY + LATE] });
+    const last = run(["open 0 8 100", "edge 5 1", `edge ${2 ** 29 - 1} 0`, "final", "end"]);
+    expect(last).toMatchObject({ fault: 0, entries: [11, (2 ** 29 - 1) * 2] });
     const port = run(["open 0 8 100", "edge 5 1", "step 6", "portfault", "edge 7 0", "final", "end"]);
     expect(port).toMatchObject({ fault: PORT, entries: [11, FAULT_ENTRY + PORT] });
+  });
+
+  it("the firmware takes extended-mode ticks up to 2^29 - 1 and refuses 2^29, the merge's limit (bit 30 reads as a flag)", () => {
+    const ms = Buffer.from(encodeCommand("MS", [1, 2, 200, 100, 100, 1000])).toString("hex");
+    const read = (tick: number) => ScriptedPort.runScript(`capture 2 100 2001 200 ${(tick * 2 + 1) | 0}\nrx ${ms}\n`).text();
+    expect(read(2 ** 29 - 1)).toMatch(/^CH .* 2\*/m);
+    expect(read(2 ** 29)).toMatch(/^ER 11 MS/m);
   });
 
   it.skipIf(!hasHostGcc)(`stops at the capacity without a fault (the firmware reports the buffer full)${note}`, () => {
@@ -244,15 +254,3 @@ describe(`capture merge on the host${note}`, () => {
     expect(r.lines[0]).toBe(`replay ${e.length} 0 ${fnv1a(e)}`);
   });
 });
-
-/** 32-bit FNV-1a over the words' little-endian bytes (as cm_checksum). */
-export function fnv1a(words: number[]): number {
-  let h = 2166136261;
-  for (const w of words) {
-    for (let b = 0; b < 4; b++) {
-      h ^= (w >>> (8 * b)) & 0xff;
-      h = Math.imul(h, 16777619) >>> 0;
-    }
-  }
-  return h >>> 0;
-}

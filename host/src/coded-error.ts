@@ -1,7 +1,9 @@
-// The library's errors carry a stable `code` (documented in docs/library.md) beside a message
-// that says what to do next; callers branch on the code, people read the message.
+// The library's errors carry a stable `code` (listed in codes.ts, documented in docs/codes.md)
+// beside a message that says what to do next; callers branch on the code, people read the message.
 
-export class CodedError<C extends string = string> extends Error {
+import type { ErrorCode } from "./codes.ts";
+
+export class CodedError<C extends ErrorCode = ErrorCode> extends Error {
   constructor(
     readonly code: C,
     message: string,

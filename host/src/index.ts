@@ -5,6 +5,11 @@ export { DeviceClient } from "./device/client.ts";
 export type { MeasureSettings, ClientOptions } from "./device/client.ts";
 export type { DeviceIdentity, DeviceProfile } from "./device/profile.ts";
 export { CodedError } from "./coded-error.ts";
+export {
+  WarningCode, CautionCode, PartFaultCode, ErrorCode, NO_USABLE_RING, isNoUsableRing, isAnalysisFailure,
+  WARNING_MEANINGS, CAUTION_MEANINGS, PART_FAULT_MEANINGS, ERROR_GROUPS,
+} from "./codes.ts";
+export type { AnalysisErrorCode, CalibrationErrorCode } from "./codes.ts";
 export { packageVersion } from "./version.ts";
 export { DeviceError, DeviceTimeoutError } from "./device/errors.ts";
 export { ProtocolError } from "./device/frames.ts";
@@ -12,7 +17,7 @@ export { TransportError } from "./transport/transport.ts";
 export type { Transport } from "./transport/transport.ts";
 export { listSerialPorts } from "./transport/serial-transport.ts";
 export type { SerialPortInfo } from "./transport/serial-transport.ts";
-export { measurePart, analyzeCapture, MeasureError, PartFaultError } from "./measure/measure-part.ts";
+export { measurePart, analyzeCapture, judgeCapture, MeasureError, PartFaultError } from "./measure/measure-part.ts";
 export type { Reading, MeasureOptions } from "./measure/measure-part.ts";
 export type { MeasureEvent, MeasurePhase, PulseEvent, StepEvent, CautionEvent, DoneEvent, SettingInfo } from "./measure/events.ts";
 export { buildResult } from "./measure/result.ts";
@@ -21,23 +26,20 @@ export { readCaptureFile, writeCaptureFile, parseCapture, CaptureFileError } fro
 export type { CaptureV1 } from "./capture/capture-file.ts";
 export { analyzeRing, AnalysisError } from "./analysis/index.ts";
 export type { RingInput, RingAnalysis } from "./analysis/index.ts";
-export { SimTester } from "./sim/sim-tester.ts";
+// The demo parts openTester({ scenario }) measures; the simulated tester itself, its board models
+// and demo helpers are the henrytick/sim subpath (sim/index.ts).
 export { loadScenario, listScenarios } from "./sim/scenario.ts";
 export type { Scenario, PartModel } from "./sim/scenario.ts";
-export { PtyDevice, PtyDeviceError } from "./sim/pty-device.ts";
-export type { PtyDeviceOptions } from "./sim/pty-device.ts";
-export { referenceBoard, nominalBoard } from "./sim/board-model.ts";
-export type { BoardModel } from "./sim/board-model.ts";
-export { expectedReading } from "./sim/front-end.ts";
 export {
   CalibrationError, validateProfile, emptyProfile, loadProfile, saveProfile, restorePreviousProfile, configDir, profilePaths,
   appliedCalibration, deviceCalibration, calibrateWithReference, calibrateWithParallelCapacitor, calibrateThresholds,
-  measureTimebase, timebaseFromSamples, measureSelfCapacitance, solveTwoCapacitance, singleTankBudget, twoTankBudget,
-  propagate, monteCarlo,
+  measureTimebase, measureSelfCapacitance,
 } from "./calibration/index.ts";
+// The methods behind them (GUM propagation, Monte Carlo, the two-capacitance solution, budgets)
+// are the henrytick/calibration subpath (calibration/index.ts).
 export type {
-  CalibrationProfile, TankEntry, StoreOptions, ReferenceInductor, ParallelCapacitor, TickCounter, HostClock, TimebaseResult,
-  TwoCapacitanceInput, TwoCapacitanceResult, SelfCapacitanceReading, UncertaintyBudget, BudgetLine, DeviceCalibration,
+  CalibrationProfile, TankEntry, StoreOptions, ReferenceInductor, ParallelCapacitor, TimebaseResult,
+  SelfCapacitanceReading, UncertaintyBudget, BudgetLine, DeviceCalibration,
 } from "./calibration/index.ts";
 // Bench workflows: values as the trade writes them, conformity decisions, sorting, winding,
 // continuous reading, reports, and an abortable reading.
@@ -48,7 +50,7 @@ export type { Tolerance, Limits } from "./values/tolerance.ts";
 export { seriesValues, nearestPreferred, parseSeriesName, SERIES_NAMES } from "./values/e-series.ts";
 export type { SeriesName, Preferred } from "./values/e-series.ts";
 export { formatMeasured, formatValueOnly, iecCode } from "./values/format-value.ts";
-export { decideConformity, conformanceProbability, normalCdf } from "./workflows/conformity.ts";
+export { decideConformity, conformanceProbability, normalCdf, roundProbability } from "./workflows/conformity.ts";
 export type { Decision, ConformityResult } from "./workflows/conformity.ts";
 export { classify } from "./workflows/classify.ts";
 export type { ToleranceSpec, Classification } from "./workflows/classify.ts";
@@ -61,15 +63,12 @@ export { runSort } from "./workflows/sort-runner.ts";
 export type { SortEvent, SortRunOptions } from "./workflows/sort-runner.ts";
 export { PresenceTracker } from "./workflows/part-presence.ts";
 export type { Observation, PresenceAction, PresenceOptions } from "./workflows/part-presence.ts";
-export { SimTray, drawTray, trayPart } from "./workflows/sim-tray.ts";
 export { makeBins, binOf } from "./workflows/bins.ts";
 export type { BinSpec, BinResult } from "./workflows/bins.ts";
 export { RunningStats } from "./workflows/running-stats.ts";
 export type { StatsSummary } from "./workflows/running-stats.ts";
 export { windingAdvice, fitWindingModel, predictInductance } from "./workflows/winding.ts";
 export type { WindingReading, WindingAdvice, WindingModel } from "./workflows/winding.ts";
-export { coilOnFormer, formerTurnRange, DEFAULT_FORMER } from "./workflows/sim-coil.ts";
-export type { FormerSpec } from "./workflows/sim-coil.ts";
 export { assessStability, sparkline, History } from "./workflows/watch-trend.ts";
 export type { Stability, StabilityResult } from "./workflows/watch-trend.ts";
 export { buildReport, writeReport } from "./report/write-report.ts";

@@ -3,12 +3,14 @@
 // code). Do not edit: change the schema and run npm run build.
 
 export const capture = validate20;
-const schema31 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:capture:1","title":"henrytick capture file, version 1","description":"The edge record of one ring-down with everything needed to analyse it again (docs/capture-format.md). Units are SI and in the key names. Rules a schema cannot state (rising threshold above the falling one, edge ticks non-decreasing) are checked by the reader too.","type":"object","required":["format","version","tick_hz","edges","tank_c_f","thresholds_v"],"properties":{"format":{"const":"henrytick-capture"},"version":{"const":1},"tick_hz":{"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"},"edges":{"type":"array","description":"[tick, level] pairs: integer ticks since the switch opened, non-decreasing; level 1 after a rising edge, 0 after a falling edge","items":{"description":"[tick, level]","type":"array","prefixItems":[{"type":"integer","minimum":0,"maximum":9007199254740991},{"enum":[0,1]}],"minItems":2,"maxItems":2}},"tank_c_f":{"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"},"tank_c_u_f":{"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"},"thresholds_v":{"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2},"drive":{"$ref":"#/$defs/drive"},"range":{"$ref":"#/$defs/range"},"device":{"$ref":"#/$defs/device"},"meta":{"type":"object","properties":{"label":{"type":"string"},"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"end_reason":{"enum":["quiet","full","timeout","no-edges"]}}},"calibration":{"$ref":"#/$defs/calibration"}},"$defs":{"drive":{"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0}}},"range":{"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}},"device":{"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"}}},"calibration":{"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0}}}}};
-const schema32 = {"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0}}};
+const schema31 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:capture:1","title":"henrytick capture file, version 1","description":"The edge record of one ring-down with everything needed to analyse it again (docs/capture-format.md). Units are SI and in the key names. Rules a schema cannot state (rising threshold above the falling one, edge ticks non-decreasing) are checked by the reader too.","type":"object","required":["format","version","tick_hz","edges","tank_c_f","thresholds_v"],"properties":{"format":{"const":"henrytick-capture"},"version":{"const":1},"tick_hz":{"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"},"edges":{"type":"array","description":"[tick, level] pairs: integer ticks since the switch opened, non-decreasing; level 1 after a rising edge, 0 after a falling edge","items":{"description":"[tick, level]","type":"array","prefixItems":[{"type":"integer","minimum":0,"maximum":9007199254740991},{"enum":[0,1]}],"minItems":2,"maxItems":2}},"tank_c_f":{"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"},"tank_c_u_f":{"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"},"thresholds_v":{"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2},"drive":{"$ref":"#/$defs/drive"},"range":{"$ref":"#/$defs/range"},"device":{"$ref":"#/$defs/device"},"meta":{"type":"object","properties":{"label":{"type":"string"},"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"end_reason":{"enum":["quiet","full","timeout","no-edges"]}}},"calibration":{"$ref":"#/$defs/calibration"},"reading_warnings":{"type":"array","description":"warnings the reading added to the analysis's own (automatic ranging's); a re-analysis gives them again","items":{"$ref":"#/$defs/warning"}}},"$defs":{"drive":{"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the front end's clamp voltage, the ring's ceiling"}}},"range":{"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}},"device":{"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}},"calibration":{"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0}}},"warning":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}}}};
+const schema32 = {"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the front end's clamp voltage, the ring's ceiling"}}};
 const schema33 = {"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}};
-const schema34 = {"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"}}};
+const schema34 = {"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}};
 const schema35 = {"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0}}};
+const schema36 = {"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}};
 const pattern4 = new RegExp("^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$", "u");
+const pattern5 = new RegExp("^[A-Z][A-Z0-9_]*$", "u");
 
 function validate20(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 /*# sourceURL="urn:henrytick:schema:capture:1" */;
@@ -303,6 +305,28 @@ var valid5 = _errs27 === errors;
 else {
 var valid5 = true;
 }
+if(valid5){
+if(data12.clamp_v !== undefined){
+let data15 = data12.clamp_v;
+const _errs29 = errors;
+if(errors === _errs29){
+if((typeof data15 == "number") && (isFinite(data15))){
+if(data15 <= 0 || isNaN(data15)){
+validate20.errors = [{instancePath:instancePath+"/drive/clamp_v",schemaPath:"#/$defs/drive/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema32.properties.clamp_v,data:data15}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/drive/clamp_v",schemaPath:"#/$defs/drive/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema32.properties.clamp_v.type,parentSchema:schema32.properties.clamp_v,data:data15}];
+return false;
+}
+}
+var valid5 = _errs29 === errors;
+}
+else {
+var valid5 = true;
+}
+}
 }
 }
 }
@@ -318,49 +342,28 @@ var valid0 = true;
 }
 if(valid0){
 if(data.range !== undefined){
-let data15 = data.range;
-const _errs29 = errors;
-const _errs30 = errors;
-if(errors === _errs30){
-if(data15 && typeof data15 == "object" && !Array.isArray(data15)){
-let missing2;
-if(((((((data15.drive_index === undefined) && (missing2 = "drive_index")) || ((data15.tank_index === undefined) && (missing2 = "tank_index"))) || ((data15.charge_us === undefined) && (missing2 = "charge_us"))) || ((data15.edge_limit === undefined) && (missing2 = "edge_limit"))) || ((data15.timeout_ms === undefined) && (missing2 = "timeout_ms"))) || ((data15.quiet_us === undefined) && (missing2 = "quiet_us"))){
-validate20.errors = [{instancePath:instancePath+"/range",schemaPath:"#/$defs/range/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema33.required,parentSchema:schema33,data:data15}];
-return false;
-}
-else {
-if(data15.drive_index !== undefined){
-let data16 = data15.drive_index;
+let data16 = data.range;
+const _errs31 = errors;
 const _errs32 = errors;
-if(!(((typeof data16 == "number") && (!(data16 % 1) && !isNaN(data16))) && (isFinite(data16)))){
-validate20.errors = [{instancePath:instancePath+"/range/drive_index",schemaPath:"#/$defs/range/properties/drive_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.drive_index.type,parentSchema:schema33.properties.drive_index,data:data16}];
-return false;
-}
 if(errors === _errs32){
-if((typeof data16 == "number") && (isFinite(data16))){
-if(data16 < 0 || isNaN(data16)){
-validate20.errors = [{instancePath:instancePath+"/range/drive_index",schemaPath:"#/$defs/range/properties/drive_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.drive_index,data:data16}];
+if(data16 && typeof data16 == "object" && !Array.isArray(data16)){
+let missing2;
+if(((((((data16.drive_index === undefined) && (missing2 = "drive_index")) || ((data16.tank_index === undefined) && (missing2 = "tank_index"))) || ((data16.charge_us === undefined) && (missing2 = "charge_us"))) || ((data16.edge_limit === undefined) && (missing2 = "edge_limit"))) || ((data16.timeout_ms === undefined) && (missing2 = "timeout_ms"))) || ((data16.quiet_us === undefined) && (missing2 = "quiet_us"))){
+validate20.errors = [{instancePath:instancePath+"/range",schemaPath:"#/$defs/range/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema33.required,parentSchema:schema33,data:data16}];
 return false;
-}
-}
-}
-var valid7 = _errs32 === errors;
 }
 else {
-var valid7 = true;
-}
-if(valid7){
-if(data15.tank_index !== undefined){
-let data17 = data15.tank_index;
+if(data16.drive_index !== undefined){
+let data17 = data16.drive_index;
 const _errs34 = errors;
 if(!(((typeof data17 == "number") && (!(data17 % 1) && !isNaN(data17))) && (isFinite(data17)))){
-validate20.errors = [{instancePath:instancePath+"/range/tank_index",schemaPath:"#/$defs/range/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.tank_index.type,parentSchema:schema33.properties.tank_index,data:data17}];
+validate20.errors = [{instancePath:instancePath+"/range/drive_index",schemaPath:"#/$defs/range/properties/drive_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.drive_index.type,parentSchema:schema33.properties.drive_index,data:data17}];
 return false;
 }
 if(errors === _errs34){
 if((typeof data17 == "number") && (isFinite(data17))){
 if(data17 < 0 || isNaN(data17)){
-validate20.errors = [{instancePath:instancePath+"/range/tank_index",schemaPath:"#/$defs/range/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.tank_index,data:data17}];
+validate20.errors = [{instancePath:instancePath+"/range/drive_index",schemaPath:"#/$defs/range/properties/drive_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.drive_index,data:data17}];
 return false;
 }
 }
@@ -371,19 +374,19 @@ else {
 var valid7 = true;
 }
 if(valid7){
-if(data15.charge_us !== undefined){
-let data18 = data15.charge_us;
+if(data16.tank_index !== undefined){
+let data18 = data16.tank_index;
 const _errs36 = errors;
+if(!(((typeof data18 == "number") && (!(data18 % 1) && !isNaN(data18))) && (isFinite(data18)))){
+validate20.errors = [{instancePath:instancePath+"/range/tank_index",schemaPath:"#/$defs/range/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.tank_index.type,parentSchema:schema33.properties.tank_index,data:data18}];
+return false;
+}
 if(errors === _errs36){
 if((typeof data18 == "number") && (isFinite(data18))){
 if(data18 < 0 || isNaN(data18)){
-validate20.errors = [{instancePath:instancePath+"/range/charge_us",schemaPath:"#/$defs/range/properties/charge_us/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.charge_us,data:data18}];
+validate20.errors = [{instancePath:instancePath+"/range/tank_index",schemaPath:"#/$defs/range/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.tank_index,data:data18}];
 return false;
 }
-}
-else {
-validate20.errors = [{instancePath:instancePath+"/range/charge_us",schemaPath:"#/$defs/range/properties/charge_us/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.charge_us.type,parentSchema:schema33.properties.charge_us,data:data18}];
-return false;
 }
 }
 var valid7 = _errs36 === errors;
@@ -392,19 +395,19 @@ else {
 var valid7 = true;
 }
 if(valid7){
-if(data15.edge_limit !== undefined){
-let data19 = data15.edge_limit;
+if(data16.charge_us !== undefined){
+let data19 = data16.charge_us;
 const _errs38 = errors;
-if(!(((typeof data19 == "number") && (!(data19 % 1) && !isNaN(data19))) && (isFinite(data19)))){
-validate20.errors = [{instancePath:instancePath+"/range/edge_limit",schemaPath:"#/$defs/range/properties/edge_limit/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.edge_limit.type,parentSchema:schema33.properties.edge_limit,data:data19}];
-return false;
-}
 if(errors === _errs38){
 if((typeof data19 == "number") && (isFinite(data19))){
 if(data19 < 0 || isNaN(data19)){
-validate20.errors = [{instancePath:instancePath+"/range/edge_limit",schemaPath:"#/$defs/range/properties/edge_limit/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.edge_limit,data:data19}];
+validate20.errors = [{instancePath:instancePath+"/range/charge_us",schemaPath:"#/$defs/range/properties/charge_us/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.charge_us,data:data19}];
 return false;
 }
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/range/charge_us",schemaPath:"#/$defs/range/properties/charge_us/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.charge_us.type,parentSchema:schema33.properties.charge_us,data:data19}];
+return false;
 }
 }
 var valid7 = _errs38 === errors;
@@ -413,19 +416,19 @@ else {
 var valid7 = true;
 }
 if(valid7){
-if(data15.timeout_ms !== undefined){
-let data20 = data15.timeout_ms;
+if(data16.edge_limit !== undefined){
+let data20 = data16.edge_limit;
 const _errs40 = errors;
+if(!(((typeof data20 == "number") && (!(data20 % 1) && !isNaN(data20))) && (isFinite(data20)))){
+validate20.errors = [{instancePath:instancePath+"/range/edge_limit",schemaPath:"#/$defs/range/properties/edge_limit/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.edge_limit.type,parentSchema:schema33.properties.edge_limit,data:data20}];
+return false;
+}
 if(errors === _errs40){
 if((typeof data20 == "number") && (isFinite(data20))){
 if(data20 < 0 || isNaN(data20)){
-validate20.errors = [{instancePath:instancePath+"/range/timeout_ms",schemaPath:"#/$defs/range/properties/timeout_ms/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.timeout_ms,data:data20}];
+validate20.errors = [{instancePath:instancePath+"/range/edge_limit",schemaPath:"#/$defs/range/properties/edge_limit/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.edge_limit,data:data20}];
 return false;
 }
-}
-else {
-validate20.errors = [{instancePath:instancePath+"/range/timeout_ms",schemaPath:"#/$defs/range/properties/timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.timeout_ms.type,parentSchema:schema33.properties.timeout_ms,data:data20}];
-return false;
 }
 }
 var valid7 = _errs40 === errors;
@@ -434,22 +437,43 @@ else {
 var valid7 = true;
 }
 if(valid7){
-if(data15.quiet_us !== undefined){
-let data21 = data15.quiet_us;
+if(data16.timeout_ms !== undefined){
+let data21 = data16.timeout_ms;
 const _errs42 = errors;
 if(errors === _errs42){
 if((typeof data21 == "number") && (isFinite(data21))){
 if(data21 < 0 || isNaN(data21)){
-validate20.errors = [{instancePath:instancePath+"/range/quiet_us",schemaPath:"#/$defs/range/properties/quiet_us/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.quiet_us,data:data21}];
+validate20.errors = [{instancePath:instancePath+"/range/timeout_ms",schemaPath:"#/$defs/range/properties/timeout_ms/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.timeout_ms,data:data21}];
 return false;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/range/quiet_us",schemaPath:"#/$defs/range/properties/quiet_us/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.quiet_us.type,parentSchema:schema33.properties.quiet_us,data:data21}];
+validate20.errors = [{instancePath:instancePath+"/range/timeout_ms",schemaPath:"#/$defs/range/properties/timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.timeout_ms.type,parentSchema:schema33.properties.timeout_ms,data:data21}];
 return false;
 }
 }
 var valid7 = _errs42 === errors;
+}
+else {
+var valid7 = true;
+}
+if(valid7){
+if(data16.quiet_us !== undefined){
+let data22 = data16.quiet_us;
+const _errs44 = errors;
+if(errors === _errs44){
+if((typeof data22 == "number") && (isFinite(data22))){
+if(data22 < 0 || isNaN(data22)){
+validate20.errors = [{instancePath:instancePath+"/range/quiet_us",schemaPath:"#/$defs/range/properties/quiet_us/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.quiet_us,data:data22}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/range/quiet_us",schemaPath:"#/$defs/range/properties/quiet_us/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.quiet_us.type,parentSchema:schema33.properties.quiet_us,data:data22}];
+return false;
+}
+}
+var valid7 = _errs44 === errors;
 }
 else {
 var valid7 = true;
@@ -462,46 +486,33 @@ var valid7 = true;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/range",schemaPath:"#/$defs/range/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema33.type,parentSchema:schema33,data:data15}];
+validate20.errors = [{instancePath:instancePath+"/range",schemaPath:"#/$defs/range/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema33.type,parentSchema:schema33,data:data16}];
 return false;
 }
 }
-var valid0 = _errs29 === errors;
+var valid0 = _errs31 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.device !== undefined){
-let data22 = data.device;
-const _errs44 = errors;
-const _errs45 = errors;
-if(errors === _errs45){
-if(data22 && typeof data22 == "object" && !Array.isArray(data22)){
-let missing3;
-if(((((data22.id === undefined) && (missing3 = "id")) || ((data22.firmware_version === undefined) && (missing3 = "firmware_version"))) || ((data22.protocol_version === undefined) && (missing3 = "protocol_version"))) || ((data22.transport === undefined) && (missing3 = "transport"))){
-validate20.errors = [{instancePath:instancePath+"/device",schemaPath:"#/$defs/device/required",keyword:"required",params:{missingProperty: missing3},message:"must have required property '"+missing3+"'",schema:schema34.required,parentSchema:schema34,data:data22}];
-return false;
-}
-else {
-if(data22.id !== undefined){
-let data23 = data22.id;
+let data23 = data.device;
+const _errs46 = errors;
 const _errs47 = errors;
-if(typeof data23 !== "string"){
-validate20.errors = [{instancePath:instancePath+"/device/id",schemaPath:"#/$defs/device/properties/id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.id.type,parentSchema:schema34.properties.id,data:data23}];
+if(errors === _errs47){
+if(data23 && typeof data23 == "object" && !Array.isArray(data23)){
+let missing3;
+if(((((data23.id === undefined) && (missing3 = "id")) || ((data23.firmware_version === undefined) && (missing3 = "firmware_version"))) || ((data23.protocol_version === undefined) && (missing3 = "protocol_version"))) || ((data23.transport === undefined) && (missing3 = "transport"))){
+validate20.errors = [{instancePath:instancePath+"/device",schemaPath:"#/$defs/device/required",keyword:"required",params:{missingProperty: missing3},message:"must have required property '"+missing3+"'",schema:schema34.required,parentSchema:schema34,data:data23}];
 return false;
 }
-var valid9 = _errs47 === errors;
-}
 else {
-var valid9 = true;
-}
-if(valid9){
-if(data22.firmware_version !== undefined){
-let data24 = data22.firmware_version;
+if(data23.id !== undefined){
+let data24 = data23.id;
 const _errs49 = errors;
 if(typeof data24 !== "string"){
-validate20.errors = [{instancePath:instancePath+"/device/firmware_version",schemaPath:"#/$defs/device/properties/firmware_version/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.firmware_version.type,parentSchema:schema34.properties.firmware_version,data:data24}];
+validate20.errors = [{instancePath:instancePath+"/device/id",schemaPath:"#/$defs/device/properties/id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.id.type,parentSchema:schema34.properties.id,data:data24}];
 return false;
 }
 var valid9 = _errs49 === errors;
@@ -510,20 +521,12 @@ else {
 var valid9 = true;
 }
 if(valid9){
-if(data22.protocol_version !== undefined){
-let data25 = data22.protocol_version;
+if(data23.firmware_version !== undefined){
+let data25 = data23.firmware_version;
 const _errs51 = errors;
-if(!(((typeof data25 == "number") && (!(data25 % 1) && !isNaN(data25))) && (isFinite(data25)))){
-validate20.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"#/$defs/device/properties/protocol_version/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema34.properties.protocol_version.type,parentSchema:schema34.properties.protocol_version,data:data25}];
+if(typeof data25 !== "string"){
+validate20.errors = [{instancePath:instancePath+"/device/firmware_version",schemaPath:"#/$defs/device/properties/firmware_version/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.firmware_version.type,parentSchema:schema34.properties.firmware_version,data:data25}];
 return false;
-}
-if(errors === _errs51){
-if((typeof data25 == "number") && (isFinite(data25))){
-if(data25 < 0 || isNaN(data25)){
-validate20.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"#/$defs/device/properties/protocol_version/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema34.properties.protocol_version,data:data25}];
-return false;
-}
-}
 }
 var valid9 = _errs51 === errors;
 }
@@ -531,14 +534,77 @@ else {
 var valid9 = true;
 }
 if(valid9){
-if(data22.transport !== undefined){
-let data26 = data22.transport;
+if(data23.protocol_version !== undefined){
+let data26 = data23.protocol_version;
 const _errs53 = errors;
-if(typeof data26 !== "string"){
-validate20.errors = [{instancePath:instancePath+"/device/transport",schemaPath:"#/$defs/device/properties/transport/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.transport.type,parentSchema:schema34.properties.transport,data:data26}];
+if(!(((typeof data26 == "number") && (!(data26 % 1) && !isNaN(data26))) && (isFinite(data26)))){
+validate20.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"#/$defs/device/properties/protocol_version/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema34.properties.protocol_version.type,parentSchema:schema34.properties.protocol_version,data:data26}];
 return false;
 }
+if(errors === _errs53){
+if((typeof data26 == "number") && (isFinite(data26))){
+if(data26 < 0 || isNaN(data26)){
+validate20.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"#/$defs/device/properties/protocol_version/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema34.properties.protocol_version,data:data26}];
+return false;
+}
+}
+}
 var valid9 = _errs53 === errors;
+}
+else {
+var valid9 = true;
+}
+if(valid9){
+if(data23.transport !== undefined){
+let data27 = data23.transport;
+const _errs55 = errors;
+if(typeof data27 !== "string"){
+validate20.errors = [{instancePath:instancePath+"/device/transport",schemaPath:"#/$defs/device/properties/transport/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.transport.type,parentSchema:schema34.properties.transport,data:data27}];
+return false;
+}
+var valid9 = _errs55 === errors;
+}
+else {
+var valid9 = true;
+}
+if(valid9){
+if(data23.clamp_v !== undefined){
+let data28 = data23.clamp_v;
+const _errs57 = errors;
+if(errors === _errs57){
+if((typeof data28 == "number") && (isFinite(data28))){
+if(data28 <= 0 || isNaN(data28)){
+validate20.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"#/$defs/device/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.clamp_v,data:data28}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"#/$defs/device/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.clamp_v.type,parentSchema:schema34.properties.clamp_v,data:data28}];
+return false;
+}
+}
+var valid9 = _errs57 === errors;
+}
+else {
+var valid9 = true;
+}
+if(valid9){
+if(data23.max_timeout_ms !== undefined){
+let data29 = data23.max_timeout_ms;
+const _errs59 = errors;
+if(errors === _errs59){
+if((typeof data29 == "number") && (isFinite(data29))){
+if(data29 <= 0 || isNaN(data29)){
+validate20.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"#/$defs/device/properties/max_timeout_ms/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.max_timeout_ms,data:data29}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"#/$defs/device/properties/max_timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.max_timeout_ms.type,parentSchema:schema34.properties.max_timeout_ms,data:data29}];
+return false;
+}
+}
+var valid9 = _errs59 === errors;
 }
 else {
 var valid9 = true;
@@ -548,64 +614,66 @@ var valid9 = true;
 }
 }
 }
+}
+}
 else {
-validate20.errors = [{instancePath:instancePath+"/device",schemaPath:"#/$defs/device/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema34.type,parentSchema:schema34,data:data22}];
+validate20.errors = [{instancePath:instancePath+"/device",schemaPath:"#/$defs/device/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema34.type,parentSchema:schema34,data:data23}];
 return false;
 }
 }
-var valid0 = _errs44 === errors;
+var valid0 = _errs46 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.meta !== undefined){
-let data27 = data.meta;
-const _errs55 = errors;
-if(errors === _errs55){
-if(data27 && typeof data27 == "object" && !Array.isArray(data27)){
-if(data27.label !== undefined){
-let data28 = data27.label;
-const _errs57 = errors;
-if(typeof data28 !== "string"){
-validate20.errors = [{instancePath:instancePath+"/meta/label",schemaPath:"#/properties/meta/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema31.properties.meta.properties.label.type,parentSchema:schema31.properties.meta.properties.label,data:data28}];
-return false;
-}
-var valid10 = _errs57 === errors;
-}
-else {
-var valid10 = true;
-}
-if(valid10){
-if(data27.time !== undefined){
-let data29 = data27.time;
-const _errs59 = errors;
-if(errors === _errs59){
-if(typeof data29 === "string"){
-if(!pattern4.test(data29)){
-validate20.errors = [{instancePath:instancePath+"/meta/time",schemaPath:"#/properties/meta/properties/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema31.properties.meta.properties.time,data:data29}];
-return false;
-}
-}
-else {
-validate20.errors = [{instancePath:instancePath+"/meta/time",schemaPath:"#/properties/meta/properties/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema31.properties.meta.properties.time.type,parentSchema:schema31.properties.meta.properties.time,data:data29}];
-return false;
-}
-}
-var valid10 = _errs59 === errors;
-}
-else {
-var valid10 = true;
-}
-if(valid10){
-if(data27.end_reason !== undefined){
-let data30 = data27.end_reason;
+let data30 = data.meta;
 const _errs61 = errors;
-if(!((((data30 === "quiet") || (data30 === "full")) || (data30 === "timeout")) || (data30 === "no-edges"))){
-validate20.errors = [{instancePath:instancePath+"/meta/end_reason",schemaPath:"#/properties/meta/properties/end_reason/enum",keyword:"enum",params:{allowedValues: schema31.properties.meta.properties.end_reason.enum},message:"must be equal to one of the allowed values",schema:schema31.properties.meta.properties.end_reason.enum,parentSchema:schema31.properties.meta.properties.end_reason,data:data30}];
+if(errors === _errs61){
+if(data30 && typeof data30 == "object" && !Array.isArray(data30)){
+if(data30.label !== undefined){
+let data31 = data30.label;
+const _errs63 = errors;
+if(typeof data31 !== "string"){
+validate20.errors = [{instancePath:instancePath+"/meta/label",schemaPath:"#/properties/meta/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema31.properties.meta.properties.label.type,parentSchema:schema31.properties.meta.properties.label,data:data31}];
 return false;
 }
-var valid10 = _errs61 === errors;
+var valid10 = _errs63 === errors;
+}
+else {
+var valid10 = true;
+}
+if(valid10){
+if(data30.time !== undefined){
+let data32 = data30.time;
+const _errs65 = errors;
+if(errors === _errs65){
+if(typeof data32 === "string"){
+if(!pattern4.test(data32)){
+validate20.errors = [{instancePath:instancePath+"/meta/time",schemaPath:"#/properties/meta/properties/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema31.properties.meta.properties.time,data:data32}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/meta/time",schemaPath:"#/properties/meta/properties/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema31.properties.meta.properties.time.type,parentSchema:schema31.properties.meta.properties.time,data:data32}];
+return false;
+}
+}
+var valid10 = _errs65 === errors;
+}
+else {
+var valid10 = true;
+}
+if(valid10){
+if(data30.end_reason !== undefined){
+let data33 = data30.end_reason;
+const _errs67 = errors;
+if(!((((data33 === "quiet") || (data33 === "full")) || (data33 === "timeout")) || (data33 === "no-edges"))){
+validate20.errors = [{instancePath:instancePath+"/meta/end_reason",schemaPath:"#/properties/meta/properties/end_reason/enum",keyword:"enum",params:{allowedValues: schema31.properties.meta.properties.end_reason.enum},message:"must be equal to one of the allowed values",schema:schema31.properties.meta.properties.end_reason.enum,parentSchema:schema31.properties.meta.properties.end_reason,data:data33}];
+return false;
+}
+var valid10 = _errs67 === errors;
 }
 else {
 var valid10 = true;
@@ -614,89 +682,34 @@ var valid10 = true;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/meta",schemaPath:"#/properties/meta/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema31.properties.meta.type,parentSchema:schema31.properties.meta,data:data27}];
+validate20.errors = [{instancePath:instancePath+"/meta",schemaPath:"#/properties/meta/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema31.properties.meta.type,parentSchema:schema31.properties.meta,data:data30}];
 return false;
 }
 }
-var valid0 = _errs55 === errors;
+var valid0 = _errs61 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.calibration !== undefined){
-let data31 = data.calibration;
-const _errs62 = errors;
-const _errs63 = errors;
-if(errors === _errs63){
-if(data31 && typeof data31 == "object" && !Array.isArray(data31)){
-let missing4;
-if((((((data31.source === undefined) && (missing4 = "source")) || ((data31.tank_calibrated === undefined) && (missing4 = "tank_calibrated"))) || ((data31.nominal_tank_c_f === undefined) && (missing4 = "nominal_tank_c_f"))) || ((data31.nominal_tick_hz === undefined) && (missing4 = "nominal_tick_hz"))) || ((data31.timebase_ppm === undefined) && (missing4 = "timebase_ppm"))){
-validate20.errors = [{instancePath:instancePath+"/calibration",schemaPath:"#/$defs/calibration/required",keyword:"required",params:{missingProperty: missing4},message:"must have required property '"+missing4+"'",schema:schema35.required,parentSchema:schema35,data:data31}];
-return false;
-}
-else {
-if(data31.source !== undefined){
-let data32 = data31.source;
-const _errs65 = errors;
-if(typeof data32 !== "string"){
-validate20.errors = [{instancePath:instancePath+"/calibration/source",schemaPath:"#/$defs/calibration/properties/source/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema35.properties.source.type,parentSchema:schema35.properties.source,data:data32}];
-return false;
-}
-var valid12 = _errs65 === errors;
-}
-else {
-var valid12 = true;
-}
-if(valid12){
-if(data31.tank_calibrated !== undefined){
-let data33 = data31.tank_calibrated;
-const _errs67 = errors;
-if(typeof data33 !== "boolean"){
-validate20.errors = [{instancePath:instancePath+"/calibration/tank_calibrated",schemaPath:"#/$defs/calibration/properties/tank_calibrated/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema35.properties.tank_calibrated.type,parentSchema:schema35.properties.tank_calibrated,data:data33}];
-return false;
-}
-var valid12 = _errs67 === errors;
-}
-else {
-var valid12 = true;
-}
-if(valid12){
-if(data31.nominal_tank_c_f !== undefined){
-let data34 = data31.nominal_tank_c_f;
+let data34 = data.calibration;
+const _errs68 = errors;
 const _errs69 = errors;
 if(errors === _errs69){
-if((typeof data34 == "number") && (isFinite(data34))){
-if(data34 <= 0 || isNaN(data34)){
-validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tank_c_f",schemaPath:"#/$defs/calibration/properties/nominal_tank_c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tank_c_f,data:data34}];
+if(data34 && typeof data34 == "object" && !Array.isArray(data34)){
+let missing4;
+if((((((data34.source === undefined) && (missing4 = "source")) || ((data34.tank_calibrated === undefined) && (missing4 = "tank_calibrated"))) || ((data34.nominal_tank_c_f === undefined) && (missing4 = "nominal_tank_c_f"))) || ((data34.nominal_tick_hz === undefined) && (missing4 = "nominal_tick_hz"))) || ((data34.timebase_ppm === undefined) && (missing4 = "timebase_ppm"))){
+validate20.errors = [{instancePath:instancePath+"/calibration",schemaPath:"#/$defs/calibration/required",keyword:"required",params:{missingProperty: missing4},message:"must have required property '"+missing4+"'",schema:schema35.required,parentSchema:schema35,data:data34}];
 return false;
 }
-}
 else {
-validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tank_c_f",schemaPath:"#/$defs/calibration/properties/nominal_tank_c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tank_c_f.type,parentSchema:schema35.properties.nominal_tank_c_f,data:data34}];
-return false;
-}
-}
-var valid12 = _errs69 === errors;
-}
-else {
-var valid12 = true;
-}
-if(valid12){
-if(data31.nominal_tick_hz !== undefined){
-let data35 = data31.nominal_tick_hz;
+if(data34.source !== undefined){
+let data35 = data34.source;
 const _errs71 = errors;
-if(errors === _errs71){
-if((typeof data35 == "number") && (isFinite(data35))){
-if(data35 <= 0 || isNaN(data35)){
-validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tick_hz",schemaPath:"#/$defs/calibration/properties/nominal_tick_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tick_hz,data:data35}];
+if(typeof data35 !== "string"){
+validate20.errors = [{instancePath:instancePath+"/calibration/source",schemaPath:"#/$defs/calibration/properties/source/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema35.properties.source.type,parentSchema:schema35.properties.source,data:data35}];
 return false;
-}
-}
-else {
-validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tick_hz",schemaPath:"#/$defs/calibration/properties/nominal_tick_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tick_hz.type,parentSchema:schema35.properties.nominal_tick_hz,data:data35}];
-return false;
-}
 }
 var valid12 = _errs71 === errors;
 }
@@ -704,11 +717,11 @@ else {
 var valid12 = true;
 }
 if(valid12){
-if(data31.timebase_ppm !== undefined){
-let data36 = data31.timebase_ppm;
+if(data34.tank_calibrated !== undefined){
+let data36 = data34.tank_calibrated;
 const _errs73 = errors;
-if(!((typeof data36 == "number") && (isFinite(data36)))){
-validate20.errors = [{instancePath:instancePath+"/calibration/timebase_ppm",schemaPath:"#/$defs/calibration/properties/timebase_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_ppm.type,parentSchema:schema35.properties.timebase_ppm,data:data36}];
+if(typeof data36 !== "boolean"){
+validate20.errors = [{instancePath:instancePath+"/calibration/tank_calibrated",schemaPath:"#/$defs/calibration/properties/tank_calibrated/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema35.properties.tank_calibrated.type,parentSchema:schema35.properties.tank_calibrated,data:data36}];
 return false;
 }
 var valid12 = _errs73 === errors;
@@ -717,22 +730,77 @@ else {
 var valid12 = true;
 }
 if(valid12){
-if(data31.timebase_u_ppm !== undefined){
-let data37 = data31.timebase_u_ppm;
+if(data34.nominal_tank_c_f !== undefined){
+let data37 = data34.nominal_tank_c_f;
 const _errs75 = errors;
 if(errors === _errs75){
 if((typeof data37 == "number") && (isFinite(data37))){
-if(data37 < 0 || isNaN(data37)){
-validate20.errors = [{instancePath:instancePath+"/calibration/timebase_u_ppm",schemaPath:"#/$defs/calibration/properties/timebase_u_ppm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema35.properties.timebase_u_ppm,data:data37}];
+if(data37 <= 0 || isNaN(data37)){
+validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tank_c_f",schemaPath:"#/$defs/calibration/properties/nominal_tank_c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tank_c_f,data:data37}];
 return false;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/calibration/timebase_u_ppm",schemaPath:"#/$defs/calibration/properties/timebase_u_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_u_ppm.type,parentSchema:schema35.properties.timebase_u_ppm,data:data37}];
+validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tank_c_f",schemaPath:"#/$defs/calibration/properties/nominal_tank_c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tank_c_f.type,parentSchema:schema35.properties.nominal_tank_c_f,data:data37}];
 return false;
 }
 }
 var valid12 = _errs75 === errors;
+}
+else {
+var valid12 = true;
+}
+if(valid12){
+if(data34.nominal_tick_hz !== undefined){
+let data38 = data34.nominal_tick_hz;
+const _errs77 = errors;
+if(errors === _errs77){
+if((typeof data38 == "number") && (isFinite(data38))){
+if(data38 <= 0 || isNaN(data38)){
+validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tick_hz",schemaPath:"#/$defs/calibration/properties/nominal_tick_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tick_hz,data:data38}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tick_hz",schemaPath:"#/$defs/calibration/properties/nominal_tick_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tick_hz.type,parentSchema:schema35.properties.nominal_tick_hz,data:data38}];
+return false;
+}
+}
+var valid12 = _errs77 === errors;
+}
+else {
+var valid12 = true;
+}
+if(valid12){
+if(data34.timebase_ppm !== undefined){
+let data39 = data34.timebase_ppm;
+const _errs79 = errors;
+if(!((typeof data39 == "number") && (isFinite(data39)))){
+validate20.errors = [{instancePath:instancePath+"/calibration/timebase_ppm",schemaPath:"#/$defs/calibration/properties/timebase_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_ppm.type,parentSchema:schema35.properties.timebase_ppm,data:data39}];
+return false;
+}
+var valid12 = _errs79 === errors;
+}
+else {
+var valid12 = true;
+}
+if(valid12){
+if(data34.timebase_u_ppm !== undefined){
+let data40 = data34.timebase_u_ppm;
+const _errs81 = errors;
+if(errors === _errs81){
+if((typeof data40 == "number") && (isFinite(data40))){
+if(data40 < 0 || isNaN(data40)){
+validate20.errors = [{instancePath:instancePath+"/calibration/timebase_u_ppm",schemaPath:"#/$defs/calibration/properties/timebase_u_ppm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema35.properties.timebase_u_ppm,data:data40}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/calibration/timebase_u_ppm",schemaPath:"#/$defs/calibration/properties/timebase_u_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_u_ppm.type,parentSchema:schema35.properties.timebase_u_ppm,data:data40}];
+return false;
+}
+}
+var valid12 = _errs81 === errors;
 }
 else {
 var valid12 = true;
@@ -745,14 +813,92 @@ var valid12 = true;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/calibration",schemaPath:"#/$defs/calibration/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema35.type,parentSchema:schema35,data:data31}];
+validate20.errors = [{instancePath:instancePath+"/calibration",schemaPath:"#/$defs/calibration/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema35.type,parentSchema:schema35,data:data34}];
 return false;
 }
 }
-var valid0 = _errs62 === errors;
+var valid0 = _errs68 === errors;
 }
 else {
 var valid0 = true;
+}
+if(valid0){
+if(data.reading_warnings !== undefined){
+let data41 = data.reading_warnings;
+const _errs83 = errors;
+if(errors === _errs83){
+if(Array.isArray(data41)){
+var valid13 = true;
+const len3 = data41.length;
+for(let i1=0; i1<len3; i1++){
+let data42 = data41[i1];
+const _errs85 = errors;
+const _errs86 = errors;
+if(errors === _errs86){
+if(data42 && typeof data42 == "object" && !Array.isArray(data42)){
+let missing5;
+if(((data42.code === undefined) && (missing5 = "code")) || ((data42.message === undefined) && (missing5 = "message"))){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/required",keyword:"required",params:{missingProperty: missing5},message:"must have required property '"+missing5+"'",schema:schema36.required,parentSchema:schema36,data:data42}];
+return false;
+}
+else {
+if(data42.code !== undefined){
+let data43 = data42.code;
+const _errs88 = errors;
+if(errors === _errs88){
+if(typeof data43 === "string"){
+if(!pattern5.test(data43)){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema36.properties.code,data:data43}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.code.type,parentSchema:schema36.properties.code,data:data43}];
+return false;
+}
+}
+var valid15 = _errs88 === errors;
+}
+else {
+var valid15 = true;
+}
+if(valid15){
+if(data42.message !== undefined){
+let data44 = data42.message;
+const _errs90 = errors;
+if(typeof data44 !== "string"){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/message",schemaPath:"#/$defs/warning/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.message.type,parentSchema:schema36.properties.message,data:data44}];
+return false;
+}
+var valid15 = _errs90 === errors;
+}
+else {
+var valid15 = true;
+}
+}
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema36.type,parentSchema:schema36,data:data42}];
+return false;
+}
+}
+var valid13 = _errs85 === errors;
+if(!valid13){
+break;
+}
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/reading_warnings",schemaPath:"#/properties/reading_warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema31.properties.reading_warnings.type,parentSchema:schema31.properties.reading_warnings,data:data41}];
+return false;
+}
+}
+var valid0 = _errs83 === errors;
+}
+else {
+var valid0 = true;
+}
 }
 }
 }
@@ -775,16 +921,15 @@ return false;
 validate20.errors = vErrors;
 return errors === 0;
 }
-validate20.evaluated = {"props":{"format":true,"version":true,"tick_hz":true,"edges":true,"tank_c_f":true,"tank_c_u_f":true,"thresholds_v":true,"drive":true,"range":true,"device":true,"meta":true,"calibration":true},"dynamicProps":false,"dynamicItems":false};
+validate20.evaluated = {"props":{"format":true,"version":true,"tick_hz":true,"edges":true,"tank_c_f":true,"tank_c_u_f":true,"thresholds_v":true,"drive":true,"range":true,"device":true,"meta":true,"calibration":true,"reading_warnings":true},"dynamicProps":false,"dynamicItems":false};
 
 export const result = validate21;
-const schema36 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:result:1","title":"henrytick reading result","description":"What `henrytick measure --json` and `henrytick analyze FILE --json` print for one reading (docs/capture-format.md). Units are SI and in the key names; uncertainties named _u_ are expanded (coverage_factor 2). The settings reuse the capture schema's definitions.","type":"object","required":["f0_hz","f0_u_hz","fd_hz","inductance_h","inductance_u_h","coverage_factor","q","q_u","esr_ohm","esr_u_ohm","ring_amplitude_v","edges_used","edges_rejected","warnings","settings"],"properties":{"suspect":{"$ref":"#/$defs/coded","description":"present only for a reading kept on request although it shows a part fault: not a verified result"},"f0_hz":{"type":"number","exclusiveMinimum":0,"description":"undamped resonance"},"f0_u_hz":{"type":"number","minimum":0},"fd_hz":{"type":"number","exclusiveMinimum":0,"description":"damped ring frequency"},"inductance_h":{"type":"number","exclusiveMinimum":0},"inductance_u_h":{"type":"number","minimum":0},"coverage_factor":{"const":2},"q":{"type":"number","exclusiveMinimum":0},"q_u":{"type":"number","minimum":0},"esr_ohm":{"type":"number","minimum":0},"esr_u_ohm":{"type":"number","minimum":0},"ring_amplitude_v":{"type":"number","minimum":0},"edges_used":{"type":"integer","minimum":0},"edges_rejected":{"type":"integer","minimum":0},"warnings":{"type":"array","items":{"$ref":"#/$defs/coded"}},"settings":{"type":"object","required":["tick_hz","tank_c_f","thresholds_v"],"properties":{"tick_hz":{"$ref":"urn:henrytick:schema:capture:1#/properties/tick_hz"},"tank_c_f":{"$ref":"urn:henrytick:schema:capture:1#/properties/tank_c_f"},"tank_c_u_f":{"$ref":"urn:henrytick:schema:capture:1#/properties/tank_c_u_f"},"thresholds_v":{"$ref":"urn:henrytick:schema:capture:1#/properties/thresholds_v"},"drive":{"$ref":"urn:henrytick:schema:capture:1#/$defs/drive"},"range":{"$ref":"urn:henrytick:schema:capture:1#/$defs/range"},"calibration":{"$ref":"urn:henrytick:schema:capture:1#/$defs/calibration"}}},"device":{"$ref":"urn:henrytick:schema:capture:1#/$defs/device"},"label":{"type":"string"}},"$defs":{"coded":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code such as NO_RING (docs/library.md lists them)"},"message":{"type":"string"}}}}};
-const schema37 = {"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code such as NO_RING (docs/library.md lists them)"},"message":{"type":"string"}}};
-const schema39 = {"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"};
-const schema40 = {"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"};
-const schema41 = {"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"};
-const schema42 = {"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2};
-const pattern5 = new RegExp("^[A-Z][A-Z0-9_]*$", "u");
+const schema37 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:result:1","title":"henrytick reading result","description":"What `henrytick measure --json` and `henrytick analyze FILE --json` print for one reading (docs/capture-format.md). Units are SI and in the key names; uncertainties named _u_ are expanded (coverage_factor 2). The settings reuse the capture schema's definitions.","type":"object","required":["f0_hz","f0_u_hz","fd_hz","inductance_h","inductance_u_h","coverage_factor","q","q_u","esr_ohm","esr_u_ohm","ring_amplitude_v","edges_used","edges_rejected","warnings","settings"],"properties":{"suspect":{"$ref":"#/$defs/coded","description":"present only for a reading kept on request although it shows a part fault: not a verified result"},"f0_hz":{"type":"number","exclusiveMinimum":0,"description":"undamped resonance"},"f0_u_hz":{"type":"number","minimum":0},"fd_hz":{"type":"number","exclusiveMinimum":0,"description":"damped ring frequency"},"inductance_h":{"type":"number","exclusiveMinimum":0},"inductance_u_h":{"type":"number","minimum":0},"coverage_factor":{"const":2},"q":{"type":"number","exclusiveMinimum":0},"q_u":{"type":"number","minimum":0},"esr_ohm":{"type":"number","minimum":0},"esr_u_ohm":{"type":"number","minimum":0},"ring_amplitude_v":{"type":"number","minimum":0},"edges_used":{"type":"integer","minimum":0},"edges_rejected":{"type":"integer","minimum":0},"warnings":{"type":"array","items":{"$ref":"#/$defs/coded"}},"settings":{"type":"object","required":["tick_hz","tank_c_f","thresholds_v"],"properties":{"tick_hz":{"$ref":"urn:henrytick:schema:capture:1#/properties/tick_hz"},"tank_c_f":{"$ref":"urn:henrytick:schema:capture:1#/properties/tank_c_f"},"tank_c_u_f":{"$ref":"urn:henrytick:schema:capture:1#/properties/tank_c_u_f"},"thresholds_v":{"$ref":"urn:henrytick:schema:capture:1#/properties/thresholds_v"},"drive":{"$ref":"urn:henrytick:schema:capture:1#/$defs/drive"},"range":{"$ref":"urn:henrytick:schema:capture:1#/$defs/range"},"calibration":{"$ref":"urn:henrytick:schema:capture:1#/$defs/calibration"}}},"device":{"$ref":"urn:henrytick:schema:capture:1#/$defs/device"},"label":{"type":"string"}},"$defs":{"coded":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code such as NO_RING (docs/library.md lists them)"},"message":{"type":"string"}}}}};
+const schema38 = {"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code such as NO_RING (docs/library.md lists them)"},"message":{"type":"string"}}};
+const schema40 = {"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"};
+const schema41 = {"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"};
+const schema42 = {"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"};
+const schema43 = {"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2};
 
 function validate21(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 /*# sourceURL="urn:henrytick:schema:result:1" */;
@@ -801,7 +946,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if((((((((((((((((data.f0_hz === undefined) && (missing0 = "f0_hz")) || ((data.f0_u_hz === undefined) && (missing0 = "f0_u_hz"))) || ((data.fd_hz === undefined) && (missing0 = "fd_hz"))) || ((data.inductance_h === undefined) && (missing0 = "inductance_h"))) || ((data.inductance_u_h === undefined) && (missing0 = "inductance_u_h"))) || ((data.coverage_factor === undefined) && (missing0 = "coverage_factor"))) || ((data.q === undefined) && (missing0 = "q"))) || ((data.q_u === undefined) && (missing0 = "q_u"))) || ((data.esr_ohm === undefined) && (missing0 = "esr_ohm"))) || ((data.esr_u_ohm === undefined) && (missing0 = "esr_u_ohm"))) || ((data.ring_amplitude_v === undefined) && (missing0 = "ring_amplitude_v"))) || ((data.edges_used === undefined) && (missing0 = "edges_used"))) || ((data.edges_rejected === undefined) && (missing0 = "edges_rejected"))) || ((data.warnings === undefined) && (missing0 = "warnings"))) || ((data.settings === undefined) && (missing0 = "settings"))){
-validate21.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema36.required,parentSchema:schema36,data}];
+validate21.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema37.required,parentSchema:schema37,data}];
 return false;
 }
 else {
@@ -813,7 +958,7 @@ if(errors === _errs2){
 if(data0 && typeof data0 == "object" && !Array.isArray(data0)){
 let missing1;
 if(((data0.code === undefined) && (missing1 = "code")) || ((data0.message === undefined) && (missing1 = "message"))){
-validate21.errors = [{instancePath:instancePath+"/suspect",schemaPath:"#/$defs/coded/required",keyword:"required",params:{missingProperty: missing1},message:"must have required property '"+missing1+"'",schema:schema37.required,parentSchema:schema37,data:data0}];
+validate21.errors = [{instancePath:instancePath+"/suspect",schemaPath:"#/$defs/coded/required",keyword:"required",params:{missingProperty: missing1},message:"must have required property '"+missing1+"'",schema:schema38.required,parentSchema:schema38,data:data0}];
 return false;
 }
 else {
@@ -823,12 +968,12 @@ const _errs4 = errors;
 if(errors === _errs4){
 if(typeof data1 === "string"){
 if(!pattern5.test(data1)){
-validate21.errors = [{instancePath:instancePath+"/suspect/code",schemaPath:"#/$defs/coded/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema37.properties.code,data:data1}];
+validate21.errors = [{instancePath:instancePath+"/suspect/code",schemaPath:"#/$defs/coded/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema38.properties.code,data:data1}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/suspect/code",schemaPath:"#/$defs/coded/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.code.type,parentSchema:schema37.properties.code,data:data1}];
+validate21.errors = [{instancePath:instancePath+"/suspect/code",schemaPath:"#/$defs/coded/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.code.type,parentSchema:schema38.properties.code,data:data1}];
 return false;
 }
 }
@@ -842,7 +987,7 @@ if(data0.message !== undefined){
 let data2 = data0.message;
 const _errs6 = errors;
 if(typeof data2 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/suspect/message",schemaPath:"#/$defs/coded/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.message.type,parentSchema:schema37.properties.message,data:data2}];
+validate21.errors = [{instancePath:instancePath+"/suspect/message",schemaPath:"#/$defs/coded/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.message.type,parentSchema:schema38.properties.message,data:data2}];
 return false;
 }
 var valid2 = _errs6 === errors;
@@ -854,7 +999,7 @@ var valid2 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/suspect",schemaPath:"#/$defs/coded/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.type,parentSchema:schema37,data:data0}];
+validate21.errors = [{instancePath:instancePath+"/suspect",schemaPath:"#/$defs/coded/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema38.type,parentSchema:schema38,data:data0}];
 return false;
 }
 }
@@ -870,12 +1015,12 @@ const _errs8 = errors;
 if(errors === _errs8){
 if((typeof data3 == "number") && (isFinite(data3))){
 if(data3 <= 0 || isNaN(data3)){
-validate21.errors = [{instancePath:instancePath+"/f0_hz",schemaPath:"#/properties/f0_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.f0_hz,data:data3}];
+validate21.errors = [{instancePath:instancePath+"/f0_hz",schemaPath:"#/properties/f0_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.f0_hz,data:data3}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/f0_hz",schemaPath:"#/properties/f0_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.f0_hz.type,parentSchema:schema36.properties.f0_hz,data:data3}];
+validate21.errors = [{instancePath:instancePath+"/f0_hz",schemaPath:"#/properties/f0_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.f0_hz.type,parentSchema:schema37.properties.f0_hz,data:data3}];
 return false;
 }
 }
@@ -891,12 +1036,12 @@ const _errs10 = errors;
 if(errors === _errs10){
 if((typeof data4 == "number") && (isFinite(data4))){
 if(data4 < 0 || isNaN(data4)){
-validate21.errors = [{instancePath:instancePath+"/f0_u_hz",schemaPath:"#/properties/f0_u_hz/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.f0_u_hz,data:data4}];
+validate21.errors = [{instancePath:instancePath+"/f0_u_hz",schemaPath:"#/properties/f0_u_hz/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.f0_u_hz,data:data4}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/f0_u_hz",schemaPath:"#/properties/f0_u_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.f0_u_hz.type,parentSchema:schema36.properties.f0_u_hz,data:data4}];
+validate21.errors = [{instancePath:instancePath+"/f0_u_hz",schemaPath:"#/properties/f0_u_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.f0_u_hz.type,parentSchema:schema37.properties.f0_u_hz,data:data4}];
 return false;
 }
 }
@@ -912,12 +1057,12 @@ const _errs12 = errors;
 if(errors === _errs12){
 if((typeof data5 == "number") && (isFinite(data5))){
 if(data5 <= 0 || isNaN(data5)){
-validate21.errors = [{instancePath:instancePath+"/fd_hz",schemaPath:"#/properties/fd_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.fd_hz,data:data5}];
+validate21.errors = [{instancePath:instancePath+"/fd_hz",schemaPath:"#/properties/fd_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.fd_hz,data:data5}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/fd_hz",schemaPath:"#/properties/fd_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.fd_hz.type,parentSchema:schema36.properties.fd_hz,data:data5}];
+validate21.errors = [{instancePath:instancePath+"/fd_hz",schemaPath:"#/properties/fd_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.fd_hz.type,parentSchema:schema37.properties.fd_hz,data:data5}];
 return false;
 }
 }
@@ -933,12 +1078,12 @@ const _errs14 = errors;
 if(errors === _errs14){
 if((typeof data6 == "number") && (isFinite(data6))){
 if(data6 <= 0 || isNaN(data6)){
-validate21.errors = [{instancePath:instancePath+"/inductance_h",schemaPath:"#/properties/inductance_h/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.inductance_h,data:data6}];
+validate21.errors = [{instancePath:instancePath+"/inductance_h",schemaPath:"#/properties/inductance_h/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.inductance_h,data:data6}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/inductance_h",schemaPath:"#/properties/inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.inductance_h.type,parentSchema:schema36.properties.inductance_h,data:data6}];
+validate21.errors = [{instancePath:instancePath+"/inductance_h",schemaPath:"#/properties/inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.inductance_h.type,parentSchema:schema37.properties.inductance_h,data:data6}];
 return false;
 }
 }
@@ -954,12 +1099,12 @@ const _errs16 = errors;
 if(errors === _errs16){
 if((typeof data7 == "number") && (isFinite(data7))){
 if(data7 < 0 || isNaN(data7)){
-validate21.errors = [{instancePath:instancePath+"/inductance_u_h",schemaPath:"#/properties/inductance_u_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.inductance_u_h,data:data7}];
+validate21.errors = [{instancePath:instancePath+"/inductance_u_h",schemaPath:"#/properties/inductance_u_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.inductance_u_h,data:data7}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/inductance_u_h",schemaPath:"#/properties/inductance_u_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.inductance_u_h.type,parentSchema:schema36.properties.inductance_u_h,data:data7}];
+validate21.errors = [{instancePath:instancePath+"/inductance_u_h",schemaPath:"#/properties/inductance_u_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.inductance_u_h.type,parentSchema:schema37.properties.inductance_u_h,data:data7}];
 return false;
 }
 }
@@ -973,7 +1118,7 @@ if(data.coverage_factor !== undefined){
 let data8 = data.coverage_factor;
 const _errs18 = errors;
 if(2 !== data8){
-validate21.errors = [{instancePath:instancePath+"/coverage_factor",schemaPath:"#/properties/coverage_factor/const",keyword:"const",params:{allowedValue: 2},message:"must be equal to constant",schema:2,parentSchema:schema36.properties.coverage_factor,data:data8}];
+validate21.errors = [{instancePath:instancePath+"/coverage_factor",schemaPath:"#/properties/coverage_factor/const",keyword:"const",params:{allowedValue: 2},message:"must be equal to constant",schema:2,parentSchema:schema37.properties.coverage_factor,data:data8}];
 return false;
 }
 var valid0 = _errs18 === errors;
@@ -988,12 +1133,12 @@ const _errs19 = errors;
 if(errors === _errs19){
 if((typeof data9 == "number") && (isFinite(data9))){
 if(data9 <= 0 || isNaN(data9)){
-validate21.errors = [{instancePath:instancePath+"/q",schemaPath:"#/properties/q/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.q,data:data9}];
+validate21.errors = [{instancePath:instancePath+"/q",schemaPath:"#/properties/q/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.q,data:data9}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/q",schemaPath:"#/properties/q/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.q.type,parentSchema:schema36.properties.q,data:data9}];
+validate21.errors = [{instancePath:instancePath+"/q",schemaPath:"#/properties/q/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.q.type,parentSchema:schema37.properties.q,data:data9}];
 return false;
 }
 }
@@ -1009,12 +1154,12 @@ const _errs21 = errors;
 if(errors === _errs21){
 if((typeof data10 == "number") && (isFinite(data10))){
 if(data10 < 0 || isNaN(data10)){
-validate21.errors = [{instancePath:instancePath+"/q_u",schemaPath:"#/properties/q_u/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.q_u,data:data10}];
+validate21.errors = [{instancePath:instancePath+"/q_u",schemaPath:"#/properties/q_u/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.q_u,data:data10}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/q_u",schemaPath:"#/properties/q_u/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.q_u.type,parentSchema:schema36.properties.q_u,data:data10}];
+validate21.errors = [{instancePath:instancePath+"/q_u",schemaPath:"#/properties/q_u/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.q_u.type,parentSchema:schema37.properties.q_u,data:data10}];
 return false;
 }
 }
@@ -1030,12 +1175,12 @@ const _errs23 = errors;
 if(errors === _errs23){
 if((typeof data11 == "number") && (isFinite(data11))){
 if(data11 < 0 || isNaN(data11)){
-validate21.errors = [{instancePath:instancePath+"/esr_ohm",schemaPath:"#/properties/esr_ohm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.esr_ohm,data:data11}];
+validate21.errors = [{instancePath:instancePath+"/esr_ohm",schemaPath:"#/properties/esr_ohm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.esr_ohm,data:data11}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/esr_ohm",schemaPath:"#/properties/esr_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.esr_ohm.type,parentSchema:schema36.properties.esr_ohm,data:data11}];
+validate21.errors = [{instancePath:instancePath+"/esr_ohm",schemaPath:"#/properties/esr_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.esr_ohm.type,parentSchema:schema37.properties.esr_ohm,data:data11}];
 return false;
 }
 }
@@ -1051,12 +1196,12 @@ const _errs25 = errors;
 if(errors === _errs25){
 if((typeof data12 == "number") && (isFinite(data12))){
 if(data12 < 0 || isNaN(data12)){
-validate21.errors = [{instancePath:instancePath+"/esr_u_ohm",schemaPath:"#/properties/esr_u_ohm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.esr_u_ohm,data:data12}];
+validate21.errors = [{instancePath:instancePath+"/esr_u_ohm",schemaPath:"#/properties/esr_u_ohm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.esr_u_ohm,data:data12}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/esr_u_ohm",schemaPath:"#/properties/esr_u_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.esr_u_ohm.type,parentSchema:schema36.properties.esr_u_ohm,data:data12}];
+validate21.errors = [{instancePath:instancePath+"/esr_u_ohm",schemaPath:"#/properties/esr_u_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.esr_u_ohm.type,parentSchema:schema37.properties.esr_u_ohm,data:data12}];
 return false;
 }
 }
@@ -1072,12 +1217,12 @@ const _errs27 = errors;
 if(errors === _errs27){
 if((typeof data13 == "number") && (isFinite(data13))){
 if(data13 < 0 || isNaN(data13)){
-validate21.errors = [{instancePath:instancePath+"/ring_amplitude_v",schemaPath:"#/properties/ring_amplitude_v/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.ring_amplitude_v,data:data13}];
+validate21.errors = [{instancePath:instancePath+"/ring_amplitude_v",schemaPath:"#/properties/ring_amplitude_v/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.ring_amplitude_v,data:data13}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/ring_amplitude_v",schemaPath:"#/properties/ring_amplitude_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.ring_amplitude_v.type,parentSchema:schema36.properties.ring_amplitude_v,data:data13}];
+validate21.errors = [{instancePath:instancePath+"/ring_amplitude_v",schemaPath:"#/properties/ring_amplitude_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.ring_amplitude_v.type,parentSchema:schema37.properties.ring_amplitude_v,data:data13}];
 return false;
 }
 }
@@ -1091,13 +1236,13 @@ if(data.edges_used !== undefined){
 let data14 = data.edges_used;
 const _errs29 = errors;
 if(!(((typeof data14 == "number") && (!(data14 % 1) && !isNaN(data14))) && (isFinite(data14)))){
-validate21.errors = [{instancePath:instancePath+"/edges_used",schemaPath:"#/properties/edges_used/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema36.properties.edges_used.type,parentSchema:schema36.properties.edges_used,data:data14}];
+validate21.errors = [{instancePath:instancePath+"/edges_used",schemaPath:"#/properties/edges_used/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema37.properties.edges_used.type,parentSchema:schema37.properties.edges_used,data:data14}];
 return false;
 }
 if(errors === _errs29){
 if((typeof data14 == "number") && (isFinite(data14))){
 if(data14 < 0 || isNaN(data14)){
-validate21.errors = [{instancePath:instancePath+"/edges_used",schemaPath:"#/properties/edges_used/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.edges_used,data:data14}];
+validate21.errors = [{instancePath:instancePath+"/edges_used",schemaPath:"#/properties/edges_used/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.edges_used,data:data14}];
 return false;
 }
 }
@@ -1112,13 +1257,13 @@ if(data.edges_rejected !== undefined){
 let data15 = data.edges_rejected;
 const _errs31 = errors;
 if(!(((typeof data15 == "number") && (!(data15 % 1) && !isNaN(data15))) && (isFinite(data15)))){
-validate21.errors = [{instancePath:instancePath+"/edges_rejected",schemaPath:"#/properties/edges_rejected/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema36.properties.edges_rejected.type,parentSchema:schema36.properties.edges_rejected,data:data15}];
+validate21.errors = [{instancePath:instancePath+"/edges_rejected",schemaPath:"#/properties/edges_rejected/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema37.properties.edges_rejected.type,parentSchema:schema37.properties.edges_rejected,data:data15}];
 return false;
 }
 if(errors === _errs31){
 if((typeof data15 == "number") && (isFinite(data15))){
 if(data15 < 0 || isNaN(data15)){
-validate21.errors = [{instancePath:instancePath+"/edges_rejected",schemaPath:"#/properties/edges_rejected/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.edges_rejected,data:data15}];
+validate21.errors = [{instancePath:instancePath+"/edges_rejected",schemaPath:"#/properties/edges_rejected/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.edges_rejected,data:data15}];
 return false;
 }
 }
@@ -1144,7 +1289,7 @@ if(errors === _errs36){
 if(data17 && typeof data17 == "object" && !Array.isArray(data17)){
 let missing2;
 if(((data17.code === undefined) && (missing2 = "code")) || ((data17.message === undefined) && (missing2 = "message"))){
-validate21.errors = [{instancePath:instancePath+"/warnings/" + i0,schemaPath:"#/$defs/coded/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema37.required,parentSchema:schema37,data:data17}];
+validate21.errors = [{instancePath:instancePath+"/warnings/" + i0,schemaPath:"#/$defs/coded/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema38.required,parentSchema:schema38,data:data17}];
 return false;
 }
 else {
@@ -1154,12 +1299,12 @@ const _errs38 = errors;
 if(errors === _errs38){
 if(typeof data18 === "string"){
 if(!pattern5.test(data18)){
-validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/code",schemaPath:"#/$defs/coded/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema37.properties.code,data:data18}];
+validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/code",schemaPath:"#/$defs/coded/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema38.properties.code,data:data18}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/code",schemaPath:"#/$defs/coded/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.code.type,parentSchema:schema37.properties.code,data:data18}];
+validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/code",schemaPath:"#/$defs/coded/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.code.type,parentSchema:schema38.properties.code,data:data18}];
 return false;
 }
 }
@@ -1173,7 +1318,7 @@ if(data17.message !== undefined){
 let data19 = data17.message;
 const _errs40 = errors;
 if(typeof data19 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/message",schemaPath:"#/$defs/coded/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.message.type,parentSchema:schema37.properties.message,data:data19}];
+validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/message",schemaPath:"#/$defs/coded/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.message.type,parentSchema:schema38.properties.message,data:data19}];
 return false;
 }
 var valid5 = _errs40 === errors;
@@ -1185,7 +1330,7 @@ var valid5 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/warnings/" + i0,schemaPath:"#/$defs/coded/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.type,parentSchema:schema37,data:data17}];
+validate21.errors = [{instancePath:instancePath+"/warnings/" + i0,schemaPath:"#/$defs/coded/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema38.type,parentSchema:schema38,data:data17}];
 return false;
 }
 }
@@ -1196,7 +1341,7 @@ break;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/warnings",schemaPath:"#/properties/warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema36.properties.warnings.type,parentSchema:schema36.properties.warnings,data:data16}];
+validate21.errors = [{instancePath:instancePath+"/warnings",schemaPath:"#/properties/warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema37.properties.warnings.type,parentSchema:schema37.properties.warnings,data:data16}];
 return false;
 }
 }
@@ -1213,7 +1358,7 @@ if(errors === _errs42){
 if(data20 && typeof data20 == "object" && !Array.isArray(data20)){
 let missing3;
 if((((data20.tick_hz === undefined) && (missing3 = "tick_hz")) || ((data20.tank_c_f === undefined) && (missing3 = "tank_c_f"))) || ((data20.thresholds_v === undefined) && (missing3 = "thresholds_v"))){
-validate21.errors = [{instancePath:instancePath+"/settings",schemaPath:"#/properties/settings/required",keyword:"required",params:{missingProperty: missing3},message:"must have required property '"+missing3+"'",schema:schema36.properties.settings.required,parentSchema:schema36.properties.settings,data:data20}];
+validate21.errors = [{instancePath:instancePath+"/settings",schemaPath:"#/properties/settings/required",keyword:"required",params:{missingProperty: missing3},message:"must have required property '"+missing3+"'",schema:schema37.properties.settings.required,parentSchema:schema37.properties.settings,data:data20}];
 return false;
 }
 else {
@@ -1224,12 +1369,12 @@ const _errs45 = errors;
 if(errors === _errs45){
 if((typeof data21 == "number") && (isFinite(data21))){
 if(data21 <= 0 || isNaN(data21)){
-validate21.errors = [{instancePath:instancePath+"/settings/tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/properties/tick_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema39,data:data21}];
+validate21.errors = [{instancePath:instancePath+"/settings/tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/properties/tick_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema40,data:data21}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/properties/tick_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema39.type,parentSchema:schema39,data:data21}];
+validate21.errors = [{instancePath:instancePath+"/settings/tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/properties/tick_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema40.type,parentSchema:schema40,data:data21}];
 return false;
 }
 }
@@ -1246,12 +1391,12 @@ const _errs48 = errors;
 if(errors === _errs48){
 if((typeof data22 == "number") && (isFinite(data22))){
 if(data22 <= 0 || isNaN(data22)){
-validate21.errors = [{instancePath:instancePath+"/settings/tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema40,data:data22}];
+validate21.errors = [{instancePath:instancePath+"/settings/tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema41,data:data22}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema40.type,parentSchema:schema40,data:data22}];
+validate21.errors = [{instancePath:instancePath+"/settings/tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema41.type,parentSchema:schema41,data:data22}];
 return false;
 }
 }
@@ -1268,12 +1413,12 @@ const _errs51 = errors;
 if(errors === _errs51){
 if((typeof data23 == "number") && (isFinite(data23))){
 if(data23 <= 0 || isNaN(data23)){
-validate21.errors = [{instancePath:instancePath+"/settings/tank_c_u_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_u_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema41,data:data23}];
+validate21.errors = [{instancePath:instancePath+"/settings/tank_c_u_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_u_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema42,data:data23}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/tank_c_u_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema41.type,parentSchema:schema41,data:data23}];
+validate21.errors = [{instancePath:instancePath+"/settings/tank_c_u_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema42.type,parentSchema:schema42,data:data23}];
 return false;
 }
 }
@@ -1290,12 +1435,12 @@ const _errs54 = errors;
 if(errors === _errs54){
 if(Array.isArray(data24)){
 if(data24.length > 2){
-validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema42,data:data24}];
+validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema43,data:data24}];
 return false;
 }
 else {
 if(data24.length < 2){
-validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema42,data:data24}];
+validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema43,data:data24}];
 return false;
 }
 else {
@@ -1304,7 +1449,7 @@ if(len1 > 0){
 let data25 = data24[0];
 const _errs56 = errors;
 if(!((typeof data25 == "number") && (isFinite(data25)))){
-validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v/0",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/prefixItems/0/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema42.prefixItems[0].type,parentSchema:schema42.prefixItems[0],data:data25}];
+validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v/0",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/prefixItems/0/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema43.prefixItems[0].type,parentSchema:schema43.prefixItems[0],data:data25}];
 return false;
 }
 var valid11 = _errs56 === errors;
@@ -1314,7 +1459,7 @@ if(len1 > 1){
 let data26 = data24[1];
 const _errs58 = errors;
 if(!((typeof data26 == "number") && (isFinite(data26)))){
-validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v/1",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/prefixItems/1/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema42.prefixItems[1].type,parentSchema:schema42.prefixItems[1],data:data26}];
+validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v/1",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/prefixItems/1/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema43.prefixItems[1].type,parentSchema:schema43.prefixItems[1],data:data26}];
 return false;
 }
 var valid11 = _errs58 === errors;
@@ -1324,7 +1469,7 @@ var valid11 = _errs58 === errors;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema42.type,parentSchema:schema42,data:data24}];
+validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema43.type,parentSchema:schema43,data:data24}];
 return false;
 }
 }
@@ -1387,6 +1532,28 @@ var valid13 = _errs65 === errors;
 else {
 var valid13 = true;
 }
+if(valid13){
+if(data27.clamp_v !== undefined){
+let data30 = data27.clamp_v;
+const _errs67 = errors;
+if(errors === _errs67){
+if((typeof data30 == "number") && (isFinite(data30))){
+if(data30 <= 0 || isNaN(data30)){
+validate21.errors = [{instancePath:instancePath+"/settings/drive/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/drive/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema32.properties.clamp_v,data:data30}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings/drive/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/drive/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema32.properties.clamp_v.type,parentSchema:schema32.properties.clamp_v,data:data30}];
+return false;
+}
+}
+var valid13 = _errs67 === errors;
+}
+else {
+var valid13 = true;
+}
+}
 }
 }
 }
@@ -1402,49 +1569,28 @@ var valid6 = true;
 }
 if(valid6){
 if(data20.range !== undefined){
-let data30 = data20.range;
-const _errs67 = errors;
-const _errs68 = errors;
-if(errors === _errs68){
-if(data30 && typeof data30 == "object" && !Array.isArray(data30)){
-let missing5;
-if(((((((data30.drive_index === undefined) && (missing5 = "drive_index")) || ((data30.tank_index === undefined) && (missing5 = "tank_index"))) || ((data30.charge_us === undefined) && (missing5 = "charge_us"))) || ((data30.edge_limit === undefined) && (missing5 = "edge_limit"))) || ((data30.timeout_ms === undefined) && (missing5 = "timeout_ms"))) || ((data30.quiet_us === undefined) && (missing5 = "quiet_us"))){
-validate21.errors = [{instancePath:instancePath+"/settings/range",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/required",keyword:"required",params:{missingProperty: missing5},message:"must have required property '"+missing5+"'",schema:schema33.required,parentSchema:schema33,data:data30}];
-return false;
-}
-else {
-if(data30.drive_index !== undefined){
-let data31 = data30.drive_index;
+let data31 = data20.range;
+const _errs69 = errors;
 const _errs70 = errors;
-if(!(((typeof data31 == "number") && (!(data31 % 1) && !isNaN(data31))) && (isFinite(data31)))){
-validate21.errors = [{instancePath:instancePath+"/settings/range/drive_index",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/drive_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.drive_index.type,parentSchema:schema33.properties.drive_index,data:data31}];
-return false;
-}
 if(errors === _errs70){
-if((typeof data31 == "number") && (isFinite(data31))){
-if(data31 < 0 || isNaN(data31)){
-validate21.errors = [{instancePath:instancePath+"/settings/range/drive_index",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/drive_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.drive_index,data:data31}];
+if(data31 && typeof data31 == "object" && !Array.isArray(data31)){
+let missing5;
+if(((((((data31.drive_index === undefined) && (missing5 = "drive_index")) || ((data31.tank_index === undefined) && (missing5 = "tank_index"))) || ((data31.charge_us === undefined) && (missing5 = "charge_us"))) || ((data31.edge_limit === undefined) && (missing5 = "edge_limit"))) || ((data31.timeout_ms === undefined) && (missing5 = "timeout_ms"))) || ((data31.quiet_us === undefined) && (missing5 = "quiet_us"))){
+validate21.errors = [{instancePath:instancePath+"/settings/range",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/required",keyword:"required",params:{missingProperty: missing5},message:"must have required property '"+missing5+"'",schema:schema33.required,parentSchema:schema33,data:data31}];
 return false;
-}
-}
-}
-var valid15 = _errs70 === errors;
 }
 else {
-var valid15 = true;
-}
-if(valid15){
-if(data30.tank_index !== undefined){
-let data32 = data30.tank_index;
+if(data31.drive_index !== undefined){
+let data32 = data31.drive_index;
 const _errs72 = errors;
 if(!(((typeof data32 == "number") && (!(data32 % 1) && !isNaN(data32))) && (isFinite(data32)))){
-validate21.errors = [{instancePath:instancePath+"/settings/range/tank_index",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.tank_index.type,parentSchema:schema33.properties.tank_index,data:data32}];
+validate21.errors = [{instancePath:instancePath+"/settings/range/drive_index",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/drive_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.drive_index.type,parentSchema:schema33.properties.drive_index,data:data32}];
 return false;
 }
 if(errors === _errs72){
 if((typeof data32 == "number") && (isFinite(data32))){
 if(data32 < 0 || isNaN(data32)){
-validate21.errors = [{instancePath:instancePath+"/settings/range/tank_index",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.tank_index,data:data32}];
+validate21.errors = [{instancePath:instancePath+"/settings/range/drive_index",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/drive_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.drive_index,data:data32}];
 return false;
 }
 }
@@ -1455,19 +1601,19 @@ else {
 var valid15 = true;
 }
 if(valid15){
-if(data30.charge_us !== undefined){
-let data33 = data30.charge_us;
+if(data31.tank_index !== undefined){
+let data33 = data31.tank_index;
 const _errs74 = errors;
+if(!(((typeof data33 == "number") && (!(data33 % 1) && !isNaN(data33))) && (isFinite(data33)))){
+validate21.errors = [{instancePath:instancePath+"/settings/range/tank_index",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.tank_index.type,parentSchema:schema33.properties.tank_index,data:data33}];
+return false;
+}
 if(errors === _errs74){
 if((typeof data33 == "number") && (isFinite(data33))){
 if(data33 < 0 || isNaN(data33)){
-validate21.errors = [{instancePath:instancePath+"/settings/range/charge_us",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/charge_us/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.charge_us,data:data33}];
+validate21.errors = [{instancePath:instancePath+"/settings/range/tank_index",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.tank_index,data:data33}];
 return false;
 }
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/settings/range/charge_us",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/charge_us/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.charge_us.type,parentSchema:schema33.properties.charge_us,data:data33}];
-return false;
 }
 }
 var valid15 = _errs74 === errors;
@@ -1476,19 +1622,19 @@ else {
 var valid15 = true;
 }
 if(valid15){
-if(data30.edge_limit !== undefined){
-let data34 = data30.edge_limit;
+if(data31.charge_us !== undefined){
+let data34 = data31.charge_us;
 const _errs76 = errors;
-if(!(((typeof data34 == "number") && (!(data34 % 1) && !isNaN(data34))) && (isFinite(data34)))){
-validate21.errors = [{instancePath:instancePath+"/settings/range/edge_limit",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/edge_limit/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.edge_limit.type,parentSchema:schema33.properties.edge_limit,data:data34}];
-return false;
-}
 if(errors === _errs76){
 if((typeof data34 == "number") && (isFinite(data34))){
 if(data34 < 0 || isNaN(data34)){
-validate21.errors = [{instancePath:instancePath+"/settings/range/edge_limit",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/edge_limit/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.edge_limit,data:data34}];
+validate21.errors = [{instancePath:instancePath+"/settings/range/charge_us",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/charge_us/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.charge_us,data:data34}];
 return false;
 }
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings/range/charge_us",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/charge_us/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.charge_us.type,parentSchema:schema33.properties.charge_us,data:data34}];
+return false;
 }
 }
 var valid15 = _errs76 === errors;
@@ -1497,19 +1643,19 @@ else {
 var valid15 = true;
 }
 if(valid15){
-if(data30.timeout_ms !== undefined){
-let data35 = data30.timeout_ms;
+if(data31.edge_limit !== undefined){
+let data35 = data31.edge_limit;
 const _errs78 = errors;
+if(!(((typeof data35 == "number") && (!(data35 % 1) && !isNaN(data35))) && (isFinite(data35)))){
+validate21.errors = [{instancePath:instancePath+"/settings/range/edge_limit",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/edge_limit/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.edge_limit.type,parentSchema:schema33.properties.edge_limit,data:data35}];
+return false;
+}
 if(errors === _errs78){
 if((typeof data35 == "number") && (isFinite(data35))){
 if(data35 < 0 || isNaN(data35)){
-validate21.errors = [{instancePath:instancePath+"/settings/range/timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/timeout_ms/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.timeout_ms,data:data35}];
+validate21.errors = [{instancePath:instancePath+"/settings/range/edge_limit",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/edge_limit/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.edge_limit,data:data35}];
 return false;
 }
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/settings/range/timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.timeout_ms.type,parentSchema:schema33.properties.timeout_ms,data:data35}];
-return false;
 }
 }
 var valid15 = _errs78 === errors;
@@ -1518,22 +1664,43 @@ else {
 var valid15 = true;
 }
 if(valid15){
-if(data30.quiet_us !== undefined){
-let data36 = data30.quiet_us;
+if(data31.timeout_ms !== undefined){
+let data36 = data31.timeout_ms;
 const _errs80 = errors;
 if(errors === _errs80){
 if((typeof data36 == "number") && (isFinite(data36))){
 if(data36 < 0 || isNaN(data36)){
-validate21.errors = [{instancePath:instancePath+"/settings/range/quiet_us",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/quiet_us/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.quiet_us,data:data36}];
+validate21.errors = [{instancePath:instancePath+"/settings/range/timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/timeout_ms/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.timeout_ms,data:data36}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/range/quiet_us",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/quiet_us/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.quiet_us.type,parentSchema:schema33.properties.quiet_us,data:data36}];
+validate21.errors = [{instancePath:instancePath+"/settings/range/timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.timeout_ms.type,parentSchema:schema33.properties.timeout_ms,data:data36}];
 return false;
 }
 }
 var valid15 = _errs80 === errors;
+}
+else {
+var valid15 = true;
+}
+if(valid15){
+if(data31.quiet_us !== undefined){
+let data37 = data31.quiet_us;
+const _errs82 = errors;
+if(errors === _errs82){
+if((typeof data37 == "number") && (isFinite(data37))){
+if(data37 < 0 || isNaN(data37)){
+validate21.errors = [{instancePath:instancePath+"/settings/range/quiet_us",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/quiet_us/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.quiet_us,data:data37}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings/range/quiet_us",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/quiet_us/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.quiet_us.type,parentSchema:schema33.properties.quiet_us,data:data37}];
+return false;
+}
+}
+var valid15 = _errs82 === errors;
 }
 else {
 var valid15 = true;
@@ -1546,46 +1713,33 @@ var valid15 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/range",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema33.type,parentSchema:schema33,data:data30}];
+validate21.errors = [{instancePath:instancePath+"/settings/range",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema33.type,parentSchema:schema33,data:data31}];
 return false;
 }
 }
-var valid6 = _errs67 === errors;
+var valid6 = _errs69 === errors;
 }
 else {
 var valid6 = true;
 }
 if(valid6){
 if(data20.calibration !== undefined){
-let data37 = data20.calibration;
-const _errs82 = errors;
-const _errs83 = errors;
-if(errors === _errs83){
-if(data37 && typeof data37 == "object" && !Array.isArray(data37)){
-let missing6;
-if((((((data37.source === undefined) && (missing6 = "source")) || ((data37.tank_calibrated === undefined) && (missing6 = "tank_calibrated"))) || ((data37.nominal_tank_c_f === undefined) && (missing6 = "nominal_tank_c_f"))) || ((data37.nominal_tick_hz === undefined) && (missing6 = "nominal_tick_hz"))) || ((data37.timebase_ppm === undefined) && (missing6 = "timebase_ppm"))){
-validate21.errors = [{instancePath:instancePath+"/settings/calibration",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/required",keyword:"required",params:{missingProperty: missing6},message:"must have required property '"+missing6+"'",schema:schema35.required,parentSchema:schema35,data:data37}];
-return false;
-}
-else {
-if(data37.source !== undefined){
-let data38 = data37.source;
+let data38 = data20.calibration;
+const _errs84 = errors;
 const _errs85 = errors;
-if(typeof data38 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/source",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/source/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema35.properties.source.type,parentSchema:schema35.properties.source,data:data38}];
+if(errors === _errs85){
+if(data38 && typeof data38 == "object" && !Array.isArray(data38)){
+let missing6;
+if((((((data38.source === undefined) && (missing6 = "source")) || ((data38.tank_calibrated === undefined) && (missing6 = "tank_calibrated"))) || ((data38.nominal_tank_c_f === undefined) && (missing6 = "nominal_tank_c_f"))) || ((data38.nominal_tick_hz === undefined) && (missing6 = "nominal_tick_hz"))) || ((data38.timebase_ppm === undefined) && (missing6 = "timebase_ppm"))){
+validate21.errors = [{instancePath:instancePath+"/settings/calibration",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/required",keyword:"required",params:{missingProperty: missing6},message:"must have required property '"+missing6+"'",schema:schema35.required,parentSchema:schema35,data:data38}];
 return false;
 }
-var valid17 = _errs85 === errors;
-}
 else {
-var valid17 = true;
-}
-if(valid17){
-if(data37.tank_calibrated !== undefined){
-let data39 = data37.tank_calibrated;
+if(data38.source !== undefined){
+let data39 = data38.source;
 const _errs87 = errors;
-if(typeof data39 !== "boolean"){
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/tank_calibrated",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/tank_calibrated/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema35.properties.tank_calibrated.type,parentSchema:schema35.properties.tank_calibrated,data:data39}];
+if(typeof data39 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/source",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/source/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema35.properties.source.type,parentSchema:schema35.properties.source,data:data39}];
 return false;
 }
 var valid17 = _errs87 === errors;
@@ -1594,20 +1748,12 @@ else {
 var valid17 = true;
 }
 if(valid17){
-if(data37.nominal_tank_c_f !== undefined){
-let data40 = data37.nominal_tank_c_f;
+if(data38.tank_calibrated !== undefined){
+let data40 = data38.tank_calibrated;
 const _errs89 = errors;
-if(errors === _errs89){
-if((typeof data40 == "number") && (isFinite(data40))){
-if(data40 <= 0 || isNaN(data40)){
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/nominal_tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/nominal_tank_c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tank_c_f,data:data40}];
+if(typeof data40 !== "boolean"){
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/tank_calibrated",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/tank_calibrated/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema35.properties.tank_calibrated.type,parentSchema:schema35.properties.tank_calibrated,data:data40}];
 return false;
-}
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/nominal_tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/nominal_tank_c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tank_c_f.type,parentSchema:schema35.properties.nominal_tank_c_f,data:data40}];
-return false;
-}
 }
 var valid17 = _errs89 === errors;
 }
@@ -1615,18 +1761,18 @@ else {
 var valid17 = true;
 }
 if(valid17){
-if(data37.nominal_tick_hz !== undefined){
-let data41 = data37.nominal_tick_hz;
+if(data38.nominal_tank_c_f !== undefined){
+let data41 = data38.nominal_tank_c_f;
 const _errs91 = errors;
 if(errors === _errs91){
 if((typeof data41 == "number") && (isFinite(data41))){
 if(data41 <= 0 || isNaN(data41)){
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/nominal_tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/nominal_tick_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tick_hz,data:data41}];
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/nominal_tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/nominal_tank_c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tank_c_f,data:data41}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/nominal_tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/nominal_tick_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tick_hz.type,parentSchema:schema35.properties.nominal_tick_hz,data:data41}];
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/nominal_tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/nominal_tank_c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tank_c_f.type,parentSchema:schema35.properties.nominal_tank_c_f,data:data41}];
 return false;
 }
 }
@@ -1636,12 +1782,20 @@ else {
 var valid17 = true;
 }
 if(valid17){
-if(data37.timebase_ppm !== undefined){
-let data42 = data37.timebase_ppm;
+if(data38.nominal_tick_hz !== undefined){
+let data42 = data38.nominal_tick_hz;
 const _errs93 = errors;
-if(!((typeof data42 == "number") && (isFinite(data42)))){
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/timebase_ppm",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/timebase_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_ppm.type,parentSchema:schema35.properties.timebase_ppm,data:data42}];
+if(errors === _errs93){
+if((typeof data42 == "number") && (isFinite(data42))){
+if(data42 <= 0 || isNaN(data42)){
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/nominal_tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/nominal_tick_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tick_hz,data:data42}];
 return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/nominal_tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/nominal_tick_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tick_hz.type,parentSchema:schema35.properties.nominal_tick_hz,data:data42}];
+return false;
+}
 }
 var valid17 = _errs93 === errors;
 }
@@ -1649,22 +1803,35 @@ else {
 var valid17 = true;
 }
 if(valid17){
-if(data37.timebase_u_ppm !== undefined){
-let data43 = data37.timebase_u_ppm;
+if(data38.timebase_ppm !== undefined){
+let data43 = data38.timebase_ppm;
 const _errs95 = errors;
-if(errors === _errs95){
-if((typeof data43 == "number") && (isFinite(data43))){
-if(data43 < 0 || isNaN(data43)){
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/timebase_u_ppm",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/timebase_u_ppm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema35.properties.timebase_u_ppm,data:data43}];
+if(!((typeof data43 == "number") && (isFinite(data43)))){
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/timebase_ppm",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/timebase_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_ppm.type,parentSchema:schema35.properties.timebase_ppm,data:data43}];
+return false;
+}
+var valid17 = _errs95 === errors;
+}
+else {
+var valid17 = true;
+}
+if(valid17){
+if(data38.timebase_u_ppm !== undefined){
+let data44 = data38.timebase_u_ppm;
+const _errs97 = errors;
+if(errors === _errs97){
+if((typeof data44 == "number") && (isFinite(data44))){
+if(data44 < 0 || isNaN(data44)){
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/timebase_u_ppm",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/timebase_u_ppm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema35.properties.timebase_u_ppm,data:data44}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/timebase_u_ppm",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/timebase_u_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_u_ppm.type,parentSchema:schema35.properties.timebase_u_ppm,data:data43}];
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/timebase_u_ppm",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/timebase_u_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_u_ppm.type,parentSchema:schema35.properties.timebase_u_ppm,data:data44}];
 return false;
 }
 }
-var valid17 = _errs95 === errors;
+var valid17 = _errs97 === errors;
 }
 else {
 var valid17 = true;
@@ -1677,11 +1844,11 @@ var valid17 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/calibration",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema35.type,parentSchema:schema35,data:data37}];
+validate21.errors = [{instancePath:instancePath+"/settings/calibration",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema35.type,parentSchema:schema35,data:data38}];
 return false;
 }
 }
-var valid6 = _errs82 === errors;
+var valid6 = _errs84 === errors;
 }
 else {
 var valid6 = true;
@@ -1695,7 +1862,7 @@ var valid6 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings",schemaPath:"#/properties/settings/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema36.properties.settings.type,parentSchema:schema36.properties.settings,data:data20}];
+validate21.errors = [{instancePath:instancePath+"/settings",schemaPath:"#/properties/settings/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.properties.settings.type,parentSchema:schema37.properties.settings,data:data20}];
 return false;
 }
 }
@@ -1706,35 +1873,22 @@ var valid0 = true;
 }
 if(valid0){
 if(data.device !== undefined){
-let data44 = data.device;
-const _errs97 = errors;
-const _errs98 = errors;
-if(errors === _errs98){
-if(data44 && typeof data44 == "object" && !Array.isArray(data44)){
-let missing7;
-if(((((data44.id === undefined) && (missing7 = "id")) || ((data44.firmware_version === undefined) && (missing7 = "firmware_version"))) || ((data44.protocol_version === undefined) && (missing7 = "protocol_version"))) || ((data44.transport === undefined) && (missing7 = "transport"))){
-validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/required",keyword:"required",params:{missingProperty: missing7},message:"must have required property '"+missing7+"'",schema:schema34.required,parentSchema:schema34,data:data44}];
-return false;
-}
-else {
-if(data44.id !== undefined){
-let data45 = data44.id;
+let data45 = data.device;
+const _errs99 = errors;
 const _errs100 = errors;
-if(typeof data45 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/id",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.id.type,parentSchema:schema34.properties.id,data:data45}];
+if(errors === _errs100){
+if(data45 && typeof data45 == "object" && !Array.isArray(data45)){
+let missing7;
+if(((((data45.id === undefined) && (missing7 = "id")) || ((data45.firmware_version === undefined) && (missing7 = "firmware_version"))) || ((data45.protocol_version === undefined) && (missing7 = "protocol_version"))) || ((data45.transport === undefined) && (missing7 = "transport"))){
+validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/required",keyword:"required",params:{missingProperty: missing7},message:"must have required property '"+missing7+"'",schema:schema34.required,parentSchema:schema34,data:data45}];
 return false;
 }
-var valid19 = _errs100 === errors;
-}
 else {
-var valid19 = true;
-}
-if(valid19){
-if(data44.firmware_version !== undefined){
-let data46 = data44.firmware_version;
+if(data45.id !== undefined){
+let data46 = data45.id;
 const _errs102 = errors;
 if(typeof data46 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/firmware_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/firmware_version/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.firmware_version.type,parentSchema:schema34.properties.firmware_version,data:data46}];
+validate21.errors = [{instancePath:instancePath+"/device/id",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.id.type,parentSchema:schema34.properties.id,data:data46}];
 return false;
 }
 var valid19 = _errs102 === errors;
@@ -1743,20 +1897,12 @@ else {
 var valid19 = true;
 }
 if(valid19){
-if(data44.protocol_version !== undefined){
-let data47 = data44.protocol_version;
+if(data45.firmware_version !== undefined){
+let data47 = data45.firmware_version;
 const _errs104 = errors;
-if(!(((typeof data47 == "number") && (!(data47 % 1) && !isNaN(data47))) && (isFinite(data47)))){
-validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema34.properties.protocol_version.type,parentSchema:schema34.properties.protocol_version,data:data47}];
+if(typeof data47 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/device/firmware_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/firmware_version/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.firmware_version.type,parentSchema:schema34.properties.firmware_version,data:data47}];
 return false;
-}
-if(errors === _errs104){
-if((typeof data47 == "number") && (isFinite(data47))){
-if(data47 < 0 || isNaN(data47)){
-validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema34.properties.protocol_version,data:data47}];
-return false;
-}
-}
 }
 var valid19 = _errs104 === errors;
 }
@@ -1764,14 +1910,77 @@ else {
 var valid19 = true;
 }
 if(valid19){
-if(data44.transport !== undefined){
-let data48 = data44.transport;
+if(data45.protocol_version !== undefined){
+let data48 = data45.protocol_version;
 const _errs106 = errors;
-if(typeof data48 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/transport",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/transport/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.transport.type,parentSchema:schema34.properties.transport,data:data48}];
+if(!(((typeof data48 == "number") && (!(data48 % 1) && !isNaN(data48))) && (isFinite(data48)))){
+validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema34.properties.protocol_version.type,parentSchema:schema34.properties.protocol_version,data:data48}];
 return false;
 }
+if(errors === _errs106){
+if((typeof data48 == "number") && (isFinite(data48))){
+if(data48 < 0 || isNaN(data48)){
+validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema34.properties.protocol_version,data:data48}];
+return false;
+}
+}
+}
 var valid19 = _errs106 === errors;
+}
+else {
+var valid19 = true;
+}
+if(valid19){
+if(data45.transport !== undefined){
+let data49 = data45.transport;
+const _errs108 = errors;
+if(typeof data49 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/device/transport",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/transport/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.transport.type,parentSchema:schema34.properties.transport,data:data49}];
+return false;
+}
+var valid19 = _errs108 === errors;
+}
+else {
+var valid19 = true;
+}
+if(valid19){
+if(data45.clamp_v !== undefined){
+let data50 = data45.clamp_v;
+const _errs110 = errors;
+if(errors === _errs110){
+if((typeof data50 == "number") && (isFinite(data50))){
+if(data50 <= 0 || isNaN(data50)){
+validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.clamp_v,data:data50}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.clamp_v.type,parentSchema:schema34.properties.clamp_v,data:data50}];
+return false;
+}
+}
+var valid19 = _errs110 === errors;
+}
+else {
+var valid19 = true;
+}
+if(valid19){
+if(data45.max_timeout_ms !== undefined){
+let data51 = data45.max_timeout_ms;
+const _errs112 = errors;
+if(errors === _errs112){
+if((typeof data51 == "number") && (isFinite(data51))){
+if(data51 <= 0 || isNaN(data51)){
+validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.max_timeout_ms,data:data51}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.max_timeout_ms.type,parentSchema:schema34.properties.max_timeout_ms,data:data51}];
+return false;
+}
+}
+var valid19 = _errs112 === errors;
 }
 else {
 var valid19 = true;
@@ -1781,25 +1990,27 @@ var valid19 = true;
 }
 }
 }
+}
+}
 else {
-validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema34.type,parentSchema:schema34,data:data44}];
+validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema34.type,parentSchema:schema34,data:data45}];
 return false;
 }
 }
-var valid0 = _errs97 === errors;
+var valid0 = _errs99 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.label !== undefined){
-let data49 = data.label;
-const _errs108 = errors;
-if(typeof data49 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/label",schemaPath:"#/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.label.type,parentSchema:schema36.properties.label,data:data49}];
+let data52 = data.label;
+const _errs114 = errors;
+if(typeof data52 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/label",schemaPath:"#/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.label.type,parentSchema:schema37.properties.label,data:data52}];
 return false;
 }
-var valid0 = _errs108 === errors;
+var valid0 = _errs114 === errors;
 }
 else {
 var valid0 = true;
@@ -1824,7 +2035,7 @@ var valid0 = true;
 }
 }
 else {
-validate21.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema36.type,parentSchema:schema36,data}];
+validate21.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.type,parentSchema:schema37,data}];
 return false;
 }
 }
@@ -1834,12 +2045,12 @@ return errors === 0;
 validate21.evaluated = {"props":{"suspect":true,"f0_hz":true,"f0_u_hz":true,"fd_hz":true,"inductance_h":true,"inductance_u_h":true,"coverage_factor":true,"q":true,"q_u":true,"esr_ohm":true,"esr_u_ohm":true,"ring_amplitude_v":true,"edges_used":true,"edges_rejected":true,"warnings":true,"settings":true,"device":true,"label":true},"dynamicProps":false,"dynamicItems":false};
 
 export const calibrationProfile = validate22;
-const schema47 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:calibration-profile:1","title":"henrytick calibration profile, version 1","description":"What calibration found about one tester (docs/calibration.md). Units are SI and in the key names; uncertainties are standard (k = 1). Rules a schema cannot state (a tank index only once, c_f within a factor 2 of nominal_f, u_f at most 20 % of c_f, rising threshold above falling, |ppm| at most 1000) are checked by the reader too.","type":"object","required":["format","version","device_id","updated","tanks"],"properties":{"format":{"const":"henrytick-calibration"},"version":{"const":1},"device_id":{"type":"string","minLength":1},"updated":{"$ref":"#/$defs/time"},"tanks":{"type":"array","description":"empty when no tank is calibrated","items":{"$ref":"#/$defs/tank"}},"thresholds":{"$ref":"#/$defs/thresholds"},"timebase":{"$ref":"#/$defs/timebase"}},"$defs":{"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"method":{"enum":["reference-inductor","parallel-capacitor","threshold-fit","host-clock","entered"],"description":"the procedure that produced the value"},"provenance":{"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}},"tank":{"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"}}},"thresholds":{"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}},"timebase":{"type":"object","$ref":"#/$defs/provenance","required":["ppm","u_ppm"],"properties":{"ppm":{"type":"number","description":"the tick counter runs fast by ppm: true rate = nominal (1 + ppm 1e-6)"},"u_ppm":{"type":"number","minimum":0}}}}};
-const schema48 = {"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"};
+const schema48 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:calibration-profile:1","title":"henrytick calibration profile, version 1","description":"What calibration found about one tester (docs/calibration.md). Units are SI and in the key names; uncertainties are standard (k = 1). Rules a schema cannot state (a tank index only once, c_f within a factor 2 of nominal_f, u_f at most 20 % of c_f, rising threshold above falling, |ppm| at most 1000) are checked by the reader too.","type":"object","required":["format","version","device_id","updated","tanks"],"properties":{"format":{"const":"henrytick-calibration"},"version":{"const":1},"device_id":{"type":"string","minLength":1},"updated":{"$ref":"#/$defs/time"},"tanks":{"type":"array","description":"empty when no tank is calibrated","items":{"$ref":"#/$defs/tank"}},"thresholds":{"$ref":"#/$defs/thresholds"},"timebase":{"$ref":"#/$defs/timebase"}},"$defs":{"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"method":{"enum":["reference-inductor","parallel-capacitor","threshold-fit","host-clock","entered"],"description":"the procedure that produced the value"},"provenance":{"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}},"tank":{"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"}}},"thresholds":{"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}},"timebase":{"type":"object","$ref":"#/$defs/provenance","required":["ppm","u_ppm"],"properties":{"ppm":{"type":"number","description":"the tick counter runs fast by ppm: true rate = nominal (1 + ppm 1e-6)"},"u_ppm":{"type":"number","minimum":0}}}}};
+const schema49 = {"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"};
 const func1 = ((s) => [...s].length);
-const schema49 = {"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"}}};
-const schema50 = {"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}};
-const schema51 = {"enum":["reference-inductor","parallel-capacitor","threshold-fit","host-clock","entered"],"description":"the procedure that produced the value"};
+const schema50 = {"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"}}};
+const schema51 = {"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}};
+const schema52 = {"enum":["reference-inductor","parallel-capacitor","threshold-fit","host-clock","entered"],"description":"the procedure that produced the value"};
 
 function validate24(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 let vErrors = null;
@@ -1855,7 +2066,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if(((data.method === undefined) && (missing0 = "method")) || ((data.time === undefined) && (missing0 = "time"))){
-validate24.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema50.required,parentSchema:schema50,data}];
+validate24.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema51.required,parentSchema:schema51,data}];
 return false;
 }
 else {
@@ -1863,7 +2074,7 @@ if(data.method !== undefined){
 let data0 = data.method;
 const _errs1 = errors;
 if(!(((((data0 === "reference-inductor") || (data0 === "parallel-capacitor")) || (data0 === "threshold-fit")) || (data0 === "host-clock")) || (data0 === "entered"))){
-validate24.errors = [{instancePath:instancePath+"/method",schemaPath:"#/$defs/method/enum",keyword:"enum",params:{allowedValues: schema51.enum},message:"must be equal to one of the allowed values",schema:schema51.enum,parentSchema:schema51,data:data0}];
+validate24.errors = [{instancePath:instancePath+"/method",schemaPath:"#/$defs/method/enum",keyword:"enum",params:{allowedValues: schema52.enum},message:"must be equal to one of the allowed values",schema:schema52.enum,parentSchema:schema52,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -1879,12 +2090,12 @@ const _errs4 = errors;
 if(errors === _errs4){
 if(typeof data1 === "string"){
 if(!pattern4.test(data1)){
-validate24.errors = [{instancePath:instancePath+"/time",schemaPath:"#/$defs/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema48,data:data1}];
+validate24.errors = [{instancePath:instancePath+"/time",schemaPath:"#/$defs/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema49,data:data1}];
 return false;
 }
 }
 else {
-validate24.errors = [{instancePath:instancePath+"/time",schemaPath:"#/$defs/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema48.type,parentSchema:schema48,data:data1}];
+validate24.errors = [{instancePath:instancePath+"/time",schemaPath:"#/$defs/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema49.type,parentSchema:schema49,data:data1}];
 return false;
 }
 }
@@ -1898,7 +2109,7 @@ if(data.detail !== undefined){
 let data2 = data.detail;
 const _errs6 = errors;
 if(typeof data2 !== "string"){
-validate24.errors = [{instancePath:instancePath+"/detail",schemaPath:"#/properties/detail/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema50.properties.detail.type,parentSchema:schema50.properties.detail,data:data2}];
+validate24.errors = [{instancePath:instancePath+"/detail",schemaPath:"#/properties/detail/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema51.properties.detail.type,parentSchema:schema51.properties.detail,data:data2}];
 return false;
 }
 var valid0 = _errs6 === errors;
@@ -1911,7 +2122,7 @@ var valid0 = true;
 }
 }
 else {
-validate24.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema50.type,parentSchema:schema50,data}];
+validate24.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema51.type,parentSchema:schema51,data}];
 return false;
 }
 }
@@ -1939,7 +2150,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if(((((data.index === undefined) && (missing0 = "index")) || ((data.nominal_f === undefined) && (missing0 = "nominal_f"))) || ((data.c_f === undefined) && (missing0 = "c_f"))) || ((data.u_f === undefined) && (missing0 = "u_f"))){
-validate23.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema49.required,parentSchema:schema49,data}];
+validate23.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema50.required,parentSchema:schema50,data}];
 return false;
 }
 else {
@@ -1947,13 +2158,13 @@ if(data.index !== undefined){
 let data0 = data.index;
 const _errs1 = errors;
 if(!(((typeof data0 == "number") && (!(data0 % 1) && !isNaN(data0))) && (isFinite(data0)))){
-validate23.errors = [{instancePath:instancePath+"/index",schemaPath:"#/properties/index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema49.properties.index.type,parentSchema:schema49.properties.index,data:data0}];
+validate23.errors = [{instancePath:instancePath+"/index",schemaPath:"#/properties/index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema50.properties.index.type,parentSchema:schema50.properties.index,data:data0}];
 return false;
 }
 if(errors === _errs1){
 if((typeof data0 == "number") && (isFinite(data0))){
 if(data0 < 0 || isNaN(data0)){
-validate23.errors = [{instancePath:instancePath+"/index",schemaPath:"#/properties/index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema49.properties.index,data:data0}];
+validate23.errors = [{instancePath:instancePath+"/index",schemaPath:"#/properties/index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema50.properties.index,data:data0}];
 return false;
 }
 }
@@ -1970,12 +2181,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if((typeof data1 == "number") && (isFinite(data1))){
 if(data1 <= 0 || isNaN(data1)){
-validate23.errors = [{instancePath:instancePath+"/nominal_f",schemaPath:"#/properties/nominal_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema49.properties.nominal_f,data:data1}];
+validate23.errors = [{instancePath:instancePath+"/nominal_f",schemaPath:"#/properties/nominal_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema50.properties.nominal_f,data:data1}];
 return false;
 }
 }
 else {
-validate23.errors = [{instancePath:instancePath+"/nominal_f",schemaPath:"#/properties/nominal_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema49.properties.nominal_f.type,parentSchema:schema49.properties.nominal_f,data:data1}];
+validate23.errors = [{instancePath:instancePath+"/nominal_f",schemaPath:"#/properties/nominal_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.nominal_f.type,parentSchema:schema50.properties.nominal_f,data:data1}];
 return false;
 }
 }
@@ -1991,12 +2202,12 @@ const _errs5 = errors;
 if(errors === _errs5){
 if((typeof data2 == "number") && (isFinite(data2))){
 if(data2 <= 0 || isNaN(data2)){
-validate23.errors = [{instancePath:instancePath+"/c_f",schemaPath:"#/properties/c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema49.properties.c_f,data:data2}];
+validate23.errors = [{instancePath:instancePath+"/c_f",schemaPath:"#/properties/c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema50.properties.c_f,data:data2}];
 return false;
 }
 }
 else {
-validate23.errors = [{instancePath:instancePath+"/c_f",schemaPath:"#/properties/c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema49.properties.c_f.type,parentSchema:schema49.properties.c_f,data:data2}];
+validate23.errors = [{instancePath:instancePath+"/c_f",schemaPath:"#/properties/c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.c_f.type,parentSchema:schema50.properties.c_f,data:data2}];
 return false;
 }
 }
@@ -2012,12 +2223,12 @@ const _errs7 = errors;
 if(errors === _errs7){
 if((typeof data3 == "number") && (isFinite(data3))){
 if(data3 < 0 || isNaN(data3)){
-validate23.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema49.properties.u_f,data:data3}];
+validate23.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema50.properties.u_f,data:data3}];
 return false;
 }
 }
 else {
-validate23.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema49.properties.u_f.type,parentSchema:schema49.properties.u_f,data:data3}];
+validate23.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.u_f.type,parentSchema:schema50.properties.u_f,data:data3}];
 return false;
 }
 }
@@ -2033,12 +2244,12 @@ const _errs9 = errors;
 if(errors === _errs9){
 if((typeof data4 == "number") && (isFinite(data4))){
 if(data4 < 0 || isNaN(data4)){
-validate23.errors = [{instancePath:instancePath+"/shared_u_rel",schemaPath:"#/properties/shared_u_rel/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema49.properties.shared_u_rel,data:data4}];
+validate23.errors = [{instancePath:instancePath+"/shared_u_rel",schemaPath:"#/properties/shared_u_rel/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema50.properties.shared_u_rel,data:data4}];
 return false;
 }
 }
 else {
-validate23.errors = [{instancePath:instancePath+"/shared_u_rel",schemaPath:"#/properties/shared_u_rel/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema49.properties.shared_u_rel.type,parentSchema:schema49.properties.shared_u_rel,data:data4}];
+validate23.errors = [{instancePath:instancePath+"/shared_u_rel",schemaPath:"#/properties/shared_u_rel/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.shared_u_rel.type,parentSchema:schema50.properties.shared_u_rel,data:data4}];
 return false;
 }
 }
@@ -2054,12 +2265,12 @@ const _errs11 = errors;
 if(errors === _errs11){
 if((typeof data5 == "number") && (isFinite(data5))){
 if(data5 < 0 || isNaN(data5)){
-validate23.errors = [{instancePath:instancePath+"/shared_offset_u_f",schemaPath:"#/properties/shared_offset_u_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema49.properties.shared_offset_u_f,data:data5}];
+validate23.errors = [{instancePath:instancePath+"/shared_offset_u_f",schemaPath:"#/properties/shared_offset_u_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema50.properties.shared_offset_u_f,data:data5}];
 return false;
 }
 }
 else {
-validate23.errors = [{instancePath:instancePath+"/shared_offset_u_f",schemaPath:"#/properties/shared_offset_u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema49.properties.shared_offset_u_f.type,parentSchema:schema49.properties.shared_offset_u_f,data:data5}];
+validate23.errors = [{instancePath:instancePath+"/shared_offset_u_f",schemaPath:"#/properties/shared_offset_u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.shared_offset_u_f.type,parentSchema:schema50.properties.shared_offset_u_f,data:data5}];
 return false;
 }
 }
@@ -2073,7 +2284,7 @@ if(data.timebase_ppm !== undefined){
 let data6 = data.timebase_ppm;
 const _errs13 = errors;
 if(!((typeof data6 == "number") && (isFinite(data6)))){
-validate23.errors = [{instancePath:instancePath+"/timebase_ppm",schemaPath:"#/properties/timebase_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema49.properties.timebase_ppm.type,parentSchema:schema49.properties.timebase_ppm,data:data6}];
+validate23.errors = [{instancePath:instancePath+"/timebase_ppm",schemaPath:"#/properties/timebase_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.timebase_ppm.type,parentSchema:schema50.properties.timebase_ppm,data:data6}];
 return false;
 }
 var valid0 = _errs13 === errors;
@@ -2086,13 +2297,13 @@ if(data.drive !== undefined){
 let data7 = data.drive;
 const _errs15 = errors;
 if(!(((typeof data7 == "number") && (!(data7 % 1) && !isNaN(data7))) && (isFinite(data7)))){
-validate23.errors = [{instancePath:instancePath+"/drive",schemaPath:"#/properties/drive/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema49.properties.drive.type,parentSchema:schema49.properties.drive,data:data7}];
+validate23.errors = [{instancePath:instancePath+"/drive",schemaPath:"#/properties/drive/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema50.properties.drive.type,parentSchema:schema50.properties.drive,data:data7}];
 return false;
 }
 if(errors === _errs15){
 if((typeof data7 == "number") && (isFinite(data7))){
 if(data7 < 0 || isNaN(data7)){
-validate23.errors = [{instancePath:instancePath+"/drive",schemaPath:"#/properties/drive/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema49.properties.drive,data:data7}];
+validate23.errors = [{instancePath:instancePath+"/drive",schemaPath:"#/properties/drive/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema50.properties.drive,data:data7}];
 return false;
 }
 }
@@ -2112,7 +2323,7 @@ var valid0 = true;
 }
 }
 else {
-validate23.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema49.type,parentSchema:schema49,data}];
+validate23.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema50.type,parentSchema:schema50,data}];
 return false;
 }
 }
@@ -2121,7 +2332,7 @@ return errors === 0;
 }
 validate23.evaluated = {"props":{"index":true,"nominal_f":true,"c_f":true,"u_f":true,"shared_u_rel":true,"shared_offset_u_f":true,"timebase_ppm":true,"drive":true,"method":true,"time":true,"detail":true},"dynamicProps":false,"dynamicItems":false};
 
-const schema53 = {"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}};
+const schema54 = {"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}};
 
 function validate27(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 let vErrors = null;
@@ -2141,7 +2352,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if((((data.ratio === undefined) && (missing0 = "ratio")) || ((data.u_ratio === undefined) && (missing0 = "u_ratio"))) || ((data.thresholds_v === undefined) && (missing0 = "thresholds_v"))){
-validate27.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema53.required,parentSchema:schema53,data}];
+validate27.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema54.required,parentSchema:schema54,data}];
 return false;
 }
 else {
@@ -2149,7 +2360,7 @@ if(data.ratio !== undefined){
 let data0 = data.ratio;
 const _errs1 = errors;
 if(!((typeof data0 == "number") && (isFinite(data0)))){
-validate27.errors = [{instancePath:instancePath+"/ratio",schemaPath:"#/properties/ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema53.properties.ratio.type,parentSchema:schema53.properties.ratio,data:data0}];
+validate27.errors = [{instancePath:instancePath+"/ratio",schemaPath:"#/properties/ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema54.properties.ratio.type,parentSchema:schema54.properties.ratio,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -2164,12 +2375,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if((typeof data1 == "number") && (isFinite(data1))){
 if(data1 < 0 || isNaN(data1)){
-validate27.errors = [{instancePath:instancePath+"/u_ratio",schemaPath:"#/properties/u_ratio/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema53.properties.u_ratio,data:data1}];
+validate27.errors = [{instancePath:instancePath+"/u_ratio",schemaPath:"#/properties/u_ratio/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema54.properties.u_ratio,data:data1}];
 return false;
 }
 }
 else {
-validate27.errors = [{instancePath:instancePath+"/u_ratio",schemaPath:"#/properties/u_ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema53.properties.u_ratio.type,parentSchema:schema53.properties.u_ratio,data:data1}];
+validate27.errors = [{instancePath:instancePath+"/u_ratio",schemaPath:"#/properties/u_ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema54.properties.u_ratio.type,parentSchema:schema54.properties.u_ratio,data:data1}];
 return false;
 }
 }
@@ -2185,12 +2396,12 @@ const _errs5 = errors;
 if(errors === _errs5){
 if(Array.isArray(data2)){
 if(data2.length > 2){
-validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema53.properties.thresholds_v,data:data2}];
+validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema54.properties.thresholds_v,data:data2}];
 return false;
 }
 else {
 if(data2.length < 2){
-validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema53.properties.thresholds_v,data:data2}];
+validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema54.properties.thresholds_v,data:data2}];
 return false;
 }
 else {
@@ -2199,7 +2410,7 @@ if(len0 > 0){
 let data3 = data2[0];
 const _errs7 = errors;
 if(!((typeof data3 == "number") && (isFinite(data3)))){
-validate27.errors = [{instancePath:instancePath+"/thresholds_v/0",schemaPath:"#/properties/thresholds_v/prefixItems/0/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema53.properties.thresholds_v.prefixItems[0].type,parentSchema:schema53.properties.thresholds_v.prefixItems[0],data:data3}];
+validate27.errors = [{instancePath:instancePath+"/thresholds_v/0",schemaPath:"#/properties/thresholds_v/prefixItems/0/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema54.properties.thresholds_v.prefixItems[0].type,parentSchema:schema54.properties.thresholds_v.prefixItems[0],data:data3}];
 return false;
 }
 var valid1 = _errs7 === errors;
@@ -2209,7 +2420,7 @@ if(len0 > 1){
 let data4 = data2[1];
 const _errs9 = errors;
 if(!((typeof data4 == "number") && (isFinite(data4)))){
-validate27.errors = [{instancePath:instancePath+"/thresholds_v/1",schemaPath:"#/properties/thresholds_v/prefixItems/1/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema53.properties.thresholds_v.prefixItems[1].type,parentSchema:schema53.properties.thresholds_v.prefixItems[1],data:data4}];
+validate27.errors = [{instancePath:instancePath+"/thresholds_v/1",schemaPath:"#/properties/thresholds_v/prefixItems/1/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema54.properties.thresholds_v.prefixItems[1].type,parentSchema:schema54.properties.thresholds_v.prefixItems[1],data:data4}];
 return false;
 }
 var valid1 = _errs9 === errors;
@@ -2219,7 +2430,7 @@ var valid1 = _errs9 === errors;
 }
 }
 else {
-validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema53.properties.thresholds_v.type,parentSchema:schema53.properties.thresholds_v,data:data2}];
+validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema54.properties.thresholds_v.type,parentSchema:schema54.properties.thresholds_v,data:data2}];
 return false;
 }
 }
@@ -2233,7 +2444,7 @@ var valid0 = true;
 }
 }
 else {
-validate27.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema53.type,parentSchema:schema53,data}];
+validate27.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema54.type,parentSchema:schema54,data}];
 return false;
 }
 }
@@ -2242,7 +2453,7 @@ return errors === 0;
 }
 validate27.evaluated = {"props":{"ratio":true,"u_ratio":true,"thresholds_v":true,"method":true,"time":true,"detail":true},"dynamicProps":false,"dynamicItems":false};
 
-const schema54 = {"type":"object","$ref":"#/$defs/provenance","required":["ppm","u_ppm"],"properties":{"ppm":{"type":"number","description":"the tick counter runs fast by ppm: true rate = nominal (1 + ppm 1e-6)"},"u_ppm":{"type":"number","minimum":0}}};
+const schema55 = {"type":"object","$ref":"#/$defs/provenance","required":["ppm","u_ppm"],"properties":{"ppm":{"type":"number","description":"the tick counter runs fast by ppm: true rate = nominal (1 + ppm 1e-6)"},"u_ppm":{"type":"number","minimum":0}}};
 
 function validate30(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 let vErrors = null;
@@ -2262,7 +2473,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if(((data.ppm === undefined) && (missing0 = "ppm")) || ((data.u_ppm === undefined) && (missing0 = "u_ppm"))){
-validate30.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema54.required,parentSchema:schema54,data}];
+validate30.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema55.required,parentSchema:schema55,data}];
 return false;
 }
 else {
@@ -2270,7 +2481,7 @@ if(data.ppm !== undefined){
 let data0 = data.ppm;
 const _errs1 = errors;
 if(!((typeof data0 == "number") && (isFinite(data0)))){
-validate30.errors = [{instancePath:instancePath+"/ppm",schemaPath:"#/properties/ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema54.properties.ppm.type,parentSchema:schema54.properties.ppm,data:data0}];
+validate30.errors = [{instancePath:instancePath+"/ppm",schemaPath:"#/properties/ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.ppm.type,parentSchema:schema55.properties.ppm,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -2285,12 +2496,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if((typeof data1 == "number") && (isFinite(data1))){
 if(data1 < 0 || isNaN(data1)){
-validate30.errors = [{instancePath:instancePath+"/u_ppm",schemaPath:"#/properties/u_ppm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema54.properties.u_ppm,data:data1}];
+validate30.errors = [{instancePath:instancePath+"/u_ppm",schemaPath:"#/properties/u_ppm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema55.properties.u_ppm,data:data1}];
 return false;
 }
 }
 else {
-validate30.errors = [{instancePath:instancePath+"/u_ppm",schemaPath:"#/properties/u_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema54.properties.u_ppm.type,parentSchema:schema54.properties.u_ppm,data:data1}];
+validate30.errors = [{instancePath:instancePath+"/u_ppm",schemaPath:"#/properties/u_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.u_ppm.type,parentSchema:schema55.properties.u_ppm,data:data1}];
 return false;
 }
 }
@@ -2303,7 +2514,7 @@ var valid0 = true;
 }
 }
 else {
-validate30.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema54.type,parentSchema:schema54,data}];
+validate30.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema55.type,parentSchema:schema55,data}];
 return false;
 }
 }
@@ -2328,7 +2539,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if((((((data.format === undefined) && (missing0 = "format")) || ((data.version === undefined) && (missing0 = "version"))) || ((data.device_id === undefined) && (missing0 = "device_id"))) || ((data.updated === undefined) && (missing0 = "updated"))) || ((data.tanks === undefined) && (missing0 = "tanks"))){
-validate22.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema47.required,parentSchema:schema47,data}];
+validate22.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema48.required,parentSchema:schema48,data}];
 return false;
 }
 else {
@@ -2336,7 +2547,7 @@ if(data.format !== undefined){
 let data0 = data.format;
 const _errs1 = errors;
 if("henrytick-calibration" !== data0){
-validate22.errors = [{instancePath:instancePath+"/format",schemaPath:"#/properties/format/const",keyword:"const",params:{allowedValue: "henrytick-calibration"},message:"must be equal to constant",schema:"henrytick-calibration",parentSchema:schema47.properties.format,data:data0}];
+validate22.errors = [{instancePath:instancePath+"/format",schemaPath:"#/properties/format/const",keyword:"const",params:{allowedValue: "henrytick-calibration"},message:"must be equal to constant",schema:"henrytick-calibration",parentSchema:schema48.properties.format,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -2349,7 +2560,7 @@ if(data.version !== undefined){
 let data1 = data.version;
 const _errs2 = errors;
 if(1 !== data1){
-validate22.errors = [{instancePath:instancePath+"/version",schemaPath:"#/properties/version/const",keyword:"const",params:{allowedValue: 1},message:"must be equal to constant",schema:1,parentSchema:schema47.properties.version,data:data1}];
+validate22.errors = [{instancePath:instancePath+"/version",schemaPath:"#/properties/version/const",keyword:"const",params:{allowedValue: 1},message:"must be equal to constant",schema:1,parentSchema:schema48.properties.version,data:data1}];
 return false;
 }
 var valid0 = _errs2 === errors;
@@ -2364,12 +2575,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if(typeof data2 === "string"){
 if(func1(data2) < 1){
-validate22.errors = [{instancePath:instancePath+"/device_id",schemaPath:"#/properties/device_id/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters",schema:1,parentSchema:schema47.properties.device_id,data:data2}];
+validate22.errors = [{instancePath:instancePath+"/device_id",schemaPath:"#/properties/device_id/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters",schema:1,parentSchema:schema48.properties.device_id,data:data2}];
 return false;
 }
 }
 else {
-validate22.errors = [{instancePath:instancePath+"/device_id",schemaPath:"#/properties/device_id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema47.properties.device_id.type,parentSchema:schema47.properties.device_id,data:data2}];
+validate22.errors = [{instancePath:instancePath+"/device_id",schemaPath:"#/properties/device_id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema48.properties.device_id.type,parentSchema:schema48.properties.device_id,data:data2}];
 return false;
 }
 }
@@ -2386,12 +2597,12 @@ const _errs6 = errors;
 if(errors === _errs6){
 if(typeof data3 === "string"){
 if(!pattern4.test(data3)){
-validate22.errors = [{instancePath:instancePath+"/updated",schemaPath:"#/$defs/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema48,data:data3}];
+validate22.errors = [{instancePath:instancePath+"/updated",schemaPath:"#/$defs/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema49,data:data3}];
 return false;
 }
 }
 else {
-validate22.errors = [{instancePath:instancePath+"/updated",schemaPath:"#/$defs/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema48.type,parentSchema:schema48,data:data3}];
+validate22.errors = [{instancePath:instancePath+"/updated",schemaPath:"#/$defs/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema49.type,parentSchema:schema49,data:data3}];
 return false;
 }
 }
@@ -2421,7 +2632,7 @@ break;
 }
 }
 else {
-validate22.errors = [{instancePath:instancePath+"/tanks",schemaPath:"#/properties/tanks/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema47.properties.tanks.type,parentSchema:schema47.properties.tanks,data:data4}];
+validate22.errors = [{instancePath:instancePath+"/tanks",schemaPath:"#/properties/tanks/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema48.properties.tanks.type,parentSchema:schema48.properties.tanks,data:data4}];
 return false;
 }
 }
@@ -2463,7 +2674,7 @@ var valid0 = true;
 }
 }
 else {
-validate22.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema47.type,parentSchema:schema47,data}];
+validate22.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema48.type,parentSchema:schema48,data}];
 return false;
 }
 }
@@ -2473,7 +2684,7 @@ return errors === 0;
 validate22.evaluated = {"props":{"format":true,"version":true,"device_id":true,"updated":true,"tanks":true,"thresholds":true,"timebase":true},"dynamicProps":false,"dynamicItems":false};
 
 export const scenario = validate33;
-const schema55 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:scenario:1","title":"henrytick simulated-tester scenario, version 1","description":"A demo part for the simulated tester and, optionally, the bench conditions it is measured under. Units are SI and in the key names.","type":"object","required":["format","version","name","part"],"properties":{"format":{"const":"henrytick-scenario"},"version":{"const":1},"name":{"type":"string","minLength":1},"story":{"type":"string","description":"what the part is and what the scenario shows"},"part":{"type":"object","required":["inductance_h","series_ohm"],"properties":{"inductance_h":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"parallel_ohm":{"type":"number","exclusiveMinimum":0,"description":"core (parallel) loss resistance; absent for an air core"},"self_capacitance_f":{"type":"number","minimum":0,"description":"the part's own self-capacitance (0 when left out)"},"saturation_current_a":{"type":"number","exclusiveMinimum":0,"description":"current where the differential inductance has fallen halfway to its floor"},"saturation_floor_ratio":{"type":"number","exclusiveMinimum":0,"exclusiveMaximum":1,"description":"differential inductance deep in saturation, as a fraction of the small-signal value"}}},"fixture":{"type":"object","properties":{"capacitance_f":{"type":"number","minimum":0,"description":"test-lead capacitance in parallel with the tank (replaces the board's)"},"tank_voltage_coefficient_per_v2":{"type":"number","exclusiveMinimum":0,"description":"k in C(v) = C0 (1 - k v^2): a class II ceramic fitted as the tank"}}},"geometry":{"type":"object","description":"the coil geometry a part was computed from (kept for the record; the part values are what the simulator uses)","additionalProperties":{"type":"number"}},"seed":{"type":"integer","description":"noise seed (1 when left out)"}}};
+const schema56 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:scenario:1","title":"henrytick simulated-tester scenario, version 1","description":"A demo part for the simulated tester and, optionally, the bench conditions it is measured under. Units are SI and in the key names.","type":"object","required":["format","version","name","part"],"properties":{"format":{"const":"henrytick-scenario"},"version":{"const":1},"name":{"type":"string","minLength":1},"story":{"type":"string","description":"what the part is and what the scenario shows"},"part":{"type":"object","required":["inductance_h","series_ohm"],"properties":{"inductance_h":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"parallel_ohm":{"type":"number","exclusiveMinimum":0,"description":"core (parallel) loss resistance; absent for an air core"},"self_capacitance_f":{"type":"number","minimum":0,"description":"the part's own self-capacitance (0 when left out)"},"saturation_current_a":{"type":"number","exclusiveMinimum":0,"description":"current where the differential inductance has fallen halfway to its floor"},"saturation_floor_ratio":{"type":"number","exclusiveMinimum":0,"exclusiveMaximum":1,"description":"differential inductance deep in saturation, as a fraction of the small-signal value"}}},"fixture":{"type":"object","properties":{"capacitance_f":{"type":"number","minimum":0,"description":"test-lead capacitance in parallel with the tank (replaces the board's)"},"tank_voltage_coefficient_per_v2":{"type":"number","exclusiveMinimum":0,"description":"k in C(v) = C0 (1 - k v^2): a class II ceramic fitted as the tank"},"chatter":{"type":"object","description":"an intermittent clip contact during the ring: moments open or resistive, at random (seeded)","required":["events_per_s"],"additionalProperties":false,"properties":{"events_per_s":{"type":"number","minimum":0,"maximum":100000,"description":"mean contact events per second of ring"},"open_share":{"type":"number","minimum":0,"maximum":1,"description":"share of events that open the contact (the rest are resistance bursts); 0.5 when left out"},"open_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest open interval, seconds"},"burst_ohm":{"type":"array","items":{"type":"number","minimum":0,"maximum":1000000},"minItems":2,"maxItems":2,"description":"smallest and largest burst resistance, ohms"},"burst_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest burst, seconds"}}}}},"geometry":{"type":"object","description":"the coil geometry a part was computed from (kept for the record; the part values are what the simulator uses)","additionalProperties":{"type":"number"}},"seed":{"type":"integer","description":"noise seed (1 when left out)"}}};
 
 function validate33(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 /*# sourceURL="urn:henrytick:schema:scenario:1" */;
@@ -2490,7 +2701,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if(((((data.format === undefined) && (missing0 = "format")) || ((data.version === undefined) && (missing0 = "version"))) || ((data.name === undefined) && (missing0 = "name"))) || ((data.part === undefined) && (missing0 = "part"))){
-validate33.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema55.required,parentSchema:schema55,data}];
+validate33.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema56.required,parentSchema:schema56,data}];
 return false;
 }
 else {
@@ -2498,7 +2709,7 @@ if(data.format !== undefined){
 let data0 = data.format;
 const _errs1 = errors;
 if("henrytick-scenario" !== data0){
-validate33.errors = [{instancePath:instancePath+"/format",schemaPath:"#/properties/format/const",keyword:"const",params:{allowedValue: "henrytick-scenario"},message:"must be equal to constant",schema:"henrytick-scenario",parentSchema:schema55.properties.format,data:data0}];
+validate33.errors = [{instancePath:instancePath+"/format",schemaPath:"#/properties/format/const",keyword:"const",params:{allowedValue: "henrytick-scenario"},message:"must be equal to constant",schema:"henrytick-scenario",parentSchema:schema56.properties.format,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -2511,7 +2722,7 @@ if(data.version !== undefined){
 let data1 = data.version;
 const _errs2 = errors;
 if(1 !== data1){
-validate33.errors = [{instancePath:instancePath+"/version",schemaPath:"#/properties/version/const",keyword:"const",params:{allowedValue: 1},message:"must be equal to constant",schema:1,parentSchema:schema55.properties.version,data:data1}];
+validate33.errors = [{instancePath:instancePath+"/version",schemaPath:"#/properties/version/const",keyword:"const",params:{allowedValue: 1},message:"must be equal to constant",schema:1,parentSchema:schema56.properties.version,data:data1}];
 return false;
 }
 var valid0 = _errs2 === errors;
@@ -2526,12 +2737,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if(typeof data2 === "string"){
 if(func1(data2) < 1){
-validate33.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters",schema:1,parentSchema:schema55.properties.name,data:data2}];
+validate33.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters",schema:1,parentSchema:schema56.properties.name,data:data2}];
 return false;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema55.properties.name.type,parentSchema:schema55.properties.name,data:data2}];
+validate33.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema56.properties.name.type,parentSchema:schema56.properties.name,data:data2}];
 return false;
 }
 }
@@ -2545,7 +2756,7 @@ if(data.story !== undefined){
 let data3 = data.story;
 const _errs5 = errors;
 if(typeof data3 !== "string"){
-validate33.errors = [{instancePath:instancePath+"/story",schemaPath:"#/properties/story/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema55.properties.story.type,parentSchema:schema55.properties.story,data:data3}];
+validate33.errors = [{instancePath:instancePath+"/story",schemaPath:"#/properties/story/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema56.properties.story.type,parentSchema:schema56.properties.story,data:data3}];
 return false;
 }
 var valid0 = _errs5 === errors;
@@ -2561,7 +2772,7 @@ if(errors === _errs7){
 if(data4 && typeof data4 == "object" && !Array.isArray(data4)){
 let missing1;
 if(((data4.inductance_h === undefined) && (missing1 = "inductance_h")) || ((data4.series_ohm === undefined) && (missing1 = "series_ohm"))){
-validate33.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/required",keyword:"required",params:{missingProperty: missing1},message:"must have required property '"+missing1+"'",schema:schema55.properties.part.required,parentSchema:schema55.properties.part,data:data4}];
+validate33.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/required",keyword:"required",params:{missingProperty: missing1},message:"must have required property '"+missing1+"'",schema:schema56.properties.part.required,parentSchema:schema56.properties.part,data:data4}];
 return false;
 }
 else {
@@ -2571,12 +2782,12 @@ const _errs9 = errors;
 if(errors === _errs9){
 if((typeof data5 == "number") && (isFinite(data5))){
 if(data5 <= 0 || isNaN(data5)){
-validate33.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema55.properties.part.properties.inductance_h,data:data5}];
+validate33.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema56.properties.part.properties.inductance_h,data:data5}];
 return false;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.part.properties.inductance_h.type,parentSchema:schema55.properties.part.properties.inductance_h,data:data5}];
+validate33.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.part.properties.inductance_h.type,parentSchema:schema56.properties.part.properties.inductance_h,data:data5}];
 return false;
 }
 }
@@ -2592,12 +2803,12 @@ const _errs11 = errors;
 if(errors === _errs11){
 if((typeof data6 == "number") && (isFinite(data6))){
 if(data6 <= 0 || isNaN(data6)){
-validate33.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema55.properties.part.properties.series_ohm,data:data6}];
+validate33.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema56.properties.part.properties.series_ohm,data:data6}];
 return false;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.part.properties.series_ohm.type,parentSchema:schema55.properties.part.properties.series_ohm,data:data6}];
+validate33.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.part.properties.series_ohm.type,parentSchema:schema56.properties.part.properties.series_ohm,data:data6}];
 return false;
 }
 }
@@ -2613,12 +2824,12 @@ const _errs13 = errors;
 if(errors === _errs13){
 if((typeof data7 == "number") && (isFinite(data7))){
 if(data7 <= 0 || isNaN(data7)){
-validate33.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema55.properties.part.properties.parallel_ohm,data:data7}];
+validate33.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema56.properties.part.properties.parallel_ohm,data:data7}];
 return false;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.part.properties.parallel_ohm.type,parentSchema:schema55.properties.part.properties.parallel_ohm,data:data7}];
+validate33.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.part.properties.parallel_ohm.type,parentSchema:schema56.properties.part.properties.parallel_ohm,data:data7}];
 return false;
 }
 }
@@ -2634,12 +2845,12 @@ const _errs15 = errors;
 if(errors === _errs15){
 if((typeof data8 == "number") && (isFinite(data8))){
 if(data8 < 0 || isNaN(data8)){
-validate33.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema55.properties.part.properties.self_capacitance_f,data:data8}];
+validate33.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema56.properties.part.properties.self_capacitance_f,data:data8}];
 return false;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.part.properties.self_capacitance_f.type,parentSchema:schema55.properties.part.properties.self_capacitance_f,data:data8}];
+validate33.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.part.properties.self_capacitance_f.type,parentSchema:schema56.properties.part.properties.self_capacitance_f,data:data8}];
 return false;
 }
 }
@@ -2655,12 +2866,12 @@ const _errs17 = errors;
 if(errors === _errs17){
 if((typeof data9 == "number") && (isFinite(data9))){
 if(data9 <= 0 || isNaN(data9)){
-validate33.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema55.properties.part.properties.saturation_current_a,data:data9}];
+validate33.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema56.properties.part.properties.saturation_current_a,data:data9}];
 return false;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.part.properties.saturation_current_a.type,parentSchema:schema55.properties.part.properties.saturation_current_a,data:data9}];
+validate33.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.part.properties.saturation_current_a.type,parentSchema:schema56.properties.part.properties.saturation_current_a,data:data9}];
 return false;
 }
 }
@@ -2676,18 +2887,18 @@ const _errs19 = errors;
 if(errors === _errs19){
 if((typeof data10 == "number") && (isFinite(data10))){
 if(data10 >= 1 || isNaN(data10)){
-validate33.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMaximum",keyword:"exclusiveMaximum",params:{comparison: "<", limit: 1},message:"must be < 1",schema:1,parentSchema:schema55.properties.part.properties.saturation_floor_ratio,data:data10}];
+validate33.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMaximum",keyword:"exclusiveMaximum",params:{comparison: "<", limit: 1},message:"must be < 1",schema:1,parentSchema:schema56.properties.part.properties.saturation_floor_ratio,data:data10}];
 return false;
 }
 else {
 if(data10 <= 0 || isNaN(data10)){
-validate33.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema55.properties.part.properties.saturation_floor_ratio,data:data10}];
+validate33.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema56.properties.part.properties.saturation_floor_ratio,data:data10}];
 return false;
 }
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.part.properties.saturation_floor_ratio.type,parentSchema:schema55.properties.part.properties.saturation_floor_ratio,data:data10}];
+validate33.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.part.properties.saturation_floor_ratio.type,parentSchema:schema56.properties.part.properties.saturation_floor_ratio,data:data10}];
 return false;
 }
 }
@@ -2704,7 +2915,7 @@ var valid1 = true;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema55.properties.part.type,parentSchema:schema55.properties.part,data:data4}];
+validate33.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema56.properties.part.type,parentSchema:schema56.properties.part,data:data4}];
 return false;
 }
 }
@@ -2725,12 +2936,12 @@ const _errs23 = errors;
 if(errors === _errs23){
 if((typeof data12 == "number") && (isFinite(data12))){
 if(data12 < 0 || isNaN(data12)){
-validate33.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema55.properties.fixture.properties.capacitance_f,data:data12}];
+validate33.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema56.properties.fixture.properties.capacitance_f,data:data12}];
 return false;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.fixture.properties.capacitance_f.type,parentSchema:schema55.properties.fixture.properties.capacitance_f,data:data12}];
+validate33.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.fixture.properties.capacitance_f.type,parentSchema:schema56.properties.fixture.properties.capacitance_f,data:data12}];
 return false;
 }
 }
@@ -2746,12 +2957,12 @@ const _errs25 = errors;
 if(errors === _errs25){
 if((typeof data13 == "number") && (isFinite(data13))){
 if(data13 <= 0 || isNaN(data13)){
-validate33.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema55.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data13}];
+validate33.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema56.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data13}];
 return false;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.fixture.properties.tank_voltage_coefficient_per_v2.type,parentSchema:schema55.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data13}];
+validate33.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.fixture.properties.tank_voltage_coefficient_per_v2.type,parentSchema:schema56.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data13}];
 return false;
 }
 }
@@ -2760,10 +2971,273 @@ var valid2 = _errs25 === errors;
 else {
 var valid2 = true;
 }
+if(valid2){
+if(data11.chatter !== undefined){
+let data14 = data11.chatter;
+const _errs27 = errors;
+if(errors === _errs27){
+if(data14 && typeof data14 == "object" && !Array.isArray(data14)){
+let missing2;
+if((data14.events_per_s === undefined) && (missing2 = "events_per_s")){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema56.properties.fixture.properties.chatter.required,parentSchema:schema56.properties.fixture.properties.chatter,data:data14}];
+return false;
+}
+else {
+const _errs29 = errors;
+for(const key0 in data14){
+if(!(((((key0 === "events_per_s") || (key0 === "open_share")) || (key0 === "open_s")) || (key0 === "burst_ohm")) || (key0 === "burst_s"))){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/additionalProperties",keyword:"additionalProperties",params:{additionalProperty: key0},message:"must NOT have additional properties",schema:false,parentSchema:schema56.properties.fixture.properties.chatter,data:data14}];
+return false;
+break;
+}
+}
+if(_errs29 === errors){
+if(data14.events_per_s !== undefined){
+let data15 = data14.events_per_s;
+const _errs30 = errors;
+if(errors === _errs30){
+if((typeof data15 == "number") && (isFinite(data15))){
+if(data15 > 100000 || isNaN(data15)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/maximum",keyword:"maximum",params:{comparison: "<=", limit: 100000},message:"must be <= 100000",schema:100000,parentSchema:schema56.properties.fixture.properties.chatter.properties.events_per_s,data:data15}];
+return false;
+}
+else {
+if(data15 < 0 || isNaN(data15)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema56.properties.fixture.properties.chatter.properties.events_per_s,data:data15}];
+return false;
+}
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/fixture",schemaPath:"#/properties/fixture/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema55.properties.fixture.type,parentSchema:schema55.properties.fixture,data:data11}];
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.fixture.properties.chatter.properties.events_per_s.type,parentSchema:schema56.properties.fixture.properties.chatter.properties.events_per_s,data:data15}];
+return false;
+}
+}
+var valid3 = _errs30 === errors;
+}
+else {
+var valid3 = true;
+}
+if(valid3){
+if(data14.open_share !== undefined){
+let data16 = data14.open_share;
+const _errs32 = errors;
+if(errors === _errs32){
+if((typeof data16 == "number") && (isFinite(data16))){
+if(data16 > 1 || isNaN(data16)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_share,data:data16}];
+return false;
+}
+else {
+if(data16 < 0 || isNaN(data16)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_share,data:data16}];
+return false;
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.fixture.properties.chatter.properties.open_share.type,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_share,data:data16}];
+return false;
+}
+}
+var valid3 = _errs32 === errors;
+}
+else {
+var valid3 = true;
+}
+if(valid3){
+if(data14.open_s !== undefined){
+let data17 = data14.open_s;
+const _errs34 = errors;
+if(errors === _errs34){
+if(Array.isArray(data17)){
+if(data17.length > 2){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_s,data:data17}];
+return false;
+}
+else {
+if(data17.length < 2){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_s,data:data17}];
+return false;
+}
+else {
+var valid4 = true;
+const len0 = data17.length;
+for(let i0=0; i0<len0; i0++){
+let data18 = data17[i0];
+const _errs36 = errors;
+if(errors === _errs36){
+if((typeof data18 == "number") && (isFinite(data18))){
+if(data18 > 1 || isNaN(data18)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_s.items,data:data18}];
+return false;
+}
+else {
+if(data18 <= 0 || isNaN(data18)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_s.items,data:data18}];
+return false;
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.fixture.properties.chatter.properties.open_s.items.type,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_s.items,data:data18}];
+return false;
+}
+}
+var valid4 = _errs36 === errors;
+if(!valid4){
+break;
+}
+}
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema56.properties.fixture.properties.chatter.properties.open_s.type,parentSchema:schema56.properties.fixture.properties.chatter.properties.open_s,data:data17}];
+return false;
+}
+}
+var valid3 = _errs34 === errors;
+}
+else {
+var valid3 = true;
+}
+if(valid3){
+if(data14.burst_ohm !== undefined){
+let data19 = data14.burst_ohm;
+const _errs38 = errors;
+if(errors === _errs38){
+if(Array.isArray(data19)){
+if(data19.length > 2){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_ohm,data:data19}];
+return false;
+}
+else {
+if(data19.length < 2){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_ohm,data:data19}];
+return false;
+}
+else {
+var valid5 = true;
+const len1 = data19.length;
+for(let i1=0; i1<len1; i1++){
+let data20 = data19[i1];
+const _errs40 = errors;
+if(errors === _errs40){
+if((typeof data20 == "number") && (isFinite(data20))){
+if(data20 > 1000000 || isNaN(data20)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1000000},message:"must be <= 1000000",schema:1000000,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data20}];
+return false;
+}
+else {
+if(data20 < 0 || isNaN(data20)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data20}];
+return false;
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.fixture.properties.chatter.properties.burst_ohm.items.type,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data20}];
+return false;
+}
+}
+var valid5 = _errs40 === errors;
+if(!valid5){
+break;
+}
+}
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema56.properties.fixture.properties.chatter.properties.burst_ohm.type,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_ohm,data:data19}];
+return false;
+}
+}
+var valid3 = _errs38 === errors;
+}
+else {
+var valid3 = true;
+}
+if(valid3){
+if(data14.burst_s !== undefined){
+let data21 = data14.burst_s;
+const _errs42 = errors;
+if(errors === _errs42){
+if(Array.isArray(data21)){
+if(data21.length > 2){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_s,data:data21}];
+return false;
+}
+else {
+if(data21.length < 2){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_s,data:data21}];
+return false;
+}
+else {
+var valid6 = true;
+const len2 = data21.length;
+for(let i2=0; i2<len2; i2++){
+let data22 = data21[i2];
+const _errs44 = errors;
+if(errors === _errs44){
+if((typeof data22 == "number") && (isFinite(data22))){
+if(data22 > 1 || isNaN(data22)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_s.items,data:data22}];
+return false;
+}
+else {
+if(data22 <= 0 || isNaN(data22)){
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_s.items,data:data22}];
+return false;
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.fixture.properties.chatter.properties.burst_s.items.type,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_s.items,data:data22}];
+return false;
+}
+}
+var valid6 = _errs44 === errors;
+if(!valid6){
+break;
+}
+}
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema56.properties.fixture.properties.chatter.properties.burst_s.type,parentSchema:schema56.properties.fixture.properties.chatter.properties.burst_s,data:data21}];
+return false;
+}
+}
+var valid3 = _errs42 === errors;
+}
+else {
+var valid3 = true;
+}
+}
+}
+}
+}
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema56.properties.fixture.properties.chatter.type,parentSchema:schema56.properties.fixture.properties.chatter,data:data14}];
+return false;
+}
+}
+var valid2 = _errs27 === errors;
+}
+else {
+var valid2 = true;
+}
+}
+}
+}
+else {
+validate33.errors = [{instancePath:instancePath+"/fixture",schemaPath:"#/properties/fixture/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema56.properties.fixture.type,parentSchema:schema56.properties.fixture,data:data11}];
 return false;
 }
 }
@@ -2774,42 +3248,42 @@ var valid0 = true;
 }
 if(valid0){
 if(data.geometry !== undefined){
-let data14 = data.geometry;
-const _errs27 = errors;
-if(errors === _errs27){
-if(data14 && typeof data14 == "object" && !Array.isArray(data14)){
-for(const key0 in data14){
-let data15 = data14[key0];
-const _errs30 = errors;
-if(!((typeof data15 == "number") && (isFinite(data15)))){
-validate33.errors = [{instancePath:instancePath+"/geometry/" + key0.replace(/~/g, "~0").replace(/\//g, "~1"),schemaPath:"#/properties/geometry/additionalProperties/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.geometry.additionalProperties.type,parentSchema:schema55.properties.geometry.additionalProperties,data:data15}];
+let data23 = data.geometry;
+const _errs46 = errors;
+if(errors === _errs46){
+if(data23 && typeof data23 == "object" && !Array.isArray(data23)){
+for(const key1 in data23){
+let data24 = data23[key1];
+const _errs49 = errors;
+if(!((typeof data24 == "number") && (isFinite(data24)))){
+validate33.errors = [{instancePath:instancePath+"/geometry/" + key1.replace(/~/g, "~0").replace(/\//g, "~1"),schemaPath:"#/properties/geometry/additionalProperties/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.geometry.additionalProperties.type,parentSchema:schema56.properties.geometry.additionalProperties,data:data24}];
 return false;
 }
-var valid3 = _errs30 === errors;
-if(!valid3){
+var valid7 = _errs49 === errors;
+if(!valid7){
 break;
 }
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/geometry",schemaPath:"#/properties/geometry/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema55.properties.geometry.type,parentSchema:schema55.properties.geometry,data:data14}];
+validate33.errors = [{instancePath:instancePath+"/geometry",schemaPath:"#/properties/geometry/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema56.properties.geometry.type,parentSchema:schema56.properties.geometry,data:data23}];
 return false;
 }
 }
-var valid0 = _errs27 === errors;
+var valid0 = _errs46 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.seed !== undefined){
-let data16 = data.seed;
-const _errs32 = errors;
-if(!(((typeof data16 == "number") && (!(data16 % 1) && !isNaN(data16))) && (isFinite(data16)))){
-validate33.errors = [{instancePath:instancePath+"/seed",schemaPath:"#/properties/seed/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema55.properties.seed.type,parentSchema:schema55.properties.seed,data:data16}];
+let data25 = data.seed;
+const _errs51 = errors;
+if(!(((typeof data25 == "number") && (!(data25 % 1) && !isNaN(data25))) && (isFinite(data25)))){
+validate33.errors = [{instancePath:instancePath+"/seed",schemaPath:"#/properties/seed/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema56.properties.seed.type,parentSchema:schema56.properties.seed,data:data25}];
 return false;
 }
-var valid0 = _errs32 === errors;
+var valid0 = _errs51 === errors;
 }
 else {
 var valid0 = true;
@@ -2824,7 +3298,7 @@ var valid0 = true;
 }
 }
 else {
-validate33.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema55.type,parentSchema:schema55,data}];
+validate33.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema56.type,parentSchema:schema56,data}];
 return false;
 }
 }

@@ -68,8 +68,11 @@ function describe(e: ErrorObject): SchemaProblem {
       return { field: fieldOf(e.instancePath), message: `must be ${String(p.type).split(",").map((t) => TYPE_WORDS[t] ?? t).join(" or ")}${got}` };
     case "const":
       return { field: fieldOf(e.instancePath), message: `must be ${JSON.stringify(p.allowedValue)}${got}` };
-    case "enum":
-      return { field: fieldOf(e.instancePath), message: `must be one of ${(p.allowedValues as unknown[]).map((x) => JSON.stringify(x)).join(", ")}${got}` };
+    case "enum": {
+      const allowed = (p.allowedValues as unknown[]).map((x) => JSON.stringify(x));
+      const list = allowed.length === 2 ? `${allowed[0]} or ${allowed[1]}` : `one of ${allowed.join(", ")}`;
+      return { field: fieldOf(e.instancePath), message: `must be ${list}${got}` };
+    }
     case "exclusiveMinimum":
       return { field: fieldOf(e.instancePath), message: `${p.limit === 0 ? "must be positive" : `must be above ${p.limit}`}${got}` };
     case "minimum":

@@ -120,7 +120,7 @@ describe("readers refuse what the schemas refuse, with the coded, field-naming m
     [(c: any) => (c.meta.time = "yesterday"), 'capture field "meta.time": must be an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z), got "yesterday"'],
     [(c: any) => (c.calibration.timebase_ppm = null), 'capture field "calibration.timebase_ppm": must be a finite number, got null'],
     [(c: any) => (c.tank_c_u_f = 0), 'capture field "tank_c_u_f": must be positive, got 0'],
-    [(c: any) => (c.edges[3] = [c.edges[3][0], 2]), "capture edges[3]: level must be one of 0, 1, got 2"],
+    [(c: any) => (c.edges[3] = [c.edges[3][0], 2]), "capture edges[3]: level must be 0 or 1, got 2"],
     [(c: any) => (c.edges[4] = [c.edges[4][0] + 0.5, c.edges[4][1]]), "capture edges[4]: tick must be an integer"],
   ])("capture (%#)", (spoil, message) => {
     const c = capture();

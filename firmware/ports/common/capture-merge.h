@@ -21,19 +21,21 @@
 /* Why a capture was given up (bits, sticky until the next cm_open). */
 #define CM_FAULT_LAPPED 0x01u     /* a DMA ring was overwritten before it was read */
 #define CM_FAULT_SAME_LEVEL 0x02u /* two edges of one level in a row: an edge was lost */
-#define CM_FAULT_LATE 0x08u       /* an edge at or beyond 2^30 ticks: past what an entry can hold */
+#define CM_FAULT_LATE 0x08u       /* an edge at or beyond 2^29 ticks: past what an entry can hold */
 #define CM_FAULT_ORDER 0x10u      /* a ring's values went backwards (corrupt data) */
 #define CM_FAULT_PORT 0x20u       /* reported by the port: timer over-capture, DMA error */
 
 /*
  * The entry written in place of the next edge when a fault is found: bit 31 set, which no edge
- * entry has (ticks stay below 2^30), so the firmware refuses the capture (ER 11) with the switch
+ * entry has (ticks stay below 2^29), so the firmware refuses the capture (ER 11) with the switch
  * open. The low bits carry the fault bits for whoever reads the buffer with a debugger.
  */
 #define CM_FAULT_ENTRY 0x80000000u
 
-/* Edges at or beyond this many ticks after the zero cannot be entries (MAX_EDGE_TICK + 1). */
-#define CM_TICK_LIMIT 0x40000000u
+/* Edges at or beyond this many ticks after the zero cannot be entries: the firmware reads an
+   entry's bits 31 and 30 as raw-mode flags, so tick << 1 must leave bit 30 clear (8.4 s at 64 MHz,
+   beyond the longest capture window). */
+#define CM_TICK_LIMIT 0x20000000u
 
 typedef struct {
   const volatile uint32_t* ring; /* raw capture-register values, written by DMA */

@@ -85,7 +85,7 @@ u32 Z_halZ_device_id(struct Z_hal_instance_t* h) {
 
 u32 Z_halZ_capture_bits(struct Z_hal_instance_t* h) {
   (void)h;
-  return 0; /* extended mode: a 32-bit timer (or a chained pair) reset when the gate opens */
+  return 0; /* extended mode: a free-running 32-bit timer (or a chained pair), captures merged */
 }
 
 /* A trap means a firmware bug: make the hardware safe first, then start the firmware afresh. */
@@ -138,12 +138,14 @@ static volatile uint32_t fake_timer;
 static uint32_t board_timer_now(void) { return fake_timer++; /* read TIMx->CNT */ }
 static void board_select(uint32_t drive, uint32_t tank) { (void)drive; (void)tank; /* set range GPIOs */ }
 static void board_gate_pulse_and_capture(uint32_t charge_ticks, volatile int32_t* buf, uint32_t capacity) {
-  /* Arm DMA: capture register -> buf, `capacity` words. If charge_ticks > 0: gate high now and
-     program the compare that drives it low charge_ticks later, resetting the capture timer at
-     that moment. Word format: ticks since gate-off << 1 | comparator level. */
+  /* Arm DMA: each capture channel's raw register -> its own ring, merged into buf (`capacity`
+     entries) by ../common/capture-merge.c. If charge_ticks > 0: gate high now and program the
+     compare that drives it low charge_ticks later; that compare value is the capture's zero.
+     Never reset the timer (now() must stay monotonic). Entry format: ticks since the zero << 1 |
+     comparator level. */
   (void)charge_ticks; (void)buf; (void)capacity;
 }
-static uint32_t board_capture_written(void) { return 0; /* capacity - DMA remaining count */ }
+static uint32_t board_capture_written(void) { return 0; /* merge the rings, return the entries in buf */ }
 static void board_gate_off_capture_stop(void) { /* gate pin low (forced), disable capture DMA */ }
 static void board_usb_write(const uint8_t* p, uint32_t n) { (void)p; (void)n; /* USB CDC TX */ }
 static uint32_t board_unique_id(void) { return 0x12345678u; /* hash of the MCU unique ID */ }

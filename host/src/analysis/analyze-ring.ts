@@ -19,6 +19,7 @@ import { correlationInflation, residualCorrelation } from "./residual-correlatio
 import { huberWeight, madSigma, median } from "./robust-stats.ts";
 import { invertSymmetric } from "./small-linear-algebra.ts";
 import { checkInput, MIN_EDGES, type CheckedInput } from "./validate-input.ts";
+import { delayEffectSd, edgeDelays, jointTimingStep, rampReach, ringSlopeAt, skewStep, type ComparatorTiming, type LinearFit, type TimingDelays } from "./comparator-timing.ts";
 import { AnalysisError, type RingAnalysis, type RingInput, type Warning } from "./types.ts";
 
 /** Huber tuning constant in robust standard deviations. */
@@ -56,6 +57,30 @@ export interface FitState {
   nll: number;
   /** A fit from another start that the edges support almost as well (AMBIGUOUS_NLL). */
   alternative?: FitState;
+  /** What the comparator-timing terms did (fitRing). */
+  timing?: TimingState;
+  /** Standard deviation of the skew from the joint timing step (fitRing). */
+  timingSkewSd?: number;
+}
+
+/** The comparator-timing terms of a fit (comparator-timing.ts). */
+export interface TimingState {
+  /** True when the edge times were corrected (the caller gave RingInput.comparator). */
+  corrected: boolean;
+  /** Skew the fit assumes (estimate), seconds, and its standard deviation after capture and prior. */
+  skew_s: number;
+  skew_sd_s: number;
+  /** The capture's own evidence: a further Gauss-Newton step in skew without the prior, and its sd. */
+  capture_skew_step_s: number;
+  capture_skew_sd_s: number;
+  skew_source: string;
+  prior_skew_s?: number;
+  prior_skew_u_s?: number;
+  /** Largest first-passage shift (magnitude) and overdrive delay among the used edges, seconds. */
+  fp_max_s: number;
+  od_max_s: number;
+  /** The delays taken out of each edge's time (first passage, overdrive), seconds. */
+  delays?: TimingDelays;
 }
 
 export function analyzeRing(input: RingInput): RingAnalysis {
@@ -153,9 +178,159 @@ const AMBIGUOUS_NLL = 10;
 /** A runner-up whose -2 ln L exceeds the first fit's by this much after a round is abandoned. */
 const RUNNER_UP_GIVE_UP_NLL = 100;
 
+/**
+ * At most this many fits in the timing-correction loop (fitRing): the first at the assumed skew
+ * alone, the next with the first-passage and overdrive delays at the fitted slopes and the skew
+ * step; it stops once a further change of the corrections would move wd and alpha by less than
+ * TIMING_SETTLED_SD of their standard deviations.
+ */
+const MAX_TIMING_FITS = 4;
+const TIMING_SETTLED_SD = 0.05;
+/**
+ * First-passage and overdrive delays are applied up to this much ring phase (rad): the ramp
+ * picture behind both is stretched beyond it (an edge that far from its ramp sits near the
+ * ring's peak), and a runaway correction of a grazing edge stays bounded (bench practice: on the
+ * realistic-comparator benchmark the uncapped ramp law corrected slow tail edges well, and only
+ * its extrapolation to the slowest edges ran away).
+ */
+const MAX_DELAY_RAD = 0.5;
+/** ... and this much when the corrections at MAX_DELAY_RAD cost the fit edges. */
+const FALLBACK_DELAY_RAD = 0.1;
+
+function countUsed(s: FitState): number {
+  let u = 0;
+  for (let k = 0; k < s.used.length; k++) u += s.used[k] > 0 ? 1 : 0;
+  return u;
+}
+
 /** The fitting core of analyzeRing, exposed for diagnostics and tests. */
 export function fitRing(input: RingInput): FitState {
   const c = checkInput(input);
+  const timing = input.comparator;
+  if (!timing) {
+    // Nothing known about the comparator's timing: the fit is of the thresholds' model alone,
+    // and the capture's own evidence of a skew is kept for the COMPARATOR_SKEW diagnostic.
+    const s = fitCapture(c);
+    const st = skewStep(linearFitOf(s), 0, 0);
+    s.timing = { corrected: false, skew_s: 0, skew_sd_s: 0, capture_skew_step_s: st.capture_step_s, capture_skew_sd_s: st.capture_sd_s, skew_source: "none", fp_max_s: 0, od_max_s: 0 };
+    return s;
+  }
+  const n = c.t_s.length;
+  const priorU = timing.skew_u_s >= 0 ? timing.skew_u_s : Infinity;
+  const prior = Number.isFinite(timing.skew_s) ? timing.skew_s : 0;
+  let skew = prior;
+  let delays: TimingDelays = { fp_s: new Float64Array(n), od_s: new Float64Array(n) };
+  let s!: FitState;
+  let prev: FitState | null = null;
+  let prevSkew = skew;
+  let prevDelays = delays;
+  let reach = MAX_DELAY_RAD;
+  let unapplied: TimingDelays | null = null;
+  const t = new Float64Array(n);
+  const dd = new Float64Array(n);
+  for (let pass = 0; pass < MAX_TIMING_FITS; pass++) {
+    // The model's edge = the observed edge less the delays the model does not contain.
+    for (let k = 0; k < n; k++) {
+      t[k] = c.t_s[k] - (c.rising[k] === 1 ? skew : 0) - delays.fp_s[k] - delays.od_s[k];
+      if (k > 0 && t[k] < t[k - 1]) t[k] = t[k - 1];
+    }
+    s = fitCapture({ ...c, t_s: t.slice() });
+    if (pass > 0 && !(countUsed(s) >= countUsed(prev!) - Math.max(2, 0.01 * n))) {
+      // The corrections cost the fit edges it had: they are not what these edges need (a
+      // correction beyond its model's reach). Once more with the delays held to a tighter
+      // reach; failing that, the fit before them, and what they would have corrected goes into
+      // U whole.
+      if (reach > FALLBACK_DELAY_RAD) {
+        reach = FALLBACK_DELAY_RAD;
+        delays = delaysAt(prev!.p, prev!, c, timing, reach);
+        pass--;
+        continue;
+      }
+      unapplied = delays;
+      s = prev!;
+      skew = prevSkew;
+      delays = prevDelays;
+      break;
+    }
+    if (pass === MAX_TIMING_FITS - 1) break;
+    const lf = linearFitOf(s);
+    const next = delaysAt(s.p, s, c, timing, reach);
+    // The skew is estimated once the other delays are in the times (the first fit has them
+    // not, and a skew would absorb part of them).
+    const step = pass === 0 ? 0 : skewStep(lf, prior - skew, priorU).step_s;
+    for (let k = 0; k < n; k++) dd[k] = (c.rising[k] === 1 ? step : 0) + next.fp_s[k] - delays.fp_s[k] + next.od_s[k] - delays.od_s[k];
+    const effect = delayEffectSd(lf, dd);
+    if (!(effect > TIMING_SETTLED_SD)) break;
+    prev = s;
+    prevSkew = skew;
+    prevDelays = delays;
+    skew += step;
+    delays = next;
+  }
+  const st = skewStep(linearFitOf(s), prior - skew, priorU);
+  const assumed = skew;
+  skew = finishTiming(s, timing, assumed, prior, priorU, delays, unapplied);
+  if (s.alternative) finishTiming(s.alternative, timing, assumed, prior, priorU, delays, unapplied);
+  let fpMax = 0, odMax = 0;
+  for (let k = 0; k < n; k++) {
+    if (!(s.used[k] > 0)) continue;
+    fpMax = Math.max(fpMax, -delays.fp_s[k]);
+    odMax = Math.max(odMax, delays.od_s[k]);
+  }
+  s.timing = {
+    corrected: true, skew_s: skew, skew_sd_s: s.timingSkewSd ?? NaN, capture_skew_step_s: st.capture_step_s, capture_skew_sd_s: st.capture_sd_s,
+    skew_source: timing.skew_source ?? "caller", prior_skew_s: prior, prior_skew_u_s: priorU, fp_max_s: fpMax, od_max_s: odMax,
+    delays,
+  };
+  return s;
+}
+
+/** The delays (first passage, overdrive) the model p predicts at the clean crossings, each held
+ *  within reachRad of ring phase. */
+function delaysAt(p: ArrayLike<number>, s: FitState, c: CheckedInput, timing: ComparatorTiming, reachRad: number): TimingDelays {
+  const n = s.edges.n;
+  const reach = new Float64Array(n);
+  const slope = new Float64Array(n);
+  const clean = new Float64Array(n);
+  const t = s.checked.t_s;
+  for (let k = 0; k < n; k++) {
+    clean[k] = s.used[k] > 0 && s.edges.form[k] === 1 ? 1 : 0;
+    if (!clean[k]) continue;
+    const rise = s.edges.rising[k] === 1;
+    const level = rise ? c.vh_v : c.vl_v;
+    slope[k] = ringSlopeAt(p, t[k], level, rise);
+    reach[k] = rampReach(p[P_WD], reachRad);
+  }
+  return edgeDelays(slope, clean, Math.sqrt(s.noise.sigma_v2), timing, reach);
+}
+
+/**
+ * The last step with the timing terms (comparator-timing.ts, jointTimingStep): the skew's
+ * Gauss-Newton step with its prior, applied to the fit's parameters, and the covariance those
+ * terms add (skew estimated with the ring, Type B first-passage and overdrive terms), scaled by
+ * the fit's own inflation. Returns the skew.
+ */
+function finishTiming(
+  s: FitState, timing: ComparatorTiming, skew: number, prior: number, priorU: number, delays: TimingDelays, unapplied: TimingDelays | null,
+): number {
+  const j = jointTimingStep(linearFitOf(s), prior - skew, priorU, delays, timing, unapplied);
+  if (!j) return skew;
+  const inflation = j.base_alpha_var > 0 ? Math.max(1, s.cov[15] / j.base_alpha_var) : 1;
+  for (let i = 0; i < 4; i++) s.p[i] += j.dp[i];
+  for (let i = 0; i < 16; i++) s.cov[i] += j.added_cov[i] * inflation;
+  s.timingSkewSd = j.skew_sd_s * Math.sqrt(inflation);
+  return skew + j.dskew_s;
+}
+
+/** The weighted linear pieces of a converged fit (comparator-timing.ts). */
+function linearFitOf(s: FitState): LinearFit {
+  const w = new Float64Array(s.edges.n);
+  for (let k = 0; k < w.length; k++) w[k] = s.used[k] > 0 ? 1 / s.variance[k] : 0;
+  return { r: s.r, jac: s.jac, slope: s.slope, w, rising: s.edges.rising };
+}
+
+/** One fit of the thresholds' edge model to the capture's (corrected) edge times. */
+function fitCapture(c: CheckedInput): FitState {
   const n = c.t_s.length;
   const q = (c.tick_s * c.tick_s) / 12;
   const book = assignHalfCycles(c.t_s, c.rising);

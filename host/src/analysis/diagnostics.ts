@@ -18,6 +18,9 @@ const MIN_CYCLES = 8;
 const TRUNCATED_RATIO = 1.5;
 /** Initial amplitude below this multiple of the threshold: delays asin(V/A) dominate. */
 const NEAR_AMPLITUDE_RATIO = 3;
+/** A skew the capture shows beyond this many standard deviations from the one assumed (bench
+ *  practice: a false alarm rate of about 6e-5 for Gaussian errors). */
+const SKEW_Z = 4;
 /** Frequency drift flagged above 4 standard uncertainties and 20 ppm (bench practice). */
 const DRIFT_MIN_REL = 20e-6;
 
@@ -70,6 +73,8 @@ export function diagnose(s: FitState, rq: RingQuantities): Diagnosis {
   if (white.z > 4 && white.rho > 0.2) {
     warnings.push({ code: "POOR_FIT", message: `residuals are correlated from edge to edge (lag-1 r = ${white.rho.toFixed(2)}): the ring is not a clean damped sine (interference, a second resonance, or a tick rate locked to the ring); the uncertainty has been widened for it` });
   }
+  const skew = skewEvidence(s);
+  if (skew) warnings.push(skew);
   const drift = frequencyDrift(s);
   if (drift && Math.abs(drift.df_rel) > 4 * drift.df_rel_u && Math.abs(drift.df_rel) > DRIFT_MIN_REL) {
     warnings.push({ code: "FREQUENCY_DRIFT", message: `the ring frequency changes by ${(drift.df_rel * 1e6).toFixed(0)} ppm (± ${(2 * drift.df_rel_u * 1e6).toFixed(0)} ppm, k = 2) from the start to the end of the ring: the tank capacitor may be voltage dependent (use C0G/film) or the core may be near saturation (lower the drive current)` });
@@ -181,4 +186,28 @@ function frequencyDrift(s: FitState): { df_rel: number; df_rel_u: number } | und
   const df = beta * span;
   const u = Math.abs(betaU * span);
   return Number.isFinite(df) && Number.isFinite(u) ? { df_rel: df, df_rel_u: u } : undefined;
+}
+
+/**
+ * COMPARATOR_SKEW: rising and falling edges sit apart by a constant time that the fit did not
+ * assume: a score test on a rise/fall delay difference (one Gauss-Newton step with the ring's
+ * four parameters profiled out, analyze-ring.ts). Uncorrected fits are tested against zero skew;
+ * corrected ones against their prior (calibration or the board's), combined with the capture's
+ * own uncertainty.
+ */
+function skewEvidence(s: FitState): Warning | null {
+  const t = s.timing;
+  if (!t || !(t.capture_skew_sd_s > 0) || !Number.isFinite(t.capture_skew_step_s)) return null;
+  const captureSkew = t.skew_s + t.capture_skew_step_s;
+  const prior = t.corrected ? t.prior_skew_s ?? 0 : 0;
+  const priorU = t.corrected ? t.prior_skew_u_s ?? 0 : 0;
+  if (!Number.isFinite(priorU)) return null;
+  const z = (captureSkew - prior) / Math.sqrt(t.capture_skew_sd_s ** 2 + priorU ** 2);
+  if (!(Math.abs(z) > SKEW_Z)) return null;
+  const ns = (x: number) => (x * 1e9).toFixed(1);
+  const what = `rising edges come ${ns(captureSkew)} ns (± ${ns(2 * t.capture_skew_sd_s)} ns, k = 2) later than falling ones by the capture's own evidence`;
+  const next = t.corrected
+    ? `the comparator skew from ${t.skew_source} (${ns(prior)} ns ± ${ns(2 * priorU)} ns) disagrees with it: calibrate the skew again (docs/calibration.md) and measure with the new profile`
+    : "L and Q were fitted with equal rise and fall delays and their uncertainties leave this out: calibrate the comparator's skew (docs/calibration.md) and measure with it";
+  return { code: "COMPARATOR_SKEW", message: `${what}; ${next}` };
 }

@@ -10,7 +10,7 @@
 //   ringQuantities(...)      (wd, alpha) and their covariance to f0, L, Q, ESR and the budget
 
 export { AnalysisError } from "./types.ts";
-export type { RingAnalysis, RingInput, Warning } from "./types.ts";
+export type { ComparatorTiming, RingAnalysis, RingInput, Warning } from "./types.ts";
 export { analyzeRing } from "./analyze-ring.ts";
 export { ringCramerRao } from "./cramer-rao.ts";
 export type { EdgeNoiseModel, RingBound, RingTruth } from "./cramer-rao.ts";

@@ -4,6 +4,8 @@
 // (docs/method.md §1, standard circuit theory). A timebase error scales every time by the
 // same factor, so it scales wd and alpha alike: it enters f0 once, L twice, ESR once, Q not.
 
+import type { ReadingBudgetLine } from "../codes.ts";
+
 export const COVERAGE_K = 2;
 
 export interface RingQuantities {
@@ -17,7 +19,7 @@ export interface RingQuantities {
   /** Standard uncertainties (k = 1). */
   u: { f0_hz: number; inductance_h: number; q: number; esr_ohm: number };
   /** Standard relative contributions to u(L)/L. */
-  budget: { name: string; rel_u: number }[];
+  budget: { name: ReadingBudgetLine; rel_u: number }[];
 }
 
 /**

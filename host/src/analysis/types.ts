@@ -2,6 +2,10 @@
 // uncertainties named `_u_` are expanded (k = 2, JCGM 100:2008 §6) unless a field says otherwise.
 
 import { CodedError } from "../coded-error.ts";
+import type { AnalysisErrorCode, ReadingBudgetLine, WarningCode } from "../codes.ts";
+import type { ComparatorTiming } from "./comparator-timing.ts";
+
+export type { ComparatorTiming } from "./comparator-timing.ts";
 
 export interface RingInput {
   /** Timer tick rate, Hz. */
@@ -25,11 +29,20 @@ export interface RingInput {
    * few edges (low Q) this is much of what fixes the decay.
    */
   ring_ended?: boolean;
+  /**
+   * The comparator's timing beyond its thresholds: rise/fall delay skew (with its uncertainty:
+   * from calibration, or the board's prior), the bandwidth of its continuous input noise
+   * (first-passage correction) and its overdrive charge (docs/method.md §2a). When given, the
+   * edge times are corrected for them and what is not known exactly enters U. When absent the
+   * edge model is that of the thresholds alone; a skew the capture shows is then named by the
+   * COMPARATOR_SKEW warning.
+   */
+  comparator?: ComparatorTiming;
 }
 
 /** A condition the user should know about; `code` is stable, `message` says what to do next. */
 export interface Warning {
-  code: string;
+  code: WarningCode;
   message: string;
 }
 
@@ -54,7 +67,7 @@ export interface RingAnalysis {
   rejected: { index: number; reason: string }[];
   warnings: Warning[];
   /** Standard relative contributions to u(L)/L: fit, capacitance, timebase. */
-  budget: { name: string; rel_u: number }[];
+  budget: { name: ReadingBudgetLine; rel_u: number }[];
   /** Estimated noise: timing jitter (s rms) and input-referred voltage noise (V rms). */
   noise: { sigma_t_s: number; sigma_v_v: number };
   /** Relative change of the ring frequency from the strong half to the weak half of the ring. */
@@ -62,4 +75,4 @@ export interface RingAnalysis {
 }
 
 /** Thrown for input that cannot be analysed; `code` is stable, the message says what to do. */
-export class AnalysisError extends CodedError {}
+export class AnalysisError extends CodedError<AnalysisErrorCode> {}

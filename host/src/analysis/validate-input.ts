@@ -1,6 +1,7 @@
 // Up-front checks of a RingInput: every number the analysis relies on is checked here, so that a
 // bad capture fails with a stable code and advice instead of turning into a plausible number.
 
+import { NOMINAL_TIMEBASE_U_REL, nominalTankU } from "../nominal-uncertainty.ts";
 import { AnalysisError, type RingInput } from "./types.ts";
 
 /** More edges than any capture buffer holds: a corrupt length rather than a ring. */
@@ -33,9 +34,9 @@ export function checkInput(input: RingInput): CheckedInput {
   if (!(Number.isFinite(vh) && Number.isFinite(vl))) bad("thresholds_v must be finite volts; check the threshold calibration");
   if (!(vh > vl)) bad(`the rising threshold (${vh} V) must be above the falling one (${vl} V); check their order`);
   if (!(vh > 0 || vl < 0)) bad("at least one threshold must lie away from zero on the side of its edge; check the threshold calibration");
-  const c_u_f = input.tank_c_u_f ?? (0.01 * tank_c_f) / Math.sqrt(3);
+  const c_u_f = input.tank_c_u_f ?? nominalTankU(tank_c_f);
   if (!(Number.isFinite(c_u_f) && c_u_f >= 0)) bad("tank_c_u_f must be a finite, non-negative capacitance in farads");
-  const tb = input.timebase_u_rel ?? 50e-6 / Math.sqrt(3);
+  const tb = input.timebase_u_rel ?? NOMINAL_TIMEBASE_U_REL;
   if (!(Number.isFinite(tb) && tb >= 0 && tb < 0.1)) bad("timebase_u_rel must be a finite relative uncertainty below 0.1");
   const n = ticks.length;
   if (levels.length !== n) bad(`ticks (${n}) and levels (${levels.length}) differ in length; the capture is corrupt, re-read it`);

@@ -2,19 +2,9 @@
 // stable code and a message that ends with what to do next.
 
 import { CodedError } from "../coded-error.ts";
+import { CALIBRATION_ERROR_MEANINGS, type CalibrationErrorCode } from "../codes.ts";
 
-export class CalibrationError extends CodedError {}
+export class CalibrationError extends CodedError<CalibrationErrorCode> {}
 
-/** Stable codes, listed once so docs and tests can refer to them. */
-export const CALIBRATION_CODES = [
-  "PROFILE_INVALID", // a stored profile breaks the schema (field named in the message)
-  "PROFILE_VERSION", // a stored profile is of a version this build cannot read
-  "PROFILE_UNREADABLE", // the file exists but cannot be read or is not JSON
-  "PROFILE_WRONG_DEVICE", // the profile belongs to another tester
-  "NO_PREVIOUS", // restore asked for with no previous profile kept
-  "BAD_REFERENCE", // reference value or uncertainty makes no sense
-  "OUT_OF_SPAN", // reference outside the usable span of the tank range
-  "NONSENSE_RESULT", // a procedure produced a negative or implausible value
-  "TIMEBASE_UNSUPPORTED", // the tester cannot report its tick counter
-  "TWO_TANKS_UNAVAILABLE", // no second tank setting suits the part for the self-capacitance method
-] as const;
+/** Stable codes (codes.ts lists them with their meanings; docs/codes.md is the table). */
+export const CALIBRATION_CODES = Object.keys(CALIBRATION_ERROR_MEANINGS) as CalibrationErrorCode[];

@@ -5,7 +5,7 @@
 // lands in the result unless the user states it (a low-Cs coil on a large tank keeps it small).
 
 import type { DeviceClient } from "../device/client.ts";
-import type { AppliedCalibration } from "../measure/capture-build.ts";
+import type { AppliedCalibration } from "./applied.ts";
 import { CalibrationError } from "./errors.ts";
 import { propagate } from "./gum-propagation.ts";
 import type { TankEntry } from "./profile-schema.ts";

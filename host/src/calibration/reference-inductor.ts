@@ -5,7 +5,7 @@
 // later reading on this timebase (apply-profile.ts).
 
 import type { DeviceClient } from "../device/client.ts";
-import type { AppliedCalibration } from "../measure/capture-build.ts";
+import type { AppliedCalibration } from "./applied.ts";
 import type { Reading } from "../measure/measure-part.ts";
 import { measurePart } from "../measure/measure-part.ts";
 import { CalibrationError } from "./errors.ts";

@@ -3,8 +3,8 @@
 // method (two-capacitance.ts) with the capacitances the calibration profile gives.
 
 import type { DeviceClient } from "../device/client.ts";
-import type { AppliedCalibration } from "../measure/capture-build.ts";
-import { NOMINAL_TANK_TOLERANCE } from "../measure/capture-build.ts";
+import type { AppliedCalibration } from "./applied.ts";
+import { NOMINAL_TIMEBASE_U_REL, nominalTankU } from "../nominal-uncertainty.ts";
 import type { Reading } from "../measure/measure-part.ts";
 import { measurePart } from "../measure/measure-part.ts";
 import { sharedTimebaseURel } from "./apply-profile.ts";
@@ -15,9 +15,6 @@ import type { TankRing, TwoCapacitanceResult } from "./two-capacitance.ts";
 import { solveTwoCapacitance } from "./two-capacitance.ts";
 import type { UncertaintyBudget } from "./uncertainty-budget.ts";
 import { twoTankBudget } from "./uncertainty-budget.ts";
-
-/** The analysis's default timebase: 50 ppm rectangular (analysis/types.ts). */
-const ANALYSIS_TIMEBASE_U_REL = 50e-6 / Math.sqrt(3);
 
 export interface SelfCapacitanceReading {
   /** The ring on the smaller tank. */
@@ -55,7 +52,7 @@ async function onCalibratedDrive(client: DeviceClient, r: Reading | undefined, t
 /** Capacitance of one ring, split into what only this tank has and what both tanks share. */
 function tankRing(r: Reading, profile: CalibrationProfile | null | undefined, shared: { rel: number; offset_f: number }): TankRing {
   const c = r.capture.tank_c_f;
-  const uTotal = r.capture.tank_c_u_f ?? (c * NOMINAL_TANK_TOLERANCE) / Math.sqrt(3);
+  const uTotal = r.capture.tank_c_u_f ?? nominalTankU(c);
   const calibrated = r.capture.calibration?.tank_calibrated === true && profile;
   const uOwn = calibrated ? Math.sqrt(Math.max(0, uTotal ** 2 - (shared.rel * c) ** 2 - shared.offset_f ** 2)) : uTotal;
   return { f0_hz: r.analysis.f0_hz, u_fit_hz: fitRelUF0(r) * r.analysis.f0_hz, c_f: c, u_c_f: uOwn };
@@ -115,7 +112,7 @@ function solvePair(small: Reading, large: Reading, profile: CalibrationProfile |
   const result = solveTwoCapacitance({
     small: tankRing(small, opts.profile, shared),
     large: tankRing(large, opts.profile, shared),
-    timebase_u_rel: sharedTimebaseURel(opts.profile ?? null, [small.settings.tank, large.settings.tank], ANALYSIS_TIMEBASE_U_REL),
+    timebase_u_rel: sharedTimebaseURel(opts.profile ?? null, [small.settings.tank, large.settings.tank], NOMINAL_TIMEBASE_U_REL),
     shared_c_u_rel: shared.rel,
     shared_c_u_f: shared.offset_f,
   });

@@ -3,8 +3,9 @@
 // weaker ones, then stronger ones; measurePart's own checks refuse any setting over a limit
 // (SETTING_UNSAFE) before it is pulsed, and such refusals simply move on to the next drive.
 
+import { ErrorCode, NO_USABLE_RING } from "../codes.ts";
 import type { DeviceClient } from "../device/client.ts";
-import type { AppliedCalibration } from "../measure/capture-build.ts";
+import type { AppliedCalibration } from "./applied.ts";
 import type { Reading } from "../measure/measure-part.ts";
 import { MeasureError, measurePart } from "../measure/measure-part.ts";
 import type { PartEstimate } from "../ranging/estimate.ts";
@@ -32,7 +33,7 @@ export const MIN_CAL_EDGES = 20;
 export const MIN_TICKS_PER_PERIOD = 40;
 
 /** Errors that mean "this drive does not suit the part on this tank", so try another. */
-const NEXT_DRIVE = new Set(["SETTING_UNSAFE", "CHARGE_LIMIT", "TOO_FEW_EDGES", "NO_RING", "EMPTY_CAPTURE", "PEAK_LIMIT"]);
+const NEXT_DRIVE = new Set<ErrorCode>([ErrorCode.SETTING_UNSAFE, ErrorCode.CHARGE_LIMIT, ErrorCode.PEAK_LIMIT, ...NO_USABLE_RING]);
 
 export function driveOrder(client: DeviceClient, prefer?: number): number[] {
   const byOhm = client.profile.drives.map((d) => d.index).sort((a, b) => client.profile.drives[a].ohm - client.profile.drives[b].ohm);

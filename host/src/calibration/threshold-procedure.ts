@@ -2,7 +2,7 @@
 // the ratio fitted on each (threshold-fit.ts), and the profile entry.
 
 import type { DeviceClient } from "../device/client.ts";
-import type { AppliedCalibration } from "../measure/capture-build.ts";
+import type { AppliedCalibration } from "./applied.ts";
 import { ringInputFromCapture } from "../measure/capture-build.ts";
 import { measurePart } from "../measure/measure-part.ts";
 import { estimateFromReading } from "../ranging/estimate.ts";

@@ -3,6 +3,7 @@
 // tank (the part's self-capacitance, strays of an uncalibrated tank), combined in quadrature
 // (uncorrelated groups, JCGM 100:2008 §5.1.2) and expanded with k = 2 (§6.2-6.3). Pure.
 
+import type { ReadingBudgetLine } from "../codes.ts";
 import type { RingAnalysis } from "../analysis/index.ts";
 import { SELF_CAPACITANCE_LINE, STRAY_CAPACITANCE_LINE } from "../measure/reading-uncertainty.ts";
 import type { TwoCapacitanceResult } from "./two-capacitance.ts";
@@ -52,7 +53,7 @@ export interface TimebaseKnowledge {
 export function singleTankBudget(
   a: RingAnalysis, tank_c_f: number, timebase?: TimebaseKnowledge, cs?: { cs_f: number; u_cs_f: number },
 ): UncertaintyBudget {
-  const from = (name: string) => a.budget.find((b) => b.name === name)?.rel_u ?? 0;
+  const from = (name: ReadingBudgetLine) => a.budget.find((b) => b.name === name)?.rel_u ?? 0;
   const stray = from(STRAY_CAPACITANCE_LINE);
   const lines: BudgetLine[] = [
     { group: "fit", rel_u: from("fit"), note: `edge-model fit, ${a.edges_used} edges` },

@@ -1,7 +1,8 @@
-// henrytick analyze FILE...: the same analysis on saved captures.
+// henrytick analyze FILE...: the same analysis and part-fault judgement on saved captures (a
+// capture kept as suspect reads as suspect again).
 
 import { readCaptureFile } from "../capture/capture-file.ts";
-import { analyzeCapture } from "../measure/measure-part.ts";
+import { judgeCapture } from "../measure/measure-part.ts";
 import { buildResult } from "../measure/result.ts";
 import { parse } from "./args.ts";
 import { CliUsageError, reportError } from "./errors.ts";
@@ -16,7 +17,8 @@ export async function runAnalyze(args: string[]): Promise<number> {
   for (const file of positionals) {
     try {
       const capture = readCaptureFile(file);
-      const result = buildResult(analyzeCapture(capture), capture);
+      const reading = judgeCapture(capture, undefined, { keep_suspect: true });
+      const result = buildResult(reading.analysis, reading.capture, reading.suspect);
       if (values.csv) process.stdout.write((results.length === 0 ? csvHeader(["file"]) : "") + csvRow(result, [file]));
       if (values.json || values.csv) results.push(positionals.length > 1 ? { file, ...result } : result);
       else process.stdout.write(renderReading(result, result.label ?? file) + "\n");

@@ -6,6 +6,7 @@ import {
   ERR_SYNTAX, ERR_UNKNOWN_COMMAND, ERR_RINGING, ERR_CAPTURE_FAULT,
 } from "@henrytick/shared-protocol";
 import { CodedError } from "../coded-error.ts";
+import type { ErrorCode } from "../codes.ts";
 
 /** The tester refused a command with an `ER` frame. */
 export class DeviceError extends CodedError {
@@ -62,7 +63,7 @@ export const STRAY_NEXT =
   "setting ID_MM_DEVICE_IGNORE=1), then retry";
 export const STRAY_BYTES = `bytes the host did not send reached it, most often from ${STRAY_CAUSE}; ${STRAY_NEXT}`;
 
-export function describeDeviceError(n: number): [string, string] {
+export function describeDeviceError(n: number): [ErrorCode, string] {
   switch (n) {
     case ERR_CRC:
       return ["LINK_CRC", `the command arrived corrupted (CRC mismatch): noise on the cable, or ${STRAY_CAUSE.replace(/, or noise on the line$/, "")}; check the cable and that no other program has the port open, then retry`];

@@ -14,6 +14,7 @@ import type { PlanLimits } from "../ranging/predict.ts";
 import type { MeasureOptions, Reading } from "./measure-part.ts";
 import { MeasureError, NO_USABLE_RING, describeSetting, readOnce } from "./read-once.ts";
 import { explainFailure, shortedPart, SHORT_MAX_L_H } from "./part-fault.ts";
+import { WarningCode } from "../codes.ts";
 import { ROUGH_PREDICTION_SHARE as ROUGH_MARGIN, volts } from "../ranging/safety.ts";
 import { ReadingProgress, settingInfo } from "./events.ts";
 
@@ -126,10 +127,13 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
     throw new MeasureError("NO_SETTING", `no setting gives a usable ring within the limits. ${failures.join(" ")} ${why}`.trim());
   }
   if (best.analysis.edges_used < MIN_EDGES_AUTO) {
-    best.analysis.warnings.push({
-      code: "FEW_EDGES_BEST_SETTING",
+    const w = {
+      code: WarningCode.FEW_EDGES_BEST_SETTING,
       message: `the best setting found gives only ${best.analysis.edges_used} edges: the part is too heavily damped for a longer ring within the ${volts(limits.max_peak_v)} limit; the reading rests on few cycles`,
-    });
+    };
+    best.analysis.warnings.push(w);
+    // Recorded with the capture, so that analysing it again gives the same warnings.
+    best.capture.reading_warnings = [...(best.capture.reading_warnings ?? []), w];
   }
   return best;
 }

@@ -3,33 +3,12 @@
 // timebase come from it; without one, the tank is taken at its nominal value with the board's
 // C0G/film tolerance (±1 %, rectangular: u = 1 % / sqrt(3), JCGM 100:2008 §4.3.7).
 
+import { nominalTankU } from "../nominal-uncertainty.ts";
 import type { RingInput } from "../analysis/index.ts";
 import type { CaptureV1 } from "../capture/capture-file.ts";
 import type { DeviceIdentity, DeviceProfile } from "../device/profile.ts";
 import type { RawCapture } from "../device/stream-reader.ts";
-
-export const NOMINAL_TANK_TOLERANCE = 0.01;
-
-/**
- * What a calibration says about one tester, in the form a capture needs. The calibration
- * module produces it from a stored profile; any field left out keeps the nominal value.
- */
-export interface AppliedCalibration {
-  /**
-   * Effective capacitance across the part for each tank index (tank + fixture), with its
-   * standard uncertainty; `timebase_u_ppm` when that tank's calibration already absorbed the
-   * timebase error (a reference-inductor calibration: only drift since then remains).
-   */
-  tanks?: ({ c_f: number; u_f: number; timebase_u_ppm?: number } | undefined)[];
-  /** Comparator thresholds referred to the ring, [rising, falling]. */
-  thresholds_v?: [number, number];
-  /** Timebase error: the timer really counts at tick_hz (1 + ppm 1e-6). */
-  timebase_ppm?: number;
-  /** Standard uncertainty of that error, ppm (the uncalibrated crystal: 50 / sqrt(3)). */
-  timebase_u_ppm?: number;
-  /** Where it came from, for the capture's record (e.g. the profile's file and date). */
-  source: string;
-}
+import type { AppliedCalibration } from "../calibration/applied.ts";
 
 export function captureFromDevice(
   raw: RawCapture, identity: DeviceIdentity, profile: DeviceProfile, transport: string, label?: string,
@@ -45,7 +24,7 @@ export function captureFromDevice(
     version: 1,
     tick_hz: raw.tick_hz * (1 + ppm * 1e-6),
     tank_c_f: calTank ? calTank.c_f : nominal,
-    tank_c_u_f: calTank ? calTank.u_f : (nominal * NOMINAL_TANK_TOLERANCE) / Math.sqrt(3),
+    tank_c_u_f: calTank ? calTank.u_f : nominalTankU(nominal),
     thresholds_v: calibration?.thresholds_v ? [calibration.thresholds_v[0], calibration.thresholds_v[1]] : [profile.thresholds_v[0], profile.thresholds_v[1]],
     calibration: calibration
       ? {
@@ -53,14 +32,14 @@ export function captureFromDevice(
         ...(tbU !== undefined ? { timebase_u_ppm: tbU } : {}),
       }
       : { source: "nominal (uncalibrated)", tank_calibrated: false, nominal_tank_c_f: nominal, nominal_tick_hz: raw.tick_hz, timebase_ppm: 0 },
-    drive: { supply_v: profile.supply_v, series_ohm: profile.drives[s.drive].ohm },
+    drive: { supply_v: profile.supply_v, series_ohm: profile.drives[s.drive].ohm, clamp_v: profile.clamp_v },
     range: {
       drive_index: s.drive, tank_index: s.tank, charge_us: s.charge_us,
       edge_limit: s.edge_limit, timeout_ms: s.timeout_ms, quiet_us: s.quiet_us,
     },
     device: {
       id: identity.device_id, firmware_version: identity.firmware_version,
-      protocol_version: identity.protocol_version, transport,
+      protocol_version: identity.protocol_version, transport, clamp_v: profile.clamp_v, max_timeout_ms: profile.max_timeout_ms,
     },
     meta: { ...(label ? { label } : {}), time: new Date().toISOString(), end_reason: raw.end_reason },
     edges: raw.ticks.map((t, i) => [t, raw.levels[i]] as [number, number]),

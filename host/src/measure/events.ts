@@ -6,6 +6,7 @@
 import type { DeviceClient, MeasureSettings } from "../device/client.ts";
 import type { RawCapture } from "../device/stream-reader.ts";
 import { CodedError } from "../coded-error.ts";
+import type { CautionCode } from "../codes.ts";
 
 /** What the reading is doing: probing the part gently, ranging step by step, or on a fixed setting. */
 export type MeasurePhase = "probe" | "ranging" | "fixed";
@@ -47,7 +48,7 @@ export interface StepEvent extends EventBase {
 /** Something about the ring changed the plan: over the peak limit, or amplitude-dependent. */
 export interface CautionEvent extends EventBase {
   type: "caution";
-  code: "RING_OVER_LIMIT" | "AMPLITUDE_DEPENDENT";
+  code: CautionCode;
   amplitude_v: number;
 }
 

@@ -11,7 +11,7 @@ import type { PlanLimits } from "../ranging/predict.ts";
 import { predictSetting, type SettingPrediction } from "../ranging/predict.ts";
 import { resolvePeakLimit, volts } from "../ranging/safety.ts";
 import { autoRange, probePart } from "./auto-range.ts";
-import type { AppliedCalibration } from "./capture-build.ts";
+import type { AppliedCalibration } from "../calibration/applied.ts";
 import { MeasureError, NO_USABLE_RING, describeSetting, readOnce } from "./read-once.ts";
 import { explainFailure, finishReading, shortedPart, SHORT_MAX_L_H } from "./part-fault.ts";
 import type { PartFault } from "./part-fault.ts";

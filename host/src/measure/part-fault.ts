@@ -11,11 +11,12 @@
 import type { CaptureV1 } from "../capture/capture-file.ts";
 import type { DeviceProfile } from "../device/profile.ts";
 import { formatSi } from "../format/si.ts";
+import { isAnalysisFailure, WarningCode, type PartFaultCode } from "../codes.ts";
 import type { Reading } from "./measure-part.ts";
 import { frequencySwing } from "./frequency-swing.ts";
 import { MeasureError, analyzeCapture, fitCapture } from "./read-once.ts";
 
-export type PartFaultCode = "RING_OUTLASTS_WINDOW" | "FIRST_CYCLE_CLIPPED" | "FIXTURE_CHATTER" | "CORE_SATURATING" | "PART_SHORTED";
+export type { PartFaultCode } from "../codes.ts";
 
 /** A part fault found in a reading: a stable code and a message with the diagnosis and the next step. */
 export interface PartFault {
@@ -54,28 +55,54 @@ export const SATURATION_SWING_REL = 1e-3;
 export const OUTLAST_THRESHOLD_RATIO = 3;
 /** A buffer-full capture outlasts its window only when the ring has not even halved across it. */
 export const OUTLAST_DECAY_RATIO = 0.5;
-/** Extra edge pairs in at least this share of half-cycles make a capture that will not fit chatter. */
+/** Signs of chatter (glitch pairs, breaks) in at least this share of half-cycles make a capture that will not fit chatter. */
 export const CHATTER_PAIR_RATIO = 0.1;
 /** An interval shorter than this share of the median edge interval is a glitch, not a half-cycle. */
 const GLITCH_INTERVAL_RATIO = 1 / 8;
 /** Below this the probe's estimate says short rather than a small part (the range starts at 1 µH). */
 export const SHORT_MAX_L_H = 0.5e-6;
 
+/** An interval this many times the median, before the ring's last quarter, is a break in the ring. */
+const BREAK_INTERVAL_RATIO = 1.75;
+
 /**
- * Glitch pairs in a capture: intervals between successive edges far shorter than a half-cycle
- * (the median interval). A ring's edges alternate at its threshold crossings, never closer than a
- * fraction of a half-period; a comparator toggling inside a half-cycle leaves short intervals.
+ * What a chattering contact leaves in the edges as recorded. Glitch pairs: intervals far shorter
+ * than a half-cycle (the median interval); a ring's edges alternate at its threshold crossings,
+ * never closer than a fraction of a half-period, so a comparator toggling inside a half-cycle
+ * leaves short ones. Breaks: intervals well over a half-cycle while the ring is still strong (its
+ * first three quarters): the contact opened, the tank held its voltage and the ring stood still.
+ * Near its end a clean ring's intervals grow (the peaks graze the threshold, and one may be
+ * missed), so the last quarter is not searched for breaks.
  */
-export function chatterOf(c: CaptureV1): { glitch_pairs: number; half_cycles: number } {
+export function chatterOf(c: CaptureV1): { glitch_pairs: number; breaks: number; half_cycles: number } {
   const iv: number[] = [];
   for (let i = 1; i < c.edges.length; i++) iv.push(c.edges[i][0] - c.edges[i - 1][0]);
-  if (iv.length < 4) return { glitch_pairs: 0, half_cycles: iv.length };
+  if (iv.length < 4) return { glitch_pairs: 0, breaks: 0, half_cycles: iv.length };
   const sorted = [...iv].sort((a, b) => a - b);
   const median = sorted[sorted.length >> 1];
   const short = iv.filter((d) => d < GLITCH_INTERVAL_RATIO * median).length;
+  const strong = iv.slice(0, Math.floor(0.75 * iv.length));
+  const breaks = strong.filter((d) => d > BREAK_INTERVAL_RATIO * median).length;
   // Each glitch pair adds one short interval and splits one half-cycle in three.
-  return { glitch_pairs: short, half_cycles: iv.length - 2 * short };
+  return { glitch_pairs: short, breaks, half_cycles: iv.length - 2 * short };
 }
+
+/** Signs of chatter in a capture: glitch pairs plus breaks. */
+function chatterSigns(ch: { glitch_pairs: number; breaks: number }): number {
+  return ch.glitch_pairs + ch.breaks;
+}
+
+/** Fewest signs of chatter in the edges for rejected edges to be blamed on the fixture. */
+export const CHATTER_MIN_SIGNS = 2;
+
+function chatterDetail(ch: { glitch_pairs: number; breaks: number; half_cycles: number }): string {
+  const parts: string[] = [];
+  if (ch.glitch_pairs > 0) parts.push(`${ch.glitch_pairs} toggles inside ${ch.half_cycles} half-cycles`);
+  if (ch.breaks > 0) parts.push(`${ch.breaks} break${ch.breaks === 1 ? "" : "s"} where the ring stood still for more than a half-cycle`);
+  return parts.join(", ");
+}
+
+const CHATTER_ADVICE = "Check the clips and the fixture's contacts (a loose clip, a bouncing contact, a worn socket), keep the leads short and twisted away from mains wiring, then measure again";
 
 /** The ring's amplitude at the last recorded edge, and at its start, in units of the stopping threshold. */
 function ringAtEnd(r: Reading): { end_ratio: number; decay: number } {
@@ -99,23 +126,32 @@ function ringFrequencySwing(r: Reading, drift_df_rel: number): number {
   }
 }
 
-const has = (r: Reading, code: string) => r.analysis.warnings.some((w) => w.code === code);
+const has = (r: Reading, code: WarningCode) => r.analysis.warnings.some((w) => w.code === code);
 const fixedAdvice = "drop --drive and --tank to let automatic ranging choose";
 
 /**
- * Judges a reading for part faults; null when it can be given as a result. `profile` gives the
- * clamp voltage and the tester's longest window.
+ * What the judgement needs to know of the tester: its clamp voltage and its longest window
+ * (its profile's; a saved capture records them in `device`). A check that needs one it does not
+ * know is skipped (a capture saved before they were recorded).
  */
-export function judgeReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v" | "max_timeout_ms">): PartFault | null {
+export type TesterLimits = Partial<Pick<DeviceProfile, "clamp_v" | "max_timeout_ms">>;
+
+/** The tester limits a capture records. */
+export function limitsOf(capture: CaptureV1): TesterLimits {
+  return { clamp_v: capture.device?.clamp_v, max_timeout_ms: capture.device?.max_timeout_ms };
+}
+
+/** Judges a reading for part faults; null when it can be given as a result. */
+export function judgeReading(r: Reading, profile: TesterLimits): PartFault | null {
   const a = r.analysis;
   const L = formatSi(a.inductance_h, "H", 3);
-  if (has(r, "SUSPECTED_CLIPPING") && a.amplitude_v >= CLIP_CLAMP_RATIO * profile.clamp_v) {
+  if (has(r, WarningCode.SUSPECTED_CLIPPING) && profile.clamp_v !== undefined && a.amplitude_v >= CLIP_CLAMP_RATIO * profile.clamp_v) {
     return {
       code: "FIRST_CYCLE_CLIPPED",
       message: `the first cycle was clipped: the ring started at about ${a.amplitude_v.toFixed(1)} V, at the ${profile.clamp_v} V clamp, and its first edges sit off the ring model, so the value (about ${L}) rests on a distorted ring. The part carries more current or has more inductance than the setting was chosen for: lower the drive current (a larger drive resistor, a shorter --charge-us) or ${fixedAdvice}, then measure again`,
     };
   }
-  const df = has(r, "FREQUENCY_DRIFT") && a.drift ? ringFrequencySwing(r, a.drift.df_rel) : 0;
+  const df = has(r, WarningCode.FREQUENCY_DRIFT) && a.drift ? ringFrequencySwing(r, a.drift.df_rel) : 0;
   if (2 * Math.abs(df) > SATURATION_SWING_REL) {
     const ppm = df * 1e6;
     const swing = 2 * Math.abs(df) * 100;
@@ -124,16 +160,23 @@ export function judgeReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v" 
       message: `the inductance changes with the current: the ring frequency ${ppm < 0 ? "falls" : "rises"} by ${Math.abs(ppm).toFixed(0)} ppm from the first edge to the last, so L swings by ${swing.toFixed(2)} % within one ring (about ${L} on average) — the core is near saturation at ${a.amplitude_v.toFixed(2)} V of ring. Lower the drive current (a larger drive resistor or a shorter --charge-us; with automatic ranging, a lower --max-peak-v) or ${fixedAdvice}; if parts with air cores drift the same way, the tester's tank capacitor is voltage dependent (it must be C0G/film)`,
     };
   }
-  if (has(r, "MANY_REJECTED")) {
-    const ch = chatterOf(r.capture);
-    const extra = ch.glitch_pairs > 0 ? ` (${ch.glitch_pairs} toggles inside ${ch.half_cycles} half-cycles)` : "";
+  // Rejected edges alone are no diagnosis (a clean low-Q ring loses a few at its start and end):
+  // the edges must show the contact's marks.
+  const ch = chatterOf(r.capture);
+  if (has(r, WarningCode.MANY_REJECTED) && chatterSigns(ch) >= CHATTER_MIN_SIGNS) {
     return {
       code: "FIXTURE_CHATTER",
-      message: `the fixture chatters: ${a.edges_rejected} of ${a.edges_used + a.edges_rejected} edges were not the ring's${extra}, the comparator toggling where the ring does not cross. Check the clips and the fixture's contacts (a loose clip, a bouncing contact, a worn socket), keep the leads short and twisted away from mains wiring, then measure again`,
+      message: `the fixture chatters: ${a.edges_rejected} of ${a.edges_used + a.edges_rejected} edges were not the ring's (${chatterDetail(ch)}), the contact breaking the ring where a sound one would not. ${CHATTER_ADVICE}`,
+    };
+  }
+  if (has(r, WarningCode.RING_TRUNCATED) && r.capture.meta?.end_reason === "quiet" && ch.breaks >= 1 && ringAtEnd(r).end_ratio >= OUTLAST_THRESHOLD_RATIO) {
+    return {
+      code: "FIXTURE_CHATTER",
+      message: `the fixture chatters: the ring stopped abruptly while still ${ringAtEnd(r).end_ratio.toFixed(1)}x the threshold, after ${chatterDetail(ch)}: a contact that opens takes the ring's energy with it. ${CHATTER_ADVICE}`,
     };
   }
   const end = r.capture.meta?.end_reason;
-  if (has(r, "RING_TRUNCATED")) {
+  if (has(r, WarningCode.RING_TRUNCATED)) {
     const { end_ratio, decay } = ringAtEnd(r);
     const timedOut = end === "timeout" && end_ratio >= OUTLAST_THRESHOLD_RATIO;
     const full = end === "full" && end_ratio >= OUTLAST_THRESHOLD_RATIO && decay >= OUTLAST_DECAY_RATIO;
@@ -143,7 +186,7 @@ export function judgeReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v" 
       const window = full ? (limit ? `the ${limit}-edge buffer` : "the edge buffer") : r.settings.timeout_ms > 0 ? `the ${r.settings.timeout_ms} ms window` : "the capture window";
       return {
         code: "RING_OUTLASTS_WINDOW",
-        message: `the ring outlasts the capture: it was still ${end_ratio.toFixed(1)}x the threshold when ${window} ended, so the decay — and with it Q, ESR and the check that this is one clean ring — is not seen (about ${L}). The part rings longer than this window (a large inductance or a very high Q): ${fixedAdvice} (it sizes the window to the ring, up to ${profile.max_timeout_ms} ms), or use a shorter --charge-us so the ring starts lower and ends sooner`,
+        message: `the ring outlasts the capture: it was still ${end_ratio.toFixed(1)}x the threshold when ${window} ended, so the decay — and with it Q, ESR and the check that this is one clean ring — is not seen (about ${L}). The part rings longer than this window (a large inductance or a very high Q): ${fixedAdvice} (it sizes the window to the ring${profile.max_timeout_ms !== undefined ? `, up to ${profile.max_timeout_ms} ms` : ""}), or use a shorter --charge-us so the ring starts lower and ends sooner`,
       };
     }
   }
@@ -156,22 +199,22 @@ export function judgeReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v" 
  */
 export function explainFailure(e: MeasureError): MeasureError {
   const c = e.capture;
-  if (!c || !["NO_RING", "TOO_FEW_EDGES", "BAD_INPUT"].includes(e.code)) return e;
+  if (!c || !isAnalysisFailure(e.code)) return e;
   const ch = chatterOf(c);
-  if (ch.half_cycles <= 0 || ch.glitch_pairs < CHATTER_PAIR_RATIO * ch.half_cycles) return e;
+  if (ch.half_cycles <= 0 || chatterSigns(ch) < Math.max(CHATTER_MIN_SIGNS, CHATTER_PAIR_RATIO * ch.half_cycles)) return e;
   return new PartFaultError(
     "FIXTURE_CHATTER",
-    `the fixture chatters: ${ch.glitch_pairs} toggles inside ${ch.half_cycles} half-cycles break the ring up so that it cannot be followed (${e.code}). Check the clips and the fixture's contacts (a loose clip, a bouncing contact, a worn socket), keep the leads short and twisted away from mains wiring, then measure again`,
+    `the fixture chatters: ${chatterDetail(ch)} break the ring up so that it cannot be followed (${e.code}). ${CHATTER_ADVICE}`,
   );
 }
 
 /**
- * What `measurePart` does with a capture after the pulse: analysis, a failure explained, and the
- * reading judged. Throws a PartFaultError for a part fault unless `keep_suspect`.
+ * A capture analysed and judged the way `measurePart` judges a reading: a failure explained, a
+ * part fault refused with a PartFaultError unless `keep_suspect` (then the reading is marked
+ * suspect). `profile` defaults to what the capture records of its tester; `henrytick analyze`
+ * reads saved captures this way, with `keep_suspect`, so it prints what `measure` printed.
  */
-export function judgeCapture(
-  capture: CaptureV1, profile: Pick<DeviceProfile, "clamp_v" | "max_timeout_ms">, opts: { keep_suspect?: boolean } = {},
-): Reading {
+export function judgeCapture(capture: CaptureV1, profile: TesterLimits = limitsOf(capture), opts: { keep_suspect?: boolean } = {}): Reading {
   let analysis;
   try {
     analysis = analyzeCapture(capture);
@@ -187,7 +230,7 @@ export function judgeCapture(
 }
 
 /** The final step of a reading: judged, then returned, marked suspect on request, or refused. */
-export function finishReading(r: Reading, profile: Pick<DeviceProfile, "clamp_v" | "max_timeout_ms">, opts: { keep_suspect?: boolean }): Reading {
+export function finishReading(r: Reading, profile: TesterLimits, opts: { keep_suspect?: boolean }): Reading {
   const fault = judgeReading(r, profile);
   if (!fault) return r;
   if (opts.keep_suspect) return { ...r, suspect: fault };

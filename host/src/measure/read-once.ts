@@ -11,6 +11,7 @@ import { withUnaccountedCapacitance } from "./reading-uncertainty.ts";
 import type { MeasureOptions, Reading } from "./measure-part.ts";
 import { CodedError } from "../coded-error.ts";
 import { ReadingProgress, type MeasurePhase } from "./events.ts";
+import { checkCapturePlausible, checkReadingPlausible, ImplausibleError } from "./plausibility.ts";
 
 export class MeasureError extends CodedError {
   /** The capture that could not be analysed, when the error came from its analysis. */
@@ -41,17 +42,22 @@ export function analyzeCapture(capture: CaptureV1): RingAnalysis {
  */
 export function fitCapture(capture: CaptureV1): { fit: FitState; analysis: RingAnalysis } {
   try {
+    checkCapturePlausible(capture);
     const fit = fitRing(ringInputFromCapture(capture));
-    return { fit, analysis: withUnaccountedCapacitance(analyzeFit(fit), capture) };
+    const analysis = withUnaccountedCapacitance(analyzeFit(fit), capture);
+    checkReadingPlausible(capture, analysis);
+    // Warnings the reading added when it was taken (automatic ranging's) come back with it.
+    if (capture.reading_warnings?.length) analysis.warnings = [...analysis.warnings, ...capture.reading_warnings];
+    return { fit, analysis };
   } catch (e) {
-    const m = e instanceof AnalysisError ? new MeasureError(e.code, e.message) : e;
+    const m = e instanceof AnalysisError || e instanceof ImplausibleError ? new MeasureError(e.code, e.message) : e;
     if (m instanceof MeasureError) m.capture ??= capture;
     throw m;
   }
 }
 
 /** Codes of a capture that held no usable ring (as opposed to a link or setting problem). */
-export const NO_USABLE_RING = ["TOO_FEW_EDGES", "NO_RING", "EMPTY_CAPTURE"];
+export { NO_USABLE_RING } from "../codes.ts";
 
 export function describeSetting(client: DeviceClient, s: { drive: number; tank: number; charge_us: number }): string {
   const r = client.profile.drives[s.drive].ohm;

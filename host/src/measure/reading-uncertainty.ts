@@ -7,14 +7,15 @@
 // L = 1/(w0² C) and ESR = 2 alpha L both scale as 1/C, so the term enters both with the same
 // relative size, in quadrature with the analysis's own U (uncorrelated, JCGM 100:2008 §5.1.2).
 
+import type { ReadingBudgetLine } from "../codes.ts";
 import type { RingAnalysis } from "../analysis/index.ts";
 import { COVERAGE_K } from "../analysis/index.ts";
 import type { CaptureV1 } from "../capture/capture-file.ts";
 import { unaccountedCapacitance } from "../ranging/unaccounted-capacitance.ts";
 
 /** Budget line names of the two shares (calibration/uncertainty-budget.ts reads them back). */
-export const SELF_CAPACITANCE_LINE = "self-capacitance";
-export const STRAY_CAPACITANCE_LINE = "stray capacitance";
+export const SELF_CAPACITANCE_LINE = "self-capacitance" satisfies ReadingBudgetLine;
+export const STRAY_CAPACITANCE_LINE = "stray capacitance" satisfies ReadingBudgetLine;
 
 export function withUnaccountedCapacitance(a: RingAnalysis, capture: CaptureV1): RingAnalysis {
   // A capture that does not record its calibration is taken as uncalibrated.

@@ -3,6 +3,7 @@
 
 import type { RingAnalysis } from "../analysis/index.ts";
 import type { CaptureV1 } from "../capture/capture-file.ts";
+import type { PartFaultCode, WarningCode } from "../codes.ts";
 
 export interface ResultJson {
   f0_hz: number;
@@ -18,7 +19,7 @@ export interface ResultJson {
   ring_amplitude_v: number;
   edges_used: number;
   edges_rejected: number;
-  warnings: { code: string; message: string }[];
+  warnings: { code: WarningCode; message: string }[];
   settings: {
     tick_hz: number;
     tank_c_f: number;
@@ -34,10 +35,10 @@ export interface ResultJson {
    * Present only for a reading kept on request (measure keep_suspect / --keep-suspect) although it
    * shows a part fault: the fault's code and message. Such a reading is not a verified result.
    */
-  suspect?: { code: string; message: string };
+  suspect?: { code: PartFaultCode; message: string };
 }
 
-export function buildResult(a: RingAnalysis, c: CaptureV1, suspect?: { code: string; message: string }): ResultJson {
+export function buildResult(a: RingAnalysis, c: CaptureV1, suspect?: { code: PartFaultCode; message: string }): ResultJson {
   return {
     ...(suspect ? { suspect: { code: suspect.code, message: suspect.message } } : {}),
     f0_hz: a.f0_hz,

@@ -24,6 +24,10 @@ export interface Nonlinearities {
   /** Ring amplitude above which the clamp conducts, volts; its dynamic resistance, ohms. */
   clamp_v?: number;
   clamp_ohm?: number;
+  /** Resistance in series with the part besides its own, as a function of time (a chattering contact). */
+  extra_series_ohm?: (t_s: number) => number;
+  /** Longest time the ring may fall silent and come back (a contact open that long), seconds. */
+  silence_s?: number;
 }
 
 export function differentialInductance(l0_h: number, nl: Nonlinearities, i_a: number): number {
@@ -62,11 +66,13 @@ export function nonlinearCrossings(
   const gClamp = 1 / (nl.clamp_ohm ?? 1);
   const k = nl.tank_k_per_v2 ?? 0;
   let clamped = false;
-  const rhs = (_t: number, y: Float64Array, dy: Float64Array) => {
+  const extra = nl.extra_series_ohm;
+  const rhs = (t: number, y: Float64Array, dy: Float64Array) => {
     const i = y[0];
     const vtd = y[1];
     const iClamp = -vtd > clampV ? (-vtd - clampV) * gClamp : 0;
-    dy[0] = (vtd - c.rs_ohm * i) / differentialInductance(c.l_h, nl, i);
+    const rs = extra ? c.rs_ohm + extra(t) : c.rs_ohm;
+    dy[0] = (vtd - rs * i) / differentialInductance(c.l_h, nl, i);
     dy[1] = (-i - vtd * gp + iClamp) / (cTank * Math.max(1 - k * vtd * vtd, 0.05));
   };
   const period = (2 * Math.PI) / w0;
@@ -100,7 +106,7 @@ export function nonlinearCrossings(
       if (out.times.length >= max_edges) return false;
     }
     // Two periods without a crossing: the ring no longer reaches the thresholds.
-    return s.t1 - lastPeakT < 2 * period;
+    return s.t1 - lastPeakT < 2 * period + (nl.silence_s ?? 0);
   });
   out.clamped = clamped;
   return out;

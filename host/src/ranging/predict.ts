@@ -4,6 +4,7 @@
 // (edges, bound), §7 (flyback). The charge phase rings too (the part and tank form a parallel
 // tank fed through R), so the charge time covers both the L/R rise and that ring's decay.
 
+import { NOMINAL_TIMEBASE_U_REL, nominalTankU } from "../nominal-uncertainty.ts";
 import type { DeviceProfile } from "../device/profile.ts";
 import { predictedRingBound, rangingWork } from "./bound-cache.ts";
 import type { PartEstimate } from "./estimate.ts";
@@ -59,8 +60,6 @@ export interface SettingPrediction {
   refused: string;
 }
 
-/** Timebase: ±50 ppm crystal, rectangular, until calibrated. */
-export const TIMEBASE_REL_U = 50e-6 / Math.sqrt(3);
 const DEFAULT_NOISE = { sigma_t_s: 3e-9, sigma_v_v: 0.6e-3 };
 /** The capture keeps up with at most one edge per 32 ticks on average. */
 const TICKS_PER_EDGE_MIN = 32;
@@ -71,7 +70,7 @@ export function predictSetting(
   rangingWork.predictions++;
   const r = profile.drives[drive];
   const c = tankValue?.c_f ?? profile.tanks[tank].nominal_f;
-  const u_c = tankValue?.u_f ?? (c * 0.01) / Math.sqrt(3);
+  const u_c = tankValue?.u_f ?? nominalTankU(c);
   const loss = lossModel(est);
   const z = Math.sqrt(est.l_h / c);
   const q = 1 / (loss.rs_ohm / z + z * loss.gp_s);
@@ -104,7 +103,7 @@ export function predictSetting(
   // What the reading will not separate from the tank: the same model as the reading's own U. This
   // is why the advice prefers the largest tank that still rings long enough.
   const stray = unaccountedCapacitanceRelU(c, { tank_calibrated: tankValue !== undefined });
-  const budget = { fit: fit.l_rel, tank: u_c / c, timebase: 2 * TIMEBASE_REL_U, stray };
+  const budget = { fit: fit.l_rel, tank: u_c / c, timebase: 2 * NOMINAL_TIMEBASE_U_REL, stray };
   const p: SettingPrediction = {
     drive, tank, charge_us: charge.charge_us, i0_a: charge.i0, i0_worst_a: charge.i0_worst,
     supply_current_a: charge.i_final, resistor_energy_j: energy, resistor_avg_power_w: avgPower, resistor_rating_w: r.power_rating_w,

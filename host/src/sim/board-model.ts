@@ -4,6 +4,7 @@
 // parts' tolerances (resistors ±1 %, tank capacitors ±1 % C0G / film).
 
 import type { ComparatorModel, TimerModel } from "./comparator-edges.ts";
+import type { ContactChatter } from "./fixture-chatter.ts";
 
 export interface BoardModel {
   supply_v: number;
@@ -27,6 +28,8 @@ export interface BoardModel {
   clamp_ohm: number;
   /** Tank voltage coefficient k, C(v) = C0 (1 - k v^2); 0 for C0G and film. */
   tank_k_per_v2: number;
+  /** An intermittent clip contact (fixture-chatter.ts); absent for sound contacts. */
+  contact_chatter?: ContactChatter;
   comparator: ComparatorModel;
   timer: TimerModel;
   device_id: number;
@@ -87,11 +90,14 @@ export function referenceBoard(): BoardModel {
 }
 
 /** The board with a scenario's bench conditions applied. */
-export function boardWithFixture(board: BoardModel, fixture: { capacitance_f?: number; tank_voltage_coefficient_per_v2?: number } | undefined): BoardModel {
+export function boardWithFixture(
+  board: BoardModel, fixture: { capacitance_f?: number; tank_voltage_coefficient_per_v2?: number; chatter?: ContactChatter } | undefined,
+): BoardModel {
   if (!fixture) return board;
   return {
     ...board,
     fixture_f: fixture.capacitance_f ?? board.fixture_f,
     tank_k_per_v2: fixture.tank_voltage_coefficient_per_v2 ?? board.tank_k_per_v2,
+    ...(fixture.chatter ? { contact_chatter: fixture.chatter } : {}),
   };
 }

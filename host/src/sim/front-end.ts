@@ -9,7 +9,8 @@ import { waveAmplitude } from "../physics/ring-wave.ts";
 import type { BoardModel } from "./board-model.ts";
 import type { EdgeList } from "./comparator-edges.ts";
 import { applyComparator, captureEdges } from "./comparator-edges.ts";
-import { nonlinearCrossings } from "../physics/nonlinear-ring.ts";
+import { nonlinearCrossings, type Nonlinearities } from "../physics/nonlinear-ring.ts";
+import { contactEvents, contactResistance, longestEvent, type ContactChatter } from "./fixture-chatter.ts";
 import type { Random } from "./random.ts";
 import type { PartModel } from "./scenario.ts";
 
@@ -52,7 +53,8 @@ export function simulatePulse(
   }
   const peak = waveAmplitude(wave);
   const saturates = part.saturation_current_a !== undefined;
-  if (!saturates && board.tank_k_per_v2 === 0 && peak <= board.clamp_v) {
+  const chatter = board.contact_chatter ? chatterOn(board.contact_chatter, circuit, wave, window_s, rng) : {};
+  if (!saturates && board.tank_k_per_v2 === 0 && peak <= board.clamp_v && !board.contact_chatter) {
     const edges = captureEdges(wave, board.comparator, board.timer, rng, capacity, window_s);
     return { edges, wave, i0_a: x0.i_a, peak_v: peak, clamped: false };
   }
@@ -62,12 +64,24 @@ export function simulatePulse(
     circuit,
     {
       saturation_a: part.saturation_current_a, saturation_floor: part.saturation_floor_ratio,
-      tank_k_per_v2: board.tank_k_per_v2, clamp_v: board.clamp_v, clamp_ohm: board.clamp_ohm,
+      tank_k_per_v2: board.tank_k_per_v2, clamp_v: board.clamp_v, clamp_ohm: board.clamp_ohm, ...chatter,
     },
     [x0.i_a, x0.v_td_v], board.comparator.rising_v + off, board.comparator.falling_v + off, capacity + 64, window_s,
   );
   const edges = applyComparator(nl.times, nl.levels, nl.slopes, board.comparator, board.timer, rng, capacity);
   return { edges, wave, i0_a: x0.i_a, peak_v: nl.peak_v, clamped: nl.clamped };
+}
+
+/**
+ * A chattering contact's events for this ring (fixture-chatter.ts), as the integrator's extra
+ * series resistance. Events are drawn over the ring's life (30 decay times, within the window);
+ * an open contact is 200 ω0 L, so the current stops within 1/200 of a radian of the ring while
+ * the tank holds its voltage for some 30 periods.
+ */
+function chatterOn(ch: ContactChatter, c: FrontEndCircuit, wave: RingWave, window_s: number, rng: Random): Pick<Nonlinearities, "extra_series_ohm" | "silence_s"> {
+  const w0 = Math.hypot(wave.alpha_per_s, wave.wd_rad_s);
+  const events = contactEvents(ch, Math.min(window_s, 30 / Math.max(wave.alpha_per_s, 1e-3)), rng);
+  return { extra_series_ohm: contactResistance(events, 200 * w0 * c.l_h), silence_s: longestEvent(events) };
 }
 
 /**

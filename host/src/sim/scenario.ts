@@ -1,6 +1,7 @@
 // Simulated-tester scenarios: a demo part (and its bench story) in a JSON file with units in the
 // keys. Malformed files are refused with the offending field named.
 
+import type { ContactChatter } from "./fixture-chatter.ts";
 import { readFileSync, readdirSync } from "node:fs";
 import { basename, dirname, join } from "node:path";
 import { fileURLToPath } from "node:url";
@@ -26,6 +27,8 @@ export interface FixtureModel {
   capacitance_f?: number;
   /** Tank voltage coefficient k, C(v) = C0 (1 - k v^2): a class II ceramic fitted as the tank. */
   tank_voltage_coefficient_per_v2?: number;
+  /** An intermittent clip contact during the ring (sim/fixture-chatter.ts). */
+  chatter?: ContactChatter;
 }
 
 export interface Scenario {
@@ -68,7 +71,7 @@ export function validateScenario(raw: unknown): Scenario {
     saturation_floor_ratio: p.saturation_floor_ratio,
   };
   const f = o.fixture as FixtureModel | undefined;
-  const fixture = f ? { capacitance_f: f.capacitance_f, tank_voltage_coefficient_per_v2: f.tank_voltage_coefficient_per_v2 } : undefined;
+  const fixture = f ? { capacitance_f: f.capacitance_f, tank_voltage_coefficient_per_v2: f.tank_voltage_coefficient_per_v2, ...(f.chatter ? { chatter: f.chatter } : {}) } : undefined;
   return {
     format: "henrytick-scenario", version: 1, name: o.name as string, story: (o.story as string | undefined) ?? "", part,
     ...(fixture ? { fixture } : {}), seed: (o.seed as number | undefined) ?? 1,

@@ -47,19 +47,72 @@ export function normalCdf(z: number): number {
 }
 
 /**
- * Complementary error function, fractional error below 1.2e-7 everywhere (Chebyshev fit from
- * W. H. Press et al., Numerical Recipes in C, 2nd ed., 1992, §6.2, "erfcc"; coefficients from
- * memory, checked against the normal-table values in the tests).
+ * Complementary error function to double precision: relative error below 3e-15 on [-6, 27]
+ * against 40-digit reference values (the tests). Two classical expansions, written here from
+ * M. Abramowitz and I. A. Stegun (eds.), Handbook of Mathematical Functions, NBS AMS 55 (1964),
+ * a public-domain work of the US government:
+ * - |x| < 1: 1 - erf x, with erf x = (2/sqrt(pi)) e^(-x^2) sum 2^n x^(2n+1) / (1*3*...*(2n+1))
+ *   (eq. 7.1.6; every term positive, so no cancellation inside the sum);
+ * - |x| >= 1: the continued fraction erfc x = (e^(-x^2)/sqrt(pi)) / (x + (1/2)/(x + 1/(x + (3/2)/(x + ...))))
+ *   (eq. 7.1.14), evaluated by the modified Lentz method (W. J. Lentz, Appl. Opt. 15 (1976) 668;
+ *   I. J. Thompson and A. R. Barnett, J. Comput. Phys. 64 (1986) 490);
+ * - erfc(-x) = 2 - erfc(x) (eq. 7.1.2 with erf odd).
+ * e^(-x^2) is taken as e^(-h^2) e^(-(x-h)(x+h)) with h = x cut to 12 fractional bits (h^2 exact),
+ * so the rounding of x^2, which e^(-x^2) would magnify by x^2, is not incurred.
  */
 export function erfc(x: number): number {
-  const z = Math.abs(x);
-  const t = 1 / (1 + 0.5 * z);
-  const r =
-    t *
-    Math.exp(
-      -z * z - 1.26551223 +
-        t * (1.00002368 + t * (0.37409196 + t * (0.09678418 + t * (-0.18628806 + t * (0.27886807 +
-          t * (-1.13520398 + t * (1.48851587 + t * (-0.82215223 + t * 0.17087277)))))))),
-    );
-  return x >= 0 ? r : 2 - r;
+  if (Number.isNaN(x)) return NaN;
+  if (x < 0) return 2 - erfc(-x);
+  if (x < 1) return 1 - erfSeries(x);
+  if (x > 27.3) return 0; // below the smallest double
+  return expMinusSquare(x) / (Math.sqrt(Math.PI) * lentzFraction(x));
+}
+
+/** e^(-x^2) without the rounding error of x*x. */
+function expMinusSquare(x: number): number {
+  const h = Math.trunc(x * 4096) / 4096;
+  return Math.exp(-h * h) * Math.exp(-(x - h) * (x + h));
+}
+
+/** erf x for 0 <= x < 1 by A&S 7.1.6. */
+function erfSeries(x: number): number {
+  const x2 = x * x;
+  let term = x;
+  let sum = x;
+  for (let n = 1; n < 100 && term > sum * 1e-17; n++) {
+    term *= (2 * x2) / (2 * n + 1);
+    sum += term;
+  }
+  return (2 / Math.sqrt(Math.PI)) * expMinusSquare(x) * sum;
+}
+
+/** x + (1/2)/(x + 1/(x + (3/2)/(x + ...))) for x >= 1, modified Lentz; a_n = n/2, b_n = x. */
+function lentzFraction(x: number): number {
+  const TINY = 1e-300;
+  let f = x;
+  let c = x;
+  let d = 0;
+  for (let n = 1; n < 1000; n++) {
+    const a = n / 2;
+    d = x + a * d;
+    c = x + a / c;
+    d = 1 / (d === 0 ? TINY : d);
+    if (c === 0) c = TINY;
+    const delta = c * d;
+    f *= delta;
+    if (Math.abs(delta - 1) < 1e-16) break;
+  }
+  return f;
+}
+
+/**
+ * A probability to the digits it can carry (the normal model and the uncertainty behind it are
+ * not known to more): two significant digits of the nearer of p and 1 - p, at least four
+ * decimals; within 1e-9 of 0 or 1 it is 0 or 1.
+ */
+export function roundProbability(p: number): number {
+  const tail = Math.min(p, 1 - p);
+  if (tail < 1e-9) return p < 0.5 ? 0 : 1;
+  const decimals = Math.max(4, Math.ceil(-Math.log10(tail)) + 1);
+  return Number(p.toFixed(decimals));
 }

@@ -7,7 +7,7 @@ import { nearestPreferred, type SeriesName } from "../values/e-series.ts";
 import type { Limits, Tolerance } from "../values/tolerance.ts";
 import { toleranceLimits } from "../values/tolerance.ts";
 import { binOf, type BinSpec } from "./bins.ts";
-import { decideConformity, type Decision } from "./conformity.ts";
+import { decideConformity, roundProbability, type Decision } from "./conformity.ts";
 import { RunningStats, type StatsSummary } from "./running-stats.ts";
 
 export interface SortSpec {
@@ -28,6 +28,7 @@ export interface PartRecord {
   inductance_h: number;
   inductance_u_h: number;
   decision: Decision;
+  /** Probability of conformance, to the digits it carries (roundProbability). */
   p_conform: number;
   lower_h: number;
   upper_h: number;
@@ -79,7 +80,7 @@ export class SortSession {
       inductance_h: L,
       inductance_u_h: U,
       decision: c.decision,
-      p_conform: c.p_conform,
+      p_conform: roundProbability(c.p_conform),
       lower_h: this.limits.lower,
       upper_h: this.limits.upper,
       bin: bin?.name ?? "",

@@ -1,12 +1,13 @@
 // Firmware budgets: release wasm size, wire bytes per edge of typical captures, and the native
-// C build's section sizes for Cortex-M0+ (armv6m) and Cortex-M4 (armv7em).
+// C build's section sizes for Cortex-M0+ (armv6m) and Cortex-M4 (armv7em), and the STM32F411CE
+// board image's flash and RAM.
 
 import { statSync } from "node:fs";
 import { firmwareWasmPath } from "../../../host/src/sim/firmware-image.ts";
 import { SimTester } from "../../../host/src/sim/sim-tester.ts";
 import { loadScenario, listScenarios } from "../../../host/src/sim/scenario.ts";
 import { encodeCommand } from "../../../host/src/device/frames.ts";
-import { buildArm, hasArmGcc, hasWasm2c, linearMemoryBacking } from "../../../firmware/ports/native-build.ts";
+import { buildArm, buildBoard, hasArmGcc, hasWasm2c, linearMemoryBacking } from "../../../firmware/ports/native-build.ts";
 import { ScriptedPort } from "../../../firmware/test/scripted-port.ts";
 import type { BenchFigures } from "./types.ts";
 import type { BenchSection } from "./types.ts";
@@ -29,6 +30,18 @@ function armFigures(): { figures: BenchFigures; notes: Record<string, string> } 
     const cpu = target === "armv6m" ? "Cortex-M0+" : "Cortex-M4";
     notes[keys[0]] = `${cpu}, -Os, template port linked with newlib-nano; .text includes .rodata and start-up`;
     notes[keys[2]] = `includes the linear memory's backing (${linearMemoryBacking()} B of the 64 KiB page)`;
+  }
+  // The STM32F411CE board port (firmware/ports/f411/) as it would be flashed.
+  if (!hasWasm2c || !hasArmGcc) {
+    figures["firmware.board_text_bytes"] = null;
+    figures["firmware.board_ram_bytes"] = null;
+    notes["firmware.board_text_bytes"] = "not measured: install Debian packages wabt, gcc-arm-none-eabi, libnewlib-arm-none-eabi";
+  } else {
+    const b = buildBoard();
+    figures["firmware.board_text_bytes"] = b.text_bytes;
+    figures["firmware.board_ram_bytes"] = b.data_bytes + b.bss_bytes;
+    notes["firmware.board_text_bytes"] = "STM32F411CE board port, Cortex-M4, -Os, newlib-nano; .text includes .rodata and the vector table (of 512 KiB flash)";
+    notes["firmware.board_ram_bytes"] = "data + bss of the board image (linear memory backing, 2 x 2 KiB DMA rings, runtime; the C stack comes on top), goal <= 49152";
   }
   return { figures, notes };
 }

@@ -1,5 +1,5 @@
 // The benchmark sections, in the order they run. Each owner adds its own file here.
-import { analysisSection } from "./analysis.ts";
+import { analysisRealSection, analysisSection } from "./analysis.ts";
 import { e2eSection } from "./e2e.ts";
 import { firmwareSection } from "./firmware.ts";
 import { simSection } from "./sim.ts";
@@ -10,4 +10,4 @@ import { cliSection } from "./cli.ts";
 import { honestySection } from "./honesty.ts";
 import type { BenchSection } from "./types.ts";
 
-export const sections: BenchSection[] = [firmwareSection, e2eSection, ptySection, simSection, analysisSection, adviceSection, reliabilitySection, cliSection, honestySection];
+export const sections: BenchSection[] = [firmwareSection, e2eSection, ptySection, simSection, analysisSection, analysisRealSection, adviceSection, reliabilitySection, cliSection, honestySection];
