@@ -25,7 +25,7 @@ export type { ResultJson } from "./measure/result.ts";
 export { readCaptureFile, writeCaptureFile, parseCapture, CaptureFileError } from "./capture/capture-file.ts";
 export type { CaptureV1 } from "./capture/capture-file.ts";
 export { analyzeRing, AnalysisError } from "./analysis/index.ts";
-export type { RingInput, RingAnalysis } from "./analysis/index.ts";
+export type { RingInput, RingAnalysis, ComparatorTiming } from "./analysis/index.ts";
 export { SimTester } from "./sim/sim-tester.ts";
 export { loadScenario, listScenarios } from "./sim/scenario.ts";
 export type { Scenario, PartModel } from "./sim/scenario.ts";
@@ -36,13 +36,13 @@ export type { BoardModel } from "./sim/board-model.ts";
 export { expectedReading } from "./sim/front-end.ts";
 export {
   CalibrationError, validateProfile, emptyProfile, loadProfile, saveProfile, restorePreviousProfile, configDir, profilePaths,
-  appliedCalibration, deviceCalibration, calibrateWithReference, calibrateWithParallelCapacitor, calibrateThresholds,
+  appliedCalibration, deviceCalibration, calibrateWithReference, calibrateWithParallelCapacitor, calibrateThresholds, calibrateSkew, fitSkew,
   measureTimebase, timebaseFromSamples, measureSelfCapacitance, solveTwoCapacitance, singleTankBudget, twoTankBudget,
   propagate, monteCarlo,
 } from "./calibration/index.ts";
 export type {
   CalibrationProfile, TankEntry, StoreOptions, ReferenceInductor, ParallelCapacitor, TickCounter, HostClock, TimebaseResult,
-  TwoCapacitanceInput, TwoCapacitanceResult, SelfCapacitanceReading, UncertaintyBudget, BudgetLine, DeviceCalibration,
+  TwoCapacitanceInput, TwoCapacitanceResult, SelfCapacitanceReading, UncertaintyBudget, BudgetLine, DeviceCalibration, SkewFit,
 } from "./calibration/index.ts";
 // Bench workflows: values as the trade writes them, conformity decisions, sorting, winding,
 // continuous reading, reports, and an abortable reading.
