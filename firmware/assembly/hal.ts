@@ -50,8 +50,9 @@ export declare function halDeviceId(): i32;
 
 /**
  * The capture entry format, constant for the life of the firmware. 0: extended mode, each entry
- * is (ticks since the switch opened) << 1 | level, ticks below 2^30. 8..24: raw mode with an
- * N-bit timer, entries as in timer-extend.ts (open entry, overflow markers, captures).
+ * is (ticks since the switch opened) << 1 | level, ticks below 2^29 (bits 31 and 30 of an entry
+ * are read as raw-mode flags). 8..24: raw mode with an N-bit timer, entries as in
+ * timer-extend.ts (open entry, overflow markers, captures).
  */
 @external("hal", "capture_bits")
 export declare function halCaptureBits(): i32;

@@ -226,6 +226,13 @@ describe(`capture merge on the host${note}`, () => {
     expect(port).toMatchObject({ fault: PORT, entries: [11, FAULT_ENTRY + PORT] });
   });
 
+  it("the firmware takes extended-mode ticks up to 2^29 - 1 and refuses 2^29, the merge's limit (bit 30 reads as a flag)", () => {
+    const ms = Buffer.from(encodeCommand("MS", [1, 2, 200, 100, 100, 1000])).toString("hex");
+    const read = (tick: number) => ScriptedPort.runScript(`capture 2 100 2001 200 ${(tick * 2 + 1) | 0}\nrx ${ms}\n`).text();
+    expect(read(2 ** 29 - 1)).toMatch(/^CH .* 2\*/m);
+    expect(read(2 ** 29)).toMatch(/^ER 11 MS/m);
+  });
+
   it.skipIf(!hasHostGcc)(`stops at the capacity without a fault (the firmware reports the buffer full)${note}`, () => {
     const r = run(boardScript(ring, 42, 64, 50, 4));
     expect(r.fault).toBe(0);

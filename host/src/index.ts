@@ -26,23 +26,20 @@ export { readCaptureFile, writeCaptureFile, parseCapture, CaptureFileError } fro
 export type { CaptureV1 } from "./capture/capture-file.ts";
 export { analyzeRing, AnalysisError } from "./analysis/index.ts";
 export type { RingInput, RingAnalysis, ComparatorTiming } from "./analysis/index.ts";
-export { SimTester } from "./sim/sim-tester.ts";
+// The demo parts openTester({ scenario }) measures; the simulated tester itself, its board models
+// and demo helpers are the henrytick/sim subpath (sim/index.ts).
 export { loadScenario, listScenarios } from "./sim/scenario.ts";
 export type { Scenario, PartModel } from "./sim/scenario.ts";
-export { PtyDevice, PtyDeviceError } from "./sim/pty-device.ts";
-export type { PtyDeviceOptions } from "./sim/pty-device.ts";
-export { referenceBoard, nominalBoard } from "./sim/board-model.ts";
-export type { BoardModel } from "./sim/board-model.ts";
-export { expectedReading } from "./sim/front-end.ts";
 export {
   CalibrationError, validateProfile, emptyProfile, loadProfile, saveProfile, restorePreviousProfile, configDir, profilePaths,
-  appliedCalibration, deviceCalibration, calibrateWithReference, calibrateWithParallelCapacitor, calibrateThresholds, calibrateSkew, fitSkew,
-  measureTimebase, timebaseFromSamples, measureSelfCapacitance, solveTwoCapacitance, singleTankBudget, twoTankBudget,
-  propagate, monteCarlo,
+  appliedCalibration, deviceCalibration, calibrateWithReference, calibrateWithParallelCapacitor, calibrateThresholds, calibrateSkew,
+  measureTimebase, measureSelfCapacitance,
 } from "./calibration/index.ts";
+// The methods behind them (GUM propagation, Monte Carlo, the two-capacitance solution, budgets)
+// are the henrytick/calibration subpath (calibration/index.ts).
 export type {
-  CalibrationProfile, TankEntry, StoreOptions, ReferenceInductor, ParallelCapacitor, TickCounter, HostClock, TimebaseResult,
-  TwoCapacitanceInput, TwoCapacitanceResult, SelfCapacitanceReading, UncertaintyBudget, BudgetLine, DeviceCalibration, SkewFit,
+  CalibrationProfile, TankEntry, StoreOptions, ReferenceInductor, ParallelCapacitor, TimebaseResult,
+  SelfCapacitanceReading, UncertaintyBudget, BudgetLine, DeviceCalibration, SkewFit,
 } from "./calibration/index.ts";
 // Bench workflows: values as the trade writes them, conformity decisions, sorting, winding,
 // continuous reading, reports, and an abortable reading.
@@ -66,15 +63,12 @@ export { runSort } from "./workflows/sort-runner.ts";
 export type { SortEvent, SortRunOptions } from "./workflows/sort-runner.ts";
 export { PresenceTracker } from "./workflows/part-presence.ts";
 export type { Observation, PresenceAction, PresenceOptions } from "./workflows/part-presence.ts";
-export { SimTray, drawTray, trayPart } from "./workflows/sim-tray.ts";
 export { makeBins, binOf } from "./workflows/bins.ts";
 export type { BinSpec, BinResult } from "./workflows/bins.ts";
 export { RunningStats } from "./workflows/running-stats.ts";
 export type { StatsSummary } from "./workflows/running-stats.ts";
 export { windingAdvice, fitWindingModel, predictInductance } from "./workflows/winding.ts";
 export type { WindingReading, WindingAdvice, WindingModel } from "./workflows/winding.ts";
-export { coilOnFormer, formerTurnRange, DEFAULT_FORMER } from "./workflows/sim-coil.ts";
-export type { FormerSpec } from "./workflows/sim-coil.ts";
 export { assessStability, sparkline, History } from "./workflows/watch-trend.ts";
 export type { Stability, StabilityResult } from "./workflows/watch-trend.ts";
 export { buildReport, writeReport } from "./report/write-report.ts";

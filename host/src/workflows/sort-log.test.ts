@@ -3,7 +3,7 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { csvField } from "../format/csv.ts";
-import { CSV_COLUMNS, SortLog } from "./sort-log.ts";
+import { CSV_COLUMNS, csvRow, SortLog } from "./sort-log.ts";
 import type { PartRecord } from "./sort-session.ts";
 
 const rec = (part: number, label = ""): PartRecord => ({
@@ -31,7 +31,7 @@ describe("sort log", () => {
     expect(lines.map((l) => l.label)).toEqual(["", 'odd, "quoted" label']);
   });
 
-  it("ends a torn last record (power cut mid-write) before appending, so the next record stays whole", () => {
+  it("cuts a torn last record (power cut mid-write) off before appending, and the two logs still agree", () => {
     const base = join(dir, "torn");
     let log = SortLog.open({ csv: `${base}.csv`, jsonl: `${base}.jsonl` });
     log.append(rec(1));
@@ -42,13 +42,29 @@ describe("sort log", () => {
     log.append(rec(3, "after"));
     log.close();
     const lines = readFileSync(`${base}.jsonl`, "utf8").trimEnd().split("\n");
-    expect(lines.length).toBe(3);
-    expect(JSON.parse(lines[0]).part).toBe(1);
-    expect(() => JSON.parse(lines[1])).toThrow(); // the torn record stays alone on its line
-    expect(JSON.parse(lines[2]).label).toBe("after");
-    const csv = readFileSync(`${base}.csv`, "utf8").trimEnd().split("\n");
-    expect(csv[csv.length - 1].split(",")[3]).toBe("after");
-    expect(csv.length).toBe(4);
+    expect(lines.map((l) => JSON.parse(l).part)).toEqual([1, 3]); // record 2 was never whole
+    expect(JSON.parse(lines[1]).label).toBe("after");
+    const csv = readFileSync(`${base}.csv`, "utf8");
+    expect(csv).toBe(CSV_COLUMNS.join(",") + "\n" + csvRow(rec(1)) + csvRow(rec(3, "after")));
+  });
+
+  it("writes into the CSV the rows of records it is missing (a kill between the two writes)", () => {
+    const base = join(dir, "behind");
+    let log = SortLog.open({ jsonl: `${base}.jsonl` });
+    log.append(rec(1));
+    log.append(rec(2));
+    log.close();
+    writeFileSync(`${base}.csv`, CSV_COLUMNS.join(",") + "\n" + csvRow(rec(1)));
+    log = SortLog.open({ csv: `${base}.csv`, jsonl: `${base}.jsonl` });
+    log.close();
+    expect(readFileSync(`${base}.csv`, "utf8")).toBe(CSV_COLUMNS.join(",") + "\n" + csvRow(rec(1)) + csvRow(rec(2)));
+  });
+
+  it("refuses a CSV whose rows the JSON Lines log does not hold (code LOG_DISAGREE)", () => {
+    const base = join(dir, "ahead");
+    writeFileSync(`${base}.jsonl`, JSON.stringify(rec(1)) + "\n");
+    writeFileSync(`${base}.csv`, CSV_COLUMNS.join(",") + "\n" + csvRow(rec(1)) + csvRow(rec(2)));
+    expect(() => SortLog.open({ csv: `${base}.csv`, jsonl: `${base}.jsonl` })).toThrow(expect.objectContaining({ code: "LOG_DISAGREE" }));
   });
 
   it("refuses a CSV with other columns (code LOG_HEADER_MISMATCH)", () => {

@@ -1,9 +1,12 @@
-// The append-only part log: one CSV row and one JSON Lines record per part, each written with a
+// The append-only part log: one JSON Lines record and one CSV row per part, each written with a
 // single write() on a file opened for appending and then fsync'ed, so a crash, a power cut or a
-// kill loses at most the part being written. Existing logs are appended to, never rewritten; a
-// CSV whose header differs from this version's is refused rather than mixed.
+// kill loses at most the part being written. The JSON Lines log is the record and is written
+// first; the CSV is its rendering (csvRow), so the two of one sort agree: opening them again cuts
+// a torn last record off either file and writes into the CSV the rows of records it is missing.
+// Existing logs are appended to, never rewritten; a CSV whose header differs from this version's,
+// or whose rows are not the JSON Lines log's, is refused rather than mixed.
 
-import { closeSync, existsSync, fstatSync, fsyncSync, openSync, readFileSync, readSync, writeSync } from "node:fs";
+import { closeSync, existsSync, fstatSync, fsyncSync, ftruncateSync, openSync, readFileSync, readSync, writeSync } from "node:fs";
 import type { PartRecord } from "./sort-session.ts";
 import { CodedError } from "../coded-error.ts";
 import { csvField } from "../format/csv.ts";
@@ -24,33 +27,64 @@ export function csvRow(r: PartRecord): string {
 export class SortLog {
   private constructor(private readonly csvFd: number | null, private readonly jsonlFd: number | null) {}
 
-  /** Opens (creating if needed) the logs; either path may be omitted. */
+  /**
+   * Opens (creating if needed) the logs; either path may be omitted. With both, the CSV is
+   * brought level with the JSON Lines log (rows of records a kill kept from it are written now).
+   */
   static open(paths: { csv?: string; jsonl?: string }): SortLog {
+    const jsonlFd = paths.jsonl ? openLog(paths.jsonl) : null;
     let csvFd: number | null = null;
-    if (paths.csv) {
-      const fresh = !existsSync(paths.csv) || readFileSync(paths.csv, "utf8").length === 0;
-      if (!fresh) {
-        const first = readFileSync(paths.csv, "utf8").split("\n", 1)[0];
-        if (first !== HEADER) {
+    try {
+      if (paths.csv) {
+        csvFd = openLog(paths.csv);
+        const text = readFileSync(paths.csv, "utf8");
+        if (text.length > 0 && text.split("\n", 1)[0] !== HEADER) {
           throw new SortLogError("LOG_HEADER_MISMATCH", `${paths.csv} has other columns than this version writes; give a new --log file name`);
         }
+        const expected = HEADER + "\n" + (paths.jsonl ? wholeRecords(paths.jsonl).map(csvRow).join("") : "");
+        if (text.length === 0) writeDurably(csvFd, paths.jsonl ? expected : HEADER + "\n");
+        else if (paths.jsonl) {
+          if (!expected.startsWith(text)) {
+            throw new SortLogError(
+              "LOG_DISAGREE",
+              `${paths.csv} holds rows that ${paths.jsonl} does not (${text.length > expected.length ? "more records" : "other records"}): the two are not one sort's logs; give a new --log name, or keep only the JSON Lines log and delete the CSV (it is written again from the JSON Lines log)`,
+            );
+          }
+          if (text.length < expected.length) writeDurably(csvFd, expected.slice(text.length));
+        }
       }
-      csvFd = openLog(paths.csv);
-      if (fresh) writeDurably(csvFd, HEADER + "\n");
+    } catch (e) {
+      if (csvFd !== null) closeSync(csvFd);
+      if (jsonlFd !== null) closeSync(jsonlFd);
+      throw e;
     }
-    const jsonlFd = paths.jsonl ? openLog(paths.jsonl) : null;
     return new SortLog(csvFd, jsonlFd);
   }
 
   append(r: PartRecord): void {
-    if (this.csvFd !== null) writeDurably(this.csvFd, csvRow(r));
+    // The record first: a kill between the two writes leaves a CSV row to be made, never a row without its record.
     if (this.jsonlFd !== null) writeDurably(this.jsonlFd, JSON.stringify(r) + "\n");
+    if (this.csvFd !== null) writeDurably(this.csvFd, csvRow(r));
   }
 
   close(): void {
     if (this.csvFd !== null) closeSync(this.csvFd);
     if (this.jsonlFd !== null) closeSync(this.jsonlFd);
   }
+}
+
+/** The records of a JSON Lines log that parse (a line left unreadable by an older version is skipped). */
+function wholeRecords(path: string): PartRecord[] {
+  const out: PartRecord[] = [];
+  for (const line of readFileSync(path, "utf8").split("\n")) {
+    if (line.length === 0) continue;
+    try {
+      out.push(JSON.parse(line) as PartRecord);
+    } catch {
+      // not a record
+    }
+  }
+  return out;
 }
 
 function openLog(path: string): number {
@@ -60,20 +94,37 @@ function openLog(path: string): number {
   } catch (e) {
     throw new SortLogError("LOG_UNWRITABLE", `cannot open ${path} for appending (${(e as Error).message}); check the folder exists and is writable`);
   }
-  closeTornTail(fd);
+  cutTornTail(fd);
   return fd;
 }
 
 /**
- * A power cut during a write can leave the last record without its newline. End that fragment
- * first, so it stays one unreadable line instead of swallowing the next session's first record.
+ * A power cut or a kill during a write can leave the last record without its newline: that part
+ * was never recorded whole, so the fragment is cut off, and the next record starts on a fresh line.
  */
-function closeTornTail(fd: number): void {
+function cutTornTail(fd: number): void {
   const size = fstatSync(fd).size;
   if (size === 0) return;
-  const last = Buffer.alloc(1);
-  readSync(fd, last, 0, 1, size - 1);
-  if (last[0] !== 0x0a) writeDurably(fd, "\n");
+  const chunk = Buffer.alloc(Math.min(size, 64 * 1024));
+  let end = size;
+  // Search backwards for the last newline, a chunk at a time.
+  while (end > 0) {
+    const start = Math.max(0, end - chunk.length);
+    const n = readSync(fd, chunk, 0, end - start, start);
+    const nl = chunk.subarray(0, n).lastIndexOf(0x0a);
+    if (nl >= 0) {
+      const keep = start + nl + 1;
+      if (keep < size) truncateDurably(fd, keep);
+      return;
+    }
+    end = start;
+  }
+  truncateDurably(fd, 0);
+}
+
+function truncateDurably(fd: number, length: number): void {
+  ftruncateSync(fd, length);
+  fsyncSync(fd);
 }
 
 function writeDurably(fd: number, text: string): void {

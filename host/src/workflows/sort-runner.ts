@@ -6,7 +6,7 @@
 
 import { ErrorCode } from "../codes.ts";
 import type { DeviceClient } from "../device/client.ts";
-import { MeasureError, measurePart, type MeasureOptions } from "../measure/measure-part.ts";
+import { MeasureAbortedError, MeasureError, measurePart, type MeasureOptions } from "../measure/measure-part.ts";
 import { buildResult } from "../measure/result.ts";
 import { PresenceTracker, type Observation, type PresenceOptions } from "./part-presence.ts";
 import type { SimTray } from "./sim-tray.ts";
@@ -61,6 +61,7 @@ export async function runSort(o: SortRunOptions): Promise<readonly PartRecord[]>
       if (o.signal?.aborted || line.trim().toLowerCase() === "q") break;
       o.tray?.next();
       const obs = await observe(o);
+      if (obs.kind === "aborted") break;
       if (obs.kind === "open") emit({ kind: "no-part" });
       else if (obs.kind === "unreadable") emit({ kind: "unreadable", code: obs.code, message: obs.message });
       else record(obs.result);
@@ -74,6 +75,7 @@ export async function runSort(o: SortRunOptions): Promise<readonly PartRecord[]>
   let lastAction = "";
   while (!o.signal?.aborted && !full()) {
     const obs = await observe(o);
+    if (obs.kind === "aborted") break;
     const action = tracker.observe(obs.kind === "ring" ? { kind: "ring", inductance_h: obs.result.inductance_h, inductance_u_h: obs.result.inductance_u_h } : obs);
     if (action === "record" && obs.kind === "ring") {
       record(obs.result);
@@ -95,13 +97,17 @@ export async function runSort(o: SortRunOptions): Promise<readonly PartRecord[]>
   return o.session.parts;
 }
 
-type Observed = { kind: "ring"; result: ReturnType<typeof buildResult> } | { kind: "open" } | Extract<Observation, { kind: "unreadable" }> & { message: string };
+type Observed =
+  | { kind: "ring"; result: ReturnType<typeof buildResult> } | { kind: "open" } | { kind: "aborted" }
+  | Extract<Observation, { kind: "unreadable" }> & { message: string };
 
 async function observe(o: SortRunOptions): Promise<Observed> {
   try {
-    const r = await measurePart(o.client, { ...o.measure, onProgress: o.onProgress });
+    // The session's signal stops the reading in flight too (no pulse after it; the tester is told).
+    const r = await measurePart(o.client, { ...o.measure, onProgress: o.onProgress, signal: o.signal });
     return { kind: "ring", result: buildResult(r.analysis, r.capture) };
   } catch (e) {
+    if (e instanceof MeasureAbortedError) return { kind: "aborted" };
     if (!(e instanceof MeasureError)) throw e;
     if (e.code === ErrorCode.NO_RING) return { kind: "open" };
     return { kind: "unreadable", code: e.code, message: e.message };
