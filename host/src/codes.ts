@@ -169,9 +169,12 @@ export const SIMULATOR_ERROR_MEANINGS = {
   EDGE_SERVER_FAILED: "the emulated board's edge server could not start",
 } as const;
 
-/** A value typed by the user (`ValueSyntaxError`, a RangeError). */
+/** A value typed by the user (`ValueError`, a RangeError; `ValueSyntaxError` for BAD_VALUE). */
 export const VALUE_ERROR_MEANINGS = {
   BAD_VALUE: "a value could not be read as the trade writes it",
+  WRONG_UNIT: "a value is written in another unit than the option takes (10uF for an inductance)",
+  AMBIGUOUS_VALUE: "a bare number where the prefix decides the value (10 for an inductance)",
+  OUT_OF_RANGE: "a value lies outside what it may be (the measurable range, a tolerance wider than its nominal)",
 } as const;
 
 /** Every error code, by group, for the documentation table. */

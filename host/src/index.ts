@@ -31,25 +31,26 @@ export type { RingInput, RingAnalysis, ComparatorTiming } from "./analysis/index
 export { loadScenario, listScenarios } from "./sim/scenario.ts";
 export type { Scenario, PartModel } from "./sim/scenario.ts";
 export {
-  CalibrationError, validateProfile, emptyProfile, loadProfile, saveProfile, restorePreviousProfile, configDir, profilePaths,
+  CalibrationError, CALIBRATION_METHODS, validateProfile, emptyProfile, loadProfile, saveProfile, restorePreviousProfile, configDir, profilePaths,
   appliedCalibration, deviceCalibration, calibrateWithReference, calibrateWithParallelCapacitor, calibrateThresholds, calibrateSkew,
   measureTimebase, measureSelfCapacitance,
 } from "./calibration/index.ts";
 // The methods behind them (GUM propagation, Monte Carlo, the two-capacitance solution, budgets)
 // are the henrytick/calibration subpath (calibration/index.ts).
 export type {
-  CalibrationProfile, TankEntry, StoreOptions, ReferenceInductor, ParallelCapacitor, TimebaseResult,
+  CalibrationProfile, CalibrationMethod, AppliedCalibration, TankEntry, StoreOptions, ReferenceInductor, ParallelCapacitor, TimebaseResult,
   SelfCapacitanceReading, UncertaintyBudget, BudgetLine, DeviceCalibration, SkewFit,
 } from "./calibration/index.ts";
 // Bench workflows: values as the trade writes them, conformity decisions, sorting, winding,
 // continuous reading, reports, and an abortable reading.
-export { parseValue, ValueSyntaxError } from "./values/parse-value.ts";
+export { parseValue, parseValueIn, ValueError, ValueSyntaxError } from "./values/parse-value.ts";
+export { MEASURABLE_L_H, MEASURABLE_TEXT } from "./values/range.ts";
 export type { ParsedValue } from "./values/parse-value.ts";
 export { parseTolerance, toleranceLimits, TOLERANCE_LETTERS } from "./values/tolerance.ts";
 export type { Tolerance, Limits } from "./values/tolerance.ts";
 export { seriesValues, nearestPreferred, parseSeriesName, SERIES_NAMES } from "./values/e-series.ts";
 export type { SeriesName, Preferred } from "./values/e-series.ts";
-export { formatMeasured, formatValueOnly, iecCode } from "./values/format-value.ts";
+export { formatMeasured, formatPercent, formatValue, formatValueOnly, iecCode } from "./values/format-value.ts";
 export { decideConformity, conformanceProbability, normalCdf, roundProbability } from "./workflows/conformity.ts";
 export type { Decision, ConformityResult } from "./workflows/conformity.ts";
 export { classify } from "./workflows/classify.ts";
