@@ -76,12 +76,25 @@ export const MEASURE_ERROR_MEANINGS = {
   ABORTED: "the reading was aborted; the switch is open",
 } as const;
 
+/** A capture or reading that cannot be physical (`ImplausibleError`, and `MeasureError` around it). */
+export const PLAUSIBILITY_ERROR_MEANINGS = {
+  EDGES_NOT_ALTERNATING: "two edges in a row leave the comparator at the same level",
+  TOO_MANY_EDGES: "more edges than the capture asked for or can hold",
+  TICK_RATE_MISMATCH: "the tick rate contradicts the capture's own nominal rate and timebase error",
+  TICK_RATE_IMPLAUSIBLE: "the tick rate or timebase error is beyond any tester's",
+  TANK_IMPLAUSIBLE: "the tank value is beyond any tester's or far from its own nominal",
+  THRESHOLDS_IMPLAUSIBLE: "the thresholds are beyond any comparator front end",
+  RING_AMPLITUDE_IMPLAUSIBLE: "the ring is higher than the drive or the clamp allows",
+  RESULT_OUT_OF_RANGE: "the reading is outside what the timer can resolve or any tester measures",
+} as const;
+
 /** Calibration and profiles (`CalibrationError`). */
 export const CALIBRATION_ERROR_MEANINGS = {
   PROFILE_INVALID: "a stored profile breaks the schema (the field is named)",
   PROFILE_VERSION: "a stored profile is of a version this build cannot read",
   PROFILE_UNREADABLE: "the profile file exists but cannot be read or is not JSON",
   PROFILE_WRONG_DEVICE: "the profile belongs to another tester",
+  PROFILE_BOARD_MISMATCH: "the profile's tanks do not fit the tanks the tester's board reports",
   NO_PREVIOUS: "restore was asked for with no previous profile kept",
   BAD_REFERENCE: "the reference value or uncertainty makes no sense",
   OUT_OF_SPAN: "the reference is outside the usable span of the tank",
@@ -135,6 +148,7 @@ export const FILE_ERROR_MEANINGS = {
   WRITE_DENIED: "writing is not allowed there",
   DISK_FULL: "no space left to write",
   WRITE_FAILED: "the write failed for another reason (the message says which)",
+  OUTPUT_FAILED: "the command line could not write its output (a full disk, a closed file)",
 } as const;
 
 /** The simulated and emulated testers (`FirmwareImageError`, `PtyDeviceError`, `QemuDeviceError`). */
@@ -155,9 +169,12 @@ export const SIMULATOR_ERROR_MEANINGS = {
   EDGE_SERVER_FAILED: "the emulated board's edge server could not start",
 } as const;
 
-/** A value typed by the user (`ValueSyntaxError`, a RangeError). */
+/** A value typed by the user (`ValueError`, a RangeError; `ValueSyntaxError` for BAD_VALUE). */
 export const VALUE_ERROR_MEANINGS = {
   BAD_VALUE: "a value could not be read as the trade writes it",
+  WRONG_UNIT: "a value is written in another unit than the option takes (10uF for an inductance)",
+  AMBIGUOUS_VALUE: "a bare number where the prefix decides the value (10 for an inductance)",
+  OUT_OF_RANGE: "a value lies outside what it may be (the measurable range, a tolerance wider than its nominal)",
 } as const;
 
 /** Every error code, by group, for the documentation table. */
@@ -165,6 +182,7 @@ export const ERROR_GROUPS = {
   analysis: ANALYSIS_ERROR_MEANINGS,
   measure: MEASURE_ERROR_MEANINGS,
   "part fault": PART_FAULT_MEANINGS,
+  plausibility: PLAUSIBILITY_ERROR_MEANINGS,
   calibration: CALIBRATION_ERROR_MEANINGS,
   tester: DEVICE_ERROR_MEANINGS,
   link: LINK_ERROR_MEANINGS,

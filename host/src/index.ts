@@ -26,33 +26,31 @@ export { readCaptureFile, writeCaptureFile, parseCapture, CaptureFileError } fro
 export type { CaptureV1 } from "./capture/capture-file.ts";
 export { analyzeRing, AnalysisError } from "./analysis/index.ts";
 export type { RingInput, RingAnalysis } from "./analysis/index.ts";
-export { SimTester } from "./sim/sim-tester.ts";
+// The demo parts openTester({ scenario }) measures; the simulated tester itself, its board models
+// and demo helpers are the henrytick/sim subpath (sim/index.ts).
 export { loadScenario, listScenarios } from "./sim/scenario.ts";
 export type { Scenario, PartModel } from "./sim/scenario.ts";
-export { PtyDevice, PtyDeviceError } from "./sim/pty-device.ts";
-export type { PtyDeviceOptions } from "./sim/pty-device.ts";
-export { referenceBoard, nominalBoard } from "./sim/board-model.ts";
-export type { BoardModel } from "./sim/board-model.ts";
-export { expectedReading } from "./sim/front-end.ts";
 export {
   CalibrationError, validateProfile, emptyProfile, loadProfile, saveProfile, restorePreviousProfile, configDir, profilePaths,
   appliedCalibration, deviceCalibration, calibrateWithReference, calibrateWithParallelCapacitor, calibrateThresholds,
-  measureTimebase, timebaseFromSamples, measureSelfCapacitance, solveTwoCapacitance, singleTankBudget, twoTankBudget,
-  propagate, monteCarlo,
+  measureTimebase, measureSelfCapacitance,
 } from "./calibration/index.ts";
+// The methods behind them (GUM propagation, Monte Carlo, the two-capacitance solution, budgets)
+// are the henrytick/calibration subpath (calibration/index.ts).
 export type {
-  CalibrationProfile, TankEntry, StoreOptions, ReferenceInductor, ParallelCapacitor, TickCounter, HostClock, TimebaseResult,
-  TwoCapacitanceInput, TwoCapacitanceResult, SelfCapacitanceReading, UncertaintyBudget, BudgetLine, DeviceCalibration,
+  CalibrationProfile, TankEntry, StoreOptions, ReferenceInductor, ParallelCapacitor, TimebaseResult,
+  SelfCapacitanceReading, UncertaintyBudget, BudgetLine, DeviceCalibration,
 } from "./calibration/index.ts";
 // Bench workflows: values as the trade writes them, conformity decisions, sorting, winding,
 // continuous reading, reports, and an abortable reading.
-export { parseValue, ValueSyntaxError } from "./values/parse-value.ts";
+export { parseValue, parseValueIn, ValueError, ValueSyntaxError } from "./values/parse-value.ts";
+export { MEASURABLE_L_H, MEASURABLE_TEXT } from "./values/range.ts";
 export type { ParsedValue } from "./values/parse-value.ts";
 export { parseTolerance, toleranceLimits, TOLERANCE_LETTERS } from "./values/tolerance.ts";
 export type { Tolerance, Limits } from "./values/tolerance.ts";
 export { seriesValues, nearestPreferred, parseSeriesName, SERIES_NAMES } from "./values/e-series.ts";
 export type { SeriesName, Preferred } from "./values/e-series.ts";
-export { formatMeasured, formatValueOnly, iecCode } from "./values/format-value.ts";
+export { formatMeasured, formatPercent, formatValue, formatValueOnly, iecCode } from "./values/format-value.ts";
 export { decideConformity, conformanceProbability, normalCdf, roundProbability } from "./workflows/conformity.ts";
 export type { Decision, ConformityResult } from "./workflows/conformity.ts";
 export { classify } from "./workflows/classify.ts";
@@ -66,15 +64,12 @@ export { runSort } from "./workflows/sort-runner.ts";
 export type { SortEvent, SortRunOptions } from "./workflows/sort-runner.ts";
 export { PresenceTracker } from "./workflows/part-presence.ts";
 export type { Observation, PresenceAction, PresenceOptions } from "./workflows/part-presence.ts";
-export { SimTray, drawTray, trayPart } from "./workflows/sim-tray.ts";
 export { makeBins, binOf } from "./workflows/bins.ts";
 export type { BinSpec, BinResult } from "./workflows/bins.ts";
 export { RunningStats } from "./workflows/running-stats.ts";
 export type { StatsSummary } from "./workflows/running-stats.ts";
 export { windingAdvice, fitWindingModel, predictInductance } from "./workflows/winding.ts";
 export type { WindingReading, WindingAdvice, WindingModel } from "./workflows/winding.ts";
-export { coilOnFormer, formerTurnRange, DEFAULT_FORMER } from "./workflows/sim-coil.ts";
-export type { FormerSpec } from "./workflows/sim-coil.ts";
 export { assessStability, sparkline, History } from "./workflows/watch-trend.ts";
 export type { Stability, StabilityResult } from "./workflows/watch-trend.ts";
 export { buildReport, writeReport } from "./report/write-report.ts";

@@ -3,8 +3,8 @@
 // code). Do not edit: change the schema and run npm run build.
 
 export const capture = validate20;
-const schema31 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:capture:1","title":"henrytick capture file, version 1","description":"The edge record of one ring-down with everything needed to analyse it again (docs/capture-format.md). Units are SI and in the key names. Rules a schema cannot state (rising threshold above the falling one, edge ticks non-decreasing) are checked by the reader too.","type":"object","required":["format","version","tick_hz","edges","tank_c_f","thresholds_v"],"properties":{"format":{"const":"henrytick-capture"},"version":{"const":1},"tick_hz":{"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"},"edges":{"type":"array","description":"[tick, level] pairs: integer ticks since the switch opened, non-decreasing; level 1 after a rising edge, 0 after a falling edge","items":{"description":"[tick, level]","type":"array","prefixItems":[{"type":"integer","minimum":0,"maximum":9007199254740991},{"enum":[0,1]}],"minItems":2,"maxItems":2}},"tank_c_f":{"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"},"tank_c_u_f":{"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"},"thresholds_v":{"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2},"drive":{"$ref":"#/$defs/drive"},"range":{"$ref":"#/$defs/range"},"device":{"$ref":"#/$defs/device"},"meta":{"type":"object","properties":{"label":{"type":"string"},"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"end_reason":{"enum":["quiet","full","timeout","no-edges"]}}},"calibration":{"$ref":"#/$defs/calibration"},"reading_warnings":{"type":"array","description":"warnings the reading added to the analysis's own (automatic ranging's); a re-analysis gives them again","items":{"$ref":"#/$defs/warning"}}},"$defs":{"drive":{"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0}}},"range":{"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}},"device":{"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}},"calibration":{"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0}}},"warning":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}}}};
-const schema32 = {"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0}}};
+const schema31 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:capture:1","title":"henrytick capture file, version 1","description":"The edge record of one ring-down with everything needed to analyse it again (docs/capture-format.md). Units are SI and in the key names. Rules a schema cannot state (rising threshold above the falling one, edge ticks non-decreasing) are checked by the reader too.","type":"object","required":["format","version","tick_hz","edges","tank_c_f","thresholds_v"],"properties":{"format":{"const":"henrytick-capture"},"version":{"const":1},"tick_hz":{"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"},"edges":{"type":"array","description":"[tick, level] pairs: integer ticks since the switch opened, non-decreasing; level 1 after a rising edge, 0 after a falling edge","items":{"description":"[tick, level]","type":"array","prefixItems":[{"type":"integer","minimum":0,"maximum":9007199254740991},{"enum":[0,1]}],"minItems":2,"maxItems":2}},"tank_c_f":{"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"},"tank_c_u_f":{"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"},"thresholds_v":{"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2},"drive":{"$ref":"#/$defs/drive"},"range":{"$ref":"#/$defs/range"},"device":{"$ref":"#/$defs/device"},"meta":{"type":"object","properties":{"label":{"type":"string"},"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"end_reason":{"enum":["quiet","full","timeout","no-edges"]}}},"calibration":{"$ref":"#/$defs/calibration"},"reading_warnings":{"type":"array","description":"warnings the reading added to the analysis's own (automatic ranging's); a re-analysis gives them again","items":{"$ref":"#/$defs/warning"}}},"$defs":{"drive":{"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the front end's clamp voltage, the ring's ceiling"}}},"range":{"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}},"device":{"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}},"calibration":{"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0}}},"warning":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}}}};
+const schema32 = {"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the front end's clamp voltage, the ring's ceiling"}}};
 const schema33 = {"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}};
 const schema34 = {"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}};
 const schema35 = {"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0}}};
@@ -305,6 +305,28 @@ var valid5 = _errs27 === errors;
 else {
 var valid5 = true;
 }
+if(valid5){
+if(data12.clamp_v !== undefined){
+let data15 = data12.clamp_v;
+const _errs29 = errors;
+if(errors === _errs29){
+if((typeof data15 == "number") && (isFinite(data15))){
+if(data15 <= 0 || isNaN(data15)){
+validate20.errors = [{instancePath:instancePath+"/drive/clamp_v",schemaPath:"#/$defs/drive/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema32.properties.clamp_v,data:data15}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/drive/clamp_v",schemaPath:"#/$defs/drive/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema32.properties.clamp_v.type,parentSchema:schema32.properties.clamp_v,data:data15}];
+return false;
+}
+}
+var valid5 = _errs29 === errors;
+}
+else {
+var valid5 = true;
+}
+}
 }
 }
 }
@@ -320,49 +342,28 @@ var valid0 = true;
 }
 if(valid0){
 if(data.range !== undefined){
-let data15 = data.range;
-const _errs29 = errors;
-const _errs30 = errors;
-if(errors === _errs30){
-if(data15 && typeof data15 == "object" && !Array.isArray(data15)){
-let missing2;
-if(((((((data15.drive_index === undefined) && (missing2 = "drive_index")) || ((data15.tank_index === undefined) && (missing2 = "tank_index"))) || ((data15.charge_us === undefined) && (missing2 = "charge_us"))) || ((data15.edge_limit === undefined) && (missing2 = "edge_limit"))) || ((data15.timeout_ms === undefined) && (missing2 = "timeout_ms"))) || ((data15.quiet_us === undefined) && (missing2 = "quiet_us"))){
-validate20.errors = [{instancePath:instancePath+"/range",schemaPath:"#/$defs/range/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema33.required,parentSchema:schema33,data:data15}];
-return false;
-}
-else {
-if(data15.drive_index !== undefined){
-let data16 = data15.drive_index;
+let data16 = data.range;
+const _errs31 = errors;
 const _errs32 = errors;
-if(!(((typeof data16 == "number") && (!(data16 % 1) && !isNaN(data16))) && (isFinite(data16)))){
-validate20.errors = [{instancePath:instancePath+"/range/drive_index",schemaPath:"#/$defs/range/properties/drive_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.drive_index.type,parentSchema:schema33.properties.drive_index,data:data16}];
-return false;
-}
 if(errors === _errs32){
-if((typeof data16 == "number") && (isFinite(data16))){
-if(data16 < 0 || isNaN(data16)){
-validate20.errors = [{instancePath:instancePath+"/range/drive_index",schemaPath:"#/$defs/range/properties/drive_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.drive_index,data:data16}];
+if(data16 && typeof data16 == "object" && !Array.isArray(data16)){
+let missing2;
+if(((((((data16.drive_index === undefined) && (missing2 = "drive_index")) || ((data16.tank_index === undefined) && (missing2 = "tank_index"))) || ((data16.charge_us === undefined) && (missing2 = "charge_us"))) || ((data16.edge_limit === undefined) && (missing2 = "edge_limit"))) || ((data16.timeout_ms === undefined) && (missing2 = "timeout_ms"))) || ((data16.quiet_us === undefined) && (missing2 = "quiet_us"))){
+validate20.errors = [{instancePath:instancePath+"/range",schemaPath:"#/$defs/range/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema33.required,parentSchema:schema33,data:data16}];
 return false;
-}
-}
-}
-var valid7 = _errs32 === errors;
 }
 else {
-var valid7 = true;
-}
-if(valid7){
-if(data15.tank_index !== undefined){
-let data17 = data15.tank_index;
+if(data16.drive_index !== undefined){
+let data17 = data16.drive_index;
 const _errs34 = errors;
 if(!(((typeof data17 == "number") && (!(data17 % 1) && !isNaN(data17))) && (isFinite(data17)))){
-validate20.errors = [{instancePath:instancePath+"/range/tank_index",schemaPath:"#/$defs/range/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.tank_index.type,parentSchema:schema33.properties.tank_index,data:data17}];
+validate20.errors = [{instancePath:instancePath+"/range/drive_index",schemaPath:"#/$defs/range/properties/drive_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.drive_index.type,parentSchema:schema33.properties.drive_index,data:data17}];
 return false;
 }
 if(errors === _errs34){
 if((typeof data17 == "number") && (isFinite(data17))){
 if(data17 < 0 || isNaN(data17)){
-validate20.errors = [{instancePath:instancePath+"/range/tank_index",schemaPath:"#/$defs/range/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.tank_index,data:data17}];
+validate20.errors = [{instancePath:instancePath+"/range/drive_index",schemaPath:"#/$defs/range/properties/drive_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.drive_index,data:data17}];
 return false;
 }
 }
@@ -373,19 +374,19 @@ else {
 var valid7 = true;
 }
 if(valid7){
-if(data15.charge_us !== undefined){
-let data18 = data15.charge_us;
+if(data16.tank_index !== undefined){
+let data18 = data16.tank_index;
 const _errs36 = errors;
+if(!(((typeof data18 == "number") && (!(data18 % 1) && !isNaN(data18))) && (isFinite(data18)))){
+validate20.errors = [{instancePath:instancePath+"/range/tank_index",schemaPath:"#/$defs/range/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.tank_index.type,parentSchema:schema33.properties.tank_index,data:data18}];
+return false;
+}
 if(errors === _errs36){
 if((typeof data18 == "number") && (isFinite(data18))){
 if(data18 < 0 || isNaN(data18)){
-validate20.errors = [{instancePath:instancePath+"/range/charge_us",schemaPath:"#/$defs/range/properties/charge_us/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.charge_us,data:data18}];
+validate20.errors = [{instancePath:instancePath+"/range/tank_index",schemaPath:"#/$defs/range/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.tank_index,data:data18}];
 return false;
 }
-}
-else {
-validate20.errors = [{instancePath:instancePath+"/range/charge_us",schemaPath:"#/$defs/range/properties/charge_us/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.charge_us.type,parentSchema:schema33.properties.charge_us,data:data18}];
-return false;
 }
 }
 var valid7 = _errs36 === errors;
@@ -394,19 +395,19 @@ else {
 var valid7 = true;
 }
 if(valid7){
-if(data15.edge_limit !== undefined){
-let data19 = data15.edge_limit;
+if(data16.charge_us !== undefined){
+let data19 = data16.charge_us;
 const _errs38 = errors;
-if(!(((typeof data19 == "number") && (!(data19 % 1) && !isNaN(data19))) && (isFinite(data19)))){
-validate20.errors = [{instancePath:instancePath+"/range/edge_limit",schemaPath:"#/$defs/range/properties/edge_limit/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.edge_limit.type,parentSchema:schema33.properties.edge_limit,data:data19}];
-return false;
-}
 if(errors === _errs38){
 if((typeof data19 == "number") && (isFinite(data19))){
 if(data19 < 0 || isNaN(data19)){
-validate20.errors = [{instancePath:instancePath+"/range/edge_limit",schemaPath:"#/$defs/range/properties/edge_limit/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.edge_limit,data:data19}];
+validate20.errors = [{instancePath:instancePath+"/range/charge_us",schemaPath:"#/$defs/range/properties/charge_us/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.charge_us,data:data19}];
 return false;
 }
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/range/charge_us",schemaPath:"#/$defs/range/properties/charge_us/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.charge_us.type,parentSchema:schema33.properties.charge_us,data:data19}];
+return false;
 }
 }
 var valid7 = _errs38 === errors;
@@ -415,19 +416,19 @@ else {
 var valid7 = true;
 }
 if(valid7){
-if(data15.timeout_ms !== undefined){
-let data20 = data15.timeout_ms;
+if(data16.edge_limit !== undefined){
+let data20 = data16.edge_limit;
 const _errs40 = errors;
+if(!(((typeof data20 == "number") && (!(data20 % 1) && !isNaN(data20))) && (isFinite(data20)))){
+validate20.errors = [{instancePath:instancePath+"/range/edge_limit",schemaPath:"#/$defs/range/properties/edge_limit/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.edge_limit.type,parentSchema:schema33.properties.edge_limit,data:data20}];
+return false;
+}
 if(errors === _errs40){
 if((typeof data20 == "number") && (isFinite(data20))){
 if(data20 < 0 || isNaN(data20)){
-validate20.errors = [{instancePath:instancePath+"/range/timeout_ms",schemaPath:"#/$defs/range/properties/timeout_ms/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.timeout_ms,data:data20}];
+validate20.errors = [{instancePath:instancePath+"/range/edge_limit",schemaPath:"#/$defs/range/properties/edge_limit/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.edge_limit,data:data20}];
 return false;
 }
-}
-else {
-validate20.errors = [{instancePath:instancePath+"/range/timeout_ms",schemaPath:"#/$defs/range/properties/timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.timeout_ms.type,parentSchema:schema33.properties.timeout_ms,data:data20}];
-return false;
 }
 }
 var valid7 = _errs40 === errors;
@@ -436,22 +437,43 @@ else {
 var valid7 = true;
 }
 if(valid7){
-if(data15.quiet_us !== undefined){
-let data21 = data15.quiet_us;
+if(data16.timeout_ms !== undefined){
+let data21 = data16.timeout_ms;
 const _errs42 = errors;
 if(errors === _errs42){
 if((typeof data21 == "number") && (isFinite(data21))){
 if(data21 < 0 || isNaN(data21)){
-validate20.errors = [{instancePath:instancePath+"/range/quiet_us",schemaPath:"#/$defs/range/properties/quiet_us/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.quiet_us,data:data21}];
+validate20.errors = [{instancePath:instancePath+"/range/timeout_ms",schemaPath:"#/$defs/range/properties/timeout_ms/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.timeout_ms,data:data21}];
 return false;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/range/quiet_us",schemaPath:"#/$defs/range/properties/quiet_us/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.quiet_us.type,parentSchema:schema33.properties.quiet_us,data:data21}];
+validate20.errors = [{instancePath:instancePath+"/range/timeout_ms",schemaPath:"#/$defs/range/properties/timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.timeout_ms.type,parentSchema:schema33.properties.timeout_ms,data:data21}];
 return false;
 }
 }
 var valid7 = _errs42 === errors;
+}
+else {
+var valid7 = true;
+}
+if(valid7){
+if(data16.quiet_us !== undefined){
+let data22 = data16.quiet_us;
+const _errs44 = errors;
+if(errors === _errs44){
+if((typeof data22 == "number") && (isFinite(data22))){
+if(data22 < 0 || isNaN(data22)){
+validate20.errors = [{instancePath:instancePath+"/range/quiet_us",schemaPath:"#/$defs/range/properties/quiet_us/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.quiet_us,data:data22}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/range/quiet_us",schemaPath:"#/$defs/range/properties/quiet_us/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.quiet_us.type,parentSchema:schema33.properties.quiet_us,data:data22}];
+return false;
+}
+}
+var valid7 = _errs44 === errors;
 }
 else {
 var valid7 = true;
@@ -464,46 +486,33 @@ var valid7 = true;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/range",schemaPath:"#/$defs/range/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema33.type,parentSchema:schema33,data:data15}];
+validate20.errors = [{instancePath:instancePath+"/range",schemaPath:"#/$defs/range/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema33.type,parentSchema:schema33,data:data16}];
 return false;
 }
 }
-var valid0 = _errs29 === errors;
+var valid0 = _errs31 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.device !== undefined){
-let data22 = data.device;
-const _errs44 = errors;
-const _errs45 = errors;
-if(errors === _errs45){
-if(data22 && typeof data22 == "object" && !Array.isArray(data22)){
-let missing3;
-if(((((data22.id === undefined) && (missing3 = "id")) || ((data22.firmware_version === undefined) && (missing3 = "firmware_version"))) || ((data22.protocol_version === undefined) && (missing3 = "protocol_version"))) || ((data22.transport === undefined) && (missing3 = "transport"))){
-validate20.errors = [{instancePath:instancePath+"/device",schemaPath:"#/$defs/device/required",keyword:"required",params:{missingProperty: missing3},message:"must have required property '"+missing3+"'",schema:schema34.required,parentSchema:schema34,data:data22}];
-return false;
-}
-else {
-if(data22.id !== undefined){
-let data23 = data22.id;
+let data23 = data.device;
+const _errs46 = errors;
 const _errs47 = errors;
-if(typeof data23 !== "string"){
-validate20.errors = [{instancePath:instancePath+"/device/id",schemaPath:"#/$defs/device/properties/id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.id.type,parentSchema:schema34.properties.id,data:data23}];
+if(errors === _errs47){
+if(data23 && typeof data23 == "object" && !Array.isArray(data23)){
+let missing3;
+if(((((data23.id === undefined) && (missing3 = "id")) || ((data23.firmware_version === undefined) && (missing3 = "firmware_version"))) || ((data23.protocol_version === undefined) && (missing3 = "protocol_version"))) || ((data23.transport === undefined) && (missing3 = "transport"))){
+validate20.errors = [{instancePath:instancePath+"/device",schemaPath:"#/$defs/device/required",keyword:"required",params:{missingProperty: missing3},message:"must have required property '"+missing3+"'",schema:schema34.required,parentSchema:schema34,data:data23}];
 return false;
 }
-var valid9 = _errs47 === errors;
-}
 else {
-var valid9 = true;
-}
-if(valid9){
-if(data22.firmware_version !== undefined){
-let data24 = data22.firmware_version;
+if(data23.id !== undefined){
+let data24 = data23.id;
 const _errs49 = errors;
 if(typeof data24 !== "string"){
-validate20.errors = [{instancePath:instancePath+"/device/firmware_version",schemaPath:"#/$defs/device/properties/firmware_version/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.firmware_version.type,parentSchema:schema34.properties.firmware_version,data:data24}];
+validate20.errors = [{instancePath:instancePath+"/device/id",schemaPath:"#/$defs/device/properties/id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.id.type,parentSchema:schema34.properties.id,data:data24}];
 return false;
 }
 var valid9 = _errs49 === errors;
@@ -512,20 +521,12 @@ else {
 var valid9 = true;
 }
 if(valid9){
-if(data22.protocol_version !== undefined){
-let data25 = data22.protocol_version;
+if(data23.firmware_version !== undefined){
+let data25 = data23.firmware_version;
 const _errs51 = errors;
-if(!(((typeof data25 == "number") && (!(data25 % 1) && !isNaN(data25))) && (isFinite(data25)))){
-validate20.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"#/$defs/device/properties/protocol_version/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema34.properties.protocol_version.type,parentSchema:schema34.properties.protocol_version,data:data25}];
+if(typeof data25 !== "string"){
+validate20.errors = [{instancePath:instancePath+"/device/firmware_version",schemaPath:"#/$defs/device/properties/firmware_version/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.firmware_version.type,parentSchema:schema34.properties.firmware_version,data:data25}];
 return false;
-}
-if(errors === _errs51){
-if((typeof data25 == "number") && (isFinite(data25))){
-if(data25 < 0 || isNaN(data25)){
-validate20.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"#/$defs/device/properties/protocol_version/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema34.properties.protocol_version,data:data25}];
-return false;
-}
-}
 }
 var valid9 = _errs51 === errors;
 }
@@ -533,12 +534,20 @@ else {
 var valid9 = true;
 }
 if(valid9){
-if(data22.transport !== undefined){
-let data26 = data22.transport;
+if(data23.protocol_version !== undefined){
+let data26 = data23.protocol_version;
 const _errs53 = errors;
-if(typeof data26 !== "string"){
-validate20.errors = [{instancePath:instancePath+"/device/transport",schemaPath:"#/$defs/device/properties/transport/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.transport.type,parentSchema:schema34.properties.transport,data:data26}];
+if(!(((typeof data26 == "number") && (!(data26 % 1) && !isNaN(data26))) && (isFinite(data26)))){
+validate20.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"#/$defs/device/properties/protocol_version/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema34.properties.protocol_version.type,parentSchema:schema34.properties.protocol_version,data:data26}];
 return false;
+}
+if(errors === _errs53){
+if((typeof data26 == "number") && (isFinite(data26))){
+if(data26 < 0 || isNaN(data26)){
+validate20.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"#/$defs/device/properties/protocol_version/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema34.properties.protocol_version,data:data26}];
+return false;
+}
+}
 }
 var valid9 = _errs53 === errors;
 }
@@ -546,20 +555,12 @@ else {
 var valid9 = true;
 }
 if(valid9){
-if(data22.clamp_v !== undefined){
-let data27 = data22.clamp_v;
+if(data23.transport !== undefined){
+let data27 = data23.transport;
 const _errs55 = errors;
-if(errors === _errs55){
-if((typeof data27 == "number") && (isFinite(data27))){
-if(data27 <= 0 || isNaN(data27)){
-validate20.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"#/$defs/device/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.clamp_v,data:data27}];
+if(typeof data27 !== "string"){
+validate20.errors = [{instancePath:instancePath+"/device/transport",schemaPath:"#/$defs/device/properties/transport/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.transport.type,parentSchema:schema34.properties.transport,data:data27}];
 return false;
-}
-}
-else {
-validate20.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"#/$defs/device/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.clamp_v.type,parentSchema:schema34.properties.clamp_v,data:data27}];
-return false;
-}
 }
 var valid9 = _errs55 === errors;
 }
@@ -567,18 +568,18 @@ else {
 var valid9 = true;
 }
 if(valid9){
-if(data22.max_timeout_ms !== undefined){
-let data28 = data22.max_timeout_ms;
+if(data23.clamp_v !== undefined){
+let data28 = data23.clamp_v;
 const _errs57 = errors;
 if(errors === _errs57){
 if((typeof data28 == "number") && (isFinite(data28))){
 if(data28 <= 0 || isNaN(data28)){
-validate20.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"#/$defs/device/properties/max_timeout_ms/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.max_timeout_ms,data:data28}];
+validate20.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"#/$defs/device/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.clamp_v,data:data28}];
 return false;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"#/$defs/device/properties/max_timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.max_timeout_ms.type,parentSchema:schema34.properties.max_timeout_ms,data:data28}];
+validate20.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"#/$defs/device/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.clamp_v.type,parentSchema:schema34.properties.clamp_v,data:data28}];
 return false;
 }
 }
@@ -587,6 +588,27 @@ var valid9 = _errs57 === errors;
 else {
 var valid9 = true;
 }
+if(valid9){
+if(data23.max_timeout_ms !== undefined){
+let data29 = data23.max_timeout_ms;
+const _errs59 = errors;
+if(errors === _errs59){
+if((typeof data29 == "number") && (isFinite(data29))){
+if(data29 <= 0 || isNaN(data29)){
+validate20.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"#/$defs/device/properties/max_timeout_ms/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.max_timeout_ms,data:data29}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"#/$defs/device/properties/max_timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.max_timeout_ms.type,parentSchema:schema34.properties.max_timeout_ms,data:data29}];
+return false;
+}
+}
+var valid9 = _errs59 === errors;
+}
+else {
+var valid9 = true;
+}
 }
 }
 }
@@ -595,48 +617,27 @@ var valid9 = true;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/device",schemaPath:"#/$defs/device/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema34.type,parentSchema:schema34,data:data22}];
+validate20.errors = [{instancePath:instancePath+"/device",schemaPath:"#/$defs/device/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema34.type,parentSchema:schema34,data:data23}];
 return false;
 }
 }
-var valid0 = _errs44 === errors;
+var valid0 = _errs46 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.meta !== undefined){
-let data29 = data.meta;
-const _errs59 = errors;
-if(errors === _errs59){
-if(data29 && typeof data29 == "object" && !Array.isArray(data29)){
-if(data29.label !== undefined){
-let data30 = data29.label;
+let data30 = data.meta;
 const _errs61 = errors;
-if(typeof data30 !== "string"){
-validate20.errors = [{instancePath:instancePath+"/meta/label",schemaPath:"#/properties/meta/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema31.properties.meta.properties.label.type,parentSchema:schema31.properties.meta.properties.label,data:data30}];
-return false;
-}
-var valid10 = _errs61 === errors;
-}
-else {
-var valid10 = true;
-}
-if(valid10){
-if(data29.time !== undefined){
-let data31 = data29.time;
+if(errors === _errs61){
+if(data30 && typeof data30 == "object" && !Array.isArray(data30)){
+if(data30.label !== undefined){
+let data31 = data30.label;
 const _errs63 = errors;
-if(errors === _errs63){
-if(typeof data31 === "string"){
-if(!pattern4.test(data31)){
-validate20.errors = [{instancePath:instancePath+"/meta/time",schemaPath:"#/properties/meta/properties/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema31.properties.meta.properties.time,data:data31}];
+if(typeof data31 !== "string"){
+validate20.errors = [{instancePath:instancePath+"/meta/label",schemaPath:"#/properties/meta/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema31.properties.meta.properties.label.type,parentSchema:schema31.properties.meta.properties.label,data:data31}];
 return false;
-}
-}
-else {
-validate20.errors = [{instancePath:instancePath+"/meta/time",schemaPath:"#/properties/meta/properties/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema31.properties.meta.properties.time.type,parentSchema:schema31.properties.meta.properties.time,data:data31}];
-return false;
-}
 }
 var valid10 = _errs63 === errors;
 }
@@ -644,14 +645,35 @@ else {
 var valid10 = true;
 }
 if(valid10){
-if(data29.end_reason !== undefined){
-let data32 = data29.end_reason;
+if(data30.time !== undefined){
+let data32 = data30.time;
 const _errs65 = errors;
-if(!((((data32 === "quiet") || (data32 === "full")) || (data32 === "timeout")) || (data32 === "no-edges"))){
-validate20.errors = [{instancePath:instancePath+"/meta/end_reason",schemaPath:"#/properties/meta/properties/end_reason/enum",keyword:"enum",params:{allowedValues: schema31.properties.meta.properties.end_reason.enum},message:"must be equal to one of the allowed values",schema:schema31.properties.meta.properties.end_reason.enum,parentSchema:schema31.properties.meta.properties.end_reason,data:data32}];
+if(errors === _errs65){
+if(typeof data32 === "string"){
+if(!pattern4.test(data32)){
+validate20.errors = [{instancePath:instancePath+"/meta/time",schemaPath:"#/properties/meta/properties/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema31.properties.meta.properties.time,data:data32}];
 return false;
 }
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/meta/time",schemaPath:"#/properties/meta/properties/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema31.properties.meta.properties.time.type,parentSchema:schema31.properties.meta.properties.time,data:data32}];
+return false;
+}
+}
 var valid10 = _errs65 === errors;
+}
+else {
+var valid10 = true;
+}
+if(valid10){
+if(data30.end_reason !== undefined){
+let data33 = data30.end_reason;
+const _errs67 = errors;
+if(!((((data33 === "quiet") || (data33 === "full")) || (data33 === "timeout")) || (data33 === "no-edges"))){
+validate20.errors = [{instancePath:instancePath+"/meta/end_reason",schemaPath:"#/properties/meta/properties/end_reason/enum",keyword:"enum",params:{allowedValues: schema31.properties.meta.properties.end_reason.enum},message:"must be equal to one of the allowed values",schema:schema31.properties.meta.properties.end_reason.enum,parentSchema:schema31.properties.meta.properties.end_reason,data:data33}];
+return false;
+}
+var valid10 = _errs67 === errors;
 }
 else {
 var valid10 = true;
@@ -660,46 +682,33 @@ var valid10 = true;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/meta",schemaPath:"#/properties/meta/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema31.properties.meta.type,parentSchema:schema31.properties.meta,data:data29}];
+validate20.errors = [{instancePath:instancePath+"/meta",schemaPath:"#/properties/meta/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema31.properties.meta.type,parentSchema:schema31.properties.meta,data:data30}];
 return false;
 }
 }
-var valid0 = _errs59 === errors;
+var valid0 = _errs61 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.calibration !== undefined){
-let data33 = data.calibration;
-const _errs66 = errors;
-const _errs67 = errors;
-if(errors === _errs67){
-if(data33 && typeof data33 == "object" && !Array.isArray(data33)){
-let missing4;
-if((((((data33.source === undefined) && (missing4 = "source")) || ((data33.tank_calibrated === undefined) && (missing4 = "tank_calibrated"))) || ((data33.nominal_tank_c_f === undefined) && (missing4 = "nominal_tank_c_f"))) || ((data33.nominal_tick_hz === undefined) && (missing4 = "nominal_tick_hz"))) || ((data33.timebase_ppm === undefined) && (missing4 = "timebase_ppm"))){
-validate20.errors = [{instancePath:instancePath+"/calibration",schemaPath:"#/$defs/calibration/required",keyword:"required",params:{missingProperty: missing4},message:"must have required property '"+missing4+"'",schema:schema35.required,parentSchema:schema35,data:data33}];
-return false;
-}
-else {
-if(data33.source !== undefined){
-let data34 = data33.source;
+let data34 = data.calibration;
+const _errs68 = errors;
 const _errs69 = errors;
-if(typeof data34 !== "string"){
-validate20.errors = [{instancePath:instancePath+"/calibration/source",schemaPath:"#/$defs/calibration/properties/source/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema35.properties.source.type,parentSchema:schema35.properties.source,data:data34}];
+if(errors === _errs69){
+if(data34 && typeof data34 == "object" && !Array.isArray(data34)){
+let missing4;
+if((((((data34.source === undefined) && (missing4 = "source")) || ((data34.tank_calibrated === undefined) && (missing4 = "tank_calibrated"))) || ((data34.nominal_tank_c_f === undefined) && (missing4 = "nominal_tank_c_f"))) || ((data34.nominal_tick_hz === undefined) && (missing4 = "nominal_tick_hz"))) || ((data34.timebase_ppm === undefined) && (missing4 = "timebase_ppm"))){
+validate20.errors = [{instancePath:instancePath+"/calibration",schemaPath:"#/$defs/calibration/required",keyword:"required",params:{missingProperty: missing4},message:"must have required property '"+missing4+"'",schema:schema35.required,parentSchema:schema35,data:data34}];
 return false;
 }
-var valid12 = _errs69 === errors;
-}
 else {
-var valid12 = true;
-}
-if(valid12){
-if(data33.tank_calibrated !== undefined){
-let data35 = data33.tank_calibrated;
+if(data34.source !== undefined){
+let data35 = data34.source;
 const _errs71 = errors;
-if(typeof data35 !== "boolean"){
-validate20.errors = [{instancePath:instancePath+"/calibration/tank_calibrated",schemaPath:"#/$defs/calibration/properties/tank_calibrated/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema35.properties.tank_calibrated.type,parentSchema:schema35.properties.tank_calibrated,data:data35}];
+if(typeof data35 !== "string"){
+validate20.errors = [{instancePath:instancePath+"/calibration/source",schemaPath:"#/$defs/calibration/properties/source/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema35.properties.source.type,parentSchema:schema35.properties.source,data:data35}];
 return false;
 }
 var valid12 = _errs71 === errors;
@@ -708,20 +717,12 @@ else {
 var valid12 = true;
 }
 if(valid12){
-if(data33.nominal_tank_c_f !== undefined){
-let data36 = data33.nominal_tank_c_f;
+if(data34.tank_calibrated !== undefined){
+let data36 = data34.tank_calibrated;
 const _errs73 = errors;
-if(errors === _errs73){
-if((typeof data36 == "number") && (isFinite(data36))){
-if(data36 <= 0 || isNaN(data36)){
-validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tank_c_f",schemaPath:"#/$defs/calibration/properties/nominal_tank_c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tank_c_f,data:data36}];
+if(typeof data36 !== "boolean"){
+validate20.errors = [{instancePath:instancePath+"/calibration/tank_calibrated",schemaPath:"#/$defs/calibration/properties/tank_calibrated/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema35.properties.tank_calibrated.type,parentSchema:schema35.properties.tank_calibrated,data:data36}];
 return false;
-}
-}
-else {
-validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tank_c_f",schemaPath:"#/$defs/calibration/properties/nominal_tank_c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tank_c_f.type,parentSchema:schema35.properties.nominal_tank_c_f,data:data36}];
-return false;
-}
 }
 var valid12 = _errs73 === errors;
 }
@@ -729,18 +730,18 @@ else {
 var valid12 = true;
 }
 if(valid12){
-if(data33.nominal_tick_hz !== undefined){
-let data37 = data33.nominal_tick_hz;
+if(data34.nominal_tank_c_f !== undefined){
+let data37 = data34.nominal_tank_c_f;
 const _errs75 = errors;
 if(errors === _errs75){
 if((typeof data37 == "number") && (isFinite(data37))){
 if(data37 <= 0 || isNaN(data37)){
-validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tick_hz",schemaPath:"#/$defs/calibration/properties/nominal_tick_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tick_hz,data:data37}];
+validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tank_c_f",schemaPath:"#/$defs/calibration/properties/nominal_tank_c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tank_c_f,data:data37}];
 return false;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tick_hz",schemaPath:"#/$defs/calibration/properties/nominal_tick_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tick_hz.type,parentSchema:schema35.properties.nominal_tick_hz,data:data37}];
+validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tank_c_f",schemaPath:"#/$defs/calibration/properties/nominal_tank_c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tank_c_f.type,parentSchema:schema35.properties.nominal_tank_c_f,data:data37}];
 return false;
 }
 }
@@ -750,12 +751,20 @@ else {
 var valid12 = true;
 }
 if(valid12){
-if(data33.timebase_ppm !== undefined){
-let data38 = data33.timebase_ppm;
+if(data34.nominal_tick_hz !== undefined){
+let data38 = data34.nominal_tick_hz;
 const _errs77 = errors;
-if(!((typeof data38 == "number") && (isFinite(data38)))){
-validate20.errors = [{instancePath:instancePath+"/calibration/timebase_ppm",schemaPath:"#/$defs/calibration/properties/timebase_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_ppm.type,parentSchema:schema35.properties.timebase_ppm,data:data38}];
+if(errors === _errs77){
+if((typeof data38 == "number") && (isFinite(data38))){
+if(data38 <= 0 || isNaN(data38)){
+validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tick_hz",schemaPath:"#/$defs/calibration/properties/nominal_tick_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tick_hz,data:data38}];
 return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/calibration/nominal_tick_hz",schemaPath:"#/$defs/calibration/properties/nominal_tick_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tick_hz.type,parentSchema:schema35.properties.nominal_tick_hz,data:data38}];
+return false;
+}
 }
 var valid12 = _errs77 === errors;
 }
@@ -763,22 +772,35 @@ else {
 var valid12 = true;
 }
 if(valid12){
-if(data33.timebase_u_ppm !== undefined){
-let data39 = data33.timebase_u_ppm;
+if(data34.timebase_ppm !== undefined){
+let data39 = data34.timebase_ppm;
 const _errs79 = errors;
-if(errors === _errs79){
-if((typeof data39 == "number") && (isFinite(data39))){
-if(data39 < 0 || isNaN(data39)){
-validate20.errors = [{instancePath:instancePath+"/calibration/timebase_u_ppm",schemaPath:"#/$defs/calibration/properties/timebase_u_ppm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema35.properties.timebase_u_ppm,data:data39}];
+if(!((typeof data39 == "number") && (isFinite(data39)))){
+validate20.errors = [{instancePath:instancePath+"/calibration/timebase_ppm",schemaPath:"#/$defs/calibration/properties/timebase_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_ppm.type,parentSchema:schema35.properties.timebase_ppm,data:data39}];
+return false;
+}
+var valid12 = _errs79 === errors;
+}
+else {
+var valid12 = true;
+}
+if(valid12){
+if(data34.timebase_u_ppm !== undefined){
+let data40 = data34.timebase_u_ppm;
+const _errs81 = errors;
+if(errors === _errs81){
+if((typeof data40 == "number") && (isFinite(data40))){
+if(data40 < 0 || isNaN(data40)){
+validate20.errors = [{instancePath:instancePath+"/calibration/timebase_u_ppm",schemaPath:"#/$defs/calibration/properties/timebase_u_ppm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema35.properties.timebase_u_ppm,data:data40}];
 return false;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/calibration/timebase_u_ppm",schemaPath:"#/$defs/calibration/properties/timebase_u_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_u_ppm.type,parentSchema:schema35.properties.timebase_u_ppm,data:data39}];
+validate20.errors = [{instancePath:instancePath+"/calibration/timebase_u_ppm",schemaPath:"#/$defs/calibration/properties/timebase_u_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_u_ppm.type,parentSchema:schema35.properties.timebase_u_ppm,data:data40}];
 return false;
 }
 }
-var valid12 = _errs79 === errors;
+var valid12 = _errs81 === errors;
 }
 else {
 var valid12 = true;
@@ -791,88 +813,88 @@ var valid12 = true;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/calibration",schemaPath:"#/$defs/calibration/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema35.type,parentSchema:schema35,data:data33}];
+validate20.errors = [{instancePath:instancePath+"/calibration",schemaPath:"#/$defs/calibration/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema35.type,parentSchema:schema35,data:data34}];
 return false;
 }
 }
-var valid0 = _errs66 === errors;
+var valid0 = _errs68 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.reading_warnings !== undefined){
-let data40 = data.reading_warnings;
-const _errs81 = errors;
-if(errors === _errs81){
-if(Array.isArray(data40)){
-var valid13 = true;
-const len3 = data40.length;
-for(let i1=0; i1<len3; i1++){
-let data41 = data40[i1];
+let data41 = data.reading_warnings;
 const _errs83 = errors;
-const _errs84 = errors;
-if(errors === _errs84){
-if(data41 && typeof data41 == "object" && !Array.isArray(data41)){
-let missing5;
-if(((data41.code === undefined) && (missing5 = "code")) || ((data41.message === undefined) && (missing5 = "message"))){
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/required",keyword:"required",params:{missingProperty: missing5},message:"must have required property '"+missing5+"'",schema:schema36.required,parentSchema:schema36,data:data41}];
-return false;
-}
-else {
-if(data41.code !== undefined){
-let data42 = data41.code;
+if(errors === _errs83){
+if(Array.isArray(data41)){
+var valid13 = true;
+const len3 = data41.length;
+for(let i1=0; i1<len3; i1++){
+let data42 = data41[i1];
+const _errs85 = errors;
 const _errs86 = errors;
 if(errors === _errs86){
-if(typeof data42 === "string"){
-if(!pattern5.test(data42)){
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema36.properties.code,data:data42}];
+if(data42 && typeof data42 == "object" && !Array.isArray(data42)){
+let missing5;
+if(((data42.code === undefined) && (missing5 = "code")) || ((data42.message === undefined) && (missing5 = "message"))){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/required",keyword:"required",params:{missingProperty: missing5},message:"must have required property '"+missing5+"'",schema:schema36.required,parentSchema:schema36,data:data42}];
 return false;
 }
-}
 else {
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.code.type,parentSchema:schema36.properties.code,data:data42}];
-return false;
-}
-}
-var valid15 = _errs86 === errors;
-}
-else {
-var valid15 = true;
-}
-if(valid15){
-if(data41.message !== undefined){
-let data43 = data41.message;
+if(data42.code !== undefined){
+let data43 = data42.code;
 const _errs88 = errors;
-if(typeof data43 !== "string"){
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/message",schemaPath:"#/$defs/warning/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.message.type,parentSchema:schema36.properties.message,data:data43}];
+if(errors === _errs88){
+if(typeof data43 === "string"){
+if(!pattern5.test(data43)){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema36.properties.code,data:data43}];
 return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.code.type,parentSchema:schema36.properties.code,data:data43}];
+return false;
+}
 }
 var valid15 = _errs88 === errors;
 }
 else {
 var valid15 = true;
 }
+if(valid15){
+if(data42.message !== undefined){
+let data44 = data42.message;
+const _errs90 = errors;
+if(typeof data44 !== "string"){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/message",schemaPath:"#/$defs/warning/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.message.type,parentSchema:schema36.properties.message,data:data44}];
+return false;
+}
+var valid15 = _errs90 === errors;
+}
+else {
+var valid15 = true;
+}
 }
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema36.type,parentSchema:schema36,data:data41}];
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema36.type,parentSchema:schema36,data:data42}];
 return false;
 }
 }
-var valid13 = _errs83 === errors;
+var valid13 = _errs85 === errors;
 if(!valid13){
 break;
 }
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/reading_warnings",schemaPath:"#/properties/reading_warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema31.properties.reading_warnings.type,parentSchema:schema31.properties.reading_warnings,data:data40}];
+validate20.errors = [{instancePath:instancePath+"/reading_warnings",schemaPath:"#/properties/reading_warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema31.properties.reading_warnings.type,parentSchema:schema31.properties.reading_warnings,data:data41}];
 return false;
 }
 }
-var valid0 = _errs81 === errors;
+var valid0 = _errs83 === errors;
 }
 else {
 var valid0 = true;
@@ -1510,6 +1532,28 @@ var valid13 = _errs65 === errors;
 else {
 var valid13 = true;
 }
+if(valid13){
+if(data27.clamp_v !== undefined){
+let data30 = data27.clamp_v;
+const _errs67 = errors;
+if(errors === _errs67){
+if((typeof data30 == "number") && (isFinite(data30))){
+if(data30 <= 0 || isNaN(data30)){
+validate21.errors = [{instancePath:instancePath+"/settings/drive/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/drive/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema32.properties.clamp_v,data:data30}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings/drive/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/drive/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema32.properties.clamp_v.type,parentSchema:schema32.properties.clamp_v,data:data30}];
+return false;
+}
+}
+var valid13 = _errs67 === errors;
+}
+else {
+var valid13 = true;
+}
+}
 }
 }
 }
@@ -1525,49 +1569,28 @@ var valid6 = true;
 }
 if(valid6){
 if(data20.range !== undefined){
-let data30 = data20.range;
-const _errs67 = errors;
-const _errs68 = errors;
-if(errors === _errs68){
-if(data30 && typeof data30 == "object" && !Array.isArray(data30)){
-let missing5;
-if(((((((data30.drive_index === undefined) && (missing5 = "drive_index")) || ((data30.tank_index === undefined) && (missing5 = "tank_index"))) || ((data30.charge_us === undefined) && (missing5 = "charge_us"))) || ((data30.edge_limit === undefined) && (missing5 = "edge_limit"))) || ((data30.timeout_ms === undefined) && (missing5 = "timeout_ms"))) || ((data30.quiet_us === undefined) && (missing5 = "quiet_us"))){
-validate21.errors = [{instancePath:instancePath+"/settings/range",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/required",keyword:"required",params:{missingProperty: missing5},message:"must have required property '"+missing5+"'",schema:schema33.required,parentSchema:schema33,data:data30}];
-return false;
-}
-else {
-if(data30.drive_index !== undefined){
-let data31 = data30.drive_index;
+let data31 = data20.range;
+const _errs69 = errors;
 const _errs70 = errors;
-if(!(((typeof data31 == "number") && (!(data31 % 1) && !isNaN(data31))) && (isFinite(data31)))){
-validate21.errors = [{instancePath:instancePath+"/settings/range/drive_index",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/drive_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.drive_index.type,parentSchema:schema33.properties.drive_index,data:data31}];
-return false;
-}
 if(errors === _errs70){
-if((typeof data31 == "number") && (isFinite(data31))){
-if(data31 < 0 || isNaN(data31)){
-validate21.errors = [{instancePath:instancePath+"/settings/range/drive_index",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/drive_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.drive_index,data:data31}];
+if(data31 && typeof data31 == "object" && !Array.isArray(data31)){
+let missing5;
+if(((((((data31.drive_index === undefined) && (missing5 = "drive_index")) || ((data31.tank_index === undefined) && (missing5 = "tank_index"))) || ((data31.charge_us === undefined) && (missing5 = "charge_us"))) || ((data31.edge_limit === undefined) && (missing5 = "edge_limit"))) || ((data31.timeout_ms === undefined) && (missing5 = "timeout_ms"))) || ((data31.quiet_us === undefined) && (missing5 = "quiet_us"))){
+validate21.errors = [{instancePath:instancePath+"/settings/range",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/required",keyword:"required",params:{missingProperty: missing5},message:"must have required property '"+missing5+"'",schema:schema33.required,parentSchema:schema33,data:data31}];
 return false;
-}
-}
-}
-var valid15 = _errs70 === errors;
 }
 else {
-var valid15 = true;
-}
-if(valid15){
-if(data30.tank_index !== undefined){
-let data32 = data30.tank_index;
+if(data31.drive_index !== undefined){
+let data32 = data31.drive_index;
 const _errs72 = errors;
 if(!(((typeof data32 == "number") && (!(data32 % 1) && !isNaN(data32))) && (isFinite(data32)))){
-validate21.errors = [{instancePath:instancePath+"/settings/range/tank_index",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.tank_index.type,parentSchema:schema33.properties.tank_index,data:data32}];
+validate21.errors = [{instancePath:instancePath+"/settings/range/drive_index",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/drive_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.drive_index.type,parentSchema:schema33.properties.drive_index,data:data32}];
 return false;
 }
 if(errors === _errs72){
 if((typeof data32 == "number") && (isFinite(data32))){
 if(data32 < 0 || isNaN(data32)){
-validate21.errors = [{instancePath:instancePath+"/settings/range/tank_index",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.tank_index,data:data32}];
+validate21.errors = [{instancePath:instancePath+"/settings/range/drive_index",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/drive_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.drive_index,data:data32}];
 return false;
 }
 }
@@ -1578,19 +1601,19 @@ else {
 var valid15 = true;
 }
 if(valid15){
-if(data30.charge_us !== undefined){
-let data33 = data30.charge_us;
+if(data31.tank_index !== undefined){
+let data33 = data31.tank_index;
 const _errs74 = errors;
+if(!(((typeof data33 == "number") && (!(data33 % 1) && !isNaN(data33))) && (isFinite(data33)))){
+validate21.errors = [{instancePath:instancePath+"/settings/range/tank_index",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.tank_index.type,parentSchema:schema33.properties.tank_index,data:data33}];
+return false;
+}
 if(errors === _errs74){
 if((typeof data33 == "number") && (isFinite(data33))){
 if(data33 < 0 || isNaN(data33)){
-validate21.errors = [{instancePath:instancePath+"/settings/range/charge_us",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/charge_us/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.charge_us,data:data33}];
+validate21.errors = [{instancePath:instancePath+"/settings/range/tank_index",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.tank_index,data:data33}];
 return false;
 }
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/settings/range/charge_us",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/charge_us/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.charge_us.type,parentSchema:schema33.properties.charge_us,data:data33}];
-return false;
 }
 }
 var valid15 = _errs74 === errors;
@@ -1599,19 +1622,19 @@ else {
 var valid15 = true;
 }
 if(valid15){
-if(data30.edge_limit !== undefined){
-let data34 = data30.edge_limit;
+if(data31.charge_us !== undefined){
+let data34 = data31.charge_us;
 const _errs76 = errors;
-if(!(((typeof data34 == "number") && (!(data34 % 1) && !isNaN(data34))) && (isFinite(data34)))){
-validate21.errors = [{instancePath:instancePath+"/settings/range/edge_limit",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/edge_limit/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.edge_limit.type,parentSchema:schema33.properties.edge_limit,data:data34}];
-return false;
-}
 if(errors === _errs76){
 if((typeof data34 == "number") && (isFinite(data34))){
 if(data34 < 0 || isNaN(data34)){
-validate21.errors = [{instancePath:instancePath+"/settings/range/edge_limit",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/edge_limit/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.edge_limit,data:data34}];
+validate21.errors = [{instancePath:instancePath+"/settings/range/charge_us",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/charge_us/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.charge_us,data:data34}];
 return false;
 }
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings/range/charge_us",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/charge_us/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.charge_us.type,parentSchema:schema33.properties.charge_us,data:data34}];
+return false;
 }
 }
 var valid15 = _errs76 === errors;
@@ -1620,19 +1643,19 @@ else {
 var valid15 = true;
 }
 if(valid15){
-if(data30.timeout_ms !== undefined){
-let data35 = data30.timeout_ms;
+if(data31.edge_limit !== undefined){
+let data35 = data31.edge_limit;
 const _errs78 = errors;
+if(!(((typeof data35 == "number") && (!(data35 % 1) && !isNaN(data35))) && (isFinite(data35)))){
+validate21.errors = [{instancePath:instancePath+"/settings/range/edge_limit",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/edge_limit/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema33.properties.edge_limit.type,parentSchema:schema33.properties.edge_limit,data:data35}];
+return false;
+}
 if(errors === _errs78){
 if((typeof data35 == "number") && (isFinite(data35))){
 if(data35 < 0 || isNaN(data35)){
-validate21.errors = [{instancePath:instancePath+"/settings/range/timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/timeout_ms/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.timeout_ms,data:data35}];
+validate21.errors = [{instancePath:instancePath+"/settings/range/edge_limit",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/edge_limit/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.edge_limit,data:data35}];
 return false;
 }
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/settings/range/timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.timeout_ms.type,parentSchema:schema33.properties.timeout_ms,data:data35}];
-return false;
 }
 }
 var valid15 = _errs78 === errors;
@@ -1641,22 +1664,43 @@ else {
 var valid15 = true;
 }
 if(valid15){
-if(data30.quiet_us !== undefined){
-let data36 = data30.quiet_us;
+if(data31.timeout_ms !== undefined){
+let data36 = data31.timeout_ms;
 const _errs80 = errors;
 if(errors === _errs80){
 if((typeof data36 == "number") && (isFinite(data36))){
 if(data36 < 0 || isNaN(data36)){
-validate21.errors = [{instancePath:instancePath+"/settings/range/quiet_us",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/quiet_us/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.quiet_us,data:data36}];
+validate21.errors = [{instancePath:instancePath+"/settings/range/timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/timeout_ms/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.timeout_ms,data:data36}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/range/quiet_us",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/quiet_us/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.quiet_us.type,parentSchema:schema33.properties.quiet_us,data:data36}];
+validate21.errors = [{instancePath:instancePath+"/settings/range/timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.timeout_ms.type,parentSchema:schema33.properties.timeout_ms,data:data36}];
 return false;
 }
 }
 var valid15 = _errs80 === errors;
+}
+else {
+var valid15 = true;
+}
+if(valid15){
+if(data31.quiet_us !== undefined){
+let data37 = data31.quiet_us;
+const _errs82 = errors;
+if(errors === _errs82){
+if((typeof data37 == "number") && (isFinite(data37))){
+if(data37 < 0 || isNaN(data37)){
+validate21.errors = [{instancePath:instancePath+"/settings/range/quiet_us",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/quiet_us/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema33.properties.quiet_us,data:data37}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings/range/quiet_us",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/properties/quiet_us/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema33.properties.quiet_us.type,parentSchema:schema33.properties.quiet_us,data:data37}];
+return false;
+}
+}
+var valid15 = _errs82 === errors;
 }
 else {
 var valid15 = true;
@@ -1669,46 +1713,33 @@ var valid15 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/range",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema33.type,parentSchema:schema33,data:data30}];
+validate21.errors = [{instancePath:instancePath+"/settings/range",schemaPath:"urn:henrytick:schema:capture:1#/$defs/range/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema33.type,parentSchema:schema33,data:data31}];
 return false;
 }
 }
-var valid6 = _errs67 === errors;
+var valid6 = _errs69 === errors;
 }
 else {
 var valid6 = true;
 }
 if(valid6){
 if(data20.calibration !== undefined){
-let data37 = data20.calibration;
-const _errs82 = errors;
-const _errs83 = errors;
-if(errors === _errs83){
-if(data37 && typeof data37 == "object" && !Array.isArray(data37)){
-let missing6;
-if((((((data37.source === undefined) && (missing6 = "source")) || ((data37.tank_calibrated === undefined) && (missing6 = "tank_calibrated"))) || ((data37.nominal_tank_c_f === undefined) && (missing6 = "nominal_tank_c_f"))) || ((data37.nominal_tick_hz === undefined) && (missing6 = "nominal_tick_hz"))) || ((data37.timebase_ppm === undefined) && (missing6 = "timebase_ppm"))){
-validate21.errors = [{instancePath:instancePath+"/settings/calibration",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/required",keyword:"required",params:{missingProperty: missing6},message:"must have required property '"+missing6+"'",schema:schema35.required,parentSchema:schema35,data:data37}];
-return false;
-}
-else {
-if(data37.source !== undefined){
-let data38 = data37.source;
+let data38 = data20.calibration;
+const _errs84 = errors;
 const _errs85 = errors;
-if(typeof data38 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/source",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/source/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema35.properties.source.type,parentSchema:schema35.properties.source,data:data38}];
+if(errors === _errs85){
+if(data38 && typeof data38 == "object" && !Array.isArray(data38)){
+let missing6;
+if((((((data38.source === undefined) && (missing6 = "source")) || ((data38.tank_calibrated === undefined) && (missing6 = "tank_calibrated"))) || ((data38.nominal_tank_c_f === undefined) && (missing6 = "nominal_tank_c_f"))) || ((data38.nominal_tick_hz === undefined) && (missing6 = "nominal_tick_hz"))) || ((data38.timebase_ppm === undefined) && (missing6 = "timebase_ppm"))){
+validate21.errors = [{instancePath:instancePath+"/settings/calibration",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/required",keyword:"required",params:{missingProperty: missing6},message:"must have required property '"+missing6+"'",schema:schema35.required,parentSchema:schema35,data:data38}];
 return false;
 }
-var valid17 = _errs85 === errors;
-}
 else {
-var valid17 = true;
-}
-if(valid17){
-if(data37.tank_calibrated !== undefined){
-let data39 = data37.tank_calibrated;
+if(data38.source !== undefined){
+let data39 = data38.source;
 const _errs87 = errors;
-if(typeof data39 !== "boolean"){
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/tank_calibrated",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/tank_calibrated/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema35.properties.tank_calibrated.type,parentSchema:schema35.properties.tank_calibrated,data:data39}];
+if(typeof data39 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/source",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/source/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema35.properties.source.type,parentSchema:schema35.properties.source,data:data39}];
 return false;
 }
 var valid17 = _errs87 === errors;
@@ -1717,20 +1748,12 @@ else {
 var valid17 = true;
 }
 if(valid17){
-if(data37.nominal_tank_c_f !== undefined){
-let data40 = data37.nominal_tank_c_f;
+if(data38.tank_calibrated !== undefined){
+let data40 = data38.tank_calibrated;
 const _errs89 = errors;
-if(errors === _errs89){
-if((typeof data40 == "number") && (isFinite(data40))){
-if(data40 <= 0 || isNaN(data40)){
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/nominal_tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/nominal_tank_c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tank_c_f,data:data40}];
+if(typeof data40 !== "boolean"){
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/tank_calibrated",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/tank_calibrated/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema35.properties.tank_calibrated.type,parentSchema:schema35.properties.tank_calibrated,data:data40}];
 return false;
-}
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/nominal_tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/nominal_tank_c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tank_c_f.type,parentSchema:schema35.properties.nominal_tank_c_f,data:data40}];
-return false;
-}
 }
 var valid17 = _errs89 === errors;
 }
@@ -1738,18 +1761,18 @@ else {
 var valid17 = true;
 }
 if(valid17){
-if(data37.nominal_tick_hz !== undefined){
-let data41 = data37.nominal_tick_hz;
+if(data38.nominal_tank_c_f !== undefined){
+let data41 = data38.nominal_tank_c_f;
 const _errs91 = errors;
 if(errors === _errs91){
 if((typeof data41 == "number") && (isFinite(data41))){
 if(data41 <= 0 || isNaN(data41)){
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/nominal_tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/nominal_tick_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tick_hz,data:data41}];
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/nominal_tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/nominal_tank_c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tank_c_f,data:data41}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/nominal_tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/nominal_tick_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tick_hz.type,parentSchema:schema35.properties.nominal_tick_hz,data:data41}];
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/nominal_tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/nominal_tank_c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tank_c_f.type,parentSchema:schema35.properties.nominal_tank_c_f,data:data41}];
 return false;
 }
 }
@@ -1759,12 +1782,20 @@ else {
 var valid17 = true;
 }
 if(valid17){
-if(data37.timebase_ppm !== undefined){
-let data42 = data37.timebase_ppm;
+if(data38.nominal_tick_hz !== undefined){
+let data42 = data38.nominal_tick_hz;
 const _errs93 = errors;
-if(!((typeof data42 == "number") && (isFinite(data42)))){
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/timebase_ppm",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/timebase_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_ppm.type,parentSchema:schema35.properties.timebase_ppm,data:data42}];
+if(errors === _errs93){
+if((typeof data42 == "number") && (isFinite(data42))){
+if(data42 <= 0 || isNaN(data42)){
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/nominal_tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/nominal_tick_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema35.properties.nominal_tick_hz,data:data42}];
 return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/nominal_tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/nominal_tick_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.nominal_tick_hz.type,parentSchema:schema35.properties.nominal_tick_hz,data:data42}];
+return false;
+}
 }
 var valid17 = _errs93 === errors;
 }
@@ -1772,22 +1803,35 @@ else {
 var valid17 = true;
 }
 if(valid17){
-if(data37.timebase_u_ppm !== undefined){
-let data43 = data37.timebase_u_ppm;
+if(data38.timebase_ppm !== undefined){
+let data43 = data38.timebase_ppm;
 const _errs95 = errors;
-if(errors === _errs95){
-if((typeof data43 == "number") && (isFinite(data43))){
-if(data43 < 0 || isNaN(data43)){
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/timebase_u_ppm",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/timebase_u_ppm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema35.properties.timebase_u_ppm,data:data43}];
+if(!((typeof data43 == "number") && (isFinite(data43)))){
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/timebase_ppm",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/timebase_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_ppm.type,parentSchema:schema35.properties.timebase_ppm,data:data43}];
+return false;
+}
+var valid17 = _errs95 === errors;
+}
+else {
+var valid17 = true;
+}
+if(valid17){
+if(data38.timebase_u_ppm !== undefined){
+let data44 = data38.timebase_u_ppm;
+const _errs97 = errors;
+if(errors === _errs97){
+if((typeof data44 == "number") && (isFinite(data44))){
+if(data44 < 0 || isNaN(data44)){
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/timebase_u_ppm",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/timebase_u_ppm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema35.properties.timebase_u_ppm,data:data44}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/calibration/timebase_u_ppm",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/timebase_u_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_u_ppm.type,parentSchema:schema35.properties.timebase_u_ppm,data:data43}];
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/timebase_u_ppm",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/timebase_u_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.timebase_u_ppm.type,parentSchema:schema35.properties.timebase_u_ppm,data:data44}];
 return false;
 }
 }
-var valid17 = _errs95 === errors;
+var valid17 = _errs97 === errors;
 }
 else {
 var valid17 = true;
@@ -1800,11 +1844,11 @@ var valid17 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/calibration",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema35.type,parentSchema:schema35,data:data37}];
+validate21.errors = [{instancePath:instancePath+"/settings/calibration",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema35.type,parentSchema:schema35,data:data38}];
 return false;
 }
 }
-var valid6 = _errs82 === errors;
+var valid6 = _errs84 === errors;
 }
 else {
 var valid6 = true;
@@ -1829,35 +1873,22 @@ var valid0 = true;
 }
 if(valid0){
 if(data.device !== undefined){
-let data44 = data.device;
-const _errs97 = errors;
-const _errs98 = errors;
-if(errors === _errs98){
-if(data44 && typeof data44 == "object" && !Array.isArray(data44)){
-let missing7;
-if(((((data44.id === undefined) && (missing7 = "id")) || ((data44.firmware_version === undefined) && (missing7 = "firmware_version"))) || ((data44.protocol_version === undefined) && (missing7 = "protocol_version"))) || ((data44.transport === undefined) && (missing7 = "transport"))){
-validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/required",keyword:"required",params:{missingProperty: missing7},message:"must have required property '"+missing7+"'",schema:schema34.required,parentSchema:schema34,data:data44}];
-return false;
-}
-else {
-if(data44.id !== undefined){
-let data45 = data44.id;
+let data45 = data.device;
+const _errs99 = errors;
 const _errs100 = errors;
-if(typeof data45 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/id",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.id.type,parentSchema:schema34.properties.id,data:data45}];
+if(errors === _errs100){
+if(data45 && typeof data45 == "object" && !Array.isArray(data45)){
+let missing7;
+if(((((data45.id === undefined) && (missing7 = "id")) || ((data45.firmware_version === undefined) && (missing7 = "firmware_version"))) || ((data45.protocol_version === undefined) && (missing7 = "protocol_version"))) || ((data45.transport === undefined) && (missing7 = "transport"))){
+validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/required",keyword:"required",params:{missingProperty: missing7},message:"must have required property '"+missing7+"'",schema:schema34.required,parentSchema:schema34,data:data45}];
 return false;
 }
-var valid19 = _errs100 === errors;
-}
 else {
-var valid19 = true;
-}
-if(valid19){
-if(data44.firmware_version !== undefined){
-let data46 = data44.firmware_version;
+if(data45.id !== undefined){
+let data46 = data45.id;
 const _errs102 = errors;
 if(typeof data46 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/firmware_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/firmware_version/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.firmware_version.type,parentSchema:schema34.properties.firmware_version,data:data46}];
+validate21.errors = [{instancePath:instancePath+"/device/id",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.id.type,parentSchema:schema34.properties.id,data:data46}];
 return false;
 }
 var valid19 = _errs102 === errors;
@@ -1866,20 +1897,12 @@ else {
 var valid19 = true;
 }
 if(valid19){
-if(data44.protocol_version !== undefined){
-let data47 = data44.protocol_version;
+if(data45.firmware_version !== undefined){
+let data47 = data45.firmware_version;
 const _errs104 = errors;
-if(!(((typeof data47 == "number") && (!(data47 % 1) && !isNaN(data47))) && (isFinite(data47)))){
-validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema34.properties.protocol_version.type,parentSchema:schema34.properties.protocol_version,data:data47}];
+if(typeof data47 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/device/firmware_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/firmware_version/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.firmware_version.type,parentSchema:schema34.properties.firmware_version,data:data47}];
 return false;
-}
-if(errors === _errs104){
-if((typeof data47 == "number") && (isFinite(data47))){
-if(data47 < 0 || isNaN(data47)){
-validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema34.properties.protocol_version,data:data47}];
-return false;
-}
-}
 }
 var valid19 = _errs104 === errors;
 }
@@ -1887,12 +1910,20 @@ else {
 var valid19 = true;
 }
 if(valid19){
-if(data44.transport !== undefined){
-let data48 = data44.transport;
+if(data45.protocol_version !== undefined){
+let data48 = data45.protocol_version;
 const _errs106 = errors;
-if(typeof data48 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/transport",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/transport/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.transport.type,parentSchema:schema34.properties.transport,data:data48}];
+if(!(((typeof data48 == "number") && (!(data48 % 1) && !isNaN(data48))) && (isFinite(data48)))){
+validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema34.properties.protocol_version.type,parentSchema:schema34.properties.protocol_version,data:data48}];
 return false;
+}
+if(errors === _errs106){
+if((typeof data48 == "number") && (isFinite(data48))){
+if(data48 < 0 || isNaN(data48)){
+validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema34.properties.protocol_version,data:data48}];
+return false;
+}
+}
 }
 var valid19 = _errs106 === errors;
 }
@@ -1900,20 +1931,12 @@ else {
 var valid19 = true;
 }
 if(valid19){
-if(data44.clamp_v !== undefined){
-let data49 = data44.clamp_v;
+if(data45.transport !== undefined){
+let data49 = data45.transport;
 const _errs108 = errors;
-if(errors === _errs108){
-if((typeof data49 == "number") && (isFinite(data49))){
-if(data49 <= 0 || isNaN(data49)){
-validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.clamp_v,data:data49}];
+if(typeof data49 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/device/transport",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/transport/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.transport.type,parentSchema:schema34.properties.transport,data:data49}];
 return false;
-}
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.clamp_v.type,parentSchema:schema34.properties.clamp_v,data:data49}];
-return false;
-}
 }
 var valid19 = _errs108 === errors;
 }
@@ -1921,18 +1944,18 @@ else {
 var valid19 = true;
 }
 if(valid19){
-if(data44.max_timeout_ms !== undefined){
-let data50 = data44.max_timeout_ms;
+if(data45.clamp_v !== undefined){
+let data50 = data45.clamp_v;
 const _errs110 = errors;
 if(errors === _errs110){
 if((typeof data50 == "number") && (isFinite(data50))){
 if(data50 <= 0 || isNaN(data50)){
-validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.max_timeout_ms,data:data50}];
+validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.clamp_v,data:data50}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.max_timeout_ms.type,parentSchema:schema34.properties.max_timeout_ms,data:data50}];
+validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.clamp_v.type,parentSchema:schema34.properties.clamp_v,data:data50}];
 return false;
 }
 }
@@ -1941,6 +1964,27 @@ var valid19 = _errs110 === errors;
 else {
 var valid19 = true;
 }
+if(valid19){
+if(data45.max_timeout_ms !== undefined){
+let data51 = data45.max_timeout_ms;
+const _errs112 = errors;
+if(errors === _errs112){
+if((typeof data51 == "number") && (isFinite(data51))){
+if(data51 <= 0 || isNaN(data51)){
+validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.max_timeout_ms,data:data51}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.max_timeout_ms.type,parentSchema:schema34.properties.max_timeout_ms,data:data51}];
+return false;
+}
+}
+var valid19 = _errs112 === errors;
+}
+else {
+var valid19 = true;
+}
 }
 }
 }
@@ -1949,24 +1993,24 @@ var valid19 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema34.type,parentSchema:schema34,data:data44}];
+validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema34.type,parentSchema:schema34,data:data45}];
 return false;
 }
 }
-var valid0 = _errs97 === errors;
+var valid0 = _errs99 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.label !== undefined){
-let data51 = data.label;
-const _errs112 = errors;
-if(typeof data51 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/label",schemaPath:"#/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.label.type,parentSchema:schema37.properties.label,data:data51}];
+let data52 = data.label;
+const _errs114 = errors;
+if(typeof data52 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/label",schemaPath:"#/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.label.type,parentSchema:schema37.properties.label,data:data52}];
 return false;
 }
-var valid0 = _errs112 === errors;
+var valid0 = _errs114 === errors;
 }
 else {
 var valid0 = true;

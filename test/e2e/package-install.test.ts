@@ -140,6 +140,11 @@ try {
       `import { createRequire } from "node:module"; import { readFileSync } from "node:fs";
        console.log(JSON.parse(readFileSync(createRequire(import.meta.url).resolve("henrytick/schemas/capture.schema.json"), "utf8")).$id)`], { cwd: app });
     expect(schema.stdout.trim(), schema.stderr).toBe("urn:henrytick:schema:capture:1");
+    // The simulator and the calibration methods are subpaths of their own, not the main entry.
+    const sub = run(process.execPath, ["--input-type=module", "-e",
+      `const main = await import("henrytick"); const sim = await import("henrytick/sim"); const cal = await import("henrytick/calibration");
+       console.log(JSON.stringify({ main: "SimTester" in main, sim: typeof sim.SimTester, cal: typeof cal.monteCarlo }))`], { cwd: app });
+    expect(JSON.parse(sub.stdout.trim() || "{}"), sub.stderr).toEqual({ main: false, sim: "function", cal: "function" });
   });
 
   it("runs a simulated measure and an analyze through the installed binary", () => {

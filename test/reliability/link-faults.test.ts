@@ -201,12 +201,11 @@ describe("garbage at connect", () => {
 });
 
 describe("late replies after a timeout", () => {
-  // Finding (host/src/device/client.ts): after a DeviceTimeoutError the client does not
-  // resynchronise; command() only empties the inbox before writing, and no field ties a capture
-  // stream to its request. Lines of the timed-out measurement that arrive after the next MS was
-  // sent are taken as that measurement's reply: OK MS, then a complete, checksummed capture of the
-  // previous pulse, returned as verified. Here the part is changed in between (a sorting line), so
-  // the host reports the previous part's ring for the new part. Marked it.fails until fixed.
+  // Lines of a timed-out measurement can arrive after the next MS was sent: OK MS, then a
+  // complete, checksummed capture of the previous pulse. The client must not take them as the
+  // next measurement's reply (host/src/device/client.ts ties a capture stream to its request
+  // token). Here the part is changed in between (a sorting line), so taking them would report the
+  // previous part's ring for the new part.
   it("a capture delivered after its measurement timed out is never returned for the next measurement", async () => {
     // Times (ms after MS): the reply times out at 500, the next MS goes out at about 700, the
     // held lines land at 1000, and that MS would time out at about 1200: wide margins either side.
@@ -229,9 +228,9 @@ describe("late replies after a timeout", () => {
 });
 
 describe("error codes on link failures", () => {
-  // Finding (host/src/transport/transport.ts, class TransportError): a failure of the link itself
-  // (port unplugged, write on a closed port) carries `disconnected` but no stable `code`, unlike
-  // every other error a user can meet; the CLI then prints it without one. Marked it.fails until fixed.
+  // A failure of the link itself (port unplugged, write on a closed port) carries a stable code
+  // like every other error a user can meet (TransportError: LINK_DISCONNECTED, LINK_ERROR), so
+  // the CLI prints it with one.
   it("an unplugged port is reported with a stable code", async () => {
     const rig = await openRig({ seed: 51 });
     rig.faults.unplug();
@@ -242,14 +241,11 @@ describe("error codes on link failures", () => {
 });
 
 describe("a reply that outlives its command", () => {
-  // Finding (host/src/device/client.ts, command()): a corrupt line makes command() throw at once,
-  // without waiting out the rest of the exchange. If the corrupt line is a leftover of the previous
-  // exchange (here: the capture behind a damaged OK MS, still in flight when the next MS is
-  // written), the next MS fails before its own reply has arrived; that reply (OK MS and a whole,
-  // checksummed capture) is then taken as the reply to the MS after it: that reading returns the
-  // previous pulse's capture as verified, and if the host sends its next command before the
-  // leftover reply lands, every later reading does too. With parts swapped between readings, a
-  // part gets its predecessor's value. Marked it.fails until fixed.
+  // A corrupt line that is a leftover of the previous exchange (here: the capture behind a
+  // damaged OK MS, still in flight when the next MS is written) must not make a later reading
+  // return the previous pulse's capture as verified: with parts swapped between readings, a part
+  // would get its predecessor's value. The client drains the link after a corrupt reply and
+  // accepts a capture only with its own request token (host/src/device/client.ts, command()).
   it("after two damaged lines in a row, every reading still returns its own pulse's capture", async () => {
     const rig = await openRig({ seed: 61 });
     rig.faults.arm("flip_bit", OK_MS, 1); // reading 1: OK MS damaged -> LINK_CORRUPT, its capture still in flight

@@ -108,7 +108,7 @@ describe("exit status (docs/user-guide.md)", () => {
   it("a value the user typed that a library refuses with a RangeError is still a usage error (2)", () => {
     const tol = runCli(["sort", "--sim", "--nominal", "1u", "--tol", "2u"]);
     expect(tol.status, tol.stderr).toBe(2);
-    expect(tol.stderr).toMatch(/--tol: tolerance ±2u reaches below zero/);
+    expect(tol.stderr).toMatch(/--tol: tolerance ±2 µH reaches below zero/);
     const series = runCli(["sort", "--sim", "--nominal", "10u", "--tol", "5%", "--series", "E7"]);
     expect(series.status, series.stderr).toBe(2);
     expect(series.stderr).toMatch(/--series: unknown E-series "E7"/);

@@ -2,8 +2,8 @@
 // true capture and a value inside its stated uncertainty, or in a coded error. One tester only,
 // so the run replays exactly. The 10 000-reading run is in the benchmark
 // (test/bench/sections/reliability.ts); it meets finding 1 of docs/reliability.md (a leftover
-// reply answering the next command) about once, which this seed does not: the directed it.fails
-// tests in link-faults.test.ts pin that finding down.
+// reply answering the next command) about once, which this seed does not: the directed tests in
+// link-faults.test.ts pin that case down.
 
 import { describe, expect, it } from "vitest";
 import { runSoak, SOAK_FAULTS } from "./soak.ts";

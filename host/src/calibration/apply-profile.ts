@@ -2,7 +2,9 @@
 // the uncertainty budget should say about the timebase. Pure.
 
 import type { AppliedCalibration } from "./applied.ts";
+import { CalibrationError } from "./errors.ts";
 import type { CalibrationProfile, TankEntry } from "./profile-schema.ts";
+import { MAX_PROFILE_INDEX } from "./profile-store.ts";
 import type { TimebaseKnowledge } from "./uncertainty-budget.ts";
 
 /** Methods whose capacitance is 1/(w^2 L_ref): they carry the timebase error in force at the time. */
@@ -28,6 +30,8 @@ export function tankCapacitanceNow(t: TankEntry, timebase_ppm_now: number): { c_
 export function appliedCalibration(profile: CalibrationProfile, source: string): AppliedCalibration {
   const ppm = profile.timebase?.ppm ?? 0;
   const n = Math.max(0, ...profile.tanks.map((t) => t.index + 1));
+  // The array is sized by the highest index: bound it (profile-store refuses such files on reading).
+  if (!(n <= MAX_PROFILE_INDEX + 1)) throw new CalibrationError("PROFILE_INVALID", `a calibrated tank index of ${n - 1} is beyond any board (0 to ${MAX_PROFILE_INDEX}); calibrate again`);
   const tanks: AppliedCalibration["tanks"] = new Array(n).fill(undefined);
   for (const t of profile.tanks) {
     const drift = TIMEBASE_BOUND_METHODS.has(t.method) ? { timebase_u_ppm: CRYSTAL_DRIFT_PPM / Math.sqrt(3) } : {};

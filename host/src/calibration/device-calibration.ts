@@ -4,6 +4,7 @@
 
 import type { DeviceClient } from "../device/client.ts";
 import type { AppliedCalibration } from "./applied.ts";
+import { checkProfileAgainstBoard } from "../measure/plausibility.ts";
 import { appliedCalibration } from "./apply-profile.ts";
 import type { CalibrationProfile } from "./profile-schema.ts";
 import type { StoreOptions } from "./profile-store.ts";
@@ -22,5 +23,6 @@ export function deviceCalibration(client: DeviceClient, store: StoreOptions = {}
   const path = profilePaths(id, store).current;
   const profile = loadProfile(id, store);
   if (!profile) return { profile: null, path };
+  checkProfileAgainstBoard(profile, client.profile, path);
   return { profile, applied: appliedCalibration(profile, `${path} (updated ${profile.updated})`), path };
 }

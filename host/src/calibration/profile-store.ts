@@ -37,6 +37,21 @@ export function profilePaths(device_id: string, opts: StoreOptions = {}): { curr
   };
 }
 
+/** Highest tank or drive index a profile may name: no board has more than 256 of either. */
+export const MAX_PROFILE_INDEX = 255;
+
+/** Index bounds the schema leaves open: a huge index would size arrays by it. */
+function checkIndices(p: CalibrationProfile, where: string): CalibrationProfile {
+  for (const [i, t] of p.tanks.entries()) {
+    for (const [key, v] of [["index", t.index], ["drive", t.drive]] as const) {
+      if (v !== undefined && !(Number.isSafeInteger(v) && v >= 0 && v <= MAX_PROFILE_INDEX)) {
+        throw new CalibrationError("PROFILE_INVALID", `${where}field "tanks[${i}].${key}": ${v} is not a ${key === "index" ? "tank" : "drive"} index (0 to ${MAX_PROFILE_INDEX}); restore the previous profile ("henrytick calibrate restore") or calibrate again`);
+      }
+    }
+  }
+  return p;
+}
+
 /** Reads and validates a profile file; null when the file does not exist. */
 export function readProfileFile(path: string): CalibrationProfile | null {
   if (!existsSync(path)) return null;
@@ -56,7 +71,7 @@ export function readProfileFile(path: string): CalibrationProfile | null {
     );
   }
   try {
-    return validateProfile(raw);
+    return checkIndices(validateProfile(raw), "");
   } catch (e) {
     if (e instanceof CalibrationError) e.message = `${path}: ${e.message}`;
     throw e;
@@ -81,7 +96,7 @@ function writeAtomically(path: string, text: string): void {
  * one; an invalid current file is set aside as "rejected" so it never replaces a good previous.
  */
 export function saveProfile(profile: CalibrationProfile, opts: StoreOptions = {}): { path: string; previous_kept: boolean } {
-  const checked = validateProfile(JSON.parse(JSON.stringify(profile))); // never write what we would refuse to read
+  const checked = checkIndices(validateProfile(JSON.parse(JSON.stringify(profile))), ""); // never write what we would refuse to read
   const paths = profilePaths(checked.device_id, opts);
   mkdirSync(configDir(opts), { recursive: true });
   let previousKept = false;

@@ -1,7 +1,7 @@
 // Capture file v1 (docs/capture-format.md): the edge record of one ring-down with everything
 // needed to analyse it again later. Written by `measure --save`, read by `analyze`.
 
-import { readFileSync } from "node:fs";
+import { closeSync, constants, fstatSync, openSync, readSync } from "node:fs";
 import { CodedError } from "../coded-error.ts";
 import { writeFileAtomic } from "../fs/atomic-write.ts";
 import { schemaProblem } from "../schemas.ts";
@@ -9,6 +9,13 @@ import type { Warning } from "../analysis/types.ts";
 
 export const CAPTURE_FORMAT = "henrytick-capture";
 export const CAPTURE_VERSION = 1;
+/** The most edges a capture holds: eight times the reference board's 8 192-edge buffer. */
+export const MAX_CAPTURE_EDGES = 65_536;
+/**
+ * The largest capture file read: MAX_CAPTURE_EDGES edges of up to 24 characters ("[9007199254740991,1],")
+ * plus 1 MiB for the other fields.
+ */
+export const MAX_CAPTURE_BYTES = 24 * MAX_CAPTURE_EDGES + (1 << 20);
 
 export interface CaptureV1 {
   format: typeof CAPTURE_FORMAT;
@@ -22,7 +29,8 @@ export interface CaptureV1 {
   tank_c_u_f?: number;
   /** [rising, falling] comparator thresholds referred to the ring voltage. */
   thresholds_v: [number, number];
-  drive?: { supply_v: number; series_ohm: number };
+  /** Drive supply and resistor, and the front end's clamp voltage (the ring's ceiling). */
+  drive?: { supply_v: number; series_ohm: number; clamp_v?: number };
   range?: { drive_index: number; tank_index: number; charge_us: number; edge_limit: number; timeout_ms: number; quiet_us: number };
   /** The tester; `clamp_v` and `max_timeout_ms` (its profile's) let a saved capture be judged for part faults as the reading was. */
   device?: { id: string; firmware_version: string; protocol_version: number; transport: string; clamp_v?: number; max_timeout_ms?: number };
@@ -55,11 +63,14 @@ export function validateCapture(raw: unknown): CaptureV1 {
   if (o.version !== CAPTURE_VERSION) {
     fail('field "version"', `version ${JSON.stringify(o.version)} is not supported; this henrytick reads version ${CAPTURE_VERSION} (update henrytick to read newer files)`);
   }
+  if (Array.isArray(o.edges) && o.edges.length > MAX_CAPTURE_EDGES) {
+    fail('field "edges"', `holds ${o.edges.length} edges, more than a capture holds (at most ${MAX_CAPTURE_EDGES})`);
+  }
   const problem = schemaProblem("capture", raw);
   if (problem) {
     // An edge's parts by name: "edges[12]: tick must be ...", "edges[12]: level must be ...".
     const edge = /^(edges\[\d+\])(?:\[([01])\])?$/.exec(problem.field);
-    if (edge) fail(edge[1], `${edge[2] === undefined ? "" : edge[2] === "0" ? "tick " : "level "}${problem.message}`);
+    if (edge) fail(edge[1], `${edge[2] === undefined ? "" : edge[2] === "0" ? "tick " : "level "}${problem.message.replace(/^must be one of 0, 1\b/, "must be 0 or 1")}`);
     fail(`field "${problem.field}"`, problem.message);
   }
   const th = o.thresholds_v as [number, number];
@@ -84,13 +95,46 @@ export function parseCapture(text: string): CaptureV1 {
   return validateCapture(raw);
 }
 
-export function readCaptureFile(path: string): CaptureV1 {
-  let text: string;
+/**
+ * A capture file's text, read with bounds: only a regular file (a device such as /dev/zero, a
+ * FIFO or a folder is refused before anything is read; O_NONBLOCK keeps a FIFO without a writer
+ * from blocking the open) of at most MAX_CAPTURE_BYTES.
+ */
+function readBounded(path: string): string {
+  let fd: number;
   try {
-    text = readFileSync(path, "utf8");
+    fd = openSync(path, constants.O_RDONLY | constants.O_NONBLOCK);
   } catch (e) {
-    throw new CaptureFileError(`cannot read ${path}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
+    throw new CaptureFileError(`cannot read ${path}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}; check the path and its permissions`);
   }
+  try {
+    const st = fstatSync(fd);
+    if (!st.isFile()) {
+      const kind = st.isDirectory() ? "a folder" : st.isFIFO() ? "a pipe (FIFO)" : st.isCharacterDevice() || st.isBlockDevice() ? "a device" : st.isSocket() ? "a socket" : "not a regular file";
+      throw new CaptureFileError(`${path} is ${kind}, not a capture file; give the path of a file written by "henrytick measure --save"`);
+    }
+    if (st.size > MAX_CAPTURE_BYTES) {
+      throw new CaptureFileError(`${path} is ${st.size} bytes, more than a capture file can be (at most ${MAX_CAPTURE_BYTES} bytes for ${MAX_CAPTURE_EDGES} edges); it is not a capture file`);
+    }
+    const buf = Buffer.alloc(st.size + 1);
+    let got = 0;
+    for (;;) {
+      const n = readSync(fd, buf, got, buf.length - got, null);
+      if (n === 0) break;
+      got += n;
+      if (got > st.size) throw new CaptureFileError(`${path} grew while being read (over ${st.size} bytes); read it again once it is written`);
+    }
+    return buf.toString("utf8", 0, got);
+  } catch (e) {
+    if (e instanceof CaptureFileError) throw e;
+    throw new CaptureFileError(`cannot read ${path}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
+  } finally {
+    closeSync(fd);
+  }
+}
+
+export function readCaptureFile(path: string): CaptureV1 {
+  const text = readBounded(path);
   try {
     return parseCapture(text);
   } catch (e) {

@@ -5,6 +5,8 @@ import type { ParseArgsConfig } from "node:util";
 
 type OptionsConfig = NonNullable<ParseArgsConfig["options"]>;
 import { CliUsageError } from "./errors.ts";
+import { parseValue, parseValueIn, ValueError, type ParsedValue } from "../values/parse-value.ts";
+import { parseTolerance, type Tolerance } from "../values/tolerance.ts";
 
 type Parsed<T extends OptionsConfig> = ReturnType<typeof parseArgs<{ args: string[]; options: T; allowPositionals: true; strict: true }>>;
 
@@ -49,14 +51,34 @@ export function testerTarget(values: { sim?: boolean; port?: string; seed?: stri
 
 /**
  * Reads an option's value with a library function whose RangeError means the value itself is
- * wrong (an unknown series name, a tolerance reaching below zero): that is a usage error naming
- * the option, never an internal one.
+ * wrong (an unknown series name, a tolerance reaching below zero, a value the value parser
+ * refuses): that is a usage error naming the option, never an internal one.
  */
 export function optionValue<T>(name: string, read: () => T): T {
   try {
     return read();
   } catch (e) {
-    if (e instanceof RangeError && (e as { code?: unknown }).code === undefined) throw new CliUsageError(`--${name}: ${e.message}`);
+    if (e instanceof ValueError || (e instanceof RangeError && (e as { code?: unknown }).code === undefined)) throw new CliUsageError(`--${name}: ${e.message}`);
     throw e;
   }
+}
+
+/**
+ * A value option in `unit` through the one value parser (values/parse-value.ts), with the option
+ * named in the message; `range` refuses what is outside it up front.
+ */
+export function valueOption(v: string | undefined, name: string, unit: string, range?: { min: number; max: number; what: string }): ParsedValue | undefined {
+  if (v === undefined) return undefined;
+  return optionValue(name, () => (range ? parseValueIn(v, unit, range) : parseValue(v, unit)));
+}
+
+/** The same, for an option that must be given. */
+export function requiredValue(v: string | undefined, name: string, unit: string, example: string, range?: { min: number; max: number; what: string }): ParsedValue {
+  if (v === undefined) throw new CliUsageError(`--${name} is required (a value in ${unit}, e.g. --${name} ${example})`);
+  return valueOption(v, name, unit, range)!;
+}
+
+/** A tolerance option (5%, J, +10%/-5%, 0.5u) with the option named in the message. */
+export function toleranceOption(v: string, name: string, unit = "H"): Tolerance {
+  return optionValue(name, () => parseTolerance(v, unit));
 }

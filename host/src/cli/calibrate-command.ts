@@ -11,27 +11,20 @@ import type { StoreOptions } from "../calibration/index.ts";
 import { formatSi } from "../format/si.ts";
 import type { OpenedTester } from "../open-tester.ts";
 import { openTester } from "../open-tester.ts";
-import { intOption, parse, testerTarget } from "./args.ts";
+import { intOption, parse, requiredValue, testerTarget } from "./args.ts";
+import { MEASURABLE_RANGE } from "../values/range.ts";
 import { CliUsageError } from "./errors.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
 import { PulseCaution } from "./caution.ts";
 
-const PREFIX: Record<string, number> = { f: 1e-15, p: 1e-12, n: 1e-9, u: 1e-6, µ: 1e-6, m: 1e-3, k: 1e3, M: 1e6 };
-
-/** "330u", "4n7", "330uH", "1.5e-3" → number; the unit letter is optional. */
-export function parseQuantity(text: string | undefined, name: string, unit: string, opts: { min?: number; optional?: boolean } = {}): number | undefined {
-  if (text === undefined) {
-    if (opts.optional) return undefined;
-    throw new CliUsageError(`--${name} is required (a value in ${unit}, e.g. 330u)`);
-  }
-  const t = text.trim().replace(new RegExp(`${unit}$`), "");
-  const m = /^([0-9]*\.?[0-9]+(?:e[-+]?[0-9]+)?)([fpnuµmkM]?)([0-9]*)$/.exec(t);
-  let v = NaN;
-  if (m) {
-    // The letter may stand for the decimal point (IEC 60062 style: 4n7 = 4.7n).
-    v = m[3] ? Number(`${m[1]}.${m[3]}`) * (PREFIX[m[2]] ?? NaN) : Number(m[1]) * (m[2] ? PREFIX[m[2]] : 1);
-  }
-  if (!Number.isFinite(v) || v < (opts.min ?? 0)) throw new CliUsageError(`--${name} must be a value in ${unit} such as 330u or 4n7, got ${JSON.stringify(text)}`);
+/**
+ * A calibration value through the one value parser: `330u`, `4n7`, `330uH`, `1.5e-3`, `4R7`;
+ * refused when missing (unless optional), in another unit, or not above `min`.
+ */
+function quantity(text: string | undefined, name: string, unit: "H" | "F", opts: { optional?: boolean; range?: { min: number; max: number; what: string } } = {}): number | undefined {
+  if (text === undefined && opts.optional) return undefined;
+  const example = unit === "H" ? "330u" : "4n7";
+  const v = requiredValue(text, name, unit, example, opts.range ?? { min: opts.optional ? 0 : Number.MIN_VALUE, max: unit === "H" ? 100 : 1, what: `a positive ${unit === "H" ? "inductance" : "capacitance"}` }).value;
   return v;
 }
 
@@ -59,7 +52,8 @@ export async function runCalibrate(args: string[]): Promise<number> {
 }
 
 type Values = Record<string, string | boolean | undefined>;
-type Action = (t: OpenedTester, store: StoreOptions, v: Values) => Promise<number>;
+/** `caution()` prints the pulse caution: an action calls it once its options are read, before the first pulse. */
+type Action = (t: OpenedTester, store: StoreOptions, v: Values, caution: () => void) => Promise<number>;
 
 async function withTester(args: string[], extra: Record<string, { type: "string" | "boolean" }>, action: Action, pulses = false): Promise<number> {
   const { values, positionals } = parse(args, { ...COMMON, ...extra });
@@ -68,11 +62,14 @@ async function withTester(args: string[], extra: Record<string, { type: "string"
   const store: StoreOptions = v["config-dir"] ? { dir: v["config-dir"] as string } : {};
   const tester = await openTester(target);
   try {
-    if (pulses) {
+    let given = !pulses;
+    const caution = () => {
+      if (given) return;
+      given = true;
       const limit = resolvePeakLimit(undefined, tester.client.profile.clamp_v, false);
       new PulseCaution({ describe: [tester.scenario?.name, tester.scenario?.story], limit, quiet: v.json === true, repeated: true }).start();
-    }
-    return await action(tester, store, v);
+    };
+    return await action(tester, store, v, caution);
   } finally {
     await tester.close();
   }
@@ -126,16 +123,17 @@ async function restore(t: OpenedTester, store: StoreOptions): Promise<number> {
   return 0;
 }
 
-async function reference(t: OpenedTester, store: StoreOptions, v: Values): Promise<number> {
+async function reference(t: OpenedTester, store: StoreOptions, v: Values, caution: () => void): Promise<number> {
   const ref = {
-    inductance_h: parseQuantity(v["ref-h"] as string, "ref-h", "H")!,
-    u_inductance_h: parseQuantity(v["ref-u-h"] as string, "ref-u-h", "H")!,
-    self_capacitance_f: parseQuantity(v["ref-cs-f"] as string | undefined, "ref-cs-f", "F", { optional: true }),
-    u_self_capacitance_f: parseQuantity(v["ref-u-cs-f"] as string | undefined, "ref-u-cs-f", "F", { optional: true }),
+    inductance_h: quantity(v["ref-h"] as string, "ref-h", "H", { range: MEASURABLE_RANGE })!,
+    u_inductance_h: quantity(v["ref-u-h"] as string, "ref-u-h", "H")!,
+    self_capacitance_f: quantity(v["ref-cs-f"] as string | undefined, "ref-cs-f", "F", { optional: true }),
+    u_self_capacitance_f: quantity(v["ref-u-cs-f"] as string | undefined, "ref-u-cs-f", "F", { optional: true }),
     label: v["ref-label"] as string | undefined,
   };
   const tanks = v.tanks === undefined ? undefined : String(v.tanks).split(",").map((s) => intOption(s.trim(), "tanks", 0, t.client.profile.tanks.length - 1)!);
   const repeats = intOption(v.repeats, "repeats", 1, 50);
+  caution();
   const profile = currentProfile(t, store);
   const applied = appliedCalibration(profile, "calibration in progress");
   const out = await calibrateWithReference(t.client, ref, { tanks, repeats, calibration: applied, timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress });
@@ -148,15 +146,17 @@ async function reference(t: OpenedTester, store: StoreOptions, v: Values): Promi
   return 0;
 }
 
-async function parallel(t: OpenedTester, store: StoreOptions, v: Values): Promise<number> {
+async function parallel(t: OpenedTester, store: StoreOptions, v: Values, caution: () => void): Promise<number> {
   const tank = intOption(v.tank, "tank", 0, t.client.profile.tanks.length - 1);
   if (tank === undefined) throw new CliUsageError("--tank N is required");
   const cap = {
-    capacitance_f: parseQuantity(v["cap-f"] as string, "cap-f", "F")!,
-    u_capacitance_f: parseQuantity(v["cap-u-f"] as string, "cap-u-f", "F")!,
-    part_self_capacitance_f: parseQuantity(v["part-cs-f"] as string | undefined, "part-cs-f", "F", { optional: true }),
-    u_part_self_capacitance_f: parseQuantity(v["part-u-cs-f"] as string | undefined, "part-u-cs-f", "F", { optional: true }),
+    capacitance_f: quantity(v["cap-f"] as string, "cap-f", "F")!,
+    u_capacitance_f: quantity(v["cap-u-f"] as string, "cap-u-f", "F")!,
+    part_self_capacitance_f: quantity(v["part-cs-f"] as string | undefined, "part-cs-f", "F", { optional: true }),
+    u_part_self_capacitance_f: quantity(v["part-u-cs-f"] as string | undefined, "part-u-cs-f", "F", { optional: true }),
   };
+  const repeats = intOption(v.repeats, "repeats", 1, 50);
+  caution();
   const profile = currentProfile(t, store);
   const sim = t.sim;
   const connect = sim
@@ -167,7 +167,7 @@ async function parallel(t: OpenedTester, store: StoreOptions, v: Values): Promis
     }
     : () => waitForEnter(`clip the ${formatSi(cap.capacitance_f, "F", 3)} capacitor across the part, then press Enter`);
   const { entry, result } = await calibrateWithParallelCapacitor(t.client, tank, cap, connect, {
-    repeats: intOption(v.repeats, "repeats", 1, 50), calibration: appliedCalibration(profile, "calibration in progress"),
+    repeats, calibration: appliedCalibration(profile, "calibration in progress"),
     timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress,
   });
   process.stdout.write(`   tank ${tank}: ${formatSi(result.c_f, "F", 5)} ± ${formatSi(2 * result.u_f, "F", 2)} (k = 2); ` +
@@ -177,10 +177,12 @@ async function parallel(t: OpenedTester, store: StoreOptions, v: Values): Promis
   return 0;
 }
 
-async function thresholds(t: OpenedTester, store: StoreOptions, v: Values): Promise<number> {
+async function thresholds(t: OpenedTester, store: StoreOptions, v: Values, caution: () => void): Promise<number> {
+  const captures = intOption(v.captures, "captures", 2, 20);
+  caution();
   const profile = currentProfile(t, store);
   const { entry, fit } = await calibrateThresholds(t.client, {
-    captures: intOption(v.captures, "captures", 2, 20), calibration: appliedCalibration(profile, "calibration in progress"), onProgress: progress,
+    captures, calibration: appliedCalibration(profile, "calibration in progress"), onProgress: progress,
   });
   process.stdout.write(`   thresholds ${formatSi(fit.thresholds_v[0], "V", 4)} / ${formatSi(fit.thresholds_v[1], "V", 4)}: ratio ${fit.ratio.toFixed(3)} ± ${(2 * fit.u_ratio).toFixed(3)}, ` +
     `comparator offset ${(fit.offset_v * 1e3).toFixed(3)} mV ± ${(2 * fit.u_offset_v * 1e3).toFixed(3)} mV (k = 2)\n`);

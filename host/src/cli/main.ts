@@ -10,7 +10,7 @@ import { CliUsageError, reportError } from "./errors.ts";
 import { SAFETY_TEXT, WINDING_RATIO_HELP } from "./safety.ts";
 import { packageVersion } from "../version.ts";
 
-export const USAGE = `henrytick — scopeless inductance meter
+export const USAGE = `henrytick — scopeless inductance meter (measures 1 µH to 1 H)
 
 Usage:
   henrytick measure --sim [SCENARIO]   measure a simulated part (default demo part if none)
@@ -74,7 +74,8 @@ Bench workflows (sort, wind and report each have --help with every option and ex
   henrytick sort --port PATH --nominal 4u7J --trigger enter   one part per Enter key
   henrytick wind --sim --target 22u --turns 30,38     winding advice on a simulated former
   henrytick measure --sim --save c.json && henrytick report c.json   HTML report with plots
-  Values as the trade writes them: 4.7u, 4.7 µH, 4.7e-6, 4u7, 330u, 1m5; tolerances 5%, J, K,
+  Values as the trade writes them: 4.7u, 4.7 µH, 4.7e-6, 4u7, 330u, 1m5; inductor marks 4R7
+  (4.7 µH) and 100 (10 µH); a bare 10 is refused (write 10u or 10m); tolerances 5%, J, K,
   +10%/-5%, 0.5u. --json / --csv print machine-readable results; NO_COLOR=1 turns colour off.
 
 Exit status: 0 reading given or session finished, 1 no reading (the message says why and what

@@ -1,12 +1,11 @@
 // henrytick sort: classify a batch of parts against a tolerance, one part at a time, with a
 // running tally, statistics at the end and an append-only log.
 
-import { formatSi } from "../format/si.ts";
 import { deviceCalibration } from "../calibration/index.ts";
 import { openTester } from "../open-tester.ts";
-import { formatMeasured } from "../values/format-value.ts";
+import { formatSi } from "../format/si.ts";
+import { formatMeasured, formatValue } from "../values/format-value.ts";
 import { parseSeriesName } from "../values/e-series.ts";
-import { parseValue } from "../values/parse-value.ts";
 import { parseTolerance, toleranceLimits, type Tolerance } from "../values/tolerance.ts";
 import { makeBins } from "../workflows/bins.ts";
 import { drawTray, SimTray } from "../workflows/sim-tray.ts";
@@ -14,7 +13,8 @@ import { csvRow, CSV_COLUMNS, SortLog } from "../workflows/sort-log.ts";
 import { runSort, type SortEvent } from "../workflows/sort-runner.ts";
 import { SortSession, type PartRecord } from "../workflows/sort-session.ts";
 import { makeStyle, stdinLines, type Style } from "../workflows/terminal.ts";
-import { intOption, numberOption, optionValue, parse, testerTarget } from "./args.ts";
+import { intOption, numberOption, optionValue, parse, testerTarget, toleranceOption, valueOption } from "./args.ts";
+import { MEASURABLE_RANGE } from "../values/range.ts";
 import { CliUsageError } from "./errors.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
 import { PulseCaution, windingRatioOption } from "./caution.ts";
@@ -101,11 +101,11 @@ export async function runSortCommand(args: string[]): Promise<number> {
     let tray: SimTray | undefined;
     if (tester.sim) {
       const trayValues = values["sim-tray"]
-        ? values["sim-tray"].split(",").map((t) => parseValue(t).value)
+        ? values["sim-tray"].split(",").map((t) => valueOption(t, "sim-tray", "H")!.value)
         : drawTray(session.limits, count ?? 12, ("seed" in target ? target.seed : undefined) ?? 7);
       tray = new SimTray(tester.sim, trayValues);
     }
-    note(`sorting against ${formatSi(spec.nominal_h, "H", 4)} ${spec.tolerance.text}: limits ${formatSi(session.limits.lower, "H", 4)} … ${formatSi(session.limits.upper, "H", 4)}`);
+    note(`sorting against ${formatValue(spec.nominal_h, "H", 4)} ${spec.tolerance.text}: limits ${formatValue(session.limits.lower, "H", 4)} … ${formatValue(session.limits.upper, "H", 4)}`);
     note(trigger === "ring" ? "put a part on the clips; take it off when it has been recorded (Ctrl-C finishes)" : "press Enter to measure the part on the clips, q to finish");
     const limit = resolvePeakLimit(max_peak_v, tester.client.profile.clamp_v, false, { other_winding_ratio });
     if (!limit.ok) throw new CliUsageError(limit.message);
@@ -140,11 +140,10 @@ export async function runSortCommand(args: string[]): Promise<number> {
 
 function sortSpec(values: { nominal?: string; tol?: string; lot?: string; bins?: string; series?: string }) {
   if (!values.nominal) throw new CliUsageError("sort needs --nominal, e.g. --nominal 10u");
-  const nominal = parseValue(values.nominal);
-  if (!(nominal.value > 0)) throw new CliUsageError(`--nominal must be a positive inductance, got "${values.nominal}"`);
-  if (nominal.value > 10 || nominal.value < 1e-8) throw new CliUsageError(`--nominal ${formatSi(nominal.value, "H", 3)} is outside what the tester measures (about 1 µH to 1 H); check the prefix (m = milli, M = mega)`);
+  // Refused up front when the tester cannot measure it: a session would otherwise wait forever.
+  const nominal = valueOption(values.nominal, "nominal", "H", MEASURABLE_RANGE)!;
   let tolerance: Tolerance;
-  if (values.tol) tolerance = parseTolerance(values.tol);
+  if (values.tol) tolerance = toleranceOption(values.tol, "tol");
   else if (nominal.toleranceLetter) tolerance = parseTolerance(nominal.toleranceLetter);
   else throw new CliUsageError("sort needs --tol (5%, J, 0.5u …) or a tolerance letter on the nominal (10uJ)");
   optionValue("tol", () => toleranceLimits(nominal.value, tolerance));
@@ -152,7 +151,7 @@ function sortSpec(values: { nominal?: string; tol?: string; lot?: string; bins?:
     nominal_h: nominal.value,
     tolerance,
     lot: values.lot,
-    bins: values.bins ? makeBins(values.bins.split(",").map((t) => parseValue(t).value)) : undefined,
+    bins: values.bins ? makeBins(values.bins.split(",").map((t) => valueOption(t, "bins", "H")!.value)) : undefined,
     series: values.series ? optionValue("series", () => parseSeriesName(values.series!)) : undefined,
   };
 }
@@ -163,7 +162,7 @@ export function partLine(r: PartRecord, style: Style): string {
   const paint = r.decision === "conforming" ? style.good : r.decision === "nonconforming" ? style.bad : style.unsure;
   const bits = [`#${String(r.part).padStart(3)}`, formatMeasured(r.inductance_h, r.inductance_u_h, "H").padEnd(22), paint(MARK[r.decision]), `p ${r.p_conform.toFixed(3)}`];
   if (r.bin) bits.push(`bin ${r.bin}${r.bin_certain ? "" : " (edge)"}`);
-  if (r.preferred_h !== null) bits.push(`nearest ${formatSi(r.preferred_h, "H", 3)}`);
+  if (r.preferred_h !== null) bits.push(`nearest ${formatValue(r.preferred_h, "H", 3)}`);
   if (r.warnings) bits.push(style.dim(`! ${r.warnings}`));
   return bits.join("  ");
 }
@@ -173,7 +172,7 @@ export function summaryText(session: SortSession, style: Style): string {
   const lot = session.spec.lot ? `, lot ${session.spec.lot}` : "";
   const lines = [
     `── ${stats.n} part${stats.n === 1 ? "" : "s"}${lot}: ${style.good(`${tally.conforming} pass`)}, ${style.bad(`${tally.nonconforming} fail`)}, ${style.unsure(`${tally.inconclusive} unsure`)}`,
-    `   limits       ${formatSi(limits.lower, "H", 4)} … ${formatSi(limits.upper, "H", 4)} (unsure: within U of a limit)`,
+    `   limits       ${formatValue(limits.lower, "H", 4)} … ${formatValue(limits.upper, "H", 4)} (unsure: within U of a limit)`,
   ];
   if (stats.n > 0) lines.push(`   mean         ${formatSi(stats.mean, "H", 4)}, range ${formatSi(stats.min, "H", 4)} … ${formatSi(stats.max, "H", 4)}`);
   if (stats.n >= 2) lines.push(`   spread       s = ${formatSi(stats.sd, "H", 3)} (${((100 * stats.sd) / stats.mean).toFixed(2)} %)`);

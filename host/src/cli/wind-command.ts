@@ -1,18 +1,17 @@
 // henrytick wind: after each reading at a known turn count, how many turns to add or remove to
 // reach the target, from L ∝ N² refined by a fit over the readings so far.
 
-import { formatSi } from "../format/si.ts";
 import { measurePart } from "../measure/measure-part.ts";
 import { buildResult } from "../measure/result.ts";
 import { deviceCalibration } from "../calibration/index.ts";
 import { openTester } from "../open-tester.ts";
-import { formatMeasured } from "../values/format-value.ts";
-import { parseValue } from "../values/parse-value.ts";
-import { parseTolerance, toleranceLimits, type Limits } from "../values/tolerance.ts";
+import { formatMeasured, formatValue } from "../values/format-value.ts";
+import { toleranceLimits, type Limits } from "../values/tolerance.ts";
 import { coilOnFormer, formerTurnRange } from "../workflows/sim-coil.ts";
 import { makeStyle, stdinLines, type Style } from "../workflows/terminal.ts";
 import { windingAdvice, type WindingAdvice, type WindingReading } from "../workflows/winding.ts";
-import { numberOption, optionValue, parse, testerTarget } from "./args.ts";
+import { numberOption, optionValue, parse, testerTarget, toleranceOption, valueOption } from "./args.ts";
+import { MEASURABLE_RANGE } from "../values/range.ts";
 import { CliUsageError } from "./errors.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
 import { PulseCaution, windingRatioOption } from "./caution.ts";
@@ -63,10 +62,9 @@ export async function runWindCommand(args: string[]): Promise<number> {
   if (positionals.length > 0) throw new CliUsageError(`unexpected argument "${positionals[0]}"`);
   if (values.json && values.csv) throw new CliUsageError("use either --json or --csv, not both");
   if (!values.target) throw new CliUsageError("wind needs --target, e.g. --target 22u");
-  const target = parseValue(values.target);
-  if (!(target.value > 0)) throw new CliUsageError(`--target must be a positive inductance, got "${values.target}"`);
+  const target = valueOption(values.target, "target", "H", MEASURABLE_RANGE)!;
   const tolText = values.tol ?? target.toleranceLetter;
-  const limits: Limits | undefined = tolText ? optionValue("tol", () => toleranceLimits(target.value, parseTolerance(tolText))) : undefined;
+  const limits: Limits | undefined = tolText ? optionValue("tol", () => toleranceLimits(target.value, toleranceOption(tolText, "tol"))) : undefined;
   const max_peak_v = numberOption(values["max-peak-v"], "max-peak-v", 0.1, 1000);
   const other_winding_ratio = windingRatioOption(values["winding-ratio"]);
   const listed = values.turns?.split(",").map((t) => turnCount(t.trim()));
@@ -80,7 +78,7 @@ export async function runWindCommand(args: string[]): Promise<number> {
   const readings: WindingReading[] = [];
   let advice: WindingAdvice | null = null;
   try {
-    note(`winding to ${formatSi(target.value, "H", 4)}${limits ? `, done within ${formatSi(limits.lower, "H", 4)} … ${formatSi(limits.upper, "H", 4)}` : ""}`);
+    note(`winding to ${formatValue(target.value, "H", 4)}${limits ? `, done within ${formatValue(limits.lower, "H", 4)} … ${formatValue(limits.upper, "H", 4)}` : ""}`);
     if (cal?.applied) note(`calibration ${cal.path}`);
     const limit = resolvePeakLimit(max_peak_v, tester.client.profile.clamp_v, false, { other_winding_ratio });
     if (!limit.ok) throw new CliUsageError(limit.message);
@@ -134,10 +132,10 @@ export function adviceText(a: WindingAdvice, target_h: number, style: Style): st
   const pct = (100 * l.error_rel).toFixed(l.error_rel === 0 || Math.abs(l.error_rel) >= 0.1 ? 1 : 2);
   const verdict = l.decision === "conforming" ? style.good("  on target") : l.decision === "nonconforming" ? "" : l.decision ? style.unsure("  within U of a limit") : "";
   const change = a.turns_to_change === 0 ? "keep the turns" : a.turns_to_change > 0 ? `add ${a.turns_to_change} turn${a.turns_to_change === 1 ? "" : "s"}` : `remove ${-a.turns_to_change} turn${a.turns_to_change === -1 ? "" : "s"}`;
-  const nb = a.neighbours.map((n) => `${n.turns}: ${formatSi(n.predicted_h, "H", 3)}`).join(", ");
+  const nb = a.neighbours.map((n) => `${n.turns}: ${formatValue(n.predicted_h, "H", 3)}`).join(", ");
   return [
-    `── ${l.turns} turns: ${formatMeasured(l.inductance_h, l.inductance_u_h, "H")}   ${l.error_rel >= 0 ? "+" : ""}${pct} % from ${formatSi(target_h, "H", 4)}${verdict}`,
-    `   next         ${style.bold(change)} → ${a.recommended_turns} turns ≈ ${formatSi(a.predicted_h, "H", 4)}   (${nb})`,
+    `── ${l.turns} turns: ${formatMeasured(l.inductance_h, l.inductance_u_h, "H")}   ${l.error_rel >= 0 ? "+" : ""}${pct} % from ${formatValue(target_h, "H", 4)}${verdict}`,
+    `   next         ${style.bold(change)} → ${a.recommended_turns} turns ≈ ${formatValue(a.predicted_h, "H", 4)}   (${nb})`,
     `   model        L ∝ N^${a.model.exponent.toFixed(2)} from ${a.model.readings} reading${a.model.readings === 1 ? "" : "s"}; target at ${a.turns_for_target.toFixed(1)} ± ${a.turns_for_target_u.toFixed(1)} turns`,
   ].join("\n");
 }

@@ -17,6 +17,7 @@ import { explainFailure, shortedPart, SHORT_MAX_L_H } from "./part-fault.ts";
 import { WarningCode } from "../codes.ts";
 import { ROUGH_PREDICTION_SHARE as ROUGH_MARGIN, volts } from "../ranging/safety.ts";
 import { ReadingProgress, settingInfo } from "./events.ts";
+import { MEASURABLE_L_H, MEASURABLE_TEXT } from "../values/range.ts";
 
 const PROBE_CHARGE_US = 5000;
 const PROBE_QUIET_US = 20000;
@@ -26,7 +27,7 @@ const MAX_STEPS = 4;
 export const MIN_EDGES_AUTO = 20;
 
 /** Largest inductance the probe must stay safe for, henries (the tester's range with margin). */
-export const PROBE_MAX_L_H = 1;
+export const PROBE_MAX_L_H = MEASURABLE_L_H.max;
 
 /**
  * Longest probe charge that keeps the ring below `limit_v` whatever the part, up to
@@ -65,7 +66,7 @@ export async function probePart(client: DeviceClient, progress: ReadingProgress 
   }
   throw new MeasureError(
     "NO_RING",
-    "nothing rang at any drive current: the clips may be open, the part may be a resistor rather than an inductor, or it is far outside 1 µH–1 H; check the connection and measure again",
+    `nothing rang at any drive current: the clips may be open, the part may be a resistor rather than an inductor, or it is far outside ${MEASURABLE_TEXT}; check the connection and measure again`,
   );
 }
 

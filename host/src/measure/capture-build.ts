@@ -32,7 +32,7 @@ export function captureFromDevice(
         ...(tbU !== undefined ? { timebase_u_ppm: tbU } : {}),
       }
       : { source: "nominal (uncalibrated)", tank_calibrated: false, nominal_tank_c_f: nominal, nominal_tick_hz: raw.tick_hz, timebase_ppm: 0 },
-    drive: { supply_v: profile.supply_v, series_ohm: profile.drives[s.drive].ohm },
+    drive: { supply_v: profile.supply_v, series_ohm: profile.drives[s.drive].ohm, clamp_v: profile.clamp_v },
     range: {
       drive_index: s.drive, tank_index: s.tank, charge_us: s.charge_us,
       edge_limit: s.edge_limit, timeout_ms: s.timeout_ms, quiet_us: s.quiet_us,

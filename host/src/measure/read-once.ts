@@ -11,6 +11,7 @@ import { withUnaccountedCapacitance } from "./reading-uncertainty.ts";
 import type { MeasureOptions, Reading } from "./measure-part.ts";
 import { CodedError } from "../coded-error.ts";
 import { ReadingProgress, type MeasurePhase } from "./events.ts";
+import { checkCapturePlausible, checkReadingPlausible, ImplausibleError } from "./plausibility.ts";
 
 export class MeasureError extends CodedError {
   /** The capture that could not be analysed, when the error came from its analysis. */
@@ -41,13 +42,15 @@ export function analyzeCapture(capture: CaptureV1): RingAnalysis {
  */
 export function fitCapture(capture: CaptureV1): { fit: FitState; analysis: RingAnalysis } {
   try {
+    checkCapturePlausible(capture);
     const fit = fitRing(ringInputFromCapture(capture));
     const analysis = withUnaccountedCapacitance(analyzeFit(fit), capture);
+    checkReadingPlausible(capture, analysis);
     // Warnings the reading added when it was taken (automatic ranging's) come back with it.
     if (capture.reading_warnings?.length) analysis.warnings = [...analysis.warnings, ...capture.reading_warnings];
     return { fit, analysis };
   } catch (e) {
-    const m = e instanceof AnalysisError ? new MeasureError(e.code, e.message) : e;
+    const m = e instanceof AnalysisError || e instanceof ImplausibleError ? new MeasureError(e.code, e.message) : e;
     if (m instanceof MeasureError) m.capture ??= capture;
     throw m;
   }

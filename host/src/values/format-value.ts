@@ -40,3 +40,19 @@ export function iecCode(value: number, digits = 2): string {
   const [int, frac = ""] = String(scaled).split(".");
   return `${int}${letter}${frac}`;
 }
+
+/**
+ * A value in a message or a log line: SI prefix, up to `digits` significant digits, trailing
+ * zeros dropped (4.7 µH, 10 µH, 1.0276 pF, 20.16 V). The one formatter for values outside a
+ * measured result (which uses formatMeasured).
+ */
+export function formatValue(value: number, unit: string, digits = 4): string {
+  if (!Number.isFinite(value)) return `${value} ${unit}`.trim();
+  const s = formatSi(value, unit, digits);
+  return s.replace(/^(-?\d+)\.(\d*?)0+(?= )/, (_m, int: string, frac: string) => (frac ? `${int}.${frac}` : int)).trim();
+}
+
+/** A relative figure as a percentage with sensible digits: 0.05 → "5 %", 0.0025 → "0.25 %". */
+export function formatPercent(rel: number, digits = 3): string {
+  return `${Number((rel * 100).toPrecision(digits))} %`;
+}
