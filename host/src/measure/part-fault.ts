@@ -216,10 +216,13 @@ export function judgeReading(r: Reading, profile: TesterLimits): PartFault | nul
  */
 export function explainFailure(e: MeasureError): MeasureError {
   const c = e.capture;
-  if (!c || !isAnalysisFailure(e.code)) return e;
+  // A broken ring can also fit to an amplitude the drive cannot give: with a break in its edges,
+  // the contact is the cause, not the thresholds.
+  const misfit = e.code === "RING_AMPLITUDE_IMPLAUSIBLE";
+  if (!c || !(isAnalysisFailure(e.code) || misfit)) return e;
   const ch = chatterOf(c);
   // A break is the contact's own mark; glitch pairs must be many (a noisy capture has a few).
-  if (ch.half_cycles <= 0 || (ch.breaks === 0 && chatterSigns(ch) < Math.max(CHATTER_MIN_SIGNS, CHATTER_PAIR_RATIO * ch.half_cycles))) return e;
+  if (ch.half_cycles <= 0 || (ch.breaks === 0 && (misfit || chatterSigns(ch) < Math.max(CHATTER_MIN_SIGNS, CHATTER_PAIR_RATIO * ch.half_cycles)))) return e;
   return new PartFaultError(
     "FIXTURE_CHATTER",
     `the fixture chatters: ${chatterDetail(ch)} break the ring up so that it cannot be followed (${e.code}). ${CHATTER_ADVICE}`,
