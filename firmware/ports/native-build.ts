@@ -150,6 +150,21 @@ export function buildCaptureMergeCheck(): string {
   return out;
 }
 
+/**
+ * Builds the board port for the host with its registers modelled
+ * (firmware/ports/host/f411-hostsim.c), so that its capture path runs under test.
+ */
+export function buildBoardHostSim(): string {
+  const gen = generateC();
+  const out = join(NATIVE_DIR, "f411-hostsim");
+  gcc("gcc", [
+    "-O2", "-D_POSIX_C_SOURCE=200809L", "-DHT_F411_HOSTSIM", ...generatedFlags(), ...INCLUDES(gen), "-I", join(PORTS, "common"), "-I", join(PORTS, "f411"),
+    "-o", out, join(gen, "henrytick.c"), join(PORTS, "runtime", "henrytick-rt.c"), ...CAPTURE_MERGE_SOURCES,
+    join(PORTS, "host", "f411-hostsim.c"),
+  ]);
+  return out;
+}
+
 /** A recorded ring compiled into the board port's QEMU variant: cm_replay's arguments (merge-replay.h). */
 export interface MergeTable {
   /** Entries in the firmware's format, tick << 1 | level, in time order. */

@@ -31,14 +31,14 @@ export type { RingInput, RingAnalysis } from "./analysis/index.ts";
 export { loadScenario, listScenarios } from "./sim/scenario.ts";
 export type { Scenario, PartModel } from "./sim/scenario.ts";
 export {
-  CalibrationError, validateProfile, emptyProfile, loadProfile, saveProfile, restorePreviousProfile, configDir, profilePaths,
+  CalibrationError, CALIBRATION_METHODS, validateProfile, emptyProfile, loadProfile, saveProfile, restorePreviousProfile, configDir, profilePaths,
   appliedCalibration, deviceCalibration, calibrateWithReference, calibrateWithParallelCapacitor, calibrateThresholds,
   measureTimebase, measureSelfCapacitance,
 } from "./calibration/index.ts";
 // The methods behind them (GUM propagation, Monte Carlo, the two-capacitance solution, budgets)
 // are the henrytick/calibration subpath (calibration/index.ts).
 export type {
-  CalibrationProfile, TankEntry, StoreOptions, ReferenceInductor, ParallelCapacitor, TimebaseResult,
+  CalibrationProfile, CalibrationMethod, AppliedCalibration, TankEntry, StoreOptions, ReferenceInductor, ParallelCapacitor, TimebaseResult,
   SelfCapacitanceReading, UncertaintyBudget, BudgetLine, DeviceCalibration,
 } from "./calibration/index.ts";
 // Bench workflows: values as the trade writes them, conformity decisions, sorting, winding,

@@ -76,6 +76,13 @@ static volatile uint8_t rx_ring[RX_RING];
 static volatile uint32_t rx_head, rx_tail;
 static volatile uint32_t rx_lost;
 
+#ifdef HT_F411_HOSTSIM
+/* Host test build (firmware/ports/host/f411-hostsim.c): no interrupts to mask. */
+static inline void irq_off(void) {}
+static inline void irq_on(void) {}
+static inline uint32_t merge_lock(void) { return 0; }
+static inline void merge_unlock(uint32_t old) { (void)old; }
+#else
 static inline void irq_off(void) { __asm volatile("cpsid i" ::: "memory"); }
 static inline void irq_on(void) { __asm volatile("cpsie i" ::: "memory"); }
 /* Masks the DMA and timer interrupts (priority PRIO_DMA and below), not the UART's. */
@@ -86,6 +93,7 @@ static inline uint32_t merge_lock(void) {
   return old;
 }
 static inline void merge_unlock(uint32_t old) { __asm volatile("msr basepri, %0" ::"r"(old) : "memory"); }
+#endif
 
 static void iwdg_refresh(void) { IWDG_KR = 0xAAAAu; }
 
@@ -120,9 +128,25 @@ static uint32_t dma_events(uint32_t flags) {
   return ((flags & DMA_FLAG_HT) ? 1u : 0u) + ((flags & DMA_FLAG_TC) ? 1u : 0u);
 }
 
+/* Counts the streams' half/full-transfer events that have happened (and clears their flags), so
+   the event counts are current whoever merges: an interrupt, capture_count or stop. Both flags of
+   a stream at once (its interrupt held off past another half) count as two events; a stream a
+   whole ring further ahead shows as a lapped ring in the merge. */
+static void take_dma_events(void) {
+  uint32_t hisr = DMA1_HISR;
+  uint32_t f5 = (hisr >> DMA_HI_SHIFT_S5) & DMA_FLAGS_ALL;
+  uint32_t f6 = (hisr >> DMA_HI_SHIFT_S6) & DMA_FLAGS_ALL;
+  if (!(f5 | f6)) return;
+  DMA1_HIFCR = (f5 << DMA_HI_SHIFT_S5) | (f6 << DMA_HI_SHIFT_S6);
+  halves_rise += dma_events(f5);
+  halves_fall += dma_events(f6);
+  if ((f5 | f6) & (DMA_FLAG_TE | DMA_FLAG_DME)) cm_port_fault(&merge);
+}
+
 /* Reads the streams' positions and merges what has arrived. Runs with the DMA interrupts masked
    (in their handlers, or under merge_lock). */
 static void merge_now(int final) {
+  take_dma_events();
   if (TIM2_SR & (TIM_SR_CC1OF | TIM_SR_CC2OF)) {
     /* A capture register latched again before the DMA had read it: an edge is lost. */
     TIM2_SR = ~(TIM_SR_CC1OF | TIM_SR_CC2OF);
@@ -134,19 +158,16 @@ static void merge_now(int final) {
   cm_merge_step(&merge, fall, rise, horizon, final);
 }
 
-static void dma_irq(uint32_t shift, volatile uint32_t* halves) {
-  uint32_t flags = (DMA1_HISR >> shift) & DMA_FLAGS_ALL;
-  DMA1_HIFCR = flags << shift;
-  if (!capturing) return;
-  if (flags & (DMA_FLAG_TE | DMA_FLAG_DME)) cm_port_fault(&merge);
-  /* Both flags at once: this interrupt was held off past another half. Both count; a stream
-     further behind shows as a lapped ring in the merge. */
-  *halves += dma_events(flags);
-  merge_now(0);
+static void dma_irq(void) {
+  if (capturing) {
+    merge_now(0); /* takes both streams' events */
+  } else {
+    DMA1_HIFCR = (DMA_FLAGS_ALL << DMA_HI_SHIFT_S5) | (DMA_FLAGS_ALL << DMA_HI_SHIFT_S6);
+  }
 }
 
-void DMA1_Stream5_IRQHandler(void) { dma_irq(DMA_HI_SHIFT_S5, &halves_rise); }
-void DMA1_Stream6_IRQHandler(void) { dma_irq(DMA_HI_SHIFT_S6, &halves_fall); }
+void DMA1_Stream5_IRQHandler(void) { dma_irq(); }
+void DMA1_Stream6_IRQHandler(void) { dma_irq(); }
 
 /* Stops the capture hardware; with `merge_rest`, takes in what it wrote last. */
 static void capture_off(int merge_rest) {
@@ -158,15 +179,8 @@ static void capture_off(int merge_rest) {
   }
   if (!capturing) return;
   uint32_t lock = merge_lock();
-  uint32_t f5 = (DMA1_HISR >> DMA_HI_SHIFT_S5) & DMA_FLAGS_ALL;
-  uint32_t f6 = (DMA1_HISR >> DMA_HI_SHIFT_S6) & DMA_FLAGS_ALL;
-  DMA1_HIFCR = (f5 << DMA_HI_SHIFT_S5) | (f6 << DMA_HI_SHIFT_S6);
-  halves_rise += dma_events(f5);
-  halves_fall += dma_events(f6);
-  if (merge_rest) {
-    if ((f5 | f6) & (DMA_FLAG_TE | DMA_FLAG_DME)) cm_port_fault(&merge);
-    merge_now(1);
-  }
+  if (merge_rest) merge_now(1);
+  DMA1_HIFCR = (DMA_FLAGS_ALL << DMA_HI_SHIFT_S5) | (DMA_FLAGS_ALL << DMA_HI_SHIFT_S6);
   capturing = 0;
   merge_unlock(lock);
 }
@@ -266,7 +280,7 @@ void Z_halZ_uart_write(struct Z_hal_instance_t* h, u32 ptr, u32 len) {
 
 u32 Z_halZ_device_id(struct Z_hal_instance_t* h) {
   (void)h;
-#ifdef HT_F411_QEMU
+#if defined(HT_F411_QEMU) || defined(HT_F411_HOSTSIM)
   /* QEMU's model has no unique-ID area; a fixed id stands in. */
   static const uint32_t uid[3] = {0x00454d55u, 0x51454d55u, 0x31313446u};
 #else
@@ -323,7 +337,7 @@ void TIM2_IRQHandler(void) {
 #define MAX_SLEEP_TICKS (100u * 64000u)
 
 static int clock_init(void) {
-#ifdef HT_F411_QEMU
+#if defined(HT_F411_QEMU) || defined(HT_F411_HOSTSIM)
   return 1; /* QEMU has no clock tree to program */
 #else
   RCC_CR |= RCC_CR_HSEON;
@@ -402,7 +416,7 @@ static void board_init(void) {
 
 /* Sleeps until `deadline` (a TIM2 value) or the next interrupt, whichever is first. */
 static void sleep_until(uint32_t deadline) {
-#ifdef HT_F411_QEMU
+#if defined(HT_F411_QEMU) || defined(HT_F411_HOSTSIM)
   (void)deadline; /* QEMU's timer raises no compare interrupt to wake on: poll */
 #else
   irq_off();

@@ -8,7 +8,13 @@
 
 #include <stdint.h>
 
+#ifdef HT_F411_HOSTSIM
+/* Host test build: registers are words in the test driver's model (f411-hostsim.c). */
+volatile uint32_t* ht_sim_reg(uint32_t addr);
+#define REG(a) (*ht_sim_reg((uint32_t)(a)))
+#else
 #define REG(a) (*(volatile uint32_t*)(uintptr_t)(a))
+#endif
 
 /* RCC (RM0383 §6.3) */
 #define RCC_BASE 0x40023800u
@@ -153,7 +159,11 @@
 #define SYST_RVR REG(0xE000E014u)
 #define SYST_CVR REG(0xE000E018u)
 #define NVIC_ISER(n) REG(0xE000E100u + 4u * (n))
+#ifdef HT_F411_HOSTSIM
+#define NVIC_IPR_BYTE(irq) (*(volatile uint8_t*)ht_sim_reg(0xE000E400u + 4u * (irq)))
+#else
 #define NVIC_IPR_BYTE(irq) (*(volatile uint8_t*)(uintptr_t)(0xE000E400u + (irq)))
+#endif
 
 /* Interrupt numbers (RM0383 §10.2, vector table) */
 #define IRQ_DMA1_STREAM5 16u

@@ -1,14 +1,14 @@
-// From a stored profile to what a measurement applies (AppliedCalibration, measure/), and what
+// From a stored profile to what a measurement applies (AppliedCalibration, applied.ts), and what
 // the uncertainty budget should say about the timebase. Pure.
 
 import type { AppliedCalibration } from "./applied.ts";
 import { CalibrationError } from "./errors.ts";
-import type { CalibrationProfile, TankEntry } from "./profile-schema.ts";
+import type { CalibrationMethod, CalibrationProfile, TankEntry } from "./profile-schema.ts";
 import { MAX_PROFILE_INDEX } from "./profile-store.ts";
 import type { TimebaseKnowledge } from "./uncertainty-budget.ts";
 
 /** Methods whose capacitance is 1/(w^2 L_ref): they carry the timebase error in force at the time. */
-const TIMEBASE_BOUND_METHODS = new Set(["reference-inductor"]);
+const TIMEBASE_BOUND_METHODS = new Set<CalibrationMethod>(["reference-inductor"]);
 
 /**
  * Allowance for the crystal moving between calibration and use when a tank was calibrated on

@@ -2,8 +2,9 @@
 // self-capacitance method and the uncertainty budget (JCGM 100:2008, checked by JCGM 101:2008).
 
 export { CalibrationError, CALIBRATION_CODES } from "./errors.ts";
-export { PROFILE_FORMAT, PROFILE_VERSION, emptyProfile, validateProfile } from "./profile-schema.ts";
-export type { CalibrationProfile, TankEntry, ThresholdEntry, TimebaseEntry, Provenance } from "./profile-schema.ts";
+export { PROFILE_FORMAT, PROFILE_VERSION, CALIBRATION_METHODS, emptyProfile, validateProfile } from "./profile-schema.ts";
+export type { CalibrationProfile, CalibrationMethod, TankEntry, ThresholdEntry, TimebaseEntry, Provenance } from "./profile-schema.ts";
+export type { AppliedCalibration } from "./applied.ts";
 export { configDir, profilePaths, loadProfile, saveProfile, readProfileFile, restorePreviousProfile } from "./profile-store.ts";
 export type { StoreOptions } from "./profile-store.ts";
 export { appliedCalibration, tankCapacitanceNow, timebaseKnowledge, CRYSTAL_DRIFT_PPM } from "./apply-profile.ts";
