@@ -5,7 +5,7 @@ export { CalibrationError, CALIBRATION_CODES } from "./errors.ts";
 export { PROFILE_FORMAT, PROFILE_VERSION, CALIBRATION_METHODS, emptyProfile, validateProfile } from "./profile-schema.ts";
 export type { CalibrationProfile, CalibrationMethod, TankEntry, ThresholdEntry, TimebaseEntry, Provenance } from "./profile-schema.ts";
 export type { AppliedCalibration } from "./applied.ts";
-export { configDir, profilePaths, loadProfile, saveProfile, readProfileFile, restorePreviousProfile } from "./profile-store.ts";
+export { configDir, profilePaths, loadProfile, saveProfile, readProfileFile, restorePreviousProfile, storeFor, completePendingRestore } from "./profile-store.ts";
 export type { StoreOptions } from "./profile-store.ts";
 export { appliedCalibration, tankCapacitanceNow, timebaseKnowledge, CRYSTAL_DRIFT_PPM } from "./apply-profile.ts";
 export { propagate, sensitivities, groupContributions, rectangularU } from "./gum-propagation.ts";

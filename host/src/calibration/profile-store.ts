@@ -4,9 +4,9 @@
 // fs/atomic-write.ts, so a reader sees the old file or the new one, never half of either; the
 // profile being replaced is kept as the "previous" file.
 
-import { existsSync, mkdirSync, readFileSync, renameSync } from "node:fs";
+import { closeSync, existsSync, fsyncSync, mkdirSync, openSync, readFileSync, renameSync, unlinkSync } from "node:fs";
 import { homedir } from "node:os";
-import { join } from "node:path";
+import { dirname, join } from "node:path";
 import { writeFileAtomic } from "../fs/atomic-write.ts";
 import { CalibrationError } from "./errors.ts";
 import type { CalibrationProfile } from "./profile-schema.ts";
@@ -16,24 +16,40 @@ export interface StoreOptions {
   /** Directory to use instead of the environment's; tests always pass one. */
   dir?: string;
   env?: Record<string, string | undefined>;
+  /**
+   * The profiles of a simulated tester: kept apart from real testers' in the default folder
+   * (its `simulated` subfolder), so a demo never touches the user's real store.
+   */
+  simulated?: boolean;
 }
 
+/** Where the CLI keeps a tester's profiles: an explicit folder as given, else the default, with simulated testers apart. */
+export function storeFor(o: { configDir?: string; simulated: boolean }): StoreOptions {
+  return { ...(o.configDir ? { dir: o.configDir } : {}), simulated: o.simulated };
+}
+
+/**
+ * The profile folder: `dir` or $HENRYTICK_CONFIG_DIR as given (an explicit choice), else
+ * $XDG_CONFIG_HOME/henrytick or ~/.config/henrytick, and for a simulated tester its
+ * `simulated` subfolder.
+ */
 export function configDir(opts: StoreOptions = {}): string {
   if (opts.dir) return opts.dir;
   const env = opts.env ?? process.env;
   if (env.HENRYTICK_CONFIG_DIR) return env.HENRYTICK_CONFIG_DIR;
   // The XDG spec says a relative XDG_CONFIG_HOME is invalid and must be ignored.
   const xdg = env.XDG_CONFIG_HOME && env.XDG_CONFIG_HOME.startsWith("/") ? env.XDG_CONFIG_HOME : join(env.HOME || homedir(), ".config");
-  return join(xdg, "henrytick");
+  return opts.simulated ? join(xdg, "henrytick", "simulated") : join(xdg, "henrytick");
 }
 
-export function profilePaths(device_id: string, opts: StoreOptions = {}): { current: string; previous: string; rejected: string } {
+export function profilePaths(device_id: string, opts: StoreOptions = {}): { current: string; previous: string; rejected: string; journal: string } {
   const safe = device_id.replace(/[^A-Za-z0-9_-]/g, "_");
   const dir = configDir(opts);
   return {
     current: join(dir, `calibration-${safe}.json`),
     previous: join(dir, `calibration-${safe}.previous.json`),
     rejected: join(dir, `calibration-${safe}.rejected.json`),
+    journal: join(dir, `calibration-${safe}.restore-journal.json`),
   };
 }
 
@@ -80,6 +96,7 @@ export function readProfileFile(path: string): CalibrationProfile | null {
 
 /** The tester's current profile, or null if it was never calibrated. Throws if the file is bad. */
 export function loadProfile(device_id: string, opts: StoreOptions = {}): CalibrationProfile | null {
+  completePendingRestore(device_id, opts);
   const p = readProfileFile(profilePaths(device_id, opts).current);
   if (p && p.device_id !== device_id) {
     throw new CalibrationError("PROFILE_WRONG_DEVICE", `the profile stored for tester ${device_id} says it belongs to ${p.device_id}; calibrate this tester again`);
@@ -99,6 +116,7 @@ export function saveProfile(profile: CalibrationProfile, opts: StoreOptions = {}
   const checked = checkIndices(validateProfile(JSON.parse(JSON.stringify(profile))), ""); // never write what we would refuse to read
   const paths = profilePaths(checked.device_id, opts);
   mkdirSync(configDir(opts), { recursive: true });
+  completePendingRestore(checked.device_id, opts);
   let previousKept = false;
   if (existsSync(paths.current)) {
     let old: CalibrationProfile | null = null;
@@ -116,8 +134,15 @@ export function saveProfile(profile: CalibrationProfile, opts: StoreOptions = {}
   return { path: paths.current, previous_kept: previousKept || existsSync(paths.previous) };
 }
 
-/** Makes the previous profile current again; the replaced one (if valid) becomes the previous. */
+/**
+ * Makes the previous profile current again; the replaced one (if valid) becomes the previous.
+ * Two files change, so the swap is journalled: both new contents go first into one journal file
+ * (written atomically), then each file is replaced, then the journal is removed. A restore killed
+ * at any point is finished by the next load, save or restore (completePendingRestore): the
+ * profile being replaced is never lost, and current and previous never end up the same file.
+ */
 export function restorePreviousProfile(device_id: string, opts: StoreOptions = {}): CalibrationProfile {
+  completePendingRestore(device_id, opts);
   const paths = profilePaths(device_id, opts);
   const prev = readProfileFile(paths.previous);
   if (!prev) throw new CalibrationError("NO_PREVIOUS", `no previous calibration profile is kept for tester ${device_id} in ${configDir(opts)}; calibrate it`);
@@ -127,7 +152,64 @@ export function restorePreviousProfile(device_id: string, opts: StoreOptions = {
   } catch {
     renameSync(paths.current, paths.rejected);
   }
-  writeAtomically(paths.current, JSON.stringify(prev, null, 2) + "\n");
-  if (cur) writeAtomically(paths.previous, JSON.stringify(cur, null, 2) + "\n");
+  const journal: RestoreJournal = { format: JOURNAL_FORMAT, device_id, current: prev, previous: cur };
+  writeAtomically(paths.journal, JSON.stringify(journal) + "\n");
+  applyJournal(journal, paths);
   return prev;
+}
+
+const JOURNAL_FORMAT = "henrytick-restore-journal";
+
+interface RestoreJournal {
+  format: typeof JOURNAL_FORMAT;
+  device_id: string;
+  current: CalibrationProfile;
+  previous: CalibrationProfile | null;
+}
+
+function applyJournal(j: RestoreJournal, paths: ReturnType<typeof profilePaths>): void {
+  writeAtomically(paths.current, JSON.stringify(j.current, null, 2) + "\n");
+  if (j.previous) writeAtomically(paths.previous, JSON.stringify(j.previous, null, 2) + "\n");
+  unlinkSync(paths.journal);
+  fsyncFolderOf(paths.journal);
+}
+
+function fsyncFolderOf(path: string): void {
+  const fd = openSync(dirname(path), "r");
+  try {
+    fsyncSync(fd);
+  } catch {
+    // a file system that cannot flush a folder: the unlink stands anyway
+  } finally {
+    closeSync(fd);
+  }
+}
+
+/**
+ * Finishes a restore that was interrupted (its journal is still there): writes both files from the
+ * journal and removes it. A journal that cannot be read was never complete (it is written
+ * atomically), so the files were not touched yet: it is removed. Returns whether one was found.
+ */
+export function completePendingRestore(device_id: string, opts: StoreOptions = {}): boolean {
+  const paths = profilePaths(device_id, opts);
+  if (!existsSync(paths.journal)) return false;
+  let j: RestoreJournal | null = null;
+  try {
+    const raw = JSON.parse(readFileSync(paths.journal, "utf8")) as Partial<RestoreJournal>;
+    if (raw.format === JOURNAL_FORMAT && raw.device_id === device_id && raw.current) {
+      j = {
+        format: JOURNAL_FORMAT, device_id,
+        current: checkIndices(validateProfile(raw.current), "journal: "),
+        previous: raw.previous ? checkIndices(validateProfile(raw.previous), "journal: ") : null,
+      };
+    }
+  } catch {
+    j = null;
+  }
+  if (j) applyJournal(j, paths);
+  else {
+    unlinkSync(paths.journal);
+    fsyncFolderOf(paths.journal);
+  }
+  return true;
 }

@@ -7,7 +7,7 @@ import {
   CalibrationError, appliedCalibration, calibrateThresholds, calibrateWithParallelCapacitor, calibrateWithReference,
   emptyProfile, loadProfile, profilePaths, restorePreviousProfile, saveProfile, testerTickCounter, hostClock, measureTimebase, MAX_READ_SPACING_S,
 } from "../calibration/index.ts";
-import type { StoreOptions } from "../calibration/index.ts";
+import { storeFor, type StoreOptions } from "../calibration/index.ts";
 import { formatSi } from "../format/si.ts";
 import type { OpenedTester } from "../open-tester.ts";
 import { openTester } from "../open-tester.ts";
@@ -59,8 +59,8 @@ async function withTester(args: string[], extra: Record<string, { type: "string"
   const { values, positionals } = parse(args, { ...COMMON, ...extra });
   const v = values as Values;
   const target = testerTarget(v as { sim?: boolean; port?: string; seed?: string }, positionals);
-  const store: StoreOptions = v["config-dir"] ? { dir: v["config-dir"] as string } : {};
   const tester = await openTester(target);
+  const store: StoreOptions = storeFor({ configDir: v["config-dir"] as string | undefined, simulated: tester.sim !== undefined });
   try {
     let given = !pulses;
     const caution = () => {

@@ -9,7 +9,7 @@ import { CliUsageError, reportError } from "./errors.ts";
 import { renderReading } from "./render.ts";
 import { csvHeader, csvRow } from "./result-csv.ts";
 import { runWatch, WATCH_OPTIONS } from "./measure-watch.ts";
-import { CalibrationError, deviceCalibration, measureSelfCapacitance, singleTankBudget, timebaseKnowledge } from "../calibration/index.ts";
+import { CalibrationError, deviceCalibration, measureSelfCapacitance, singleTankBudget, storeFor, timebaseKnowledge } from "../calibration/index.ts";
 import { renderBudget, renderSelfCapacitance } from "./render.ts";
 import { otherWindingPeakV, resolvePeakLimit, volts } from "../ranging/safety.ts";
 import { PulseCaution, windingRatioOption } from "./caution.ts";
@@ -62,7 +62,7 @@ export async function runMeasure(args: string[]): Promise<number> {
     caution.start();
     const onBeforePulse = caution.beforePulse;
     // The tester's calibration profile applies to every reading unless --uncalibrated says not.
-    const cal = values.uncalibrated ? null : deviceCalibration(tester.client, values["config-dir"] ? { dir: values["config-dir"] } : {});
+    const cal = values.uncalibrated ? null : deviceCalibration(tester.client, storeFor({ configDir: values["config-dir"], simulated: tester.sim !== undefined }));
     const calibration = cal?.applied;
     if (cal?.applied) progress(`calibration ${cal.path}`);
     if (values.watch) return await runWatch(tester, values, { drive, tank, charge_us, max_peak_v, hazardous_ok, other_winding_ratio, onBeforePulse, label, calibration }, label ?? "part on the clips");

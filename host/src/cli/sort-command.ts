@@ -1,7 +1,7 @@
 // henrytick sort: classify a batch of parts against a tolerance, one part at a time, with a
 // running tally, statistics at the end and an append-only log.
 
-import { deviceCalibration } from "../calibration/index.ts";
+import { deviceCalibration, storeFor } from "../calibration/index.ts";
 import { openTester } from "../open-tester.ts";
 import { formatSi } from "../format/si.ts";
 import { formatMeasured, formatValue } from "../values/format-value.ts";
@@ -96,7 +96,7 @@ export async function runSortCommand(args: string[]): Promise<number> {
   process.on("SIGINT", onSigint);
   try {
     // The tester's calibration profile applies as it does for "measure" (smaller U, fewer unsure parts).
-    const cal = values.uncalibrated ? null : deviceCalibration(tester.client, values["config-dir"] ? { dir: values["config-dir"] } : {});
+    const cal = values.uncalibrated ? null : deviceCalibration(tester.client, storeFor({ configDir: values["config-dir"], simulated: tester.sim !== undefined }));
     note(cal?.applied ? `calibration ${cal.path}` : "uncalibrated: nominal tank values (henrytick calibrate … makes U smaller)");
     let tray: SimTray | undefined;
     if (tester.sim) {

@@ -3,7 +3,7 @@
 
 import { measurePart } from "../measure/measure-part.ts";
 import { buildResult } from "../measure/result.ts";
-import { deviceCalibration } from "../calibration/index.ts";
+import { deviceCalibration, storeFor } from "../calibration/index.ts";
 import { openTester } from "../open-tester.ts";
 import { formatMeasured, formatValue } from "../values/format-value.ts";
 import { toleranceLimits, type Limits } from "../values/tolerance.ts";
@@ -74,7 +74,7 @@ export async function runWindCommand(args: string[]): Promise<number> {
   const note = (m: string) => process.stderr.write(`   ${m}\n`);
   const tester = await openTester(testerAt);
   const range = formerTurnRange();
-  const cal = values.uncalibrated ? null : deviceCalibration(tester.client, values["config-dir"] ? { dir: values["config-dir"] } : {});
+  const cal = values.uncalibrated ? null : deviceCalibration(tester.client, storeFor({ configDir: values["config-dir"], simulated: tester.sim !== undefined }));
   const readings: WindingReading[] = [];
   let advice: WindingAdvice | null = null;
   try {
