@@ -199,15 +199,16 @@ async function thresholds(t: OpenedTester, store: StoreOptions, v: Values, cauti
   return 0;
 }
 
-async function skew(t: OpenedTester, store: StoreOptions, v: Values): Promise<number> {
+async function skew(t: OpenedTester, store: StoreOptions, v: Values, caution: () => void): Promise<number> {
   const profile = currentProfile(t, store);
   const tanks = v.tanks === undefined ? undefined : String(v.tanks).split(",").map((x) => intOption(x, "tanks", 0, t.client.profile.tanks.length - 1)!);
+  caution();
   const { entry, fit } = await calibrateSkew(t.client, {
     captures: intOption(v.captures, "captures", 1, 20), tanks, calibration: appliedCalibration(profile, "calibration in progress"), onProgress: progress,
   });
-  process.stdout.write(`   comparator skew (rise minus fall delay) ${(fit.skew_s * 1e9).toFixed(2)} ns ± ${(2 * fit.u_skew_s * 1e9).toFixed(2)} ns (k = 2) from ${fit.rings.length} rings\n`);
+  say(`   comparator skew (rise minus fall delay) ${(fit.skew_s * 1e9).toFixed(2)} ns ± ${(2 * fit.u_skew_s * 1e9).toFixed(2)} ns (k = 2) from ${fit.rings.length} rings\n`);
   profile.skew = entry;
-  commit(profile, store);
+  commit(profile, store, entry);
   return 0;
 }
 

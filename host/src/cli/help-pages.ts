@@ -116,6 +116,7 @@ Usage:
   reference    a reference inductor on the clips → each tank's capacitance
   parallel     any coil on the clips, rung without and with a known capacitor → one tank
   thresholds   a high-Q coil on the clips → the comparator threshold ratio
+  skew         one coil rung on two tanks → the comparator's rise/fall delay skew
   timebase     the tester's crystal against this computer's clock, or an entered counter reading
   restore      make the previous profile current again
 
@@ -176,6 +177,14 @@ Usage:
 
 Examples:
   henrytick calibrate thresholds --sim
+`,
+  "calibrate skew": `henrytick calibrate skew — the comparator's rise/fall delay skew from one coil on two tanks
+
+Usage:
+  henrytick calibrate skew (--sim | --port PATH) [--tanks A,B] [--captures N] [--json]
+
+Examples:
+  henrytick calibrate skew --sim
 `,
   "calibrate timebase": `henrytick calibrate timebase — the tester's crystal error
 
