@@ -50,6 +50,18 @@ quit 0
 }
 
 export function runSpice(netlist: string, charge_s: number): SpiceRun {
+  const cols = runSpiceColumns(netlist);
+  const t = new Float64Array(cols.length);
+  const v = new Float64Array(cols.length);
+  cols.forEach((row, i) => {
+    t[i] = row[0] - charge_s;
+    v[i] = row[1];
+  });
+  return { t_s: t, v_v: v };
+}
+
+/** The rows of the netlist's `wrdata` record as numbers (for several vectors: t, v1, t, v2, ...). */
+export function runSpiceColumns(netlist: string): number[][] {
   const dir = mkdtempSync(join(tmpdir(), "henrytick-spice-"));
   try {
     const out = join(dir, "out.txt");
@@ -63,15 +75,7 @@ export function runSpice(netlist: string, charge_s: number): SpiceRun {
     } catch {
       throw new Error(`ngspice produced no data for:\n${netlist}`);
     }
-    const rows = text.trim().split("\n");
-    const t = new Float64Array(rows.length);
-    const v = new Float64Array(rows.length);
-    rows.forEach((row, i) => {
-      const [a, b] = row.trim().split(/\s+/).map(Number);
-      t[i] = a - charge_s;
-      v[i] = b;
-    });
-    return { t_s: t, v_v: v };
+    return text.trim().split("\n").map((row) => row.trim().split(/\s+/).map(Number));
   } finally {
     rmSync(dir, { recursive: true, force: true });
   }
@@ -182,13 +186,13 @@ export function ringCircuit(p: SpiceRingPart): { w0: number; alpha: number } {
   return { w0: Math.sqrt(w0sq), alpha: p.rs_ohm / (2 * p.l_h) + gp / (2 * p.c_f) };
 }
 
-/** ngspice transient of a §1 ring, step 1/2000 of a period, until it is well below `floor_v`. */
-export function spiceRing(p: SpiceRingPart, floor_v = 0.004, max_periods = 4000): SpiceRun {
+/** ngspice transient of a §1 ring, `steps` per period (default 2000), until it is well below `floor_v`. */
+export function spiceRing(p: SpiceRingPart, floor_v = 0.004, max_periods = 4000, steps = 2000): SpiceRun {
   const { w0, alpha } = ringCircuit(p);
   const period = (2 * Math.PI) / w0;
   const a0 = p.i0_a / (p.c_f * w0);
   const stop = Math.min(Math.log(a0 / floor_v) / alpha, max_periods * period);
-  return runSpice(ringNetlist(p, period / 2000, stop), 0);
+  return runSpice(ringNetlist(p, period / steps, stop), 0);
 }
 
 /**
