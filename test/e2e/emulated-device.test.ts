@@ -162,3 +162,12 @@ describe.skipIf(!canEmulate)(`the emulated STM32F405 with a broken front-end lin
     if (kind === "corrupt") expect(d.edges.stats.bytes_out).toBeGreaterThan(0);
   }, 120_000);
 });
+
+describe("henrytick sim-device --emulated usage", () => {
+  it("refuses a core it does not emulate, with exit status 2 and no path", async () => {
+    const r = await cli(["sim-device", "--emulated", "m7"]);
+    expect(r.status).toBe(2);
+    expect(r.stdout).toBe("");
+    expect(r.stderr).toMatch(/--emulated must be one of m0, m4/);
+  });
+});
