@@ -1,7 +1,7 @@
 // Firmware budgets: release wasm size, wire bytes per edge of typical captures, and the native
-// C build's section sizes for Cortex-M0+ (armv6m) and Cortex-M4 (armv7em), and the STM32F411CE
-// board image's flash and RAM and its capture merge's cost on the emulated core; the C build on the emulated STM32F405 (QEMU): its readings against
-// --sim on both cores, its pace and its stack.
+// C build's section sizes for Cortex-M0+ (armv6m) and Cortex-M4 (armv7em); the STM32F411CE
+// board image's flash and RAM and its capture merge's cost on the emulated core; the C build on
+// the emulated STM32F405 (QEMU): its readings against --sim on both cores, its pace and its stack.
 
 import { statSync } from "node:fs";
 import { firmwareWasmPath } from "../../../host/src/sim/firmware-image.ts";
