@@ -19,6 +19,11 @@ describe("uncalibrated readings on the smallest tank", () => {
     expect(Math.max(...rows.map((r) => r.error_in_u))).toBeLessThan(1.5);
   });
 
+  it("on the 10 nF tank too: at least 93 % of 20 boards and parts", async () => {
+    const { coverage } = await uncalibratedSmallTankCoverage(20, 101, 1);
+    expect(coverage).toBeGreaterThanOrEqual(0.93);
+  });
+
   it("drawer-choke-330u on drive 2, tank 0: U covers L (C + Cs)/C and agrees with the advice's u(L)", async () => {
     const t = await openTester({ scenario: "drawer-choke-330u" });
     try {
