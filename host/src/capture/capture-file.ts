@@ -38,7 +38,11 @@ export interface CaptureV1 {
   reading_warnings?: Warning[];
   meta?: { label?: string; time?: string; end_reason?: string; [k: string]: unknown };
   /** Which values the capture's tank_c_f, thresholds_v and tick_hz came from. */
-  calibration?: { source: string; tank_calibrated: boolean; nominal_tank_c_f: number; nominal_tick_hz: number; timebase_ppm: number; timebase_u_ppm?: number };
+  calibration?: {
+    source: string; tank_calibrated: boolean; nominal_tank_c_f: number; nominal_tick_hz: number; timebase_ppm: number; timebase_u_ppm?: number;
+    /** The leads' series inductance subtracted from the ring's (calibrate short), and its standard uncertainty. */
+    lead_inductance_h?: number; lead_u_h?: number;
+  };
   [extra: string]: unknown;
 }
 

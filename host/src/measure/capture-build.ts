@@ -30,6 +30,7 @@ export function captureFromDevice(
       ? {
         source: calibration.source, tank_calibrated: calTank !== undefined, nominal_tank_c_f: nominal, nominal_tick_hz: raw.tick_hz, timebase_ppm: ppm,
         ...(tbU !== undefined ? { timebase_u_ppm: tbU } : {}),
+        ...(calibration.leads ? { lead_inductance_h: calibration.leads.l_h, lead_u_h: calibration.leads.u_h } : {}),
       }
       : { source: "nominal (uncalibrated)", tank_calibrated: false, nominal_tank_c_f: nominal, nominal_tick_hz: raw.tick_hz, timebase_ppm: 0 },
     drive: { supply_v: profile.supply_v, series_ohm: profile.drives[s.drive].ohm, clamp_v: profile.clamp_v },
