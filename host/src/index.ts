@@ -25,21 +25,21 @@ export type { ResultJson } from "./measure/result.ts";
 export { readCaptureFile, writeCaptureFile, parseCapture, CaptureFileError } from "./capture/capture-file.ts";
 export type { CaptureV1 } from "./capture/capture-file.ts";
 export { analyzeRing, AnalysisError } from "./analysis/index.ts";
-export type { RingInput, RingAnalysis } from "./analysis/index.ts";
+export type { RingInput, RingAnalysis, ComparatorTiming } from "./analysis/index.ts";
 // The demo parts openTester({ scenario }) measures; the simulated tester itself, its board models
 // and demo helpers are the henrytick/sim subpath (sim/index.ts).
 export { loadScenario, listScenarios } from "./sim/scenario.ts";
 export type { Scenario, PartModel } from "./sim/scenario.ts";
 export {
   CalibrationError, CALIBRATION_METHODS, validateProfile, emptyProfile, loadProfile, saveProfile, restorePreviousProfile, configDir, profilePaths,
-  appliedCalibration, deviceCalibration, calibrateWithReference, calibrateWithParallelCapacitor, calibrateThresholds,
+  appliedCalibration, deviceCalibration, calibrateWithReference, calibrateWithParallelCapacitor, calibrateThresholds, calibrateSkew,
   measureTimebase, measureSelfCapacitance,
 } from "./calibration/index.ts";
 // The methods behind them (GUM propagation, Monte Carlo, the two-capacitance solution, budgets)
 // are the henrytick/calibration subpath (calibration/index.ts).
 export type {
   CalibrationProfile, CalibrationMethod, AppliedCalibration, TankEntry, StoreOptions, ReferenceInductor, ParallelCapacitor, TimebaseResult,
-  SelfCapacitanceReading, UncertaintyBudget, BudgetLine, DeviceCalibration,
+  SelfCapacitanceReading, UncertaintyBudget, BudgetLine, DeviceCalibration, SkewFit,
 } from "./calibration/index.ts";
 // Bench workflows: values as the trade writes them, conformity decisions, sorting, winding,
 // continuous reading, reports, and an abortable reading.

@@ -66,7 +66,7 @@ describe("FIXTURE_CHATTER", () => {
       // A reading that stands must agree with the circuit within twice its expanded uncertainty.
       expect(Math.abs(o.l_h - truth(o)), `seed ${seed}: ${o.l_h} ± ${o.u_h}`).toBeLessThan(2 * o.u_h);
     }
-    expect(flagged).toBeGreaterThanOrEqual(3);
+    expect(flagged).toBeGreaterThanOrEqual(7); // 8 of 10 when written
   }, 240_000);
 
   it("sort --sim --nominal 150m --tol 10% --count 3 records all three parts (clean simulated contacts)", () => {

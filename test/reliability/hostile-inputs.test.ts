@@ -9,7 +9,7 @@ import { mkdtempSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import type { CaptureV1 } from "../../host/src/capture/capture-file.ts";
+import { writeCaptureFile, type CaptureV1 } from "../../host/src/capture/capture-file.ts";
 import { deviceCalibration } from "../../host/src/calibration/device-calibration.ts";
 import { saveProfile } from "../../host/src/calibration/profile-store.ts";
 import { measurePart } from "../../host/src/measure/measure-part.ts";
@@ -59,6 +59,26 @@ describe("hostile paths: bounded, refused without reading what is not a capture"
     expect(o.kind === "refused" && o.message).toMatch(/at most \d+ bytes for 65536 edges|at most 65536/);
     const fifo = runPathCase(CAPTURE_CASES.find((c) => c.name === "a FIFO with no writer")!, dir);
     expect(fifo.kind === "refused" && fifo.message).toMatch(/is a pipe \(FIFO\), not a capture file/);
+  });
+});
+
+describe("large captures", () => {
+  it("a capture near the limit (60 000 edges) reads, with a progress line on stderr first", () => {
+    // An ideal ring (330 µH on 100 nF, Q 60 000) crossing +35 mV and -5 mV: L is 330 µH by construction.
+    const tick = 64e6, C = 1e-7, L = 330e-6, w = 1 / Math.sqrt(L * C), alpha = w / (2 * 60_000), A = 3;
+    const edges: [number, number][] = [];
+    for (let n = 0, level = 0; edges.length < 60_000; n++, level = 1 - level) {
+      const env = A * Math.exp(-alpha * ((n * Math.PI) / w));
+      const base = (Math.floor(n / 2) * 2 * Math.PI) / w;
+      const tc = level === 0 ? base + Math.asin(0.035 / env) / w : base + (Math.PI + Math.asin(0.005 / env)) / w;
+      edges.push([Math.floor(tc * tick), level === 0 ? 1 : 0]);
+    }
+    const f = join(dir, "large.json");
+    writeCaptureFile(f, { format: "henrytick-capture", version: 1, tick_hz: tick, tank_c_f: C, thresholds_v: [0.035, -0.005], edges });
+    const r = spawnSync(process.execPath, [CLI, "analyze", f, "--json"], { encoding: "utf8", timeout: 120_000 });
+    expect(r.status, r.stderr).toBe(0);
+    expect(r.stderr).toMatch(/^analysing .*large\.json: 60000 edges/);
+    expect(Math.abs(JSON.parse(r.stdout).inductance_h / L - 1)).toBeLessThan(1e-3);
   });
 });
 

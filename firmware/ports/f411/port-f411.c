@@ -387,6 +387,8 @@ static void board_init(void) {
   TIM2_EGR = TIM_EGR_UG;
   TIM2_SR = 0;
   TIM2_CR1 = TIM_CR1_CEN;
+  /* Fast edges on the gate (output speed "fast"): its on-time is set by the compare, not the slew. */
+  GPIO_OSPEEDR(GPIOA) = (GPIO_OSPEEDR(GPIOA) & ~(3u << (2u * PIN_GATE))) | (2u << (2u * PIN_GATE));
   gpio_mode(GPIOA, PIN_GATE, 2u, 1u);
   gpio_mode(GPIOA, PIN_CAPTURE, 2u, 1u);
 

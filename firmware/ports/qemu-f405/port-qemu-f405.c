@@ -12,6 +12,7 @@
  *           and CRC-checked (format below); the emulated time it takes is hidden from now().
  *   SysTick now(): the core clock (168 MHz in QEMU's model) scaled to the profile's 64 MHz tick by
  *           a 0.32 fixed-point factor the edge server sends (it carries the board's crystal error).
+ *   TIM2    wake-up timer for the main loop's timed sleeps.
  *
  * The capture is emulated like a timer with DMA: the reply's entries go straight into the
  * firmware's buffer (already in extended format, ticks since the switch opened << 1 | level), and
@@ -31,6 +32,10 @@
  *   PULSE  (2)  port: drive u8, tank u8, 0 u16, charge_ticks u32, capacity u32, open_tick u32
  *               (charge_ticks 0: a listen with the switch open; open_tick is now() + charge)
  *        (0x82) server: count u32 (<= capacity), count entries u32
+ *   TIME   (3)  port: nothing
+ *        (0x83) server: the host's clock u64, in profile ticks at the board's crystal rate
+ * Before computing a pulse's ring the server sends WORKING (0x42, same seq, no payload), so a
+ * server that is alive but busy is told from one that has stalled.
  */
 #include <stdint.h>
 #include <string.h>
@@ -66,18 +71,37 @@
 #define ICSR_PENDSTSET (1u << 26)
 #define NVIC_ISER(n) REG(0xE000E100u + 4u * (n))
 
+#define TIM2 0x40000000u
+#define TIM_CR1 REG(TIM2 + 0x00u)
+#define TIM_DIER REG(TIM2 + 0x0Cu)
+#define TIM_SR REG(TIM2 + 0x10u)
+#define TIM_CNT REG(TIM2 + 0x24u)
+#define TIM_ARR REG(TIM2 + 0x2Cu)
+#define TIM_CR1_CEN 1u
+#define TIM_DIER_UIE 1u
+#define RCC_APB1ENR_TIM2EN 1u
+
+#define IRQ_TIM2 28u
 #define IRQ_USART1 37u
 #define IRQ_USART2 38u
 
 /* QEMU's STM32F405 model runs the core (and SysTick's processor clock) at 168 MHz, with no clock
    tree to program: RCC is a placeholder there, so the enables below are what a real chip needs. */
 #define CPU_HZ 168000000u
-#define SYSTICK_PERIOD (CPU_HZ / 1000u) /* 1 ms */
+/* SysTick's longest period (24 bits, 0.1 s): it only extends the counter, and every wake-up it
+   causes costs QEMU a pass of its main loop. TIM2 wakes the timed sleeps. */
+#define SYSTICK_PERIOD (1u << 24)
 /* 64 MHz / 168 MHz in 0.32 fixed point, until the edge server sends the board's own factor. */
 #define TICK_MUL_NOMINAL 1636178018u
 #define TICKS_PER_SECOND 64000000u
-/* Longest silence inside a front-end exchange before the link counts as stalled (emulated time). */
-#define LINK_TIMEOUT_TICKS (1u * TICKS_PER_SECOND) /* well inside the host's 2 s reply margin */
+/* Longest silence inside a front-end exchange before the link counts as stalled (see fe_getc):
+   the server's first frame comes from its event loop at once (for a pulse, a WORKING frame
+   before it computes the ring), and a frame's bytes follow one another. */
+#ifndef LINK_TIMEOUT_WAKES
+#define LINK_TIMEOUT_WAKES 8000u
+#endif
+/* While the server computes a ring (after its WORKING frame): many times longer. */
+#define LINK_WORKING_WAKES (100u * LINK_TIMEOUT_WAKES)
 
 #ifndef QEMU_PORT_CORE
 #define QEMU_PORT_CORE 1
@@ -108,27 +132,76 @@ static inline void wait_for_interrupt(void) {
 }
 
 /* ---- time ---- */
-static volatile uint64_t ticks_at_wrap; /* 64 MHz ticks, 32.32 fixed point, at the last SysTick wrap */
+/* 64 MHz ticks at the last SysTick wrap: whole ticks and a 0.32 fraction. */
+static volatile uint64_t wrap_ticks;
+static volatile uint32_t wrap_frac;
 static uint32_t tick_mul = TICK_MUL_NOMINAL;
-static uint32_t hidden_ticks; /* emulated time spent in front-end exchanges: not the firmware's */
+/* Emulated time spent in front-end exchanges: not the firmware's (hardware has no such pause). */
+static uint64_t hidden_ticks;
+/* Host time added while idle, so that idle time follows the host's clock (see clock_sync). */
+static uint64_t idle_credit;
 
 void SysTick_Handler(void) {
-  ticks_at_wrap += (uint64_t)SYSTICK_PERIOD * tick_mul;
+  uint64_t inc = (uint64_t)SYSTICK_PERIOD * tick_mul;
+  uint64_t frac = (uint64_t)wrap_frac + (uint32_t)inc;
+  wrap_frac = (uint32_t)frac;
+  wrap_ticks += (inc >> 32) + (frac >> 32);
 }
 
 /* Emulated time in 64 MHz ticks, including the front-end exchanges. */
-static uint32_t raw_ticks(void) {
+static uint64_t raw_ticks(void) {
   uint32_t m = irq_save();
   uint32_t v = SYST_CVR;
-  uint64_t acc = ticks_at_wrap;
+  uint64_t whole = wrap_ticks;
+  uint64_t frac = wrap_frac;
   if (SCB_ICSR & ICSR_PENDSTSET) {
     /* Wrapped, handler not run yet: count the wrap, and read the counter again after it. */
     v = SYST_CVR;
-    acc += (uint64_t)SYSTICK_PERIOD * tick_mul;
+    frac += (uint64_t)SYSTICK_PERIOD * tick_mul;
   }
   irq_restore(m);
-  uint32_t cycles = SYSTICK_PERIOD - 1u - v;
-  return (uint32_t)((acc + (uint64_t)cycles * tick_mul) >> 32);
+  frac += (uint64_t)(SYSTICK_PERIOD - 1u - v) * tick_mul;
+  return whole + (frac >> 32);
+}
+
+/* The firmware's clock: emulated time without the exchanges, plus the idle credit. */
+static uint64_t clock_ticks(void) {
+  return raw_ticks() - hidden_ticks + idle_credit;
+}
+
+/* ---- wake-up timer: TIM2, one shot ---- */
+static volatile uint32_t wake_fired;
+
+void TIM2_IRQHandler(void) {
+  TIM_SR = 0;
+  TIM_CR1 = 0;
+  wake_fired = 1;
+}
+
+/* Waits executed rather than slept: short enough that arming the timer would take longer. */
+#define SPIN_TICKS 1280u /* 20 us */
+
+/*
+ * Sleeps until `deadline` (firmware ticks) or a host byte. TIM2 (core clock, 21 cycles per 8
+ * ticks) wakes the core a little early; the rest is run through by executing, so the deadline is
+ * met to a few instructions. Under -icount sleep=off the slept part takes no real time.
+ */
+static uint32_t now_ticks(void);
+static void sleep_until(uint32_t deadline, volatile uint32_t* head, volatile uint32_t* tail) {
+  for (;;) {
+    int32_t left = (int32_t)(deadline - now_ticks());
+    if (left <= 0 || *head != *tail) return;
+    if (left <= (int32_t)SPIN_TICKS) continue;
+    wake_fired = 0;
+    TIM_CR1 = TIM_CR1_CEN;
+    TIM_CNT = 0;
+    TIM_ARR = (uint32_t)(((uint64_t)(uint32_t)left - SPIN_TICKS / 2u) * 21u / 8u);
+    TIM_DIER = TIM_DIER_UIE;
+    uint32_t m = irq_save();
+    if (!wake_fired && *head == *tail) wait_for_interrupt(); /* also woken by SysTick: then re-armed */
+    irq_restore(m);
+    TIM_CR1 = 0;
+  }
 }
 
 /* ---- host link: USART1 ---- */
@@ -175,10 +248,16 @@ void USART2_IRQHandler(void) {
   }
 }
 
-/* Next front-end byte, or -1 when none arrived within LINK_TIMEOUT_TICKS. */
+/*
+ * Next front-end byte, or -1 when none arrived within LINK_TIMEOUT_WAKES wake-ups. The core sleeps
+ * between bytes: a busy core would compete with QEMU's I/O thread, which delivers them one at a
+ * time. Under `-icount sleep=off` each sleep ends at once at the next timer deadline (SysTick,
+ * 0.1 s of emulated time, all of it hidden from the firmware), so the timeout is a count of QEMU
+ * main-loop passes: some 0.5 s of host time or more, far beyond the edge server's few ms per reply.
+ */
+static uint32_t fe_budget = LINK_TIMEOUT_WAKES;
 static int fe_getc(void) {
-  uint32_t start = raw_ticks();
-  for (;;) {
+  for (uint32_t wakes = 0; wakes < fe_budget; wakes++) {
     uint32_t m = irq_save();
     if (fe_tail != fe_head) {
       uint8_t b = fe_ring[fe_tail];
@@ -187,20 +266,19 @@ static int fe_getc(void) {
       irq_restore(m);
       return b;
     }
-    if (raw_ticks() - start >= LINK_TIMEOUT_TICKS) {
-      irq_restore(m);
-      return -1;
-    }
-    wait_for_interrupt(); /* SysTick wakes it every millisecond, a byte at once */
+    wait_for_interrupt();
     irq_restore(m);
   }
+  return -1;
 }
 
 #define LINK_MAGIC0 0xE5u
 #define LINK_MAGIC1 0x1Du
 #define LINK_HELLO 1u
 #define LINK_PULSE 2u
+#define LINK_TIME 3u
 #define LINK_REPLY 0x80u
+#define LINK_WORKING 0x40u
 
 static uint16_t crc16_update(uint16_t crc, uint8_t byte) {
   crc ^= (uint16_t)byte << 8;
@@ -238,9 +316,11 @@ static void link_send(uint8_t type, const uint8_t* payload, uint16_t len) {
  * length, or -1 on a stall, a CRC error or a malformed frame.
  */
 static int32_t link_receive(uint8_t type, uint8_t* small, uint32_t small_len, uint8_t* bulk, uint32_t bulk_max) {
+  fe_budget = LINK_TIMEOUT_WAKES;
   for (;;) {
     int c = fe_getc();
     if (c < 0) return -1;
+    fe_budget = LINK_TIMEOUT_WAKES;
     if ((uint8_t)c != LINK_MAGIC0) continue; /* resynchronise on the frame start */
     c = fe_getc();
     if (c < 0) return -1;
@@ -255,6 +335,7 @@ static int32_t link_receive(uint8_t type, uint8_t* small, uint32_t small_len, ui
     }
     uint32_t len = (uint32_t)head[2] | ((uint32_t)head[3] << 8);
     int mine = head[0] == (type | LINK_REPLY) && head[1] == link_seq;
+    int working = head[0] == (type | LINK_WORKING) && head[1] == link_seq && len == 0;
     if (mine && len > small_len + bulk_max) return -1; /* longer than asked for: malformed */
     for (uint32_t i = 0; i < len; i++) {
       c = fe_getc();
@@ -269,7 +350,9 @@ static int32_t link_receive(uint8_t type, uint8_t* small, uint32_t small_len, ui
     if (hi < 0) return -1;
     if ((uint16_t)(lo | (hi << 8)) != crc) return -1; /* corrupted: its seq cannot be trusted either */
     if (mine) return (int32_t)len;
-    /* A complete, intact frame for an earlier request: skip it and wait for ours. */
+    /* The server is computing our reply: wait longer for its first byte. Any other complete,
+       intact frame is for an earlier request: skip it and wait for ours. */
+    fe_budget = working ? LINK_WORKING_WAKES : LINK_TIMEOUT_WAKES;
   }
 }
 
@@ -278,7 +361,7 @@ static int32_t link_receive(uint8_t type, uint8_t* small, uint32_t small_len, ui
 static int32_t link_exchange(uint8_t type, const uint8_t* req, uint16_t req_len, uint8_t* small, uint32_t small_len,
                              uint8_t* bulk, uint32_t bulk_max) {
   if (link_down) return -1;
-  uint32_t t0 = raw_ticks();
+  uint64_t t0 = raw_ticks();
   link_seq++;
   link_send(type, req, req_len);
   int32_t n = link_receive(type, small, small_len, bulk, bulk_max);
@@ -305,6 +388,28 @@ static void link_hello(void) {
   }
 }
 
+/*
+ * Idle time follows the host's clock. While the core sleeps waiting for the host, emulated time
+ * stands still (see the main loop), so each time a host byte ends an idle spell the port asks the
+ * edge server for the host's time (in board ticks, crystal error included): when more host time
+ * than emulated time has passed since the last such sync, the clock moves forward by the
+ * difference. Never back: a span in which emulated time ran ahead (a measurement's waits, which
+ * QEMU skips) stays as it was. Only done while idle, so no capture or timed wait is in progress.
+ */
+static uint64_t sync_clock, sync_host;
+static int synced;
+
+static void clock_sync(void) {
+  uint8_t rep[8];
+  if (link_exchange(LINK_TIME, 0, 0, rep, sizeof rep, 0, 0) != (int32_t)sizeof rep) return;
+  uint64_t host = (uint64_t)get_u32(rep) | ((uint64_t)get_u32(rep + 4) << 32);
+  uint64_t clock = clock_ticks();
+  if (synced && host - sync_host > clock - sync_clock) idle_credit += (host - sync_host) - (clock - sync_clock);
+  synced = 1;
+  sync_host = host;
+  sync_clock = clock_ticks();
+}
+
 /* ---- the HAL ---- */
 struct Z_hal_instance_t {
   Z_henrytick_instance_t* fw;
@@ -321,7 +426,7 @@ static struct {
 static uint32_t gate_open_at;
 
 static uint32_t now_ticks(void) {
-  uint32_t t = raw_ticks() - hidden_ticks;
+  uint32_t t = (uint32_t)clock_ticks();
   /* The one-pulse timer: the gate opens by itself once the charge time is over. */
   if (ht_qemu_gate && (int32_t)(t - gate_open_at) >= 0) ht_qemu_gate = 0;
   return t;
@@ -431,7 +536,7 @@ void qemu_port_fault_handler(void) {
 /* ---- start-up and main loop ---- */
 static void board_init(void) {
   RCC_APB2ENR |= RCC_APB2ENR_USART1EN;
-  RCC_APB1ENR |= RCC_APB1ENR_USART2EN;
+  RCC_APB1ENR |= RCC_APB1ENR_USART2EN | RCC_APB1ENR_TIM2EN;
   USART_BRR(USART1) = 0x2D9u; /* 115 200 Bd from the 84 MHz APB2 clock (QEMU ignores it) */
   USART_BRR(USART2) = 0x16Cu; /* 115 200 Bd from the 42 MHz APB1 clock */
   USART_CR1(USART1) = CR1_UE | CR1_TE | CR1_RE | CR1_RXNEIE;
@@ -439,6 +544,7 @@ static void board_init(void) {
   SYST_RVR = SYSTICK_PERIOD - 1u;
   SYST_CVR = 0;
   SYST_CSR = 7u; /* processor clock, interrupt, enable */
+  NVIC_ISER(IRQ_TIM2 / 32u) = 1u << (IRQ_TIM2 % 32u);
   NVIC_ISER(IRQ_USART1 / 32u) = 1u << (IRQ_USART1 % 32u);
   NVIC_ISER(IRQ_USART2 / 32u) = 1u << (IRQ_USART2 % 32u);
 }
@@ -453,19 +559,26 @@ int main(void) {
   ht_qemu_gate = 0;
   board_init();
   link_hello();
+  clock_sync(); /* the first sync: idle spells follow the host's clock from here on */
   wasm_rt_init();
   Z_henrytick_init_module();
   if (HT_RT_TRY()) {
     start_firmware();
     HT_RT_DONE();
   }
+  int idled = 0, at_line_start = 1;
   for (;;) {
     if (!HT_RT_TRY()) {
       Z_henrytick_free(&fw);
       start_firmware();
       continue;
     }
+    /* The host starts a line after an idle spell: catch up with its clock. Not within a line,
+       whose bytes arrive one by one: the sync then reads the host's clock as the line begins. */
+    if (idled && at_line_start && rx_tail != rx_head) clock_sync();
+    idled = 0;
     while (rx_tail != rx_head && Z_henrytickZ_fw_rx(&fw, rx_ring[rx_tail])) {
+      at_line_start = rx_ring[rx_tail] == '\n';
       rx_tail = (rx_tail + 1u) % RX_RING;
       USART_CR1(USART1) |= CR1_RXNEIE;
     }
@@ -474,23 +587,18 @@ int main(void) {
     HT_RT_DONE();
     if (rx_tail != rx_head) continue;
     if (busy || wait > 0) {
-      /* A deadline: sleep through whole SysTick periods (emulated time then follows the host's
-         clock), and run the clock through the last one by executing (it advances by instructions,
-         so the deadline is met to a few of them). */
-      uint32_t deadline = now_ticks() + (wait > 0 ? wait : 1u);
-      for (;;) {
-        int32_t left = (int32_t)(deadline - now_ticks());
-        if (left <= 0 || rx_tail != rx_head) break;
-        if (left > (int32_t)(2u * TICKS_PER_SECOND / 1000u)) {
-          uint32_t m = irq_save();
-          if (rx_tail == rx_head) wait_for_interrupt();
-          irq_restore(m);
-        }
-      }
+      sleep_until(now_ticks() + (wait > 0 ? wait : 1u), &rx_head, &rx_tail);
     } else {
+      /* Idle: SysTick off, so that no timer is pending and QEMU stops emulated time until a host
+         byte arrives (-icount sleep=off); clock_sync then adds the host time that passed. */
       uint32_t m = irq_save();
-      if (rx_tail == rx_head) wait_for_interrupt(); /* idle: until a byte (or the next SysTick) */
+      if (rx_tail == rx_head) {
+        SYST_CSR = 6u;
+        wait_for_interrupt();
+        SYST_CSR = 7u;
+      }
       irq_restore(m);
+      idled = 1;
     }
   }
 }

@@ -1,6 +1,6 @@
 /*
- * Start-up for the emulated STM32F405 port: vector table (core exceptions, SysTick and the two
- * USART interrupts this port uses), and a reset handler that paints the C stack, copies .data,
+ * Start-up for the emulated STM32F405 port: vector table (core exceptions, SysTick and the
+ * TIM2 and USART interrupts this port uses), and a reset handler that paints the C stack, copies .data,
  * clears .bss and calls main. Shared by the Cortex-M0 and Cortex-M4 builds.
  */
 #include <stdint.h>
@@ -8,6 +8,7 @@
 extern uint32_t _sidata, _sdata, _edata, _sbss, _ebss, _sstack, _estack;
 int main(void);
 void SysTick_Handler(void);
+void TIM2_IRQHandler(void);
 void USART1_IRQHandler(void);
 void USART2_IRQHandler(void);
 void qemu_port_fault_handler(void);
@@ -32,7 +33,8 @@ static void Default_Handler(void) {
   qemu_port_fault_handler();
 }
 
-/* STM32F405: USART1 is interrupt 37, USART2 interrupt 38 (reference manual RM0090, vector table). */
+/* STM32F405: TIM2 is interrupt 28, USART1 37, USART2 38 (reference manual RM0090, vector table). */
+#define IRQ_TIM2 28
 #define IRQ_USART1 37
 #define IRQ_USART2 38
 #define VECTORS (16 + 82)
@@ -48,6 +50,7 @@ __attribute__((section(".isr_vector"), used)) static void (*const vectors[VECTOR
     [11] = Default_Handler, /* SVCall */
     [14] = Default_Handler, /* PendSV */
     [15] = SysTick_Handler,
+    [16 + IRQ_TIM2] = TIM2_IRQHandler,
     [16 + IRQ_USART1] = USART1_IRQHandler,
     [16 + IRQ_USART2] = USART2_IRQHandler,
 };

@@ -27,5 +27,8 @@ export type { TickCounter, HostClock, TickSample, TimebaseResult } from "./timeb
 export { measureSelfCapacitance } from "./self-capacitance-reading.ts";
 export type { SelfCapacitanceReading, SelfCapacitanceOptions } from "./self-capacitance-reading.ts";
 export { calibrateThresholds } from "./threshold-procedure.ts";
+export { calibrateSkew, skewTanks } from "./skew-procedure.ts";
+export { fitSkew, MIN_FREQUENCY_SPAN } from "./skew-fit.ts";
+export type { SkewFit, SkewRing } from "./skew-fit.ts";
 export { deviceCalibration } from "./device-calibration.ts";
 export type { DeviceCalibration } from "./device-calibration.ts";

@@ -10,11 +10,11 @@ export const PROFILE_VERSION = 1;
 
 /**
  * The procedures a profile value can come from: a reference inductor, a coil rung without and
- * with a known capacitor, the comparator threshold fit, the crystal timed against the host's
- * clock, a value entered by hand (e.g. a crystal error from a frequency counter), or the ring of
- * the test leads with their clips shorted together.
+ * with a known capacitor, the comparator threshold fit, the comparator skew fit, the crystal
+ * timed against the host's clock, a value entered by hand (e.g. a crystal error from a
+ * frequency counter), or the ring of the test leads with their clips shorted together.
  */
-export const CALIBRATION_METHODS = ["reference-inductor", "parallel-capacitor", "threshold-fit", "host-clock", "entered", "clips-shorted"] as const;
+export const CALIBRATION_METHODS = ["reference-inductor", "parallel-capacitor", "threshold-fit", "skew-fit", "host-clock", "entered", "clips-shorted"] as const;
 export type CalibrationMethod = (typeof CALIBRATION_METHODS)[number];
 
 /** How a value was obtained, and when: kept with each value so a user can judge it later. */
@@ -72,6 +72,13 @@ export interface LeadEntry extends Provenance {
 /** Largest lead inductance a profile accepts: above it the clips were not shorted (as SHORT_MAX_L_H). */
 export const MAX_LEAD_H = 0.5e-6;
 
+export interface SkewEntry extends Provenance {
+  /** The comparator's rising-edge propagation delay minus its falling-edge delay, seconds. */
+  skew_s: number;
+  /** Standard uncertainty of skew_s, seconds. */
+  u_skew_s: number;
+}
+
 export interface CalibrationProfile {
   format: typeof PROFILE_FORMAT;
   version: typeof PROFILE_VERSION;
@@ -82,6 +89,7 @@ export interface CalibrationProfile {
   thresholds?: ThresholdEntry;
   timebase?: TimebaseEntry;
   leads?: LeadEntry;
+  skew?: SkewEntry;
 }
 
 export function emptyProfile(device_id: string, now: Date): CalibrationProfile {
@@ -126,6 +134,14 @@ function leadEntry(o: Obj): LeadEntry {
   return e;
 }
 
+function skewEntry(o: Obj): SkewEntry {
+  const e = { ...o, detail: o.detail ?? "" } as unknown as SkewEntry;
+  // A comparator whose rise and fall delays differ by a microsecond is not a comparator: a mix-up
+  // of units, or a procedure that went wrong.
+  if (!(Math.abs(e.skew_s) < 1e-6)) bad("skew.skew_s", `${e.skew_s} s is beyond any working comparator (|skew| < 1 µs)`);
+  return e;
+}
+
 /**
  * Checks a parsed profile (its shape by schemas/calibration-profile.schema.json, then the rules a
  * schema cannot state); throws CalibrationError naming the first bad field. Optional numbers left
@@ -151,5 +167,6 @@ export function validateProfile(raw: unknown): CalibrationProfile {
   if (o.thresholds !== undefined) p.thresholds = thresholdEntry(o.thresholds as Obj);
   if (o.timebase !== undefined) p.timebase = timebaseEntry(o.timebase as Obj);
   if (o.leads !== undefined) p.leads = leadEntry(o.leads as Obj);
+  if (o.skew !== undefined) p.skew = skewEntry(o.skew as Obj);
   return p;
 }

@@ -9,6 +9,9 @@ import { CliUsageError, reportError } from "./errors.ts";
 import { renderReading } from "./render.ts";
 import { csvHeader, csvRow } from "./result-csv.ts";
 
+/** Twice the reference board's 8 192-edge buffer. */
+const LARGE_CAPTURE_EDGES = 16_384;
+
 export async function runAnalyze(args: string[]): Promise<number> {
   const { values, positionals } = parse(args, { json: { type: "boolean" }, csv: { type: "boolean" } });
   if (positionals.length === 0) throw new CliUsageError("analyze needs at least one capture FILE");
@@ -17,6 +20,8 @@ export async function runAnalyze(args: string[]): Promise<number> {
   for (const file of positionals) {
     try {
       const capture = readCaptureFile(file);
+      // A capture far beyond one board buffer takes a second or so: say so on stderr.
+      if (capture.edges.length > LARGE_CAPTURE_EDGES) process.stderr.write(`analysing ${file}: ${capture.edges.length} edges …\n`);
       const reading = judgeCapture(capture, undefined, { keep_suspect: true });
       const result = buildResult(reading.analysis, reading.capture, reading.suspect);
       if (values.csv) process.stdout.write((results.length === 0 ? csvHeader(["file"]) : "") + csvRow(result, [file]));

@@ -4,7 +4,7 @@
 import { createInterface } from "node:readline";
 import type { CalibrationProfile } from "../calibration/index.ts";
 import {
-  CalibrationError, appliedCalibration, calibrateThresholds, calibrateWithParallelCapacitor, calibrateWithReference,
+  CalibrationError, appliedCalibration, calibrateSkew, calibrateThresholds, calibrateWithParallelCapacitor, calibrateWithReference,
   emptyProfile, loadProfile, profilePaths, restorePreviousProfile, saveProfile, testerTickCounter, hostClock, measureTimebase, MAX_READ_SPACING_S,
 } from "../calibration/index.ts";
 import { storeFor, type StoreOptions } from "../calibration/index.ts";
@@ -47,10 +47,11 @@ export async function runCalibrate(args: string[]): Promise<number> {
       tank: { type: "string" }, "cap-f": { type: "string" }, "cap-u-f": { type: "string" }, "part-cs-f": { type: "string" }, "part-u-cs-f": { type: "string" }, repeats: { type: "string" },
     }, parallel, true);
     case "thresholds": return withTester(rest, { captures: { type: "string" } }, thresholds, true);
+    case "skew": return withTester(rest, { captures: { type: "string" }, tanks: { type: "string" } }, skew, true);
     case "timebase": return withTester(rest, { ppm: { type: "string" }, "u-ppm": { type: "string" }, seconds: { type: "string" } }, timebase);
     case "short": return withTester(rest, { repeats: { type: "string" } }, short, true);
     default:
-      throw new CliUsageError(`calibrate needs one of: show, reference, parallel, thresholds, timebase, short, restore${sub ? ` (got "${sub}")` : ""}`);
+      throw new CliUsageError(`calibrate needs one of: show, reference, parallel, thresholds, skew, timebase, short, restore${sub ? ` (got "${sub}")` : ""}`);
   }
 }
 
@@ -199,6 +200,18 @@ async function thresholds(t: OpenedTester, store: StoreOptions, v: Values, cauti
   process.stdout.write(`   thresholds ${formatSi(fit.thresholds_v[0], "V", 4)} / ${formatSi(fit.thresholds_v[1], "V", 4)}: ratio ${fit.ratio.toFixed(3)} ± ${(2 * fit.u_ratio).toFixed(3)}, ` +
     `comparator offset ${(fit.offset_v * 1e3).toFixed(3)} mV ± ${(2 * fit.u_offset_v * 1e3).toFixed(3)} mV (k = 2)\n`);
   profile.thresholds = entry;
+  commit(profile, store);
+  return 0;
+}
+
+async function skew(t: OpenedTester, store: StoreOptions, v: Values): Promise<number> {
+  const profile = currentProfile(t, store);
+  const tanks = v.tanks === undefined ? undefined : String(v.tanks).split(",").map((x) => intOption(x, "tanks", 0, t.client.profile.tanks.length - 1)!);
+  const { entry, fit } = await calibrateSkew(t.client, {
+    captures: intOption(v.captures, "captures", 1, 20), tanks, calibration: appliedCalibration(profile, "calibration in progress"), onProgress: progress,
+  });
+  process.stdout.write(`   comparator skew (rise minus fall delay) ${(fit.skew_s * 1e9).toFixed(2)} ns ± ${(2 * fit.u_skew_s * 1e9).toFixed(2)} ns (k = 2) from ${fit.rings.length} rings\n`);
+  profile.skew = entry;
   commit(profile, store);
   return 0;
 }

@@ -7,6 +7,7 @@ export const CALIBRATE_USAGE = `  henrytick calibrate show (--sim | --port PATH)
   henrytick calibrate parallel … --tank N --cap-f C --cap-u-f U [--part-cs-f C]
                                        any coil on the clips, rung without and with a known capacitor
   henrytick calibrate thresholds …     high-Q coil on the clips → comparator threshold ratio
+  henrytick calibrate skew … [--tanks A,B]   one coil rung on two tanks → comparator rise/fall delay skew
   henrytick calibrate timebase … [--seconds N]     time the tester's crystal against this computer's clock (default 60 s)
   henrytick calibrate timebase … --ppm P --u-ppm U   or enter a crystal error measured with a frequency counter
   henrytick calibrate short … [--repeats N]   clips shorted to each other → the leads' inductance, subtracted from readings

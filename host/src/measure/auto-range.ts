@@ -99,7 +99,8 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
     try {
       reading = await readOnce(client, nextSettings, opts, progress, "ranging", fraction);
     } catch (e) {
-      if (!(e instanceof MeasureError) || !NO_USABLE_RING.includes(e.code)) throw e;
+      if (!(e instanceof MeasureError)) throw e;
+      if (!NO_USABLE_RING.includes(e.code)) throw explainFailure(e);
       const why = explainFailure(e);
       if (why !== e) chatter ??= why;
       failures.push(`${next.reason} It gave no usable ring (${e.code}).`);

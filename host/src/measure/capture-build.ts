@@ -31,6 +31,7 @@ export function captureFromDevice(
         source: calibration.source, tank_calibrated: calTank !== undefined, nominal_tank_c_f: nominal, nominal_tick_hz: raw.tick_hz, timebase_ppm: ppm,
         ...(tbU !== undefined ? { timebase_u_ppm: tbU } : {}),
         ...(calibration.leads ? { lead_inductance_h: calibration.leads.l_h, lead_u_h: calibration.leads.u_h } : {}),
+        ...(calibration.comparator_skew ? { comparator_skew_s: calibration.comparator_skew.skew_s, comparator_skew_u_s: calibration.comparator_skew.u_s } : {}),
       }
       : { source: "nominal (uncalibrated)", tank_calibrated: false, nominal_tank_c_f: nominal, nominal_tick_hz: raw.tick_hz, timebase_ppm: 0 },
     drive: { supply_v: profile.supply_v, series_ohm: profile.drives[s.drive].ohm, clamp_v: profile.clamp_v },
@@ -59,5 +60,10 @@ export function ringInputFromCapture(c: CaptureV1): RingInput {
     // pins the amplitude of a short, heavily damped ring.
     ring_ended: c.meta?.end_reason === "quiet",
     ...(c.calibration?.timebase_u_ppm !== undefined ? { timebase_u_rel: c.calibration.timebase_u_ppm * 1e-6 } : {}),
+    // A calibrated comparator skew: the analysis takes it out of the rising edges and carries
+    // its uncertainty into U (docs/method.md §2a).
+    ...(c.calibration?.comparator_skew_s !== undefined
+      ? { comparator: { skew_s: c.calibration.comparator_skew_s, skew_u_s: c.calibration.comparator_skew_u_s ?? 0, skew_source: "calibration" } }
+      : {}),
   };
 }

@@ -3,10 +3,12 @@
 // pseudo-terminal that a host opens exactly as it opens hardware, and its front end answered by
 // the edge server (qemu-edge-server.ts) on QEMU's second serial port.
 //
-// QEMU runs with `-icount shift=4,sleep=on`: while the core executes, emulated time advances by
-// its instructions (16 ns each), so everything the firmware does during a measurement happens at
-// the same emulated instants on every run; while it sleeps waiting for the host, emulated time
-// follows the host's clock, as a real chip's crystal does.
+// QEMU runs with `-icount shift=4,sleep=off`: emulated time advances by executed instructions
+// (16 ns each) and jumps to the next timer deadline whenever the core sleeps, so a measurement's
+// waits take no real time and happen at the same emulated instants on every run. While the port
+// is idle it stops its timer, so emulated time stands still, and it adds the host time that
+// passed when the host speaks again (the edge server tells it): idle time follows the host's
+// clock, as a real chip's crystal does.
 //
 // QEMU is started through a small shell that ends it when this process's pipe to the shell
 // closes, so a host that dies without cleaning up (SIGKILL, crash) leaves no emulator behind.
@@ -103,7 +105,7 @@ export class QemuDevice {
       "-M", "netduinoplus2", "-cpu", QEMU_CPU[opts.core], "-display", "none", "-kernel", elf,
       "-serial", "pty", "-serial", `unix:${join(dir, "front-end.sock")}`,
       "-monitor", `unix:${join(dir, "monitor.sock")},server=on,wait=off`,
-      "-icount", "shift=4,sleep=on",
+      "-icount", "shift=4,sleep=off",
     ];
     const proc = spawn("sh", ["-c", SUPERVISOR, "sh", exe, ...args], { stdio: ["pipe", "pipe", "pipe"], detached: true });
     proc.stdin.on("error", () => {});

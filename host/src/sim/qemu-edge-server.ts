@@ -6,7 +6,9 @@
 //
 // Frames, both directions (little-endian), as the port's header comment describes:
 //   0xE5 0x1D | type u8 | seq u8 | length u16 | payload | CRC-16/CCITT-FALSE u16 over type..payload
-// HELLO (1) → 0x81 device id and tick factor; PULSE (2) → 0x82 the capture's entries.
+// HELLO (1) → 0x81 device id and tick factor; PULSE (2) → 0x82 the capture's entries;
+// TIME (3) → 0x83 the host's clock in board ticks (the port's idle time follows it). Before
+// computing a pulse's ring the server sends WORKING (type | 0x40, no payload).
 
 import { createServer } from "node:net";
 import type { Server, Socket } from "node:net";
@@ -18,7 +20,10 @@ import { SimFrontEnd } from "./sim-tester.ts";
 export const LINK_MAGIC = [0xe5, 0x1d] as const;
 export const LINK_HELLO = 1;
 export const LINK_PULSE = 2;
+export const LINK_TIME = 3;
 export const LINK_REPLY = 0x80;
+/** Sent before a pulse's ring is computed: "alive, working on it" (the port then waits longer). */
+export const LINK_WORKING = 0x40;
 const HEADER_BYTES = 6;
 const MAX_PAYLOAD = 0xffff;
 
@@ -103,7 +108,8 @@ export class EdgeServer {
   frontEnd: SimFrontEnd;
   /** Pulses (charge > 0) answered, in order. */
   readonly pulses: PulseRecord[] = [];
-  readonly stats = { hellos: 0, listens: 0, rejected_frames: 0, bytes_out: 0, core: -1 };
+  readonly stats = { hellos: 0, listens: 0, time_syncs: 0, rejected_frames: 0, bytes_out: 0, core: -1 };
+  private readonly started_ms = performance.now();
   private server: Server | null = null;
   private socket: Socket | null = null;
   private readonly fault?: LinkFault;
@@ -170,6 +176,7 @@ export class EdgeServer {
         frames = reader.push(chunk);
         this.stats.rejected_frames = reader.rejected;
         for (const f of frames) {
+          if (f.type === LINK_PULSE && !this.stalled(f)) socket.write(encodeLinkFrame({ type: LINK_PULSE | LINK_WORKING, seq: f.seq, payload: new Uint8Array(0) }));
           const reply = this.answer(f);
           if (reply) {
             this.stats.bytes_out += reply.length;
@@ -194,6 +201,15 @@ export class EdgeServer {
       out.setUint32(4, tickFactor(this.frontEnd.board, cpu_hz), true);
       return encodeLinkFrame({ type: LINK_HELLO | LINK_REPLY, seq: f.seq, payload: new Uint8Array(out.buffer) });
     }
+    if (f.type === LINK_TIME) {
+      // The host's monotonic clock as the board's crystal counts it (its error included).
+      this.stats.time_syncs++;
+      const t = this.frontEnd.board.timer;
+      const ticks = BigInt(Math.round(((performance.now() - this.started_ms) / 1000) * t.tick_hz * (1 + t.ppm * 1e-6)));
+      const out = new DataView(new ArrayBuffer(8));
+      out.setBigUint64(0, ticks, true);
+      return encodeLinkFrame({ type: LINK_TIME | LINK_REPLY, seq: f.seq, payload: new Uint8Array(out.buffer) });
+    }
     if (f.type === LINK_PULSE && f.payload.length >= 16) {
       const drive = f.payload[0];
       const tank = f.payload[1];
@@ -213,14 +229,19 @@ export class EdgeServer {
       out.setUint32(0, n, true);
       for (let i = 0; i < n; i++) out.setUint32(4 + 4 * i, ((edges.ticks[i] << 1) | edges.levels[i]) >>> 0, true);
       const frame = encodeLinkFrame({ type: LINK_PULSE | LINK_REPLY, seq: f.seq, payload: new Uint8Array(out.buffer) });
-      const fault = this.fault;
-      if (fault && charge_ticks > 0 && this.pulses.length > fault.after_pulses) {
-        if (fault.kind === "stall") return null;
+      if (this.fault && charge_ticks > 0 && this.pulses.length > this.fault.after_pulses) {
+        if (this.fault.kind === "stall") return null;
         frame[HEADER_BYTES + Math.min(4, frame.length - HEADER_BYTES - 3)] ^= 0x10; // one flipped bit
       }
       return frame;
     }
     return null;
+  }
+
+  /** True when the injected fault silences the answer to this request (WORKING included). */
+  private stalled(f: LinkFrame): boolean {
+    const charge = f.payload.length >= 8 ? new DataView(f.payload.buffer, f.payload.byteOffset).getUint32(4, true) : 0;
+    return this.fault?.kind === "stall" && charge > 0 && this.pulses.length >= this.fault.after_pulses;
   }
 
   /** The port's open tick on the server's time line (its 32-bit counter wraps every 67 s). */

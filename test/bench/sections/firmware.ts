@@ -1,13 +1,20 @@
 // Firmware budgets: release wasm size, wire bytes per edge of typical captures, and the native
 // C build's section sizes for Cortex-M0+ (armv6m) and Cortex-M4 (armv7em), and the STM32F411CE
-// board image's flash and RAM.
+// board image's flash and RAM; the C build on the emulated STM32F405 (QEMU): its readings against
+// --sim on both cores, its pace and its stack.
 
 import { statSync } from "node:fs";
 import { firmwareWasmPath } from "../../../host/src/sim/firmware-image.ts";
 import { SimTester } from "../../../host/src/sim/sim-tester.ts";
 import { loadScenario, listScenarios } from "../../../host/src/sim/scenario.ts";
 import { encodeCommand } from "../../../host/src/device/frames.ts";
-import { buildArm, buildBoard, hasArmGcc, hasWasm2c, linearMemoryBacking } from "../../../firmware/ports/native-build.ts";
+import { buildArm, buildBoard, buildQemuF405, hasArmGcc, hasWasm2c, linearMemoryBacking } from "../../../firmware/ports/native-build.ts";
+import { spawn } from "node:child_process";
+import { fileURLToPath } from "node:url";
+import { measurePart, openTester } from "../../../host/src/index.ts";
+import { boardWithFixture, referenceBoard } from "../../../host/src/sim/board-model.ts";
+import { QemuDevice, hasQemu, type EmulatedCore } from "../../../host/src/sim/qemu-device.ts";
+import { DEFAULT_SCENARIO } from "../../../host/src/sim/scenario.ts";
 import { ScriptedPort } from "../../../firmware/test/scripted-port.ts";
 import type { BenchFigures } from "./types.ts";
 import type { BenchSection } from "./types.ts";
@@ -44,6 +51,73 @@ function armFigures(): { figures: BenchFigures; notes: Record<string, string> } 
     notes["firmware.board_ram_bytes"] = "data + bss of the board image (linear memory backing, 2 x 2 KiB DMA rings, runtime; the C stack comes on top), goal <= 49152";
   }
   return { figures, notes };
+}
+
+const CLI = fileURLToPath(new URL("../../../host/bin/henrytick.js", import.meta.url));
+
+/** `henrytick measure … --json` without blocking the event loop (the edge server runs in it). */
+function measureJson(args: string[]): Promise<Record<string, unknown> | null> {
+  return new Promise((resolve) => {
+    const child = spawn(process.execPath, [CLI, "measure", ...args, "--json"], { stdio: ["ignore", "pipe", "ignore"] });
+    let out = "";
+    child.stdout.setEncoding("utf8").on("data", (t: string) => (out += t));
+    child.on("exit", (code) => {
+      if (code !== 0) return resolve(null);
+      const { label: _l, device, ...rest } = JSON.parse(out);
+      const { transport: _t, ...dev } = device;
+      resolve({ ...rest, device: dev });
+    });
+  });
+}
+
+/**
+ * The firmware's C build on the emulated STM32F405 (QEMU), both cores: whether its reading of
+ * the default scenario equals `--sim`'s bit for bit, readings per second through the library,
+ * and the C stack's high-water mark afterwards.
+ */
+async function emulatedFigures(): Promise<{ figures: BenchFigures; notes: Record<string, string> }> {
+  const keys = ["firmware.emulated_m4_match", "firmware.emulated_m0_match", "firmware.stack_high_water_bytes", "firmware.emulated_readings_per_s"];
+  if (!hasWasm2c || !hasArmGcc || !hasQemu()) {
+    return { figures: Object.fromEntries(keys.map((k) => [k, null])), notes: { [keys[0]]: "not measured: install Debian packages qemu-system-arm, wabt, gcc-arm-none-eabi, libnewlib-arm-none-eabi" } };
+  }
+  const scenario = loadScenario(DEFAULT_SCENARIO);
+  const sim = await measureJson(["--sim"]);
+  const figures: BenchFigures = {};
+  const stack: string[] = [];
+  let highWater = 0;
+  const READINGS = 5;
+  for (const core of ["m4", "m0"] as EmulatedCore[]) {
+    const device = await QemuDevice.start({ core, elf: buildQemuF405(core), board: boardWithFixture(referenceBoard(), scenario.fixture), part: scenario.part, seed: scenario.seed });
+    try {
+      const reading = await measureJson(["--port", device.path]);
+      figures[`firmware.emulated_${core}_match`] = sim !== null && JSON.stringify(reading) === JSON.stringify(sim) ? 1 : 0;
+      if (core === "m4") {
+        const t = await openTester({ port: device.path });
+        try {
+          const t0 = performance.now();
+          for (let i = 0; i < READINGS; i++) await measurePart(t.client);
+          figures["firmware.emulated_readings_per_s"] = READINGS / ((performance.now() - t0) / 1000);
+        } finally {
+          await t.close();
+        }
+      }
+      const used = await device.stackHighWater();
+      stack.push(`${used} B on the Cortex-${core.toUpperCase()}`);
+      highWater = Math.max(highWater, used);
+    } finally {
+      await device.close();
+    }
+  }
+  figures["firmware.stack_high_water_bytes"] = highWater;
+  return {
+    figures,
+    notes: {
+      "firmware.emulated_m4_match": `1 when measure --port on the emulated Cortex-M4 equals measure --sim (${DEFAULT_SCENARIO}, same seed) in every field but the link's name`,
+      "firmware.emulated_m0_match": "the same on the emulated Cortex-M0 (ARMv6-M build)",
+      "firmware.stack_high_water_bytes": `C stack after the readings, painted at reset and scanned through QEMU's monitor: ${stack.join(", ")}; the emulated-device test holds it under 1536 B`,
+      "firmware.emulated_readings_per_s": `auto-ranged readings of ${DEFAULT_SCENARIO} through the library on the emulated Cortex-M4 (${READINGS} in a row, QEMU -icount shift=4,sleep=off)`,
+    },
+  };
 }
 
 /** Bytes on the wire per captured edge, header and trailer included, for one capture. */
@@ -87,6 +161,7 @@ export const firmwareSection: BenchSection = {
       edges += r.edges;
     }
     const arm = armFigures();
+    const emulated = await emulatedFigures();
     // Top of the bump allocator once the module has started: everything the firmware will ever
     // use of its one 64 KiB page (static data, buffers, the edge buffer).
     const probe = new ScriptedPort("probe");
@@ -98,6 +173,7 @@ export const firmwareSection: BenchSection = {
         "firmware.memory_used_bytes": used,
         "firmware.linear_memory_backing_bytes": hasWasm2c ? linearMemoryBacking() : null,
         ...arm.figures,
+        ...emulated.figures,
       },
       notes: {
         "firmware.wasm_bytes": "release build, goal <= 12288",
@@ -105,6 +181,7 @@ export const firmwareSection: BenchSection = {
         "firmware.memory_used_bytes": "of the one 65536-byte page, including the 32 KiB edge buffer",
         "firmware.linear_memory_backing_bytes": "static storage a C port gives the page: fw_memory_used() + 256 B, rounded up to 1 KiB",
         ...arm.notes,
+        ...emulated.notes,
       },
     };
   },

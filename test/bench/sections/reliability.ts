@@ -8,6 +8,10 @@ import { runInNewContext } from "node:vm";
 import { runFuzz } from "../../reliability/fuzz/run-fuzz.ts";
 import { sum } from "../../reliability/fuzz/tally.ts";
 import { runSoak, SOAK_FAULTS } from "../../reliability/soak.ts";
+import { mkdtempSync, rmSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { runHostileCorpus } from "../../reliability/hostile/corpus.ts";
 import type { BenchSection } from "./types.ts";
 
 const FUZZ_CASES = 100_000;
@@ -24,6 +28,10 @@ function heapAfterGc(): number {
 export const reliabilitySection: BenchSection = {
   name: "reliability",
   async run(progress) {
+    const hostileDir = mkdtempSync(join(tmpdir(), "henrytick-bench-hostile-"));
+    const hostile = await runHostileCorpus(hostileDir).finally(() => rmSync(hostileDir, { recursive: true, force: true }));
+    for (const s of hostile.samples) progress(`hostile: ${s}`);
+
     const t0 = performance.now();
     const tallies = runFuzz(FUZZ_CASES, 7_000_001, (t) => progress(`fuzz ${t.target}: ${t.cases} cases, ${t.crashes} crashes, ${t.uncoded} uncoded, ${t.known} known`));
     const fuzz = sum(tallies);
@@ -42,6 +50,9 @@ export const reliabilitySection: BenchSection = {
 
     return {
       figures: {
+        "reliability.hostile_files": hostile.tried,
+        "reliability.hostile_wrong_numbers": hostile.wrong_numbers,
+        "reliability.hostile_crashes_or_hangs": hostile.crashes + hostile.hangs,
         "reliability.fuzz_cases": fuzz.cases,
         "reliability.crashes": fuzz.crashes + soak.crashes,
         "reliability.fuzz_uncoded_rejections": fuzz.uncoded,
@@ -58,6 +69,9 @@ export const reliabilitySection: BenchSection = {
         "reliability.soak_readings_per_s": soak.measurements / soak_s,
       },
       notes: {
+        "reliability.hostile_files": `the hostile corpus (test/reliability/hostile/corpus.ts): doctored captures, paths that are not captures, calibration profiles; ${hostile.refused} refused with a code (${Object.entries(hostile.codes).map(([k, n]) => `${k} ${n}`).join(", ")}), ${hostile.other_code} with another code than the case's, ${hostile.skipped} skipped`,
+        "reliability.hostile_wrong_numbers": "cases that gave a number (or a profile that was accepted) where a coded refusal is due; goal 0",
+        "reliability.hostile_crashes_or_hangs": "cases that ended in an uncoded error, a crash of the CLI process or no end within 30 s; goal 0",
         "reliability.fuzz_cases": tallies.map((t) => `${t.target} ${t.cases}`).join(", "),
         "reliability.crashes": "fuzz crashes (exception outside the documented error class, wasm trap, malformed output) + soak errors without a code",
         "reliability.fuzz_uncoded_rejections": "rejections by the right error class but without a stable code (ScenarioError)",

@@ -9,9 +9,12 @@ import { closeSync, ftruncateSync, mkdirSync, openSync, rmSync, writeFileSync } 
 import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { MAX_CAPTURE_BYTES, MAX_CAPTURE_EDGES, readCaptureFile, serializeCapture, type CaptureV1 } from "../../../host/src/capture/capture-file.ts";
+import { deviceCalibration } from "../../../host/src/calibration/device-calibration.ts";
 import { CodedError } from "../../../host/src/coded-error.ts";
 import { writeFileAtomic } from "../../../host/src/fs/atomic-write.ts";
+import { measurePart } from "../../../host/src/measure/measure-part.ts";
 import { analyzeCapture } from "../../../host/src/measure/read-once.ts";
+import { openTester } from "../../../host/src/open-tester.ts";
 import type { CalibrationProfile } from "../../../host/src/calibration/profile-schema.ts";
 
 export type Edit = (c: CaptureV1) => CaptureV1;
@@ -167,3 +170,62 @@ export function writeProfileCase(c: ProfileCase, device_id: string, dir: string)
 }
 
 export { fromError as outcomeOf };
+
+// ---- the whole corpus, for the bench ----
+
+
+export interface CorpusTally {
+  tried: number;
+  refused: number;
+  /** A number returned for a case that must be refused. */
+  wrong_numbers: number;
+  crashes: number;
+  hangs: number;
+  skipped: number;
+  /** A refusal with a code other than the case's own. */
+  other_code: number;
+  codes: Record<string, number>;
+  samples: string[];
+}
+
+/** Runs every capture, path and profile case once. */
+export async function runHostileCorpus(dir: string): Promise<CorpusTally> {
+  const tally: CorpusTally = { tried: 0, refused: 0, wrong_numbers: 0, crashes: 0, hangs: 0, skipped: 0, other_code: 0, codes: {}, samples: [] };
+  const note = (name: string, codes: string[], o: Outcome) => {
+    tally.tried++;
+    if (o.kind === "refused") {
+      tally.refused++;
+      tally.codes[o.code] = (tally.codes[o.code] ?? 0) + 1;
+      if (!codes.includes(o.code)) {
+        tally.other_code++;
+        tally.samples.push(`${name}: ${o.code} (expected ${codes.join("/")})`);
+      }
+    } else {
+      if (o.kind === "number") tally.wrong_numbers++;
+      else if (o.kind === "crash") tally.crashes++;
+      else if (o.kind === "hang") tally.hangs++;
+      else tally.skipped++;
+      tally.samples.push(`${name}: ${JSON.stringify(o)}`);
+    }
+  };
+  const t = await openTester({ scenario: "drawer-choke-330u", seed: 1 });
+  try {
+    const base = (await measurePart(t.client)).capture;
+    for (const c of CAPTURE_CASES) note(c.name, c.codes, c.edit ? runEditCase(c, base, dir) : runPathCase(c, dir));
+    for (const c of PROFILE_CASES) {
+      const store = join(dir, `profile-${c.name.replace(/[^A-Za-z0-9]+/g, "-")}`);
+      writeProfileCase(c, t.client.identity.device_id, store);
+      let o: Outcome;
+      try {
+        deviceCalibration(t.client, { dir: store });
+        o = { kind: "number", inductance_h: NaN }; // accepted: measure would apply it
+      } catch (e) {
+        o = fromError(e);
+      }
+      note(`profile: ${c.name}`, c.codes, o);
+    }
+  } finally {
+    await t.close();
+  }
+  return tally;
+}
