@@ -3,7 +3,7 @@
 // produces goes to firmware/build/native/ (ignored by git). Needs the Debian packages `wabt`
 // (wasm2c and its wasm-rt.h) and, for the ARM images, `gcc-arm-none-eabi`.
 
-import { execFileSync, spawnSync } from "node:child_process";
+import { execFileSync, spawn, spawnSync } from "node:child_process";
 import { copyFileSync, existsSync, mkdirSync, statSync, writeFileSync } from "node:fs";
 import { dirname, join } from "node:path";
 import { fileURLToPath } from "node:url";
@@ -163,6 +163,41 @@ export function buildBoardHostSim(): string {
     join(PORTS, "host", "f411-hostsim.c"),
   ]);
   return out;
+}
+
+export const hasQemuArm = found("qemu-system-arm");
+/** The core clock of QEMU's STM32F405 model (netduinoplus2), which SysTick counts. */
+export const QEMU_F405_CORE_HZ = 168e6;
+
+export interface BoardMergeCheck {
+  count: number;
+  fault: number;
+  checksum: number;
+  /** Instructions the merge took on the emulated core (SysTick under -icount shift=0). */
+  instructions: number;
+}
+
+/**
+ * Boots the board port's QEMU variant (built with a table by buildBoard) until it has printed
+ * its merge line on USART2, one instruction per emulated nanosecond; returns the line's figures.
+ */
+export function runBoardMergeCheck(elf: string): Promise<BoardMergeCheck> {
+  const q = spawn("qemu-system-arm", ["-M", "netduinoplus2", "-kernel", elf, "-display", "none", "-monitor", "none",
+    "-icount", "shift=0", "-serial", "null", "-serial", "stdio"], { stdio: ["ignore", "pipe", "pipe"] });
+  return new Promise((resolve, reject) => {
+    let out = "";
+    let err = "";
+    q.stderr.on("data", (d) => (err += d));
+    q.on("exit", (code) => reject(new Error(`qemu exited ${code} before the merge line: ${err}`)));
+    q.stdout.on("data", (d) => {
+      out += d;
+      const m = /^merge (\d+) (\d+) (\d+) (\d+)\n/m.exec(out);
+      if (!m) return;
+      q.kill();
+      const [count, fault, checksum, systicks] = m.slice(1).map(Number);
+      resolve({ count, fault, checksum, instructions: (systicks / QEMU_F405_CORE_HZ) * 1e9 });
+    });
+  });
 }
 
 /** A recorded ring compiled into the board port's QEMU variant: cm_replay's arguments (merge-replay.h). */

@@ -19,6 +19,26 @@ describe("uncalibrated readings on the smallest tank", () => {
     expect(Math.max(...rows.map((r) => r.error_in_u))).toBeLessThan(1.5);
   });
 
+  it("on the 10 nF tank too: at least 93 % of 20 boards and parts", async () => {
+    const { coverage } = await uncalibratedSmallTankCoverage(20, 101, 1);
+    expect(coverage).toBeGreaterThanOrEqual(0.93);
+  });
+
+  it("a 50 mH, 400 Ω part, automatically ranged onto the 1 nF tank: U covers L (C + Cs)/C on 3 seeds", async () => {
+    const part = { inductance_h: 50e-3, series_ohm: 400, self_capacitance_f: 10e-12 };
+    for (const seed of [1, 2, 3]) {
+      const t = await openTester({ part, seed });
+      try {
+        const r = await measurePart(t.client, {});
+        expect(r.settings.tank).toBe(0);
+        const apparent = part.inductance_h * (1 + part.self_capacitance_f / t.client.profile.tanks[0].nominal_f);
+        expect(Math.abs(r.analysis.inductance_h - apparent)).toBeLessThan(r.analysis.inductance_u_h);
+      } finally {
+        await t.close();
+      }
+    }
+  });
+
   it("drawer-choke-330u on drive 2, tank 0: U covers L (C + Cs)/C and agrees with the advice's u(L)", async () => {
     const t = await openTester({ scenario: "drawer-choke-330u" });
     try {

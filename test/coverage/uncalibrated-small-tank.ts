@@ -1,15 +1,16 @@
-// Uncalibrated readings on the smallest tank over a class of parts and boards: does the stated U
-// (k = 2) cover the inductance the reading stands for? A single-tank reading is the apparent
-// inductance L (C + Cs)/C with the part's self-capacitance Cs in the tank and C the tank's nominal
-// value (docs/calibration.md); its U also carries a typical Cs, so the part's own L is checked too. On a 1 nF tank the capacitance the reading cannot
-// separate from the tank (the part's self-capacitance, the fixture and switch node) moves L by
-// percents, far more than the fit, so this is where an incomplete budget shows.
+// Uncalibrated readings on a small tank (the smallest by default) over a class of parts and
+// boards: does the stated U (k = 2) cover the inductance the reading stands for? A single-tank
+// reading is the apparent inductance L (C + Cs)/C with the part's self-capacitance Cs in the tank
+// and C the tank's nominal value (docs/calibration.md); its U also carries a typical Cs, so the
+// part's own L is counted too. On a 1 nF tank the capacitance the reading cannot separate from
+// the tank (the part's self-capacitance, the fixture and switch node) moves L by percents, far
+// more than the fit, so this is where an incomplete budget shows.
 //
 // Each draw is one board off the line and one part, all invented for the check: tank capacitors
 // within their ±1 % tolerance (rectangular, docs/hardware.md), clip leads 0-5 pF and a switch node
 // of 12-24 pF (the reference board has 2.5 pF and 18 pF, docs/hardware.md), parts of 100 µH to
-// 50 mH with Q 20-300 on that tank and 0-12 pF of self-capacitance. The setting is the advice's
-// best allowed drive on tank 0, from the part's true values (no probe).
+// 50 mH with Q 20-300 on the 1 nF tank and 0-12 pF of self-capacitance. The setting is the
+// advice's best allowed drive on the tank, from the part's true values (no probe).
 
 import type { PartEstimate } from "../../host/src/ranging/estimate.ts";
 import { adviseSettings } from "../../host/src/ranging/advice.ts";
@@ -36,7 +37,6 @@ export interface CoverageRow extends CoverageDraw {
   warnings: string[];
 }
 
-const SMALLEST_TANK = 0;
 
 export function drawCase(seed: number): CoverageDraw {
   const rng = new Random(0xc0ffee ^ seed);
@@ -55,16 +55,16 @@ export function drawCase(seed: number): CoverageDraw {
   return { board, part, seed };
 }
 
-/** One uncalibrated reading of a draw on the smallest tank. */
-export async function readDraw(d: CoverageDraw): Promise<CoverageRow> {
+/** One uncalibrated reading of a draw on `tank` (default the smallest). */
+export async function readDraw(d: CoverageDraw, tank = 0): Promise<CoverageRow> {
   const rig = await openRig({ part: d.part, seed: d.seed, board: d.board, client: { reply_timeout_ms: 10_000 } });
   try {
     const profile = rig.client.profile;
-    const c = profile.tanks[SMALLEST_TANK].nominal_f;
+    const c = profile.tanks[tank].nominal_f;
     const estimate: PartEstimate = { l_h: d.part.inductance_h, q_points: [{ q: Math.sqrt(d.part.inductance_h / c) / d.part.series_ohm, tank_f: c }], fitted: false };
-    const best = adviseSettings(profile, estimate, { max_peak_v: 28.8, min_ticks_per_period: 40 }).find((a) => a.refused === "" && a.tank === SMALLEST_TANK);
-    if (!best) throw new Error(`no allowed drive on tank ${SMALLEST_TANK} for ${JSON.stringify(d.part)}`);
-    const r = await measurePart(rig.client, { drive: best.drive, tank: SMALLEST_TANK, charge_us: best.charge_us, estimate, keep_suspect: true });
+    const best = adviseSettings(profile, estimate, { max_peak_v: 28.8, min_ticks_per_period: 40 }).find((a) => a.refused === "" && a.tank === tank);
+    if (!best) throw new Error(`no allowed drive on tank ${tank} for ${JSON.stringify(d.part)}`);
+    const r = await measurePart(rig.client, { drive: best.drive, tank, charge_us: best.charge_us, estimate, keep_suspect: true });
     const a = r.analysis;
     const apparent = d.part.inductance_h * (1 + d.part.self_capacitance_f / c);
     return {
@@ -77,9 +77,9 @@ export async function readDraw(d: CoverageDraw): Promise<CoverageRow> {
   }
 }
 
-/** Fractions of `n` draws (seeds from `first`) whose apparent L, and whose own L, lie inside the reading's U. */
-export async function uncalibratedSmallTankCoverage(n: number, first = 1): Promise<{ coverage: number; own_coverage: number; rows: CoverageRow[] }> {
+/** Fractions of `n` draws (seeds from `first`) on `tank` whose apparent L, and whose own L, lie inside the reading's U. */
+export async function uncalibratedSmallTankCoverage(n: number, first = 1, tank = 0): Promise<{ coverage: number; own_coverage: number; rows: CoverageRow[] }> {
   const rows: CoverageRow[] = [];
-  for (let s = first; s < first + n; s++) rows.push(await readDraw(drawCase(s)));
+  for (let s = first; s < first + n; s++) rows.push(await readDraw(drawCase(s), tank));
   return { coverage: rows.filter((r) => r.error_in_u <= 1).length / n, own_coverage: rows.filter((r) => r.own_error_in_u <= 1).length / n, rows };
 }

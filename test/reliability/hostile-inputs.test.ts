@@ -5,7 +5,7 @@
 // CLI (host/dist: build first) in its own process under a time bound.
 
 import { spawnSync } from "node:child_process";
-import { mkdtempSync, rmSync } from "node:fs";
+import { mkdtempSync, rmSync, symlinkSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
@@ -113,6 +113,19 @@ describe("hostile calibration profiles: checked against the tester's board", () 
     } finally {
       await t.close();
     }
+  });
+
+  it.each([
+    ["a FIFO with no writer", (f: string) => spawnSync("mkfifo", [f]).status === 0],
+    ["a symlink to /dev/zero", (f: string) => { symlinkSync("/dev/zero", f); return true; }],
+  ])("a profile that is %s is PROFILE_UNREADABLE at once, never read (measure in its own process)", (_, plant) => {
+    const probe = spawnSync(process.execPath, [CLI, "profile", "--sim", "--json"], { encoding: "utf8" });
+    const id = JSON.parse(probe.stdout).identity.device_id;
+    const store = mkdtempSync(join(dir, "planted-"));
+    expect(plant(join(store, `calibration-${id}.json`))).toBe(true);
+    const r = spawnSync(process.execPath, ["--max-old-space-size=512", CLI, "measure", "--sim", "--config-dir", store], { encoding: "utf8", timeout: 60_000 });
+    expect(r.status, r.stderr).toBe(1);
+    expect(r.stderr).toMatch(/\[PROFILE_UNREADABLE\] cannot read .*: it is a (pipe \(FIFO\)|device), not a profile file/);
   });
 
   it("measure with a tank index of 1e8 in the profile ends at once with PROFILE_INVALID, exit 1", () => {

@@ -45,8 +45,8 @@ describe("terminal sanitiser", () => {
     expect(s.length).toBeGreaterThan(0);
   });
 
-  it("shows what was there: ESC as ␛, CR as ␍, a C1 or bidirectional control as �", () => {
-    expect(sanitizeForTerminal("\x1b[2Jx\ry\u202ez")).toBe("␛[2Jx␍y\ufffdz");
+  it("shows what was there: ESC as ␛, CR as ␍, DEL, a C1 or bidirectional control as \\uXXXX", () => {
+    expect(sanitizeForTerminal("\x1b[2Jx\ry\u202ez\x9b\x7f")).toBe("␛[2Jx␍y\\u202ez\\u009b\\u007f");
     expect(sanitizeForTerminal("a\tb\nc")).toBe("a\tb\nc");
   });
 
@@ -145,6 +145,11 @@ describe("hostile labels through the CLI", () => {
     expect(csv.stdout).not.toMatch(RAW_CONTROL);
     const f2 = join(dir, "formula-label.json");
     writeCaptureFile(f2, { ...captureFor(3), meta: { label: "=HYPERLINK(\"http://x\")" } });
+    // JSON keeps the label: JSON.stringify escapes C0 controls itself, and the stand-ins of the
+    // controls it leaves raw (bidirectional, C1, DEL) are JSON escapes of the same characters.
+    const json = runCli(["analyze", f, "--json"]);
+    expect(json.stdout).not.toMatch(RAW_CONTROL);
+    expect(JSON.parse(json.stdout).label).toBe(label);
     const csv2 = runCli(["analyze", f2, "--csv"]);
     expect(csv2.stdout).toContain(`"'=HYPERLINK(""http://x"")"`);
   });

@@ -106,6 +106,19 @@ describe("rise/fall delay skew", () => {
   });
 });
 
+describe("rise/fall delay skew on a fast ring", () => {
+  // 3.4 MHz, offset thresholds: 33 ns of skew is 0.7 rad of phase, and a fit started at the
+  // prior's 0 ns lands in a false basin (Q several times too high) that steps in the skew cannot
+  // leave; the analysis searches the prior's span first.
+  const part: Part = { l_h: 4.7e-6, c_f: 470e-12, q: 300, tick_hz: 40e6 };
+  it("is found across its prior's span, and Q stays inside U", () => {
+    const prior: ComparatorTiming = { skew_s: 0, skew_u_s: 20e-9, skew_source: "board prior" };
+    const j = judge(part, 8, (s) => capture(part, { delay_rise_s: 45e-9 + 33e-9, noise_v: 0.3e-3, jitter_s: 12.5e-9 }, s, prior));
+    expect(j.q_covered).toBeGreaterThanOrEqual(6 / 8);
+    expect(Math.abs(j.q_bias_over_u)).toBeLessThan(0.5);
+  });
+});
+
 describe("first passage of continuous noise", () => {
   // A slow high-Q ring: its tail edges sit on slopes of a few sigma / tau, where the first
   // passage of ring + noise comes tens of ns early (issue: Q +0.4 to +0.8 % high, U covering

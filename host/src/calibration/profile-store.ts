@@ -4,10 +4,11 @@
 // fs/atomic-write.ts, so a reader sees the old file or the new one, never half of either; the
 // profile being replaced is kept as the "previous" file.
 
-import { closeSync, existsSync, fsyncSync, mkdirSync, openSync, readFileSync, renameSync, unlinkSync } from "node:fs";
+import { closeSync, existsSync, fsyncSync, mkdirSync, openSync, renameSync, unlinkSync } from "node:fs";
 import { homedir } from "node:os";
 import { dirname, join } from "node:path";
 import { writeFileAtomic } from "../fs/atomic-write.ts";
+import { BoundedReadError, readTextBounded } from "../fs/read-bounded.ts";
 import { CalibrationError } from "./errors.ts";
 import type { CalibrationProfile } from "./profile-schema.ts";
 import { validateProfile } from "./profile-schema.ts";
@@ -53,6 +54,9 @@ export function profilePaths(device_id: string, opts: StoreOptions = {}): { curr
   };
 }
 
+/** The largest profile file read: 256 tanks of a few hundred bytes each fit many times over. */
+export const MAX_PROFILE_BYTES = 1 << 20;
+
 /** Highest tank or drive index a profile may name: no board has more than 256 of either. */
 export const MAX_PROFILE_INDEX = 255;
 
@@ -73,9 +77,11 @@ export function readProfileFile(path: string): CalibrationProfile | null {
   if (!existsSync(path)) return null;
   let text: string;
   try {
-    text = readFileSync(path, "utf8");
+    text = readTextBounded(path, MAX_PROFILE_BYTES);
   } catch (e) {
-    throw new CalibrationError("PROFILE_UNREADABLE", `cannot read ${path} (${(e as Error).message}); check its permissions`);
+    const r = e instanceof BoundedReadError ? e.refusal : null;
+    const why = r?.kind === "not-regular" ? `it is ${r.what}, not a profile file` : r?.kind === "too-large" ? `its ${r.size} bytes are more than a profile can be (at most ${MAX_PROFILE_BYTES})` : (e as Error).message;
+    throw new CalibrationError("PROFILE_UNREADABLE", `cannot read ${path}: ${why}; check the file and its permissions, or remove it and calibrate again`);
   }
   let raw: unknown;
   try {
@@ -195,7 +201,7 @@ export function completePendingRestore(device_id: string, opts: StoreOptions = {
   if (!existsSync(paths.journal)) return false;
   let j: RestoreJournal | null = null;
   try {
-    const raw = JSON.parse(readFileSync(paths.journal, "utf8")) as Partial<RestoreJournal>;
+    const raw = JSON.parse(readTextBounded(paths.journal, 2 * MAX_PROFILE_BYTES + 4096)) as Partial<RestoreJournal>;
     if (raw.format === JOURNAL_FORMAT && raw.device_id === device_id && raw.current) {
       j = {
         format: JOURNAL_FORMAT, device_id,

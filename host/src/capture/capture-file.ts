@@ -1,9 +1,9 @@
 // Capture file v1 (docs/capture-format.md): the edge record of one ring-down with everything
 // needed to analyse it again later. Written by `measure --save`, read by `analyze`.
 
-import { closeSync, constants, fstatSync, openSync, readSync } from "node:fs";
 import { CodedError } from "../coded-error.ts";
 import { writeFileAtomic } from "../fs/atomic-write.ts";
+import { BoundedReadError, readTextBounded } from "../fs/read-bounded.ts";
 import { schemaProblem } from "../schemas.ts";
 import type { Warning } from "../analysis/types.ts";
 
@@ -101,41 +101,20 @@ export function parseCapture(text: string): CaptureV1 {
   return validateCapture(raw);
 }
 
-/**
- * A capture file's text, read with bounds: only a regular file (a device such as /dev/zero, a
- * FIFO or a folder is refused before anything is read; O_NONBLOCK keeps a FIFO without a writer
- * from blocking the open) of at most MAX_CAPTURE_BYTES.
- */
+/** A capture file's text: a regular file of at most MAX_CAPTURE_BYTES (fs/read-bounded.ts). */
 function readBounded(path: string): string {
-  let fd: number;
   try {
-    fd = openSync(path, constants.O_RDONLY | constants.O_NONBLOCK);
+    return readTextBounded(path, MAX_CAPTURE_BYTES);
   } catch (e) {
-    throw new CaptureFileError(`cannot read ${path}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}; check the path and its permissions`);
-  }
-  try {
-    const st = fstatSync(fd);
-    if (!st.isFile()) {
-      const kind = st.isDirectory() ? "a folder" : st.isFIFO() ? "a pipe (FIFO)" : st.isCharacterDevice() || st.isBlockDevice() ? "a device" : st.isSocket() ? "a socket" : "not a regular file";
-      throw new CaptureFileError(`${path} is ${kind}, not a capture file; give the path of a file written by "henrytick measure --save"`);
+    if (!(e instanceof BoundedReadError)) throw e;
+    const r = e.refusal;
+    switch (r.kind) {
+      case "open": throw new CaptureFileError(`cannot read ${path}: ${r.code}; check the path and its permissions`);
+      case "not-regular": throw new CaptureFileError(`${path} is ${r.what}, not a capture file; give the path of a file written by "henrytick measure --save"`);
+      case "too-large": throw new CaptureFileError(`${path} is ${r.size} bytes, more than a capture file can be (at most ${MAX_CAPTURE_BYTES} bytes for ${MAX_CAPTURE_EDGES} edges); it is not a capture file`);
+      case "grew": throw new CaptureFileError(`${path} grew while being read (over ${r.size} bytes); read it again once it is written`);
+      default: throw new CaptureFileError(`cannot read ${path}: ${r.code}`);
     }
-    if (st.size > MAX_CAPTURE_BYTES) {
-      throw new CaptureFileError(`${path} is ${st.size} bytes, more than a capture file can be (at most ${MAX_CAPTURE_BYTES} bytes for ${MAX_CAPTURE_EDGES} edges); it is not a capture file`);
-    }
-    const buf = Buffer.alloc(st.size + 1);
-    let got = 0;
-    for (;;) {
-      const n = readSync(fd, buf, got, buf.length - got, null);
-      if (n === 0) break;
-      got += n;
-      if (got > st.size) throw new CaptureFileError(`${path} grew while being read (over ${st.size} bytes); read it again once it is written`);
-    }
-    return buf.toString("utf8", 0, got);
-  } catch (e) {
-    if (e instanceof CaptureFileError) throw e;
-    throw new CaptureFileError(`cannot read ${path}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
-  } finally {
-    closeSync(fd);
   }
 }
 

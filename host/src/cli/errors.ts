@@ -84,13 +84,15 @@ const UNSAFE = /[\x00-\x08\x0a-\x1f\x7f\x80-\x9f\u202a-\u202e\u2066-\u2069\u200e
 function standIn(c: string): string {
   const k = c.charCodeAt(0);
   if (k < 0x20) return String.fromCharCode(0x2400 + k); // Unicode control pictures: ␛ ␍ ␇ …
-  if (k === 0x7f) return "\u2421"; // ␡
-  return "\ufffd";
+  // DEL, C1 and bidirectional controls as a JSON-style escape: readable on a terminal, and inside
+  // a JSON string (which JSON.stringify leaves them raw in) it decodes back to the same character.
+  return `\\u${k.toString(16).padStart(4, "0")}`;
 }
 
 /**
  * Text safe to print on a terminal: every control character except tab and (unless `oneLine`)
- * newline becomes a visible stand-in (ESC → ␛, CR → ␍, a C1 or bidirectional control → �).
+ * newline becomes a visible stand-in: C0 controls as their control pictures (ESC → ␛, CR → ␍),
+ * DEL, C1 and bidirectional controls as \uXXXX (U+202E → "\u202e").
  */
 export function sanitizeForTerminal(text: string, opts: { oneLine?: boolean } = {}): string {
   let out = "";

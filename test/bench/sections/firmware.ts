@@ -1,14 +1,14 @@
 // Firmware budgets: release wasm size, wire bytes per edge of typical captures, and the native
-// C build's section sizes for Cortex-M0+ (armv6m) and Cortex-M4 (armv7em), and the STM32F411CE
-// board image's flash and RAM; the C build on the emulated STM32F405 (QEMU): its readings against
-// --sim on both cores, its pace and its stack.
+// C build's section sizes for Cortex-M0+ (armv6m) and Cortex-M4 (armv7em); the STM32F411CE
+// board image's flash and RAM and its capture merge's cost on the emulated core; the C build on
+// the emulated STM32F405 (QEMU): its readings against --sim on both cores, its pace and its stack.
 
 import { statSync } from "node:fs";
 import { firmwareWasmPath } from "../../../host/src/sim/firmware-image.ts";
 import { SimTester } from "../../../host/src/sim/sim-tester.ts";
 import { loadScenario, listScenarios } from "../../../host/src/sim/scenario.ts";
 import { encodeCommand } from "../../../host/src/device/frames.ts";
-import { buildArm, buildBoard, buildQemuF405, hasArmGcc, hasWasm2c, linearMemoryBacking } from "../../../firmware/ports/native-build.ts";
+import { buildArm, buildBoard, buildQemuF405, hasArmGcc, hasQemuArm, hasWasm2c, linearMemoryBacking, runBoardMergeCheck } from "../../../firmware/ports/native-build.ts";
 import { spawn } from "node:child_process";
 import { fileURLToPath } from "node:url";
 import { measurePart, openTester } from "../../../host/src/index.ts";
@@ -51,6 +51,23 @@ function armFigures(): { figures: BenchFigures; notes: Record<string, string> } 
     notes["firmware.board_ram_bytes"] = "data + bss of the board image (linear memory backing, 2 x 2 KiB DMA rings, runtime; the C stack comes on top), goal <= 49152";
   }
   return { figures, notes };
+}
+
+/** The board port's capture merge on the emulated Cortex-M4, fed the host's fastest ring. */
+async function boardMergeCost(): Promise<{ figures: BenchFigures; notes: Record<string, string> }> {
+  const key = "firmware.board_merge_instructions_per_edge";
+  if (!hasWasm2c || !hasArmGcc || !hasQemuArm) {
+    return { figures: { [key]: null }, notes: { [key]: "not measured: install Debian packages wabt, gcc-arm-none-eabi, libnewlib-arm-none-eabi, qemu-system-arm" } };
+  }
+  // A 1.6 MHz square wave (40 ticks per period), 8192 edges, through the board's 512-entry rings.
+  const edges: number[] = [];
+  for (let i = 0; i < 8192; i++) edges.push((100 + 20 * i) * 2 + (i % 2 === 0 ? 1 : 0));
+  const r = await runBoardMergeCheck(buildBoard({ edges, zero: 4294000000, ring: 512, capacity: 8192, pollEvery: 0 }).elf);
+  const ok = r.count === edges.length && r.fault === 0;
+  return {
+    figures: { [key]: ok ? Math.round((r.instructions / edges.length) * 10) / 10 : null },
+    notes: { [key]: ok ? "QEMU netduinoplus2, -icount shift=0 (instructions, not cycles), 1.6 MHz ring of 8192 edges" : `merge failed: ${r.count} entries, fault ${r.fault}` },
+  };
 }
 
 const CLI = fileURLToPath(new URL("../../../host/bin/henrytick.js", import.meta.url));
@@ -161,6 +178,7 @@ export const firmwareSection: BenchSection = {
       edges += r.edges;
     }
     const arm = armFigures();
+    const merge = await boardMergeCost();
     const emulated = await emulatedFigures();
     // Top of the bump allocator once the module has started: everything the firmware will ever
     // use of its one 64 KiB page (static data, buffers, the edge buffer).
@@ -173,6 +191,7 @@ export const firmwareSection: BenchSection = {
         "firmware.memory_used_bytes": used,
         "firmware.linear_memory_backing_bytes": hasWasm2c ? linearMemoryBacking() : null,
         ...arm.figures,
+        ...merge.figures,
         ...emulated.figures,
       },
       notes: {
@@ -181,6 +200,7 @@ export const firmwareSection: BenchSection = {
         "firmware.memory_used_bytes": "of the one 65536-byte page, including the 32 KiB edge buffer",
         "firmware.linear_memory_backing_bytes": "static storage a C port gives the page: fw_memory_used() + 256 B, rounded up to 1 KiB",
         ...arm.notes,
+        ...merge.notes,
         ...emulated.notes,
       },
     };
