@@ -277,9 +277,9 @@ async function short(t: OpenedTester, store: StoreOptions, v: Values, caution: (
     await waitForEnter("short the two clips to each other (metal to metal, nothing else on them), then press Enter");
   }
   const out = await measureLeadInductance(t.client, { repeats, calibration: appliedCalibration(profile, "calibration in progress"), onProgress: progress });
-  process.stdout.write(`   leads: ${formatSi(out.entry.l_h, "H", 4)} ± ${formatSi(2 * out.entry.u_h, "H", 2)} (k = 2), subtracted from every later reading; ${out.readings_h.length} rings at ${formatSi(out.f0_hz, "Hz", 4)}\n`);
+  say(`   leads: ${formatSi(out.entry.l_h, "H", 4)} ± ${formatSi(2 * out.entry.u_h, "H", 2)} (k = 2), subtracted from every later reading; ${out.readings_h.length} rings at ${formatSi(out.f0_hz, "Hz", 4)}\n`);
   profile.leads = out.entry;
-  commit(profile, store);
+  commit(profile, store, { leads: out.entry, drive: out.drive, tank: out.tank, readings_h: out.readings_h });
   return 0;
 }
 
