@@ -120,7 +120,7 @@ describe.skipIf(!canEmulate).each(CORES)(`the emulated STM32F405, Cortex-%s${SKI
     expect(withoutTime(r.stdout)).toEqual(withoutTime(sim.stdout));
   }, 120_000);
 
-  it("calibrate timebase against the host clock finds the board's crystal error (+11.5 ppm) within its uncertainty", async () => {
+  it("calibrate timebase against the host clock finds the board's crystal error (+11.5 ppm) within its uncertainty (k = 3)", async () => {
     // The host clock is real time on both sides, so this is the one reading that cannot match
     // --sim bit for bit: the check is the one calibration.test.ts makes of --sim. 8 s rather than
     // 4: a TK read through the emulator takes some 10 ms (QEMU hands the line over byte by byte),
@@ -129,7 +129,9 @@ describe.skipIf(!canEmulate).each(CORES)(`the emulated STM32F405, Cortex-%s${SKI
     expect(r.status, r.stderr).toBe(0);
     const m = /timebase (-?[\d.]+) ppm ± ([\d.]+) ppm \(k = 2\)/.exec(r.stdout);
     expect(m).not.toBeNull();
-    expect(Math.abs(Number(m![1]) - board.timer.ppm), r.stdout).toBeLessThanOrEqual(Number(m![2]));
+    // Within 1.5 times the expanded uncertainty (k = 2), i.e. about k = 3: a k = 2 interval misses
+    // one run in twenty by chance, and this runs on two cores in every CI run.
+    expect(Math.abs(Number(m![1]) - board.timer.ppm), r.stdout).toBeLessThanOrEqual(1.5 * Number(m![2]));
     expect(device.edges.stats.time_syncs).toBeGreaterThan(10); // one per idle spell the host ends
   }, 120_000);
 

@@ -98,6 +98,7 @@ describe("exit status (docs/user-guide.md)", () => {
   it("usage errors are 2, coded errors 1, an uncoded RangeError or TypeError is an internal error 70", () => {
     expect(status(new CliUsageError("bad")).code).toBe(2);
     expect(status(new ValueSyntaxError("10x", "nope")).code).toBe(2);
+    expect(status(Object.assign(new RangeError("10uF is a capacitance"), { code: "WRONG_UNIT" })).code).toBe(2);
     expect(status(Object.assign(new Error("no ring"), { code: "NO_RING" })).code).toBe(1);
     const range = status(new RangeError("Invalid array length"));
     expect(range.code).toBe(70);

@@ -19,7 +19,7 @@ import { correlationInflation, residualCorrelation } from "./residual-correlatio
 import { huberWeight, madSigma, median } from "./robust-stats.ts";
 import { invertSymmetric } from "./small-linear-algebra.ts";
 import { checkInput, MIN_EDGES, type CheckedInput } from "./validate-input.ts";
-import { delayEffectSd, edgeDelays, jointTimingStep, rampReach, ringSlopeAt, skewStep, type ComparatorTiming, type LinearFit, type TimingDelays } from "./comparator-timing.ts";
+import { correctionCovariance, delayEffectSd, edgeDelays, jointTimingStep, rampReach, ringSlopeAt, skewStep, type ComparatorTiming, type LinearFit, type TimingDelays } from "./comparator-timing.ts";
 import { AnalysisError, type RingAnalysis, type RingInput, type Warning } from "./types.ts";
 
 /** Huber tuning constant in robust standard deviations. */
@@ -197,6 +197,11 @@ const MAX_DELAY_RAD = 0.5;
 /** ... and this much when the corrections at MAX_DELAY_RAD cost the fit edges. */
 const FALLBACK_DELAY_RAD = 0.1;
 
+function applied(d: TimingDelays): boolean {
+  for (let k = 0; k < d.fp_s.length; k++) if (d.fp_s[k] !== 0 || d.od_s[k] !== 0) return true;
+  return false;
+}
+
 function countUsed(s: FitState): number {
   let u = 0;
   for (let k = 0; k < s.used.length; k++) u += s.used[k] > 0 ? 1 : 0;
@@ -269,8 +274,8 @@ export function fitRing(input: RingInput): FitState {
   }
   const st = skewStep(linearFitOf(s), prior - skew, priorU);
   const assumed = skew;
-  skew = finishTiming(s, timing, assumed, prior, priorU, delays, unapplied);
-  if (s.alternative) finishTiming(s.alternative, timing, assumed, prior, priorU, delays, unapplied);
+  skew = finishTiming(s, c, timing, assumed, prior, priorU, delays, unapplied, reach);
+  if (s.alternative) finishTiming(s.alternative, c, timing, assumed, prior, priorU, delays, unapplied, reach);
   let fpMax = 0, odMax = 0;
   for (let k = 0; k < n; k++) {
     if (!(s.used[k] > 0)) continue;
@@ -315,7 +320,7 @@ function searchSkew(c: CheckedInput, prior: number, priorU: number): number {
   // when there is no prior), in steps of SKEW_SEARCH_STEP_RAD of ring phase, at most
   // SKEW_SEARCH_MAX_STEPS a side.
   const span = SKEW_SEARCH_SPAN_U * (Number.isFinite(priorU) ? priorU : UNKNOWN_SKEW_SPAN_S);
-  if (!(wd > 0) || !(span * wd > SKEW_SEARCH_STEP_RAD)) return prior;
+  if (!(wd > 0) || !(span * wd > SKEW_SEARCH_MIN_SPAN_RAD)) return prior;
   const steps = Math.min(SKEW_SEARCH_MAX_STEPS, Math.ceil((span * wd) / SKEW_SEARCH_STEP_RAD));
   for (let k = -steps; k <= steps; k++) {
     if (k === 0) continue;
@@ -333,11 +338,13 @@ function searchSkew(c: CheckedInput, prior: number, priorU: number): number {
 
 /** The skew search (searchSkew): +-2.5 prior standard uncertainties in steps of 0.1 rad of ring
  *  phase, at most 8 a side (bench practice: a fit started 0.3 rad off the true skew on a
- *  3.4 MHz offset-threshold ring ended in a false basin); none where the whole span is under a
- *  step. Without a prior, +-2.5 x 30 ns. */
+ *  3.4 MHz offset-threshold ring ended in a false basin); none where the whole span is under
+ *  SKEW_SEARCH_MIN_SPAN_RAD. Without a prior, +-2.5 x 30 ns. */
 const SKEW_SEARCH_SPAN_U = 2.5;
 const SKEW_SEARCH_STEP_RAD = 0.1;
 const SKEW_SEARCH_MAX_STEPS = 8;
+/** Below this span of ring phase (rad) the Gauss-Newton steps from the prior's value suffice. */
+const SKEW_SEARCH_MIN_SPAN_RAD = 0.3;
 const UNKNOWN_SKEW_SPAN_S = 30e-9;
 
 /** The delays (first passage, overdrive) the model p predicts at the clean crossings, each held
@@ -366,11 +373,31 @@ function delaysAt(p: ArrayLike<number>, s: FitState, c: CheckedInput, timing: Co
  * the fit's own inflation. Returns the skew.
  */
 function finishTiming(
-  s: FitState, timing: ComparatorTiming, skew: number, prior: number, priorU: number, delays: TimingDelays, unapplied: TimingDelays | null,
+  s: FitState, c: CheckedInput, timing: ComparatorTiming, skew: number, prior: number, priorU: number, delays: TimingDelays,
+  unapplied: TimingDelays | null, reachRad: number,
 ): number {
-  const j = jointTimingStep(linearFitOf(s), prior - skew, priorU, delays, timing, unapplied);
+  const lf = linearFitOf(s);
+  const j = jointTimingStep(lf, prior - skew, priorU, delays, timing, unapplied);
   if (!j) return skew;
   const inflation = j.base_alpha_var > 0 ? Math.max(1, s.cov[15] / j.base_alpha_var) : 1;
+  // The corrections follow the fitted ring: what that adds to the scatter (correctionCovariance),
+  // from the delays' derivatives by central differences in the four ring parameters.
+  const n = s.edges.n;
+  const ddp = new Float64Array(4 * n);
+  const steps = [1e-7 * s.p[P_WD], 1e-6, 1e-6, 1e-6 * Math.max(s.p[P_ALPHA], 1e-9 * s.p[P_WD])];
+  for (let i = 0; i < 4 && applied(delays); i++) {
+    const hi = s.p.slice();
+    const lo = s.p.slice();
+    hi[i] += steps[i];
+    lo[i] -= steps[i];
+    const dh = delaysAt(hi, s, c, timing, reachRad);
+    const dl = delaysAt(lo, s, c, timing, reachRad);
+    for (let k = 0; k < n; k++) ddp[4 * k + i] = (dh.fp_s[k] + dh.od_s[k] - dl.fp_s[k] - dl.od_s[k]) / (2 * steps[i]);
+  }
+  const cc = applied(delays) ? correctionCovariance(lf, ddp) : null;
+  // Only where it widens: a negative diagonal would say the corrections carry information, which
+  // the delay model is not trusted for.
+  if (cc && cc[0] >= 0 && cc[5] >= 0 && cc[10] >= 0 && cc[15] >= 0) for (let i = 0; i < 16; i++) s.cov[i] += cc[i] * inflation;
   for (let i = 0; i < 4; i++) s.p[i] += j.dp[i];
   for (let i = 0; i < 16; i++) s.cov[i] += j.added_cov[i] * inflation;
   s.timingSkewSd = j.skew_sd_s * Math.sqrt(inflation);

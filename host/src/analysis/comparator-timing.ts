@@ -350,3 +350,73 @@ export function jointTimingStep(
     skew_sd_s: np === 5 ? Math.sqrt(Ninv[24]) : 0, base_alpha_var: plain[5 * P_ALPHA],
   };
 }
+
+/**
+ * The covariance the correction loop's own estimator has (fitRing: the fit at corrected times
+ * solves J^T W r = 0, with the delays d(p) taken from the model but not differentiated), less the
+ * plain fit's (J^T W J)^-1: to first order p - p_true = -A^-1 J^T W e with
+ * A = J^T W (J - slope * dd/dp), so its covariance is A^-1 (J^T W J) A^-T (a sandwich: P. J. Huber,
+ * "The behavior of maximum likelihood estimates under nonstandard conditions", Proc. Fifth Berkeley
+ * Symp. 1, 1967, from memory). Where the delays follow the weakly determined amplitude steeply
+ * (slow tail edges) this is larger than the plain covariance. `ddp`: n x 4 derivatives of the
+ * delays. Null when A is singular.
+ */
+export function correctionCovariance(f: LinearFit, ddp: Float64Array): Float64Array | null {
+  const N = normal(f);
+  const A = new Float64Array(16);
+  const n = f.w.length;
+  for (let k = 0; k < n; k++) {
+    const w = f.w[k];
+    if (!(w > 0)) continue;
+    for (let i = 0; i < 4; i++) {
+      const ji = f.jac[4 * k + i];
+      for (let j = 0; j < 4; j++) A[4 * i + j] += w * ji * (f.jac[4 * k + j] - f.slope[k] * ddp[4 * k + j]);
+    }
+  }
+  const Ainv = invert4(A);
+  const plain = invertSymmetric(4, N);
+  if (!Ainv || !plain) return null;
+  // Ainv N Ainv^T - N^-1
+  const t = new Float64Array(16);
+  for (let i = 0; i < 4; i++) for (let j = 0; j < 4; j++) for (let k = 0; k < 4; k++) t[4 * i + j] += Ainv[4 * i + k] * N[4 * k + j];
+  const out = new Float64Array(16);
+  for (let i = 0; i < 4; i++) for (let j = 0; j < 4; j++) {
+    let v = 0;
+    for (let k = 0; k < 4; k++) v += t[4 * i + k] * Ainv[4 * j + k];
+    out[4 * i + j] = v - plain[4 * i + j];
+  }
+  return out;
+}
+
+/** Inverse of a general 4 x 4 matrix (Gauss-Jordan with partial pivoting), or null. */
+function invert4(m: Float64Array): Float64Array | null {
+  const a = Float64Array.from(m);
+  const inv = new Float64Array(16);
+  for (let i = 0; i < 4; i++) inv[5 * i] = 1;
+  for (let c = 0; c < 4; c++) {
+    let piv = c;
+    for (let r = c + 1; r < 4; r++) if (Math.abs(a[4 * r + c]) > Math.abs(a[4 * piv + c])) piv = r;
+    if (!(Math.abs(a[4 * piv + c]) > 0)) return null;
+    if (piv !== c) {
+      for (let j = 0; j < 4; j++) {
+        [a[4 * c + j], a[4 * piv + j]] = [a[4 * piv + j], a[4 * c + j]];
+        [inv[4 * c + j], inv[4 * piv + j]] = [inv[4 * piv + j], inv[4 * c + j]];
+      }
+    }
+    const d = a[4 * c + c];
+    for (let j = 0; j < 4; j++) {
+      a[4 * c + j] /= d;
+      inv[4 * c + j] /= d;
+    }
+    for (let r = 0; r < 4; r++) {
+      if (r === c) continue;
+      const f = a[4 * r + c];
+      if (f === 0) continue;
+      for (let j = 0; j < 4; j++) {
+        a[4 * r + j] -= f * a[4 * c + j];
+        inv[4 * r + j] -= f * inv[4 * c + j];
+      }
+    }
+  }
+  return inv;
+}

@@ -5,6 +5,7 @@ import type { ParseArgsConfig } from "node:util";
 
 type OptionsConfig = NonNullable<ParseArgsConfig["options"]>;
 import { CliUsageError } from "./errors.ts";
+import { suggest } from "./suggest.ts";
 import { parseValue, parseValueIn, ValueError, type ParsedValue } from "../values/parse-value.ts";
 import { parseTolerance, type Tolerance } from "../values/tolerance.ts";
 
@@ -14,7 +15,35 @@ export function parse<const T extends OptionsConfig>(args: string[], options: T)
   try {
     return parseArgs({ args, options, allowPositionals: true as const, strict: true as const });
   } catch (e) {
+    const code = (e as { code?: string }).code;
+    const unknown = /Unknown option '(-{1,2}[^']+)'/.exec((e as Error).message);
+    if (code === "ERR_PARSE_ARGS_UNKNOWN_OPTION" && unknown) {
+      const typed = unknown[1].replace(/^-+/, "");
+      throw new CliUsageError(`unknown option ${unknown[1]}${suggest(typed, Object.keys(options), "--")} (the command's --help lists its options)`);
+    }
+    if (code === "ERR_PARSE_ARGS_INVALID_OPTION_VALUE") {
+      const name = /'(-{1,2}[^' ]+)/.exec((e as Error).message)?.[1];
+      throw new CliUsageError(name ? `${name} needs a value (a value starting with "-" is written ${name}=-3)` : (e as Error).message);
+    }
     throw new CliUsageError((e as Error).message);
+  }
+}
+
+/**
+ * Options that only work with another: each given without its partner is refused, naming both
+ * (`--count` without `--watch`).
+ */
+export function requireWith(values: Record<string, unknown>, needs: Record<string, string>): void {
+  for (const [opt, partner] of Object.entries(needs)) {
+    if (values[opt] !== undefined && values[opt] !== false && !values[partner]) throw new CliUsageError(`--${opt} works only with --${partner}; add --${partner} or leave out --${opt}`);
+  }
+}
+
+/** Options that cannot go together (`--json --csv`): refused, naming them. */
+export function refuseTogether(values: Record<string, unknown>, ...groups: string[][]): void {
+  for (const g of groups) {
+    const given = g.filter((o) => values[o] !== undefined && values[o] !== false);
+    if (given.length > 1) throw new CliUsageError(`use either ${given.map((o) => `--${o}`).join(" or ")}, not both`);
   }
 }
 

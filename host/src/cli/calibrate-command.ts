@@ -59,6 +59,7 @@ type Action = (t: OpenedTester, store: StoreOptions, v: Values, caution: () => v
 async function withTester(args: string[], extra: Record<string, { type: "string" | "boolean" }>, action: Action, pulses = false): Promise<number> {
   const { values, positionals } = parse(args, { ...COMMON, ...extra });
   const v = values as Values;
+  jsonMode = v.json === true;
   const target = testerTarget(v as { sim?: boolean; port?: string; seed?: string }, positionals);
   const tester = await openTester(target);
   const store: StoreOptions = storeFor({ configDir: v["config-dir"] as string | undefined, simulated: tester.sim !== undefined });
@@ -84,10 +85,15 @@ function currentProfile(t: OpenedTester, store: StoreOptions): CalibrationProfil
   return loadProfile(id, store) ?? emptyProfile(id, new Date());
 }
 
-function commit(profile: CalibrationProfile, store: StoreOptions): void {
+/** With --json, the human lines go to stderr and one JSON object (what was stored) to stdout. */
+let jsonMode = false;
+const say = (text: string) => (jsonMode ? process.stderr : process.stdout).write(text);
+
+function commit(profile: CalibrationProfile, store: StoreOptions, result: unknown): void {
   profile.updated = new Date().toISOString();
   const r = saveProfile(profile, store);
-  process.stdout.write(`   saved ${r.path}${r.previous_kept ? " (previous profile kept)" : ""}\n`);
+  say(`   saved ${r.path}${r.previous_kept ? " (previous profile kept)" : ""}\n`);
+  if (jsonMode) process.stdout.write(JSON.stringify({ saved: r.path, previous_kept: r.previous_kept, result }, null, 2) + "\n");
 }
 
 function show(t: OpenedTester, store: StoreOptions, json: boolean): Promise<number> {
@@ -120,7 +126,8 @@ function show(t: OpenedTester, store: StoreOptions, json: boolean): Promise<numb
 
 async function restore(t: OpenedTester, store: StoreOptions): Promise<number> {
   const p = restorePreviousProfile(t.client.identity.device_id, store);
-  process.stdout.write(`   restored the previous profile (updated ${p.updated}); the replaced one is now the previous\n`);
+  say(`   restored the previous profile (updated ${p.updated}); the replaced one is now the previous\n`);
+  if (jsonMode) process.stdout.write(JSON.stringify({ restored: true, updated: p.updated }, null, 2) + "\n");
   return 0;
 }
 
@@ -139,11 +146,11 @@ async function reference(t: OpenedTester, store: StoreOptions, v: Values, cautio
   const applied = appliedCalibration(profile, "calibration in progress");
   const out = await calibrateWithReference(t.client, ref, { tanks, repeats, calibration: applied, timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress });
   for (const r of out.results) {
-    process.stdout.write(`   tank ${r.tank}: ${formatSi(r.c_f, "F", 5)} ± ${formatSi(2 * r.u_f, "F", 2)} (k = 2), ${((r.c_f / r.nominal_f - 1) * 100).toFixed(2)} % from nominal; ${r.readings} rings at ${formatSi(r.f0_hz, "Hz", 6)}\n`);
+    say(`   tank ${r.tank}: ${formatSi(r.c_f, "F", 5)} ± ${formatSi(2 * r.u_f, "F", 2)} (k = 2), ${((r.c_f / r.nominal_f - 1) * 100).toFixed(2)} % from nominal; ${r.readings} rings at ${formatSi(r.f0_hz, "Hz", 6)}\n`);
   }
-  for (const s of out.skipped) process.stdout.write(`   tank ${s.tank}: not calibrated, ${s.reason}\n`);
+  for (const s of out.skipped) say(`   tank ${s.tank}: not calibrated, ${s.reason}\n`);
   for (const e of out.entries) profile.tanks = [...profile.tanks.filter((x) => x.index !== e.index), e].sort((a, b) => a.index - b.index);
-  commit(profile, store);
+  commit(profile, store, { tanks: out.results, skipped: out.skipped });
   return 0;
 }
 
@@ -171,10 +178,10 @@ async function parallel(t: OpenedTester, store: StoreOptions, v: Values, caution
     repeats, calibration: appliedCalibration(profile, "calibration in progress"),
     timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress,
   });
-  process.stdout.write(`   tank ${tank}: ${formatSi(result.c_f, "F", 5)} ± ${formatSi(2 * result.u_f, "F", 2)} (k = 2); ` +
+  say(`   tank ${tank}: ${formatSi(result.c_f, "F", 5)} ± ${formatSi(2 * result.u_f, "F", 2)} (k = 2); ` +
     `${formatSi(result.fa_hz, "Hz", 6)} → ${formatSi(result.fb_hz, "Hz", 6)}; the part reads ${formatSi(result.part_inductance_h, "H", 5)}\n`);
   profile.tanks = [...profile.tanks.filter((x) => x.index !== tank), entry].sort((a, b) => a.index - b.index);
-  commit(profile, store);
+  commit(profile, store, result);
   return 0;
 }
 
@@ -185,22 +192,23 @@ async function thresholds(t: OpenedTester, store: StoreOptions, v: Values, cauti
   const { entry, fit } = await calibrateThresholds(t.client, {
     captures, calibration: appliedCalibration(profile, "calibration in progress"), onProgress: progress,
   });
-  process.stdout.write(`   thresholds ${formatSi(fit.thresholds_v[0], "V", 4)} / ${formatSi(fit.thresholds_v[1], "V", 4)}: ratio ${fit.ratio.toFixed(3)} ± ${(2 * fit.u_ratio).toFixed(3)}, ` +
+  say(`   thresholds ${formatSi(fit.thresholds_v[0], "V", 4)} / ${formatSi(fit.thresholds_v[1], "V", 4)}: ratio ${fit.ratio.toFixed(3)} ± ${(2 * fit.u_ratio).toFixed(3)}, ` +
     `comparator offset ${(fit.offset_v * 1e3).toFixed(3)} mV ± ${(2 * fit.u_offset_v * 1e3).toFixed(3)} mV (k = 2)\n`);
   profile.thresholds = entry;
-  commit(profile, store);
+  commit(profile, store, entry);
   return 0;
 }
 
-async function skew(t: OpenedTester, store: StoreOptions, v: Values): Promise<number> {
+async function skew(t: OpenedTester, store: StoreOptions, v: Values, caution: () => void): Promise<number> {
   const profile = currentProfile(t, store);
   const tanks = v.tanks === undefined ? undefined : String(v.tanks).split(",").map((x) => intOption(x, "tanks", 0, t.client.profile.tanks.length - 1)!);
+  caution();
   const { entry, fit } = await calibrateSkew(t.client, {
     captures: intOption(v.captures, "captures", 1, 20), tanks, calibration: appliedCalibration(profile, "calibration in progress"), onProgress: progress,
   });
-  process.stdout.write(`   comparator skew (rise minus fall delay) ${(fit.skew_s * 1e9).toFixed(2)} ns ± ${(2 * fit.u_skew_s * 1e9).toFixed(2)} ns (k = 2) from ${fit.rings.length} rings\n`);
+  say(`   comparator skew (rise minus fall delay) ${(fit.skew_s * 1e9).toFixed(2)} ns ± ${(2 * fit.u_skew_s * 1e9).toFixed(2)} ns (k = 2) from ${fit.rings.length} rings\n`);
   profile.skew = entry;
-  commit(profile, store);
+  commit(profile, store, entry);
   return 0;
 }
 
@@ -216,8 +224,8 @@ async function timebase(t: OpenedTester, store: StoreOptions, v: Values): Promis
   }
   if (Math.abs(ppm) > 1000) throw new CalibrationError("NONSENSE_RESULT", `${ppm} ppm is beyond any working crystal; check the counter reading`);
   profile.timebase = { ppm, u_ppm: u, method: "entered", time: new Date().toISOString(), detail: "entered from an external frequency measurement" };
-  process.stdout.write(`   timebase ${ppm} ppm ± ${2 * u} ppm (k = 2)\n`);
-  commit(profile, store);
+  say(`   timebase ${ppm} ppm ± ${2 * u} ppm (k = 2)\n`);
+  commit(profile, store, profile.timebase);
   return 0;
 }
 
@@ -239,8 +247,8 @@ async function measuredTimebase(t: OpenedTester, store: StoreOptions, v: Values)
     ppm: r.ppm, u_ppm: r.u_ppm, method: "host-clock", time: new Date().toISOString(),
     detail: `${r.samples} reads over ${r.duration_s.toFixed(1)} s; reads ${r.budget.reads_ppm.toFixed(2)} ppm, host clock ${r.budget.host_clock_ppm} ppm (standard)`,
   };
-  process.stdout.write(`   timebase ${r.ppm.toFixed(2)} ppm ± ${(2 * r.u_ppm).toFixed(2)} ppm (k = 2) over ${r.duration_s.toFixed(1)} s\n`);
-  commit(profile, store);
+  say(`   timebase ${r.ppm.toFixed(2)} ppm ± ${(2 * r.u_ppm).toFixed(2)} ppm (k = 2) over ${r.duration_s.toFixed(1)} s\n`);
+  commit(profile, store, profile.timebase);
   return 0;
 }
 

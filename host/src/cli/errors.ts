@@ -1,6 +1,7 @@
 // Maps errors to one line on stderr and an exit status (docs/user-guide.md, "exit status"):
 // 1 for every coded error (no reading, a device or file problem), 2 for usage errors only (a
-// CliUsageError, or a value the user typed that cannot be read: BAD_VALUE), 70 for anything the
+// CliUsageError, or a value the user typed that cannot be read: a coded RangeError such as
+// BAD_VALUE), 70 for anything the
 // program did not expect (an uncoded TypeError or RangeError is a bug, never the user's usage).
 // Errors a user can meet carry a code.
 
@@ -35,8 +36,9 @@ export function reportError(e: unknown): number {
     return EXIT_USAGE;
   }
   const code = e instanceof Error ? (e as { code?: unknown }).code : undefined;
-  if (code === "BAD_VALUE") {
-    say(`[BAD_VALUE] ${(e as Error).message}`);
+  // A coded RangeError is a value the user typed (ValueError: BAD_VALUE, WRONG_UNIT, AMBIGUOUS_VALUE, …).
+  if (e instanceof RangeError && typeof code === "string") {
+    say(`[${code}] ${e.message}`);
     process.stderr.write(`Run "henrytick --help" for usage.\n`);
     return EXIT_USAGE;
   }

@@ -4,6 +4,8 @@ import { formatSi } from "../format/si.ts";
 import { openTester } from "../open-tester.ts";
 import { listScenarios, loadScenario } from "../sim/scenario.ts";
 import { parse, testerTarget } from "./args.ts";
+import { CliUsageError } from "./errors.ts";
+import { formatValue } from "../values/format-value.ts";
 
 export async function runProfile(args: string[]): Promise<number> {
   const { values, positionals } = parse(args, {
@@ -36,10 +38,17 @@ export async function runProfile(args: string[]): Promise<number> {
 }
 
 export function runScenarios(args: string[]): number {
-  parse(args, {});
-  for (const name of listScenarios()) {
-    const s = loadScenario(name);
-    process.stdout.write(`${name.padEnd(22)} ${formatSi(s.part.inductance_h, "H", 3).padEnd(10)} ${s.story}\n`);
+  const { values, positionals } = parse(args, { json: { type: "boolean" } });
+  if (positionals.length > 0) throw new CliUsageError(`unexpected argument "${positionals[0]}"`);
+  const all = listScenarios().map((name) => ({ name, scenario: loadScenario(name) }));
+  if (values.json) {
+    process.stdout.write(JSON.stringify(all.map(({ name, scenario }) => ({ name, inductance_h: scenario.part.inductance_h, story: scenario.story })), null, 2) + "\n");
+    return 0;
   }
+  // Columns as wide as their longest entry, so every story starts in the same place.
+  const rows = all.map(({ name, scenario }) => [name, formatValue(scenario.part.inductance_h, "H", 3), scenario.story]);
+  const w0 = Math.max(...rows.map((r) => r[0].length));
+  const w1 = Math.max(...rows.map((r) => r[1].length));
+  for (const [name, l, story] of rows) process.stdout.write(`${name.padEnd(w0)}  ${l.padEnd(w1)}  ${story}\n`);
   return 0;
 }

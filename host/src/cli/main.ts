@@ -5,10 +5,12 @@
 // commands that need no tester load neither the serial stack nor the simulator nor the report
 // code (test/bench/sections/cli.ts counts the files `--help` loads).
 
-import { CALIBRATE_USAGE, WATCH_USAGE } from "./help-text.ts";
+import { CALIBRATE_USAGE, MEASURE_OPTIONS, WATCH_USAGE } from "./help-text.ts";
 import { CliUsageError, reportError } from "./errors.ts";
-import { SAFETY_TEXT, WINDING_RATIO_HELP } from "./safety.ts";
+import { SAFETY_TEXT } from "./safety.ts";
 import { packageVersion } from "../version.ts";
+
+const COMMANDS = ["measure", "analyze", "profile", "advise", "sim-device", "sort", "wind", "report", "calibrate", "scenarios", "ports", "help"];
 
 export const USAGE = `henrytick — scopeless inductance meter (measures 1 µH to 1 H)
 
@@ -32,30 +34,7 @@ ${CALIBRATE_USAGE}
                                        emulated STM32F405 (needs qemu-system-arm, wabt, gcc-arm-none-eabi)
 
 Options for measure:
-  --json               print the result as JSON (SI units in the key names)
-  --save FILE          also write the capture (edges + settings) to FILE
-  --label TEXT         a name for the part, kept in the capture and result
-  --auto               choose the setting automatically (the default): probe gently, then step
-                       by the advice while every pulse stays inside the limits
-  --drive N --tank N   use a fixed setting (indices from "henrytick profile"); it is still
-                       checked against the limits before it is pulsed
-  --charge-us N        charge time with a fixed setting (default: enough to settle, within the interlock)
-  --max-peak-v V       ring-peak limit (default 30 V or 80 % of the clamp: 28.8 V on the
-                       reference board's 36 V clamp); may be lowered, or raised up to the clamp.
-                       Until the first full reading, predictions keep 70 % of it (20.16 V)
-${WINDING_RATIO_HELP}
-  --hazardous-ok       allow a limit above 42.4 V peak (hazardous live, IEC 61010-1); only with
-                       the part and any other winding guarded. It cannot take effect on a board
-                       whose clamp is below 42.4 V (the reference board's is 36 V)
-  --seed N             noise seed for the simulated tester
-  --self-cap           ring on two tanks: L corrected for self-capacitance, Cs and self-resonance
-  --budget             show the uncertainty budget (fit, capacitance, timebase, self-capacitance)
-  --keep-suspect       give the reading even when it shows a part fault (FIRST_CYCLE_CLIPPED,
-                       CORE_SATURATING, FIXTURE_CHATTER, RING_OUTLASTS_WINDOW), marked SUSPECT
-                       (human output), "suspect" (--json) or the suspect column (--csv); without
-                       it such a reading is refused with the diagnosis and advice (exit status 1)
-  --uncalibrated       ignore the tester's calibration profile (nominal tank values)
-  --config-dir DIR     where calibration profiles live (default $XDG_CONFIG_HOME/henrytick)
+${MEASURE_OPTIONS}
 
 Continuous reading (measure --watch):
 ${WATCH_USAGE}
@@ -84,14 +63,20 @@ to do), 2 usage error, 70 internal error.
 ${SAFETY_TEXT}
 `;
 
-const SHARED_HELP = new Set(["measure", "analyze", "profile", "advise", "scenarios", "ports"]);
 
 export async function main(argv: string[]): Promise<number> {
   const [command, ...rest] = argv;
   try {
-    // Commands without a page of their own show the general one.
-    if (SHARED_HELP.has(command ?? "") && rest.some((a) => a === "--help" || a === "-h")) {
-      process.stdout.write(USAGE);
+    // Every command and sub-command has its own page; --version works after a command too.
+    if (command && command !== "--help" && command !== "-h" && command !== "help" && rest.some((a) => a === "--help" || a === "-h")) {
+      const page = await (await import("./help-pages.ts")).commandHelp(command, rest[0]?.startsWith("-") ? undefined : rest[0]);
+      if (page) {
+        process.stdout.write(page);
+        return 0;
+      }
+    }
+    if (rest.includes("--version") || command === "-V") {
+      process.stdout.write(`henrytick ${packageVersion()}\n`);
       return 0;
     }
     switch (command) {
@@ -118,13 +103,26 @@ export async function main(argv: string[]): Promise<number> {
       case undefined:
       case "help":
       case "--help":
-      case "-h":
-        process.stdout.write(USAGE);
+      case "-h": {
+        // `henrytick help sort` is `henrytick sort --help`.
+        const page = command === "help" && rest[0] ? await (await import("./help-pages.ts")).commandHelp(rest[0], rest[1]) : undefined;
+        process.stdout.write(page ?? USAGE);
         return command === undefined ? 2 : 0;
+      }
       default:
-        throw new CliUsageError(`unknown command "${command}"`);
+        throw new CliUsageError(`unknown command "${command}"${(await import("./suggest.ts")).suggest(command, COMMANDS)}`);
     }
   } catch (e) {
-    return reportError(e);
+    const status = reportError(e);
+    // In --json mode the error is also a JSON object on stdout, so a program reading stdout sees it.
+    if (rest.includes("--json")) process.stdout.write(JSON.stringify({ error: errorJson(e, status) }, null, 2) + "\n");
+    return status;
   }
+}
+
+/** { code, message, exit_status } for an error; a usage error's code is USAGE. */
+export function errorJson(e: unknown, exit_status: number): { code: string; message: string; exit_status: number } {
+  const code = (e as { code?: unknown } | undefined)?.code;
+  const message = e instanceof Error ? e.message : String(e);
+  return { code: typeof code === "string" ? code : exit_status === 2 ? "USAGE" : "INTERNAL", message, exit_status };
 }

@@ -4,7 +4,7 @@ import { writeCaptureFile } from "../capture/capture-file.ts";
 import { MeasureError, measurePart, PartFaultError } from "../measure/measure-part.ts";
 import { buildResult } from "../measure/result.ts";
 import { openTester } from "../open-tester.ts";
-import { intOption, numberOption, parse, testerTarget } from "./args.ts";
+import { intOption, numberOption, parse, refuseTogether, requireWith, testerTarget } from "./args.ts";
 import { CliUsageError, reportError } from "./errors.ts";
 import { renderReading } from "./render.ts";
 import { csvHeader, csvRow } from "./result-csv.ts";
@@ -36,6 +36,9 @@ export async function runMeasure(args: string[]): Promise<number> {
     "keep-suspect": { type: "boolean" },
     ...WATCH_OPTIONS,
   });
+  refuseTogether(values, ["json", "csv"]);
+  requireWith(values, { big: "watch", count: "watch", "interval-ms": "watch", series: "watch" });
+  for (const o of ["save", "self-cap", "budget"] as const) if (values[o] !== undefined && values.watch) throw new CliUsageError(`--${o} gives one reading; leave out --watch or --${o}`);
   const target = testerTarget(values, positionals);
   const drive = intOption(values.drive, "drive", 0, 63);
   const tank = intOption(values.tank, "tank", 0, 63);

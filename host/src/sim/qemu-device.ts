@@ -87,7 +87,7 @@ export class QemuDevice {
     });
   }
 
-  /** Starts the edge server and QEMU, waits for the pseudo-terminal and for the port to say hello. */
+  /** Starts the edge server and QEMU, waits for the pseudo-terminal and for the port's front-end link to be up. */
   static async start(opts: QemuDeviceOptions): Promise<QemuDevice> {
     if (!Number.isInteger(opts.seed)) throw new TypeError('"seed" must be an integer');
     const elf = opts.elf ?? emulatedImage(opts.core);
@@ -183,7 +183,7 @@ function tail(log: string): string {
   return log.trim().split("\n").slice(-2).join(" / ");
 }
 
-/** Resolves with the pseudo-terminal once QEMU reported it and the port's HELLO arrived. */
+/** Resolves with the pseudo-terminal once QEMU reported it and the port's link is up (HELLO answered, first TIME sync). */
 function waitForStart(proc: Supervisor, edges: EdgeServer, exe: string, log: () => string, edgeError: () => Error | null, timeout_ms: number): Promise<string> {
   return new Promise((resolve, reject) => {
     let settled = false;
@@ -200,8 +200,9 @@ function waitForStart(proc: Supervisor, edges: EdgeServer, exe: string, log: () 
     const poll = setInterval(() => {
       const e = edgeError();
       if (e) return done(new QemuDeviceError("EDGE_SERVER_FAILED", `the edge server failed: ${e.message}; report this with the scenario and seed`));
+      // The port syncs its clock right after its HELLO was answered: the link works both ways.
       const m = PTY_NOTICE.exec(log());
-      if (m && edges.stats.hellos > 0) done(null, m[1]);
+      if (m && edges.stats.time_syncs > 0) done(null, m[1]);
     }, 20);
     const timer = setTimeout(() => {
       const m = PTY_NOTICE.exec(log());
