@@ -37,7 +37,7 @@ export const CautionCode = names(CAUTION_MEANINGS);
 
 /**
  * Lines of a reading's uncertainty budget (`RingAnalysis.budget[].name`): standard relative
- * contributions to u(L)/L. The analysis gives the first three; a reading adds the last two.
+ * contributions to u(L)/L. The analysis gives the first three; a reading adds the others.
  */
 export const READING_BUDGET_LINES = {
   fit: "the edge-model fit",
@@ -45,6 +45,7 @@ export const READING_BUDGET_LINES = {
   timebase: "the tick rate (crystal tolerance or its calibration)",
   "self-capacitance": "the part's own capacitance, unknown on one tank",
   "stray capacitance": "capacitance the tank's value does not include (fixture, strays) when uncalibrated",
+  leads: "the test leads' series inductance, subtracted when nulled (calibrate short)",
 } as const;
 export type ReadingBudgetLine = keyof typeof READING_BUDGET_LINES;
 

@@ -3,11 +3,11 @@
 // code). Do not edit: change the schema and run npm run build.
 
 export const capture = validate20;
-const schema31 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:capture:1","title":"henrytick capture file, version 1","description":"The edge record of one ring-down with everything needed to analyse it again (docs/capture-format.md). Units are SI and in the key names. Rules a schema cannot state (rising threshold above the falling one, edge ticks non-decreasing) are checked by the reader too.","type":"object","required":["format","version","tick_hz","edges","tank_c_f","thresholds_v"],"properties":{"format":{"const":"henrytick-capture"},"version":{"const":1},"tick_hz":{"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"},"edges":{"type":"array","description":"[tick, level] pairs: integer ticks since the switch opened, non-decreasing; level 1 after a rising edge, 0 after a falling edge","items":{"description":"[tick, level]","type":"array","prefixItems":[{"type":"integer","minimum":0,"maximum":9007199254740991},{"enum":[0,1]}],"minItems":2,"maxItems":2}},"tank_c_f":{"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"},"tank_c_u_f":{"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"},"thresholds_v":{"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2},"drive":{"$ref":"#/$defs/drive"},"range":{"$ref":"#/$defs/range"},"device":{"$ref":"#/$defs/device"},"meta":{"type":"object","properties":{"label":{"type":"string"},"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"end_reason":{"enum":["quiet","full","timeout","no-edges"]}}},"calibration":{"$ref":"#/$defs/calibration"},"reading_warnings":{"type":"array","description":"warnings the reading added to the analysis's own (automatic ranging's); a re-analysis gives them again","items":{"$ref":"#/$defs/warning"}}},"$defs":{"drive":{"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the front end's clamp voltage, the ring's ceiling"}}},"range":{"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}},"device":{"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}},"calibration":{"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0},"comparator_skew_s":{"type":"number","description":"the comparator's calibrated rise/fall delay skew (rising minus falling propagation delay), seconds"},"comparator_skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of comparator_skew_s, seconds"}}},"warning":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}}}};
+const schema31 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:capture:1","title":"henrytick capture file, version 1","description":"The edge record of one ring-down with everything needed to analyse it again (docs/capture-format.md). Units are SI and in the key names. Rules a schema cannot state (rising threshold above the falling one, edge ticks non-decreasing) are checked by the reader too.","type":"object","required":["format","version","tick_hz","edges","tank_c_f","thresholds_v"],"properties":{"format":{"const":"henrytick-capture"},"version":{"const":1},"tick_hz":{"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"},"edges":{"type":"array","description":"[tick, level] pairs: integer ticks since the switch opened, non-decreasing; level 1 after a rising edge, 0 after a falling edge","items":{"description":"[tick, level]","type":"array","prefixItems":[{"type":"integer","minimum":0,"maximum":9007199254740991},{"enum":[0,1]}],"minItems":2,"maxItems":2}},"tank_c_f":{"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"},"tank_c_u_f":{"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"},"thresholds_v":{"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2},"drive":{"$ref":"#/$defs/drive"},"range":{"$ref":"#/$defs/range"},"device":{"$ref":"#/$defs/device"},"meta":{"type":"object","properties":{"label":{"type":"string"},"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"end_reason":{"enum":["quiet","full","timeout","no-edges"]}}},"calibration":{"$ref":"#/$defs/calibration"},"reading_warnings":{"type":"array","description":"warnings the reading added to the analysis's own (automatic ranging's); a re-analysis gives them again","items":{"$ref":"#/$defs/warning"}}},"$defs":{"drive":{"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the front end's clamp voltage, the ring's ceiling"}}},"range":{"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}},"device":{"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}},"calibration":{"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0},"comparator_skew_s":{"type":"number","description":"the comparator's calibrated rise/fall delay skew (rising minus falling propagation delay), seconds"},"comparator_skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of comparator_skew_s, seconds"},"lead_inductance_h":{"type":"number","minimum":0,"description":"the test leads' series inductance subtracted from the ring's inductance (calibrate short)"},"lead_u_h":{"type":"number","minimum":0,"description":"standard uncertainty of lead_inductance_h"}}},"warning":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}}}};
 const schema32 = {"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the front end's clamp voltage, the ring's ceiling"}}};
 const schema33 = {"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}};
 const schema34 = {"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}};
-const schema35 = {"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0},"comparator_skew_s":{"type":"number","description":"the comparator's calibrated rise/fall delay skew (rising minus falling propagation delay), seconds"},"comparator_skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of comparator_skew_s, seconds"}}};
+const schema35 = {"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0},"comparator_skew_s":{"type":"number","description":"the comparator's calibrated rise/fall delay skew (rising minus falling propagation delay), seconds"},"comparator_skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of comparator_skew_s, seconds"},"lead_inductance_h":{"type":"number","minimum":0,"description":"the test leads' series inductance subtracted from the ring's inductance (calibrate short)"},"lead_u_h":{"type":"number","minimum":0,"description":"standard uncertainty of lead_inductance_h"}}};
 const schema36 = {"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}};
 const pattern4 = new RegExp("^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$", "u");
 const pattern5 = new RegExp("^[A-Z][A-Z0-9_]*$", "u");
@@ -839,6 +839,50 @@ var valid12 = _errs85 === errors;
 else {
 var valid12 = true;
 }
+if(valid12){
+if(data34.lead_inductance_h !== undefined){
+let data43 = data34.lead_inductance_h;
+const _errs87 = errors;
+if(errors === _errs87){
+if((typeof data43 == "number") && (isFinite(data43))){
+if(data43 < 0 || isNaN(data43)){
+validate20.errors = [{instancePath:instancePath+"/calibration/lead_inductance_h",schemaPath:"#/$defs/calibration/properties/lead_inductance_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema35.properties.lead_inductance_h,data:data43}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/calibration/lead_inductance_h",schemaPath:"#/$defs/calibration/properties/lead_inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.lead_inductance_h.type,parentSchema:schema35.properties.lead_inductance_h,data:data43}];
+return false;
+}
+}
+var valid12 = _errs87 === errors;
+}
+else {
+var valid12 = true;
+}
+if(valid12){
+if(data34.lead_u_h !== undefined){
+let data44 = data34.lead_u_h;
+const _errs89 = errors;
+if(errors === _errs89){
+if((typeof data44 == "number") && (isFinite(data44))){
+if(data44 < 0 || isNaN(data44)){
+validate20.errors = [{instancePath:instancePath+"/calibration/lead_u_h",schemaPath:"#/$defs/calibration/properties/lead_u_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema35.properties.lead_u_h,data:data44}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/calibration/lead_u_h",schemaPath:"#/$defs/calibration/properties/lead_u_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.lead_u_h.type,parentSchema:schema35.properties.lead_u_h,data:data44}];
+return false;
+}
+}
+var valid12 = _errs89 === errors;
+}
+else {
+var valid12 = true;
+}
+}
+}
 }
 }
 }
@@ -860,53 +904,53 @@ var valid0 = true;
 }
 if(valid0){
 if(data.reading_warnings !== undefined){
-let data43 = data.reading_warnings;
-const _errs87 = errors;
-if(errors === _errs87){
-if(Array.isArray(data43)){
+let data45 = data.reading_warnings;
+const _errs91 = errors;
+if(errors === _errs91){
+if(Array.isArray(data45)){
 var valid13 = true;
-const len3 = data43.length;
+const len3 = data45.length;
 for(let i1=0; i1<len3; i1++){
-let data44 = data43[i1];
-const _errs89 = errors;
-const _errs90 = errors;
-if(errors === _errs90){
-if(data44 && typeof data44 == "object" && !Array.isArray(data44)){
+let data46 = data45[i1];
+const _errs93 = errors;
+const _errs94 = errors;
+if(errors === _errs94){
+if(data46 && typeof data46 == "object" && !Array.isArray(data46)){
 let missing5;
-if(((data44.code === undefined) && (missing5 = "code")) || ((data44.message === undefined) && (missing5 = "message"))){
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/required",keyword:"required",params:{missingProperty: missing5},message:"must have required property '"+missing5+"'",schema:schema36.required,parentSchema:schema36,data:data44}];
+if(((data46.code === undefined) && (missing5 = "code")) || ((data46.message === undefined) && (missing5 = "message"))){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/required",keyword:"required",params:{missingProperty: missing5},message:"must have required property '"+missing5+"'",schema:schema36.required,parentSchema:schema36,data:data46}];
 return false;
 }
 else {
-if(data44.code !== undefined){
-let data45 = data44.code;
-const _errs92 = errors;
-if(errors === _errs92){
-if(typeof data45 === "string"){
-if(!pattern5.test(data45)){
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema36.properties.code,data:data45}];
+if(data46.code !== undefined){
+let data47 = data46.code;
+const _errs96 = errors;
+if(errors === _errs96){
+if(typeof data47 === "string"){
+if(!pattern5.test(data47)){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema36.properties.code,data:data47}];
 return false;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.code.type,parentSchema:schema36.properties.code,data:data45}];
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.code.type,parentSchema:schema36.properties.code,data:data47}];
 return false;
 }
 }
-var valid15 = _errs92 === errors;
+var valid15 = _errs96 === errors;
 }
 else {
 var valid15 = true;
 }
 if(valid15){
-if(data44.message !== undefined){
-let data46 = data44.message;
-const _errs94 = errors;
-if(typeof data46 !== "string"){
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/message",schemaPath:"#/$defs/warning/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.message.type,parentSchema:schema36.properties.message,data:data46}];
+if(data46.message !== undefined){
+let data48 = data46.message;
+const _errs98 = errors;
+if(typeof data48 !== "string"){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/message",schemaPath:"#/$defs/warning/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.message.type,parentSchema:schema36.properties.message,data:data48}];
 return false;
 }
-var valid15 = _errs94 === errors;
+var valid15 = _errs98 === errors;
 }
 else {
 var valid15 = true;
@@ -915,22 +959,22 @@ var valid15 = true;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema36.type,parentSchema:schema36,data:data44}];
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema36.type,parentSchema:schema36,data:data46}];
 return false;
 }
 }
-var valid13 = _errs89 === errors;
+var valid13 = _errs93 === errors;
 if(!valid13){
 break;
 }
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/reading_warnings",schemaPath:"#/properties/reading_warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema31.properties.reading_warnings.type,parentSchema:schema31.properties.reading_warnings,data:data43}];
+validate20.errors = [{instancePath:instancePath+"/reading_warnings",schemaPath:"#/properties/reading_warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema31.properties.reading_warnings.type,parentSchema:schema31.properties.reading_warnings,data:data45}];
 return false;
 }
 }
-var valid0 = _errs87 === errors;
+var valid0 = _errs91 === errors;
 }
 else {
 var valid0 = true;
@@ -1906,6 +1950,50 @@ var valid17 = _errs101 === errors;
 else {
 var valid17 = true;
 }
+if(valid17){
+if(data38.lead_inductance_h !== undefined){
+let data47 = data38.lead_inductance_h;
+const _errs103 = errors;
+if(errors === _errs103){
+if((typeof data47 == "number") && (isFinite(data47))){
+if(data47 < 0 || isNaN(data47)){
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/lead_inductance_h",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/lead_inductance_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema35.properties.lead_inductance_h,data:data47}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/lead_inductance_h",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/lead_inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.lead_inductance_h.type,parentSchema:schema35.properties.lead_inductance_h,data:data47}];
+return false;
+}
+}
+var valid17 = _errs103 === errors;
+}
+else {
+var valid17 = true;
+}
+if(valid17){
+if(data38.lead_u_h !== undefined){
+let data48 = data38.lead_u_h;
+const _errs105 = errors;
+if(errors === _errs105){
+if((typeof data48 == "number") && (isFinite(data48))){
+if(data48 < 0 || isNaN(data48)){
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/lead_u_h",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/lead_u_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema35.properties.lead_u_h,data:data48}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/lead_u_h",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/lead_u_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.lead_u_h.type,parentSchema:schema35.properties.lead_u_h,data:data48}];
+return false;
+}
+}
+var valid17 = _errs105 === errors;
+}
+else {
+var valid17 = true;
+}
+}
+}
 }
 }
 }
@@ -1945,57 +2033,23 @@ var valid0 = true;
 }
 if(valid0){
 if(data.device !== undefined){
-let data47 = data.device;
-const _errs103 = errors;
-const _errs104 = errors;
-if(errors === _errs104){
-if(data47 && typeof data47 == "object" && !Array.isArray(data47)){
-let missing7;
-if(((((data47.id === undefined) && (missing7 = "id")) || ((data47.firmware_version === undefined) && (missing7 = "firmware_version"))) || ((data47.protocol_version === undefined) && (missing7 = "protocol_version"))) || ((data47.transport === undefined) && (missing7 = "transport"))){
-validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/required",keyword:"required",params:{missingProperty: missing7},message:"must have required property '"+missing7+"'",schema:schema34.required,parentSchema:schema34,data:data47}];
-return false;
-}
-else {
-if(data47.id !== undefined){
-let data48 = data47.id;
-const _errs106 = errors;
-if(typeof data48 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/id",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.id.type,parentSchema:schema34.properties.id,data:data48}];
-return false;
-}
-var valid19 = _errs106 === errors;
-}
-else {
-var valid19 = true;
-}
-if(valid19){
-if(data47.firmware_version !== undefined){
-let data49 = data47.firmware_version;
+let data49 = data.device;
+const _errs107 = errors;
 const _errs108 = errors;
-if(typeof data49 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/firmware_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/firmware_version/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.firmware_version.type,parentSchema:schema34.properties.firmware_version,data:data49}];
+if(errors === _errs108){
+if(data49 && typeof data49 == "object" && !Array.isArray(data49)){
+let missing7;
+if(((((data49.id === undefined) && (missing7 = "id")) || ((data49.firmware_version === undefined) && (missing7 = "firmware_version"))) || ((data49.protocol_version === undefined) && (missing7 = "protocol_version"))) || ((data49.transport === undefined) && (missing7 = "transport"))){
+validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/required",keyword:"required",params:{missingProperty: missing7},message:"must have required property '"+missing7+"'",schema:schema34.required,parentSchema:schema34,data:data49}];
 return false;
-}
-var valid19 = _errs108 === errors;
 }
 else {
-var valid19 = true;
-}
-if(valid19){
-if(data47.protocol_version !== undefined){
-let data50 = data47.protocol_version;
+if(data49.id !== undefined){
+let data50 = data49.id;
 const _errs110 = errors;
-if(!(((typeof data50 == "number") && (!(data50 % 1) && !isNaN(data50))) && (isFinite(data50)))){
-validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema34.properties.protocol_version.type,parentSchema:schema34.properties.protocol_version,data:data50}];
+if(typeof data50 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/device/id",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.id.type,parentSchema:schema34.properties.id,data:data50}];
 return false;
-}
-if(errors === _errs110){
-if((typeof data50 == "number") && (isFinite(data50))){
-if(data50 < 0 || isNaN(data50)){
-validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema34.properties.protocol_version,data:data50}];
-return false;
-}
-}
 }
 var valid19 = _errs110 === errors;
 }
@@ -2003,11 +2057,11 @@ else {
 var valid19 = true;
 }
 if(valid19){
-if(data47.transport !== undefined){
-let data51 = data47.transport;
+if(data49.firmware_version !== undefined){
+let data51 = data49.firmware_version;
 const _errs112 = errors;
 if(typeof data51 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/transport",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/transport/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.transport.type,parentSchema:schema34.properties.transport,data:data51}];
+validate21.errors = [{instancePath:instancePath+"/device/firmware_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/firmware_version/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.firmware_version.type,parentSchema:schema34.properties.firmware_version,data:data51}];
 return false;
 }
 var valid19 = _errs112 === errors;
@@ -2016,19 +2070,19 @@ else {
 var valid19 = true;
 }
 if(valid19){
-if(data47.clamp_v !== undefined){
-let data52 = data47.clamp_v;
+if(data49.protocol_version !== undefined){
+let data52 = data49.protocol_version;
 const _errs114 = errors;
+if(!(((typeof data52 == "number") && (!(data52 % 1) && !isNaN(data52))) && (isFinite(data52)))){
+validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema34.properties.protocol_version.type,parentSchema:schema34.properties.protocol_version,data:data52}];
+return false;
+}
 if(errors === _errs114){
 if((typeof data52 == "number") && (isFinite(data52))){
-if(data52 <= 0 || isNaN(data52)){
-validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.clamp_v,data:data52}];
+if(data52 < 0 || isNaN(data52)){
+validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema34.properties.protocol_version,data:data52}];
 return false;
 }
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.clamp_v.type,parentSchema:schema34.properties.clamp_v,data:data52}];
-return false;
 }
 }
 var valid19 = _errs114 === errors;
@@ -2037,22 +2091,56 @@ else {
 var valid19 = true;
 }
 if(valid19){
-if(data47.max_timeout_ms !== undefined){
-let data53 = data47.max_timeout_ms;
+if(data49.transport !== undefined){
+let data53 = data49.transport;
 const _errs116 = errors;
-if(errors === _errs116){
-if((typeof data53 == "number") && (isFinite(data53))){
-if(data53 <= 0 || isNaN(data53)){
-validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.max_timeout_ms,data:data53}];
+if(typeof data53 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/device/transport",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/transport/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.transport.type,parentSchema:schema34.properties.transport,data:data53}];
+return false;
+}
+var valid19 = _errs116 === errors;
+}
+else {
+var valid19 = true;
+}
+if(valid19){
+if(data49.clamp_v !== undefined){
+let data54 = data49.clamp_v;
+const _errs118 = errors;
+if(errors === _errs118){
+if((typeof data54 == "number") && (isFinite(data54))){
+if(data54 <= 0 || isNaN(data54)){
+validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.clamp_v,data:data54}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.max_timeout_ms.type,parentSchema:schema34.properties.max_timeout_ms,data:data53}];
+validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.clamp_v.type,parentSchema:schema34.properties.clamp_v,data:data54}];
 return false;
 }
 }
-var valid19 = _errs116 === errors;
+var valid19 = _errs118 === errors;
+}
+else {
+var valid19 = true;
+}
+if(valid19){
+if(data49.max_timeout_ms !== undefined){
+let data55 = data49.max_timeout_ms;
+const _errs120 = errors;
+if(errors === _errs120){
+if((typeof data55 == "number") && (isFinite(data55))){
+if(data55 <= 0 || isNaN(data55)){
+validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.max_timeout_ms,data:data55}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.max_timeout_ms.type,parentSchema:schema34.properties.max_timeout_ms,data:data55}];
+return false;
+}
+}
+var valid19 = _errs120 === errors;
 }
 else {
 var valid19 = true;
@@ -2065,24 +2153,24 @@ var valid19 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema34.type,parentSchema:schema34,data:data47}];
+validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema34.type,parentSchema:schema34,data:data49}];
 return false;
 }
 }
-var valid0 = _errs103 === errors;
+var valid0 = _errs107 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.label !== undefined){
-let data54 = data.label;
-const _errs118 = errors;
-if(typeof data54 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/label",schemaPath:"#/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.label.type,parentSchema:schema37.properties.label,data:data54}];
+let data56 = data.label;
+const _errs122 = errors;
+if(typeof data56 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/label",schemaPath:"#/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.label.type,parentSchema:schema37.properties.label,data:data56}];
 return false;
 }
-var valid0 = _errs118 === errors;
+var valid0 = _errs122 === errors;
 }
 else {
 var valid0 = true;
@@ -2117,12 +2205,12 @@ return errors === 0;
 validate21.evaluated = {"props":{"suspect":true,"f0_hz":true,"f0_u_hz":true,"fd_hz":true,"inductance_h":true,"inductance_u_h":true,"coverage_factor":true,"q":true,"q_u":true,"esr_ohm":true,"esr_u_ohm":true,"ring_amplitude_v":true,"edges_used":true,"edges_rejected":true,"warnings":true,"settings":true,"device":true,"label":true},"dynamicProps":false,"dynamicItems":false};
 
 export const calibrationProfile = validate22;
-const schema48 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:calibration-profile:1","title":"henrytick calibration profile, version 1","description":"What calibration found about one tester (docs/calibration.md). Units are SI and in the key names; uncertainties are standard (k = 1). Rules a schema cannot state (a tank index only once, c_f within a factor 2 of nominal_f, u_f at most 20 % of c_f, rising threshold above falling, |ppm| at most 1000, |skew_s| under 1 µs) are checked by the reader too.","type":"object","required":["format","version","device_id","updated","tanks"],"properties":{"format":{"const":"henrytick-calibration"},"version":{"const":1},"device_id":{"type":"string","minLength":1},"updated":{"$ref":"#/$defs/time"},"tanks":{"type":"array","description":"empty when no tank is calibrated","items":{"$ref":"#/$defs/tank"}},"thresholds":{"$ref":"#/$defs/thresholds"},"timebase":{"$ref":"#/$defs/timebase"},"skew":{"$ref":"#/$defs/skew"}},"$defs":{"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"method":{"enum":["reference-inductor","parallel-capacitor","threshold-fit","skew-fit","host-clock","entered"],"description":"the procedure that produced the value"},"provenance":{"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}},"tank":{"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"}}},"thresholds":{"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}},"timebase":{"type":"object","$ref":"#/$defs/provenance","required":["ppm","u_ppm"],"properties":{"ppm":{"type":"number","description":"the tick counter runs fast by ppm: true rate = nominal (1 + ppm 1e-6)"},"u_ppm":{"type":"number","minimum":0}}},"skew":{"type":"object","$ref":"#/$defs/provenance","required":["skew_s","u_skew_s"],"properties":{"skew_s":{"type":"number","description":"the comparator's rising-edge propagation delay minus its falling-edge delay, seconds"},"u_skew_s":{"type":"number","minimum":0,"description":"standard uncertainty of skew_s, seconds"}}}}};
+const schema48 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:calibration-profile:1","title":"henrytick calibration profile, version 1","description":"What calibration found about one tester (docs/calibration.md). Units are SI and in the key names; uncertainties are standard (k = 1). Rules a schema cannot state (a tank index only once, c_f within a factor 2 of nominal_f, u_f at most 20 % of c_f, rising threshold above falling, |ppm| at most 1000, |skew_s| under 1 µs, leads l_h at most 0.5 µH) are checked by the reader too.","type":"object","required":["format","version","device_id","updated","tanks"],"properties":{"format":{"const":"henrytick-calibration"},"version":{"const":1},"device_id":{"type":"string","minLength":1},"updated":{"$ref":"#/$defs/time"},"tanks":{"type":"array","description":"empty when no tank is calibrated","items":{"$ref":"#/$defs/tank"}},"thresholds":{"$ref":"#/$defs/thresholds"},"timebase":{"$ref":"#/$defs/timebase"},"skew":{"$ref":"#/$defs/skew"},"leads":{"$ref":"#/$defs/leads"}},"$defs":{"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"method":{"enum":["reference-inductor","parallel-capacitor","threshold-fit","skew-fit","host-clock","entered","clips-shorted"],"description":"the procedure that produced the value"},"provenance":{"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}},"tank":{"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"}}},"thresholds":{"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}},"timebase":{"type":"object","$ref":"#/$defs/provenance","required":["ppm","u_ppm"],"properties":{"ppm":{"type":"number","description":"the tick counter runs fast by ppm: true rate = nominal (1 + ppm 1e-6)"},"u_ppm":{"type":"number","minimum":0}}},"skew":{"type":"object","$ref":"#/$defs/provenance","required":["skew_s","u_skew_s"],"properties":{"skew_s":{"type":"number","description":"the comparator's rising-edge propagation delay minus its falling-edge delay, seconds"},"u_skew_s":{"type":"number","minimum":0,"description":"standard uncertainty of skew_s, seconds"}}},"leads":{"type":"object","$ref":"#/$defs/provenance","required":["l_h","u_h"],"properties":{"l_h":{"type":"number","minimum":0,"description":"series inductance of the test leads and clips (clips shorted), henries; subtracted from every reading"},"u_h":{"type":"number","minimum":0,"description":"standard uncertainty of l_h"}}}}};
 const schema49 = {"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"};
 const func1 = ((s) => [...s].length);
 const schema50 = {"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"}}};
 const schema51 = {"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}};
-const schema52 = {"enum":["reference-inductor","parallel-capacitor","threshold-fit","skew-fit","host-clock","entered"],"description":"the procedure that produced the value"};
+const schema52 = {"enum":["reference-inductor","parallel-capacitor","threshold-fit","skew-fit","host-clock","entered","clips-shorted"],"description":"the procedure that produced the value"};
 
 function validate24(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 let vErrors = null;
@@ -2145,7 +2233,7 @@ else {
 if(data.method !== undefined){
 let data0 = data.method;
 const _errs1 = errors;
-if(!((((((data0 === "reference-inductor") || (data0 === "parallel-capacitor")) || (data0 === "threshold-fit")) || (data0 === "skew-fit")) || (data0 === "host-clock")) || (data0 === "entered"))){
+if(!(((((((data0 === "reference-inductor") || (data0 === "parallel-capacitor")) || (data0 === "threshold-fit")) || (data0 === "skew-fit")) || (data0 === "host-clock")) || (data0 === "entered")) || (data0 === "clips-shorted"))){
 validate24.errors = [{instancePath:instancePath+"/method",schemaPath:"#/$defs/method/enum",keyword:"enum",params:{allowedValues: schema52.enum},message:"must be equal to one of the allowed values",schema:schema52.enum,parentSchema:schema52,data:data0}];
 return false;
 }
@@ -2665,6 +2753,84 @@ return errors === 0;
 }
 validate33.evaluated = {"props":{"skew_s":true,"u_skew_s":true,"method":true,"time":true,"detail":true},"dynamicProps":false,"dynamicItems":false};
 
+const schema57 = {"type":"object","$ref":"#/$defs/provenance","required":["l_h","u_h"],"properties":{"l_h":{"type":"number","minimum":0,"description":"series inductance of the test leads and clips (clips shorted), henries; subtracted from every reading"},"u_h":{"type":"number","minimum":0,"description":"standard uncertainty of l_h"}}};
+
+function validate36(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
+let vErrors = null;
+let errors = 0;
+const evaluated0 = validate36.evaluated;
+if(evaluated0.dynamicProps){
+evaluated0.props = undefined;
+}
+if(evaluated0.dynamicItems){
+evaluated0.items = undefined;
+}
+if(!(validate24(data, {instancePath,parentData,parentDataProperty,rootData,dynamicAnchors}))){
+vErrors = vErrors === null ? validate24.errors : vErrors.concat(validate24.errors);
+errors = vErrors.length;
+}
+if(errors === 0){
+if(data && typeof data == "object" && !Array.isArray(data)){
+let missing0;
+if(((data.l_h === undefined) && (missing0 = "l_h")) || ((data.u_h === undefined) && (missing0 = "u_h"))){
+validate36.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema57.required,parentSchema:schema57,data}];
+return false;
+}
+else {
+if(data.l_h !== undefined){
+let data0 = data.l_h;
+const _errs1 = errors;
+if(errors === _errs1){
+if((typeof data0 == "number") && (isFinite(data0))){
+if(data0 < 0 || isNaN(data0)){
+validate36.errors = [{instancePath:instancePath+"/l_h",schemaPath:"#/properties/l_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema57.properties.l_h,data:data0}];
+return false;
+}
+}
+else {
+validate36.errors = [{instancePath:instancePath+"/l_h",schemaPath:"#/properties/l_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.l_h.type,parentSchema:schema57.properties.l_h,data:data0}];
+return false;
+}
+}
+var valid0 = _errs1 === errors;
+}
+else {
+var valid0 = true;
+}
+if(valid0){
+if(data.u_h !== undefined){
+let data1 = data.u_h;
+const _errs3 = errors;
+if(errors === _errs3){
+if((typeof data1 == "number") && (isFinite(data1))){
+if(data1 < 0 || isNaN(data1)){
+validate36.errors = [{instancePath:instancePath+"/u_h",schemaPath:"#/properties/u_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema57.properties.u_h,data:data1}];
+return false;
+}
+}
+else {
+validate36.errors = [{instancePath:instancePath+"/u_h",schemaPath:"#/properties/u_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.u_h.type,parentSchema:schema57.properties.u_h,data:data1}];
+return false;
+}
+}
+var valid0 = _errs3 === errors;
+}
+else {
+var valid0 = true;
+}
+}
+}
+}
+else {
+validate36.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema57.type,parentSchema:schema57,data}];
+return false;
+}
+}
+validate36.errors = vErrors;
+return errors === 0;
+}
+validate36.evaluated = {"props":{"l_h":true,"u_h":true,"method":true,"time":true,"detail":true},"dynamicProps":false,"dynamicItems":false};
+
 
 function validate22(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 /*# sourceURL="urn:henrytick:schema:calibration-profile:1" */;
@@ -2819,6 +2985,19 @@ var valid0 = _errs13 === errors;
 else {
 var valid0 = true;
 }
+if(valid0){
+if(data.leads !== undefined){
+const _errs14 = errors;
+if(!(validate36(data.leads, {instancePath:instancePath+"/leads",parentData:data,parentDataProperty:"leads",rootData,dynamicAnchors}))){
+vErrors = vErrors === null ? validate36.errors : vErrors.concat(validate36.errors);
+errors = vErrors.length;
+}
+var valid0 = _errs14 === errors;
+}
+else {
+var valid0 = true;
+}
+}
 }
 }
 }
@@ -2836,16 +3015,16 @@ return false;
 validate22.errors = vErrors;
 return errors === 0;
 }
-validate22.evaluated = {"props":{"format":true,"version":true,"device_id":true,"updated":true,"tanks":true,"thresholds":true,"timebase":true,"skew":true},"dynamicProps":false,"dynamicItems":false};
+validate22.evaluated = {"props":{"format":true,"version":true,"device_id":true,"updated":true,"tanks":true,"thresholds":true,"timebase":true,"skew":true,"leads":true},"dynamicProps":false,"dynamicItems":false};
 
-export const scenario = validate36;
-const schema57 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:scenario:1","title":"henrytick simulated-tester scenario, version 1","description":"A demo part for the simulated tester and, optionally, the bench conditions it is measured under. Units are SI and in the key names.","type":"object","required":["format","version","name","part"],"properties":{"format":{"const":"henrytick-scenario"},"version":{"const":1},"name":{"type":"string","minLength":1},"story":{"type":"string","description":"what the part is and what the scenario shows"},"part":{"type":"object","required":["inductance_h","series_ohm"],"properties":{"inductance_h":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"parallel_ohm":{"type":"number","exclusiveMinimum":0,"description":"core (parallel) loss resistance; absent for an air core"},"self_capacitance_f":{"type":"number","minimum":0,"description":"the part's own self-capacitance (0 when left out)"},"saturation_current_a":{"type":"number","exclusiveMinimum":0,"description":"current where the differential inductance has fallen halfway to its floor"},"saturation_floor_ratio":{"type":"number","exclusiveMinimum":0,"exclusiveMaximum":1,"description":"differential inductance deep in saturation, as a fraction of the small-signal value"}}},"fixture":{"type":"object","properties":{"capacitance_f":{"type":"number","minimum":0,"description":"test-lead capacitance in parallel with the tank (replaces the board's)"},"tank_voltage_coefficient_per_v2":{"type":"number","exclusiveMinimum":0,"description":"k in C(v) = C0 (1 - k v^2): a class II ceramic fitted as the tank"},"chatter":{"type":"object","description":"an intermittent clip contact during the ring: moments open or resistive, at random (seeded)","required":["events_per_s"],"additionalProperties":false,"properties":{"events_per_s":{"type":"number","minimum":0,"maximum":100000,"description":"mean contact events per second of ring"},"open_share":{"type":"number","minimum":0,"maximum":1,"description":"share of events that open the contact (the rest are resistance bursts); 0.5 when left out"},"open_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest open interval, seconds"},"burst_ohm":{"type":"array","items":{"type":"number","minimum":0,"maximum":1000000},"minItems":2,"maxItems":2,"description":"smallest and largest burst resistance, ohms"},"burst_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest burst, seconds"}}}}},"geometry":{"type":"object","description":"the coil geometry a part was computed from (kept for the record; the part values are what the simulator uses)","additionalProperties":{"type":"number"}},"seed":{"type":"integer","description":"noise seed (1 when left out)"}}};
+export const scenario = validate39;
+const schema58 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:scenario:1","title":"henrytick simulated-tester scenario, version 1","description":"A demo part for the simulated tester and, optionally, the bench conditions it is measured under. Units are SI and in the key names.","type":"object","required":["format","version","name","part"],"properties":{"format":{"const":"henrytick-scenario"},"version":{"const":1},"name":{"type":"string","minLength":1},"story":{"type":"string","description":"what the part is and what the scenario shows"},"part":{"type":"object","required":["inductance_h","series_ohm"],"properties":{"inductance_h":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"parallel_ohm":{"type":"number","exclusiveMinimum":0,"description":"core (parallel) loss resistance; absent for an air core"},"self_capacitance_f":{"type":"number","minimum":0,"description":"the part's own self-capacitance (0 when left out)"},"saturation_current_a":{"type":"number","exclusiveMinimum":0,"description":"current where the differential inductance has fallen halfway to its floor"},"saturation_floor_ratio":{"type":"number","exclusiveMinimum":0,"exclusiveMaximum":1,"description":"differential inductance deep in saturation, as a fraction of the small-signal value"}}},"fixture":{"type":"object","properties":{"capacitance_f":{"type":"number","minimum":0,"description":"test-lead capacitance in parallel with the tank (replaces the board's)"},"lead_inductance_h":{"type":"number","minimum":0,"maximum":0.000001,"description":"series inductance of the test leads and clips, in series with the part (0 when left out)"},"tank_voltage_coefficient_per_v2":{"type":"number","exclusiveMinimum":0,"description":"k in C(v) = C0 (1 - k v^2): a class II ceramic fitted as the tank"},"chatter":{"type":"object","description":"an intermittent clip contact during the ring: moments open or resistive, at random (seeded)","required":["events_per_s"],"additionalProperties":false,"properties":{"events_per_s":{"type":"number","minimum":0,"maximum":100000,"description":"mean contact events per second of ring"},"open_share":{"type":"number","minimum":0,"maximum":1,"description":"share of events that open the contact (the rest are resistance bursts); 0.5 when left out"},"open_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest open interval, seconds"},"burst_ohm":{"type":"array","items":{"type":"number","minimum":0,"maximum":1000000},"minItems":2,"maxItems":2,"description":"smallest and largest burst resistance, ohms"},"burst_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest burst, seconds"}}}}},"geometry":{"type":"object","description":"the coil geometry a part was computed from (kept for the record; the part values are what the simulator uses)","additionalProperties":{"type":"number"}},"seed":{"type":"integer","description":"noise seed (1 when left out)"}}};
 
-function validate36(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
+function validate39(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 /*# sourceURL="urn:henrytick:schema:scenario:1" */;
 let vErrors = null;
 let errors = 0;
-const evaluated0 = validate36.evaluated;
+const evaluated0 = validate39.evaluated;
 if(evaluated0.dynamicProps){
 evaluated0.props = undefined;
 }
@@ -2856,7 +3035,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if(((((data.format === undefined) && (missing0 = "format")) || ((data.version === undefined) && (missing0 = "version"))) || ((data.name === undefined) && (missing0 = "name"))) || ((data.part === undefined) && (missing0 = "part"))){
-validate36.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema57.required,parentSchema:schema57,data}];
+validate39.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema58.required,parentSchema:schema58,data}];
 return false;
 }
 else {
@@ -2864,7 +3043,7 @@ if(data.format !== undefined){
 let data0 = data.format;
 const _errs1 = errors;
 if("henrytick-scenario" !== data0){
-validate36.errors = [{instancePath:instancePath+"/format",schemaPath:"#/properties/format/const",keyword:"const",params:{allowedValue: "henrytick-scenario"},message:"must be equal to constant",schema:"henrytick-scenario",parentSchema:schema57.properties.format,data:data0}];
+validate39.errors = [{instancePath:instancePath+"/format",schemaPath:"#/properties/format/const",keyword:"const",params:{allowedValue: "henrytick-scenario"},message:"must be equal to constant",schema:"henrytick-scenario",parentSchema:schema58.properties.format,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -2877,7 +3056,7 @@ if(data.version !== undefined){
 let data1 = data.version;
 const _errs2 = errors;
 if(1 !== data1){
-validate36.errors = [{instancePath:instancePath+"/version",schemaPath:"#/properties/version/const",keyword:"const",params:{allowedValue: 1},message:"must be equal to constant",schema:1,parentSchema:schema57.properties.version,data:data1}];
+validate39.errors = [{instancePath:instancePath+"/version",schemaPath:"#/properties/version/const",keyword:"const",params:{allowedValue: 1},message:"must be equal to constant",schema:1,parentSchema:schema58.properties.version,data:data1}];
 return false;
 }
 var valid0 = _errs2 === errors;
@@ -2892,12 +3071,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if(typeof data2 === "string"){
 if(func1(data2) < 1){
-validate36.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters",schema:1,parentSchema:schema57.properties.name,data:data2}];
+validate39.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters",schema:1,parentSchema:schema58.properties.name,data:data2}];
 return false;
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema57.properties.name.type,parentSchema:schema57.properties.name,data:data2}];
+validate39.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema58.properties.name.type,parentSchema:schema58.properties.name,data:data2}];
 return false;
 }
 }
@@ -2911,7 +3090,7 @@ if(data.story !== undefined){
 let data3 = data.story;
 const _errs5 = errors;
 if(typeof data3 !== "string"){
-validate36.errors = [{instancePath:instancePath+"/story",schemaPath:"#/properties/story/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema57.properties.story.type,parentSchema:schema57.properties.story,data:data3}];
+validate39.errors = [{instancePath:instancePath+"/story",schemaPath:"#/properties/story/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema58.properties.story.type,parentSchema:schema58.properties.story,data:data3}];
 return false;
 }
 var valid0 = _errs5 === errors;
@@ -2927,7 +3106,7 @@ if(errors === _errs7){
 if(data4 && typeof data4 == "object" && !Array.isArray(data4)){
 let missing1;
 if(((data4.inductance_h === undefined) && (missing1 = "inductance_h")) || ((data4.series_ohm === undefined) && (missing1 = "series_ohm"))){
-validate36.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/required",keyword:"required",params:{missingProperty: missing1},message:"must have required property '"+missing1+"'",schema:schema57.properties.part.required,parentSchema:schema57.properties.part,data:data4}];
+validate39.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/required",keyword:"required",params:{missingProperty: missing1},message:"must have required property '"+missing1+"'",schema:schema58.properties.part.required,parentSchema:schema58.properties.part,data:data4}];
 return false;
 }
 else {
@@ -2937,12 +3116,12 @@ const _errs9 = errors;
 if(errors === _errs9){
 if((typeof data5 == "number") && (isFinite(data5))){
 if(data5 <= 0 || isNaN(data5)){
-validate36.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema57.properties.part.properties.inductance_h,data:data5}];
+validate39.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema58.properties.part.properties.inductance_h,data:data5}];
 return false;
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.part.properties.inductance_h.type,parentSchema:schema57.properties.part.properties.inductance_h,data:data5}];
+validate39.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.part.properties.inductance_h.type,parentSchema:schema58.properties.part.properties.inductance_h,data:data5}];
 return false;
 }
 }
@@ -2958,12 +3137,12 @@ const _errs11 = errors;
 if(errors === _errs11){
 if((typeof data6 == "number") && (isFinite(data6))){
 if(data6 <= 0 || isNaN(data6)){
-validate36.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema57.properties.part.properties.series_ohm,data:data6}];
+validate39.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema58.properties.part.properties.series_ohm,data:data6}];
 return false;
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.part.properties.series_ohm.type,parentSchema:schema57.properties.part.properties.series_ohm,data:data6}];
+validate39.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.part.properties.series_ohm.type,parentSchema:schema58.properties.part.properties.series_ohm,data:data6}];
 return false;
 }
 }
@@ -2979,12 +3158,12 @@ const _errs13 = errors;
 if(errors === _errs13){
 if((typeof data7 == "number") && (isFinite(data7))){
 if(data7 <= 0 || isNaN(data7)){
-validate36.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema57.properties.part.properties.parallel_ohm,data:data7}];
+validate39.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema58.properties.part.properties.parallel_ohm,data:data7}];
 return false;
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.part.properties.parallel_ohm.type,parentSchema:schema57.properties.part.properties.parallel_ohm,data:data7}];
+validate39.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.part.properties.parallel_ohm.type,parentSchema:schema58.properties.part.properties.parallel_ohm,data:data7}];
 return false;
 }
 }
@@ -3000,12 +3179,12 @@ const _errs15 = errors;
 if(errors === _errs15){
 if((typeof data8 == "number") && (isFinite(data8))){
 if(data8 < 0 || isNaN(data8)){
-validate36.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema57.properties.part.properties.self_capacitance_f,data:data8}];
+validate39.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema58.properties.part.properties.self_capacitance_f,data:data8}];
 return false;
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.part.properties.self_capacitance_f.type,parentSchema:schema57.properties.part.properties.self_capacitance_f,data:data8}];
+validate39.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.part.properties.self_capacitance_f.type,parentSchema:schema58.properties.part.properties.self_capacitance_f,data:data8}];
 return false;
 }
 }
@@ -3021,12 +3200,12 @@ const _errs17 = errors;
 if(errors === _errs17){
 if((typeof data9 == "number") && (isFinite(data9))){
 if(data9 <= 0 || isNaN(data9)){
-validate36.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema57.properties.part.properties.saturation_current_a,data:data9}];
+validate39.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema58.properties.part.properties.saturation_current_a,data:data9}];
 return false;
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.part.properties.saturation_current_a.type,parentSchema:schema57.properties.part.properties.saturation_current_a,data:data9}];
+validate39.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.part.properties.saturation_current_a.type,parentSchema:schema58.properties.part.properties.saturation_current_a,data:data9}];
 return false;
 }
 }
@@ -3042,18 +3221,18 @@ const _errs19 = errors;
 if(errors === _errs19){
 if((typeof data10 == "number") && (isFinite(data10))){
 if(data10 >= 1 || isNaN(data10)){
-validate36.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMaximum",keyword:"exclusiveMaximum",params:{comparison: "<", limit: 1},message:"must be < 1",schema:1,parentSchema:schema57.properties.part.properties.saturation_floor_ratio,data:data10}];
+validate39.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMaximum",keyword:"exclusiveMaximum",params:{comparison: "<", limit: 1},message:"must be < 1",schema:1,parentSchema:schema58.properties.part.properties.saturation_floor_ratio,data:data10}];
 return false;
 }
 else {
 if(data10 <= 0 || isNaN(data10)){
-validate36.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema57.properties.part.properties.saturation_floor_ratio,data:data10}];
+validate39.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema58.properties.part.properties.saturation_floor_ratio,data:data10}];
 return false;
 }
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.part.properties.saturation_floor_ratio.type,parentSchema:schema57.properties.part.properties.saturation_floor_ratio,data:data10}];
+validate39.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.part.properties.saturation_floor_ratio.type,parentSchema:schema58.properties.part.properties.saturation_floor_ratio,data:data10}];
 return false;
 }
 }
@@ -3070,7 +3249,7 @@ var valid1 = true;
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema57.properties.part.type,parentSchema:schema57.properties.part,data:data4}];
+validate39.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema58.properties.part.type,parentSchema:schema58.properties.part,data:data4}];
 return false;
 }
 }
@@ -3091,12 +3270,12 @@ const _errs23 = errors;
 if(errors === _errs23){
 if((typeof data12 == "number") && (isFinite(data12))){
 if(data12 < 0 || isNaN(data12)){
-validate36.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema57.properties.fixture.properties.capacitance_f,data:data12}];
+validate39.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema58.properties.fixture.properties.capacitance_f,data:data12}];
 return false;
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.fixture.properties.capacitance_f.type,parentSchema:schema57.properties.fixture.properties.capacitance_f,data:data12}];
+validate39.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.fixture.properties.capacitance_f.type,parentSchema:schema58.properties.fixture.properties.capacitance_f,data:data12}];
 return false;
 }
 }
@@ -3106,18 +3285,24 @@ else {
 var valid2 = true;
 }
 if(valid2){
-if(data11.tank_voltage_coefficient_per_v2 !== undefined){
-let data13 = data11.tank_voltage_coefficient_per_v2;
+if(data11.lead_inductance_h !== undefined){
+let data13 = data11.lead_inductance_h;
 const _errs25 = errors;
 if(errors === _errs25){
 if((typeof data13 == "number") && (isFinite(data13))){
-if(data13 <= 0 || isNaN(data13)){
-validate36.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema57.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data13}];
+if(data13 > 0.000001 || isNaN(data13)){
+validate39.errors = [{instancePath:instancePath+"/fixture/lead_inductance_h",schemaPath:"#/properties/fixture/properties/lead_inductance_h/maximum",keyword:"maximum",params:{comparison: "<=", limit: 0.000001},message:"must be <= 0.000001",schema:0.000001,parentSchema:schema58.properties.fixture.properties.lead_inductance_h,data:data13}];
+return false;
+}
+else {
+if(data13 < 0 || isNaN(data13)){
+validate39.errors = [{instancePath:instancePath+"/fixture/lead_inductance_h",schemaPath:"#/properties/fixture/properties/lead_inductance_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema58.properties.fixture.properties.lead_inductance_h,data:data13}];
 return false;
 }
 }
+}
 else {
-validate36.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.fixture.properties.tank_voltage_coefficient_per_v2.type,parentSchema:schema57.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data13}];
+validate39.errors = [{instancePath:instancePath+"/fixture/lead_inductance_h",schemaPath:"#/properties/fixture/properties/lead_inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.fixture.properties.lead_inductance_h.type,parentSchema:schema58.properties.fixture.properties.lead_inductance_h,data:data13}];
 return false;
 }
 }
@@ -3127,71 +3312,65 @@ else {
 var valid2 = true;
 }
 if(valid2){
-if(data11.chatter !== undefined){
-let data14 = data11.chatter;
+if(data11.tank_voltage_coefficient_per_v2 !== undefined){
+let data14 = data11.tank_voltage_coefficient_per_v2;
 const _errs27 = errors;
 if(errors === _errs27){
-if(data14 && typeof data14 == "object" && !Array.isArray(data14)){
+if((typeof data14 == "number") && (isFinite(data14))){
+if(data14 <= 0 || isNaN(data14)){
+validate39.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema58.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data14}];
+return false;
+}
+}
+else {
+validate39.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.fixture.properties.tank_voltage_coefficient_per_v2.type,parentSchema:schema58.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data14}];
+return false;
+}
+}
+var valid2 = _errs27 === errors;
+}
+else {
+var valid2 = true;
+}
+if(valid2){
+if(data11.chatter !== undefined){
+let data15 = data11.chatter;
+const _errs29 = errors;
+if(errors === _errs29){
+if(data15 && typeof data15 == "object" && !Array.isArray(data15)){
 let missing2;
-if((data14.events_per_s === undefined) && (missing2 = "events_per_s")){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema57.properties.fixture.properties.chatter.required,parentSchema:schema57.properties.fixture.properties.chatter,data:data14}];
+if((data15.events_per_s === undefined) && (missing2 = "events_per_s")){
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema58.properties.fixture.properties.chatter.required,parentSchema:schema58.properties.fixture.properties.chatter,data:data15}];
 return false;
 }
 else {
-const _errs29 = errors;
-for(const key0 in data14){
+const _errs31 = errors;
+for(const key0 in data15){
 if(!(((((key0 === "events_per_s") || (key0 === "open_share")) || (key0 === "open_s")) || (key0 === "burst_ohm")) || (key0 === "burst_s"))){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/additionalProperties",keyword:"additionalProperties",params:{additionalProperty: key0},message:"must NOT have additional properties",schema:false,parentSchema:schema57.properties.fixture.properties.chatter,data:data14}];
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/additionalProperties",keyword:"additionalProperties",params:{additionalProperty: key0},message:"must NOT have additional properties",schema:false,parentSchema:schema58.properties.fixture.properties.chatter,data:data15}];
 return false;
 break;
 }
 }
-if(_errs29 === errors){
-if(data14.events_per_s !== undefined){
-let data15 = data14.events_per_s;
-const _errs30 = errors;
-if(errors === _errs30){
-if((typeof data15 == "number") && (isFinite(data15))){
-if(data15 > 100000 || isNaN(data15)){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/maximum",keyword:"maximum",params:{comparison: "<=", limit: 100000},message:"must be <= 100000",schema:100000,parentSchema:schema57.properties.fixture.properties.chatter.properties.events_per_s,data:data15}];
-return false;
-}
-else {
-if(data15 < 0 || isNaN(data15)){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema57.properties.fixture.properties.chatter.properties.events_per_s,data:data15}];
-return false;
-}
-}
-}
-else {
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.fixture.properties.chatter.properties.events_per_s.type,parentSchema:schema57.properties.fixture.properties.chatter.properties.events_per_s,data:data15}];
-return false;
-}
-}
-var valid3 = _errs30 === errors;
-}
-else {
-var valid3 = true;
-}
-if(valid3){
-if(data14.open_share !== undefined){
-let data16 = data14.open_share;
+if(_errs31 === errors){
+if(data15.events_per_s !== undefined){
+let data16 = data15.events_per_s;
 const _errs32 = errors;
 if(errors === _errs32){
 if((typeof data16 == "number") && (isFinite(data16))){
-if(data16 > 1 || isNaN(data16)){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema57.properties.fixture.properties.chatter.properties.open_share,data:data16}];
+if(data16 > 100000 || isNaN(data16)){
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/maximum",keyword:"maximum",params:{comparison: "<=", limit: 100000},message:"must be <= 100000",schema:100000,parentSchema:schema58.properties.fixture.properties.chatter.properties.events_per_s,data:data16}];
 return false;
 }
 else {
 if(data16 < 0 || isNaN(data16)){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema57.properties.fixture.properties.chatter.properties.open_share,data:data16}];
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema58.properties.fixture.properties.chatter.properties.events_per_s,data:data16}];
 return false;
 }
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.fixture.properties.chatter.properties.open_share.type,parentSchema:schema57.properties.fixture.properties.chatter.properties.open_share,data:data16}];
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.fixture.properties.chatter.properties.events_per_s.type,parentSchema:schema58.properties.fixture.properties.chatter.properties.events_per_s,data:data16}];
 return false;
 }
 }
@@ -3201,54 +3380,24 @@ else {
 var valid3 = true;
 }
 if(valid3){
-if(data14.open_s !== undefined){
-let data17 = data14.open_s;
+if(data15.open_share !== undefined){
+let data17 = data15.open_share;
 const _errs34 = errors;
 if(errors === _errs34){
-if(Array.isArray(data17)){
-if(data17.length > 2){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema57.properties.fixture.properties.chatter.properties.open_s,data:data17}];
+if((typeof data17 == "number") && (isFinite(data17))){
+if(data17 > 1 || isNaN(data17)){
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_share,data:data17}];
 return false;
 }
 else {
-if(data17.length < 2){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema57.properties.fixture.properties.chatter.properties.open_s,data:data17}];
-return false;
-}
-else {
-var valid4 = true;
-const len0 = data17.length;
-for(let i0=0; i0<len0; i0++){
-let data18 = data17[i0];
-const _errs36 = errors;
-if(errors === _errs36){
-if((typeof data18 == "number") && (isFinite(data18))){
-if(data18 > 1 || isNaN(data18)){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema57.properties.fixture.properties.chatter.properties.open_s.items,data:data18}];
-return false;
-}
-else {
-if(data18 <= 0 || isNaN(data18)){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema57.properties.fixture.properties.chatter.properties.open_s.items,data:data18}];
+if(data17 < 0 || isNaN(data17)){
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_share,data:data17}];
 return false;
 }
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.fixture.properties.chatter.properties.open_s.items.type,parentSchema:schema57.properties.fixture.properties.chatter.properties.open_s.items,data:data18}];
-return false;
-}
-}
-var valid4 = _errs36 === errors;
-if(!valid4){
-break;
-}
-}
-}
-}
-}
-else {
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema57.properties.fixture.properties.chatter.properties.open_s.type,parentSchema:schema57.properties.fixture.properties.chatter.properties.open_s,data:data17}];
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.fixture.properties.chatter.properties.open_share.type,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_share,data:data17}];
 return false;
 }
 }
@@ -3258,45 +3407,102 @@ else {
 var valid3 = true;
 }
 if(valid3){
-if(data14.burst_ohm !== undefined){
-let data19 = data14.burst_ohm;
-const _errs38 = errors;
-if(errors === _errs38){
-if(Array.isArray(data19)){
-if(data19.length > 2){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema57.properties.fixture.properties.chatter.properties.burst_ohm,data:data19}];
+if(data15.open_s !== undefined){
+let data18 = data15.open_s;
+const _errs36 = errors;
+if(errors === _errs36){
+if(Array.isArray(data18)){
+if(data18.length > 2){
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_s,data:data18}];
 return false;
 }
 else {
-if(data19.length < 2){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema57.properties.fixture.properties.chatter.properties.burst_ohm,data:data19}];
+if(data18.length < 2){
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_s,data:data18}];
+return false;
+}
+else {
+var valid4 = true;
+const len0 = data18.length;
+for(let i0=0; i0<len0; i0++){
+let data19 = data18[i0];
+const _errs38 = errors;
+if(errors === _errs38){
+if((typeof data19 == "number") && (isFinite(data19))){
+if(data19 > 1 || isNaN(data19)){
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_s.items,data:data19}];
+return false;
+}
+else {
+if(data19 <= 0 || isNaN(data19)){
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_s.items,data:data19}];
+return false;
+}
+}
+}
+else {
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.fixture.properties.chatter.properties.open_s.items.type,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_s.items,data:data19}];
+return false;
+}
+}
+var valid4 = _errs38 === errors;
+if(!valid4){
+break;
+}
+}
+}
+}
+}
+else {
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema58.properties.fixture.properties.chatter.properties.open_s.type,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_s,data:data18}];
+return false;
+}
+}
+var valid3 = _errs36 === errors;
+}
+else {
+var valid3 = true;
+}
+if(valid3){
+if(data15.burst_ohm !== undefined){
+let data20 = data15.burst_ohm;
+const _errs40 = errors;
+if(errors === _errs40){
+if(Array.isArray(data20)){
+if(data20.length > 2){
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_ohm,data:data20}];
+return false;
+}
+else {
+if(data20.length < 2){
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_ohm,data:data20}];
 return false;
 }
 else {
 var valid5 = true;
-const len1 = data19.length;
+const len1 = data20.length;
 for(let i1=0; i1<len1; i1++){
-let data20 = data19[i1];
-const _errs40 = errors;
-if(errors === _errs40){
-if((typeof data20 == "number") && (isFinite(data20))){
-if(data20 > 1000000 || isNaN(data20)){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1000000},message:"must be <= 1000000",schema:1000000,parentSchema:schema57.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data20}];
+let data21 = data20[i1];
+const _errs42 = errors;
+if(errors === _errs42){
+if((typeof data21 == "number") && (isFinite(data21))){
+if(data21 > 1000000 || isNaN(data21)){
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1000000},message:"must be <= 1000000",schema:1000000,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data21}];
 return false;
 }
 else {
-if(data20 < 0 || isNaN(data20)){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema57.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data20}];
+if(data21 < 0 || isNaN(data21)){
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data21}];
 return false;
 }
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.fixture.properties.chatter.properties.burst_ohm.items.type,parentSchema:schema57.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data20}];
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.fixture.properties.chatter.properties.burst_ohm.items.type,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data21}];
 return false;
 }
 }
-var valid5 = _errs40 === errors;
+var valid5 = _errs42 === errors;
 if(!valid5){
 break;
 }
@@ -3305,55 +3511,55 @@ break;
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema57.properties.fixture.properties.chatter.properties.burst_ohm.type,parentSchema:schema57.properties.fixture.properties.chatter.properties.burst_ohm,data:data19}];
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema58.properties.fixture.properties.chatter.properties.burst_ohm.type,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_ohm,data:data20}];
 return false;
 }
 }
-var valid3 = _errs38 === errors;
+var valid3 = _errs40 === errors;
 }
 else {
 var valid3 = true;
 }
 if(valid3){
-if(data14.burst_s !== undefined){
-let data21 = data14.burst_s;
-const _errs42 = errors;
-if(errors === _errs42){
-if(Array.isArray(data21)){
-if(data21.length > 2){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema57.properties.fixture.properties.chatter.properties.burst_s,data:data21}];
+if(data15.burst_s !== undefined){
+let data22 = data15.burst_s;
+const _errs44 = errors;
+if(errors === _errs44){
+if(Array.isArray(data22)){
+if(data22.length > 2){
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_s,data:data22}];
 return false;
 }
 else {
-if(data21.length < 2){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema57.properties.fixture.properties.chatter.properties.burst_s,data:data21}];
+if(data22.length < 2){
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_s,data:data22}];
 return false;
 }
 else {
 var valid6 = true;
-const len2 = data21.length;
+const len2 = data22.length;
 for(let i2=0; i2<len2; i2++){
-let data22 = data21[i2];
-const _errs44 = errors;
-if(errors === _errs44){
-if((typeof data22 == "number") && (isFinite(data22))){
-if(data22 > 1 || isNaN(data22)){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema57.properties.fixture.properties.chatter.properties.burst_s.items,data:data22}];
+let data23 = data22[i2];
+const _errs46 = errors;
+if(errors === _errs46){
+if((typeof data23 == "number") && (isFinite(data23))){
+if(data23 > 1 || isNaN(data23)){
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_s.items,data:data23}];
 return false;
 }
 else {
-if(data22 <= 0 || isNaN(data22)){
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema57.properties.fixture.properties.chatter.properties.burst_s.items,data:data22}];
+if(data23 <= 0 || isNaN(data23)){
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_s.items,data:data23}];
 return false;
 }
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.fixture.properties.chatter.properties.burst_s.items.type,parentSchema:schema57.properties.fixture.properties.chatter.properties.burst_s.items,data:data22}];
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.fixture.properties.chatter.properties.burst_s.items.type,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_s.items,data:data23}];
 return false;
 }
 }
-var valid6 = _errs44 === errors;
+var valid6 = _errs46 === errors;
 if(!valid6){
 break;
 }
@@ -3362,11 +3568,11 @@ break;
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema57.properties.fixture.properties.chatter.properties.burst_s.type,parentSchema:schema57.properties.fixture.properties.chatter.properties.burst_s,data:data21}];
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema58.properties.fixture.properties.chatter.properties.burst_s.type,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_s,data:data22}];
 return false;
 }
 }
-var valid3 = _errs42 === errors;
+var valid3 = _errs44 === errors;
 }
 else {
 var valid3 = true;
@@ -3379,11 +3585,11 @@ var valid3 = true;
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema57.properties.fixture.properties.chatter.type,parentSchema:schema57.properties.fixture.properties.chatter,data:data14}];
+validate39.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema58.properties.fixture.properties.chatter.type,parentSchema:schema58.properties.fixture.properties.chatter,data:data15}];
 return false;
 }
 }
-var valid2 = _errs27 === errors;
+var valid2 = _errs29 === errors;
 }
 else {
 var valid2 = true;
@@ -3391,8 +3597,9 @@ var valid2 = true;
 }
 }
 }
+}
 else {
-validate36.errors = [{instancePath:instancePath+"/fixture",schemaPath:"#/properties/fixture/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema57.properties.fixture.type,parentSchema:schema57.properties.fixture,data:data11}];
+validate39.errors = [{instancePath:instancePath+"/fixture",schemaPath:"#/properties/fixture/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema58.properties.fixture.type,parentSchema:schema58.properties.fixture,data:data11}];
 return false;
 }
 }
@@ -3403,42 +3610,42 @@ var valid0 = true;
 }
 if(valid0){
 if(data.geometry !== undefined){
-let data23 = data.geometry;
-const _errs46 = errors;
-if(errors === _errs46){
-if(data23 && typeof data23 == "object" && !Array.isArray(data23)){
-for(const key1 in data23){
-let data24 = data23[key1];
-const _errs49 = errors;
-if(!((typeof data24 == "number") && (isFinite(data24)))){
-validate36.errors = [{instancePath:instancePath+"/geometry/" + key1.replace(/~/g, "~0").replace(/\//g, "~1"),schemaPath:"#/properties/geometry/additionalProperties/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.geometry.additionalProperties.type,parentSchema:schema57.properties.geometry.additionalProperties,data:data24}];
+let data24 = data.geometry;
+const _errs48 = errors;
+if(errors === _errs48){
+if(data24 && typeof data24 == "object" && !Array.isArray(data24)){
+for(const key1 in data24){
+let data25 = data24[key1];
+const _errs51 = errors;
+if(!((typeof data25 == "number") && (isFinite(data25)))){
+validate39.errors = [{instancePath:instancePath+"/geometry/" + key1.replace(/~/g, "~0").replace(/\//g, "~1"),schemaPath:"#/properties/geometry/additionalProperties/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.geometry.additionalProperties.type,parentSchema:schema58.properties.geometry.additionalProperties,data:data25}];
 return false;
 }
-var valid7 = _errs49 === errors;
+var valid7 = _errs51 === errors;
 if(!valid7){
 break;
 }
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/geometry",schemaPath:"#/properties/geometry/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema57.properties.geometry.type,parentSchema:schema57.properties.geometry,data:data23}];
+validate39.errors = [{instancePath:instancePath+"/geometry",schemaPath:"#/properties/geometry/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema58.properties.geometry.type,parentSchema:schema58.properties.geometry,data:data24}];
 return false;
 }
 }
-var valid0 = _errs46 === errors;
+var valid0 = _errs48 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.seed !== undefined){
-let data25 = data.seed;
-const _errs51 = errors;
-if(!(((typeof data25 == "number") && (!(data25 % 1) && !isNaN(data25))) && (isFinite(data25)))){
-validate36.errors = [{instancePath:instancePath+"/seed",schemaPath:"#/properties/seed/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema57.properties.seed.type,parentSchema:schema57.properties.seed,data:data25}];
+let data26 = data.seed;
+const _errs53 = errors;
+if(!(((typeof data26 == "number") && (!(data26 % 1) && !isNaN(data26))) && (isFinite(data26)))){
+validate39.errors = [{instancePath:instancePath+"/seed",schemaPath:"#/properties/seed/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema58.properties.seed.type,parentSchema:schema58.properties.seed,data:data26}];
 return false;
 }
-var valid0 = _errs51 === errors;
+var valid0 = _errs53 === errors;
 }
 else {
 var valid0 = true;
@@ -3453,12 +3660,12 @@ var valid0 = true;
 }
 }
 else {
-validate36.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema57.type,parentSchema:schema57,data}];
+validate39.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema58.type,parentSchema:schema58,data}];
 return false;
 }
 }
-validate36.errors = vErrors;
+validate39.errors = vErrors;
 return errors === 0;
 }
-validate36.evaluated = {"props":{"format":true,"version":true,"name":true,"story":true,"part":true,"fixture":true,"geometry":true,"seed":true},"dynamicProps":false,"dynamicItems":false};
+validate39.evaluated = {"props":{"format":true,"version":true,"name":true,"story":true,"part":true,"fixture":true,"geometry":true,"seed":true},"dynamicProps":false,"dynamicItems":false};
 

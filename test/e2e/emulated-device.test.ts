@@ -157,8 +157,7 @@ describe.skipIf(!canEmulate)(`the emulated STM32F405 with a broken front-end lin
     devices.push(d);
     const r = await cli(["measure", "--port", d.path, "--drive", "1", "--tank", "2", "--json"], { configDir: mkdtempSync(join(tmpdir(), "henrytick-emu-")) });
     expect(r.status).toBe(1);
-    expect(r.stdout).toBe("");
-    expect(r.stderr).toMatch(/\[CAPTURE_FAULT\]/);
+    expect(JSON.parse(r.stdout).error.code).toBe("CAPTURE_FAULT"); // --json: the error as JSON
     expect(await d.readVariable("ht_qemu_gate")).toBe(0);
     expect(await d.readVariable("ht_qemu_link_faults")).toBeGreaterThanOrEqual(1);
     if (kind === "corrupt") expect(d.edges.stats.bytes_out).toBeGreaterThan(0);

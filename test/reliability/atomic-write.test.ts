@@ -4,14 +4,14 @@
 // EFBIG from a file-size limit) leaves the target as it was and no temporary file behind.
 
 import { spawnSync } from "node:child_process";
-import { existsSync, lstatSync, mkdtempSync, readdirSync, readFileSync, rmSync, symlinkSync, writeFileSync } from "node:fs";
+import { existsSync, lstatSync, lutimesSync, mkdtempSync, readdirSync, readFileSync, rmSync, symlinkSync, utimesSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { afterAll, describe, expect, it } from "vitest";
 import { readCaptureFile, writeCaptureFile } from "../../host/src/capture/capture-file.ts";
 import { profilePaths, saveProfile } from "../../host/src/calibration/profile-store.ts";
-import { FileWriteError, tempNameFor, writeFileAtomic } from "../../host/src/fs/atomic-write.ts";
+import { FileWriteError, STALE_TEMP_MS, tempNameFor, writeFileAtomic } from "../../host/src/fs/atomic-write.ts";
 import { writeReport } from "../../host/src/report/write-report.ts";
 import { captureFor, DEVICE_ID, profileFor } from "./data-safety/records.ts";
 
@@ -109,6 +109,39 @@ describe("writeFileAtomic", () => {
     expect(() => writeFileAtomic(join(dir, "none", "a.json"), "x")).toThrow(expect.objectContaining({ code: "NO_SUCH_FOLDER" }));
   });
 });
+
+describe("temporary files a killed writer left", () => {
+  it("are removed by the next write of the same target once an hour old; fresh ones, other names and symlink targets stay", () => {
+    const dir = freshDir();
+    const v = victim(dir);
+    const f = join(dir, "a.json");
+    const old = join(dir, tempNameFor(f));
+    const fresh = join(dir, tempNameFor(f));
+    const link = join(dir, tempNameFor(f));
+    const other = join(dir, tempNameFor(join(dir, "b.json")));
+    for (const p of [old, fresh, other]) writeFileSync(p, "left by a kill");
+    symlinkSync(v, link);
+    const hourAgo = new Date(Date.now() - STALE_TEMP_MS - 60_000);
+    utimesSync(old, hourAgo, hourAgo);
+    utimesSync(other, hourAgo, hourAgo);
+    lutimesSync(link, hourAgo, hourAgo);
+    writeFileAtomic(f, "new");
+    expect(existsSync(old)).toBe(false);
+    expect(existsSync(fresh)).toBe(true);
+    expect(existsSync(other)).toBe(true);
+    expect(lstatExists(link)).toBe(false);
+    expect(readFileSync(v, "utf8")).toBe(VICTIM_TEXT);
+  });
+});
+
+function lstatExists(p: string): boolean {
+  try {
+    lstatSync(p);
+    return true;
+  } catch {
+    return false;
+  }
+}
 
 describe("writers use it: a symlink at the old predictable temporary name is not followed", () => {
   it("writeCaptureFile (was FILE.<pid>.tmp)", () => {

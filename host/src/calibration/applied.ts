@@ -18,6 +18,8 @@ export interface AppliedCalibration {
   timebase_ppm?: number;
   /** Standard uncertainty of that error, ppm (uncalibrated: nominal-uncertainty.ts). */
   timebase_u_ppm?: number;
+  /** The test leads' series inductance to subtract from every reading, with its standard uncertainty. */
+  leads?: { l_h: number; u_h: number };
   /** The comparator's rise/fall delay skew and its standard uncertainty, seconds (skew-fit.ts). */
   comparator_skew?: { skew_s: number; u_s: number };
   /** Where it came from, for the capture's record (e.g. the profile's file and date). */

@@ -41,6 +41,7 @@ export function appliedCalibration(profile: CalibrationProfile, source: string):
     tanks,
     ...(profile.thresholds ? { thresholds_v: [profile.thresholds.thresholds_v[0], profile.thresholds.thresholds_v[1]] as [number, number] } : {}),
     ...(profile.timebase ? { timebase_ppm: ppm, timebase_u_ppm: profile.timebase.u_ppm } : {}),
+    ...(profile.leads ? { leads: { l_h: profile.leads.l_h, u_h: profile.leads.u_h } } : {}),
     ...(profile.skew ? { comparator_skew: { skew_s: profile.skew.skew_s, u_s: profile.skew.u_skew_s } } : {}),
     source,
   };

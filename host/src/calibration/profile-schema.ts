@@ -11,10 +11,10 @@ export const PROFILE_VERSION = 1;
 /**
  * The procedures a profile value can come from: a reference inductor, a coil rung without and
  * with a known capacitor, the comparator threshold fit, the comparator skew fit, the crystal
- * timed against the host's clock, or a value entered by hand (e.g. a crystal error from a
- * frequency counter).
+ * timed against the host's clock, a value entered by hand (e.g. a crystal error from a
+ * frequency counter), or the ring of the test leads with their clips shorted together.
  */
-export const CALIBRATION_METHODS = ["reference-inductor", "parallel-capacitor", "threshold-fit", "skew-fit", "host-clock", "entered"] as const;
+export const CALIBRATION_METHODS = ["reference-inductor", "parallel-capacitor", "threshold-fit", "skew-fit", "host-clock", "entered", "clips-shorted"] as const;
 export type CalibrationMethod = (typeof CALIBRATION_METHODS)[number];
 
 /** How a value was obtained, and when: kept with each value so a user can judge it later. */
@@ -61,6 +61,17 @@ export interface TimebaseEntry extends Provenance {
   u_ppm: number;
 }
 
+/** The test leads' own series inductance (clips shorted): subtracted from every reading. */
+export interface LeadEntry extends Provenance {
+  /** Series inductance of the leads and clips, henries. */
+  l_h: number;
+  /** Standard uncertainty of l_h. */
+  u_h: number;
+}
+
+/** Largest lead inductance a profile accepts: above it the clips were not shorted (as SHORT_MAX_L_H). */
+export const MAX_LEAD_H = 0.5e-6;
+
 export interface SkewEntry extends Provenance {
   /** The comparator's rising-edge propagation delay minus its falling-edge delay, seconds. */
   skew_s: number;
@@ -77,6 +88,7 @@ export interface CalibrationProfile {
   tanks: TankEntry[];
   thresholds?: ThresholdEntry;
   timebase?: TimebaseEntry;
+  leads?: LeadEntry;
   skew?: SkewEntry;
 }
 
@@ -115,6 +127,13 @@ function timebaseEntry(o: Obj): TimebaseEntry {
   return e;
 }
 
+function leadEntry(o: Obj): LeadEntry {
+  const e = { ...o, detail: o.detail ?? "" } as unknown as LeadEntry;
+  if (e.l_h > MAX_LEAD_H) bad("leads.l_h", `${e.l_h} H is more than shorted clips and leads show (at most ${MAX_LEAD_H} H)`);
+  if (e.u_h > Math.max(0.5 * e.l_h, 1e-9)) bad("leads.u_h", `${e.u_h} H is over half of l_h: not a calibration`);
+  return e;
+}
+
 function skewEntry(o: Obj): SkewEntry {
   const e = { ...o, detail: o.detail ?? "" } as unknown as SkewEntry;
   // A comparator whose rise and fall delays differ by a microsecond is not a comparator: a mix-up
@@ -147,6 +166,7 @@ export function validateProfile(raw: unknown): CalibrationProfile {
   };
   if (o.thresholds !== undefined) p.thresholds = thresholdEntry(o.thresholds as Obj);
   if (o.timebase !== undefined) p.timebase = timebaseEntry(o.timebase as Obj);
+  if (o.leads !== undefined) p.leads = leadEntry(o.leads as Obj);
   if (o.skew !== undefined) p.skew = skewEntry(o.skew as Obj);
   return p;
 }

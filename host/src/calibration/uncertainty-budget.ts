@@ -8,7 +8,9 @@ import type { RingAnalysis } from "../analysis/index.ts";
 import { SELF_CAPACITANCE_LINE, STRAY_CAPACITANCE_LINE } from "../measure/reading-uncertainty.ts";
 import type { TwoCapacitanceResult } from "./two-capacitance.ts";
 
-export const BUDGET_GROUPS = ["fit", "capacitance", "timebase", "self-capacitance"] as const;
+export const BUDGET_GROUPS = ["fit", "capacitance", "timebase", "self-capacitance", "leads"] as const;
+/** The groups of the two-tank model (its leads are not nulled: docs/calibration.md, Limits). */
+const TWO_TANK_GROUPS = ["fit", "capacitance", "timebase", "self-capacitance"] as const;
 export type BudgetGroup = (typeof BUDGET_GROUPS)[number];
 
 export interface BudgetLine {
@@ -62,6 +64,8 @@ export function singleTankBudget(
       ? { group: "timebase", rel_u: 2 * timebase.u_rel, note: timebase.note }
       : { group: "timebase", rel_u: from("timebase"), note: "uncalibrated crystal (analysis default)" },
   ];
+  const leads = from("leads");
+  if (leads > 0) lines.push({ group: "leads", rel_u: leads, note: "test leads' inductance subtracted (calibrate short)" });
   const strayNote = stray > 0 ? "; fixture and switch node: tank not calibrated" : "";
   if (cs) {
     // Corrected value L = L_app C / (C + Cs): relative sensitivity to Cs is -1/(C + Cs).
@@ -78,13 +82,13 @@ export function singleTankBudget(
 
 /** Budget of the two-tank corrected inductance, from the grouped propagation of two-capacitance.ts. */
 export function twoTankBudget(r: TwoCapacitanceResult): UncertaintyBudget {
-  const notes: Record<BudgetGroup, string> = {
+  const notes: Record<(typeof TWO_TANK_GROUPS)[number], string> = {
     fit: "fit of the ring on the larger tank",
     capacitance: "larger tank's capacitance and what both tanks share",
     timebase: "timebase, common to both rings",
     "self-capacitance": "ring on the smaller tank and its capacitance (they fix Cs)",
   };
-  const lines = BUDGET_GROUPS.map((group) => ({
+  const lines = TWO_TANK_GROUPS.map((group) => ({
     group,
     rel_u: (r.inductance_groups.find((g) => g.group === group)?.u_h ?? 0) / r.inductance_h,
     note: notes[group],

@@ -16,6 +16,8 @@ import { MEASURABLE_RANGE } from "../values/range.ts";
 import { CliUsageError } from "./errors.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
 import { PulseCaution } from "./caution.ts";
+import { measureLeadInductance } from "../calibration/nulling.ts";
+import { SHORTED_CLIPS } from "../sim/scenario.ts";
 
 /**
  * A calibration value through the one value parser: `330u`, `4n7`, `330uH`, `1.5e-3`, `4R7`;
@@ -47,8 +49,9 @@ export async function runCalibrate(args: string[]): Promise<number> {
     case "thresholds": return withTester(rest, { captures: { type: "string" } }, thresholds, true);
     case "skew": return withTester(rest, { captures: { type: "string" }, tanks: { type: "string" } }, skew, true);
     case "timebase": return withTester(rest, { ppm: { type: "string" }, "u-ppm": { type: "string" }, seconds: { type: "string" } }, timebase);
+    case "short": return withTester(rest, { repeats: { type: "string" } }, short, true);
     default:
-      throw new CliUsageError(`calibrate needs one of: show, reference, parallel, thresholds, skew, timebase, restore${sub ? ` (got "${sub}")` : ""}`);
+      throw new CliUsageError(`calibrate needs one of: show, reference, parallel, thresholds, skew, timebase, short, restore${sub ? ` (got "${sub}")` : ""}`);
   }
 }
 
@@ -119,6 +122,9 @@ function show(t: OpenedTester, store: StoreOptions, json: boolean): Promise<numb
     lines.push(p.timebase
       ? `   timebase     ${p.timebase.ppm.toFixed(2)} ppm ± ${(2 * p.timebase.u_ppm).toFixed(2)} ppm (k = 2); ${p.timebase.method} ${p.timebase.time}`
       : "   timebase     nominal (cancels in tanks calibrated against a reference inductor)");
+    lines.push(p.leads
+      ? `   leads        ${formatSi(p.leads.l_h, "H", 4)} ± ${formatSi(2 * p.leads.u_h, "H", 2)} (k = 2), subtracted; ${p.leads.method} ${p.leads.time}`
+      : "   leads        not nulled (henrytick calibrate short)");
   }
   process.stdout.write(lines.join("\n") + "\n");
   return Promise.resolve(0);
@@ -144,6 +150,12 @@ async function reference(t: OpenedTester, store: StoreOptions, v: Values, cautio
   caution();
   const profile = currentProfile(t, store);
   const applied = appliedCalibration(profile, "calibration in progress");
+  // The reference rings in series with the nulled leads: the tank sees both.
+  if (profile.leads) {
+    ref.inductance_h += profile.leads.l_h;
+    ref.u_inductance_h = Math.hypot(ref.u_inductance_h, profile.leads.u_h);
+    ref.label = `${ref.label ?? ""} plus the leads' ${formatSi(profile.leads.l_h, "H", 3)}`.trim();
+  }
   const out = await calibrateWithReference(t.client, ref, { tanks, repeats, calibration: applied, timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress });
   for (const r of out.results) {
     say(`   tank ${r.tank}: ${formatSi(r.c_f, "F", 5)} ± ${formatSi(2 * r.u_f, "F", 2)} (k = 2), ${((r.c_f / r.nominal_f - 1) * 100).toFixed(2)} % from nominal; ${r.readings} rings at ${formatSi(r.f0_hz, "Hz", 6)}\n`);
@@ -249,6 +261,25 @@ async function measuredTimebase(t: OpenedTester, store: StoreOptions, v: Values)
   };
   say(`   timebase ${r.ppm.toFixed(2)} ppm ± ${(2 * r.u_ppm).toFixed(2)} ppm (k = 2) over ${r.duration_s.toFixed(1)} s\n`);
   commit(profile, store, profile.timebase);
+  return 0;
+}
+
+/** Lead nulling: the clips shorted to each other; the leads' inductance is stored and subtracted from later readings. */
+async function short(t: OpenedTester, store: StoreOptions, v: Values, caution: () => void): Promise<number> {
+  const repeats = intOption(v.repeats, "repeats", 1, 50);
+  caution();
+  const profile = currentProfile(t, store);
+  const sim = t.sim;
+  if (sim) {
+    sim.part = SHORTED_CLIPS;
+    progress("(simulated) clips shorted to each other");
+  } else {
+    await waitForEnter("short the two clips to each other (metal to metal, nothing else on them), then press Enter");
+  }
+  const out = await measureLeadInductance(t.client, { repeats, calibration: appliedCalibration(profile, "calibration in progress"), onProgress: progress });
+  say(`   leads: ${formatSi(out.entry.l_h, "H", 4)} ± ${formatSi(2 * out.entry.u_h, "H", 2)} (k = 2), subtracted from every later reading; ${out.readings_h.length} rings at ${formatSi(out.f0_hz, "Hz", 4)}\n`);
+  profile.leads = out.entry;
+  commit(profile, store, { leads: out.entry, drive: out.drive, tank: out.tank, readings_h: out.readings_h });
   return 0;
 }
 

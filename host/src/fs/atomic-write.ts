@@ -4,10 +4,11 @@
 // (crypto-random) in the target's own folder; the data is flushed (fsync), the temporary file is
 // renamed over the target and the folder is flushed too, so after a crash or power cut a reader
 // finds the old file or the new one, never half of either. On any failure the temporary file is
-// removed and the target is left as it was.
+// removed and the target is left as it was; what a killed writer left is removed by a later write
+// of the same target once it is an hour old.
 
 import { randomBytes } from "node:crypto";
-import { closeSync, constants, fsyncSync, openSync, renameSync, unlinkSync, writeSync } from "node:fs";
+import { closeSync, constants, fsyncSync, lstatSync, openSync, readdirSync, renameSync, unlinkSync, writeSync } from "node:fs";
 import { basename, dirname, join } from "node:path";
 import { CodedError } from "../coded-error.ts";
 
@@ -30,6 +31,39 @@ export interface AtomicWriteOptions {
 
 /** Attempts at an exclusive name before giving up (each collision means someone planted one). */
 const NAME_ATTEMPTS = 8;
+
+/** A temporary file of this name older than this was left by a writer that was killed. */
+export const STALE_TEMP_MS = 60 * 60 * 1000;
+
+/**
+ * Removes temporary files a killed writer left for `target` (its own name pattern only, older
+ * than STALE_TEMP_MS; a symlink is removed itself, never followed). Best effort: returns how
+ * many went.
+ */
+export function removeStaleTemps(target: string, now = Date.now()): number {
+  const dir = dirname(target);
+  const prefix = `.${basename(target)}.`;
+  const pattern = /^[0-9a-f]{24}\.tmp$/;
+  let removed = 0;
+  let names: string[];
+  try {
+    names = readdirSync(dir);
+  } catch {
+    return 0;
+  }
+  for (const n of names) {
+    if (!n.startsWith(prefix) || !pattern.test(n.slice(prefix.length))) continue;
+    try {
+      const st = lstatSync(join(dir, n));
+      if (now - st.mtimeMs < STALE_TEMP_MS) continue;
+      unlinkSync(join(dir, n));
+      removed++;
+    } catch {
+      // gone meanwhile, or not ours to remove
+    }
+  }
+  return removed;
+}
 
 /** The temporary name for `target`: hidden, in the same folder, 96 random bits. */
 export function tempNameFor(target: string): string {
@@ -136,4 +170,5 @@ export function writeFileAtomic(path: string, content: FileContent, opts: Atomic
   } catch (e) {
     throw fileWriteError(e, path);
   }
+  removeStaleTemps(path);
 }

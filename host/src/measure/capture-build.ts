@@ -30,6 +30,7 @@ export function captureFromDevice(
       ? {
         source: calibration.source, tank_calibrated: calTank !== undefined, nominal_tank_c_f: nominal, nominal_tick_hz: raw.tick_hz, timebase_ppm: ppm,
         ...(tbU !== undefined ? { timebase_u_ppm: tbU } : {}),
+        ...(calibration.leads ? { lead_inductance_h: calibration.leads.l_h, lead_u_h: calibration.leads.u_h } : {}),
         ...(calibration.comparator_skew ? { comparator_skew_s: calibration.comparator_skew.skew_s, comparator_skew_u_s: calibration.comparator_skew.u_s } : {}),
       }
       : { source: "nominal (uncalibrated)", tank_calibrated: false, nominal_tank_c_f: nominal, nominal_tick_hz: raw.tick_hz, timebase_ppm: 0 },

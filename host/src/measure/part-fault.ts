@@ -11,6 +11,7 @@
 import type { CaptureV1 } from "../capture/capture-file.ts";
 import type { DeviceProfile } from "../device/profile.ts";
 import { formatSi } from "../format/si.ts";
+import { MEASURABLE_L_H } from "../values/range.ts";
 import { isAnalysisFailure, WarningCode, type PartFaultCode } from "../codes.ts";
 import type { Reading } from "./measure-part.ts";
 import { frequencySwing } from "./frequency-swing.ts";
@@ -61,6 +62,9 @@ export const CHATTER_PAIR_RATIO = 0.1;
 const GLITCH_INTERVAL_RATIO = 1 / 8;
 /** Below this the probe's estimate says short rather than a small part (the range starts at 1 µH). */
 export const SHORT_MAX_L_H = 0.5e-6;
+
+/** What to do about a short: check the clips and the part, or null the leads with it. */
+const SHORT_ADVICE = 'Check that the clips sit on the part\'s two leads and do not touch each other and that the part is not shorted (a solder bridge, a burnt winding); if the clips are shorted on purpose, "henrytick calibrate short" stores this as the leads\' inductance and subtracts it from later readings';
 
 /**
  * A half-cycle this much longer than the same-polarity half-cycles either side of it, while the
@@ -160,6 +164,14 @@ export function limitsOf(capture: CaptureV1): TesterLimits {
 export function judgeReading(r: Reading, profile: TesterLimits): PartFault | null {
   const a = r.analysis;
   const L = formatSi(a.inductance_h, "H", 3);
+  // A ring that fits but reads far below the range: the clips are shorted (or the part is), and
+  // what rang is the leads' own inductance. Not a reading of a part.
+  if (a.inductance_h < SHORT_MAX_L_H) {
+    return {
+      code: "PART_SHORTED",
+      message: `the part reads ${L}, below the ${formatSi(MEASURABLE_L_H.min, "H", 1)} the tester starts at: that is what shorted clips and their leads show (or a shorted part). ${SHORT_ADVICE}`,
+    };
+  }
   if (has(r, WarningCode.SUSPECTED_CLIPPING) && profile.clamp_v !== undefined && a.amplitude_v >= CLIP_CLAMP_RATIO * profile.clamp_v) {
     return {
       code: "FIRST_CYCLE_CLIPPED",
@@ -265,6 +277,6 @@ export function finishReading(r: Reading, profile: TesterLimits, opts: { keep_su
 export function shortedPart(probe_l_h: number, why: string): PartFaultError {
   return new PartFaultError(
     "PART_SHORTED",
-    `the part looks like a short: the probe rang at about ${formatSi(probe_l_h, "H", 2)} (what the clips and leads alone would show), below the 1 µH the tester starts at, and ${why}. Check that the clips sit on the part's two leads and do not touch each other, that the part is not shorted (a solder bridge, a burnt winding), and the part's marked value: below 1 µH it is outside the range`,
+    `the part looks like a short: the probe rang at about ${formatSi(probe_l_h, "H", 2)} (what the clips and leads alone would show), below the 1 µH the tester starts at, and ${why}. ${SHORT_ADVICE}. Check the part's marked value too: below 1 µH it is outside the range`,
   );
 }

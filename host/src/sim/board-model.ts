@@ -14,6 +14,11 @@ export interface BoardModel {
   tank_f: number[];
   /** Test clips and leads, in parallel with the tank, farads. */
   fixture_f: number;
+  /**
+   * Series inductance of the test leads and clips, in series with the part, henries (0: the part
+   * sits on the terminals). The part's own self-capacitance stays lumped with the tank.
+   */
+  lead_h?: number;
   /** Switch-node capacitance from the part's lower end to ground (blocking diode + switch), farads. */
   switch_node_f: number;
   /** The comparator's input divider from D to ground (its T-side twin is swamped by R), ohms. */
@@ -91,12 +96,13 @@ export function referenceBoard(): BoardModel {
 
 /** The board with a scenario's bench conditions applied. */
 export function boardWithFixture(
-  board: BoardModel, fixture: { capacitance_f?: number; tank_voltage_coefficient_per_v2?: number; chatter?: ContactChatter } | undefined,
+  board: BoardModel, fixture: { capacitance_f?: number; lead_inductance_h?: number; tank_voltage_coefficient_per_v2?: number; chatter?: ContactChatter } | undefined,
 ): BoardModel {
   if (!fixture) return board;
   return {
     ...board,
     fixture_f: fixture.capacitance_f ?? board.fixture_f,
+    ...(fixture.lead_inductance_h !== undefined ? { lead_h: fixture.lead_inductance_h } : {}),
     tank_k_per_v2: fixture.tank_voltage_coefficient_per_v2 ?? board.tank_k_per_v2,
     ...(fixture.chatter ? { contact_chatter: fixture.chatter } : {}),
   };

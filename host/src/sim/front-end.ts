@@ -28,7 +28,8 @@ export interface PulseResult {
 /** The circuit the part forms with the board's selected drive resistor and tank. */
 export function frontEndCircuit(board: BoardModel, part: PartModel, drive: number, tank: number): FrontEndCircuit {
   return {
-    l_h: part.inductance_h,
+    // The leads in series with the part; a bare short on bare terminals keeps a picohenry of loop.
+    l_h: Math.max(part.inductance_h + (board.lead_h ?? 0), 1e-12),
     rs_ohm: part.series_ohm,
     rp_ohm: part.parallel_ohm ?? Infinity,
     c_f: board.tank_f[tank] + board.fixture_f + part.self_capacitance_f,

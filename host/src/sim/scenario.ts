@@ -21,10 +21,19 @@ export interface PartModel {
   saturation_floor_ratio?: number;
 }
 
+/**
+ * The clips shorted to each other (calibrate short on the simulated tester): no part, only the
+ * leads' own inductance (FixtureModel.lead_inductance_h) and 20 mΩ of clip contact and lead copper
+ * (common bench practice, no source).
+ */
+export const SHORTED_CLIPS: PartModel = { inductance_h: 0, series_ohm: 0.02, self_capacitance_f: 0 };
+
 /** Bench conditions that differ from the reference board for this scenario. */
 export interface FixtureModel {
   /** Test-lead capacitance in parallel with the tank (replaces the board's). */
   capacitance_f?: number;
+  /** Series inductance of the test leads and clips, in series with the part (0 when left out). */
+  lead_inductance_h?: number;
   /** Tank voltage coefficient k, C(v) = C0 (1 - k v^2): a class II ceramic fitted as the tank. */
   tank_voltage_coefficient_per_v2?: number;
   /** An intermittent clip contact during the ring (sim/fixture-chatter.ts). */
@@ -71,7 +80,7 @@ export function validateScenario(raw: unknown): Scenario {
     saturation_floor_ratio: p.saturation_floor_ratio,
   };
   const f = o.fixture as FixtureModel | undefined;
-  const fixture = f ? { capacitance_f: f.capacitance_f, tank_voltage_coefficient_per_v2: f.tank_voltage_coefficient_per_v2, ...(f.chatter ? { chatter: f.chatter } : {}) } : undefined;
+  const fixture = f ? { capacitance_f: f.capacitance_f, ...(f.lead_inductance_h !== undefined ? { lead_inductance_h: f.lead_inductance_h } : {}), tank_voltage_coefficient_per_v2: f.tank_voltage_coefficient_per_v2, ...(f.chatter ? { chatter: f.chatter } : {}) } : undefined;
   return {
     format: "henrytick-scenario", version: 1, name: o.name as string, story: (o.story as string | undefined) ?? "", part,
     ...(fixture ? { fixture } : {}), seed: (o.seed as number | undefined) ?? 1,
