@@ -53,7 +53,7 @@ describe("henrytick sim-device without a pseudo-terminal", () => {
   it.each([
     [["sim-device", "drawer-choke-330u", "extra"], /unexpected argument "extra"/],
     [["sim-device", "--seed", "1.5"], /--seed must be an integer/],
-    [["sim-device", "--port", "/dev/null"], /Unknown option '--port'/],
+    [["sim-device", "--port", "/dev/null"], /unknown option --port/],
   ])("refuses %j with exit status 2", (args, message) => {
     const r = runCli(args);
     expect(r.status).toBe(2);

@@ -1,5 +1,7 @@
 // henrytick measure: one reading of the part on the clips.
 
+import { fstatSync, statSync } from "node:fs";
+import { dirname, join, resolve } from "node:path";
 import { writeCaptureFile } from "../capture/capture-file.ts";
 import { MeasureError, measurePart, PartFaultError } from "../measure/measure-part.ts";
 import { buildResult } from "../measure/result.ts";
@@ -40,6 +42,7 @@ export async function runMeasure(args: string[]): Promise<number> {
   requireWith(values, { big: "watch", count: "watch", "interval-ms": "watch", series: "watch" });
   for (const o of ["save", "self-cap", "budget"] as const) if (values[o] !== undefined && values.watch) throw new CliUsageError(`--${o} gives one reading; leave out --watch or --${o}`);
   const target = testerTarget(values, positionals);
+  if (values.save !== undefined) checkSavePath(values.save);
   const drive = intOption(values.drive, "drive", 0, 63);
   const tank = intOption(values.tank, "tank", 0, 63);
   if ((drive === undefined) !== (tank === undefined)) throw new CliUsageError("--drive and --tank go together");
@@ -80,10 +83,18 @@ export async function runMeasure(args: string[]): Promise<number> {
       progress(`the other winding saw about ${volts(otherWindingPeakV(reading.analysis.amplitude_v, other_winding_ratio))} (${other_winding_ratio}× the ${volts(reading.analysis.amplitude_v)} ring)`);
     }
     if (reading.suspect) progress(`suspect reading kept on request (${reading.suspect.code}): not a verified result`);
-    if (values.save) {
-      writeCaptureFile(values.save, reading.capture);
+    // The reading is printed first: if the capture cannot be written after all, it is not lost.
+    const save = (): number => {
+      if (!values.save) return 0;
+      try {
+        writeCaptureFile(values.save, reading.capture);
+      } catch (e) {
+        process.stderr.write("   the reading above was taken, but its capture could not be saved:\n");
+        return reportError(e);
+      }
       progress(`capture saved to ${values.save}`);
-    }
+      return 0;
+    };
     const result = buildResult(reading.analysis, reading.capture, reading.suspect);
     const profile = cal?.profile ?? null;
     let budget = singleTankBudget(reading.analysis, reading.capture.tank_c_f, timebaseKnowledge(profile, reading.settings.tank));
@@ -99,8 +110,9 @@ export async function runMeasure(args: string[]): Promise<number> {
       }
     }
     if (values.csv) {
-      process.stdout.write(csvHeader() + csvRow(result));
-      return 0;
+      // Appending to a log (>> log.csv): the header only when the file is new or empty; a time column first.
+      process.stdout.write((stdoutHasContent() ? "" : csvHeader(["time"])) + csvRow(result, [new Date().toISOString()]));
+      return save();
     }
     if (values.json) {
       // Extra keys only on request: a plain --json result stays what "analyze" prints for the capture
@@ -111,14 +123,14 @@ export async function runMeasure(args: string[]): Promise<number> {
         ...(selfCapProblem ? { self_capacitance_error: selfCapProblem } : {}),
       };
       process.stdout.write(JSON.stringify({ ...result, ...extra }, null, 2) + "\n");
-      return 0;
+      return save();
     }
     const blocks = [renderReading(result, label ?? "part on the clips")];
     if (selfCap) blocks.push(renderSelfCapacitance(selfCap));
     if (selfCapProblem) blocks.push(`   ! ${selfCapProblem.code}: ${selfCapProblem.message}`);
     if (values.budget) blocks.push(renderBudget(budget));
     process.stdout.write(blocks.join("\n") + "\n");
-    return 0;
+    return save();
   } finally {
     await tester.close();
   }
@@ -141,9 +153,40 @@ function selfCapJson(sc: NonNullable<Awaited<ReturnType<typeof measureSelfCapaci
   return {
     inductance_h: r.inductance_h, inductance_u_h: 2 * r.u.inductance_h,
     self_capacitance_f: r.self_capacitance_f, self_capacitance_u_f: 2 * r.u.self_capacitance_f,
+    // false when the two tanks give no value above zero ("not determined" in the human output)
+    self_capacitance_determined: r.self_capacitance_f > 0,
     srf_hz: r.srf_hz, srf_u_hz: r.u.srf_hz === null ? null : 2 * r.u.srf_hz,
     coverage_factor: 2,
     cs_per_percent_f: r.cs_per_percent,
     tanks: [sc.first.settings.tank, sc.second.settings.tank],
   };
+}
+
+/** --save PATH is checked before any pulse: not a folder, and its folder exists. */
+function checkSavePath(path: string): void {
+  let st;
+  try {
+    st = statSync(path);
+  } catch {
+    st = undefined;
+  }
+  if (st?.isDirectory()) throw new CliUsageError(`--save ${path} is a folder; give a file name in it, e.g. --save ${join(path, "capture.json")}`);
+  const dir = dirname(resolve(path));
+  let d;
+  try {
+    d = statSync(dir);
+  } catch {
+    d = undefined;
+  }
+  if (!d?.isDirectory()) throw new CliUsageError(`--save ${path}: the folder ${dir} does not exist; create it first (mkdir -p ${dir}) or choose another place`);
+}
+
+/** True when stdout is a regular file that already holds something (`>> log.csv` on an existing log). */
+function stdoutHasContent(): boolean {
+  try {
+    const st = fstatSync(1);
+    return st.isFile() && st.size > 0;
+  } catch {
+    return false;
+  }
 }

@@ -42,9 +42,13 @@ export function renderSelfCapacitance(sc: SelfCapacitanceReading): string {
   const r = sc.result;
   const L = formatWithUncertainty(r.inductance_h, 2 * r.u.inductance_h, "H");
   const C = formatWithUncertainty(r.self_capacitance_f, 2 * r.u.self_capacitance_f, "F");
+  // A self-capacitance below zero is no physical value: the tanks' own error outweighs it.
+  const cs = r.self_capacitance_f > 0
+    ? `${C.value} ${C.unit}  ± ${C.u} ${C.unit}${2 * r.u.self_capacitance_f >= r.self_capacitance_f ? "   (consistent with zero)" : ""}`
+    : `not determined (the two tanks give ${C.value} ${C.unit} ± ${C.u} ${C.unit}, not above zero: calibrate the tanks, henrytick calibrate reference, then measure again)`;
   const lines = [
     `   L corrected  ${L.value} ${L.unit}  ± ${L.u} ${L.unit}   (k = 2; tanks ${sc.first.settings.tank} and ${sc.second.settings.tank})`,
-    `   self-cap.    ${C.value} ${C.unit}  ± ${C.u} ${C.unit}`,
+    `   self-cap.    ${cs}`,
   ];
   if (r.srf_hz !== null && r.u.srf_hz !== null) {
     const s = formatWithUncertainty(r.srf_hz, 2 * r.u.srf_hz, "Hz");

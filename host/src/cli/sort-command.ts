@@ -1,6 +1,8 @@
 // henrytick sort: classify a batch of parts against a tolerance, one part at a time, with a
 // running tally, statistics at the end and an append-only log.
 
+import { mkdirSync } from "node:fs";
+import { dirname, resolve } from "node:path";
 import { deviceCalibration, storeFor } from "../calibration/index.ts";
 import { openTester } from "../open-tester.ts";
 import { formatSi } from "../format/si.ts";
@@ -88,6 +90,8 @@ export async function runSortCommand(args: string[]): Promise<number> {
   const quiet = values.json || values.csv;
   const note = (m: string) => process.stderr.write(`   ${m}\n`);
   const base = values.log ?? "henrytick-sort";
+  // --log bench/lot7 in a fresh folder: the folders are made.
+  mkdirSync(dirname(resolve(base)), { recursive: true });
   const log = SortLog.open({ csv: `${base}.csv`, jsonl: `${base}.jsonl` });
   const tester = await openTester(target);
   const stop = new AbortController();
@@ -133,7 +137,7 @@ export async function runSortCommand(args: string[]): Promise<number> {
     await tester.close();
   }
   const summary = session.summary();
-  if (values.json) process.stdout.write(JSON.stringify({ parts: session.parts, summary, log: { csv: `${base}.csv`, jsonl: `${base}.jsonl` } }, null, 2) + "\n");
+  if (values.json) process.stdout.write(JSON.stringify({ parts: session.parts.map(jsonPart), summary, log: { csv: `${base}.csv`, jsonl: `${base}.jsonl` } }, null, 2) + "\n");
   else if (!values.csv) process.stdout.write(summaryText(session, style) + `\n   log appended to ${base}.csv and ${base}.jsonl\n`);
   return 0;
 }
@@ -182,4 +186,9 @@ export function summaryText(session: SortSession, style: Style): string {
   const bins = Object.entries(tally.bins);
   if (bins.length > 0) lines.push(`   bins         ${bins.map(([k, v]) => `${k}: ${v}`).join(", ")}`);
   return lines.join("\n");
+}
+
+/** A record as JSON: `warnings` is an array of codes, as in measure --json (the log keeps its CSV cell). */
+function jsonPart(r: PartRecord) {
+  return { ...r, warnings: r.warnings ? r.warnings.split(" ").filter((w) => w !== "") : [] };
 }

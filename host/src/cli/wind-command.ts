@@ -90,7 +90,14 @@ export async function runWindCommand(args: string[]): Promise<number> {
     for await (const line of counts) {
       const t = line.trim();
       if (t.toLowerCase() === "q") break;
-      if (t !== "") turns = /^[+-]/.test(t) ? turns + turnCount(t.slice(1)) * (t[0] === "-" ? -1 : 1) : turnCount(t);
+      try {
+        if (t !== "") turns = /^[+-]/.test(t) ? turns + turnCount(t.slice(1)) * (t[0] === "-" ? -1 : 1) : turnCount(t);
+      } catch (e) {
+        // At the keyboard a typo (3O for 30) asks again; the readings and the fitted model stay.
+        if (listed || !(e instanceof CliUsageError)) throw e;
+        note(`${e.message}: type the turns now on the coil (36), +3 / -2, Enter to measure again or q to finish`);
+        continue;
+      }
       if (turns < 1) {
         note(turns === 0 ? "say how many turns are on the coil first, e.g. 30" : "that leaves fewer than one turn; give the count again");
         turns = Math.max(0, turns);

@@ -75,6 +75,8 @@ export interface Reading {
 
 
 const FIXED_QUIET_US = 20000;
+/** Inductor current at which a failed fixed setting is blamed on saturation first (an iron-powder core of a few tens of µH saturates from a few hundred mA). */
+const STRONG_DRIVE_A = 0.1;
 const FIXED_TIMEOUT_MS = 1000;
 
 /**
@@ -134,6 +136,11 @@ async function settle(client: DeviceClient, opts: MeasureOptions, progress: Read
     const why = explainFailure(e);
     if (why !== e) throw why;
     if (!est.fitted && est.l_h < SHORT_MAX_L_H && NO_USABLE_RING.includes(e.code)) throw shortedPart(est.l_h, `the capture on this setting gave no usable ring (${e.code})`);
+    // A strong fixed drive that gives no ring on a part that rang in the probe: the likely cause is
+    // a core driven into saturation, so the next step is less current, not more.
+    if (NO_USABLE_RING.includes(e.code) && p.i0_a >= STRONG_DRIVE_A) {
+      throw new MeasureError(e.code, `no usable ring on ${describeSetting(client, settings)}, though the part rang in the gentle probe: at about ${p.i0_a.toPrecision(2)} A a core can saturate, which stops the ring; use a larger drive resistor (less current) or leave the setting to automatic ranging (no --drive / --tank)`);
+    }
     throw e;
   }
 }
