@@ -363,7 +363,8 @@ function delaysAt(p: ArrayLike<number>, s: FitState, c: CheckedInput, timing: Co
     slope[k] = ringSlopeAt(p, t[k], level, rise);
     reach[k] = rampReach(p[P_WD], reachRad);
   }
-  return edgeDelays(slope, clean, Math.sqrt(s.noise.sigma_v2), timing, reach);
+  const other = (s.checked.tick_s * s.checked.tick_s) / 12 + s.noise.sigma_t2;
+  return edgeDelays(slope, clean, Math.sqrt(s.noise.sigma_v2), timing, reach, other);
 }
 
 /**

@@ -119,12 +119,16 @@ export interface TimingDelays {
  */
 export function edgeDelays(
   slope: ArrayLike<number>, clean: ArrayLike<number>, sigma_v: number, timing: ComparatorTiming, max_s: ArrayLike<number>,
+  /** The timing variance besides the voltage noise's (tick^2/12 + jitter^2), s^2: with it the
+   *  fit's sigma_v is read as first-passage scatter (firstPassageSigma). */
+  other_var_s2?: number,
 ): TimingDelays {
   const n = slope.length;
+  const tau = timing.noise_bw_hz && timing.noise_bw_hz > 0 ? 1 / (2 * Math.PI * timing.noise_bw_hz) : 0;
+  if (tau > 0 && other_var_s2 !== undefined) sigma_v = firstPassageSigma(slope, clean, sigma_v, tau, other_var_s2);
   if (timing.noise_v !== undefined && timing.noise_v >= 0) sigma_v = Math.max(sigma_v, timing.noise_v);
   const fp = new Float64Array(n);
   const od = new Float64Array(n);
-  const tau = timing.noise_bw_hz && timing.noise_bw_hz > 0 ? 1 / (2 * Math.PI * timing.noise_bw_hz) : 0;
   const q = timing.overdrive_v_s ?? 0;
   const floor = tau > 0 && sigma_v > 0 ? sigma_v / tau : 0;
   for (let k = 0; k < n; k++) {
@@ -135,6 +139,35 @@ export function edgeDelays(
     if (q > 0) od[k] = Math.min(max_s[k], Math.sqrt((2 * q) / Math.max(s, floor)));
   }
   return { fp_s: fp, od_s: od };
+}
+
+/**
+ * The noise rms behind a fit's voltage-noise estimate when edges decide by first passage: the
+ * fit reads sigma_fit^2 as a weighted mean of (rho_k sigma)^2, rho_k the first-passage spread
+ * ratio at edge k (firstPassageSpreadRatio), weighted like the fit's regression where the voltage
+ * term dominates (by the square of its share of the edge's timing variance); a few fixed-point
+ * steps of sigma = sigma_fit / rho_mean(sigma).
+ */
+export function firstPassageSigma(slope: ArrayLike<number>, clean: ArrayLike<number>, sigma_fit: number, tau: number, other_var_s2: number): number {
+  if (!(sigma_fit > 0)) return sigma_fit;
+  let sigma = sigma_fit;
+  for (let it = 0; it < 4; it++) {
+    let sw = 0, swr = 0;
+    for (let k = 0; k < slope.length; k++) {
+      if (!(clean[k] > 0)) continue;
+      const s = Math.abs(slope[k]);
+      if (!(s > 0)) continue;
+      const vv = (sigma / s) ** 2;
+      const share = vv / (vv + other_var_s2);
+      const w = share * share;
+      const rho = firstPassageSpreadRatio((s * tau) / sigma);
+      sw += w;
+      swr += w * rho * rho;
+    }
+    if (!(sw > 0)) return sigma_fit;
+    sigma = sigma_fit / Math.sqrt(swr / sw);
+  }
+  return sigma;
 }
 
 /**
