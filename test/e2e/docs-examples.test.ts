@@ -22,8 +22,9 @@ function fromMarkdown(file: string): string[] {
       continue;
     }
     if (inCode) {
-      const m = /^\s*(?:\$ )?((?:npx )?henrytick\s.*?)(?:\s+#.*)?$/.exec(line);
-      if (m) out.push(m[1]);
+      // A trailing "# refused: CODE" says the example shows a refusal: it must exit 1 with that code.
+      const m = /^\s*(?:\$ )?((?:npx )?henrytick\s.*?)(\s+#.*)?$/.exec(line);
+      if (m) out.push(m[1] + (/# refused: [A-Z_]+/.exec(m[2] ?? "")?.[0].replace("# ", " #") ?? ""));
     } else for (const m of line.matchAll(/`((?:npx )?henrytick [^`]*)`/g)) out.push(m[1]);
   }
   return out;
@@ -72,15 +73,19 @@ function why(cmd: string): string | null {
 }
 
 const seen = new Set<string>();
-const cases: { where: string; cmd: string }[] = [];
+const cases: { where: string; cmd: string; refused?: string }[] = [];
 for (const [where, list] of sources) {
   for (const raw of list) {
-    const cmd = raw.replace(/^npx /, "").replace(/\bhenrytick\b/g, "henrytick").trim();
-    if (PLACEHOLDER.test(cmd) || fragment(cmd) || seen.has(cmd)) continue;
-    seen.add(cmd);
-    cases.push({ where, cmd });
+    const [text, note] = raw.split(" #refused: ");
+    const cmd = text.replace(/^npx /, "").trim();
+    if (PLACEHOLDER.test(cmd) || fragment(cmd) || seen.has(raw)) continue;
+    seen.add(raw);
+    cases.push({ where, cmd, refused: note });
   }
 }
+
+/** Each document (and the calibrate help pages together) keeps its own calibration profile, as one reader's session. */
+const configFor = (where: string) => join(cwd, "config", where.startsWith("henrytick calibrate") ? "calibrate-help" : where.replace(/[^\w]+/g, "-"));
 
 // One folder and one configuration for the whole run, in document order, as a reader would go:
 // the captures the examples name are made first, and calibrate restore finds a previous profile.
@@ -99,21 +104,25 @@ describe("every example in the docs and the help runs as shown (simulated tester
     expect(cases.length).toBeGreaterThan(30);
   });
 
-  for (const { where, cmd } of cases) {
+  for (const { where, cmd, refused } of cases) {
     const reason = why(cmd);
     if (reason) {
       it.skip(`${cmd}  (${where}) — skipped: ${reason}`, () => {});
       continue;
     }
-    it(`${cmd}  (${where})`, () => {
+    it(`${cmd}  (${where})${refused ? ` — refused with ${refused}, as the document says` : ""}`, () => {
       // A session that runs until stopped (--watch without --count) gets Ctrl-C after a while, and
       // one that reads the keyboard an empty input, as a person would give them.
+      const env = { ...process.env, HENRYTICK_CONFIG_DIR: configFor(where), NO_COLOR: "1" };
       const shell = /&&|\||>|\*/.test(cmd);
       const r = shell
         ? spawnSync("sh", ["-c", cmd.replace(/\bhenrytick\b/g, `"${process.execPath}" "${CLI}"`)], { cwd, env, encoding: "utf8", input: "", timeout: 20_000 })
         : spawnSync(process.execPath, [CLI, ...cmd.split(/\s+/).slice(1)], { cwd, env, encoding: "utf8", input: "", timeout: /--watch/.test(cmd) && !/--count/.test(cmd) ? 4_000 : 20_000, killSignal: "SIGINT" });
       expect(r.error && (r.error as NodeJS.ErrnoException).code !== "ETIMEDOUT" ? r.error : undefined).toBeUndefined();
-      expect(r.status, `${cmd}\n${r.stderr}`).toBe(0);
+      if (refused) {
+        expect(r.status, `${cmd}\n${r.stderr}`).toBe(1);
+        expect(r.stderr).toContain(`[${refused}]`);
+      } else expect(r.status, `${cmd}\n${r.stderr}`).toBe(0);
     }, 30_000);
   }
 });
