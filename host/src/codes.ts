@@ -102,6 +102,7 @@ export const CALIBRATION_ERROR_MEANINGS = {
   NONSENSE_RESULT: "a procedure produced a negative or implausible value",
   TIMEBASE_UNSUPPORTED: "the tester cannot report its tick counter",
   TWO_TANKS_UNAVAILABLE: "no second tank suits the part for the self-capacitance method",
+  CALIBRATION_SHIFT: "a new calibration moves a tank more than chance and tolerance explain, and was not confirmed",
 } as const;
 
 export type CalibrationErrorCode = keyof typeof CALIBRATION_ERROR_MEANINGS;

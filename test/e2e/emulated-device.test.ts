@@ -123,7 +123,7 @@ describe.skipIf(!canEmulate).each(CORES)(`the emulated STM32F405, Cortex-%s${SKI
   it("calibrate timebase against the host clock finds the board's crystal error (+11.5 ppm) within its uncertainty (k = 3)", async () => {
     // The host clock is real time on both sides, so this is the one reading that cannot match
     // --sim bit for bit: the check is the one calibration.test.ts makes of --sim. 8 s rather than
-    // 4: a TK read through the emulator takes some 10 ms (QEMU hands the line over byte by byte),
+    // 4: a TK read through the emulator takes several ms (QEMU hands the line over byte by byte),
     // so each read's timing is that much less certain.
     const r = await cli(["calibrate", "timebase", "--port", device.path, "--seconds", "8"], { configDir: mkdtempSync(join(tmpdir(), "henrytick-emu-")) });
     expect(r.status, r.stderr).toBe(0);

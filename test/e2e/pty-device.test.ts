@@ -88,6 +88,17 @@ describe.skipIf(!hasSocat)(`henrytick sim-device over a pseudo-terminal${hasSoca
     expectGoodReading(s, r.stdout);
   });
 
+  // A scenario's bench conditions belong to the simulated tester it describes: the leads' 30 nH
+  // move this part's reading by about 2.5 %, on the pseudo-terminal exactly as in process.
+  it("serves a scenario's fixture as measure --sim does (loop-antenna-on-leads: 30 nH of leads)", async () => {
+    const d = await simDevices.start(["loop-antenna-on-leads"]);
+    const r = runCli(["measure", "--port", d.path, "--json"]);
+    expect(r.status).toBe(0);
+    const inProcess = runCli(["measure", "--sim", "loop-antenna-on-leads", "--json"]);
+    expect(inProcess.status).toBe(0);
+    expect(withoutLink(JSON.parse(r.stdout))).toEqual(withoutLink(JSON.parse(inProcess.stdout)));
+  });
+
   it("serves one host after another on the same pseudo-terminal", () => {
     const path = devices.get("drawer-choke-330u")!.path;
     for (let i = 0; i < 2; i++) {

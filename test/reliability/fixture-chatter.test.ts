@@ -9,6 +9,7 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { measurePart } from "../../host/src/measure/measure-part.ts";
+import { chatterOf } from "../../host/src/measure/part-fault.ts";
 import { openTester } from "../../host/src/open-tester.ts";
 import { nominalBoard, referenceBoard } from "../../host/src/sim/board-model.ts";
 import type { ContactChatter } from "../../host/src/sim/fixture-chatter.ts";
@@ -48,6 +49,30 @@ function truth(o: { drive: number; tank: number }): number {
 }
 
 describe("FIXTURE_CHATTER", () => {
+  // Offset thresholds make the half-cycles above and below the ring's centre unequal, and more so
+  // as it decays: on a short, strongly damped ring (a few µH on the 1 µF tank behind 100 ohm) the
+  // long ones stand well over the median of all half-cycles. That is no break: a break is a
+  // half-cycle long against those of its own polarity.
+  // At the other end, a ring of a few ticks per half-cycle: the timer floors each edge to a tick,
+  // so half-cycles of 6 and 7 ticks alternate with an 8 now and then, well over 1.2x a neighbour.
+  it("never calls the unequal half-cycles of a short, strongly damped ring, or a tick's flooring on a fast one, a break", async () => {
+    const found: string[] = [];
+    const settings = [{ drive: 1, tank: 3, charge_us: 339 }, { drive: 1, tank: 0, charge_us: 2 }];
+    for (const l of [1e-6, 1.5e-6, 2.2e-6, 3.3e-6, 4.7e-6]) {
+      for (const [seed, s] of [1, 2, 3, 4, 5, 6].flatMap((seed) => settings.map((s) => [seed, s] as const))) {
+        const t = await openTester({ part: { inductance_h: l, series_ohm: 0.02, self_capacitance_f: 1e-12 }, seed });
+        try {
+          const r = await measurePart(t.client, { ...s, keep_suspect: true });
+          const ch = chatterOf(r.capture);
+          if (ch.breaks > 0 || r.suspect?.code === "FIXTURE_CHATTER") found.push(`${l * 1e6} µH on tank ${s.tank}, seed ${seed}: ${ch.breaks} breaks, ${r.capture.edges.length} edges`);
+        } finally {
+          await t.close();
+        }
+      }
+    }
+    expect(found).toEqual([]);
+  }, 120_000);
+
   it("never fires on clean rings of a Q≈9, 150 mH part (10 seeds)", async () => {
     for (const seed of SEEDS) {
       const o = await readOnce(scenario(seed));

@@ -253,7 +253,8 @@ void USART2_IRQHandler(void) {
  * between bytes: a busy core would compete with QEMU's I/O thread, which delivers them one at a
  * time. Under `-icount sleep=off` each sleep ends at once at the next timer deadline (SysTick,
  * 0.1 s of emulated time, all of it hidden from the firmware), so the timeout is a count of QEMU
- * main-loop passes: some 0.5 s of host time or more, far beyond the edge server's few ms per reply.
+ * main-loop passes: a fraction of a second of host time, more on a loaded machine, far beyond
+ * the few milliseconds the edge server takes to start a reply.
  */
 static uint32_t fe_budget = LINK_TIMEOUT_WAKES;
 static int fe_getc(void) {

@@ -17,6 +17,8 @@ import { CliUsageError } from "./errors.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
 import { PulseCaution } from "./caution.ts";
 import { measureLeadInductance } from "../calibration/nulling.ts";
+import { calibrationChanges, describeChanges } from "../calibration/calibration-change.ts";
+import type { TankEntry } from "../calibration/profile-schema.ts";
 import { SHORTED_CLIPS } from "../sim/scenario.ts";
 
 /**
@@ -41,10 +43,10 @@ export async function runCalibrate(args: string[]): Promise<number> {
     case "restore": return withTester(rest, {}, async (t, store) => restore(t, store));
     case "reference": return withTester(rest, {
       "ref-h": { type: "string" }, "ref-u-h": { type: "string" }, "ref-cs-f": { type: "string" }, "ref-u-cs-f": { type: "string" },
-      tanks: { type: "string" }, repeats: { type: "string" }, "ref-label": { type: "string" },
+      tanks: { type: "string" }, repeats: { type: "string" }, "ref-label": { type: "string" }, "accept-shift": { type: "boolean" },
     }, reference, true);
     case "parallel": return withTester(rest, {
-      tank: { type: "string" }, "cap-f": { type: "string" }, "cap-u-f": { type: "string" }, "part-cs-f": { type: "string" }, "part-u-cs-f": { type: "string" }, repeats: { type: "string" },
+      tank: { type: "string" }, "cap-f": { type: "string" }, "cap-u-f": { type: "string" }, "part-cs-f": { type: "string" }, "part-u-cs-f": { type: "string" }, repeats: { type: "string" }, "accept-shift": { type: "boolean" },
     }, parallel, true);
     case "thresholds": return withTester(rest, { captures: { type: "string" } }, thresholds, true);
     case "skew": return withTester(rest, { captures: { type: "string" }, tanks: { type: "string" } }, skew, true);
@@ -161,6 +163,7 @@ async function reference(t: OpenedTester, store: StoreOptions, v: Values, cautio
     say(`   tank ${r.tank}: ${formatSi(r.c_f, "F", 5)} ± ${formatSi(2 * r.u_f, "F", 2)} (k = 2), ${((r.c_f / r.nominal_f - 1) * 100).toFixed(2)} % from nominal; ${r.readings} rings at ${formatSi(r.f0_hz, "Hz", 6)}\n`);
   }
   for (const s of out.skipped) say(`   tank ${s.tank}: not calibrated, ${s.reason}\n`);
+  await confirmChange(out.entries, profile, v["accept-shift"] === true, "check the reference's value and unit (--ref-h) and that the reference, not another part, is on the clips");
   for (const e of out.entries) profile.tanks = [...profile.tanks.filter((x) => x.index !== e.index), e].sort((a, b) => a.index - b.index);
   commit(profile, store, { tanks: out.results, skipped: out.skipped });
   return 0;
@@ -192,6 +195,7 @@ async function parallel(t: OpenedTester, store: StoreOptions, v: Values, caution
   });
   say(`   tank ${tank}: ${formatSi(result.c_f, "F", 5)} ± ${formatSi(2 * result.u_f, "F", 2)} (k = 2); ` +
     `${formatSi(result.fa_hz, "Hz", 6)} → ${formatSi(result.fb_hz, "Hz", 6)}; the part reads ${formatSi(result.part_inductance_h, "H", 5)}\n`);
+  await confirmChange([entry], profile, v["accept-shift"] === true, "check the capacitor's value and unit (--cap-f) and that it was clipped across the part");
   profile.tanks = [...profile.tanks.filter((x) => x.index !== tank), entry].sort((a, b) => a.index - b.index);
   commit(profile, store, result);
   return 0;
@@ -281,6 +285,41 @@ async function short(t: OpenedTester, store: StoreOptions, v: Values, caution: (
   profile.leads = out.entry;
   commit(profile, store, { leads: out.entry, drive: out.drive, tank: out.tank, readings_h: out.readings_h });
   return 0;
+}
+
+/**
+ * The change check (calibration-change.ts): a tank calibration that moves its tank by more than
+ * chance and tolerance explain is accepted only when confirmed (asked on a terminal; elsewhere
+ * refused unless --accept-shift is given), so a mistyped reference cannot shift every reading.
+ */
+async function confirmChange(entries: TankEntry[], profile: CalibrationProfile, accepted: boolean, check: string): Promise<void> {
+  const changes = calibrationChanges(entries, profile.tanks, profile.timebase?.ppm ?? 0);
+  if (!changes.some((c) => c.large)) return;
+  const what = describeChanges(changes);
+  if (accepted) {
+    progress(`accepted a large change (--accept-shift): ${what}`);
+    return;
+  }
+  if (process.stdin.isTTY && process.stderr.isTTY) {
+    const answer = await ask(`   this calibration moves ${what}. Store it? [y/N] `);
+    if (/^y(es)?$/i.test(answer.trim())) return;
+  }
+  throw new CalibrationError(
+    "CALIBRATION_SHIFT",
+    `not stored: this calibration moves ${what}, more than chance and the tanks' tolerance explain. The profile is unchanged; ${check}, then calibrate again. If the change is real (a tank or the fixture was changed), run the same command with --accept-shift`,
+  );
+}
+
+function ask(prompt: string): Promise<string> {
+  process.stderr.write(prompt);
+  return new Promise((resolve) => {
+    const rl = createInterface({ input: process.stdin });
+    rl.once("line", (line) => {
+      rl.close();
+      resolve(line);
+    });
+    rl.once("close", () => resolve(""));
+  });
 }
 
 function waitForEnter(prompt: string): Promise<void> {

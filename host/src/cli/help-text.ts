@@ -6,6 +6,7 @@ import { WINDING_RATIO_HELP } from "./safety.ts";
 export const CALIBRATE_USAGE = `  henrytick calibrate show (--sim | --port PATH)      the tester's calibration profile
   henrytick calibrate reference … --ref-h L --ref-u-h U [--ref-cs-f C --ref-u-cs-f U] [--tanks 0,1,…]
                                        reference inductor on the clips → each tank's capacitance
+                                       (a tank moved beyond chance and tolerance is refused unless --accept-shift)
   henrytick calibrate parallel … --tank N --cap-f C --cap-u-f U [--part-cs-f C]
                                        any coil on the clips, rung without and with a known capacitor
   henrytick calibrate thresholds …     high-Q coil on the clips → comparator threshold ratio

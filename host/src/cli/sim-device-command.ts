@@ -22,9 +22,11 @@ export async function runSimDevice(args: string[]): Promise<number> {
   const scenario = loadScenario(positionals[0] ?? DEFAULT_SCENARIO);
   const seed = intOption(values.seed, "seed", 0, 2 ** 32 - 1) ?? scenario.seed;
 
+  // The scenario's bench conditions (fixture capacitance, leads, chatter) as measure --sim has them.
+  const board = boardWithFixture(referenceBoard(), scenario.fixture);
   const device = core
-    ? await QemuDevice.start({ core: core as EmulatedCore, board: boardWithFixture(referenceBoard(), scenario.fixture), part: scenario.part, seed })
-    : await PtyDevice.start({ part: scenario.part, seed });
+    ? await QemuDevice.start({ core: core as EmulatedCore, board, part: scenario.part, seed })
+    : await PtyDevice.start({ part: scenario.part, seed, board });
   // Handlers go in before the path is printed: a script may signal us as soon as it reads it.
   let stopSignal: NodeJS.Signals | null = null;
   let wake: () => void = () => {};

@@ -74,7 +74,12 @@ const SHORT_ADVICE = 'Check that the clips sit on the part\'s two leads and do n
  * half-cycle makes 1.3 or more.
  */
 const BREAK_NEIGHBOUR_RATIO = 1.2;
-/** The same against the median half-cycle, for breaks next to each other. */
+/**
+ * The same against the median half-cycle of the same polarity, for breaks next to each other.
+ * Same polarity because the comparator's thresholds sit off the ring's centre line: the
+ * half-cycles above and below differ (by 2 asin(V_th / A) / omega each), more and more as the
+ * ring decays, so a median over both takes the short ones on a short, strongly damped ring.
+ */
 const BREAK_MEDIAN_RATIO = 1.75;
 
 /**
@@ -91,8 +96,9 @@ export function chatterOf(c: CaptureV1): { glitch_pairs: number; breaks: number;
   const iv: number[] = [];
   for (let i = 1; i < c.edges.length; i++) iv.push(c.edges[i][0] - c.edges[i - 1][0]);
   if (iv.length < 4) return { glitch_pairs: 0, breaks: 0, half_cycles: iv.length };
-  const sorted = [...iv].sort((a, b) => a - b);
-  const median = sorted[sorted.length >> 1];
+  const medianOf = (xs: number[]) => [...xs].sort((a, b) => a - b)[xs.length >> 1];
+  const median = medianOf(iv);
+  const medianByParity = [medianOf(iv.filter((_, i) => i % 2 === 0)), medianOf(iv.filter((_, i) => i % 2 === 1))];
   const isShort = iv.map((d) => d < GLITCH_INTERVAL_RATIO * median);
   const short = isShort.filter(Boolean).length;
   let breaks = 0;
@@ -100,7 +106,10 @@ export function chatterOf(c: CaptureV1): { glitch_pairs: number; breaks: number;
   // From the fourth interval: the first ones carry the switch's transient.
   for (let i = 3; i < strongEnd && i + 2 < iv.length; i++) {
     if (isShort.slice(Math.max(0, i - 3), i + 4).some(Boolean)) continue; // a glitch splits its half-cycle: its pieces are no neighbours
-    if (iv[i] > BREAK_NEIGHBOUR_RATIO * 0.5 * (iv[i - 2] + iv[i + 2]) || iv[i] > BREAK_MEDIAN_RATIO * median) breaks++;
+    // Over the ratio even after the timer's flooring: each edge is floored to a tick, so every
+    // interval (and so every mean or median of them) reads within a tick of the truth either way.
+    const over = (ref: number, ratio: number) => iv[i] - 1 > ratio * (ref + 1);
+    if (over(0.5 * (iv[i - 2] + iv[i + 2]), BREAK_NEIGHBOUR_RATIO) || over(medianByParity[i % 2], BREAK_MEDIAN_RATIO)) breaks++;
   }
   // Each glitch pair adds one short interval and splits one half-cycle in three.
   return { glitch_pairs: short, breaks, half_cycles: iv.length - 2 * short };

@@ -14,6 +14,7 @@ import { spawn } from "node:child_process";
 import type { ChildProcessByStdio } from "node:child_process";
 import type { Readable, Writable } from "node:stream";
 import type { PartModel } from "./scenario.ts";
+import type { BoardModel } from "./board-model.ts";
 import { SimTester } from "./sim-tester.ts";
 import { CodedError } from "../coded-error.ts";
 
@@ -27,6 +28,8 @@ export interface PtyDeviceOptions {
   part: PartModel | null;
   /** Noise seed of the simulated comparator and timer. */
   seed: number;
+  /** The simulated board with the bench conditions of its scenario (fixture). Default: the reference board. */
+  board?: BoardModel;
   /** socat executable. Default "socat", looked up on PATH. */
   socat?: string;
   /** Longest wait for socat to report its pseudo-terminal, ms. Default 5000. */
@@ -72,7 +75,7 @@ export class PtyDevice {
   static async start(opts: PtyDeviceOptions): Promise<PtyDevice> {
     if (!Number.isInteger(opts.seed)) throw new TypeError('"seed" must be an integer');
     // Build the tester first: a firmware that fails to load should not leave a socat behind.
-    const tester = new SimTester({ part: opts.part, seed: opts.seed });
+    const tester = new SimTester({ part: opts.part, seed: opts.seed, ...(opts.board ? { board: opts.board } : {}) });
     const exe = opts.socat ?? "socat";
     // detached: its own process group, so a Ctrl-C in the terminal reaches only us and we stop
     // socat in order. raw,echo=0: no line discipline on the device side of the terminal.
