@@ -2,7 +2,7 @@
 // log, sort logs in fresh folders, one JSON type for warnings, next steps that fit the cause, a
 // winding session that survives a typo, a self-capacitance that is not determined.
 
-import { spawnSync } from "node:child_process";
+import { spawn, spawnSync } from "node:child_process";
 import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
@@ -90,5 +90,22 @@ describe("wind at the keyboard", () => {
     const j = JSON.parse(r.stdout);
     expect(j.readings.map((x: { turns: number }) => x.turns)).toEqual([30, 38]);
     expect(j.advice.model.readings).toBe(2);
+  });
+});
+
+describe("Ctrl-C is a normal finish", () => {
+  it("wind --json interrupted prints its readings so far and exits 0", async () => {
+    const c = spawn(process.execPath, [CLI, "wind", "--sim", "--target", "22u", "--json"], { env: { ...process.env, HENRYTICK_CONFIG_DIR: TEST_CONFIG_DIR } });
+    let out = "";
+    c.stdout.on("data", (d) => (out += d));
+    c.stdin.write("30\n");
+    // Ctrl-C once the first reading is in: --json prints nothing before the end, so wait for the
+    // reading's own progress to pass (the simulated reading takes well under a second).
+    await new Promise((resolve) => setTimeout(resolve, 2500));
+    c.kill("SIGINT");
+    const code = await new Promise<number | null>((resolve) => c.on("exit", (k) => resolve(k)));
+    expect(code).toBe(0);
+    const j = JSON.parse(out);
+    expect(j.readings.map((r: { turns: number }) => r.turns)).toEqual([30]);
   });
 });

@@ -77,6 +77,17 @@ export async function runWindCommand(args: string[]): Promise<number> {
   const cal = values.uncalibrated ? null : deviceCalibration(tester.client, storeFor({ configDir: values["config-dir"], simulated: tester.sim !== undefined }));
   const readings: WindingReading[] = [];
   let advice: WindingAdvice | null = null;
+  const finish = () => {
+    if (values.json) process.stdout.write(JSON.stringify({ target_h: target.value, limits: limits ?? null, readings, advice }, null, 2) + "\n");
+    if (!advice) note("no reading was taken");
+  };
+  // Ctrl-C is a normal finish, as in sort: the readings so far are printed (with --json too).
+  const onSigint = () => {
+    process.off("SIGINT", onSigint);
+    finish();
+    void tester.close().finally(() => process.exit(0));
+  };
+  process.on("SIGINT", onSigint);
   try {
     note(`winding to ${formatValue(target.value, "H", 4)}${limits ? `, done within ${formatValue(limits.lower, "H", 4)} … ${formatValue(limits.upper, "H", 4)}` : ""}`);
     if (cal?.applied) note(`calibration ${cal.path}`);
@@ -117,10 +128,10 @@ export async function runWindCommand(args: string[]): Promise<number> {
       if (advice.last.decision === "conforming") note("on target: the reading conforms to the tolerance");
     }
   } finally {
+    process.off("SIGINT", onSigint);
     await tester.close();
   }
-  if (values.json) process.stdout.write(JSON.stringify({ target_h: target.value, limits: limits ?? null, readings, advice }, null, 2) + "\n");
-  if (!advice) note("no reading was taken");
+  finish();
   return 0;
 }
 
