@@ -3,7 +3,7 @@
 
 export { CalibrationError, CALIBRATION_CODES } from "./errors.ts";
 export { PROFILE_FORMAT, PROFILE_VERSION, CALIBRATION_METHODS, emptyProfile, validateProfile } from "./profile-schema.ts";
-export type { CalibrationProfile, CalibrationMethod, TankEntry, ThresholdEntry, TimebaseEntry, Provenance } from "./profile-schema.ts";
+export type { CalibrationProfile, CalibrationMethod, TankEntry, ThresholdEntry, TimebaseEntry, LeadEntry, Provenance } from "./profile-schema.ts";
 export type { AppliedCalibration } from "./applied.ts";
 export { configDir, profilePaths, loadProfile, saveProfile, readProfileFile, restorePreviousProfile, storeFor, completePendingRestore } from "./profile-store.ts";
 export type { StoreOptions } from "./profile-store.ts";
@@ -32,3 +32,8 @@ export { fitSkew, MIN_FREQUENCY_SPAN } from "./skew-fit.ts";
 export type { SkewFit, SkewRing } from "./skew-fit.ts";
 export { deviceCalibration } from "./device-calibration.ts";
 export type { DeviceCalibration } from "./device-calibration.ts";
+export { measureLeadInductance } from "./nulling.ts";
+export type { LeadNullingOptions, LeadNullingResult } from "./nulling.ts";
+export { withLeadNulling } from "./nulling-reading.ts";
+export { calibrationChanges, describeChanges, CHANGE_K } from "./calibration-change.ts";
+export type { TankChange } from "./calibration-change.ts";
