@@ -118,6 +118,7 @@ Usage:
   thresholds   a high-Q coil on the clips → the comparator threshold ratio
   skew         one coil rung on two tanks → the comparator's rise/fall delay skew
   timebase     the tester's crystal against this computer's clock, or an entered counter reading
+  short        the clips shorted to each other → the leads' inductance, subtracted from readings
   restore      make the previous profile current again
 
   Uncertainties are standard (k = 1); values take SI prefixes (330u, 4n7, 0.5p).
@@ -148,6 +149,8 @@ Options:
                        well with this reference is skipped with the reason)
   --repeats N          rings per tank (default 3)
   --ref-label TEXT     a name for the reference, kept in the profile
+  --accept-shift       store it even if a tank moves beyond chance and tolerance (otherwise asked
+                       on a terminal, refused elsewhere: CALIBRATION_SHIFT)
   --json               the results as JSON
   --config-dir DIR     where calibration profiles live
 
@@ -164,6 +167,7 @@ Options:
   --cap-f C            the known capacitor, e.g. 100n, with --cap-u-f U its standard uncertainty
   --part-cs-f C        the coil's self-capacitance if known, with --part-u-cs-f U
   --repeats N          rings per state (default 3)
+  --accept-shift       store it even if the tank moves beyond chance and tolerance
   --json               the result as JSON
   --config-dir DIR     where calibration profiles live
 
@@ -198,6 +202,17 @@ Usage:
 Examples:
   henrytick calibrate timebase --sim --seconds 2
   henrytick calibrate timebase --sim --ppm 12.5 --u-ppm 0.5
+`,
+  "calibrate short": `henrytick calibrate short — the test leads' own inductance, with the clips shorted
+
+Usage:
+  henrytick calibrate short (--sim | --port PATH) [--repeats N (default 3)] [--json]
+
+  Short the two clips to each other (metal to metal, nothing else on them); the value is stored
+  and subtracted from every later reading. Null again when the leads change.
+
+Examples:
+  henrytick calibrate short --sim loop-antenna-on-leads
 `,
   "calibrate restore": `henrytick calibrate restore — make the previous profile current again
 
