@@ -107,6 +107,21 @@ describe("turns ratio and cautions (CLI)", () => {
     expect(r.status).toBe(2);
     expect(r.stderr).toMatch(/--winding-ratio .*e\.g\. 19 or 230:12/);
   });
+
+  // Naming the transformer from the pulsed side (12:230) read as a step-down would lift the cap
+  // and ring the 12 V side to 11 V: about 210 V on the mains side. No pulse before it is refused.
+  it.each(["12:230", "12/230", "1:19"])("refuses --winding-ratio %s written pulsed side first, before any pulse", (reversed) => {
+    const r = runCli(["measure", "--sim", "doorbell-transformer-12v", "--winding-ratio", reversed]);
+    expect(r.status).toBe(2);
+    expect(r.stdout).toBe("");
+    expect(r.stderr).toMatch(/other winding first.*230:12/);
+    expect(r.stderr).not.toMatch(/step \d|pulse \d/);
+  });
+
+  it("takes a step-down ratio given as a plain number", () => {
+    const r = runCli(["advise", "--sim", "doorbell-transformer-12v", "--winding-ratio", "0.05", "--json"]);
+    expect(r.status).toBe(0);
+  });
 });
 
 describe("the safety text's figures", () => {
@@ -116,5 +131,14 @@ describe("the safety text's figures", () => {
     expect(SAFETY_TEXT).toContain(`${DEFAULT_MAX_PEAK_V} V peak`);
     expect(SAFETY_TEXT).toContain(`${HAZARDOUS_PEAK_V} V peak`);
     expect(SAFETY_TEXT).toContain(`${Number((CLAMP_SHARE * 36).toFixed(2))} V: ${CLAMP_SHARE * 100} % of its 36 V clamp`);
+  });
+});
+
+describe("a setting the tester does not have", () => {
+  it.each([["--drive", "9", "--tank", "0"], ["--drive", "0", "--tank", "7"]])("measure %s %s %s %s is a usage error (status 2) naming the tester's range, before any pulse", (...args) => {
+    const r = runCli(["measure", "--sim", ...args]);
+    expect(r.status).toBe(2);
+    expect(r.stderr).toMatch(/this tester has (drives|tanks) 0 to 3/);
+    expect(r.stderr).not.toMatch(/internal error/);
   });
 });

@@ -7,7 +7,7 @@ import { CliUsageError } from "./errors.ts";
 
 /**
  * `--winding-ratio`: other turns per pulsed turn, as a number (`19`, `0.5`) or as the two
- * windings' voltages or turns (`230:12`, `230/12`).
+ * windings' voltages or turns, the other winding first (`230:12`, `230/12`; a pair below 1 is refused).
  */
 export function windingRatioOption(v: string | undefined): number | undefined {
   if (v === undefined) return undefined;
@@ -16,6 +16,17 @@ export function windingRatioOption(v: string | undefined): number | undefined {
   const n = pair ? Number(pair[1]) / Number(pair[2]) : /^\d+(?:\.\d+)?$/.test(t) ? Number(t) : NaN;
   if (!(n > 0) || !Number.isFinite(n) || n > 10_000) {
     throw new CliUsageError(`--winding-ratio is the other winding's turns per pulsed turn, e.g. 19 or 230:12 (mains : pulsed winding), got ${JSON.stringify(v)}`);
+  }
+  // Written as a pair, the larger figure first is the step-up the caution is about: a pair the
+  // other way round is most often the same transformer named from the pulsed side (12:230 for a
+  // 230 V : 12 V one), and read as written it would lift the cap altogether. A step-down (the
+  // high-voltage winding pulsed) is given as a plain number.
+  if (pair && n < 1) {
+    throw new CliUsageError(
+      `--winding-ratio ${t} says the other winding has fewer turns than the pulsed one (${Number(n.toPrecision(3))}×), which would leave ranging uncapped. ` +
+        `Write the other winding first: pulsing the 12 V side of a 230 V : 12 V transformer is --winding-ratio 230:12. ` +
+        `If the pulsed winding really is the high-voltage one, give the ratio as a plain number (--winding-ratio ${Number(n.toPrecision(3))})`,
+    );
   }
   return Number(n.toPrecision(4));
 }

@@ -64,6 +64,10 @@ export async function runMeasure(args: string[]): Promise<number> {
     progress(`tester ${tester.client.identity.device_id} (firmware ${tester.client.identity.firmware_version}) via ${tester.client.transport.description}`);
     const limit = resolvePeakLimit(max_peak_v, tester.client.profile.clamp_v, hazardous_ok, { other_winding_ratio });
     if (!limit.ok) throw new CliUsageError(limit.message);
+    // The tester says how many drives and tanks it has: a setting it lacks is a usage error, before any pulse.
+    const { drives, tanks } = tester.client.profile;
+    if (drive !== undefined && drive >= drives.length) throw new CliUsageError(`--drive ${drive}: this tester has drives 0 to ${drives.length - 1} ("henrytick profile" lists them)`);
+    if (tank !== undefined && tank >= tanks.length) throw new CliUsageError(`--tank ${tank}: this tester has tanks 0 to ${tanks.length - 1} ("henrytick profile" lists them)`);
     const caution = new PulseCaution({ describe: [values.label, tester.scenario?.name, tester.scenario?.story], limit, quiet: values.json === true || values.csv === true, repeated: values.watch === true });
     caution.start();
     const onBeforePulse = caution.beforePulse;
