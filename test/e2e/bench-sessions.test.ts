@@ -108,4 +108,26 @@ describe("Ctrl-C is a normal finish", () => {
     const j = JSON.parse(out);
     expect(j.readings.map((r: { turns: number }) => r.turns)).toEqual([30]);
   });
+
+  // Waiting at the Enter prompt with stdin still open (a terminal, or a pipe nobody closes): the
+  // first Ctrl-C must end the wait, not only a reading in progress.
+  it("sort --trigger enter interrupted while waiting for Enter prints its summary and exits 0", async () => {
+    const log = join(tmp, "enter-lot");
+    const c = spawn(process.execPath, [CLI, "sort", "--sim", "--nominal", "330u", "--tol", "5%", "--trigger", "enter", "--log", log], { env: { ...process.env, HENRYTICK_CONFIG_DIR: TEST_CONFIG_DIR } });
+    let out = "";
+    let err = "";
+    c.stdout.on("data", (d) => (out += d));
+    c.stderr.on("data", (d) => (err += d));
+    c.stdin.write("\n"); // one part measured, then the session waits for the next Enter; stdin stays open
+    const recorded = () => existsSync(`${log}.jsonl`) && readFileSync(`${log}.jsonl`, "utf8").trim() !== "";
+    for (let i = 0; i < 100 && !recorded(); i++) await new Promise((resolve) => setTimeout(resolve, 100));
+    expect(recorded()).toBe(true);
+    c.kill("SIGINT");
+    const code = await new Promise<number | null>((resolve) => {
+      const t = setTimeout(() => { c.kill("SIGKILL"); resolve(null); }, 10_000);
+      c.on("exit", (k) => { clearTimeout(t); resolve(k); });
+    });
+    expect(code).toBe(0);
+    expect(out + err).toMatch(/── 1 part/);
+  }, 30_000);
 });

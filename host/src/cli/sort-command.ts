@@ -128,7 +128,7 @@ export async function runSortCommand(args: string[]): Promise<number> {
     };
     await runSort({
       client: tester.client, session, log, trigger, tray, maxParts: count, pollMs,
-      lines: trigger === "enter" ? stdinLines("Enter = measure, q = finish: ") : undefined,
+      lines: trigger === "enter" ? stdinLines("Enter = measure, q = finish: ", stop.signal) : undefined,
       presence: { settle }, measure: { max_peak_v, other_winding_ratio, onBeforePulse: caution.beforePulse, calibration: cal?.applied }, signal: stop.signal, onEvent,
     });
   } finally {

@@ -27,12 +27,18 @@ export function makeStyle(stream: { isTTY?: boolean } = process.stdout, env: Nod
   return { good: sgr("32"), bad: sgr("31"), unsure: sgr("33"), dim: sgr("2"), bold: sgr("1") };
 }
 
-/** Lines typed or piped on stdin; prompts go to stderr only when stdin is a terminal. */
-export async function* stdinLines(prompt?: string): AsyncGenerator<string> {
+/**
+ * Lines typed or piped on stdin; prompts go to stderr only when stdin is a terminal. An abort
+ * (Ctrl-C in a session waiting for Enter) ends the lines at once, the wait for the next included.
+ */
+export async function* stdinLines(prompt?: string, signal?: AbortSignal): AsyncGenerator<string> {
   const rl = createInterface({ input: process.stdin, terminal: false });
   const ask = () => {
     if (prompt && process.stdin.isTTY) process.stderr.write(prompt);
   };
+  const onAbort = () => rl.close();
+  if (signal?.aborted) return rl.close();
+  signal?.addEventListener("abort", onAbort, { once: true });
   try {
     ask();
     for await (const line of rl) {
@@ -40,6 +46,7 @@ export async function* stdinLines(prompt?: string): AsyncGenerator<string> {
       ask();
     }
   } finally {
+    signal?.removeEventListener("abort", onAbort);
     rl.close();
   }
 }
