@@ -2,6 +2,9 @@
 // caution every pulsing command prints, and where each voltage limit comes from. Through the
 // library and through the built CLI on the simulated tester.
 
+import { mkdtempSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { measurePart, openTester } from "../../host/src/index.ts";
 import type { SettingPrediction } from "../../host/src/ranging/predict.ts";
@@ -140,5 +143,17 @@ describe("a setting the tester does not have", () => {
     expect(r.status).toBe(2);
     expect(r.stderr).toMatch(/this tester has (drives|tanks) 0 to 3/);
     expect(r.stderr).not.toMatch(/internal error/);
+  });
+});
+
+describe("calibration procedures pulse like measure does", () => {
+  // The reference calibration rings a 330 µH part on the 1 nF tank to about 25 V: the strong
+  // caution must come before that pulse, as it does for measure.
+  it("calibrate reference gives the strong caution before a pulse predicted to ring 10 V or more", () => {
+    const dir = mkdtempSync(join(tmpdir(), "henrytick-cal-caution-"));
+    const r = runCli(["calibrate", "reference", "--sim", "--ref-h", "330u", "--ref-u-h", "0.1u", "--config-dir", dir]);
+    expect(r.status).toBe(0);
+    expect(r.stderr).toMatch(/CAUTION: the next pulse is predicted to ring at about \d+(\.\d+)? V peak/);
+    expect(r.stderr.match(/CAUTION: the next pulse/g)).toHaveLength(1);
   });
 });

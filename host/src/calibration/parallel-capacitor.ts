@@ -4,6 +4,7 @@
 // Only the ratio of the two frequencies enters, so the timebase cancels; the part's own Cs
 // lands in the result unless the user states it (a low-Cs coil on a large tank keeps it small).
 
+import type { SettingPrediction } from "../ranging/predict.ts";
 import type { DeviceClient } from "../device/client.ts";
 import type { AppliedCalibration } from "./applied.ts";
 import { CalibrationError } from "./errors.ts";
@@ -70,6 +71,8 @@ export interface ParallelOptions {
   calibration?: AppliedCalibration;
   timebase_ppm?: number;
   onProgress?: (message: string) => void;
+  /** Called with each pulse's prediction before it is made (the CLI's caution for a high ring). */
+  onBeforePulse?: (p: SettingPrediction) => void;
   now?: () => Date;
 }
 
@@ -91,7 +94,7 @@ export async function calibrateWithParallelCapacitor(
     let drive = prefer;
     let estimate: PartEstimate | undefined;
     for (let k = 0; k < n; k++) {
-      const r = await readOnTank(client, tank, { calibration: base, preferDrive: drive, onProgress: opts.onProgress, estimate });
+      const r = await readOnTank(client, tank, { calibration: base, preferDrive: drive, onProgress: opts.onProgress, estimate, onBeforePulse: opts.onBeforePulse });
       drive = r.settings.drive;
       estimate = estimateOf(client, r);
       f.push(r.analysis.f0_hz);

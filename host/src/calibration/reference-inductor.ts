@@ -4,6 +4,7 @@
 // when the user states it). The timer's error is carried into C_eff and cancels again in every
 // later reading on this timebase (apply-profile.ts).
 
+import type { SettingPrediction } from "../ranging/predict.ts";
 import type { DeviceClient } from "../device/client.ts";
 import type { AppliedCalibration } from "./applied.ts";
 import type { Reading } from "../measure/measure-part.ts";
@@ -90,6 +91,8 @@ export interface ReferenceOptions {
   /** Timebase correction in force, recorded with each tank. */
   timebase_ppm?: number;
   onProgress?: (message: string) => void;
+  /** Called with each pulse's prediction before it is made (the CLI's caution for a high ring). */
+  onBeforePulse?: (p: SettingPrediction) => void;
   now?: () => Date;
 }
 
@@ -122,7 +125,7 @@ export async function calibrateWithReference(client: DeviceClient, ref: Referenc
     const readings: { f0_hz: number; fit_rel_u_f: number; drive: number }[] = [];
     try {
       for (let k = 0; k < repeats; k++) {
-        const r = await readOnTank(client, tank, { calibration: base, preferDrive: prefer, onProgress: opts.onProgress, label: ref.label, estimate });
+        const r = await readOnTank(client, tank, { calibration: base, preferDrive: prefer, onProgress: opts.onProgress, label: ref.label, estimate, onBeforePulse: opts.onBeforePulse });
         prefer = r.settings.drive;
         readings.push({ f0_hz: f0FromReading(r), fit_rel_u_f: fitRelUF0(r), drive: r.settings.drive });
       }

@@ -3,6 +3,7 @@
 // weaker ones, then stronger ones; measurePart's own checks refuse any setting over a limit
 // (SETTING_UNSAFE) before it is pulsed, and such refusals simply move on to the next drive.
 
+import type { SettingPrediction } from "../ranging/predict.ts";
 import { ErrorCode, NO_USABLE_RING } from "../codes.ts";
 import type { DeviceClient } from "../device/client.ts";
 import type { AppliedCalibration } from "./applied.ts";
@@ -20,6 +21,8 @@ export interface TankReadingOptions {
   onProgress?: (message: string) => void;
   /** What an earlier reading of this part said; without it every setting is probed first. */
   estimate?: PartEstimate;
+  /** Called with each pulse's prediction before it is made (the CLI's caution for a high ring). */
+  onBeforePulse?: (p: SettingPrediction) => void;
 }
 
 /** The estimate a reading gives ranging, so later fixed settings skip the probe. */
@@ -46,7 +49,7 @@ export async function readOnTank(client: DeviceClient, tank: number, opts: TankR
   let last: unknown = null;
   for (const drive of driveOrder(client, opts.preferDrive)) {
     try {
-      const r = await measurePart(client, { drive, tank, calibration: opts.calibration, label: opts.label, onProgress: opts.onProgress, estimate: opts.estimate });
+      const r = await measurePart(client, { drive, tank, calibration: opts.calibration, label: opts.label, onProgress: opts.onProgress, estimate: opts.estimate, onBeforePulse: opts.onBeforePulse });
       if (r.analysis.edges_used >= MIN_CAL_EDGES) return r;
       last = new MeasureError("TOO_FEW_EDGES", `only ${r.analysis.edges_used} edges`);
     } catch (e) {

@@ -16,6 +16,7 @@ import { MEASURABLE_RANGE } from "../values/range.ts";
 import { CliUsageError } from "./errors.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
 import { PulseCaution } from "./caution.ts";
+import type { SettingPrediction } from "../ranging/predict.ts";
 import { measureLeadInductance } from "../calibration/nulling.ts";
 import { calibrationChanges, describeChanges } from "../calibration/calibration-change.ts";
 import type { TankEntry } from "../calibration/profile-schema.ts";
@@ -58,8 +59,13 @@ export async function runCalibrate(args: string[]): Promise<number> {
 }
 
 type Values = Record<string, string | boolean | undefined>;
-/** `caution()` prints the pulse caution: an action calls it once its options are read, before the first pulse. */
-type Action = (t: OpenedTester, store: StoreOptions, v: Values, caution: () => void) => Promise<number>;
+/**
+ * `caution()` prints the pulse caution: an action calls it once its options are read, before the
+ * first pulse. It returns the hook that escalates to the strong caution when a pulse is predicted
+ * to ring high (pass it to the procedure as onBeforePulse).
+ */
+type Caution = () => (p: SettingPrediction) => void;
+type Action = (t: OpenedTester, store: StoreOptions, v: Values, caution: Caution) => Promise<number>;
 
 async function withTester(args: string[], extra: Record<string, { type: "string" | "boolean" }>, action: Action, pulses = false): Promise<number> {
   const { values, positionals } = parse(args, { ...COMMON, ...extra });
@@ -69,12 +75,15 @@ async function withTester(args: string[], extra: Record<string, { type: "string"
   const tester = await openTester(target);
   const store: StoreOptions = storeFor({ configDir: v["config-dir"] as string | undefined, simulated: tester.sim !== undefined });
   try {
-    let given = !pulses;
-    const caution = () => {
-      if (given) return;
-      given = true;
-      const limit = resolvePeakLimit(undefined, tester.client.profile.clamp_v, false);
-      new PulseCaution({ describe: [tester.scenario?.name, tester.scenario?.story], limit, quiet: v.json === true, repeated: true }).start();
+    let shown: PulseCaution | null = null;
+    const caution: Caution = () => {
+      if (!pulses) return () => {};
+      if (!shown) {
+        const limit = resolvePeakLimit(undefined, tester.client.profile.clamp_v, false);
+        shown = new PulseCaution({ describe: [tester.scenario?.name, tester.scenario?.story], limit, quiet: v.json === true, repeated: true });
+        shown.start();
+      }
+      return shown.beforePulse;
     };
     return await action(tester, store, v, caution);
   } finally {
@@ -139,7 +148,7 @@ async function restore(t: OpenedTester, store: StoreOptions): Promise<number> {
   return 0;
 }
 
-async function reference(t: OpenedTester, store: StoreOptions, v: Values, caution: () => void): Promise<number> {
+async function reference(t: OpenedTester, store: StoreOptions, v: Values, caution: Caution): Promise<number> {
   const ref = {
     inductance_h: quantity(v["ref-h"] as string, "ref-h", "H", { range: MEASURABLE_RANGE })!,
     u_inductance_h: quantity(v["ref-u-h"] as string, "ref-u-h", "H")!,
@@ -149,7 +158,7 @@ async function reference(t: OpenedTester, store: StoreOptions, v: Values, cautio
   };
   const tanks = v.tanks === undefined ? undefined : String(v.tanks).split(",").map((s) => intOption(s.trim(), "tanks", 0, t.client.profile.tanks.length - 1)!);
   const repeats = intOption(v.repeats, "repeats", 1, 50);
-  caution();
+  const onBeforePulse = caution();
   const profile = currentProfile(t, store);
   const applied = appliedCalibration(profile, "calibration in progress");
   // The reference rings in series with the nulled leads: the tank sees both.
@@ -158,7 +167,7 @@ async function reference(t: OpenedTester, store: StoreOptions, v: Values, cautio
     ref.u_inductance_h = Math.hypot(ref.u_inductance_h, profile.leads.u_h);
     ref.label = `${ref.label ?? ""} plus the leads' ${formatSi(profile.leads.l_h, "H", 3)}`.trim();
   }
-  const out = await calibrateWithReference(t.client, ref, { tanks, repeats, calibration: applied, timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress });
+  const out = await calibrateWithReference(t.client, ref, { tanks, repeats, calibration: applied, timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress, onBeforePulse });
   for (const r of out.results) {
     say(`   tank ${r.tank}: ${formatSi(r.c_f, "F", 5)} ± ${formatSi(2 * r.u_f, "F", 2)} (k = 2), ${((r.c_f / r.nominal_f - 1) * 100).toFixed(2)} % from nominal; ${r.readings} rings at ${formatSi(r.f0_hz, "Hz", 6)}\n`);
   }
@@ -169,7 +178,7 @@ async function reference(t: OpenedTester, store: StoreOptions, v: Values, cautio
   return 0;
 }
 
-async function parallel(t: OpenedTester, store: StoreOptions, v: Values, caution: () => void): Promise<number> {
+async function parallel(t: OpenedTester, store: StoreOptions, v: Values, caution: Caution): Promise<number> {
   const tank = intOption(v.tank, "tank", 0, t.client.profile.tanks.length - 1);
   if (tank === undefined) throw new CliUsageError("--tank N is required");
   const cap = {
@@ -179,7 +188,7 @@ async function parallel(t: OpenedTester, store: StoreOptions, v: Values, caution
     u_part_self_capacitance_f: quantity(v["part-u-cs-f"] as string | undefined, "part-u-cs-f", "F", { optional: true }),
   };
   const repeats = intOption(v.repeats, "repeats", 1, 50);
-  caution();
+  const onBeforePulse = caution();
   const profile = currentProfile(t, store);
   const sim = t.sim;
   const connect = sim
@@ -191,7 +200,7 @@ async function parallel(t: OpenedTester, store: StoreOptions, v: Values, caution
     : () => waitForEnter(`clip the ${formatSi(cap.capacitance_f, "F", 3)} capacitor across the part, then press Enter`);
   const { entry, result } = await calibrateWithParallelCapacitor(t.client, tank, cap, connect, {
     repeats, calibration: appliedCalibration(profile, "calibration in progress"),
-    timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress,
+    timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress, onBeforePulse,
   });
   say(`   tank ${tank}: ${formatSi(result.c_f, "F", 5)} ± ${formatSi(2 * result.u_f, "F", 2)} (k = 2); ` +
     `${formatSi(result.fa_hz, "Hz", 6)} → ${formatSi(result.fb_hz, "Hz", 6)}; the part reads ${formatSi(result.part_inductance_h, "H", 5)}\n`);
@@ -201,7 +210,7 @@ async function parallel(t: OpenedTester, store: StoreOptions, v: Values, caution
   return 0;
 }
 
-async function thresholds(t: OpenedTester, store: StoreOptions, v: Values, caution: () => void): Promise<number> {
+async function thresholds(t: OpenedTester, store: StoreOptions, v: Values, caution: Caution): Promise<number> {
   const captures = intOption(v.captures, "captures", 2, 20);
   caution();
   const profile = currentProfile(t, store);
@@ -215,7 +224,7 @@ async function thresholds(t: OpenedTester, store: StoreOptions, v: Values, cauti
   return 0;
 }
 
-async function skew(t: OpenedTester, store: StoreOptions, v: Values, caution: () => void): Promise<number> {
+async function skew(t: OpenedTester, store: StoreOptions, v: Values, caution: Caution): Promise<number> {
   const profile = currentProfile(t, store);
   const tanks = v.tanks === undefined ? undefined : String(v.tanks).split(",").map((x) => intOption(x, "tanks", 0, t.client.profile.tanks.length - 1)!);
   caution();
@@ -269,7 +278,7 @@ async function measuredTimebase(t: OpenedTester, store: StoreOptions, v: Values)
 }
 
 /** Lead nulling: the clips shorted to each other; the leads' inductance is stored and subtracted from later readings. */
-async function short(t: OpenedTester, store: StoreOptions, v: Values, caution: () => void): Promise<number> {
+async function short(t: OpenedTester, store: StoreOptions, v: Values, caution: Caution): Promise<number> {
   const repeats = intOption(v.repeats, "repeats", 1, 50);
   caution();
   const profile = currentProfile(t, store);
