@@ -4,12 +4,12 @@
 // and hold exactly a record the child wrote; the logs may lose at most the record in flight.
 // (A kill cannot tear a single write() to a regular file; a power cut can, see the last test.)
 
-import { spawn } from "node:child_process";
 import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, truncateSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { afterAll, describe, expect, it } from "vitest";
+import { runAndKill } from "./data-safety/run-and-kill.ts";
 import { readCaptureFile } from "../../host/src/capture/capture-file.ts";
 import { loadProfile, profilePaths, readProfileFile } from "../../host/src/calibration/profile-store.ts";
 import { Random } from "../../host/src/sim/random.ts";
@@ -17,7 +17,6 @@ import { CSV_COLUMNS, csvRow, SortLog } from "../../host/src/workflows/sort-log.
 import { CAPTURE_SLOTS, captureFor, DEVICE_ID, partRecordFor, profileFor } from "./data-safety/records.ts";
 
 const WRITER = fileURLToPath(new URL("./data-safety/writer.ts", import.meta.url));
-const REPO = fileURLToPath(new URL("../..", import.meta.url));
 const dirs: string[] = [];
 afterAll(() => dirs.forEach((d) => rmSync(d, { recursive: true, force: true })));
 
@@ -25,28 +24,6 @@ function freshDir(): string {
   const d = mkdtempSync(join(tmpdir(), "henrytick-kill-"));
   dirs.push(d);
   return d;
-}
-
-/** Starts the writer, waits until it is writing, lets it run `run_ms`, kills it. Every wait is bounded. */
-function runAndKill(dir: string, run_ms: number): Promise<void> {
-  return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, ["--import", "tsx", WRITER, dir], { cwd: REPO, stdio: ["ignore", "pipe", "pipe"] });
-    let err = "";
-    const guard = setTimeout(() => {
-      child.kill("SIGKILL");
-      reject(new Error(`writer did not start within 60 s: ${err}`));
-    }, 60_000);
-    child.stderr.on("data", (b) => (err += b));
-    child.stdout.on("data", (b: Buffer) => {
-      if (!b.toString().includes("ready")) return;
-      setTimeout(() => child.kill("SIGKILL"), run_ms);
-    });
-    child.on("exit", (code, signal) => {
-      clearTimeout(guard);
-      if (signal === "SIGKILL") resolve();
-      else reject(new Error(`writer exited by itself (code ${code}): ${err}`));
-    });
-  });
 }
 
 /** Whole lines of a log, and whether a partial line trails them. */
@@ -102,7 +79,7 @@ describe("killing the writer at random moments", () => {
     const rng = new Random(4242);
     let last = 0;
     for (let round = 0; round < 12; round++) {
-      await runAndKill(dir, Math.floor(rng.uniform() * 250));
+      await runAndKill(WRITER, dir, Math.floor(rng.uniform() * 250));
       const now = verify(dir);
       expect(now).toBeGreaterThanOrEqual(last); // nothing written earlier went missing
       last = now;

@@ -4,42 +4,20 @@
 // must be the two profiles there were, one each: the profile being replaced is never lost and
 // current and previous are never the same file.
 
-import { spawn } from "node:child_process";
 import { existsSync, mkdtempSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { afterAll, describe, expect, it } from "vitest";
+import { runAndKill } from "./data-safety/run-and-kill.ts";
 import { completePendingRestore, loadProfile, profilePaths, readProfileFile, restorePreviousProfile, saveProfile } from "../../host/src/calibration/profile-store.ts";
 import { writeFileAtomic } from "../../host/src/fs/atomic-write.ts";
 import { Random } from "../../host/src/sim/random.ts";
 import { DEVICE_ID, profileFor } from "./data-safety/records.ts";
 
 const CHILD = fileURLToPath(new URL("./data-safety/restorer.ts", import.meta.url));
-const REPO = fileURLToPath(new URL("../..", import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), "henrytick-restore-kill-"));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
-
-/** Starts the restorer, lets it run `run_ms` after it is ready, kills it. Every wait is bounded. */
-function runAndKill(run_ms: number): Promise<void> {
-  return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, ["--import", "tsx", CHILD, dir], { cwd: REPO, stdio: ["ignore", "pipe", "pipe"] });
-    let err = "";
-    const guard = setTimeout(() => {
-      child.kill("SIGKILL");
-      reject(new Error(`restorer did not start within 60 s: ${err}`));
-    }, 60_000);
-    child.stderr.on("data", (b) => (err += b));
-    child.stdout.on("data", (b: Buffer) => {
-      if (b.toString().includes("ready")) setTimeout(() => child.kill("SIGKILL"), run_ms);
-    });
-    child.on("exit", (code, signal) => {
-      clearTimeout(guard);
-      if (signal === "SIGKILL") resolve();
-      else reject(new Error(`restorer exited by itself (code ${code}): ${err}`));
-    });
-  });
-}
 
 const stamp = (p: { updated: string } | null) => p?.updated ?? null;
 
@@ -54,7 +32,7 @@ describe("calibrate restore killed at any point", () => {
     let journals = 0;
     const kills = 16;
     for (let k = 0; k < kills; k++) {
-      await runAndKill(Math.floor(rng.uniform() * 120));
+      await runAndKill(CHILD, dir, Math.floor(rng.uniform() * 120), "restorer");
       if (existsSync(paths.journal)) journals++;
       loadProfile(DEVICE_ID, { dir }); // finishes a swap cut short
       expect(existsSync(paths.journal)).toBe(false);

@@ -4,42 +4,20 @@
 // in flight, never lead it; once the logs are opened again they hold the same records, in order,
 // each once.
 
-import { spawn } from "node:child_process";
 import { existsSync, mkdtempSync, readFileSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { afterAll, describe, expect, it } from "vitest";
+import { runAndKill } from "./data-safety/run-and-kill.ts";
 import { Random } from "../../host/src/sim/random.ts";
 import { CSV_COLUMNS, csvRow, SortLog } from "../../host/src/workflows/sort-log.ts";
 import type { PartRecord } from "../../host/src/workflows/sort-session.ts";
 import { partRecordFor } from "./data-safety/records.ts";
 
 const WRITER = fileURLToPath(new URL("./data-safety/log-writer.ts", import.meta.url));
-const REPO = fileURLToPath(new URL("../..", import.meta.url));
 const dirs: string[] = [];
 afterAll(() => dirs.forEach((d) => rmSync(d, { recursive: true, force: true })));
-
-/** Starts the writer, lets it write for `run_ms` after it is ready, kills it. */
-function runAndKill(dir: string, run_ms: number): Promise<void> {
-  return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, ["--import", "tsx", WRITER, dir], { cwd: REPO, stdio: ["ignore", "pipe", "pipe"] });
-    let err = "";
-    const guard = setTimeout(() => {
-      child.kill("SIGKILL");
-      reject(new Error(`writer did not start within 60 s: ${err}`));
-    }, 60_000);
-    child.stderr.on("data", (b) => (err += b));
-    child.stdout.on("data", (b: Buffer) => {
-      if (b.toString().includes("ready")) setTimeout(() => child.kill("SIGKILL"), run_ms);
-    });
-    child.on("exit", (code, signal) => {
-      clearTimeout(guard);
-      if (signal === "SIGKILL") resolve();
-      else reject(new Error(`writer exited by itself (code ${code}): ${err}`));
-    });
-  });
-}
 
 function records(dir: string): PartRecord[] {
   const path = join(dir, "parts.jsonl");
@@ -58,7 +36,7 @@ describe("the CSV and JSON Lines logs of one sort agree after any kill", () => {
       const rng = new Random(seed);
       let lagging = 0;
       for (let round = 0; round < 8; round++) {
-        await runAndKill(dir, Math.floor(rng.uniform() * 150));
+        await runAndKill(WRITER, dir, Math.floor(rng.uniform() * 150));
         // As the kill left them: the CSV is the JSON Lines log's rendering, at most one row short.
         const recs = records(dir);
         const csv = existsSync(join(dir, "parts.csv")) ? readFileSync(join(dir, "parts.csv"), "utf8") : "";
