@@ -12,9 +12,6 @@
 // capture it still holds, fetched again over the clean link, is what a recovered capture must be.
 
 import { spawnSync } from "node:child_process";
-import { mkdtempSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
-import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { SimDevices, type RunningDevice } from "../e2e/sim-device-process.ts";
 import { DeviceClient } from "../../host/src/device/client.ts";
@@ -25,7 +22,7 @@ import { FaultTransport } from "../../host/src/transport/fault-transport.ts";
 import type { FaultOptions } from "../../host/src/transport/fault-transport.ts";
 import { SerialTransport } from "../../host/src/transport/serial-transport.ts";
 import { TransportError } from "../../host/src/transport/transport.ts";
-import { caught, QUICK_PART, SETTING } from "./sim-rig.ts";
+import { caught, QUICK_PART, quickCoilScenarioFile, SETTING } from "./sim-rig.ts";
 
 const hasSocat = spawnSync("socat", ["-V"], { stdio: "ignore" }).status === 0;
 const SKIP_REASON = "skipped: Debian package socat not installed";
@@ -44,10 +41,8 @@ const FIRST_CD = 2;
 
 
 const simDevices = new SimDevices();
-const dir = mkdtempSync(join(tmpdir(), "henrytick-pty-faults-"));
 /** The quick low-Q coil of the in-process rig, as a scenario file for sim-device. */
-const scenario = join(dir, "quick-coil.json");
-writeFileSync(scenario, JSON.stringify({ format: "henrytick-scenario", version: 1, name: "quick-coil", story: "the reliability rig's low-Q test coil", part: QUICK_PART, seed: 11 }));
+const scenario = quickCoilScenarioFile("henrytick-pty-faults-");
 
 
 interface SerialRig {

@@ -4,9 +4,6 @@
 // hung firmware) gets DEVICE_SILENT; a port locked by another program gets PORT_IN_USE.
 
 import { spawnSync } from "node:child_process";
-import { mkdtempSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
-import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { DeviceClient } from "../../host/src/device/client.ts";
 import { DeviceTimeoutError } from "../../host/src/device/errors.ts";
@@ -15,7 +12,7 @@ import { SimTester } from "../../host/src/sim/sim-tester.ts";
 import { SerialTransport } from "../../host/src/transport/serial-transport.ts";
 import type { Transport, TransportError } from "../../host/src/transport/transport.ts";
 import { SimDevices, type RunningDevice } from "../e2e/sim-device-process.ts";
-import { caught, FAST_CLIENT, QUICK_PART, ResettableSimLink, SETTING } from "./sim-rig.ts";
+import { caught, FAST_CLIENT, QUICK_PART, quickCoilScenarioFile, ResettableSimLink, SETTING } from "./sim-rig.ts";
 
 /** A link to a simulated tester that delivers `lines` received lines and then nothing, ever (the tester died). */
 class DyingLink implements Transport {
@@ -98,9 +95,8 @@ if (!hasSocat) console.warn(`silence.test.ts: pseudo-terminal tests ${SKIP_REASO
 describe.skipIf(!hasSocat)(`on the serial path: sim-device behind a pseudo-terminal${hasSocat ? "" : ` (${SKIP_REASON})`}`, () => {
   const devices = new SimDevices();
   let device: RunningDevice;
-  const dir = mkdtempSync(join(tmpdir(), "henrytick-silence-"));
-  const scenario = join(dir, "quick-coil.json");
-  writeFileSync(scenario, JSON.stringify({ format: "henrytick-scenario", version: 1, name: "quick-coil", story: "the reliability rig's low-Q test coil", part: QUICK_PART, seed: 11 }));
+  /** The quick low-Q coil of the in-process rig, as a scenario file for sim-device. */
+  const scenario = quickCoilScenarioFile("henrytick-silence-");
 
   beforeAll(async () => {
     device = await devices.start([scenario]);

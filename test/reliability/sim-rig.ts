@@ -2,6 +2,9 @@
 // time is virtual, a fixed amount before each command, so runs replay exactly), a reset that
 // power-cycles the tester, and the FaultTransport on top, with the device client connected.
 
+import { mkdtempSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
 import { DeviceClient } from "../../host/src/device/client.ts";
 import type { ClientOptions, MeasureSettings } from "../../host/src/device/client.ts";
 import type { RawCapture } from "../../host/src/device/stream-reader.ts";
@@ -16,6 +19,12 @@ import { LineSplitter, TransportBase, TransportError as TError } from "../../hos
 
 /** A low-Q test coil: about 46 edges on SETTING, quick to simulate and to fit. */
 export const QUICK_PART: PartModel = { inductance_h: 1e-3, series_ohm: 16, self_capacitance_f: 3e-12 };
+/** The quick coil as a scenario file for sim-device, in a new temporary folder named from `prefix`. */
+export function quickCoilScenarioFile(prefix: string): string {
+  const path = join(mkdtempSync(join(tmpdir(), prefix)), "quick-coil.json");
+  writeFileSync(path, JSON.stringify({ format: "henrytick-scenario", version: 1, name: "quick-coil", story: "the reliability rig's low-Q test coil", part: QUICK_PART, seed: 11 }));
+  return path;
+}
 export const SETTING: MeasureSettings = { drive: 2, tank: 1, charge_us: 1000, edge_limit: 8192, timeout_ms: 1000, quiet_us: 2000 };
 /**
  * Short reply timeout: a lost line costs this much wall time, so tests stay quick; long enough

@@ -6,9 +6,7 @@
 // with the bytes written into it by another file handle, as a probing program would.
 
 import { spawnSync } from "node:child_process";
-import { mkdtempSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
-import { join } from "node:path";
+import { writeFileSync } from "node:fs";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { DeviceClient } from "../../host/src/device/client.ts";
 import { referenceBoard } from "../../host/src/sim/board-model.ts";
@@ -17,7 +15,7 @@ import { SimTester } from "../../host/src/sim/sim-tester.ts";
 import { SerialTransport } from "../../host/src/transport/serial-transport.ts";
 import type { Transport } from "../../host/src/transport/transport.ts";
 import { SimDevices, type RunningDevice } from "../e2e/sim-device-process.ts";
-import { caught, FAST_CLIENT, matchesTruth, openRig, QUICK_PART, ResettableSimLink, settle, SETTING } from "./sim-rig.ts";
+import { caught, FAST_CLIENT, matchesTruth, openRig, QUICK_PART, quickCoilScenarioFile, ResettableSimLink, settle, SETTING } from "./sim-rig.ts";
 
 /** What a modem manager sends to probe a port (the issue's reproduction). */
 const MODEM_PROBE = "AT\rATZ\r";
@@ -142,9 +140,8 @@ if (!hasSocat) console.warn(`stray-bytes.test.ts: pseudo-terminal tests ${SKIP_R
 describe.skipIf(!hasSocat)(`stray bytes written into the pseudo-terminal by another program${hasSocat ? "" : ` (${SKIP_REASON})`}`, () => {
   const devices = new SimDevices();
   let device: RunningDevice;
-  const dir = mkdtempSync(join(tmpdir(), "henrytick-stray-"));
-  const scenario = join(dir, "quick-coil.json");
-  writeFileSync(scenario, JSON.stringify({ format: "henrytick-scenario", version: 1, name: "quick-coil", story: "the reliability rig's low-Q test coil", part: QUICK_PART, seed: 11 }));
+  /** The quick low-Q coil of the in-process rig, as a scenario file for sim-device. */
+  const scenario = quickCoilScenarioFile("henrytick-stray-");
 
   beforeAll(async () => {
     device = await devices.start([scenario]);
