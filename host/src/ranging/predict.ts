@@ -9,7 +9,7 @@ import type { DeviceProfile } from "../device/profile.ts";
 import { predictedRingBound, rangingWork } from "./bound-cache.ts";
 import type { PartEstimate } from "./estimate.ts";
 import { lossModel, thresholdScale } from "./estimate.ts";
-import { volts } from "./safety.ts";
+import { firstPeakShare, volts } from "./safety.ts";
 import { unaccountedCapacitanceRelU } from "./unaccounted-capacitance.ts";
 
 export interface PlanLimits {
@@ -90,7 +90,7 @@ export function predictSetting(
   // Q measurement cannot tell series loss (which would lower the current) from core loss.
   const bound = chargePlan(profile, est.l_h, 0, r.ohm, c, r.max_charge_us, charge.charge_us);
   const a0_worst = a0 * (Math.max(bound.i0_worst, charge.i0_worst) / charge.i0);
-  const peak = a0 * Math.exp(-Math.PI / (4 * q));
+  const peak = a0 * firstPeakShare(q);
   const h = thresholdScale(profile);
   const cycles = a0 > h && q > 0.5 ? (q / Math.PI) * Math.log(a0 / h) : 0;
   const f = w0 / (2 * Math.PI);

@@ -16,12 +16,17 @@ export function flybackEnergyJ(l_h: number, i0_a: number): number {
   return 0.5 * l_h * i0_a * i0_a;
 }
 
+/**
+ * Share of the ring's initial amplitude left at its first peak, a quarter period in:
+ * e^(-alpha T/4) with alpha = w0 / (2Q), and alpha T/4 = (w0 / 2Q) (pi / 2 w0) = pi / (4 Q).
+ */
+export function firstPeakShare(q: number): number {
+  return Number.isFinite(q) ? Math.exp(-Math.PI / (4 * q)) : 1;
+}
+
 /** First peak across the tank: I0 sqrt(L/C) e^(-alpha T/4), with alpha = w0 / (2Q). */
 export function flybackPeakV(l_h: number, c_f: number, i0_a: number, q = Infinity): number {
-  const undamped = i0_a * Math.sqrt(l_h / c_f);
-  if (!Number.isFinite(q)) return undamped;
-  // alpha T/4 = (w0 / 2Q) (pi / 2 w0) = pi / (4 Q)
-  return undamped * Math.exp(-Math.PI / (4 * q));
+  return i0_a * Math.sqrt(l_h / c_f) * firstPeakShare(q);
 }
 
 /** Peak on a transformer's other winding: the pulsed winding's peak times the turns ratio. */
