@@ -5,7 +5,6 @@
 
 import type { ReadingBudgetLine } from "../codes.ts";
 import type { RingAnalysis } from "../analysis/index.ts";
-import { SELF_CAPACITANCE_LINE, STRAY_CAPACITANCE_LINE } from "../measure/reading-uncertainty.ts";
 import type { TwoCapacitanceResult } from "./two-capacitance.ts";
 
 export const BUDGET_GROUPS = ["fit", "capacitance", "timebase", "self-capacitance", "leads"] as const;
@@ -56,7 +55,7 @@ export function singleTankBudget(
   a: RingAnalysis, tank_c_f: number, timebase?: TimebaseKnowledge, cs?: { cs_f: number; u_cs_f: number },
 ): UncertaintyBudget {
   const from = (name: ReadingBudgetLine) => a.budget.find((b) => b.name === name)?.rel_u ?? 0;
-  const stray = from(STRAY_CAPACITANCE_LINE);
+  const stray = from("stray capacitance");
   const lines: BudgetLine[] = [
     { group: "fit", rel_u: from("fit"), note: `edge-model fit, ${a.edges_used} edges` },
     { group: "capacitance", rel_u: from("capacitance"), note: "tank capacitance as applied to the capture" },
@@ -74,7 +73,7 @@ export function singleTankBudget(
     return combineBudget("corrected", l, lines);
   }
   lines.push({
-    group: "self-capacitance", rel_u: Math.hypot(from(SELF_CAPACITANCE_LINE), stray),
+    group: "self-capacitance", rel_u: Math.hypot(from("self-capacitance"), stray),
     note: `part's self-capacitance not removed (use --self-cap for the corrected value)${strayNote}`,
   });
   return combineBudget("apparent", a.inductance_h, lines);

@@ -7,15 +7,10 @@
 // L = 1/(w0² C) and ESR = 2 alpha L both scale as 1/C, so the term enters both with the same
 // relative size, in quadrature with the analysis's own U (uncorrelated, JCGM 100:2008 §5.1.2).
 
-import type { ReadingBudgetLine } from "../codes.ts";
 import type { RingAnalysis } from "../analysis/index.ts";
 import { COVERAGE_K } from "../analysis/index.ts";
 import type { CaptureV1 } from "../capture/capture-file.ts";
 import { unaccountedCapacitance } from "../ranging/unaccounted-capacitance.ts";
-
-/** Budget line names of the two shares (calibration/uncertainty-budget.ts reads them back). */
-export const SELF_CAPACITANCE_LINE = "self-capacitance" satisfies ReadingBudgetLine;
-export const STRAY_CAPACITANCE_LINE = "stray capacitance" satisfies ReadingBudgetLine;
 
 export function withUnaccountedCapacitance(a: RingAnalysis, capture: CaptureV1): RingAnalysis {
   // A capture that does not record its calibration is taken as uncalibrated.
@@ -30,8 +25,8 @@ export function withUnaccountedCapacitance(a: RingAnalysis, capture: CaptureV1):
     esr_u_ohm: widen(a.esr_u_ohm, a.esr_ohm),
     budget: [
       ...a.budget,
-      { name: SELF_CAPACITANCE_LINE, rel_u: selfRel },
-      { name: STRAY_CAPACITANCE_LINE, rel_u: strayRel },
+      { name: "self-capacitance", rel_u: selfRel },
+      { name: "stray capacitance", rel_u: strayRel },
     ],
   };
 }
