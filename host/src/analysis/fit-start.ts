@@ -196,17 +196,35 @@ function subsetMask(e: EdgeSet, count: number, tail: number): Float64Array {
 
 /**
  * Round-0 variances: timing noise only, slopes floored so grazing edges do not dominate. With a
- * mask, only edges with mask[k] > 0 get one (the others stay Infinity).
+ * mask, only edges with mask[k] > 0 get one (the others stay Infinity). The slope is the ring's
+ * at its zero crossing (thresholds 0), which ws.slope also receives.
  */
 export function initialVariance(
   p: Float64Array, e: EdgeSet, var_t_s2: number, ws: FitWorkspace, mask: Float64Array | null = null,
 ): Float64Array {
   const out = new Float64Array(e.n).fill(Infinity);
-  evaluateEdges(p, e, 0, 0, mask, null, { slope: ws.slope });
+  const wd = p[P_WD];
+  const alpha = p[P_ALPHA];
   const a0 = Math.exp(p[P_LNA]);
+  // At a zero threshold a phase-form edge has u = 0, so its slope S_k (wd - alpha c) is S_k wd
+  // exactly (edge-model.ts) and needs no model evaluation; only level-form edges (and, to stay
+  // exact, any edge where u would not be a clean zero: e^(alpha t) or 1/A0 overflowing) are
+  // evaluated.
+  const exact = Number.isFinite(1 / a0) && Number.isFinite(alpha);
+  let evaluate: Float64Array | null = null;
   for (let k = 0; k < e.n; k++) {
     if (e.m[k] !== e.m[k] || (mask !== null && !(mask[k] > 0))) continue;
-    const floor = 0.3 * p[P_WD] * a0 * Math.exp(-p[P_ALPHA] * e.t_s[k]);
+    if (exact && e.form[k] === 1 && alpha * e.t_s[k] < 709) {
+      ws.slope[k] = e.scale_v[k] * wd;
+      continue;
+    }
+    evaluate ??= new Float64Array(e.n);
+    evaluate[k] = 1;
+  }
+  if (evaluate) evaluateEdges(p, e, 0, 0, evaluate, null, { slope: ws.slope });
+  for (let k = 0; k < e.n; k++) {
+    if (e.m[k] !== e.m[k] || (mask !== null && !(mask[k] > 0))) continue;
+    const floor = 0.3 * wd * a0 * Math.exp(-alpha * e.t_s[k]);
     out[k] = var_t_s2 * (ws.slope[k] * ws.slope[k] + floor * floor);
   }
   return out;
