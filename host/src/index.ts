@@ -62,7 +62,7 @@ export { measureAbortable, MeasureAbortedError } from "./workflows/abortable-mea
 export type { AbortableMeasureOptions } from "./workflows/abortable-measure.ts";
 export { SortSession } from "./workflows/sort-session.ts";
 export type { SortSpec, PartRecord, Tally } from "./workflows/sort-session.ts";
-export { SortLog, SortLogError, CSV_COLUMNS } from "./workflows/sort-log.ts";
+export { SortLog, SortLogError, CSV_COLUMNS, readSortLog } from "./workflows/sort-log.ts";
 export { runSort } from "./workflows/sort-runner.ts";
 export type { SortEvent, SortRunOptions } from "./workflows/sort-runner.ts";
 export { PresenceTracker } from "./workflows/part-presence.ts";
