@@ -13,6 +13,7 @@ import { eraseUp, makeStyle, type Style } from "../workflows/terminal.ts";
 import { assessStability, History, sparkline, type StabilityResult } from "../workflows/watch-trend.ts";
 import { intOption, optionValue } from "./args.ts";
 import { csvHeader, csvRow } from "./result-csv.ts";
+import { onCtrlC } from "./interrupt.ts";
 
 /** Options measure accepts for --watch (spread into its parse table). */
 export const WATCH_OPTIONS = {
@@ -43,9 +44,8 @@ export async function runWatch(tester: OpenedTester, values: WatchValues, measur
   const tty = process.stdout.isTTY === true && !values.json && !values.csv;
   const history = new History(40);
   const stop = new AbortController();
-  // First Ctrl-C: finish after the reading in progress (the summary still prints); second: quit now.
-  const onSigint = () => (stop.signal.aborted ? process.exit(130) : stop.abort());
-  process.on("SIGINT", onSigint);
+  // First Ctrl-C: finish after the reading in progress (status 0, as sort and wind); a second press: quit now.
+  const ctrlC = onCtrlC(() => stop.abort());
   let drawn = 0;
   let n = 0;
   if (values.csv) process.stdout.write(csvHeader(CSV_FRONT));
@@ -84,7 +84,7 @@ export async function runWatch(tester: OpenedTester, values: WatchValues, measur
       if (interval > 0 && !stop.signal.aborted && (count === undefined || n < count)) await pause(interval, stop.signal);
     }
   } finally {
-    process.off("SIGINT", onSigint);
+    ctrlC.dispose();
   }
   return history.values.length > 0 ? 0 : 1;
 }
