@@ -128,3 +128,20 @@ describe("repeated readings on a fixed setting", () => {
     }
   });
 });
+
+describe("a fixed setting's capture window", () => {
+  it("ends 4 ring periods after the last edge, as a ranged capture does, not after a fixed 20 ms", async () => {
+    const t = await openTester({ part: COIL, seed: 3 });
+    try {
+      const first = await measurePart(t.client);
+      const estimate = estimateFromReading(t.client.profile, first.settings, first.analysis);
+      const r = await measurePart(t.client, { drive: 0, tank: 2, estimate });
+      // The 4.7 µH part on 100 nF rings at about 230 kHz: 4 periods are some 17 µs, so the 50 µs
+      // floor (4 periods of the predicted frequency; 10 % allowed for the prediction).
+      expect(r.settings.quiet_us).toBeLessThanOrEqual(Math.max(50, Math.ceil(4.4e6 / r.analysis.fd_hz)));
+      expect(r.capture.range?.quiet_us).toBe(r.settings.quiet_us);
+    } finally {
+      await t.close();
+    }
+  });
+});
