@@ -177,6 +177,7 @@ export const VALUE_ERROR_MEANINGS = {
   WRONG_UNIT: "a value is written in another unit than the option takes (10uF for an inductance)",
   AMBIGUOUS_VALUE: "a bare number where the prefix decides the value (10 for an inductance)",
   OUT_OF_RANGE: "a value lies outside what it may be (the measurable range, a tolerance wider than its nominal)",
+  TOLERANCE_CONFLICT: "a nominal's tolerance letter and the tolerance given beside it differ (10uH F with 5%)",
 } as const;
 
 /** Every error code, by group, for the documentation table. */

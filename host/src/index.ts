@@ -21,8 +21,9 @@ export { measurePart, analyzeCapture, judgeCapture, MeasureError, PartFaultError
 export { repeatReadings } from "./measure/repeat-readings.ts";
 export type { RepeatOptions, RepeatOutcome } from "./measure/repeat-readings.ts";
 export type { Reading, MeasureOptions } from "./measure/measure-part.ts";
+export type { FrequencyChoice } from "./ranging/choose-setting.ts";
 export type { MeasureEvent, MeasurePhase, PulseEvent, StepEvent, CautionEvent, DoneEvent, SettingInfo } from "./measure/events.ts";
-export { buildResult } from "./measure/result.ts";
+export { buildResult, readingResult } from "./measure/result.ts";
 export type { ResultJson } from "./measure/result.ts";
 export { readCaptureFile, writeCaptureFile, parseCapture, CaptureFileError, MAX_CAPTURE_EDGES, MAX_CAPTURE_BYTES } from "./capture/capture-file.ts";
 export { writeFileAtomic, FileWriteError } from "./fs/atomic-write.ts";
@@ -63,7 +64,7 @@ export { measureAbortable, MeasureAbortedError } from "./workflows/abortable-mea
 export type { AbortableMeasureOptions } from "./workflows/abortable-measure.ts";
 export { SortSession } from "./workflows/sort-session.ts";
 export type { SortSpec, PartRecord, Tally } from "./workflows/sort-session.ts";
-export { SortLog, SortLogError, CSV_COLUMNS } from "./workflows/sort-log.ts";
+export { SortLog, SortLogError, CSV_COLUMNS, readSortLog } from "./workflows/sort-log.ts";
 export { runSort } from "./workflows/sort-runner.ts";
 export type { SortEvent, SortRunOptions } from "./workflows/sort-runner.ts";
 export { PresenceTracker } from "./workflows/part-presence.ts";

@@ -25,6 +25,7 @@ ${WATCH_USAGE}
 Examples:
   henrytick measure --sim
   henrytick measure --sim filter-coil-4m7 --json
+  henrytick measure --sim drawer-choke-330u --freq 10k
   henrytick measure --sim doorbell-transformer-12v --winding-ratio 230:12
   henrytick measure --sim --watch --count 5
   henrytick measure --port /dev/ttyACM0 --csv >> log.csv

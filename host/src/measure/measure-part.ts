@@ -10,6 +10,8 @@ import type { PartEstimate } from "../ranging/estimate.ts";
 import type { PlanLimits } from "../ranging/predict.ts";
 import { predictSetting, type SettingPrediction } from "../ranging/predict.ts";
 import { resolvePeakLimit, volts } from "../ranging/safety.ts";
+import { adviseSettings } from "../ranging/advice.ts";
+import { describeFrequencyChoice, orderForFrequency, TEST_FREQUENCY_RANGE, type FrequencyChoice } from "../ranging/choose-setting.ts";
 import { autoRange, probePart, quietAfterUs } from "./auto-range.ts";
 import type { AppliedCalibration } from "../calibration/applied.ts";
 import { MeasureError, NO_USABLE_RING, describeSetting, readingFromRaw } from "./read-once.ts";
@@ -38,6 +40,13 @@ export interface MeasureOptions {
    * turn: it sees the pulse times this ratio, so every pulse is kept at max_peak_v / ratio.
    */
   other_winding_ratio?: number;
+  /**
+   * Working frequency asked for, Hz: ranging takes, among the settings that are safe and give a
+   * usable ring, those on the tank whose predicted ring is nearest it (log distance), and the
+   * reading's `test_frequency` says how near it came. With a fixed drive and tank, the reading
+   * only says how near that setting is.
+   */
+  test_frequency_hz?: number;
   /** Called with each setting's prediction just before it is pulsed (not for the gentle probe). */
   onBeforePulse?: (p: SettingPrediction) => void;
   /** What is already known about the part (from an earlier reading): skips the probe. */
@@ -70,6 +79,8 @@ export interface Reading {
   /** The prediction for the setting used, and the whole ranked advice it came from. */
   prediction?: Advice;
   advice?: Advice[];
+  /** Present only with `test_frequency_hz`: the asked frequency, where the part rang and why no nearer tank was used. */
+  test_frequency?: FrequencyChoice;
   /** Present only with `keep_suspect`: the part fault this reading shows; not a verified result. */
   suspect?: PartFault;
 }
@@ -118,6 +129,7 @@ export interface FixedPlan {
   settings: MeasureSettings;
   prediction: SettingPrediction;
   estimate: PartEstimate;
+  limits: PlanLimits;
 }
 
 /**
@@ -143,7 +155,7 @@ export async function planFixed(client: DeviceClient, opts: MeasureOptions, limi
   // The capture ends 4 predicted periods after the last edge, as on a ranged setting: a fixed
   // quiet time would hold every reading of a fast ring that long after it died out.
   const settings = { drive, tank, charge_us: charge, edge_limit: profile.buffer_edges, timeout_ms: FIXED_TIMEOUT_MS, quiet_us: quietAfterUs(p.f_hz) };
-  return { settings, prediction: p, estimate: est };
+  return { settings, prediction: p, estimate: est, limits };
 }
 
 /**
@@ -151,9 +163,14 @@ export async function planFixed(client: DeviceClient, opts: MeasureOptions, limi
  * capture without a usable ring explained (a short, a saturating core) where the plan shows why.
  */
 export function fixedReading(client: DeviceClient, raw: RawCapture, opts: MeasureOptions, plan: FixedPlan): Reading {
-  const { settings, prediction: p, estimate: est } = plan;
+  const { settings, prediction: p, estimate: est, limits } = plan;
+  const asked = opts.test_frequency_hz;
   try {
-    return readingFromRaw(client, raw, opts);
+    const reading = readingFromRaw(client, raw, opts);
+    if (asked === undefined) return reading;
+    const profile = client.profile;
+    const advice = orderForFrequency(adviseSettings(profile, est, limits, opts.calibration?.tanks), asked);
+    return { ...reading, test_frequency: describeFrequencyChoice(profile, advice, asked, settings.tank, reading.analysis.f0_hz, undefined, "the setting was fixed (drive and tank given)") };
   } catch (e) {
     if (!(e instanceof MeasureError)) throw e;
     const why = explainFailure(e);
@@ -173,6 +190,10 @@ export function planLimits(client: DeviceClient, opts: MeasureOptions): PlanLimi
   const profile = client.profile;
   const peak = resolvePeakLimit(opts.max_peak_v, profile.clamp_v, opts.hazardous_ok ?? false, { other_winding_ratio: opts.other_winding_ratio });
   if (!peak.ok) throw new MeasureError("PEAK_LIMIT", peak.message);
+  const asked = opts.test_frequency_hz;
+  if (asked !== undefined && !(asked >= TEST_FREQUENCY_RANGE.min && asked <= TEST_FREQUENCY_RANGE.max)) {
+    throw new RangeError(`"test_frequency_hz" must be from ${TEST_FREQUENCY_RANGE.min} to ${TEST_FREQUENCY_RANGE.max} Hz (${TEST_FREQUENCY_RANGE.what}), got ${asked}`);
+  }
   return {
     max_peak_v: peak.limit_v, min_ticks_per_period: 40,
     ...(peak.limit_v < peak.winding_limit_v ? { why: `${volts(peak.winding_limit_v)} / ${peak.other_winding_ratio} for the other winding` } : {}),
