@@ -103,6 +103,8 @@ export const CALIBRATION_ERROR_MEANINGS = {
   TIMEBASE_UNSUPPORTED: "the tester cannot report its tick counter",
   TWO_TANKS_UNAVAILABLE: "no second tank suits the part for the self-capacitance method",
   CALIBRATION_SHIFT: "a new calibration moves a tank more than chance and tolerance explain, and was not confirmed",
+  REFERENCE_MISMATCH: "the reference's first reading disagrees with the value entered for it by more than any tank tolerance explains",
+  CALIBRATION_WORSE: "a new value is less certain than the stored one and was not confirmed; the stored one stays in use",
 } as const;
 
 export type CalibrationErrorCode = keyof typeof CALIBRATION_ERROR_MEANINGS;

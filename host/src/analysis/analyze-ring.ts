@@ -481,53 +481,97 @@ interface FitSetting {
  * What the rounds of one full fit carry from one round to the next (fitFrom). The per-edge
  * arrays are made once for the fit (the returned FitState keeps `variance` and `used`) or lent
  * by the capture's workspace (ws.roundScratch: the rest, contents undefined between fits).
+ * Made at the start: residual forms and round-0 variances at the start's parameters.
  */
-interface Rounds extends FitSetting {
-  n: number;
+class Rounds implements FitSetting {
+  readonly c: CheckedInput;
+  readonly e: EdgeSet;
+  readonly reasons: (string | null)[];
+  readonly ws: FitWorkspace;
+  readonly limits: FitLimits;
+  readonly tickVar_s2: number;
+  readonly round0Subset: Float64Array | null;
+  readonly n: number;
   /** The model's parameters (edge-model.ts). */
   p: Float64Array;
   /** Residual variance per edge, V^2, and timing variance per edge, s^2 (noise-model.ts). */
-  variance: Float64Array;
-  timingVar_s2: Float64Array;
+  readonly variance: Float64Array;
+  readonly timingVar_s2: Float64Array;
   /** 1 where reweight set the edge aside as an outlier. */
-  outlier: Uint8Array;
+  readonly outlier: Uint8Array;
   /** 1 where the edge takes part in the fit: indexed, and not an outlier. */
-  used: Float64Array;
+  readonly used: Float64Array;
   /** Huber weight per edge (reweight). */
-  robust: Float64Array;
+  readonly robust: Float64Array;
   /** Fit weight per edge: robust / variance where used, else 0. */
-  w: Float64Array;
+  readonly w: Float64Array;
   /** 1 where the edge has a half-cycle index. */
-  assigned: Float64Array;
+  readonly assigned: Float64Array;
   /** Each edge's leverage in the round's fit (0 where not used). */
-  leverage: Float64Array;
+  readonly leverage: Float64Array;
   /** The clean crossings (used, phase form) the noise is estimated from when there are enough. */
-  noiseMask: Float64Array;
+  readonly noiseMask: Float64Array;
   /** Standardised residuals of the assigned edges; those of the used edges packed in zUsed. */
-  z: Float64Array;
-  zUsed: Float64Array;
+  readonly z: Float64Array;
+  readonly zUsed: Float64Array;
   /** Scratch: medians, the residual sd for re-indexing, the scales and forms before reform. */
-  zWork: Float64Array;
-  sd: Float64Array;
-  oldScale: Float64Array;
-  oldForm: Uint8Array;
-  noise: NoiseEstimate | null;
+  readonly zWork: Float64Array;
+  readonly sd: Float64Array;
+  readonly oldScale: Float64Array;
+  readonly oldForm: Uint8Array;
+  noise: NoiseEstimate | null = null;
   /** Robust standard deviation of the standardised residuals (reweight). */
-  zScale: number;
+  zScale = 1;
   /** ws.r, ws.jac, ws.slope and ws.curvature hold the model at p with the current forms and
    *  timing variances: then neither a round's fit nor its checks evaluate the model again. */
-  cached: boolean;
+  cached = false;
   /** Where the edges were last re-indexed (null: not yet), and what that re-indexing left to show
    *  that one at a nearby model would change nothing (model-bookkeeping.ts indicesHold). */
-  pIndexed: Float64Array | null;
-  margin: IndexMargin;
+  pIndexed: Float64Array | null = null;
+  readonly margin: IndexMargin = { margin_rad: 0, max_u: 0, max_t_s: 0, duplicates: true };
   /** How often the forms were chosen again once settled (staleForms in fitFrom). */
-  reforms: number;
+  reforms = 0;
+
+  constructor(s: FitSetting, guess: InitialGuess) {
+    const { c, e, ws } = s;
+    this.c = c;
+    this.e = e;
+    this.reasons = s.reasons;
+    this.ws = ws;
+    this.limits = s.limits;
+    this.tickVar_s2 = s.tickVar_s2;
+    this.round0Subset = s.round0Subset;
+    const n = c.t_s.length;
+    this.n = n;
+    this.p = guess.p;
+    // Round 0 fits `round0Subset` of a long capture (null: all edges), and the forms and every
+    // variance are set anew after it: the start's forms and variances are needed on the subset
+    // alone (variance Infinity, weight zero, elsewhere).
+    chooseResidualForms(guess.p, e, c.vh_v, c.vl_v, s.round0Subset);
+    this.variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, s.tickVar_s2), ws, s.round0Subset);
+    const [robust, assigned, w, leverage, sd, z, zUsed, noiseMask, zWork, oldScale, timingVar_s2] = ws.roundScratch(11);
+    robust.fill(1);
+    timingVar_s2.fill(s.tickVar_s2);
+    this.timingVar_s2 = timingVar_s2;
+    this.outlier = new Uint8Array(n);
+    this.used = new Float64Array(n);
+    this.robust = robust;
+    this.w = w;
+    this.assigned = assigned;
+    this.leverage = leverage;
+    this.noiseMask = noiseMask;
+    this.z = z;
+    this.zUsed = zUsed;
+    this.zWork = zWork;
+    this.sd = sd;
+    this.oldScale = oldScale;
+    this.oldForm = new Uint8Array(n);
+  }
 }
 
 /** One full fit from one start: rounds of fit, re-index, noise, reweight until settled. */
 function fitFrom(setting: FitSetting, guess: InitialGuess, reference?: FitState): FitState | null {
-  const f = startRounds(setting, guess);
+  const f = new Rounds(setting, guess);
   const { c, ws } = f;
   let fit!: EdgeFitResult;
   let staleForms = false;
@@ -597,25 +641,6 @@ function fitFrom(setting: FitSetting, guess: InitialGuess, reference?: FitState)
   return finishRounds(f, fit);
 }
 
-/** The start of a full fit: residual forms and round-0 variances at the start's parameters. */
-function startRounds(s: FitSetting, guess: InitialGuess): Rounds {
-  const { c, e, ws } = s;
-  const n = c.t_s.length;
-  // Round 0 fits `round0Subset` of a long capture (null: all edges), and the forms and every
-  // variance are set anew after it: the start's forms and variances are needed on the subset
-  // alone (variance Infinity, weight zero, elsewhere).
-  chooseResidualForms(guess.p, e, c.vh_v, c.vl_v, s.round0Subset);
-  const variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, s.tickVar_s2), ws, s.round0Subset);
-  const [robust, assigned, w, leverage, sd, z, zUsed, noiseMask, zWork, oldScale, timingVar_s2] = ws.roundScratch(11);
-  robust.fill(1);
-  timingVar_s2.fill(s.tickVar_s2);
-  return {
-    ...s, n, p: guess.p, variance, timingVar_s2, outlier: new Uint8Array(n), used: new Float64Array(n), robust, w, assigned,
-    leverage, noiseMask, z, zUsed, zWork, sd, oldScale, oldForm: new Uint8Array(n), noise: null, zScale: 1, cached: false,
-    pIndexed: null, margin: { margin_rad: 0, max_u: 0, max_t_s: 0, duplicates: true }, reforms: 0,
-  };
-}
-
 /**
  * Chooses the residual forms again at p. A phase-form residual is S_k times a phase error, so
  * its variance goes with S_k^2: an edge that keeps the phase form under a new scale keeps its
@@ -624,11 +649,11 @@ function startRounds(s: FitSetting, guess: InitialGuess): Rounds {
  * `amp`: the model envelope at p per edge, when the re-indexing at p has just computed it.
  */
 function reform(f: Rounds, amp: Float64Array | null): void {
-  const { e, variance, oldScale, oldForm } = f;
+  const { e, variance, oldScale, oldForm, n } = f;
   oldScale.set(e.scale_v);
   oldForm.set(e.form);
   chooseResidualForms(f.p, e, f.c.vh_v, f.c.vl_v, null, amp);
-  for (let k = 0; k < f.n; k++) {
+  for (let k = 0; k < n; k++) {
     if (oldForm[k] !== 1 || e.form[k] !== 1) continue;
     const ratio = e.scale_v[k] / oldScale[k];
     variance[k] *= ratio * ratio;
@@ -654,7 +679,8 @@ function reindex(f: Rounds, round: number): number {
     let sd: Float64Array | null = null;
     if (!(round === 0 && f.round0Subset)) {
       sd = f.sd;
-      for (let k = 0; k < f.n; k++) sd[k] = Math.sqrt(f.variance[k]);
+      const variance = f.variance;
+      for (let k = 0; k < sd.length; k++) sd[k] = Math.sqrt(variance[k]);
     }
     // (z is free until the variances are updated: it takes the envelope for reform.)
     moved = reassignHalfCycles(f.p, f.e, c.vh_v, c.vl_v, sd, f.reasons, f.margin, f.z);
@@ -671,8 +697,8 @@ function reindex(f: Rounds, round: number): number {
 
 /** Each edge's part in the next fit: used (indexed, not an outlier) and its weight. */
 function weigh(f: Rounds): void {
-  const { e, outlier, robust, variance, used, w } = f;
-  for (let k = 0; k < f.n; k++) {
+  const { e, outlier, robust, variance, used, w, n } = f;
+  for (let k = 0; k < n; k++) {
     used[k] = e.m[k] === e.m[k] && !outlier[k] ? 1 : 0;
     w[k] = used[k] > 0 ? robust[k] / variance[k] : 0;
   }
@@ -685,13 +711,13 @@ function weigh(f: Rounds): void {
  * edges are indexed and how many are clean.
  */
 function weighAndCount(f: Rounds, cov: Float64Array): { assigned: number; clean: number } {
-  const { e, outlier, robust, variance, used, w, assigned, noiseMask, leverage } = f;
+  const { e, outlier, robust, variance, used, w, assigned, noiseMask, leverage, n } = f;
   const jac = f.ws.jac;
   const c00 = cov[0], c01 = cov[1], c02 = cov[2], c03 = cov[3], c11 = cov[5], c12 = cov[6], c13 = cov[7];
   const c22 = cov[10], c23 = cov[11], c33 = cov[15];
   let nAssigned = 0;
   let clean = 0;
-  for (let k = 0; k < f.n; k++) {
+  for (let k = 0; k < n; k++) {
     const indexed = e.m[k] === e.m[k];
     const u = indexed && !outlier[k] ? 1 : 0;
     used[k] = u;
@@ -725,11 +751,11 @@ function weighAndCount(f: Rounds, cov: Float64Array): { assigned: number; clean:
  * Returns how many edges changed side; the scale goes into f.zScale.
  */
 function reweight(f: Rounds, usedCount: number, reject: boolean): number {
-  const { e, z, assigned, robust, outlier, reasons, used, w, variance } = f;
+  const { e, z, assigned, robust, outlier, reasons, used, w, variance, n } = f;
   const zScale = Math.max(0.5, madSigma(f.zUsed, usedCount, f.zWork));
   f.zScale = zScale;
   let flipped = 0;
-  for (let k = 0; k < f.n; k++) {
+  for (let k = 0; k < n; k++) {
     if (assigned[k] > 0) {
       const zk = z[k] / zScale;
       robust[k] = huberWeight(zk, HUBER_C);
