@@ -6,6 +6,8 @@
 import { describe, expect, it } from "vitest";
 import { measurePart, openTester } from "../../host/src/index.ts";
 import type { MeasureOptions } from "../../host/src/index.ts";
+import { SettingHold } from "../../host/src/workflows/setting-hold.ts";
+import { assessStability, SettingHistory } from "../../host/src/workflows/watch-trend.ts";
 import { runCli } from "./run-cli.ts";
 
 async function read(scenario: string, opts: MeasureOptions) {
@@ -92,5 +94,78 @@ describe("measure --freq", () => {
     const r = runCli(["measure", "--sim", "drawer-choke-330u", ...extra]);
     expect(r.status).toBe(2);
     expect(r.stderr).toMatch(message);
+  });
+});
+
+describe("one setting through a session (SettingHold)", () => {
+  it("holds the first reading's setting, and ranges again for another part or a refusal, saying why", async () => {
+    const t = await openTester({ scenario: "drawer-choke-330u" });
+    try {
+      const hold = new SettingHold();
+      const first = await hold.measure(t.client, {});
+      const held = { drive: first.reading!.settings.drive, tank: first.reading!.settings.tank };
+      expect(first.changed).toBeUndefined();
+      expect(hold.held).toMatchObject(held);
+      const again = await hold.measure(t.client, {});
+      expect(again.reading!.settings).toMatchObject(held);
+      expect(again.reading!.capture.range).toMatchObject({ drive_index: held.drive, tank_index: held.tank });
+      // A 100 mH part on the held setting of a 330 µH one: its ring would pass the limit, so the
+      // setting is refused before any pulse on it, and ranging chooses again.
+      t.sim!.part = { inductance_h: 0.1, series_ohm: 60, self_capacitance_f: 25e-12 };
+      const big = await hold.measure(t.client, {});
+      expect(big.changed).toMatch(/^the held setting 100 Ω with 100 nF was refused \(SETTING_UNSAFE\); ranging again chose the setting .* \(1\.5\d kHz\)$/);
+      expect(Math.abs(big.reading!.analysis.inductance_h / 0.1 - 1)).toBeLessThan(0.02);
+      const heldBig = hold.held!;
+      // A 10 µH part is safe on the 100 mH part's setting, but it is another part: ranging again.
+      t.sim!.part = { inductance_h: 10e-6, series_ohm: 0.05, self_capacitance_f: 2e-12 };
+      const small = await hold.measure(t.client, {});
+      expect(small.changed).toMatch(/^another part: L 100 mH → 10\.0 µH on the held setting .*; ranging again chose/);
+      expect(hold.held).not.toMatchObject({ drive: heldBig.drive, tank: heldBig.tank });
+      // Open clips end the part: nothing is held, the next part ranges.
+      t.sim!.part = null;
+      expect((await hold.measure(t.client, {})).error?.code).toBe("NO_RING");
+      expect(hold.held).toBeNull();
+    } finally {
+      await t.close();
+    }
+  });
+});
+
+describe("a trend verdict never spans a change of setting", () => {
+  it("SettingHistory starts again when the setting changes", () => {
+    const h = new SettingHistory(40);
+    expect(h.pushOn("1/3", 328.7e-6, 3.8e-6)).toBe(false);
+    expect(h.pushOn("1/3", 328.8e-6, 3.8e-6)).toBe(false);
+    expect(h.pushOn("1/3", 328.6e-6, 3.8e-6)).toBe(false);
+    expect(assessStability(h.values, h.u).state).toBe("steady");
+    expect(h.pushOn("2/2", 331.5e-6, 3.8e-6)).toBe(true);
+    expect(h.values).toEqual([331.5e-6]);
+    expect(assessStability(h.values, h.u).state).toBe("gathering");
+  });
+
+  it("measure --watch on the X7R tank mix-up keeps one setting, and restarts its trend, saying why, when a refusal changes it", () => {
+    const r = runCli(["measure", "--sim", "x7r-tank-mixup", "--watch", "--count", "12", "--interval-ms", "0", "--json"]);
+    expect(r.status, r.stderr).toBe(0);
+    const lines = r.stdout.trim().split("\n").map((l) => JSON.parse(l));
+    expect(lines).toHaveLength(12);
+    const setting = (l: { settings: { range: { drive_index: number; tank_index: number } } }) => `${l.settings.range.drive_index}/${l.settings.range.tank_index}`;
+    let changes = 0;
+    let sinceRestart: string[] = [];
+    lines.forEach((l, i) => {
+      expect(l.error, `reading ${i + 1}`).toBeUndefined();
+      if (i > 0 && setting(l) !== setting(lines[i - 1])) {
+        changes++;
+        expect(l.trend_restarted, `reading ${i + 1} changed the setting`).toMatch(/^trend restarted: the held setting .* was refused \([A-Z_]+\); ranging again chose/);
+        sinceRestart = [];
+      } else {
+        expect(l.trend_restarted).toBeUndefined();
+      }
+      sinceRestart.push(setting(l));
+      // Every verdict rests on readings of one setting only, and at least three of them.
+      if (l.stability !== "gathering") expect(sinceRestart.length).toBeGreaterThanOrEqual(3);
+      else expect(sinceRestart.length).toBeLessThan(3);
+    });
+    // The setting is held: at most one change in twelve readings (ranging alone hopped between the 1 µF and 100 nF tanks).
+    expect(changes).toBeLessThanOrEqual(1);
   });
 });

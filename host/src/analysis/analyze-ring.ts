@@ -19,8 +19,15 @@ import { correlationInflation, residualCorrelation } from "./residual-correlatio
 import { huberWeight, madSigma, median } from "./robust-stats.ts";
 import { invertSymmetric } from "./small-linear-algebra.ts";
 import { checkInput, MIN_EDGES, type CheckedInput } from "./validate-input.ts";
+import { ringExtent, tailEnd } from "./ring-end.ts";
 import { correctionCovariance, delayEffectSd, edgeDelays, jointTimingStep, rampReach, ringSlopeAt, skewStep, type ComparatorTiming, type LinearFit, type TimingDelays } from "./comparator-timing.ts";
 import { AnalysisError, type RingAnalysis, type RingInput, type Warning } from "./types.ts";
+
+/** Why the edges after the ring's part of a capture were set aside (ring-end.ts). */
+export const REASON_AFTER_RING = "after the ring's end: fired by noise (chatter or noise crossing both thresholds)";
+
+/** ... and of the edges after the ring's envelope had decayed into the noise (ring-end.ts). */
+export const REASON_NOISE_TAIL = "after the ring's envelope came within a few noise sd of the threshold: decided by noise";
 
 /** Huber tuning constant in robust standard deviations. */
 const HUBER_C = 2;
@@ -61,6 +68,24 @@ export interface FitState {
   timing?: TimingState;
   /** Standard deviation of the skew from the joint timing step (fitRing). */
   timingSkewSd?: number;
+  /** Where the capture stopped following the ring (fitRing, ring-end.ts): edges from `end` on
+   *  were left out of everything above. */
+  ringEnd?: RingEnd;
+  /** Edges from this index on came after the ring's envelope had decayed into the noise at the
+   *  farther threshold (fitRing, ring-end.ts tailEnd) and were left out too. */
+  tailEnd?: number;
+  /** Edges in the capture (fitRing): `edges` holds the first tailEnd or ringEnd.end of them. */
+  captured?: number;
+}
+
+/** The capture's edges from `end` (of `edges`) on fired on noise, from time t_s (ring-end.ts). */
+export interface RingEnd {
+  end: number;
+  edges: number;
+  t_s: number;
+  /** Fraction of too-short intervals before `end` and from it on. */
+  rate_before: number;
+  rate_after: number;
 }
 
 /** The comparator-timing terms of a fit (comparator-timing.ts). */
@@ -95,7 +120,11 @@ export function analyzeFit(s: FitState): RingAnalysis {
     if (s.used[k] > 0) continue;
     rejected.push({ index: k, reason: s.reasons[k] ?? "rejected" });
   }
-  const used = s.edges.n - rejected.length;
+  const total = s.captured ?? s.edges.n;
+  for (let k = s.edges.n; k < total; k++) {
+    rejected.push({ index: k, reason: s.ringEnd && k >= s.ringEnd.end ? REASON_AFTER_RING : REASON_NOISE_TAIL });
+  }
+  const used = total - rejected.length;
   const U = {
     l: COVERAGE_K * rq.u.inductance_h, q: COVERAGE_K * rq.u.q, esr: COVERAGE_K * rq.u.esr_ohm, f0: COVERAGE_K * rq.u.f0_hz,
   };
@@ -210,8 +239,56 @@ function countUsed(s: FitState): number {
 
 /** The fitting core of analyzeRing, exposed for diagnostics and tests. */
 export function fitRing(input: RingInput): FitState {
-  const c = checkInput(input);
-  const timing = input.comparator;
+  const part = ringPart(checkInput(input));
+  const { c, tail } = noiseTail(part.c, input.comparator);
+  const s = fitTimed(c, input.comparator);
+  if (part.end) s.ringEnd = part.end;
+  if (tail < part.c.t_s.length) s.tailEnd = tail;
+  s.captured = part.end ? part.end.edges : part.c.t_s.length;
+  return s;
+}
+
+/**
+ * With continuous input noise (RingInput.comparator.noise_bw_hz), the edges past the point where
+ * the ring's envelope comes within a few noise sigma of the farther threshold are decided by the
+ * noise (ring-end.ts, tailEnd): from a first fit, they are left out and the capture is one cut
+ * short. The noise is the larger of the caller's and the fit's (which reads first-passage
+ * scatter, narrower than the noise).
+ */
+function noiseTail(c: CheckedInput, timing: ComparatorTiming | undefined): { c: CheckedInput; tail: number } {
+  const n = c.t_s.length;
+  const none = { c, tail: n };
+  if (!timing || !(timing.noise_bw_hz! > 0)) return none;
+  let first: FitState;
+  try {
+    first = fitCapture(c);
+  } catch {
+    return none;
+  }
+  const sigma = Math.max(timing.noise_v ?? 0, Math.sqrt(first.noise.sigma_v2));
+  const tail = tailEnd(c.t_s, first.p[P_LNA], first.p[P_ALPHA], Math.max(c.vh_v, -c.vl_v), sigma);
+  if (tail >= n || tail < MIN_EDGES) return none;
+  return { c: { ...c, t_s: c.t_s.slice(0, tail), rising: c.rising.slice(0, tail), ring_ended: false }, tail };
+}
+
+/**
+ * The part of a capture that follows its ring (ring-end.ts): edges from the first stretch that
+ * noise fires on are left out, and the capture is then one cut short (not ended on quiet).
+ * Refused when fewer than MIN_EDGES edges come before it.
+ */
+function ringPart(c: CheckedInput): { c: CheckedInput; end: RingEnd | null } {
+  const x = ringExtent(c.t_s, c.rising);
+  const n = c.t_s.length;
+  if (x.end >= n) return { c, end: null };
+  if (x.end < MIN_EDGES) {
+    throw new AnalysisError("NO_RING", `the edges follow the comparator's noise almost from the start (${(100 * x.rate_after).toFixed(0)} % of the intervals are too short for a ring): the hysteresis between the thresholds is too narrow against the input noise; widen it (move the thresholds apart, away from zero), shorten or shield the leads, or raise the drive current`);
+  }
+  const end: RingEnd = { end: x.end, edges: n, t_s: c.t_s[x.end], rate_before: x.rate_before, rate_after: x.rate_after };
+  return { c: { ...c, t_s: c.t_s.slice(0, x.end), rising: c.rising.slice(0, x.end), ring_ended: false }, end };
+}
+
+/** The fit of a capture's ring part, with the comparator's timing terms when they are given. */
+function fitTimed(c: CheckedInput, timing: ComparatorTiming | undefined): FitState {
   if (!timing) {
     // Nothing known about the comparator's timing: the fit is of the thresholds' model alone,
     // and the capture's own evidence of a skew is kept for the COMPARATOR_SKEW diagnostic.
@@ -481,53 +558,97 @@ interface FitSetting {
  * What the rounds of one full fit carry from one round to the next (fitFrom). The per-edge
  * arrays are made once for the fit (the returned FitState keeps `variance` and `used`) or lent
  * by the capture's workspace (ws.roundScratch: the rest, contents undefined between fits).
+ * Made at the start: residual forms and round-0 variances at the start's parameters.
  */
-interface Rounds extends FitSetting {
-  n: number;
+class Rounds implements FitSetting {
+  readonly c: CheckedInput;
+  readonly e: EdgeSet;
+  readonly reasons: (string | null)[];
+  readonly ws: FitWorkspace;
+  readonly limits: FitLimits;
+  readonly tickVar_s2: number;
+  readonly round0Subset: Float64Array | null;
+  readonly n: number;
   /** The model's parameters (edge-model.ts). */
   p: Float64Array;
   /** Residual variance per edge, V^2, and timing variance per edge, s^2 (noise-model.ts). */
-  variance: Float64Array;
-  timingVar_s2: Float64Array;
+  readonly variance: Float64Array;
+  readonly timingVar_s2: Float64Array;
   /** 1 where reweight set the edge aside as an outlier. */
-  outlier: Uint8Array;
+  readonly outlier: Uint8Array;
   /** 1 where the edge takes part in the fit: indexed, and not an outlier. */
-  used: Float64Array;
+  readonly used: Float64Array;
   /** Huber weight per edge (reweight). */
-  robust: Float64Array;
+  readonly robust: Float64Array;
   /** Fit weight per edge: robust / variance where used, else 0. */
-  w: Float64Array;
+  readonly w: Float64Array;
   /** 1 where the edge has a half-cycle index. */
-  assigned: Float64Array;
+  readonly assigned: Float64Array;
   /** Each edge's leverage in the round's fit (0 where not used). */
-  leverage: Float64Array;
+  readonly leverage: Float64Array;
   /** The clean crossings (used, phase form) the noise is estimated from when there are enough. */
-  noiseMask: Float64Array;
+  readonly noiseMask: Float64Array;
   /** Standardised residuals of the assigned edges; those of the used edges packed in zUsed. */
-  z: Float64Array;
-  zUsed: Float64Array;
+  readonly z: Float64Array;
+  readonly zUsed: Float64Array;
   /** Scratch: medians, the residual sd for re-indexing, the scales and forms before reform. */
-  zWork: Float64Array;
-  sd: Float64Array;
-  oldScale: Float64Array;
-  oldForm: Uint8Array;
-  noise: NoiseEstimate | null;
+  readonly zWork: Float64Array;
+  readonly sd: Float64Array;
+  readonly oldScale: Float64Array;
+  readonly oldForm: Uint8Array;
+  noise: NoiseEstimate | null = null;
   /** Robust standard deviation of the standardised residuals (reweight). */
-  zScale: number;
+  zScale = 1;
   /** ws.r, ws.jac, ws.slope and ws.curvature hold the model at p with the current forms and
    *  timing variances: then neither a round's fit nor its checks evaluate the model again. */
-  cached: boolean;
+  cached = false;
   /** Where the edges were last re-indexed (null: not yet), and what that re-indexing left to show
    *  that one at a nearby model would change nothing (model-bookkeeping.ts indicesHold). */
-  pIndexed: Float64Array | null;
-  margin: IndexMargin;
+  pIndexed: Float64Array | null = null;
+  readonly margin: IndexMargin = { margin_rad: 0, max_u: 0, max_t_s: 0, duplicates: true };
   /** How often the forms were chosen again once settled (staleForms in fitFrom). */
-  reforms: number;
+  reforms = 0;
+
+  constructor(s: FitSetting, guess: InitialGuess) {
+    const { c, e, ws } = s;
+    this.c = c;
+    this.e = e;
+    this.reasons = s.reasons;
+    this.ws = ws;
+    this.limits = s.limits;
+    this.tickVar_s2 = s.tickVar_s2;
+    this.round0Subset = s.round0Subset;
+    const n = c.t_s.length;
+    this.n = n;
+    this.p = guess.p;
+    // Round 0 fits `round0Subset` of a long capture (null: all edges), and the forms and every
+    // variance are set anew after it: the start's forms and variances are needed on the subset
+    // alone (variance Infinity, weight zero, elsewhere).
+    chooseResidualForms(guess.p, e, c.vh_v, c.vl_v, s.round0Subset);
+    this.variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, s.tickVar_s2), ws, s.round0Subset);
+    const [robust, assigned, w, leverage, sd, z, zUsed, noiseMask, zWork, oldScale, timingVar_s2] = ws.roundScratch(11);
+    robust.fill(1);
+    timingVar_s2.fill(s.tickVar_s2);
+    this.timingVar_s2 = timingVar_s2;
+    this.outlier = new Uint8Array(n);
+    this.used = new Float64Array(n);
+    this.robust = robust;
+    this.w = w;
+    this.assigned = assigned;
+    this.leverage = leverage;
+    this.noiseMask = noiseMask;
+    this.z = z;
+    this.zUsed = zUsed;
+    this.zWork = zWork;
+    this.sd = sd;
+    this.oldScale = oldScale;
+    this.oldForm = new Uint8Array(n);
+  }
 }
 
 /** One full fit from one start: rounds of fit, re-index, noise, reweight until settled. */
 function fitFrom(setting: FitSetting, guess: InitialGuess, reference?: FitState): FitState | null {
-  const f = startRounds(setting, guess);
+  const f = new Rounds(setting, guess);
   const { c, ws } = f;
   let fit!: EdgeFitResult;
   let staleForms = false;
@@ -597,25 +718,6 @@ function fitFrom(setting: FitSetting, guess: InitialGuess, reference?: FitState)
   return finishRounds(f, fit);
 }
 
-/** The start of a full fit: residual forms and round-0 variances at the start's parameters. */
-function startRounds(s: FitSetting, guess: InitialGuess): Rounds {
-  const { c, e, ws } = s;
-  const n = c.t_s.length;
-  // Round 0 fits `round0Subset` of a long capture (null: all edges), and the forms and every
-  // variance are set anew after it: the start's forms and variances are needed on the subset
-  // alone (variance Infinity, weight zero, elsewhere).
-  chooseResidualForms(guess.p, e, c.vh_v, c.vl_v, s.round0Subset);
-  const variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, s.tickVar_s2), ws, s.round0Subset);
-  const [robust, assigned, w, leverage, sd, z, zUsed, noiseMask, zWork, oldScale, timingVar_s2] = ws.roundScratch(11);
-  robust.fill(1);
-  timingVar_s2.fill(s.tickVar_s2);
-  return {
-    ...s, n, p: guess.p, variance, timingVar_s2, outlier: new Uint8Array(n), used: new Float64Array(n), robust, w, assigned,
-    leverage, noiseMask, z, zUsed, zWork, sd, oldScale, oldForm: new Uint8Array(n), noise: null, zScale: 1, cached: false,
-    pIndexed: null, margin: { margin_rad: 0, max_u: 0, max_t_s: 0, duplicates: true }, reforms: 0,
-  };
-}
-
 /**
  * Chooses the residual forms again at p. A phase-form residual is S_k times a phase error, so
  * its variance goes with S_k^2: an edge that keeps the phase form under a new scale keeps its
@@ -624,11 +726,11 @@ function startRounds(s: FitSetting, guess: InitialGuess): Rounds {
  * `amp`: the model envelope at p per edge, when the re-indexing at p has just computed it.
  */
 function reform(f: Rounds, amp: Float64Array | null): void {
-  const { e, variance, oldScale, oldForm } = f;
+  const { e, variance, oldScale, oldForm, n } = f;
   oldScale.set(e.scale_v);
   oldForm.set(e.form);
   chooseResidualForms(f.p, e, f.c.vh_v, f.c.vl_v, null, amp);
-  for (let k = 0; k < f.n; k++) {
+  for (let k = 0; k < n; k++) {
     if (oldForm[k] !== 1 || e.form[k] !== 1) continue;
     const ratio = e.scale_v[k] / oldScale[k];
     variance[k] *= ratio * ratio;
@@ -654,7 +756,8 @@ function reindex(f: Rounds, round: number): number {
     let sd: Float64Array | null = null;
     if (!(round === 0 && f.round0Subset)) {
       sd = f.sd;
-      for (let k = 0; k < f.n; k++) sd[k] = Math.sqrt(f.variance[k]);
+      const variance = f.variance;
+      for (let k = 0; k < sd.length; k++) sd[k] = Math.sqrt(variance[k]);
     }
     // (z is free until the variances are updated: it takes the envelope for reform.)
     moved = reassignHalfCycles(f.p, f.e, c.vh_v, c.vl_v, sd, f.reasons, f.margin, f.z);
@@ -671,8 +774,8 @@ function reindex(f: Rounds, round: number): number {
 
 /** Each edge's part in the next fit: used (indexed, not an outlier) and its weight. */
 function weigh(f: Rounds): void {
-  const { e, outlier, robust, variance, used, w } = f;
-  for (let k = 0; k < f.n; k++) {
+  const { e, outlier, robust, variance, used, w, n } = f;
+  for (let k = 0; k < n; k++) {
     used[k] = e.m[k] === e.m[k] && !outlier[k] ? 1 : 0;
     w[k] = used[k] > 0 ? robust[k] / variance[k] : 0;
   }
@@ -685,13 +788,13 @@ function weigh(f: Rounds): void {
  * edges are indexed and how many are clean.
  */
 function weighAndCount(f: Rounds, cov: Float64Array): { assigned: number; clean: number } {
-  const { e, outlier, robust, variance, used, w, assigned, noiseMask, leverage } = f;
+  const { e, outlier, robust, variance, used, w, assigned, noiseMask, leverage, n } = f;
   const jac = f.ws.jac;
   const c00 = cov[0], c01 = cov[1], c02 = cov[2], c03 = cov[3], c11 = cov[5], c12 = cov[6], c13 = cov[7];
   const c22 = cov[10], c23 = cov[11], c33 = cov[15];
   let nAssigned = 0;
   let clean = 0;
-  for (let k = 0; k < f.n; k++) {
+  for (let k = 0; k < n; k++) {
     const indexed = e.m[k] === e.m[k];
     const u = indexed && !outlier[k] ? 1 : 0;
     used[k] = u;
@@ -725,11 +828,11 @@ function weighAndCount(f: Rounds, cov: Float64Array): { assigned: number; clean:
  * Returns how many edges changed side; the scale goes into f.zScale.
  */
 function reweight(f: Rounds, usedCount: number, reject: boolean): number {
-  const { e, z, assigned, robust, outlier, reasons, used, w, variance } = f;
+  const { e, z, assigned, robust, outlier, reasons, used, w, variance, n } = f;
   const zScale = Math.max(0.5, madSigma(f.zUsed, usedCount, f.zWork));
   f.zScale = zScale;
   let flipped = 0;
-  for (let k = 0; k < f.n; k++) {
+  for (let k = 0; k < n; k++) {
     if (assigned[k] > 0) {
       const zk = z[k] / zScale;
       robust[k] = huberWeight(zk, HUBER_C);
