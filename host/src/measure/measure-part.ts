@@ -148,7 +148,7 @@ async function settle(client: DeviceClient, opts: MeasureOptions, progress: Read
     const reading = await readOnce(client, settings, opts, progress, "fixed", 0.5);
     if (asked === undefined) return reading;
     const advice = orderForFrequency(adviseSettings(profile, est, limits, opts.calibration?.tanks), asked);
-    return { ...reading, test_frequency: describeFrequencyChoice(profile, advice, asked, tank, reading.analysis.f0_hz, undefined, "the drive and tank were fixed for this reading") };
+    return { ...reading, test_frequency: describeFrequencyChoice(profile, advice, asked, tank, reading.analysis.f0_hz, { untried: "the drive and tank were fixed for this reading" }) };
   } catch (e) {
     if (!(e instanceof MeasureError)) throw e;
     const why = explainFailure(e);
