@@ -8,7 +8,7 @@
 // The firmware reads nothing else about the hardware. Values are nominal: the host's calibration
 // measures the real ones.
 
-/** Capture timer tick rate. */
+/** Capture timer tick rate: 15.6 ns resolution, a 2^30-tick window of 16.8 s. */
 export const TICK_HZ: i32 = 64000000;
 export const TICKS_PER_US: i32 = 64;
 export const TICKS_PER_MS: i32 = 64000;
@@ -30,11 +30,19 @@ export const CLAMP_MV: i32 = 36000;
  * pulses"). The firmware tracks that mean as a first-order thermal model, the heat in the resistor
  * decaying with the time constant below.
  *
- * Where the values come from:
- *   0: 10 ohm, ratings: the 1 W pulse-rated part in docs/hardware.md; time constant: energy rating over power rating (bench practice)
- *   1: 100 ohm, ratings: the 0.5 W part in docs/hardware.md; time constant: energy rating over power rating (bench practice)
- *   2: 1000 ohm, ratings: the 0.25 W part in docs/hardware.md; time constant: energy rating over power rating (bench practice)
- *   3: 10000 ohm, ratings: the 0.25 W part in docs/hardware.md; time constant: energy rating over power rating (bench practice)
+ * A time constant is seldom a datasheet figure. The rule of bench practice is the single-pulse
+ * rating over the continuous one: the time constant of a one-node model that meets both ratings
+ * at once (from cold it takes one rated pulse; pulse after pulse it holds the continuous rating).
+ * A longer one would let a burst of pulses count as one long pulse beyond the single-pulse rating.
+ * Where this board's values come from:
+ *   0: 10 ohm: ratings: the 1 W pulse-rated part in docs/hardware.md; time constant: energy rating
+ *   over power rating (bench practice)
+ *   1: 100 ohm: ratings: the 0.5 W part in docs/hardware.md; time constant: energy rating over
+ *   power rating (bench practice)
+ *   2: 1000 ohm: ratings: the 0.25 W part in docs/hardware.md; time constant: energy rating over
+ *   power rating (bench practice)
+ *   3: 10000 ohm: ratings: the 0.25 W part in docs/hardware.md; time constant: energy rating over
+ *   power rating (bench practice)
  */
 export const DRIVE_COUNT: i32 = 4;
 export const DRIVE_MILLIOHM: StaticArray<i32> = [10000, 100000, 1000000, 10000000];
@@ -48,9 +56,27 @@ export const MAX_CHARGE_US: i32 = 100000;
 export const TANK_COUNT: i32 = 4;
 export const TANK_PF: StaticArray<i32> = [1000, 10000, 100000, 1000000];
 
-/** Comparator thresholds referred to the ring voltage, in microvolts. */
+/** Comparator thresholds referred to the ring voltage, in microvolts (deliberately offset). */
 export const THRESHOLD_RISING_UV: i32 = 35000;
 export const THRESHOLD_FALLING_UV: i32 = -5000;
+
+/**
+ * Comparator timing beyond the thresholds, referred to the ring like them (docs/hardware.md,
+ * "Comparator timing in the profile"); the host's analysis corrects edge times with them
+ * (docs/method.md §2a). Nominal design values of the board:
+ * - input noise: rms and first-order bandwidth of the noise the comparator decides on (its own
+ *   input noise and the divider's, times the 4:1 divider);
+ * - propagation delays of a low->high and a high->low output at large overdrive, and the standard
+ *   uncertainty of their difference (the skew; calibration measures it);
+ * - overdrive charge: the integrated overdrive, in femtovolt-seconds, after which the input stage
+ *   switches (a ramp of slope S is sqrt(2 q / S) late).
+ */
+export const COMPARATOR_NOISE_UV: i32 = 600;
+export const COMPARATOR_NOISE_BW_KHZ: i32 = 2000;
+export const COMPARATOR_DELAY_RISE_PS: i32 = 45000;
+export const COMPARATOR_DELAY_FALL_PS: i32 = 45000;
+export const COMPARATOR_SKEW_U_PS: i32 = 20000;
+export const COMPARATOR_OVERDRIVE_FVS: i32 = 2000;
 
 /** Edge buffer size, timing limits. */
 export const BUFFER_EDGES: i32 = 8192;

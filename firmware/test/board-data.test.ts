@@ -35,6 +35,7 @@ describe("board files", () => {
     expect(edit(() => {})).toEqual([]);
     expect(edit((b) => (b.tanks[0].nominal_f = 1.0005e-9))).toEqual([expect.stringMatching(/^\/tanks\/0\/nominal_f .*whole number/)]);
     expect(edit((b) => (b.tick_hz = 64_500_000))).toEqual([expect.stringMatching(/^\/tick_hz /)]);
+    expect(edit((b) => (b.comparator.delay_rise_s = 45.0005e-9))).toEqual([expect.stringMatching(/^\/comparator\/delay_rise_s .*whole number of ps/)]);
     expect(edit((b) => (b.thresholds_v = [-0.005, 0.035]))).toEqual([expect.stringMatching(/^\/thresholds_v .*above/)]);
     expect(edit((b) => delete (b as Partial<BoardData>).drives)).toEqual([expect.stringMatching(/drives/)]);
     expect(edit((b) => (b.drives[1].ohm = "100" as unknown as number))).toEqual([expect.stringMatching(/^\/drives\/1\/ohm /)]);

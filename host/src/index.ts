@@ -18,6 +18,8 @@ export type { Transport } from "./transport/transport.ts";
 export { listSerialPorts } from "./transport/serial-transport.ts";
 export type { SerialPortInfo } from "./transport/serial-transport.ts";
 export { measurePart, analyzeCapture, judgeCapture, MeasureError, PartFaultError } from "./measure/measure-part.ts";
+export { repeatReadings } from "./measure/repeat-readings.ts";
+export type { RepeatOptions, RepeatOutcome } from "./measure/repeat-readings.ts";
 export type { Reading, MeasureOptions } from "./measure/measure-part.ts";
 export type { FrequencyChoice } from "./ranging/choose-setting.ts";
 export type { MeasureEvent, MeasurePhase, PulseEvent, StepEvent, CautionEvent, DoneEvent, SettingInfo } from "./measure/events.ts";
