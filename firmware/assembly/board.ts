@@ -51,6 +51,24 @@ export const TANK_PF: StaticArray<i32> = [1000, 10000, 100000, 1000000];
 export const THRESHOLD_RISING_UV: i32 = 35000;
 export const THRESHOLD_FALLING_UV: i32 = -5000;
 
+/**
+ * Comparator timing beyond the thresholds, referred to the ring like them (docs/hardware.md,
+ * "Comparator timing in the profile"); the host's analysis corrects edge times with them
+ * (docs/method.md §2a). Nominal design values of the reference board:
+ * - input noise: rms and first-order bandwidth of the noise the comparator decides on (its own
+ *   input noise and the divider's, times the 4:1 divider);
+ * - propagation delays of a low->high and a high->low output at large overdrive, and the standard
+ *   uncertainty of their difference (the skew; calibration measures it);
+ * - overdrive charge: the integrated overdrive, in femtovolt-seconds, after which the input stage
+ *   switches (a ramp of slope S is sqrt(2 q / S) late).
+ */
+export const COMPARATOR_NOISE_UV: i32 = 600;
+export const COMPARATOR_NOISE_BW_KHZ: i32 = 2000;
+export const COMPARATOR_DELAY_RISE_PS: i32 = 45000;
+export const COMPARATOR_DELAY_FALL_PS: i32 = 45000;
+export const COMPARATOR_SKEW_U_PS: i32 = 20000;
+export const COMPARATOR_OVERDRIVE_FVS: i32 = 2000;
+
 /** Edge buffer size, timing limits. */
 export const BUFFER_EDGES: i32 = 8192;
 export const MAX_TIMEOUT_MS: i32 = 5000;

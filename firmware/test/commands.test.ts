@@ -4,7 +4,7 @@ import { describe, expect, it } from "vitest";
 import { ERR_ABORTED, ERR_ARGUMENT, ERR_BUSY, ERR_CHARGE_LIMIT, ERR_CRC, ERR_LINE_TOO_LONG, ERR_REST, ERR_RINGING, ERR_SYNTAX, ERR_UNKNOWN_COMMAND, PROTOCOL_VERSION, crc16Range } from "../../shared-protocol/src/index.ts";
 import { encodeCommand } from "../../host/src/device/frames.ts";
 import { parseProfile } from "../../host/src/device/profile.ts";
-import { nominalBoard } from "../../host/src/sim/board-model.ts";
+import { nominalBoard, referenceBoard } from "../../host/src/sim/board-model.ts";
 import { ScriptedPort } from "./scripted-port.ts";
 import { SimLink, show } from "./sim-link.ts";
 
@@ -33,6 +33,12 @@ describe("firmware commands", () => {
     expect(p.thresholds_v).toEqual([b.comparator.rising_v, b.comparator.falling_v]);
     expect(p.supply_v).toBe(b.supply_v);
     expect(p.clamp_v).toBe(b.clamp_v);
+    // The comparator's timing: the reference board's design values (the simulated unit sits at them).
+    const c = referenceBoard().comparator;
+    expect(p.comparator).toEqual({
+      noise_v: c.noise_v, noise_bw_hz: c.noise_bw_hz, delay_rise_s: c.delay_rise_s, delay_fall_s: c.delay_fall_s,
+      skew_u_s: 20e-9, overdrive_v_s: c.overdrive_v_s,
+    });
   });
 
   it.each([
