@@ -6,6 +6,7 @@ import {
   ERR_REST, ERR_RINGING, ERR_UNKNOWN_COMMAND, PROTOCOL_VERSION,
 } from "../../shared-protocol/src/constants.ts";
 import { FrameReader } from "../../shared-protocol/src/frame-reader.ts";
+import * as version from "./version.ts"; // before board.ts, so the two strings lead the data segment
 import * as board from "./board.ts";
 import * as capture from "./capture.ts";
 import { counters } from "./counters.ts";
@@ -64,8 +65,8 @@ function reportTicks(): void {
 function identify(): void {
   if (reader.count != 1) return sendError(ERR_ARGUMENT, "ID");
   out.begin("ID");
-  out.putText(board.PRODUCT);
-  out.putText(board.FIRMWARE_VERSION);
+  out.putText(version.PRODUCT);
+  out.putText(version.FIRMWARE_VERSION);
   out.putInt(PROTOCOL_VERSION);
   const id: i32 = halDeviceId();
   out.putSeparator();

@@ -270,7 +270,7 @@ export function buildQemuF405(core: QemuCore): string {
   const out = join(NATIVE_DIR, `qemu-f405-${core}.elf`);
   gcc("arm-none-eabi-gcc", [
     ...QEMU_CORES[core].flags, "-Os", "-DNDEBUG", `-DQEMU_PORT_CORE=${QEMU_CORES[core].id}`, "-Wall", "-ffunction-sections", "-fdata-sections",
-    ...generatedFlags(), ...INCLUDES(gen),
+    ...generatedFlags(), ...INCLUDES(gen), "-I", join(PORTS, "common"),
     "-nostartfiles", "--specs=nano.specs", "--specs=nosys.specs", "-Wl,--gc-sections", "-T", join(dir, "qemu-f405.ld"),
     "-o", out,
     join(gen, "henrytick.c"), join(PORTS, "runtime", "henrytick-rt.c"), join(dir, "port-qemu-f405.c"), join(dir, "startup.c"),

@@ -3,8 +3,6 @@
 import { describe, expect, it } from "vitest";
 import { ERR_ABORTED, ERR_ARGUMENT, ERR_BUSY, ERR_CHARGE_LIMIT, ERR_CRC, ERR_LINE_TOO_LONG, ERR_REST, ERR_RINGING, ERR_SYNTAX, ERR_UNKNOWN_COMMAND, PROTOCOL_VERSION, crc16Range } from "../../shared-protocol/src/index.ts";
 import { encodeCommand } from "../../host/src/device/frames.ts";
-import { parseProfile } from "../../host/src/device/profile.ts";
-import { nominalBoard, referenceBoard } from "../../host/src/sim/board-model.ts";
 import { ScriptedPort } from "./scripted-port.ts";
 import { SimLink, show } from "./sim-link.ts";
 
@@ -19,26 +17,6 @@ describe("firmware commands", () => {
   it("identifies itself with product, version, protocol and device id", () => {
     const link = new SimLink();
     expect(link.send("ID").map(show)).toEqual([`ID henrytick 0.2.0 ${PROTOCOL_VERSION} HT-5EED0001`, "OK ID"]);
-  });
-
-  it("reports a profile whose nominal values match the simulated board", () => {
-    const link = new SimLink();
-    const frames = link.send("PF");
-    expect(show(frames[frames.length - 1])).toBe("OK PF");
-    const p = parseProfile(frames.slice(0, -1));
-    const b = nominalBoard();
-    expect(p.tick_hz).toBe(b.timer.tick_hz);
-    expect(p.drives.map((d) => d.ohm)).toEqual(b.drive_ohm);
-    p.tanks.forEach((t, i) => expect(t.nominal_f).toBeCloseTo(b.tank_f[i], 20));
-    expect(p.thresholds_v).toEqual([b.comparator.rising_v, b.comparator.falling_v]);
-    expect(p.supply_v).toBe(b.supply_v);
-    expect(p.clamp_v).toBe(b.clamp_v);
-    // The comparator's timing: the reference board's design values (the simulated unit sits at them).
-    const c = referenceBoard().comparator;
-    expect(p.comparator).toEqual({
-      noise_v: c.noise_v, noise_bw_hz: c.noise_bw_hz, delay_rise_s: c.delay_rise_s, delay_fall_s: c.delay_fall_s,
-      skew_u_s: 20e-9, overdrive_v_s: c.overdrive_v_s,
-    });
   });
 
   it.each([

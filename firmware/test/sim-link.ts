@@ -10,7 +10,9 @@ export class SimLink {
   readonly sim: SimTester;
   private pending = "";
   constructor(opts: Partial<SimTesterOptions> = {}) {
-    this.sim = new SimTester({ part: opts.part === undefined ? { inductance_h: 330e-6, series_ohm: 0.4, self_capacitance_f: 0 } : opts.part, seed: opts.seed ?? 1, firmware: opts.firmware, raw_capture: opts.raw_capture });
+    this.sim = new SimTester({
+      part: opts.part === undefined ? { inductance_h: 330e-6, series_ohm: 0.4, self_capacitance_f: 0 } : opts.part, seed: opts.seed ?? 1, board: opts.board, firmware: opts.firmware, raw_capture: opts.raw_capture,
+    });
     this.sim.onOutput((b) => {
       this.pending += new TextDecoder().decode(b);
     });

@@ -20,6 +20,7 @@ export const WARNING_MEANINGS = {
   POOR_FIT: "the residuals are correlated: the ring is not a clean damped sine; the uncertainty is widened",
   FREQUENCY_DRIFT: "the ring frequency changes from start to end (voltage-dependent tank or a core near saturation)",
   COMPARATOR_SKEW: "rising and falling edges sit apart by a constant time: the comparator's rise and fall delays differ from what the reading assumed",
+  THRESHOLD_IN_NOISE: "edges after a point fired on the comparator's noise (chatter at the crossings, or noise crossing both thresholds after the ring died); only the ring before them was used",
   Q_UNCERTAIN: "Q is determined only loosely",
   AMBIGUOUS_DECAY: "the edges fit two different decays almost equally well; the uncertainties cover both",
   FEW_EDGES_BEST_SETTING: "automatic ranging found no setting with enough edges and kept the best one",
@@ -103,6 +104,8 @@ export const CALIBRATION_ERROR_MEANINGS = {
   TIMEBASE_UNSUPPORTED: "the tester cannot report its tick counter",
   TWO_TANKS_UNAVAILABLE: "no second tank suits the part for the self-capacitance method",
   CALIBRATION_SHIFT: "a new calibration moves a tank more than chance and tolerance explain, and was not confirmed",
+  REFERENCE_MISMATCH: "the reference's first reading disagrees with the value entered for it by more than any tank tolerance explains",
+  CALIBRATION_WORSE: "a new value is less certain than the stored one and was not confirmed; the stored one stays in use",
 } as const;
 
 export type CalibrationErrorCode = keyof typeof CALIBRATION_ERROR_MEANINGS;
@@ -177,6 +180,7 @@ export const VALUE_ERROR_MEANINGS = {
   WRONG_UNIT: "a value is written in another unit than the option takes (10uF for an inductance)",
   AMBIGUOUS_VALUE: "a bare number where the prefix decides the value (10 for an inductance)",
   OUT_OF_RANGE: "a value lies outside what it may be (the measurable range, a tolerance wider than its nominal)",
+  TOLERANCE_CONFLICT: "a nominal's tolerance letter and the tolerance given beside it differ (10uH F with 5%)",
 } as const;
 
 /** Every error code, by group, for the documentation table. */

@@ -1167,7 +1167,7 @@ return errors === 0;
 validate20.evaluated = {"props":{"format":true,"version":true,"tick_hz":true,"edges":true,"tank_c_f":true,"tank_c_u_f":true,"thresholds_v":true,"drive":true,"range":true,"device":true,"meta":true,"calibration":true,"comparator":true,"reading_warnings":true},"dynamicProps":false,"dynamicItems":false};
 
 export const result = validate21;
-const schema38 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:result:1","title":"henrytick reading result","description":"What `henrytick measure --json` and `henrytick analyze FILE --json` print for one reading (docs/capture-format.md). Units are SI and in the key names; uncertainties named _u_ are expanded (coverage_factor 2). The settings reuse the capture schema's definitions.","type":"object","required":["f0_hz","f0_u_hz","fd_hz","inductance_h","inductance_u_h","coverage_factor","q","q_u","esr_ohm","esr_u_ohm","ring_amplitude_v","edges_used","edges_rejected","warnings","settings"],"properties":{"suspect":{"$ref":"#/$defs/coded","description":"present only for a reading kept on request although it shows a part fault: not a verified result"},"f0_hz":{"type":"number","exclusiveMinimum":0,"description":"undamped resonance"},"f0_u_hz":{"type":"number","minimum":0},"fd_hz":{"type":"number","exclusiveMinimum":0,"description":"damped ring frequency"},"inductance_h":{"type":"number","exclusiveMinimum":0},"inductance_u_h":{"type":"number","minimum":0},"coverage_factor":{"const":2},"q":{"type":"number","exclusiveMinimum":0},"q_u":{"type":"number","minimum":0},"esr_ohm":{"type":"number","minimum":0},"esr_u_ohm":{"type":"number","minimum":0},"ring_amplitude_v":{"type":"number","minimum":0},"edges_used":{"type":"integer","minimum":0},"edges_rejected":{"type":"integer","minimum":0},"warnings":{"type":"array","items":{"$ref":"#/$defs/coded"}},"settings":{"type":"object","required":["tick_hz","tank_c_f","thresholds_v"],"properties":{"tick_hz":{"$ref":"urn:henrytick:schema:capture:1#/properties/tick_hz"},"tank_c_f":{"$ref":"urn:henrytick:schema:capture:1#/properties/tank_c_f"},"tank_c_u_f":{"$ref":"urn:henrytick:schema:capture:1#/properties/tank_c_u_f"},"thresholds_v":{"$ref":"urn:henrytick:schema:capture:1#/properties/thresholds_v"},"drive":{"$ref":"urn:henrytick:schema:capture:1#/$defs/drive"},"range":{"$ref":"urn:henrytick:schema:capture:1#/$defs/range"},"calibration":{"$ref":"urn:henrytick:schema:capture:1#/$defs/calibration"},"comparator":{"$ref":"urn:henrytick:schema:capture:1#/$defs/comparator"}}},"device":{"$ref":"urn:henrytick:schema:capture:1#/$defs/device"},"label":{"type":"string"}},"$defs":{"coded":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code such as NO_RING (docs/library.md lists them)"},"message":{"type":"string"}}}}};
+const schema38 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:result:1","title":"henrytick reading result","description":"What `henrytick measure --json` and `henrytick analyze FILE --json` print for one reading (docs/capture-format.md). Units are SI and in the key names; uncertainties named _u_ are expanded (coverage_factor 2). The settings reuse the capture schema's definitions.","type":"object","required":["f0_hz","f0_u_hz","fd_hz","inductance_h","inductance_u_h","coverage_factor","q","q_u","esr_ohm","esr_u_ohm","ring_amplitude_v","edges_used","edges_rejected","warnings","settings"],"properties":{"suspect":{"$ref":"#/$defs/coded","description":"present only for a reading kept on request although it shows a part fault: not a verified result"},"f0_hz":{"type":"number","exclusiveMinimum":0,"description":"undamped resonance"},"f0_u_hz":{"type":"number","minimum":0},"fd_hz":{"type":"number","exclusiveMinimum":0,"description":"damped ring frequency"},"inductance_h":{"type":"number","exclusiveMinimum":0},"inductance_u_h":{"type":"number","minimum":0},"coverage_factor":{"const":2},"q":{"type":"number","exclusiveMinimum":0},"q_u":{"type":"number","minimum":0},"esr_ohm":{"type":"number","minimum":0},"esr_u_ohm":{"type":"number","minimum":0},"ring_amplitude_v":{"type":"number","minimum":0},"edges_used":{"type":"integer","minimum":0},"edges_rejected":{"type":"integer","minimum":0},"warnings":{"type":"array","items":{"$ref":"#/$defs/coded"}},"settings":{"type":"object","required":["tick_hz","tank_c_f","thresholds_v"],"properties":{"tick_hz":{"$ref":"urn:henrytick:schema:capture:1#/properties/tick_hz"},"tank_c_f":{"$ref":"urn:henrytick:schema:capture:1#/properties/tank_c_f"},"tank_c_u_f":{"$ref":"urn:henrytick:schema:capture:1#/properties/tank_c_u_f"},"thresholds_v":{"$ref":"urn:henrytick:schema:capture:1#/properties/thresholds_v"},"drive":{"$ref":"urn:henrytick:schema:capture:1#/$defs/drive"},"range":{"$ref":"urn:henrytick:schema:capture:1#/$defs/range"},"calibration":{"$ref":"urn:henrytick:schema:capture:1#/$defs/calibration"},"comparator":{"$ref":"urn:henrytick:schema:capture:1#/$defs/comparator"}}},"device":{"$ref":"urn:henrytick:schema:capture:1#/$defs/device"},"label":{"type":"string"},"test_frequency":{"type":"object","description":"present only when a test frequency was asked for (measure --freq, test_frequency_hz): how near the reading came","required":["asked_hz","rang_hz","deviation_rel","tank_index","nearest","nearer_tanks","note"],"properties":{"asked_hz":{"type":"number","exclusiveMinimum":0},"rang_hz":{"type":"number","exclusiveMinimum":0,"description":"the reading's f0"},"deviation_rel":{"type":"number","description":"(rang_hz - asked_hz) / asked_hz"},"tank_index":{"type":"integer","minimum":0},"nearest":{"type":"boolean","description":"no tank of the tester was predicted to ring nearer"},"nearer_tanks":{"type":"array","description":"nearer tanks not used, each with the reason","items":{"type":"object","required":["tank_index","predicted_hz","why"],"properties":{"tank_index":{"type":"integer","minimum":0},"predicted_hz":{"type":"number","exclusiveMinimum":0},"why":{"type":"string"}}}},"note":{"type":"string"}}}},"$defs":{"coded":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code such as NO_RING (docs/library.md lists them)"},"message":{"type":"string"}}}}};
 const schema39 = {"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code such as NO_RING (docs/library.md lists them)"},"message":{"type":"string"}}};
 const schema41 = {"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"};
 const schema42 = {"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"};
@@ -2500,6 +2500,236 @@ var valid0 = _errs138 === errors;
 else {
 var valid0 = true;
 }
+if(valid0){
+if(data.test_frequency !== undefined){
+let data65 = data.test_frequency;
+const _errs140 = errors;
+if(errors === _errs140){
+if(data65 && typeof data65 == "object" && !Array.isArray(data65)){
+let missing9;
+if((((((((data65.asked_hz === undefined) && (missing9 = "asked_hz")) || ((data65.rang_hz === undefined) && (missing9 = "rang_hz"))) || ((data65.deviation_rel === undefined) && (missing9 = "deviation_rel"))) || ((data65.tank_index === undefined) && (missing9 = "tank_index"))) || ((data65.nearest === undefined) && (missing9 = "nearest"))) || ((data65.nearer_tanks === undefined) && (missing9 = "nearer_tanks"))) || ((data65.note === undefined) && (missing9 = "note"))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency",schemaPath:"#/properties/test_frequency/required",keyword:"required",params:{missingProperty: missing9},message:"must have required property '"+missing9+"'",schema:schema38.properties.test_frequency.required,parentSchema:schema38.properties.test_frequency,data:data65}];
+return false;
+}
+else {
+if(data65.asked_hz !== undefined){
+let data66 = data65.asked_hz;
+const _errs142 = errors;
+if(errors === _errs142){
+if((typeof data66 == "number") && (isFinite(data66))){
+if(data66 <= 0 || isNaN(data66)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/asked_hz",schemaPath:"#/properties/test_frequency/properties/asked_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.asked_hz,data:data66}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/test_frequency/asked_hz",schemaPath:"#/properties/test_frequency/properties/asked_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.test_frequency.properties.asked_hz.type,parentSchema:schema38.properties.test_frequency.properties.asked_hz,data:data66}];
+return false;
+}
+}
+var valid22 = _errs142 === errors;
+}
+else {
+var valid22 = true;
+}
+if(valid22){
+if(data65.rang_hz !== undefined){
+let data67 = data65.rang_hz;
+const _errs144 = errors;
+if(errors === _errs144){
+if((typeof data67 == "number") && (isFinite(data67))){
+if(data67 <= 0 || isNaN(data67)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/rang_hz",schemaPath:"#/properties/test_frequency/properties/rang_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.rang_hz,data:data67}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/test_frequency/rang_hz",schemaPath:"#/properties/test_frequency/properties/rang_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.test_frequency.properties.rang_hz.type,parentSchema:schema38.properties.test_frequency.properties.rang_hz,data:data67}];
+return false;
+}
+}
+var valid22 = _errs144 === errors;
+}
+else {
+var valid22 = true;
+}
+if(valid22){
+if(data65.deviation_rel !== undefined){
+let data68 = data65.deviation_rel;
+const _errs146 = errors;
+if(!((typeof data68 == "number") && (isFinite(data68)))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/deviation_rel",schemaPath:"#/properties/test_frequency/properties/deviation_rel/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.test_frequency.properties.deviation_rel.type,parentSchema:schema38.properties.test_frequency.properties.deviation_rel,data:data68}];
+return false;
+}
+var valid22 = _errs146 === errors;
+}
+else {
+var valid22 = true;
+}
+if(valid22){
+if(data65.tank_index !== undefined){
+let data69 = data65.tank_index;
+const _errs148 = errors;
+if(!(((typeof data69 == "number") && (!(data69 % 1) && !isNaN(data69))) && (isFinite(data69)))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/tank_index",schemaPath:"#/properties/test_frequency/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema38.properties.test_frequency.properties.tank_index.type,parentSchema:schema38.properties.test_frequency.properties.tank_index,data:data69}];
+return false;
+}
+if(errors === _errs148){
+if((typeof data69 == "number") && (isFinite(data69))){
+if(data69 < 0 || isNaN(data69)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/tank_index",schemaPath:"#/properties/test_frequency/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.tank_index,data:data69}];
+return false;
+}
+}
+}
+var valid22 = _errs148 === errors;
+}
+else {
+var valid22 = true;
+}
+if(valid22){
+if(data65.nearest !== undefined){
+let data70 = data65.nearest;
+const _errs150 = errors;
+if(typeof data70 !== "boolean"){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearest",schemaPath:"#/properties/test_frequency/properties/nearest/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema38.properties.test_frequency.properties.nearest.type,parentSchema:schema38.properties.test_frequency.properties.nearest,data:data70}];
+return false;
+}
+var valid22 = _errs150 === errors;
+}
+else {
+var valid22 = true;
+}
+if(valid22){
+if(data65.nearer_tanks !== undefined){
+let data71 = data65.nearer_tanks;
+const _errs152 = errors;
+if(errors === _errs152){
+if(Array.isArray(data71)){
+var valid23 = true;
+const len2 = data71.length;
+for(let i1=0; i1<len2; i1++){
+let data72 = data71[i1];
+const _errs154 = errors;
+if(errors === _errs154){
+if(data72 && typeof data72 == "object" && !Array.isArray(data72)){
+let missing10;
+if((((data72.tank_index === undefined) && (missing10 = "tank_index")) || ((data72.predicted_hz === undefined) && (missing10 = "predicted_hz"))) || ((data72.why === undefined) && (missing10 = "why"))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1,schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/required",keyword:"required",params:{missingProperty: missing10},message:"must have required property '"+missing10+"'",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.required,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items,data:data72}];
+return false;
+}
+else {
+if(data72.tank_index !== undefined){
+let data73 = data72.tank_index;
+const _errs156 = errors;
+if(!(((typeof data73 == "number") && (!(data73 % 1) && !isNaN(data73))) && (isFinite(data73)))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/tank_index",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index,data:data73}];
+return false;
+}
+if(errors === _errs156){
+if((typeof data73 == "number") && (isFinite(data73))){
+if(data73 < 0 || isNaN(data73)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/tank_index",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index,data:data73}];
+return false;
+}
+}
+}
+var valid24 = _errs156 === errors;
+}
+else {
+var valid24 = true;
+}
+if(valid24){
+if(data72.predicted_hz !== undefined){
+let data74 = data72.predicted_hz;
+const _errs158 = errors;
+if(errors === _errs158){
+if((typeof data74 == "number") && (isFinite(data74))){
+if(data74 <= 0 || isNaN(data74)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/predicted_hz",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/predicted_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz,data:data74}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/predicted_hz",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/predicted_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz,data:data74}];
+return false;
+}
+}
+var valid24 = _errs158 === errors;
+}
+else {
+var valid24 = true;
+}
+if(valid24){
+if(data72.why !== undefined){
+let data75 = data72.why;
+const _errs160 = errors;
+if(typeof data75 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/why",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/why/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.why.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.why,data:data75}];
+return false;
+}
+var valid24 = _errs160 === errors;
+}
+else {
+var valid24 = true;
+}
+}
+}
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1,schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items,data:data72}];
+return false;
+}
+}
+var valid23 = _errs154 === errors;
+if(!valid23){
+break;
+}
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema38.properties.test_frequency.properties.nearer_tanks.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks,data:data71}];
+return false;
+}
+}
+var valid22 = _errs152 === errors;
+}
+else {
+var valid22 = true;
+}
+if(valid22){
+if(data65.note !== undefined){
+let data76 = data65.note;
+const _errs162 = errors;
+if(typeof data76 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/note",schemaPath:"#/properties/test_frequency/properties/note/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.test_frequency.properties.note.type,parentSchema:schema38.properties.test_frequency.properties.note,data:data76}];
+return false;
+}
+var valid22 = _errs162 === errors;
+}
+else {
+var valid22 = true;
+}
+}
+}
+}
+}
+}
+}
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/test_frequency",schemaPath:"#/properties/test_frequency/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema38.properties.test_frequency.type,parentSchema:schema38.properties.test_frequency,data:data65}];
+return false;
+}
+}
+var valid0 = _errs140 === errors;
+}
+else {
+var valid0 = true;
+}
+}
 }
 }
 }
@@ -2527,7 +2757,7 @@ return false;
 validate21.errors = vErrors;
 return errors === 0;
 }
-validate21.evaluated = {"props":{"suspect":true,"f0_hz":true,"f0_u_hz":true,"fd_hz":true,"inductance_h":true,"inductance_u_h":true,"coverage_factor":true,"q":true,"q_u":true,"esr_ohm":true,"esr_u_ohm":true,"ring_amplitude_v":true,"edges_used":true,"edges_rejected":true,"warnings":true,"settings":true,"device":true,"label":true},"dynamicProps":false,"dynamicItems":false};
+validate21.evaluated = {"props":{"suspect":true,"f0_hz":true,"f0_u_hz":true,"fd_hz":true,"inductance_h":true,"inductance_u_h":true,"coverage_factor":true,"q":true,"q_u":true,"esr_ohm":true,"esr_u_ohm":true,"ring_amplitude_v":true,"edges_used":true,"edges_rejected":true,"warnings":true,"settings":true,"device":true,"label":true,"test_frequency":true},"dynamicProps":false,"dynamicItems":false};
 
 export const calibrationProfile = validate22;
 const schema50 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:calibration-profile:1","title":"henrytick calibration profile, version 1","description":"What calibration found about one tester (docs/calibration.md). Units are SI and in the key names; uncertainties are standard (k = 1). Rules a schema cannot state (a tank index only once, c_f within a factor 2 of nominal_f, u_f at most 20 % of c_f, rising threshold above falling, |ppm| at most 1000, |skew_s| under 1 µs, leads l_h at most 0.5 µH) are checked by the reader too.","type":"object","required":["format","version","device_id","updated","tanks"],"properties":{"format":{"const":"henrytick-calibration"},"version":{"const":1},"device_id":{"type":"string","minLength":1},"updated":{"$ref":"#/$defs/time"},"tanks":{"type":"array","description":"empty when no tank is calibrated","items":{"$ref":"#/$defs/tank"}},"thresholds":{"$ref":"#/$defs/thresholds"},"timebase":{"$ref":"#/$defs/timebase"},"skew":{"$ref":"#/$defs/skew"},"leads":{"$ref":"#/$defs/leads"}},"$defs":{"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"method":{"enum":["reference-inductor","parallel-capacitor","threshold-fit","skew-fit","host-clock","entered","clips-shorted"],"description":"the procedure that produced the value"},"provenance":{"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}},"tank":{"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"}}},"thresholds":{"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}},"timebase":{"type":"object","$ref":"#/$defs/provenance","required":["ppm","u_ppm"],"properties":{"ppm":{"type":"number","description":"the tick counter runs fast by ppm: true rate = nominal (1 + ppm 1e-6)"},"u_ppm":{"type":"number","minimum":0}}},"skew":{"type":"object","$ref":"#/$defs/provenance","required":["skew_s","u_skew_s"],"properties":{"skew_s":{"type":"number","description":"the comparator's rising-edge propagation delay minus its falling-edge delay, seconds"},"u_skew_s":{"type":"number","minimum":0,"description":"standard uncertainty of skew_s, seconds"}}},"leads":{"type":"object","$ref":"#/$defs/provenance","required":["l_h","u_h"],"properties":{"l_h":{"type":"number","minimum":0,"description":"series inductance of the test leads and clips (clips shorted), henries; subtracted from every reading"},"u_h":{"type":"number","minimum":0,"description":"standard uncertainty of l_h"}}}}};

@@ -43,47 +43,8 @@
 #include "henrytick-rt.h"
 #include "henrytick.h"
 
-#define REG(a) (*(volatile uint32_t*)(uintptr_t)(a))
-
-/* ---- STM32F405 registers (RM0090) and Cortex-M system registers ---- */
-#define RCC_APB1ENR REG(0x40023840u)
-#define RCC_APB2ENR REG(0x40023844u)
-#define RCC_APB1ENR_USART2EN (1u << 17)
-#define RCC_APB2ENR_USART1EN (1u << 4)
-
-#define USART1 0x40011000u
-#define USART2 0x40004400u
-#define USART_SR(b) REG((b) + 0x00u)
-#define USART_DR(b) REG((b) + 0x04u)
-#define USART_BRR(b) REG((b) + 0x08u)
-#define USART_CR1(b) REG((b) + 0x0Cu)
-#define SR_RXNE (1u << 5)
-#define SR_TXE (1u << 7)
-#define CR1_UE (1u << 13)
-#define CR1_TE (1u << 3)
-#define CR1_RE (1u << 2)
-#define CR1_RXNEIE (1u << 5)
-
-#define SYST_CSR REG(0xE000E010u)
-#define SYST_RVR REG(0xE000E014u)
-#define SYST_CVR REG(0xE000E018u)
-#define SCB_ICSR REG(0xE000ED04u)
-#define ICSR_PENDSTSET (1u << 26)
-#define NVIC_ISER(n) REG(0xE000E100u + 4u * (n))
-
-#define TIM2 0x40000000u
-#define TIM_CR1 REG(TIM2 + 0x00u)
-#define TIM_DIER REG(TIM2 + 0x0Cu)
-#define TIM_SR REG(TIM2 + 0x10u)
-#define TIM_CNT REG(TIM2 + 0x24u)
-#define TIM_ARR REG(TIM2 + 0x2Cu)
-#define TIM_CR1_CEN 1u
-#define TIM_DIER_UIE 1u
-#define RCC_APB1ENR_TIM2EN 1u
-
-#define IRQ_TIM2 28u
-#define IRQ_USART1 37u
-#define IRQ_USART2 38u
+/* STM32F405 registers (RM0090) and Cortex-M system registers, shared with the F411 port */
+#include "stm32f4-regs.h"
 
 /* QEMU's STM32F405 model runs the core (and SysTick's processor clock) at 168 MHz, with no clock
    tree to program: RCC is a placeholder there, so the enables below are what a real chip needs. */
@@ -154,7 +115,7 @@ static uint64_t raw_ticks(void) {
   uint32_t v = SYST_CVR;
   uint64_t whole = wrap_ticks;
   uint64_t frac = wrap_frac;
-  if (SCB_ICSR & ICSR_PENDSTSET) {
+  if (SCB_ICSR & SCB_ICSR_PENDSTSET) {
     /* Wrapped, handler not run yet: count the wrap, and read the counter again after it. */
     v = SYST_CVR;
     frac += (uint64_t)SYSTICK_PERIOD * tick_mul;
@@ -173,8 +134,8 @@ static uint64_t clock_ticks(void) {
 static volatile uint32_t wake_fired;
 
 void TIM2_IRQHandler(void) {
-  TIM_SR = 0;
-  TIM_CR1 = 0;
+  TIM2_SR = 0;
+  TIM2_CR1 = 0;
   wake_fired = 1;
 }
 
@@ -193,14 +154,14 @@ static void sleep_until(uint32_t deadline, volatile uint32_t* head, volatile uin
     if (left <= 0 || *head != *tail) return;
     if (left <= (int32_t)SPIN_TICKS) continue;
     wake_fired = 0;
-    TIM_CR1 = TIM_CR1_CEN;
-    TIM_CNT = 0;
-    TIM_ARR = (uint32_t)(((uint64_t)(uint32_t)left - SPIN_TICKS / 2u) * 21u / 8u);
-    TIM_DIER = TIM_DIER_UIE;
+    TIM2_CR1 = TIM_CR1_CEN;
+    TIM2_CNT = 0;
+    TIM2_ARR = (uint32_t)(((uint64_t)(uint32_t)left - SPIN_TICKS / 2u) * 21u / 8u);
+    TIM2_DIER = TIM_DIER_UIE;
     uint32_t m = irq_save();
     if (!wake_fired && *head == *tail) wait_for_interrupt(); /* also woken by SysTick: then re-armed */
     irq_restore(m);
-    TIM_CR1 = 0;
+    TIM2_CR1 = 0;
   }
 }
 
@@ -210,12 +171,12 @@ static volatile uint8_t rx_ring[RX_RING];
 static volatile uint32_t rx_head, rx_tail;
 
 void USART1_IRQHandler(void) {
-  while (USART_SR(USART1) & SR_RXNE) {
+  while (USART_SR(USART1) & USART_SR_RXNE) {
     uint32_t next = (rx_head + 1u) % RX_RING;
     if (next == rx_tail) {
       /* Ring full: stop taking bytes. QEMU's USART then holds the rest back (it cannot overrun),
          which is flow control; the main loop re-enables reception once it has drained the ring. */
-      USART_CR1(USART1) &= ~CR1_RXNEIE;
+      USART_CR1(USART1) &= ~USART_CR1_RXNEIE;
       return;
     }
     rx_ring[rx_head] = (uint8_t)USART_DR(USART1);
@@ -225,7 +186,7 @@ void USART1_IRQHandler(void) {
 
 static void uart_put(uint32_t base, const uint8_t* p, uint32_t n) {
   for (uint32_t i = 0; i < n; i++) {
-    while (!(USART_SR(base) & SR_TXE)) {
+    while (!(USART_SR(base) & USART_SR_TXE)) {
     }
     USART_DR(base) = p[i];
   }
@@ -237,10 +198,10 @@ static volatile uint8_t fe_ring[FE_RING];
 static volatile uint32_t fe_head, fe_tail;
 
 void USART2_IRQHandler(void) {
-  while (USART_SR(USART2) & SR_RXNE) {
+  while (USART_SR(USART2) & USART_SR_RXNE) {
     uint32_t next = (fe_head + 1u) % FE_RING;
     if (next == fe_tail) {
-      USART_CR1(USART2) &= ~CR1_RXNEIE; /* as on USART1: held back until there is room */
+      USART_CR1(USART2) &= ~USART_CR1_RXNEIE; /* as on USART1: held back until there is room */
       return;
     }
     fe_ring[fe_head] = (uint8_t)USART_DR(USART2);
@@ -263,7 +224,7 @@ static int fe_getc(void) {
     if (fe_tail != fe_head) {
       uint8_t b = fe_ring[fe_tail];
       fe_tail = (fe_tail + 1u) % FE_RING;
-      USART_CR1(USART2) |= CR1_RXNEIE;
+      USART_CR1(USART2) |= USART_CR1_RXNEIE;
       irq_restore(m);
       return b;
     }
@@ -551,12 +512,12 @@ void qemu_port_fault_handler(void) {
 
 /* ---- start-up and main loop ---- */
 static void board_init(void) {
-  RCC_APB2ENR |= RCC_APB2ENR_USART1EN;
-  RCC_APB1ENR |= RCC_APB1ENR_USART2EN | RCC_APB1ENR_TIM2EN;
+  RCC_APB2ENR |= RCC_APB2ENR_USART1;
+  RCC_APB1ENR |= RCC_APB1ENR_USART2 | RCC_APB1ENR_TIM2;
   USART_BRR(USART1) = 0x2D9u; /* 115 200 Bd from the 84 MHz APB2 clock (QEMU ignores it) */
   USART_BRR(USART2) = 0x16Cu; /* 115 200 Bd from the 42 MHz APB1 clock */
-  USART_CR1(USART1) = CR1_UE | CR1_TE | CR1_RE | CR1_RXNEIE;
-  USART_CR1(USART2) = CR1_UE | CR1_TE | CR1_RE | CR1_RXNEIE;
+  USART_CR1(USART1) = USART_CR1_UE | USART_CR1_TE | USART_CR1_RE | USART_CR1_RXNEIE;
+  USART_CR1(USART2) = USART_CR1_UE | USART_CR1_TE | USART_CR1_RE | USART_CR1_RXNEIE;
   SYST_RVR = SYSTICK_PERIOD - 1u;
   SYST_CVR = 0;
   SYST_CSR = 7u; /* processor clock, interrupt, enable */
@@ -596,7 +557,7 @@ int main(void) {
     while (rx_tail != rx_head && Z_henrytickZ_fw_rx(&fw, rx_ring[rx_tail])) {
       at_line_start = rx_ring[rx_tail] == '\n';
       rx_tail = (rx_tail + 1u) % RX_RING;
-      USART_CR1(USART1) |= CR1_RXNEIE;
+      USART_CR1(USART1) |= USART_CR1_RXNEIE;
     }
     uint32_t wait = Z_henrytickZ_fw_poll(&fw);
     int busy = Z_henrytickZ_fw_busy(&fw) != 0;

@@ -8,8 +8,8 @@
 
 import { assignHalfCycles } from "./cycle-bookkeeping.ts";
 import { diagnose } from "./diagnostics.ts";
-import { FitWorkspace, fitEdgeModel, type FitLimits } from "./edge-fit.ts";
-import { chooseResidualForms, evaluateEdges, formChanges, makeEdgeSet, P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
+import { captureWorkspace, fitEdgeModel, type EdgeFitResult, type FitLimits, type FitWorkspace } from "./edge-fit.ts";
+import { chooseResidualForms, evaluateEdges, evaluateUnindexed, formChanges, makeEdgeSet, P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
 import { fitLimits, initialVariance, rankingSubset, rankStarts, type RankedStart } from "./fit-start.ts";
 import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
 import { indicesHold, reassignHalfCycles, type IndexMargin } from "./model-bookkeeping.ts";
@@ -19,8 +19,15 @@ import { correlationInflation, residualCorrelation } from "./residual-correlatio
 import { huberWeight, madSigma, median } from "./robust-stats.ts";
 import { invertSymmetric } from "./small-linear-algebra.ts";
 import { checkInput, MIN_EDGES, type CheckedInput } from "./validate-input.ts";
+import { ringExtent, tailEnd } from "./ring-end.ts";
 import { correctionCovariance, delayEffectSd, edgeDelays, jointTimingStep, rampReach, ringSlopeAt, skewStep, type ComparatorTiming, type LinearFit, type TimingDelays } from "./comparator-timing.ts";
 import { AnalysisError, type RingAnalysis, type RingInput, type Warning } from "./types.ts";
+
+/** Why the edges after the ring's part of a capture were set aside (ring-end.ts). */
+export const REASON_AFTER_RING = "after the ring's end: fired by noise (chatter or noise crossing both thresholds)";
+
+/** ... and of the edges after the ring's envelope had decayed into the noise (ring-end.ts). */
+export const REASON_NOISE_TAIL = "after the ring's envelope came within a few noise sd of the threshold: decided by noise";
 
 /** Huber tuning constant in robust standard deviations. */
 const HUBER_C = 2;
@@ -61,6 +68,24 @@ export interface FitState {
   timing?: TimingState;
   /** Standard deviation of the skew from the joint timing step (fitRing). */
   timingSkewSd?: number;
+  /** Where the capture stopped following the ring (fitRing, ring-end.ts): edges from `end` on
+   *  were left out of everything above. */
+  ringEnd?: RingEnd;
+  /** Edges from this index on came after the ring's envelope had decayed into the noise at the
+   *  farther threshold (fitRing, ring-end.ts tailEnd) and were left out too. */
+  tailEnd?: number;
+  /** Edges in the capture (fitRing): `edges` holds the first tailEnd or ringEnd.end of them. */
+  captured?: number;
+}
+
+/** The capture's edges from `end` (of `edges`) on fired on noise, from time t_s (ring-end.ts). */
+export interface RingEnd {
+  end: number;
+  edges: number;
+  t_s: number;
+  /** Fraction of too-short intervals before `end` and from it on. */
+  rate_before: number;
+  rate_after: number;
 }
 
 /** The comparator-timing terms of a fit (comparator-timing.ts). */
@@ -95,7 +120,11 @@ export function analyzeFit(s: FitState): RingAnalysis {
     if (s.used[k] > 0) continue;
     rejected.push({ index: k, reason: s.reasons[k] ?? "rejected" });
   }
-  const used = s.edges.n - rejected.length;
+  const total = s.captured ?? s.edges.n;
+  for (let k = s.edges.n; k < total; k++) {
+    rejected.push({ index: k, reason: s.ringEnd && k >= s.ringEnd.end ? REASON_AFTER_RING : REASON_NOISE_TAIL });
+  }
+  const used = total - rejected.length;
   const U = {
     l: COVERAGE_K * rq.u.inductance_h, q: COVERAGE_K * rq.u.q, esr: COVERAGE_K * rq.u.esr_ohm, f0: COVERAGE_K * rq.u.f0_hz,
   };
@@ -210,8 +239,56 @@ function countUsed(s: FitState): number {
 
 /** The fitting core of analyzeRing, exposed for diagnostics and tests. */
 export function fitRing(input: RingInput): FitState {
-  const c = checkInput(input);
-  const timing = input.comparator;
+  const part = ringPart(checkInput(input));
+  const { c, tail } = noiseTail(part.c, input.comparator);
+  const s = fitTimed(c, input.comparator);
+  if (part.end) s.ringEnd = part.end;
+  if (tail < part.c.t_s.length) s.tailEnd = tail;
+  s.captured = part.end ? part.end.edges : part.c.t_s.length;
+  return s;
+}
+
+/**
+ * With continuous input noise (RingInput.comparator.noise_bw_hz), the edges past the point where
+ * the ring's envelope comes within a few noise sigma of the farther threshold are decided by the
+ * noise (ring-end.ts, tailEnd): from a first fit, they are left out and the capture is one cut
+ * short. The noise is the larger of the caller's and the fit's (which reads first-passage
+ * scatter, narrower than the noise).
+ */
+function noiseTail(c: CheckedInput, timing: ComparatorTiming | undefined): { c: CheckedInput; tail: number } {
+  const n = c.t_s.length;
+  const none = { c, tail: n };
+  if (!timing || !(timing.noise_bw_hz! > 0)) return none;
+  let first: FitState;
+  try {
+    first = fitCapture(c);
+  } catch {
+    return none;
+  }
+  const sigma = Math.max(timing.noise_v ?? 0, Math.sqrt(first.noise.sigma_v2));
+  const tail = tailEnd(c.t_s, first.p[P_LNA], first.p[P_ALPHA], Math.max(c.vh_v, -c.vl_v), sigma);
+  if (tail >= n || tail < MIN_EDGES) return none;
+  return { c: { ...c, t_s: c.t_s.slice(0, tail), rising: c.rising.slice(0, tail), ring_ended: false }, tail };
+}
+
+/**
+ * The part of a capture that follows its ring (ring-end.ts): edges from the first stretch that
+ * noise fires on are left out, and the capture is then one cut short (not ended on quiet).
+ * Refused when fewer than MIN_EDGES edges come before it.
+ */
+function ringPart(c: CheckedInput): { c: CheckedInput; end: RingEnd | null } {
+  const x = ringExtent(c.t_s, c.rising);
+  const n = c.t_s.length;
+  if (x.end >= n) return { c, end: null };
+  if (x.end < MIN_EDGES) {
+    throw new AnalysisError("NO_RING", `the edges follow the comparator's noise almost from the start (${(100 * x.rate_after).toFixed(0)} % of the intervals are too short for a ring): the hysteresis between the thresholds is too narrow against the input noise; widen it (move the thresholds apart, away from zero), shorten or shield the leads, or raise the drive current`);
+  }
+  const end: RingEnd = { end: x.end, edges: n, t_s: c.t_s[x.end], rate_before: x.rate_before, rate_after: x.rate_after };
+  return { c: { ...c, t_s: c.t_s.slice(0, x.end), rising: c.rising.slice(0, x.end), ring_ended: false }, end };
+}
+
+/** The fit of a capture's ring part, with the comparator's timing terms when they are given. */
+function fitTimed(c: CheckedInput, timing: ComparatorTiming | undefined): FitState {
   if (!timing) {
     // Nothing known about the comparator's timing: the fit is of the thresholds' model alone,
     // and the capture's own evidence of a skew is kept for the COMPARATOR_SKEW diagnostic.
@@ -415,7 +492,7 @@ function linearFitOf(s: FitState): LinearFit {
 /** One fit of the thresholds' edge model to the capture's (corrected) edge times. */
 function fitCapture(c: CheckedInput): FitState {
   const n = c.t_s.length;
-  const q = (c.tick_s * c.tick_s) / 12;
+  const tickVar_s2 = (c.tick_s * c.tick_s) / 12;
   const book = assignHalfCycles(c.t_s, c.rising);
   if (!(book.period_s > 0)) throw noRing("no repeating edges were found");
   const e0 = makeEdgeSet(c.t_s, c.rising, book.m);
@@ -423,15 +500,20 @@ function fitCapture(c: CheckedInput): FitState {
   const candidates = initialCandidates(e0, c.vh_v, c.vl_v, 3, n <= FEW_EDGES_BOTH_STARTS);
   if (candidates.length === 0) throw noRing("no damped sine explains the edge times");
 
-  const ws = new FitWorkspace(n);
+  const ws = captureWorkspace(n);
   const limits = fitLimits(e0, c, candidates[0].p[P_WD]);
   const subset = rankingSubset(e0);
-  const starts = rankStarts(candidates, e0, subset, c, q, ws, limits);
+  const starts = rankStarts(candidates, e0, subset, c, tickVar_s2, ws, limits);
   // Each full fit re-indexes edges and sets residual forms: it gets its own copy of the edges.
   // Round 0 of a long capture fits the ranking's subset (fitFrom).
-  const round0 = n > 400 ? subset : null;
   const fitFromStart = (k: number, reference?: FitState): FitState | null =>
-    fitFrom(c, makeEdgeSet(c.t_s, c.rising, book.m.slice()), book.reasons.slice(), starts[k], q, ws, limits, round0, reference);
+    fitFrom(
+      {
+        c, e: makeEdgeSet(c.t_s, c.rising, book.m.slice()), reasons: book.reasons.slice(), ws, limits, tickVar_s2,
+        round0Subset: n > 400 ? subset : null,
+      },
+      starts[k], reference,
+    );
   let firstError: unknown = null;
   const tries = starts.length > 1 && (n <= FEW_EDGES_BOTH_STARTS || closeRunnerUp(starts[0], starts[1])) ? 2 : 1;
   const fits: FitState[] = [];
@@ -457,52 +539,120 @@ function closeRunnerUp(best: RankedStart, next: RankedStart): boolean {
   return !(Number.isFinite(next.nll) && next.nll - best.nll > RUNNER_UP_SUBSET_NLL);
 }
 
+/** What one full fit from one start (fitFrom) works on, fixed for the fit. */
+interface FitSetting {
+  c: CheckedInput;
+  /** The fit's own copy of the edges: it re-indexes them and sets their residual forms. */
+  e: EdgeSet;
+  /** Why each edge is set aside (the fit's own copy). */
+  reasons: (string | null)[];
+  ws: FitWorkspace;
+  limits: FitLimits;
+  /** tick^2 / 12, s^2. */
+  tickVar_s2: number;
+  /** Round 0 of a long capture fits only these edges (null: all of them). */
+  round0Subset: Float64Array | null;
+}
+
+/**
+ * What the rounds of one full fit carry from one round to the next (fitFrom). The per-edge
+ * arrays are made once for the fit (the returned FitState keeps `variance` and `used`) or lent
+ * by the capture's workspace (ws.roundScratch: the rest, contents undefined between fits).
+ * Made at the start: residual forms and round-0 variances at the start's parameters.
+ */
+class Rounds implements FitSetting {
+  readonly c: CheckedInput;
+  readonly e: EdgeSet;
+  readonly reasons: (string | null)[];
+  readonly ws: FitWorkspace;
+  readonly limits: FitLimits;
+  readonly tickVar_s2: number;
+  readonly round0Subset: Float64Array | null;
+  readonly n: number;
+  /** The model's parameters (edge-model.ts). */
+  p: Float64Array;
+  /** Residual variance per edge, V^2, and timing variance per edge, s^2 (noise-model.ts). */
+  readonly variance: Float64Array;
+  readonly timingVar_s2: Float64Array;
+  /** 1 where reweight set the edge aside as an outlier. */
+  readonly outlier: Uint8Array;
+  /** 1 where the edge takes part in the fit: indexed, and not an outlier. */
+  readonly used: Float64Array;
+  /** Huber weight per edge (reweight). */
+  readonly robust: Float64Array;
+  /** Fit weight per edge: robust / variance where used, else 0. */
+  readonly w: Float64Array;
+  /** 1 where the edge has a half-cycle index. */
+  readonly assigned: Float64Array;
+  /** Each edge's leverage in the round's fit (0 where not used). */
+  readonly leverage: Float64Array;
+  /** The clean crossings (used, phase form) the noise is estimated from when there are enough. */
+  readonly noiseMask: Float64Array;
+  /** Standardised residuals of the assigned edges; those of the used edges packed in zUsed. */
+  readonly z: Float64Array;
+  readonly zUsed: Float64Array;
+  /** Scratch: medians, the residual sd for re-indexing, the scales and forms before reform. */
+  readonly zWork: Float64Array;
+  readonly sd: Float64Array;
+  readonly oldScale: Float64Array;
+  readonly oldForm: Uint8Array;
+  noise: NoiseEstimate | null = null;
+  /** Robust standard deviation of the standardised residuals (reweight). */
+  zScale = 1;
+  /** ws.r, ws.jac, ws.slope and ws.curvature hold the model at p with the current forms and
+   *  timing variances: then neither a round's fit nor its checks evaluate the model again. */
+  cached = false;
+  /** Where the edges were last re-indexed (null: not yet), and what that re-indexing left to show
+   *  that one at a nearby model would change nothing (model-bookkeeping.ts indicesHold). */
+  pIndexed: Float64Array | null = null;
+  readonly margin: IndexMargin = { margin_rad: 0, max_u: 0, max_t_s: 0, duplicates: true };
+  /** How often the forms were chosen again once settled (staleForms in fitFrom). */
+  reforms = 0;
+
+  constructor(s: FitSetting, guess: InitialGuess) {
+    const { c, e, ws } = s;
+    this.c = c;
+    this.e = e;
+    this.reasons = s.reasons;
+    this.ws = ws;
+    this.limits = s.limits;
+    this.tickVar_s2 = s.tickVar_s2;
+    this.round0Subset = s.round0Subset;
+    const n = c.t_s.length;
+    this.n = n;
+    this.p = guess.p;
+    // Round 0 fits `round0Subset` of a long capture (null: all edges), and the forms and every
+    // variance are set anew after it: the start's forms and variances are needed on the subset
+    // alone (variance Infinity, weight zero, elsewhere).
+    chooseResidualForms(guess.p, e, c.vh_v, c.vl_v, s.round0Subset);
+    this.variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, s.tickVar_s2), ws, s.round0Subset);
+    const [robust, assigned, w, leverage, sd, z, zUsed, noiseMask, zWork, oldScale, timingVar_s2] = ws.roundScratch(11);
+    robust.fill(1);
+    timingVar_s2.fill(s.tickVar_s2);
+    this.timingVar_s2 = timingVar_s2;
+    this.outlier = new Uint8Array(n);
+    this.used = new Float64Array(n);
+    this.robust = robust;
+    this.w = w;
+    this.assigned = assigned;
+    this.leverage = leverage;
+    this.noiseMask = noiseMask;
+    this.z = z;
+    this.zUsed = zUsed;
+    this.zWork = zWork;
+    this.sd = sd;
+    this.oldScale = oldScale;
+    this.oldForm = new Uint8Array(n);
+  }
+}
+
 /** One full fit from one start: rounds of fit, re-index, noise, reweight until settled. */
-function fitFrom(
-  c: CheckedInput, e: EdgeSet, reasons: (string | null)[], guess: InitialGuess, q: number, ws: FitWorkspace,
-  limits: FitLimits, subset: Float64Array | null, reference?: FitState,
-): FitState | null {
-  const n = c.t_s.length;
-  // Round 0 fits `subset` of a long capture (null: all edges), and the forms and every
-  // variance are set anew after it: the start's forms and variances are needed on the subset
-  // alone (variance Infinity, weight zero, elsewhere).
-  chooseResidualForms(guess.p, e, c.vh_v, c.vl_v, subset);
-  const variance = initialVariance(guess.p, e, Math.max(guess.ms_residual_s2, q), ws, subset);
-  const outlier = new Uint8Array(n);
-  const used = new Float64Array(n);
-  // Per-edge arrays that do not outlive the fit come from the capture's workspace.
-  const [robust, assigned, w, leverage, sd, z, zUsed, noiseMask, zWork, oldScale, varT] = ws.roundScratch(11);
-  robust.fill(1);
-  varT.fill(q);
-  const oldForm = new Uint8Array(n);
-  let p = guess.p;
-  let noise: NoiseEstimate | null = null;
-  let zScale = 1;
-  let fit!: ReturnType<typeof fitEdgeModel>;
-  // ws.r, ws.jac, ws.slope and ws.curvature hold the model at p with the current forms and
-  // timing variances whenever `cached` is true: then neither the round's fit nor its checks
-  // evaluate the model again at the same point.
-  let cached = false;
-  let pIndexed: Float64Array | null = null;
-  const margin: IndexMargin = { margin_rad: 0, max_u: 0, max_t_s: 0, duplicates: true };
-  let reforms = 0;
+function fitFrom(setting: FitSetting, guess: InitialGuess, reference?: FitState): FitState | null {
+  const f = new Rounds(setting, guess);
+  const { c, ws } = f;
+  let fit!: EdgeFitResult;
   let staleForms = false;
-  // Chooses the residual forms again at p. A phase-form residual is S_k times a phase error, so
-  // its variance goes with S_k^2: an edge that keeps the phase form under a new scale keeps its
-  // weight, and chi2 its units (with the start's scales after round 0 had moved the amplitude,
-  // chi2 came out up to ~400x too large and its stopping tolerance as much too tight).
-  // (amp: the model envelope at p per edge, when the re-indexing at p has just computed it.)
-  const reform = (amp: Float64Array | null = null) => {
-    oldScale.set(e.scale_v);
-    oldForm.set(e.form);
-    chooseResidualForms(p, e, c.vh_v, c.vl_v, null, amp);
-    for (let k = 0; k < n; k++) {
-      if (oldForm[k] !== 1 || e.form[k] !== 1) continue;
-      const f = e.scale_v[k] / oldScale[k];
-      variance[k] *= f * f;
-    }
-    cached = false;
-  };
+  weigh(f);
   for (let round = 0; ; round++) {
     // Residual forms follow the model while it is still moving (set at the start, again after
     // round 0's fit and re-indexing), then stay, so that the weights of a round and its
@@ -510,152 +660,155 @@ function fitFrom(
     // grazing limit (a phase-form edge the envelope no longer clearly reaches), which is chosen
     // again, a few times at most.
     if (staleForms) {
-      reform();
-      reforms++;
+      reform(f, null);
+      f.reforms++;
+      weigh(f);
     }
-    setWeights(e, outlier, robust, variance, used, w);
     // Round 0 weights with a rough noise model and only has to bring the start near the
     // minimum: a few steps on a subset of the edges (the tail and a spread) suffice there (the
     // others have no variance yet, so weight zero).
-    fit = fitEdgeModel(e, c.vh_v, c.vl_v, p, w, varT, ws, limits, round < 2 ? 6 : 60, FIT_TOL_CHI2, cached, round === 0);
+    fit = fitEdgeModel(f.e, f.p, f.w, ws, {
+      vh_v: c.vh_v, vl_v: c.vl_v, timingVar_s2: f.timingVar_s2, limits: f.limits, maxIterations: round < 2 ? 6 : 60,
+      tolChi2: FIT_TOL_CHI2, reuseEvaluation: f.cached, weightedOnly: round === 0,
+    });
     if (!Number.isFinite(fit.chi2)) throw noRing("the edge-model fit diverged");
-    p = fit.p;
-    cached = fit.fresh && round > 0;
+    f.p = fit.p;
+    f.cached = fit.fresh && round > 0;
     // A runner-up that has come within a standard deviation of the first fit after its first
     // round with a noise model is on its way to the same minimum: nothing to compare.
-    if (reference && round === 1 && sameBasin(p, reference, 1)) return null;
+    if (reference && round === 1 && sameBasin(f.p, reference, 1)) return null;
     if (round === MAX_ROUNDS) break;
 
-    // Re-index from the model unless it has barely moved since the last re-indexing (then no
-    // edge can change half-cycle: the model phase at the last edge moved by under 0.01 rad), or
-    // unless no edge's model phase can have moved as far as the nearest half-cycle boundary
-    // (indicesHold: re-indexing would change nothing, except clearing the reasons of edges no
-    // longer rejected, which nothing reads).
-    let moved = 0;
-    let ampAtP: Float64Array | null = null;
-    if (!pIndexed || (phaseShift(pIndexed, p, limits.t_last_s) > 0.01 && !indicesHold(pIndexed, p, margin))) {
-      for (let k = 0; k < n; k++) sd[k] = Math.sqrt(variance[k]);
-      // (Duplicates are compared in plain volts while round 0's variances cover a subset only.)
-      // (z is free until reweight: it takes the envelope for reform.)
-      moved = reassignHalfCycles(p, e, c.vh_v, c.vl_v, round === 0 && subset ? null : sd, reasons, margin, z);
-      pIndexed = p;
-      ampAtP = z;
-    }
-    // Forms for the indices just set, before the evaluation that round 1's fit starts from.
-    if (round === 0) reform(ampAtP);
-    if (moved > 0 || !cached) {
-      evaluateEdges(p, e, c.vh_v, c.vl_v, null, varT, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
-      cached = true;
-    }
+    const moved = reindex(f, round);
+    const cov = invertSymmetric(4, fit.normal);
+    if (!cov) throw noRing("too few edges fit a ring");
+    const counts = weighAndCount(f, cov);
+    if (counts.assigned < MIN_EDGES) throw noRing("too few edges fit a ring");
     // Grazing edges (level form) say little about the noise and their residuals are bounded by
     // the ring's excursion past the threshold, which would pull sigma_v down: the noise is
-    // estimated from the clean crossings when there are enough of them.
-    setWeights(e, outlier, robust, variance, used, w);
-    let nAssigned = 0;
-    let clean = 0;
-    for (let k = 0; k < n; k++) {
-      assigned[k] = e.m[k] === e.m[k] ? 1 : 0;
-      nAssigned += assigned[k];
-      noiseMask[k] = used[k] > 0 && e.form[k] === 1 ? 1 : 0;
-      clean += noiseMask[k];
-    }
-    const cov = invertSymmetric(4, fit.normal);
-    if (nAssigned < MIN_EDGES || !cov) throw noRing("too few edges fit a ring");
-    computeLeverage(cov, ws.jac, w, used, leverage);
-    // (reweight's and the re-indexing's scratch arrays serve the estimate too.)
-    noise = estimateNoise(ws.r, ws.slope, ws.curvature, varT, leverage, clean >= 12 ? noiseMask : used, q, noise, [z, zUsed, zWork, sd]);
-    // New variances; the residuals' second-order term follows the new timing variances
-    // (edge-model.ts). A 5 % change of the weights moves the estimates by a negligible
-    // second-order amount.
-    const noiseMoved = updateVariances(q, noise, ws.slope, ws.curvature, p[P_WD], assigned, used, varT, variance, ws.r) > 0.05;
-
-    const rw = reweight(ws.r, variance, assigned, used, outlier, robust, reasons, round > 0, z, zUsed, zWork);
-    zScale = rw.zScale;
-    const flipped = rw.flipped;
+    // estimated from the clean crossings when there are enough of them. (reweight's and the
+    // re-indexing's scratch arrays serve the estimate too.)
+    f.noise = estimateNoise(
+      {
+        r: ws.r, slope: ws.slope, curvature: ws.curvature, timingVar_s2: f.timingVar_s2, leverage: f.leverage,
+        mask: counts.clean >= 12 ? f.noiseMask : f.used, tickVar_s2: f.tickVar_s2,
+      },
+      f.noise, [f.z, f.zUsed, f.zWork, f.sd],
+    );
+    // New variances, and the residuals standardised by them for reweight; the residuals'
+    // second-order term follows the new timing variances (edge-model.ts). A 5 % change of the
+    // weights moves the estimates by a negligible second-order amount.
+    const change = updateVariances({
+      tickVar_s2: f.tickVar_s2, noise: f.noise, slope: ws.slope, curvature: ws.curvature, wd: f.p[P_WD],
+      assigned: f.assigned, used: f.used, timingVar_s2: f.timingVar_s2, variance: f.variance, r: ws.r, z: f.z, zUsed: f.zUsed,
+    });
+    const noiseMoved = change.mean_change > 0.05;
     // A runner-up already far less likely than the first fit stays so: its -2 ln L fell by at
     // most ~75 after round 1 in the benchmark's captures, and it could only matter within
     // AMBIGUOUS_NLL of the first fit.
-    if (reference && round >= 1 && negLogLikelihood(ws.r, varT, variance, e, used) - reference.nll > RUNNER_UP_GIVE_UP_NLL) return null;
+    if (reference && round >= 1 && negLogLikelihood(ws.r, f.timingVar_s2, f.variance, f.e, f.used) - reference.nll > RUNNER_UP_GIVE_UP_NLL) return null;
+    const flipped = reweight(f, change.used_z, round > 0);
     // Settled: the round's fit converged (a round-1 fit stopped by its 6-step cap has not, and
     // ~11 % of the benchmark's 500-edge fits would otherwise have been reported from there),
     // and nothing it depends on changed. Forms are checked only then (the check costs a pass).
     const settled = round >= 1 && fit.converged && moved === 0 && flipped === 0 && !noiseMoved;
-    staleForms = settled && reforms < 3 && formChanges(p, e, c.vh_v, c.vl_v) > 0;
+    staleForms = settled && f.reforms < 3 && formChanges(f.p, f.e, c.vh_v, c.vl_v) > 0;
     if (settled && !staleForms) break;
   }
-  const cov = invertSymmetric(4, fit.normal);
-  if (!cov || !noise) throw noRing("the fit has no covariance");
-  if (!cached) evaluateEdges(p, e, c.vh_v, c.vl_v, null, varT, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
-  setWeights(e, outlier, robust, variance, used, w);
-  let nUsed = 0;
-  for (let k = 0; k < n; k++) nUsed += used[k];
-  // Birge-type inflation (never deflation) when residuals exceed the noise model, and for
-  // residuals correlated from edge to edge (fewer independent edges than it seems).
-  const birge = nUsed > 4 ? Math.max(1, fit.chi2 / (nUsed - 4)) : 1;
-  const inflation = birge * correlationInflation(residualCorrelation(ws.r, variance, used, e.rising));
-  for (let i = 0; i < 16; i++) cov[i] *= inflation;
-  if (!(p[P_ALPHA] > 0)) throw noRing("the fitted ring does not decay");
-  // Edges that only a timing noise of a tenth of a period (36 degrees) or more can explain, or a
-  // fit that sets aside most edges, are not a ring: refuse rather than report a number.
-  const period = (2 * Math.PI) / p[P_WD];
-  let nt = 0;
-  for (let k = 0; k < n; k++) if (used[k] > 0) zWork[nt++] = varT[k];
-  const typical = Math.sqrt(median(zWork, nt, zUsed));
-  if (nUsed < 0.5 * n || !(typical < 0.1 * period)) throw noRing("the edges do not follow one damped sine");
-  return {
-    checked: c, edges: e, p, cov, r: ws.r.slice(), jac: ws.jac.slice(), slope: ws.slope.slice(), variance, used,
-    z_scale: zScale, noise, reasons, chi2: fit.chi2, nll: negLogLikelihood(ws.r, varT, variance, e, used),
-  };
+  return finishRounds(f, fit);
 }
 
 /**
- * Standardises the residuals against the noise model, Huber-weights them on a MAD scale and
- * (when `reject`) sets aside those beyond REJECT_Z, with a little hysteresis. Edges rejected
- * before are re-tested, so an edge set aside under a poor early model comes back. Returns the
- * MAD scale and how many edges changed side.
+ * Chooses the residual forms again at p. A phase-form residual is S_k times a phase error, so
+ * its variance goes with S_k^2: an edge that keeps the phase form under a new scale keeps its
+ * weight, and chi2 its units (with the start's scales after round 0 had moved the amplitude,
+ * chi2 came out up to ~400x too large and its stopping tolerance as much too tight).
+ * `amp`: the model envelope at p per edge, when the re-indexing at p has just computed it.
  */
-function reweight(
-  r: Float64Array, variance: Float64Array, assigned: Float64Array, used: Float64Array, outlier: Uint8Array,
-  robust: Float64Array, reasons: (string | null)[], reject: boolean,
-  z: Float64Array, zUsed: Float64Array, zWork: Float64Array,
-): { zScale: number; flipped: number } {
-  const n = r.length;
-  let nz = 0;
+function reform(f: Rounds, amp: Float64Array | null): void {
+  const { e, variance, oldScale, oldForm, n } = f;
+  oldScale.set(e.scale_v);
+  oldForm.set(e.form);
+  chooseResidualForms(f.p, e, f.c.vh_v, f.c.vl_v, null, amp);
   for (let k = 0; k < n; k++) {
-    if (!(assigned[k] > 0)) continue;
-    z[k] = r[k] / Math.sqrt(variance[k]);
-    if (used[k] > 0) zUsed[nz++] = z[k];
+    if (oldForm[k] !== 1 || e.form[k] !== 1) continue;
+    const ratio = e.scale_v[k] / oldScale[k];
+    variance[k] *= ratio * ratio;
   }
-  const zScale = Math.max(0.5, madSigma(zUsed, nz, zWork));
-  let flipped = 0;
-  for (let k = 0; k < n; k++) {
-    if (!(assigned[k] > 0)) continue;
-    const zk = z[k] / zScale;
-    robust[k] = huberWeight(zk, HUBER_C);
-    if (!reject) continue;
-    const isOut = Math.abs(zk) > (outlier[k] ? REJECT_Z - 0.5 : REJECT_Z) ? 1 : 0;
-    if (isOut !== outlier[k]) flipped++;
-    outlier[k] = isOut;
-    if (isOut) reasons[k] = `residual ${Math.abs(zk).toFixed(1)} robust sd from the ring model (outlier)`;
-  }
-  return { zScale, flipped };
+  f.cached = false;
 }
 
-function setWeights(
-  e: EdgeSet, outlier: Uint8Array, robust: Float64Array, variance: Float64Array, used: Float64Array, w: Float64Array,
-): void {
-  for (let k = 0; k < e.n; k++) {
+/**
+ * After a round's fit: re-indexes the edges from the model, unless it has barely moved since
+ * the last re-indexing (then no edge can change half-cycle: the model phase at the last edge
+ * moved by under 0.01 rad), or unless no edge's model phase can have moved as far as the nearest
+ * half-cycle boundary (indicesHold: re-indexing would change nothing, except clearing the
+ * reasons of edges no longer rejected, which nothing reads). Round 0 then chooses the forms for
+ * the indices just set, before the evaluation that round 1's fit starts from. Leaves the model
+ * at p in ws (f.cached). Returns how many indices changed.
+ */
+function reindex(f: Rounds, round: number): number {
+  const { c, ws } = f;
+  let moved = 0;
+  let ampAtP: Float64Array | null = null;
+  if (!f.pIndexed || (phaseShift(f.pIndexed, f.p, f.limits.t_last_s) > 0.01 && !indicesHold(f.pIndexed, f.p, f.margin))) {
+    // Duplicates are compared in plain volts while round 0's variances cover a subset only.
+    let sd: Float64Array | null = null;
+    if (!(round === 0 && f.round0Subset)) {
+      sd = f.sd;
+      const variance = f.variance;
+      for (let k = 0; k < sd.length; k++) sd[k] = Math.sqrt(variance[k]);
+    }
+    // (z is free until the variances are updated: it takes the envelope for reform.)
+    moved = reassignHalfCycles(f.p, f.e, c.vh_v, c.vl_v, sd, f.reasons, f.margin, f.z);
+    f.pIndexed = f.p;
+    ampAtP = f.z;
+  }
+  if (round === 0) reform(f, ampAtP);
+  if (moved > 0 || !f.cached) {
+    evaluateEdges(f.p, f.e, c.vh_v, c.vl_v, null, f.timingVar_s2, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
+    // The edges without an index too (slope and curvature only): their variances are set from
+    // them (updateVariances). Round 0 always gets here, so every edge's slope is this fit's own.
+    evaluateUnindexed(f.p, f.e, c.vh_v, c.vl_v, f.zWork, { slope: ws.slope, curvature: ws.curvature });
+    f.cached = true;
+  }
+  return moved;
+}
+
+/** Each edge's part in the next fit: used (indexed, not an outlier) and its weight. */
+function weigh(f: Rounds): void {
+  const { e, outlier, robust, variance, used, w, n } = f;
+  for (let k = 0; k < n; k++) {
     used[k] = e.m[k] === e.m[k] && !outlier[k] ? 1 : 0;
     w[k] = used[k] > 0 ? robust[k] / variance[k] : 0;
   }
 }
 
-function computeLeverage(cov: Float64Array, jac: Float64Array, w: Float64Array, used: Float64Array, out: Float64Array): void {
+/**
+ * One pass over the edges after a round's re-indexing: each edge's part in the fit and weight
+ * (weigh), whether it has an index, whether it is a clean crossing for the noise estimate, and
+ * its leverage h_k = w_k J_k cov J_k^T (cov: the fit's parameter covariance). Returns how many
+ * edges are indexed and how many are clean.
+ */
+function weighAndCount(f: Rounds, cov: Float64Array): { assigned: number; clean: number } {
+  const { e, outlier, robust, variance, used, w, assigned, noiseMask, leverage, n } = f;
+  const jac = f.ws.jac;
   const c00 = cov[0], c01 = cov[1], c02 = cov[2], c03 = cov[3], c11 = cov[5], c12 = cov[6], c13 = cov[7];
   const c22 = cov[10], c23 = cov[11], c33 = cov[15];
-  for (let k = 0; k < out.length; k++) {
-    if (!(used[k] > 0)) {
-      out[k] = 0;
+  let nAssigned = 0;
+  let clean = 0;
+  for (let k = 0; k < n; k++) {
+    const indexed = e.m[k] === e.m[k];
+    const u = indexed && !outlier[k] ? 1 : 0;
+    used[k] = u;
+    const wk = u > 0 ? robust[k] / variance[k] : 0;
+    w[k] = wk;
+    assigned[k] = indexed ? 1 : 0;
+    nAssigned += assigned[k];
+    noiseMask[k] = u > 0 && e.form[k] === 1 ? 1 : 0;
+    clean += noiseMask[k];
+    if (!(u > 0)) {
+      leverage[k] = 0;
       continue;
     }
     const o = 4 * k;
@@ -665,8 +818,77 @@ function computeLeverage(cov: Float64Array, jac: Float64Array, w: Float64Array, 
       j1 * (c11 * j1 + 2 * (c12 * j2 + c13 * j3)) +
       j2 * (c22 * j2 + 2 * c23 * j3) +
       j3 * c33 * j3;
-    out[k] = Math.min(1, Math.max(0, s * w[k]));
+    leverage[k] = Math.min(1, Math.max(0, s * wk));
   }
+  return { assigned: nAssigned, clean };
+}
+
+/**
+ * Huber-weights the standardised residuals (f.z, from updateVariances; the first `usedCount`
+ * of f.zUsed are the used edges') on a MAD scale and (when `reject`) sets aside those beyond
+ * REJECT_Z, with a little hysteresis. Edges rejected before are re-tested, so an edge set aside
+ * under a poor early model comes back. The same pass sets the next fit's weights (weigh).
+ * Returns how many edges changed side; the scale goes into f.zScale.
+ */
+function reweight(f: Rounds, usedCount: number, reject: boolean): number {
+  const { e, z, assigned, robust, outlier, reasons, used, w, variance, n } = f;
+  const zScale = Math.max(0.5, madSigma(f.zUsed, usedCount, f.zWork));
+  f.zScale = zScale;
+  let flipped = 0;
+  for (let k = 0; k < n; k++) {
+    if (assigned[k] > 0) {
+      const zk = z[k] / zScale;
+      robust[k] = huberWeight(zk, HUBER_C);
+      if (reject) {
+        const isOut = Math.abs(zk) > (outlier[k] ? REJECT_Z - 0.5 : REJECT_Z) ? 1 : 0;
+        if (isOut !== outlier[k]) flipped++;
+        outlier[k] = isOut;
+        if (isOut) reasons[k] = `residual ${Math.abs(zk).toFixed(1)} robust sd from the ring model (outlier)`;
+      }
+    }
+    used[k] = e.m[k] === e.m[k] && !outlier[k] ? 1 : 0;
+    w[k] = used[k] > 0 ? robust[k] / variance[k] : 0;
+  }
+  return flipped;
+}
+
+/** The settled fit's covariance (inflated where the residuals say so), checks and FitState. */
+function finishRounds(f: Rounds, fit: EdgeFitResult): FitState {
+  const { c, e, ws, p, variance, used, timingVar_s2, zWork, n } = f;
+  const cov = invertSymmetric(4, fit.normal);
+  if (!cov || !f.noise) throw noRing("the fit has no covariance");
+  if (!f.cached) evaluateEdges(p, e, c.vh_v, c.vl_v, null, timingVar_s2, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
+  // (used and w are those of the last fit: nothing they depend on has changed since.)
+  let nUsed = 0;
+  let nt = 0;
+  for (let k = 0; k < n; k++) {
+    nUsed += used[k];
+    if (used[k] > 0) zWork[nt++] = timingVar_s2[k];
+  }
+  // Birge-type inflation (never deflation) when residuals exceed the noise model, and for
+  // residuals correlated from edge to edge (fewer independent edges than it seems).
+  const birge = nUsed > 4 ? Math.max(1, fit.chi2 / (nUsed - 4)) : 1;
+  const inflation = birge * correlationInflation(residualCorrelation(ws.r, variance, used, e.rising));
+  for (let i = 0; i < 16; i++) cov[i] *= inflation;
+  if (!(p[P_ALPHA] > 0)) throw noRing("the fitted ring does not decay");
+  // Edges that only a timing noise of a tenth of a period (36 degrees) or more can explain, or a
+  // fit that sets aside most edges, are not a ring: refuse rather than report a number.
+  const period = (2 * Math.PI) / p[P_WD];
+  const typical = Math.sqrt(median(zWork, nt, f.zUsed));
+  if (nUsed < 0.5 * n || !(typical < 0.1 * period)) throw noRing("the edges do not follow one damped sine");
+  // An edge without an index has no residual (NaN) and no Jacobian row (zero), whatever the
+  // workspace holds there.
+  const r = ws.r.slice();
+  const jac = ws.jac.slice();
+  for (let k = 0; k < n; k++) {
+    if (e.m[k] === e.m[k]) continue;
+    r[k] = NaN;
+    jac.fill(0, 4 * k, 4 * k + 4);
+  }
+  return {
+    checked: c, edges: e, p, cov, r, jac, slope: ws.slope.slice(), variance, used,
+    z_scale: f.zScale, noise: f.noise, reasons: f.reasons, chi2: fit.chi2, nll: negLogLikelihood(ws.r, timingVar_s2, variance, e, used),
+  };
 }
 
 /** Within k_sd standard deviations of the reference fit in amplitude, decay and frequency. */

@@ -50,12 +50,17 @@ export interface EdgeFitResult {
   fresh: boolean;
 }
 
-/** Scratch buffers sized for one capture, reused across fits of the same capture. */
+/**
+ * Scratch buffers for one capture, reused across its fits (and, from captureWorkspace, across
+ * captures): their contents are undefined when a capture starts, and nothing the analysis
+ * returns may depend on them (the per-edge arrays are views of n entries into buffers that grow
+ * as needed).
+ */
 export class FitWorkspace {
-  readonly r: Float64Array;
-  readonly jac: Float64Array;
-  readonly slope: Float64Array;
-  readonly curvature: Float64Array;
+  r!: Float64Array;
+  jac!: Float64Array;
+  slope!: Float64Array;
+  curvature!: Float64Array;
   /** Edges to evaluate (null: all indexed edges). */
   mask: Float64Array | null = null;
   readonly h = new Float64Array(N_PARAMS * N_PARAMS);
@@ -73,7 +78,7 @@ export class FitWorkspace {
   readonly trial = new Float64Array(N_PARAMS);
   readonly work = new Float64Array(N_PARAMS * N_PARAMS + N_PARAMS);
   /** Geodesic acceleration: the Jacobian at the current point. */
-  readonly jp: Float64Array;
+  jp!: Float64Array;
   readonly ga = new Float64Array(N_PARAMS);
   readonly acc = new Float64Array(N_PARAMS);
   /** The damped system in centred coordinates (centre): its matrix, right-hand side, the two
@@ -93,38 +98,78 @@ export class FitWorkspace {
     const block = this.roundBlock;
     return Array.from({ length: count }, (_, i) => block.subarray(i * n, (i + 1) * n));
   }
+  private store = new Float64Array(0);
   constructor(n: number) {
-    this.r = new Float64Array(n);
-    this.jac = new Float64Array(4 * n);
-    this.slope = new Float64Array(n);
-    this.curvature = new Float64Array(n);
-    this.jp = new Float64Array(4 * n);
+    this.resize(n);
   }
+  /** Makes the per-edge arrays views of n entries (r, slope, curvature: n; jac, jp: 4n). */
+  resize(n: number): void {
+    if (this.store.length < 11 * n) this.store = new Float64Array(11 * n);
+    const s = this.store;
+    this.r = s.subarray(0, n);
+    this.jac = s.subarray(n, 5 * n);
+    this.slope = s.subarray(5 * n, 6 * n);
+    this.curvature = s.subarray(6 * n, 7 * n);
+    this.jp = s.subarray(7 * n, 11 * n);
+  }
+}
+
+/** Captures up to this many edges share one kept workspace (about 2 MB of buffers at most). */
+const KEPT_WORKSPACE_EDGES = 10_000;
+let kept: FitWorkspace | null = null;
+
+/**
+ * The workspace for one capture of n edges: the one kept from the last capture when n is at most
+ * KEPT_WORKSPACE_EDGES (so that a loop of analyses allocates its buffers once), else a new one.
+ * The analysis is synchronous and never holds two captures' workspaces at once.
+ */
+export function captureWorkspace(n: number): FitWorkspace {
+  if (n > KEPT_WORKSPACE_EDGES) return new FitWorkspace(n);
+  if (kept) kept.resize(n);
+  else kept = new FitWorkspace(n);
+  return kept;
+}
+
+/** How one fit runs (fitEdgeModel), besides its edges, start, weights and workspace. */
+export interface EdgeFitOptions {
+  /** Rising and falling thresholds, volts. */
+  vh_v: number;
+  vl_v: number;
+  /** Each edge's timing variance for the residuals' second-order term, s^2 (null: none). */
+  timingVar_s2: Float64Array | null;
+  limits: FitLimits | null;
+  /** At most this many accepted steps (default 60). */
+  maxIterations?: number;
+  /** Stopping tolerance in chi2 (default 1e-6). */
+  tolChi2?: number;
+  /** ws.r and ws.jac already hold the model at the start: it is not evaluated there again. */
+  reuseEvaluation?: boolean;
+  /** Only edges with weight > 0 are evaluated (default: every indexed edge, weight zero
+   *  included, so rejected edges can be re-tested). */
+  weightedOnly?: boolean;
 }
 
 /**
  * Minimises sum w_k r_k^2 over the edges with w_k > 0 and finite m, starting at p0. Stops when a
- * step gains less than `tol_chi2`, or when the quadratic model, having just predicted a step's
- * gain (within a factor 2), predicts less than `tol_chi2` still to gain (chi2 is in units of the
+ * step gains less than `tolChi2`, or when the quadratic model, having just predicted a step's
+ * gain (within a factor 2), predicts less than `tolChi2` still to gain (chi2 is in units of the
  * noise model: the analysis's 1e-3 leaves the parameters within about 0.03 standard deviations
  * of the minimum, analyze-ring.ts FIT_TOL_CHI2).
  *
- * Every indexed edge is evaluated (weight zero included, so rejected edges can be re-tested),
- * unless `only_weighted`.
- * With `reuse`, ws.r and ws.jac already hold the model at p0 and are not evaluated again. On
- * return `fresh` says whether ws.r, ws.jac, ws.slope and ws.curvature belong to the returned p
+ * On return `fresh` says whether ws.r, ws.jac, ws.slope and ws.curvature belong to the returned p
  * (false only when the last evaluated trial step was refused).
  */
 export function fitEdgeModel(
-  e: EdgeSet, vh_v: number, vl_v: number, p0: ArrayLike<number>, w: Float64Array, var_t_s2: Float64Array | null,
-  ws: FitWorkspace, limits: FitLimits | null, max_iterations = 60, tol_chi2 = 1e-6, reuse = false,
-  only_weighted = false,
+  e: EdgeSet, p0: ArrayLike<number>, w: Float64Array, ws: FitWorkspace, o: EdgeFitOptions,
 ): EdgeFitResult {
+  const maxIterations = o.maxIterations ?? 60;
+  const tolChi2 = o.tolChi2 ?? 1e-6;
+  const limits = o.limits;
   const p = Float64Array.from(p0);
-  ws.mask = only_weighted ? w : null;
-  let chi2 = reuse
+  ws.mask = o.weightedOnly ? w : null;
+  let chi2 = o.reuseEvaluation
     ? sums(p, e, w, limits, ws, ws.h, ws.g)
-    : accumulate(p, e, vh_v, vl_v, w, var_t_s2, limits, ws, ws.h, ws.g);
+    : accumulate(p, e, w, o, ws, ws.h, ws.g);
   let fresh = true;
   ws.hp1.set(ws.hp);
   ws.gp1.set(ws.gp);
@@ -138,7 +183,7 @@ export function fitEdgeModel(
   let it = 0;
   // ws.jp keeps the Jacobian at p for the geodesic acceleration (a trial overwrites ws.jac).
   ws.jp.set(ws.jac);
-  for (; it < max_iterations && !converged; it++) {
+  for (; it < maxIterations && !converged; it++) {
     for (let i = 0; i < N_PARAMS * N_PARAMS; i++) ws.hs[i] = ws.h[i] + ws.hp1[i];
     for (let i = 0; i < N_PARAMS; i++) ws.gs[i] = -(ws.g[i] + ws.gp1[i]);
     centre(ws);
@@ -150,7 +195,7 @@ export function fitEdgeModel(
     if (modelHolds && solveDamped(N_PARAMS, ws.hs, ws.gs, 0, ws.step, ws.work)) {
       let decrement = 0;
       for (let i = 0; i < N_PARAMS; i++) decrement += ws.gs[i] * ws.step[i];
-      if (decrement <= tol_chi2) {
+      if (decrement <= tolChi2) {
         converged = true;
         break;
       }
@@ -175,14 +220,14 @@ export function fitEdgeModel(
       }
       // The trial is evaluated with its Jacobian: most trials are accepted, and this saves
       // evaluating the accepted point twice.
-      const trialChi2 = accumulate(ws.trial, e, vh_v, vl_v, w, var_t_s2, limits, ws, ws.h2, ws.g2);
+      const trialChi2 = accumulate(ws.trial, e, w, o, ws, ws.h2, ws.g2);
       fresh = trialChi2 <= chi2;
       if (trialChi2 <= chi2) {
         const drop = chi2 - trialChi2;
         // The step taken, geodesic acceleration included, is what the model's prediction and the
         // small-step test must judge.
         for (let i = 0; i < N_PARAMS; i++) ws.step[i] = ws.trial[i] - p[i];
-        converged = drop <= tol_chi2 + 1e-12 * chi2 || smallStep(p, ws.step);
+        converged = drop <= tolChi2 + 1e-12 * chi2 || smallStep(p, ws.step);
         const predicted = predictedGain(ws.hs, ws.gs, ws.step);
         modelHolds = drop >= MODEL_HOLDS_LO * predicted && drop <= MODEL_HOLDS_HI * predicted;
         p.set(ws.trial);
@@ -360,11 +405,10 @@ function smallStep(p: Float64Array, step: Float64Array): boolean {
 
 /** chi2 at p, with J^T W J into h and J^T W r into g. */
 function accumulate(
-  p: Float64Array, e: EdgeSet, vh_v: number, vl_v: number, w: Float64Array, var_t_s2: Float64Array | null,
-  limits: FitLimits | null, ws: FitWorkspace, h: Float64Array, g: Float64Array,
+  p: Float64Array, e: EdgeSet, w: Float64Array, o: EdgeFitOptions, ws: FitWorkspace, h: Float64Array, g: Float64Array,
 ): number {
-  evaluateEdges(p, e, vh_v, vl_v, ws.mask, var_t_s2, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
-  return sums(p, e, w, limits, ws, h, g);
+  evaluateEdges(p, e, o.vh_v, o.vl_v, ws.mask, o.timingVar_s2, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
+  return sums(p, e, w, o.limits, ws, h, g);
 }
 
 /** chi2 and the normal equations from the residuals and Jacobian already in ws. */

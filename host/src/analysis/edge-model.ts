@@ -69,6 +69,18 @@ const INV_SQ_CONT = 1 / Math.sqrt(1 - U_CONT * U_CONT);
 export const C2_CONT = (U_CONT * U_CONT) / (1 - U_CONT * U_CONT);
 
 /**
+ * Work count for the benchmark (docs/performance.md, `analysis.evaluations_per_capture`): per-edge
+ * model evaluations by evaluateEdges since the process started, one per edge evaluated whatever
+ * outputs were asked for. Internal: read with modelEvaluations(), not part of the public API.
+ */
+let evaluations = 0;
+
+/** Per-edge model evaluations so far (the benchmark's work count; see `evaluations`). */
+export function modelEvaluations(): number {
+  return evaluations;
+}
+
+/**
  * Evaluates the model at every edge with a finite m and (if `mask` is given) mask[k] > 0.
  * `var_t_s2[k]` is edge k's timing variance for the second-order correction (null: none).
  */
@@ -94,9 +106,11 @@ export function evaluateEdges(
   const form = e.form;
   const scale = e.scale_v;
   const n = e.n;
+  let count = 0;
   for (let k = 0; k < n; k++) {
     const m = ms[k];
     if (m !== m || (mask !== null && !(mask[k] > 0))) continue;
+    count++;
     const t = ts[k];
     const rise = rising[k] === 1;
     const level = rise ? vh_v : vl_v;
@@ -143,6 +157,29 @@ export function evaluateEdges(
     if (slope !== null) slope[k] = wd * ac - alpha * v;
     if (curvature !== null) curvature[k] = vpp;
   }
+  evaluations += count;
+}
+
+/**
+ * Slope and curvature at p (as evaluateEdges gives them) of the edges WITHOUT a half-cycle index,
+ * which evaluateEdges skips: neither needs the index, and the residual variance of such an edge
+ * (noise-model.ts updateVariances), which decides duplicates when it is indexed again, then rests
+ * on its own slope at the model rather than on whatever the output arrays held. `view` (n
+ * entries) is scratch for the indices; returns how many edges were evaluated.
+ */
+export function evaluateUnindexed(
+  p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number, view: Float64Array,
+  out: { slope: Float64Array; curvature: Float64Array },
+): number {
+  let count = 0;
+  for (let k = 0; k < e.n; k++) {
+    const none = e.m[k] !== e.m[k];
+    // Any index serves: it enters the residual only, which is not asked for.
+    view[k] = none ? 0 : NaN;
+    if (none) count++;
+  }
+  if (count > 0) evaluateEdges(p, { ...e, m: view }, vh_v, vl_v, null, null, out);
+  return count;
 }
 
 /**

@@ -22,7 +22,7 @@ import type { CheckedInput } from "./validate-input.ts";
  * to an earlier fit's end is not fitted at all (it would only roll to the same minimum).
  */
 export function rankStarts(
-  candidates: InitialGuess[], e: EdgeSet, subset: Float64Array, c: CheckedInput, q: number, ws: FitWorkspace,
+  candidates: InitialGuess[], e: EdgeSet, subset: Float64Array, c: CheckedInput, tickVar_s2: number, ws: FitWorkspace,
   limits: FitLimits,
 ): RankedStart[] {
   if (candidates.length === 1) return [{ ...candidates[0], chi2: 0, nll: 0 }];
@@ -32,7 +32,7 @@ export function rankStarts(
   const sub = subsetEdges(e, subset);
   const nSub = sub.n;
   const scratch = new Float64Array(5 * nSub);
-  const varT = Math.max(candidates[0].ms_residual_s2, q);
+  const startVar_s2 = Math.max(candidates[0].ms_residual_s2, tickVar_s2);
   const out: (RankedStart & { normal: Float64Array })[] = [];
   const near = (p: Float64Array) => out.findIndex((o) => samePoint(p, o.p, o.normal, nSub / Math.max(o.chi2, 1)));
   let beyond = false;
@@ -46,13 +46,13 @@ export function rankStarts(
       beyond = true;
     }
     chooseResidualForms(cand.p, sub, c.vh_v, c.vl_v);
-    const w = initialVariance(cand.p, sub, varT, ws);
+    const w = initialVariance(cand.p, sub, startVar_s2, ws);
     for (let k = 0; k < nSub; k++) w[k] = 1 / w[k];
-    const fit = fitEdgeModel(sub, c.vh_v, c.vl_v, cand.p, w, null, ws, limits, 25, 1e-3, false, true);
+    const fit = fitEdgeModel(sub, cand.p, w, ws, { vh_v: c.vh_v, vl_v: c.vl_v, timingVar_s2: null, limits, maxIterations: 25, tolChi2: 1e-3, weightedOnly: true });
     if (!Number.isFinite(fit.chi2)) continue;
     if (!fit.fresh) evaluateEdges(fit.p, sub, c.vh_v, c.vl_v, null, null, { r: ws.r, slope: ws.slope, curvature: ws.curvature });
     // A likelihood that cannot be scored (a degenerate noise estimate) ranks last, by chi2.
-    const score = subsetNll(sub, ws, q, varT, fit.p[P_WD], scratch);
+    const score = subsetNll(sub, ws, tickVar_s2, startVar_s2, fit.p[P_WD], scratch);
     const nll = Number.isFinite(score) ? score : Infinity;
     const start = { p: fit.p, ms_residual_s2: cand.ms_residual_s2, chi2: fit.chi2, nll, normal: fit.normal };
     const j = near(fit.p);
@@ -87,9 +87,9 @@ function subsetEdges(e: EdgeSet, mask: Float64Array): EdgeSet {
  * negLogLikelihood), with the two noise components estimated from these
  * residuals (noise-model.ts; from the clean crossings when there are 12 or more).
  */
-function subsetNll(e: EdgeSet, ws: FitWorkspace, q: number, varT: number, wd: number, scratch: Float64Array): number {
+function subsetNll(e: EdgeSet, ws: FitWorkspace, tickVar_s2: number, startVar_s2: number, wd: number, scratch: Float64Array): number {
   const n = e.n;
-  const vt = scratch.subarray(0, n).fill(varT);
+  const vt = scratch.subarray(0, n).fill(startVar_s2);
   const v = scratch.subarray(n, 2 * n);
   const lev = scratch.subarray(2 * n, 3 * n).fill(0);
   const clean = scratch.subarray(3 * n, 4 * n);
@@ -102,8 +102,8 @@ function subsetNll(e: EdgeSet, ws: FitWorkspace, q: number, varT: number, wd: nu
   const r = ws.r.subarray(0, n);
   const slope = ws.slope.subarray(0, n);
   const curv = ws.curvature.subarray(0, n);
-  const noise = estimateNoise(r, slope, curv, vt, lev, nClean >= 12 ? clean : all, q, null);
-  updateVariances(q, noise, slope, curv, wd, all, null, vt, v, null);
+  const noise = estimateNoise({ r, slope, curvature: curv, timingVar_s2: vt, leverage: lev, mask: nClean >= 12 ? clean : all, tickVar_s2 }, null);
+  updateVariances({ tickVar_s2, noise, slope, curvature: curv, wd, assigned: all, used: null, timingVar_s2: vt, variance: v, r: null });
   return negLogLikelihood(r, vt, v, e, all);
 }
 
@@ -196,17 +196,35 @@ function subsetMask(e: EdgeSet, count: number, tail: number): Float64Array {
 
 /**
  * Round-0 variances: timing noise only, slopes floored so grazing edges do not dominate. With a
- * mask, only edges with mask[k] > 0 get one (the others stay Infinity).
+ * mask, only edges with mask[k] > 0 get one (the others stay Infinity). The slope is the ring's
+ * at its zero crossing (thresholds 0), which ws.slope also receives.
  */
 export function initialVariance(
   p: Float64Array, e: EdgeSet, var_t_s2: number, ws: FitWorkspace, mask: Float64Array | null = null,
 ): Float64Array {
   const out = new Float64Array(e.n).fill(Infinity);
-  evaluateEdges(p, e, 0, 0, mask, null, { slope: ws.slope });
+  const wd = p[P_WD];
+  const alpha = p[P_ALPHA];
   const a0 = Math.exp(p[P_LNA]);
+  // At a zero threshold a phase-form edge has u = 0, so its slope S_k (wd - alpha c) is S_k wd
+  // exactly (edge-model.ts) and needs no model evaluation; only level-form edges (and, to stay
+  // exact, any edge where u would not be a clean zero: e^(alpha t) or 1/A0 overflowing) are
+  // evaluated.
+  const exact = Number.isFinite(1 / a0) && Number.isFinite(alpha);
+  let evaluate: Float64Array | null = null;
   for (let k = 0; k < e.n; k++) {
     if (e.m[k] !== e.m[k] || (mask !== null && !(mask[k] > 0))) continue;
-    const floor = 0.3 * p[P_WD] * a0 * Math.exp(-p[P_ALPHA] * e.t_s[k]);
+    if (exact && e.form[k] === 1 && alpha * e.t_s[k] < 709) {
+      ws.slope[k] = e.scale_v[k] * wd;
+      continue;
+    }
+    evaluate ??= new Float64Array(e.n);
+    evaluate[k] = 1;
+  }
+  if (evaluate) evaluateEdges(p, e, 0, 0, evaluate, null, { slope: ws.slope });
+  for (let k = 0; k < e.n; k++) {
+    if (e.m[k] !== e.m[k] || (mask !== null && !(mask[k] > 0))) continue;
+    const floor = 0.3 * wd * a0 * Math.exp(-alpha * e.t_s[k]);
     out[k] = var_t_s2 * (ws.slope[k] * ws.slope[k] + floor * floor);
   }
   return out;

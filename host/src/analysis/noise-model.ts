@@ -24,54 +24,106 @@ export interface NoiseEstimate {
   sigma_v2: number;
 }
 
+/** What updateVariances reads and writes. */
+export interface VarianceUpdate {
+  /** tick^2 / 12, s^2. */
+  tickVar_s2: number;
+  noise: NoiseEstimate;
+  /** Each edge's slope (V/s) and curvature (V/s^2, times two) at the model (edge-model.ts). */
+  slope: Float64Array;
+  curvature: Float64Array;
+  /** Ring frequency, rad/s (the timing variance's cap). */
+  wd: number;
+  /** 1 for edges with a half-cycle index (a current slope). */
+  assigned: Float64Array;
+  /** 1 for edges in the fit, whose change is averaged (null: no average, 0 returned). */
+  used: Float64Array | null;
+  /** Out: each edge's timing variance, s^2 (in: the one the residuals were corrected with). */
+  timingVar_s2: Float64Array;
+  /** Out: each edge's residual variance, V^2. */
+  variance: Float64Array;
+  /** Residuals, moved to the new second-order correction (null: residuals without that term). */
+  r: Float64Array | null;
+  /**
+   * Out, when given (with r): each assigned edge's residual standardised by its new variance,
+   * and, in zUsed from index 0 in edge order, those of the used edges (their count is
+   * VarianceChange.used_z).
+   */
+  z?: Float64Array;
+  zUsed?: Float64Array;
+}
+
+export interface VarianceChange {
+  /** Mean relative change of Var(e_k) over the used edges (0 when `used` is null). */
+  mean_change: number;
+  /** How many standardised residuals went into zUsed. */
+  used_z: number;
+}
+
 /**
- * Sets every edge's timing variance var_t[k] (s^2) and residual variance Var(e_k) (V^2) from a
- * new noise estimate, in one pass. Edges with assigned[k] > 0 get the full timing variance and
- * have their residual r[k] moved to the new second-order correction (-curvature var_t / 2,
- * edge-model.ts; r null: residuals without that term, left alone); the others (no current
- * slope) get the slope-free part, so that an edge indexed later starts from a finite value.
- * Returns the mean relative change of Var(e_k) over the edges with used[k] > 0 (0 when `used`
- * is null).
+ * Sets every edge's timing variance and residual variance Var(e_k) (V^2) from a new noise
+ * estimate, in one pass. Edges with assigned[k] > 0 get the full timing variance and have their
+ * residual r[k] moved to the new second-order correction (-curvature var_t / 2, edge-model.ts);
+ * the others (no index, no residual) get the slope-free timing variance, and a residual variance
+ * from the slope and curvature the caller gives them (edge-model.ts evaluateUnindexed), so that
+ * an edge indexed later starts from a finite value of its own. The same pass standardises the
+ * residuals when asked (u.z).
  */
-export function updateVariances(
-  q_s2: number, noise: NoiseEstimate, slope: Float64Array, curvature: Float64Array, wd: number,
-  assigned: Float64Array, used: Float64Array | null, var_t: Float64Array, variance: Float64Array,
-  r: Float64Array | null,
-): number {
-  const cap = 1 / (wd * wd);
-  const vt = q_s2 + noise.sigma_t2;
-  const sv2 = noise.sigma_v2;
+export function updateVariances(u: VarianceUpdate): VarianceChange {
+  const { slope, curvature, assigned, used, timingVar_s2: varT, variance, r } = u;
+  const z = r !== null && u.z ? u.z : null;
+  const zUsed = u.zUsed ?? null;
+  const cap = 1 / (u.wd * u.wd);
+  const vt = u.tickVar_s2 + u.noise.sigma_t2;
+  const sv2 = u.noise.sigma_v2;
   let change = 0;
   let counted = 0;
-  for (let k = 0; k < var_t.length; k++) {
+  let nz = 0;
+  for (let k = 0; k < varT.length; k++) {
     const s = slope[k];
     const c = curvature[k];
     const isAssigned = assigned[k] > 0;
     const vk = isAssigned ? Math.min(cap, vt + sv2 / (s * s)) : vt;
-    if (isAssigned && r !== null) r[k] -= 0.5 * c * (vk - var_t[k]);
-    var_t[k] = vk;
+    if (isAssigned && r !== null) r[k] -= 0.5 * c * (vk - varT[k]);
+    varT[k] = vk;
     const before = variance[k];
     const after = sv2 + s * s * vt + 0.5 * c * c * vk * vk;
     variance[k] = after;
+    if (z !== null && isAssigned) {
+      z[k] = r![k] / Math.sqrt(after);
+      if (zUsed !== null && used !== null && used[k] > 0) zUsed[nz++] = z[k];
+    }
     if (used !== null && used[k] > 0) {
       change += Math.abs(after - before) / before;
       counted++;
     }
   }
-  return counted > 0 ? change / counted : 0;
+  return { mean_change: counted > 0 ? change / counted : 0, used_z: nz };
+}
+
+/** The residuals the noise is estimated from (estimateNoise). */
+export interface NoiseSample {
+  /** Residuals (volts), slopes and curvatures at the model, per edge. */
+  r: Float64Array;
+  slope: Float64Array;
+  curvature: Float64Array;
+  /** The timing variances the residuals were corrected with, s^2. */
+  timingVar_s2: Float64Array;
+  /** Each edge's leverage in the fit. */
+  leverage: Float64Array;
+  /** Edges with mask[k] > 0 take part. */
+  mask: Float64Array;
+  /** tick^2 / 12, s^2. */
+  tickVar_s2: number;
 }
 
 /**
- * Estimates (sigma_t^2, sigma_v^2) from the residuals r (volts), slopes, curvatures, current
- * timing variances and leverages of the edges with mask[k] > 0. `start` seeds the clipping;
- * null starts from the median squared residual with all noise in time. `work`: optional scratch
- * arrays (see below), so that a caller in a loop does not allocate.
+ * Estimates (sigma_t^2, sigma_v^2) from the residuals of the edges with mask[k] > 0. `start`
+ * seeds the clipping; null starts from the median squared residual with all noise in time.
+ * `work`: optional scratch arrays (see below), so that a caller in a loop does not allocate.
  */
-export function estimateNoise(
-  r: Float64Array, slope: Float64Array, curvature: Float64Array, var_t: Float64Array,
-  leverage: Float64Array, mask: Float64Array, q_s2: number, start: NoiseEstimate | null,
-  work: Float64Array[] = [],
-): NoiseEstimate {
+export function estimateNoise(sample: NoiseSample, start: NoiseEstimate | null, work: Float64Array[] = []): NoiseEstimate {
+  const { r, slope, curvature, timingVar_s2: varT, leverage, mask, tickVar_s2 } = sample;
   const n = r.length;
   // What the iterations do not change, per edge with mask[k] > 0 and a finite residual, once:
   // x (slope^2 until xMean is known), the curvature term and r^2 / (1 - h); in `work` (four
@@ -86,7 +138,7 @@ export function estimateNoise(
     if (!(mask[k] > 0) || !Number.isFinite(r[k])) continue;
     const s2 = slope[k] * slope[k];
     xs[count] = s2;
-    curvs[count] = 0.5 * curvature[k] * curvature[k] * var_t[k] * var_t[k];
+    curvs[count] = 0.5 * curvature[k] * curvature[k] * varT[k] * varT[k];
     r2h[count] = (r[k] * r[k]) / (1 - Math.min(leverage[k], 0.9));
     xMean += s2;
     count++;
@@ -99,15 +151,15 @@ export function estimateNoise(
   let b: number;
   if (start) {
     a = start.sigma_v2;
-    b = (q_s2 + start.sigma_t2) * xMean;
+    b = (tickVar_s2 + start.sigma_t2) * xMean;
   } else {
     const ratio = scratch(3);
     let c = 0;
     for (let k = 0; k < n; k++) if (mask[k] > 0 && Number.isFinite(r[k])) ratio[c++] = (r[k] * r[k]) / (slope[k] * slope[k]);
     a = 0;
-    b = Math.max(q_s2, median(ratio, c, ratio) / 0.45493642) * xMean; // median of chi-square(1)
+    b = Math.max(tickVar_s2, median(ratio, c, ratio) / 0.45493642) * xMean; // median of chi-square(1)
   }
-  const bMin = q_s2 * xMean;
+  const bMin = tickVar_s2 * xMean;
   for (let c = 0; c < count; c++) xs[c] = xs[c] / xMean;
   for (let it = 0; it < 30; it++) {
     let s0 = 0, sx = 0, sxx = 0, sy = 0, sxy = 0;
@@ -146,7 +198,7 @@ export function estimateNoise(
     b = nb;
     if (change < 1e-2) break; // the weights need the noise to a few per cent at most
   }
-  return { sigma_t2: Math.max(0, b / xMean - q_s2), sigma_v2: a };
+  return { sigma_t2: Math.max(0, b / xMean - tickVar_s2), sigma_v2: a };
 }
 
 /** Edges beyond this many robust standard deviations are rejected (Gaussian odds ~6e-7); the

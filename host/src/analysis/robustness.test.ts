@@ -157,7 +157,7 @@ describe("the multimodal (A0, alpha) likelihood (docs/method.md §2)", () => {
       let f = { p: Float64Array.from(p0), chi2: 0, converged: false };
       for (let round = 0; round < 3; round++) {
         chooseResidualForms(f.p, s.edges, 0.02, -0.02);
-        f = fitEdgeModel(s.edges, 0.02, -0.02, f.p, w, null, ws, null, 300);
+        f = fitEdgeModel(s.edges, f.p, w, ws, { vh_v: 0.02, vl_v: -0.02, timingVar_s2: null, limits: null, maxIterations: 300 });
       }
       return f;
     };

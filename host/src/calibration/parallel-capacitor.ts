@@ -11,6 +11,7 @@ import { CalibrationError } from "./errors.ts";
 import { propagate } from "./gum-propagation.ts";
 import type { TankEntry } from "./profile-schema.ts";
 import type { PartEstimate } from "../ranging/estimate.ts";
+import { formatValue } from "../values/format-value.ts";
 import { estimateOf, fitRelUF0, meanWithU, readOnTank } from "./tank-reading.ts";
 
 export interface ParallelCapacitor {
@@ -35,18 +36,26 @@ export interface ParallelResult {
 /** Smallest added capacitance, as a fraction of the tank, whose frequency shift still resolves C well. */
 export const MIN_ADDED_RATIO = 0.05;
 
+/**
+ * What can be refused before any pulse: a capacitor without a positive value, or too small a
+ * part of the tank to move the ring measurably (OUT_OF_SPAN).
+ */
+export function checkParallelCapacitor(tank: number, nominal_f: number, cap: ParallelCapacitor): void {
+  if (!(cap.capacitance_f > 0) || !(cap.u_capacitance_f >= 0)) {
+    throw new CalibrationError("BAD_REFERENCE", `the added capacitor must have a positive value and a non-negative uncertainty, got ${formatValue(cap.capacitance_f, "F")} ± ${formatValue(cap.u_capacitance_f, "F")}`);
+  }
+  if (cap.capacitance_f < MIN_ADDED_RATIO * nominal_f) {
+    throw new CalibrationError("OUT_OF_SPAN", `the added ${formatValue(cap.capacitance_f, "F")} is under ${MIN_ADDED_RATIO * 100} % of tank ${tank} (${formatValue(nominal_f, "F")}): the shift is too small to resolve; use a capacitor of 30-300 % of the tank (${formatValue(0.3 * nominal_f, "F", 3)} to ${formatValue(3 * nominal_f, "F", 3)})`);
+  }
+}
+
 /** Pure core: C from the two frequencies (each with its fit's standard uncertainty). */
 export function tankFromParallel(
   tank: number, nominal_f: number, fa: { f_hz: number; u_hz: number }, fb: { f_hz: number; u_hz: number }, cap: ParallelCapacitor,
 ): ParallelResult {
-  if (!(cap.capacitance_f > 0) || !(cap.u_capacitance_f >= 0)) {
-    throw new CalibrationError("BAD_REFERENCE", `the added capacitor must have a positive value and a non-negative uncertainty, got ${cap.capacitance_f} F ± ${cap.u_capacitance_f} F`);
-  }
-  if (cap.capacitance_f < MIN_ADDED_RATIO * nominal_f) {
-    throw new CalibrationError("OUT_OF_SPAN", `the added ${cap.capacitance_f} F is under ${MIN_ADDED_RATIO * 100} % of tank ${tank} (${nominal_f} F): the shift is too small to resolve; use a capacitor of 30-300 % of the tank`);
-  }
+  checkParallelCapacitor(tank, nominal_f, cap);
   if (!(fb.f_hz < fa.f_hz)) {
-    throw new CalibrationError("NONSENSE_RESULT", `the ring with the capacitor (${fb.f_hz} Hz) is not lower than without it (${fa.f_hz} Hz): it was not connected, or the readings are swapped; measure again`);
+    throw new CalibrationError("NONSENSE_RESULT", `the ring with the capacitor (${formatValue(fb.f_hz, "Hz", 7)}) is not lower than without it (${formatValue(fa.f_hz, "Hz", 7)}): it was not connected, or the readings are swapped; measure again`);
   }
   const model = (x: number[]) => {
     const [a, b, ca, cs] = x;
@@ -59,9 +68,9 @@ export function tankFromParallel(
     { name: "added capacitor", value: cap.capacitance_f, u: cap.u_capacitance_f },
     { name: "part Cs", value: cap.part_self_capacitance_f ?? 0, u: cap.u_part_self_capacitance_f ?? 0 },
   ]);
-  if (!(c.value > 0)) throw new CalibrationError("NONSENSE_RESULT", `tank ${tank}: the readings give a negative capacitance (${c.value} F); check the capacitor's value and measure again`);
+  if (!(c.value > 0)) throw new CalibrationError("NONSENSE_RESULT", `tank ${tank}: the readings give a negative capacitance (${formatValue(c.value, "F")}); check the capacitor's value and measure again`);
   if (c.value < 0.5 * nominal_f || c.value > 2 * nominal_f) {
-    throw new CalibrationError("NONSENSE_RESULT", `tank ${tank}: the readings give ${c.value} F against a nominal ${nominal_f} F; the capacitor's value (or its unit) is probably wrong`);
+    throw new CalibrationError("NONSENSE_RESULT", `tank ${tank}: the readings give ${formatValue(c.value, "F")} against a nominal ${formatValue(nominal_f, "F")}; the capacitor's value (or its unit) is probably wrong`);
   }
   return { tank, c_f: c.value, u_f: c.u, part_inductance_h: l.value, fa_hz: fa.f_hz, fb_hz: fb.f_hz };
 }
@@ -85,6 +94,7 @@ export async function calibrateWithParallelCapacitor(
 ): Promise<{ entry: TankEntry; result: ParallelResult }> {
   const nominal = client.profile.tanks[tank]?.nominal_f;
   if (nominal === undefined) throw new RangeError(`tank ${tank} does not exist on this tester (0..${client.profile.tanks.length - 1})`);
+  checkParallelCapacitor(tank, nominal, cap);
   const base: AppliedCalibration | undefined = opts.calibration ? { ...opts.calibration, tanks: undefined } : undefined;
   const n = opts.repeats ?? 3;
   // The capacitor changes the part's ring, so each series learns its own estimate.
@@ -110,7 +120,7 @@ export async function calibrateWithParallelCapacitor(
   const entry: TankEntry = {
     index: tank, nominal_f: nominal, c_f: result.c_f, u_f: result.u_f, shared_u_rel: 0, timebase_ppm: opts.timebase_ppm ?? 0, drive: a.drive,
     method: "parallel-capacitor", time: (opts.now ?? (() => new Date()))().toISOString(),
-    detail: `added ${cap.capacitance_f} F ± ${cap.u_capacitance_f} F (k = 1), part Cs ${cap.part_self_capacitance_f ?? 0} F; ${a.f_hz.toFixed(1)} Hz -> ${b.f_hz.toFixed(1)} Hz`,
+    detail: `added ${formatValue(cap.capacitance_f, "F", 6)} ± ${formatValue(cap.u_capacitance_f, "F", 3)} (k = 1), part Cs ${formatValue(cap.part_self_capacitance_f ?? 0, "F", 3)}; ${formatValue(a.f_hz, "Hz", 7)} -> ${formatValue(b.f_hz, "Hz", 7)}`,
   };
   return { entry, result };
 }

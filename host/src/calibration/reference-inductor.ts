@@ -11,6 +11,8 @@ import type { Reading } from "../measure/measure-part.ts";
 import { measurePart } from "../measure/measure-part.ts";
 import { CalibrationError } from "./errors.ts";
 import type { TankEntry } from "./profile-schema.ts";
+import { PROFILE_TANK_TOLERANCE } from "../measure/plausibility.ts";
+import { formatValue } from "../values/format-value.ts";
 import { MIN_TICKS_PER_PERIOD, estimateOf, fitRelUF0, meanWithU, readOnTank } from "./tank-reading.ts";
 
 export interface ReferenceInductor {
@@ -38,12 +40,48 @@ export interface TankFromReference {
   drive: number;
 }
 
+/**
+ * The reference's first (auto-ranged, uncalibrated) reading disagrees with its entered value by
+ * more than this: no tank a profile accepts is further from nominal (PROFILE_TANK_TOLERANCE), so
+ * the entered value (or the part on the clips) is wrong, and the procedure stops after one pulse.
+ */
+export const MAX_REFERENCE_DISAGREEMENT = PROFILE_TANK_TOLERANCE;
+
+/** REFERENCE_MISMATCH with what was read, what was entered, and the likely intended value (a slipped prefix or code). */
+export class ReferenceMismatchError extends CalibrationError {
+  constructor(readonly reading_h: number, readonly entered_h: number, readonly likely_h: number | undefined, message: string) {
+    super("REFERENCE_MISMATCH", message);
+  }
+}
+
+/**
+ * The likely intended reference value when the reading is a power of ten away from the entered
+ * one (within MAX_REFERENCE_DISAGREEMENT): a prefix slip or a marking code read as a plain value.
+ */
+export function likelyReferenceValue(entered_h: number, reading_h: number): number | undefined {
+  const k = Math.round(Math.log10(reading_h / entered_h));
+  if (k === 0 || !Number.isFinite(k)) return undefined;
+  const likely = entered_h * 10 ** k;
+  return Math.abs(reading_h / likely - 1) <= MAX_REFERENCE_DISAGREEMENT ? Number(likely.toPrecision(12)) : undefined;
+}
+
+/** Throws REFERENCE_MISMATCH when the first reading is too far from the entered value. */
+export function checkFirstReading(ref: ReferenceInductor, reading_h: number): void {
+  if (Math.abs(reading_h / ref.inductance_h - 1) <= MAX_REFERENCE_DISAGREEMENT) return;
+  const likely = likelyReferenceValue(ref.inductance_h, reading_h);
+  throw new ReferenceMismatchError(
+    reading_h, ref.inductance_h, likely,
+    `the reference reads ${formatValue(reading_h, "H", 4)} on its first ring, ${formatValue(ref.inductance_h, "H", 4)} was entered: more than the ±${MAX_REFERENCE_DISAGREEMENT * 100} % any tank tolerance explains. ` +
+      `Nothing is stored. ${likely !== undefined ? `The reference is probably ${formatValue(likely, "H", 4)}: enter that value` : "Check the entered value and its unit, and that the reference (not another part) is on the clips"}, then calibrate again`,
+  );
+}
+
 export function checkReference(ref: ReferenceInductor): void {
   if (!(ref.inductance_h > 0) || !Number.isFinite(ref.inductance_h)) {
-    throw new CalibrationError("BAD_REFERENCE", `the reference inductance must be a positive number of henries, got ${ref.inductance_h}; give its certified value`);
+    throw new CalibrationError("BAD_REFERENCE", `the reference inductance must be a positive number of henries, got ${formatValue(ref.inductance_h, "H")}; give its certified value`);
   }
   if (!(ref.u_inductance_h > 0) || ref.u_inductance_h > 0.05 * ref.inductance_h) {
-    throw new CalibrationError("BAD_REFERENCE", `the reference's standard uncertainty must be positive and at most 5 % of its value, got ${ref.u_inductance_h} H; a worse reference cannot calibrate a ±1 % tank`);
+    throw new CalibrationError("BAD_REFERENCE", `the reference's standard uncertainty must be positive and at most 5 % of its value, got ${formatValue(ref.u_inductance_h, "H")}; a worse reference cannot calibrate a ±1 % tank`);
   }
   const cs = ref.self_capacitance_f ?? 0;
   if (cs < 0 || (ref.u_self_capacitance_f ?? 0) < 0) throw new CalibrationError("BAD_REFERENCE", "the reference's self-capacitance and its uncertainty must not be negative");
@@ -68,10 +106,10 @@ export function tankFromReadings(tank: number, nominal_f: number, readings: { f0
   // u(C)/C from the ring is 2 u(f)/f per reading.
   const m = meanWithU(c, readings.map((r, i) => 2 * r.fit_rel_u_f * c[i]));
   if (!(m.mean > 0)) {
-    throw new CalibrationError("NONSENSE_RESULT", `tank ${tank}: the reference gives a negative capacitance (${m.mean} F); check the reference value and its self-capacitance, then calibrate again`);
+    throw new CalibrationError("NONSENSE_RESULT", `tank ${tank}: the reference gives a negative capacitance (${formatValue(m.mean, "F")}); check the reference value and its self-capacitance, then calibrate again`);
   }
   if (m.mean < 0.5 * nominal_f || m.mean > 2 * nominal_f) {
-    throw new CalibrationError("NONSENSE_RESULT", `tank ${tank}: the reference gives ${m.mean} F against a nominal ${nominal_f} F; the reference value (or its unit) is probably wrong`);
+    throw new CalibrationError("NONSENSE_RESULT", `tank ${tank}: the reference gives ${formatValue(m.mean, "F")} against a nominal ${formatValue(nominal_f, "F")}; the reference value (or its unit) is probably wrong`);
   }
   const sharedRel = ref.u_inductance_h / ref.inductance_h; // C ∝ 1/L_ref
   const u = Math.hypot(m.u, sharedRel * m.mean, ref.u_self_capacitance_f ?? 0);
@@ -111,7 +149,8 @@ export async function calibrateWithReference(client: DeviceClient, ref: Referenc
   const base: AppliedCalibration | undefined = opts.calibration ? { ...opts.calibration, tanks: undefined } : undefined;
   const out: ReferenceOutcome = { entries: [], results: [], skipped: [] };
   // One auto-ranged reading first: its drive is the natural first choice on every tank.
-  const auto = await measurePart(client, { calibration: base, onProgress: opts.onProgress });
+  const auto = await measurePart(client, { calibration: base, onProgress: opts.onProgress, onBeforePulse: opts.onBeforePulse });
+  checkFirstReading(ref, auto.analysis.inductance_h);
   let prefer: number | undefined = auto.settings.drive;
   const estimate = estimateOf(client, auto);
   for (const tank of wanted) {
@@ -141,8 +180,8 @@ export async function calibrateWithReference(client: DeviceClient, ref: Referenc
     out.entries.push({
       index: tank, nominal_f: nominal, c_f: res.c_f, u_f: res.u_f, shared_u_rel: res.shared_u_rel, shared_offset_u_f: res.shared_offset_u_f,
       timebase_ppm: opts.timebase_ppm ?? 0, drive: res.drive, method: "reference-inductor", time: (opts.now ?? (() => new Date()))().toISOString(),
-      detail: `reference ${ref.label ?? ""} ${ref.inductance_h} H ± ${ref.u_inductance_h} H (k = 1)`.replace(/\s+/g, " ") +
-        `, Cs ${ref.self_capacitance_f ?? 0} F; ${res.readings} rings at ${res.f0_hz.toFixed(1)} Hz on drive ${res.drive}`,
+      detail: `reference ${ref.label ?? ""} ${formatValue(ref.inductance_h, "H", 6)} ± ${formatValue(ref.u_inductance_h, "H", 3)} (k = 1)`.replace(/\s+/g, " ") +
+        `, Cs ${formatValue(ref.self_capacitance_f ?? 0, "F", 3)}; ${res.readings} rings at ${formatValue(res.f0_hz, "Hz", 7)} on drive ${res.drive}`,
     });
   }
   if (out.entries.length === 0) {

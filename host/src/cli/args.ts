@@ -7,7 +7,7 @@ type OptionsConfig = NonNullable<ParseArgsConfig["options"]>;
 import { CliUsageError } from "./errors.ts";
 import { suggest } from "./suggest.ts";
 import { parseValue, parseValueIn, ValueError, type ParsedValue } from "../values/parse-value.ts";
-import { parseTolerance, type Tolerance } from "../values/tolerance.ts";
+import { nominalTolerance, parseTolerance, TOLERANCE_LETTERS, type Tolerance } from "../values/tolerance.ts";
 
 type Parsed<T extends OptionsConfig> = ReturnType<typeof parseArgs<{ args: string[]; options: T; allowPositionals: true; strict: true }>>;
 
@@ -110,4 +110,22 @@ export function requiredValue(v: string | undefined, name: string, unit: string,
 /** A tolerance option (5%, J, +10%/-5%, 0.5u) with the option named in the message. */
 export function toleranceOption(v: string, name: string, unit = "H"): Tolerance {
   return optionValue(name, () => parseTolerance(v, unit));
+}
+
+/**
+ * The tolerance of a value option that may end in a tolerance letter (--nominal 10uH F) and a
+ * --tol beside it: either alone, or both when they agree; two that differ are refused with both
+ * ways to write it. Undefined when neither is given.
+ */
+export function toleranceOnce(name: string, text: string, value: ParsedValue, tolText: string | undefined): Tolerance | undefined {
+  const given = tolText === undefined ? undefined : toleranceOption(tolText, "tol");
+  try {
+    return nominalTolerance(value, given);
+  } catch (e) {
+    if (!(e instanceof ValueError && e.code === "TOLERANCE_CONFLICT")) throw e;
+    const bare = text.trim().slice(0, -1).trim();
+    throw new CliUsageError(
+      `--${name} "${text}" ends in the tolerance letter ${value.toleranceLetter} (±${Number((TOLERANCE_LETTERS[value.toleranceLetter!] * 100).toPrecision(6))} %) but --tol says ${given!.text}: give the tolerance once, either --${name} "${bare}" --tol ${tolText} or --${name} "${text}" without --tol`,
+    );
+  }
 }

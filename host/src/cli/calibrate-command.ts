@@ -18,9 +18,15 @@ import { resolvePeakLimit } from "../ranging/safety.ts";
 import { PulseCaution } from "./caution.ts";
 import type { SettingPrediction } from "../ranging/predict.ts";
 import { measureLeadInductance } from "../calibration/nulling.ts";
-import { calibrationChanges, describeChanges } from "../calibration/calibration-change.ts";
+import { describeChanges } from "../calibration/calibration-change.ts";
 import type { TankEntry } from "../calibration/profile-schema.ts";
 import { SHORTED_CLIPS } from "../sim/scenario.ts";
+import {
+  ReferenceMismatchError, chooseTimebase, enteredTimebase, measuredTimebase, ppmText, profileTerms, referenceThroughLeads, tankChanges,
+  withEntry, withTankEntries, withTimebase,
+} from "../calibration/index.ts";
+import type { TimebaseEntry } from "../calibration/index.ts";
+import { formatMeasured, formatValue, iecCode } from "../values/format-value.ts";
 
 /**
  * A calibration value through the one value parser: `330u`, `4n7`, `330uH`, `1.5e-3`, `4R7`;
@@ -29,6 +35,12 @@ import { SHORTED_CLIPS } from "../sim/scenario.ts";
 function quantity(text: string | undefined, name: string, unit: "H" | "F", opts: { optional?: boolean; range?: { min: number; max: number; what: string } } = {}): number | undefined {
   if (text === undefined && opts.optional) return undefined;
   const example = unit === "H" ? "330u" : "4n7";
+  // Three bare digits are an inductor marking code (330 = 33 µH): say so, as the value is used.
+  if (unit === "H" && text !== undefined && /^\d\d\d$/.test(text.trim())) {
+    const t = text.trim();
+    const code = Number(t.slice(0, 2)) * 10 ** Number(t[2]) * 1e-6;
+    progress(`--${name} ${t} is read as an inductor marking code: ${formatValue(code, "H")} (write ${t}u for ${formatValue(Number(t) * 1e-6, "H")})`);
+  }
   const v = requiredValue(text, name, unit, example, opts.range ?? { min: opts.optional ? 0 : Number.MIN_VALUE, max: unit === "H" ? 100 : 1, what: `a positive ${unit === "H" ? "inductance" : "capacitance"}` }).value;
   return v;
 }
@@ -51,7 +63,7 @@ export async function runCalibrate(args: string[]): Promise<number> {
     }, parallel, true);
     case "thresholds": return withTester(rest, { captures: { type: "string" } }, thresholds, true);
     case "skew": return withTester(rest, { captures: { type: "string" }, tanks: { type: "string" } }, skew, true);
-    case "timebase": return withTester(rest, { ppm: { type: "string" }, "u-ppm": { type: "string" }, seconds: { type: "string" } }, timebase);
+    case "timebase": return withTester(rest, { ppm: { type: "string" }, "u-ppm": { type: "string" }, seconds: { type: "string" }, "accept-shift": { type: "boolean" } }, timebase);
     case "short": return withTester(rest, { repeats: { type: "string" } }, short, true);
     default:
       throw new CliUsageError(`calibrate needs one of: show, reference, parallel, thresholds, skew, timebase, short, restore${sub ? ` (got "${sub}")` : ""}`);
@@ -104,7 +116,6 @@ let jsonMode = false;
 const say = (text: string) => (jsonMode ? process.stderr : process.stdout).write(text);
 
 function commit(profile: CalibrationProfile, store: StoreOptions, result: unknown): void {
-  profile.updated = new Date().toISOString();
   const r = saveProfile(profile, store);
   say(`   saved ${r.path}${r.previous_kept ? " (previous profile kept)" : ""}\n`);
   if (jsonMode) process.stdout.write(JSON.stringify({ saved: r.path, previous_kept: r.previous_kept, result }, null, 2) + "\n");
@@ -113,29 +124,35 @@ function commit(profile: CalibrationProfile, store: StoreOptions, result: unknow
 function show(t: OpenedTester, store: StoreOptions, json: boolean): Promise<number> {
   const id = t.client.identity.device_id;
   const p = loadProfile(id, store);
+  const terms = p ? profileTerms(p) : [];
   if (json) {
-    process.stdout.write(JSON.stringify({ path: profilePaths(id, store).current, profile: p }, null, 2) + "\n");
+    process.stdout.write(JSON.stringify({ path: profilePaths(id, store).current, profile: p, terms }, null, 2) + "\n");
     return Promise.resolve(0);
   }
   const lines = [`── calibration of tester ${id}: ${p ? profilePaths(id, store).current : "none (nominal values are used)"}`];
   if (p) {
-    const applied = appliedCalibration(p, "");
+    const row = (name: string, text: string) => lines.push(`   ${name.padEnd(12)} ${text}`);
+    const provenance = (x: { method: string; time: string; detail: string }) => lines.push(`   ${"".padEnd(12)}   ${x.method}, ${x.time}${x.detail ? `: ${x.detail}` : ""}`);
     for (const tank of t.client.profile.tanks) {
-      const e = p.tanks.find((x) => x.index === tank.index);
-      const now = applied.tanks?.[tank.index];
-      lines.push(e && now
-        ? `   tank ${tank.index}       ${formatSi(now.c_f, "F", 5)} ± ${formatSi(2 * now.u_f, "F", 2)} (k = 2), nominal ${formatSi(tank.nominal_f, "F", 3)}; ${e.method} ${e.time}`
-        : `   tank ${tank.index}       nominal ${formatSi(tank.nominal_f, "F", 3)} (not calibrated)`);
+      const term = terms.find((x) => x.term === `tank ${tank.index}`);
+      if (term) {
+        row(term.term, term.text);
+        provenance(term);
+      } else row(`tank ${tank.index}`, `nominal ${formatValue(tank.nominal_f, "F", 3)} (not calibrated)`);
     }
-    lines.push(p.thresholds
-      ? `   thresholds   ${formatSi(p.thresholds.thresholds_v[0], "V", 4)} / ${formatSi(p.thresholds.thresholds_v[1], "V", 4)}, ratio ${p.thresholds.ratio.toFixed(3)} ± ${(2 * p.thresholds.u_ratio).toFixed(3)}; ${p.thresholds.time}`
-      : "   thresholds   nominal");
-    lines.push(p.timebase
-      ? `   timebase     ${p.timebase.ppm.toFixed(2)} ppm ± ${(2 * p.timebase.u_ppm).toFixed(2)} ppm (k = 2); ${p.timebase.method} ${p.timebase.time}`
-      : "   timebase     nominal (cancels in tanks calibrated against a reference inductor)");
-    lines.push(p.leads
-      ? `   leads        ${formatSi(p.leads.l_h, "H", 4)} ± ${formatSi(2 * p.leads.u_h, "H", 2)} (k = 2), subtracted; ${p.leads.method} ${p.leads.time}`
-      : "   leads        not nulled (henrytick calibrate short)");
+    const absent: Record<string, string> = {
+      thresholds: "nominal (henrytick calibrate thresholds)",
+      timebase: "nominal (cancels in tanks calibrated against a reference inductor; henrytick calibrate timebase)",
+      leads: "not nulled (henrytick calibrate short)",
+      skew: "not calibrated: equal rise and fall delays assumed (henrytick calibrate skew)",
+    };
+    for (const name of ["thresholds", "timebase", "leads", "skew"]) {
+      const term = terms.find((x) => x.term === name);
+      if (term) {
+        row(name, `${term.text}; ${term.role}`);
+        provenance(term);
+      } else row(name, absent[name]);
+    }
   }
   process.stdout.write(lines.join("\n") + "\n");
   return Promise.resolve(0);
@@ -149,7 +166,7 @@ async function restore(t: OpenedTester, store: StoreOptions): Promise<number> {
 }
 
 async function reference(t: OpenedTester, store: StoreOptions, v: Values, caution: Caution): Promise<number> {
-  const ref = {
+  const entered = {
     inductance_h: quantity(v["ref-h"] as string, "ref-h", "H", { range: MEASURABLE_RANGE })!,
     u_inductance_h: quantity(v["ref-u-h"] as string, "ref-u-h", "H")!,
     self_capacitance_f: quantity(v["ref-cs-f"] as string | undefined, "ref-cs-f", "F", { optional: true }),
@@ -162,19 +179,24 @@ async function reference(t: OpenedTester, store: StoreOptions, v: Values, cautio
   const profile = currentProfile(t, store);
   const applied = appliedCalibration(profile, "calibration in progress");
   // The reference rings in series with the nulled leads: the tank sees both.
-  if (profile.leads) {
-    ref.inductance_h += profile.leads.l_h;
-    ref.u_inductance_h = Math.hypot(ref.u_inductance_h, profile.leads.u_h);
-    ref.label = `${ref.label ?? ""} plus the leads' ${formatSi(profile.leads.l_h, "H", 3)}`.trim();
+  const ref = referenceThroughLeads(entered, profile);
+  let out;
+  try {
+    out = await calibrateWithReference(t.client, ref, { tanks, repeats, calibration: applied, timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress, onBeforePulse });
+  } catch (e) {
+    // The library names the likely value; the command names the option to give it with.
+    if (e instanceof ReferenceMismatchError) {
+      const hint = e.likely_h !== undefined ? ` (--ref-h ${iecCode(e.likely_h, 3)})` : " (--ref-h, with a prefix: 330u for 330 µH)";
+      throw new ReferenceMismatchError(e.reading_h, e.entered_h, e.likely_h, e.message + hint);
+    }
+    throw e;
   }
-  const out = await calibrateWithReference(t.client, ref, { tanks, repeats, calibration: applied, timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress, onBeforePulse });
   for (const r of out.results) {
-    say(`   tank ${r.tank}: ${formatSi(r.c_f, "F", 5)} ± ${formatSi(2 * r.u_f, "F", 2)} (k = 2), ${((r.c_f / r.nominal_f - 1) * 100).toFixed(2)} % from nominal; ${r.readings} rings at ${formatSi(r.f0_hz, "Hz", 6)}\n`);
+    say(`   tank ${r.tank}: ${formatMeasured(r.c_f, 2 * r.u_f, "F")} (k = 2), ${signedPercent(r.c_f / r.nominal_f - 1)} from nominal; ${r.readings} rings at ${formatValue(r.f0_hz, "Hz", 6)}\n`);
   }
   for (const s of out.skipped) say(`   tank ${s.tank}: not calibrated, ${s.reason}\n`);
   await confirmChange(out.entries, profile, v["accept-shift"] === true, "check the reference's value and unit (--ref-h) and that the reference, not another part, is on the clips");
-  for (const e of out.entries) profile.tanks = [...profile.tanks.filter((x) => x.index !== e.index), e].sort((a, b) => a.index - b.index);
-  commit(profile, store, { tanks: out.results, skipped: out.skipped });
+  commit(withTankEntries(profile, out.entries), store, { tanks: out.results, skipped: out.skipped });
   return 0;
 }
 
@@ -202,11 +224,10 @@ async function parallel(t: OpenedTester, store: StoreOptions, v: Values, caution
     repeats, calibration: appliedCalibration(profile, "calibration in progress"),
     timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress, onBeforePulse,
   });
-  say(`   tank ${tank}: ${formatSi(result.c_f, "F", 5)} ± ${formatSi(2 * result.u_f, "F", 2)} (k = 2); ` +
-    `${formatSi(result.fa_hz, "Hz", 6)} → ${formatSi(result.fb_hz, "Hz", 6)}; the part reads ${formatSi(result.part_inductance_h, "H", 5)}\n`);
+  say(`   tank ${tank}: ${formatMeasured(result.c_f, 2 * result.u_f, "F")} (k = 2); ` +
+    `${formatValue(result.fa_hz, "Hz", 6)} → ${formatValue(result.fb_hz, "Hz", 6)}; the part reads ${formatValue(result.part_inductance_h, "H", 5)}\n`);
   await confirmChange([entry], profile, v["accept-shift"] === true, "check the capacitor's value and unit (--cap-f) and that it was clipped across the part");
-  profile.tanks = [...profile.tanks.filter((x) => x.index !== tank), entry].sort((a, b) => a.index - b.index);
-  commit(profile, store, result);
+  commit(withTankEntries(profile, [entry]), store, result);
   return 0;
 }
 
@@ -217,10 +238,9 @@ async function thresholds(t: OpenedTester, store: StoreOptions, v: Values, cauti
   const { entry, fit } = await calibrateThresholds(t.client, {
     captures, calibration: appliedCalibration(profile, "calibration in progress"), onProgress: progress,
   });
-  say(`   thresholds ${formatSi(fit.thresholds_v[0], "V", 4)} / ${formatSi(fit.thresholds_v[1], "V", 4)}: ratio ${fit.ratio.toFixed(3)} ± ${(2 * fit.u_ratio).toFixed(3)}, ` +
-    `comparator offset ${(fit.offset_v * 1e3).toFixed(3)} mV ± ${(2 * fit.u_offset_v * 1e3).toFixed(3)} mV (k = 2)\n`);
-  profile.thresholds = entry;
-  commit(profile, store, entry);
+  say(`   thresholds ${formatValue(fit.thresholds_v[0], "V", 4)} / ${formatValue(fit.thresholds_v[1], "V", 4)}: ratio ${formatMeasured(fit.ratio, 2 * fit.u_ratio, "")}, ` +
+    `comparator offset ${formatMeasured(fit.offset_v, 2 * fit.u_offset_v, "V")} (k = 2)\n`);
+  commit(withEntry(profile, "thresholds", entry), store, entry);
   return 0;
 }
 
@@ -231,31 +251,23 @@ async function skew(t: OpenedTester, store: StoreOptions, v: Values, caution: Ca
   const { entry, fit } = await calibrateSkew(t.client, {
     captures: intOption(v.captures, "captures", 1, 20), tanks, calibration: appliedCalibration(profile, "calibration in progress"), onProgress: progress,
   });
-  say(`   comparator skew (rise minus fall delay) ${(fit.skew_s * 1e9).toFixed(2)} ns ± ${(2 * fit.u_skew_s * 1e9).toFixed(2)} ns (k = 2) from ${fit.rings.length} rings\n`);
-  profile.skew = entry;
-  commit(profile, store, entry);
+  say(`   comparator skew (rise minus fall delay) ${formatMeasured(fit.skew_s, 2 * fit.u_skew_s, "s")} (k = 2) from ${fit.rings.length} rings\n`);
+  commit(withEntry(profile, "skew", entry), store, entry);
   return 0;
 }
 
 async function timebase(t: OpenedTester, store: StoreOptions, v: Values): Promise<number> {
-  if (v.ppm === undefined) return measuredTimebase(t, store, v);
+  if (v.ppm === undefined) return measuredTimebaseCommand(t, store, v);
   const ppm = Number(v.ppm);
   const u = Number(v["u-ppm"]);
   if (!Number.isFinite(ppm)) throw new CliUsageError(`--ppm must be a number, got ${JSON.stringify(v.ppm)}`);
   if (!(u > 0)) throw new CliUsageError("--u-ppm U (standard uncertainty of the entered value, ppm, > 0) is required with --ppm");
   const profile = currentProfile(t, store);
-  if (profile.tanks.some((e) => e.method === "reference-inductor")) {
-    progress("tanks calibrated against a reference inductor are rescaled to the new timebase (their crystal error cancelled)");
-  }
-  if (Math.abs(ppm) > 1000) throw new CalibrationError("NONSENSE_RESULT", `${ppm} ppm is beyond any working crystal; check the counter reading`);
-  profile.timebase = { ppm, u_ppm: u, method: "entered", time: new Date().toISOString(), detail: "entered from an external frequency measurement" };
-  say(`   timebase ${ppm} ppm ± ${2 * u} ppm (k = 2)\n`);
-  commit(profile, store, profile.timebase);
-  return 0;
+  return storeTimebase(profile, enteredTimebase(ppm, u), store, v["accept-shift"] === true);
 }
 
 /** Against the host's monotonic clock over --seconds (default 60): the tester's TK counter. */
-async function measuredTimebase(t: OpenedTester, store: StoreOptions, v: Values): Promise<number> {
+async function measuredTimebaseCommand(t: OpenedTester, store: StoreOptions, v: Values): Promise<number> {
   const seconds = v.seconds === undefined ? 60 : Number(v.seconds);
   if (!(seconds >= 2 && seconds <= 86400)) throw new CliUsageError(`--seconds must be from 2 to 86400, got ${JSON.stringify(v.seconds)}`);
   const reads = Math.max(11, Math.ceil(seconds / MAX_READ_SPACING_S) + 1);
@@ -264,16 +276,33 @@ async function measuredTimebase(t: OpenedTester, store: StoreOptions, v: Values)
   let done = 0;
   const clock = { ...hostClock, sleep: async (s: number) => { await hostClock.sleep(s); progress(`read ${++done + 1} of ${reads}`); } };
   const r = await measureTimebase(counter, clock, seconds, reads);
-  const profile = currentProfile(t, store);
+  say(`   measured timebase ${ppmText(r.ppm, r.u_ppm)} over ${formatValue(r.duration_s, "s", 4)}\n`);
+  return storeTimebase(currentProfile(t, store), measuredTimebase(r), store, v["accept-shift"] === true);
+}
+
+/**
+ * A new timebase replaces the stored one only when it is at least as certain, or when the user
+ * accepts the worse one (asked on a terminal; elsewhere --accept-shift): a short measured run
+ * must not silently replace a better entered value. Says which one is in use.
+ */
+async function storeTimebase(profile: CalibrationProfile, entry: TimebaseEntry, store: StoreOptions, accepted: boolean): Promise<number> {
+  const choice = chooseTimebase(profile.timebase, entry);
+  if (!choice.replace) {
+    let ok = accepted;
+    if (accepted) progress(`accepted a less certain timebase (--accept-shift): ${choice.summary}`);
+    else if (process.stdin.isTTY && process.stderr.isTTY) ok = /^y(es)?$/i.test((await ask(`   ${choice.summary}. Replace it? [y/N] `)).trim());
+    if (!ok) {
+      throw new CalibrationError(
+        "CALIBRATION_WORSE",
+        `not stored: ${choice.summary}; the stored one stays in use. Measure longer (--seconds) for a smaller uncertainty, or run the same command with --accept-shift to use the new one anyway`,
+      );
+    }
+  }
   if (profile.tanks.some((e) => e.method === "reference-inductor")) {
     progress("tanks calibrated against a reference inductor are rescaled to the new timebase (their crystal error cancelled)");
   }
-  profile.timebase = {
-    ppm: r.ppm, u_ppm: r.u_ppm, method: "host-clock", time: new Date().toISOString(),
-    detail: `${r.samples} reads over ${r.duration_s.toFixed(1)} s; reads ${r.budget.reads_ppm.toFixed(2)} ppm, host clock ${r.budget.host_clock_ppm} ppm (standard)`,
-  };
-  say(`   timebase ${r.ppm.toFixed(2)} ppm ± ${(2 * r.u_ppm).toFixed(2)} ppm (k = 2) over ${r.duration_s.toFixed(1)} s\n`);
-  commit(profile, store, profile.timebase);
+  say(`   timebase in use: ${entry.method === "entered" ? "entered" : "measured"} ${ppmText(entry.ppm, entry.u_ppm)}\n`);
+  commit(withTimebase(profile, entry), store, entry);
   return 0;
 }
 
@@ -290,9 +319,8 @@ async function short(t: OpenedTester, store: StoreOptions, v: Values, caution: C
     await waitForEnter("short the two clips to each other (metal to metal, nothing else on them), then press Enter");
   }
   const out = await measureLeadInductance(t.client, { repeats, calibration: appliedCalibration(profile, "calibration in progress"), onProgress: progress });
-  say(`   leads: ${formatSi(out.entry.l_h, "H", 4)} ± ${formatSi(2 * out.entry.u_h, "H", 2)} (k = 2), subtracted from every later reading; ${out.readings_h.length} rings at ${formatSi(out.f0_hz, "Hz", 4)}\n`);
-  profile.leads = out.entry;
-  commit(profile, store, { leads: out.entry, drive: out.drive, tank: out.tank, readings_h: out.readings_h });
+  say(`   leads: ${formatMeasured(out.entry.l_h, 2 * out.entry.u_h, "H")} (k = 2), subtracted from every later reading; ${out.readings_h.length} rings at ${formatValue(out.f0_hz, "Hz", 4)}\n`);
+  commit(withEntry(profile, "leads", out.entry), store, { leads: out.entry, drive: out.drive, tank: out.tank, readings_h: out.readings_h });
   return 0;
 }
 
@@ -302,7 +330,7 @@ async function short(t: OpenedTester, store: StoreOptions, v: Values, caution: C
  * refused unless --accept-shift is given), so a mistyped reference cannot shift every reading.
  */
 async function confirmChange(entries: TankEntry[], profile: CalibrationProfile, accepted: boolean, check: string): Promise<void> {
-  const changes = calibrationChanges(entries, profile.tanks, profile.timebase?.ppm ?? 0);
+  const changes = tankChanges(profile, entries);
   if (!changes.some((c) => c.large)) return;
   const what = describeChanges(changes);
   if (accepted) {
@@ -317,6 +345,10 @@ async function confirmChange(entries: TankEntry[], profile: CalibrationProfile, 
     "CALIBRATION_SHIFT",
     `not stored: this calibration moves ${what}, more than chance and the tanks' tolerance explain. The profile is unchanged; ${check}, then calibrate again. If the change is real (a tank or the fixture was changed), run the same command with --accept-shift`,
   );
+}
+
+function signedPercent(rel: number): string {
+  return `${rel >= 0 ? "+" : "−"}${Math.abs(rel * 100).toFixed(2)} %`;
 }
 
 function ask(prompt: string): Promise<string> {

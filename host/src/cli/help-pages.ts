@@ -25,6 +25,7 @@ ${WATCH_USAGE}
 Examples:
   henrytick measure --sim
   henrytick measure --sim filter-coil-4m7 --json
+  henrytick measure --sim drawer-choke-330u --freq 10k
   henrytick measure --sim doorbell-transformer-12v --winding-ratio 230:12
   henrytick measure --sim --watch --count 5
   henrytick measure --port /dev/ttyACM0 --csv >> log.csv
@@ -132,6 +133,9 @@ Examples:
 Usage:
   henrytick calibrate show (--sim | --port PATH) [--json] [--config-dir DIR]
 
+  Every stored term (tanks, thresholds, timebase, leads, skew) with its value, expanded
+  uncertainty (k = 2) and where it came from; --json gives each as a row with its standard u.
+
 Examples:
   henrytick calibrate show --sim
   henrytick calibrate show --sim --json
@@ -142,7 +146,9 @@ Usage:
   henrytick calibrate reference (--sim | --port PATH) --ref-h L --ref-u-h U [options]
 
 Options:
-  --ref-h L            the reference's inductance (1 µH to 1 H), e.g. 330u
+  --ref-h L            the reference's inductance (1 µH to 1 H), e.g. 330u (three bare digits
+                       are an inductor code: 330 = 33 µH); the first reading is checked against
+                       it and a value off by more than 25 % stops the procedure (REFERENCE_MISMATCH)
   --ref-u-h U          its standard uncertainty, e.g. 0.1u
   --ref-cs-f C         its self-capacitance, if known (e.g. 3p), with --ref-u-cs-f U
   --tanks LIST         tanks to calibrate, e.g. 0,1 (default: every tank; one that cannot ring
@@ -197,7 +203,8 @@ Usage:
   henrytick calibrate timebase (--sim | --port PATH) --ppm P --u-ppm U
 
   Either time the crystal against this computer's clock for N seconds (default 60; keep the
-  computer awake), or enter an error measured with a frequency counter.
+  computer awake), or enter an error measured with a frequency counter. A value less certain
+  than the stored one is not stored (CALIBRATION_WORSE) unless confirmed or --accept-shift is given.
 
 Examples:
   henrytick calibrate timebase --sim --seconds 2

@@ -25,6 +25,9 @@ export const WATCH_USAGE = `  --watch              read continuously: trend line
   --csv                one CSV row per reading (with --watch: reading, time and stability first)
   --series E12         with --watch: also show the nearest E6 … E192 preferred value`;
 
+/** --freq on measure, sort, wind and advise. */
+export const FREQ_HELP = `  --freq F             working frequency (10k, 100 kHz): ranging takes the tank whose ring is
+                       nearest it and says how near it came (Q and ESR depend on frequency)`;
 
 /** The options of measure, on the general page and on `measure --help`. */
 export const MEASURE_OPTIONS = `  --json               print the result as JSON (SI units in the key names)
@@ -35,6 +38,7 @@ export const MEASURE_OPTIONS = `  --json               print the result as JSON 
   --drive N --tank N   use a fixed setting (indices from "henrytick profile"); it is still
                        checked against the limits before it is pulsed
   --charge-us N        charge time with a fixed setting (default: enough to settle, within the interlock)
+${FREQ_HELP}
   --max-peak-v V       ring-peak limit (default 30 V or 80 % of the clamp: 28.8 V on the
                        reference board's 36 V clamp); may be lowered, or raised up to the clamp.
                        Until the first full reading, predictions keep 70 % of it (20.16 V)

@@ -4,7 +4,7 @@ import { fstatSync, statSync } from "node:fs";
 import { dirname, join, resolve } from "node:path";
 import { writeCaptureFile } from "../capture/capture-file.ts";
 import { MeasureError, measurePart, PartFaultError } from "../measure/measure-part.ts";
-import { buildResult } from "../measure/result.ts";
+import { readingResult } from "../measure/result.ts";
 import { openTester } from "../open-tester.ts";
 import { intOption, numberOption, parse, refuseTogether, requireWith, testerTarget } from "./args.ts";
 import { CliUsageError, reportError } from "./errors.ts";
@@ -15,6 +15,7 @@ import { CalibrationError, deviceCalibration, measureSelfCapacitance, singleTank
 import { renderBudget, renderSelfCapacitance } from "./render.ts";
 import { otherWindingPeakV, resolvePeakLimit, volts } from "../ranging/safety.ts";
 import { PulseCaution, windingRatioOption } from "./caution.ts";
+import { FREQ_OPTIONS, testFrequencyOption } from "./test-frequency.ts";
 
 export async function runMeasure(args: string[]): Promise<number> {
   const { values, positionals } = parse(args, {
@@ -37,6 +38,7 @@ export async function runMeasure(args: string[]): Promise<number> {
     budget: { type: "boolean" },
     "keep-suspect": { type: "boolean" },
     ...WATCH_OPTIONS,
+    ...FREQ_OPTIONS,
   });
   refuseTogether(values, ["json", "csv"]);
   requireWith(values, { big: "watch", count: "watch", "interval-ms": "watch", series: "watch" });
@@ -52,6 +54,7 @@ export async function runMeasure(args: string[]): Promise<number> {
   if (charge_us !== undefined && drive === undefined) throw new CliUsageError("--charge-us needs --drive and --tank");
   const max_peak_v = numberOption(values["max-peak-v"], "max-peak-v", 0.1, 1000);
   const other_winding_ratio = windingRatioOption(values["winding-ratio"]);
+  const test_frequency_hz = testFrequencyOption(values);
   const keep_suspect = values["keep-suspect"] ?? false;
   if (keep_suspect && values.watch) throw new CliUsageError("--keep-suspect gives one reading for inspection; leave out --watch");
   const progress = (m: string) => {
@@ -75,10 +78,10 @@ export async function runMeasure(args: string[]): Promise<number> {
     const cal = values.uncalibrated ? null : deviceCalibration(tester.client, storeFor({ configDir: values["config-dir"], simulated: tester.sim !== undefined }));
     const calibration = cal?.applied;
     if (cal?.applied) progress(`calibration ${cal.path}`);
-    if (values.watch) return await runWatch(tester, values, { drive, tank, charge_us, max_peak_v, hazardous_ok, other_winding_ratio, onBeforePulse, label, calibration }, label ?? "part on the clips");
+    if (values.watch) return await runWatch(tester, values, { drive, tank, charge_us, max_peak_v, hazardous_ok, other_winding_ratio, test_frequency_hz, onBeforePulse, label, calibration }, label ?? "part on the clips");
     let reading;
     try {
-      reading = await measurePart(tester.client, { drive, tank, charge_us, max_peak_v, hazardous_ok, other_winding_ratio, onBeforePulse, label, calibration, keep_suspect, onProgress: progress });
+      reading = await measurePart(tester.client, { drive, tank, charge_us, max_peak_v, hazardous_ok, other_winding_ratio, test_frequency_hz, onBeforePulse, label, calibration, keep_suspect, onProgress: progress });
     } catch (e) {
       if (!(e instanceof MeasureError)) throw e;
       return refused(e, values.json === true);
@@ -99,7 +102,7 @@ export async function runMeasure(args: string[]): Promise<number> {
       progress(`capture saved to ${values.save}`);
       return 0;
     };
-    const result = buildResult(reading.analysis, reading.capture, reading.suspect);
+    const result = readingResult(reading);
     const profile = cal?.profile ?? null;
     let budget = singleTankBudget(reading.analysis, reading.capture.tank_c_f, timebaseKnowledge(profile, reading.settings.tank));
     let selfCap = null;

@@ -4,13 +4,14 @@
 
 import { formatSi } from "../format/si.ts";
 import { MeasureError, measurePart, type MeasureOptions } from "../measure/measure-part.ts";
-import { buildResult, type ResultJson } from "../measure/result.ts";
+import { readingResult, type ResultJson } from "../measure/result.ts";
 import type { OpenedTester } from "../open-tester.ts";
 import { nearestPreferred, parseSeriesName, type SeriesName } from "../values/e-series.ts";
 import { formatMeasured, formatValueOnly } from "../values/format-value.ts";
 import { bigText } from "../workflows/big-digits.ts";
 import { eraseUp, makeStyle, type Style } from "../workflows/terminal.ts";
-import { assessStability, History, sparkline, type StabilityResult } from "../workflows/watch-trend.ts";
+import { assessStability, History, SettingHistory, sparkline, type StabilityResult } from "../workflows/watch-trend.ts";
+import { SettingHold, type HeldReading } from "../workflows/setting-hold.ts";
 import { intOption, optionValue } from "./args.ts";
 import { csvHeader, csvRow } from "./result-csv.ts";
 
@@ -41,7 +42,9 @@ export async function runWatch(tester: OpenedTester, values: WatchValues, measur
   const series = values.series ? optionValue("series", () => parseSeriesName(values.series!)) : undefined;
   const style = makeStyle();
   const tty = process.stdout.isTTY === true && !values.json && !values.csv;
-  const history = new History(40);
+  const history = new SettingHistory(40);
+  // Ranged once, then held: readings on one tank compare (Q and ESR depend on its frequency).
+  const hold = measure.drive === undefined ? new SettingHold() : null;
   const stop = new AbortController();
   // First Ctrl-C: finish after the reading in progress (the summary still prints); second: quit now.
   const onSigint = () => (stop.signal.aborted ? process.exit(130) : stop.abort());
@@ -54,23 +57,33 @@ export async function runWatch(tester: OpenedTester, values: WatchValues, measur
     while (!stop.signal.aborted && (count === undefined || n < count)) {
       let result: ResultJson | null = null;
       let problem = "";
-      try {
-        const r = await measurePart(tester.client, { ...measure, onProgress: undefined });
-        result = buildResult(r.analysis, r.capture);
-      } catch (e) {
-        if (!(e instanceof MeasureError)) throw e;
-        problem = e.code === "NO_RING" ? "no part on the clips" : `[${e.code}] ${e.message}`;
-      }
+      const wasHeld = hold?.held ?? null;
+      const got = await readOnceMore(tester, hold, measure);
+      if (got.reading) result = readingResult(got.reading);
+      if (got.error) problem = got.error.code === "NO_RING" ? "no part on the clips" : `[${got.error.code}] ${got.error.message}`;
       n++;
-      if (result) history.push(result.inductance_h, result.inductance_u_h);
+      // A verdict never spans a change of setting: the trend starts again, and says why.
+      let restart = "";
+      if (result && got.reading) {
+        const s = got.reading.settings;
+        if (history.pushOn(`${s.drive}/${s.tank}`, result.inductance_h, result.inductance_u_h)) restart = `trend restarted: ${got.changed ?? "the setting changed"}`;
+      } else if (got.changed) restart = `setting released: ${got.changed}`;
+      if (hold?.held && !wasHeld && result && !values.json) {
+        note(`setting held for the following readings: ${describeHeld(tester, hold)}; ranging again only for another part or a refused reading`);
+        if (result.test_frequency) note(result.test_frequency.note);
+      }
       const st = assessStability(history.values, history.u);
       const time = new Date().toISOString();
       if (values.json) {
-        process.stdout.write(JSON.stringify(result ? { reading: n, time, ...result, stability: st.state, ...(series ? { preferred_h: nearestPreferred(result.inductance_h, series).value } : {}) } : { reading: n, time, error: problem }) + "\n");
+        const extra = restart ? { trend_restarted: restart } : {};
+        process.stdout.write(JSON.stringify(result ? { reading: n, time, ...result, stability: st.state, ...extra, ...(series ? { preferred_h: nearestPreferred(result.inductance_h, series).value } : {}) } : { reading: n, time, error: problem, ...extra }) + "\n");
       } else if (values.csv) {
+        if (restart) note(restart);
         if (result) process.stdout.write(csvRow(result, [n, time, st.state]));
       } else {
+        if (restart && !tty) process.stdout.write(`   ${restart}\n`);
         let block = values.big ? bigBlock(result, problem, st, history, n, style) : smallBlock(result, problem, st, history, n, title, style);
+        if (restart && tty) block = [...block, `   ${restart}`];
         if (series && result) block = [...block, preferredLine(result.inductance_h, series)];
         if (tty) {
           if (drawn > 0) process.stdout.write(eraseUp(drawn));
@@ -87,6 +100,28 @@ export async function runWatch(tester: OpenedTester, values: WatchValues, measur
     process.off("SIGINT", onSigint);
   }
   return history.values.length > 0 ? 0 : 1;
+}
+
+/** One reading: on the held setting when there is one (hold), or as asked (a fixed --drive/--tank). */
+async function readOnceMore(tester: OpenedTester, hold: SettingHold | null, measure: MeasureOptions): Promise<HeldReading> {
+  const opts = { ...measure, onProgress: undefined };
+  if (hold) return hold.measure(tester.client, opts);
+  try {
+    return { reading: await measurePart(tester.client, opts) };
+  } catch (e) {
+    if (!(e instanceof MeasureError)) throw e;
+    return { error: e };
+  }
+}
+
+function describeHeld(tester: OpenedTester, hold: SettingHold): string {
+  const h = hold.held!;
+  const p = tester.client.profile;
+  return `${formatSi(p.drives[h.drive].ohm, "Ω", 3)} with ${formatSi(p.tanks[h.tank].nominal_f, "F", 3)} (drive ${h.drive}, tank ${h.tank}; rings at ${formatSi(h.f0_hz, "Hz", 3)})`;
+}
+
+function note(text: string): void {
+  process.stderr.write(`   ${text}\n`);
 }
 
 function preferredLine(l_h: number, series: SeriesName): string {

@@ -23,6 +23,7 @@ export function renderReading(r: ResultJson, title: string): string {
   if (s.drive) parts.unshift(`drive ${formatSi(s.drive.series_ohm, "Ω", 3)}`);
   if (s.range) parts.push(`charge ${s.range.charge_us} µs`);
   lines.push(`   setting      ${parts.join(", ")}`);
+  if (r.test_frequency) lines.push(`   test freq.   ${r.test_frequency.note}`);
   if (r.suspect) lines.push(`   ? SUSPECT ${r.suspect.code}: ${r.suspect.message}`);
   for (const w of r.warnings) lines.push(`   ! ${w.code}: ${w.message}`);
   return lines.join("\n");

@@ -8,14 +8,14 @@ import { openTester } from "../open-tester.ts";
 import { formatSi } from "../format/si.ts";
 import { formatMeasured, formatValue } from "../values/format-value.ts";
 import { parseSeriesName } from "../values/e-series.ts";
-import { parseTolerance, toleranceLimits, type Tolerance } from "../values/tolerance.ts";
+import { toleranceLimits } from "../values/tolerance.ts";
 import { makeBins } from "../workflows/bins.ts";
 import { drawTray, SimTray } from "../workflows/sim-tray.ts";
 import { csvRow, CSV_COLUMNS, SortLog } from "../workflows/sort-log.ts";
 import { runSort, type SortEvent } from "../workflows/sort-runner.ts";
 import { SortSession, type PartRecord } from "../workflows/sort-session.ts";
 import { makeStyle, stdinLines, type Style } from "../workflows/terminal.ts";
-import { intOption, numberOption, optionValue, parse, testerTarget, toleranceOption, valueOption } from "./args.ts";
+import { intOption, numberOption, optionValue, parse, testerTarget, toleranceOnce, valueOption } from "./args.ts";
 import { MEASURABLE_RANGE } from "../values/range.ts";
 import { CliUsageError } from "./errors.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
@@ -137,7 +137,7 @@ export async function runSortCommand(args: string[]): Promise<number> {
     await tester.close();
   }
   const summary = session.summary();
-  if (values.json) process.stdout.write(JSON.stringify({ parts: session.parts.map(jsonPart), summary, log: { csv: `${base}.csv`, jsonl: `${base}.jsonl` } }, null, 2) + "\n");
+  if (values.json) process.stdout.write(JSON.stringify({ parts: session.parts, summary, log: { csv: `${base}.csv`, jsonl: `${base}.jsonl` } }, null, 2) + "\n");
   else if (!values.csv) process.stdout.write(summaryText(session, style) + `\n   log appended to ${base}.csv and ${base}.jsonl\n`);
   return 0;
 }
@@ -146,10 +146,8 @@ function sortSpec(values: { nominal?: string; tol?: string; lot?: string; bins?:
   if (!values.nominal) throw new CliUsageError("sort needs --nominal, e.g. --nominal 10u");
   // Refused up front when the tester cannot measure it: a session would otherwise wait forever.
   const nominal = valueOption(values.nominal, "nominal", "H", MEASURABLE_RANGE)!;
-  let tolerance: Tolerance;
-  if (values.tol) tolerance = toleranceOption(values.tol, "tol");
-  else if (nominal.toleranceLetter) tolerance = parseTolerance(nominal.toleranceLetter);
-  else throw new CliUsageError("sort needs --tol (5%, J, 0.5u …) or a tolerance letter on the nominal (10uJ)");
+  const tolerance = toleranceOnce("nominal", values.nominal, nominal, values.tol);
+  if (!tolerance) throw new CliUsageError("sort needs --tol (5%, J, 0.5u …) or a tolerance letter on the nominal (10uJ)");
   optionValue("tol", () => toleranceLimits(nominal.value, tolerance));
   return {
     nominal_h: nominal.value,
@@ -167,7 +165,7 @@ export function partLine(r: PartRecord, style: Style): string {
   const bits = [`#${String(r.part).padStart(3)}`, formatMeasured(r.inductance_h, r.inductance_u_h, "H").padEnd(22), paint(MARK[r.decision]), `p ${r.p_conform.toFixed(3)}`];
   if (r.bin) bits.push(`bin ${r.bin}${r.bin_certain ? "" : " (edge)"}`);
   if (r.preferred_h !== null) bits.push(`nearest ${formatValue(r.preferred_h, "H", 3)}`);
-  if (r.warnings) bits.push(style.dim(`! ${r.warnings}`));
+  if (r.warnings.length > 0) bits.push(style.dim(`! ${r.warnings.join(" ")}`));
   return bits.join("  ");
 }
 
@@ -188,7 +186,4 @@ export function summaryText(session: SortSession, style: Style): string {
   return lines.join("\n");
 }
 
-/** A record as JSON: `warnings` is an array of codes, as in measure --json (the log keeps its CSV cell). */
-function jsonPart(r: PartRecord) {
-  return { ...r, warnings: r.warnings ? r.warnings.split(" ").filter((w) => w !== "") : [] };
-}
+

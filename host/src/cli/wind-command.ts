@@ -10,7 +10,7 @@ import { toleranceLimits, type Limits } from "../values/tolerance.ts";
 import { coilOnFormer, formerTurnRange } from "../workflows/sim-coil.ts";
 import { makeStyle, stdinLines, type Style } from "../workflows/terminal.ts";
 import { windingAdvice, type WindingAdvice, type WindingReading } from "../workflows/winding.ts";
-import { numberOption, optionValue, parse, testerTarget, toleranceOption, valueOption } from "./args.ts";
+import { numberOption, optionValue, parse, testerTarget, toleranceOnce, valueOption } from "./args.ts";
 import { MEASURABLE_RANGE } from "../values/range.ts";
 import { CliUsageError } from "./errors.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
@@ -29,7 +29,7 @@ Usage:
 Options:
   --target VALUE    target inductance: 22u, 22 µH, 2m2, 2.2e-3
   --tol TOL         done when the reading conforms to the target ± TOL (5%, J, 0.5u …)
-  --turns LIST      turn counts to measure in order, e.g. 30,38,43
+  --turns LIST      turn counts to measure in order, e.g. 30,38,43, or changes: 30,+8,-1
   --max-peak-v V    lower the ring-peak limit (default 30 V; 28.8 V on a 36 V clamp)
   --winding-ratio N a second winding on the core has N times the turns (19 or 230:12):
                     every pulse is kept at the limit / N
@@ -40,7 +40,7 @@ Options:
   --csv             print one CSV row per reading
 
   --sim winds on a simulated 20 mm former with AWG 24 wire (about 4 to 349 turns, 0.6 µH to
-  about 230 µH).
+  about 230 µH); a target outside that is refused.
 
 Examples:
   henrytick wind --sim --target 22u --turns 30,38
@@ -63,17 +63,19 @@ export async function runWindCommand(args: string[]): Promise<number> {
   if (values.json && values.csv) throw new CliUsageError("use either --json or --csv, not both");
   if (!values.target) throw new CliUsageError("wind needs --target, e.g. --target 22u");
   const target = valueOption(values.target, "target", "H", MEASURABLE_RANGE)!;
-  const tolText = values.tol ?? target.toleranceLetter;
-  const limits: Limits | undefined = tolText ? optionValue("tol", () => toleranceLimits(target.value, toleranceOption(tolText, "tol"))) : undefined;
+  // The simulated former's reach is known before any pulse: a target it cannot reach is refused.
+  const former = values.sim ? formerTurnRange() : undefined;
+  if (former) refuseOutOfReach(values.target, target.value, former);
+  const tolerance = toleranceOnce("target", values.target, target, values.tol);
+  const limits: Limits | undefined = tolerance ? optionValue("tol", () => toleranceLimits(target.value, tolerance)) : undefined;
   const max_peak_v = numberOption(values["max-peak-v"], "max-peak-v", 0.1, 1000);
   const other_winding_ratio = windingRatioOption(values["winding-ratio"]);
-  const listed = values.turns?.split(",").map((t) => turnCount(t.trim()));
+  const listed = values.turns !== undefined ? turnList(values.turns) : undefined;
   const testerAt = testerTarget(values, []);
 
   const style = makeStyle();
   const note = (m: string) => process.stderr.write(`   ${m}\n`);
   const tester = await openTester(testerAt);
-  const range = formerTurnRange();
   const cal = values.uncalibrated ? null : deviceCalibration(tester.client, storeFor({ configDir: values["config-dir"], simulated: tester.sim !== undefined }));
   const readings: WindingReading[] = [];
   let advice: WindingAdvice | null = null;
@@ -115,17 +117,19 @@ export async function runWindCommand(args: string[]): Promise<number> {
         continue;
       }
       if (tester.sim) {
-        if (turns < range.min || turns > range.max) throw new CliUsageError(`the simulated former takes ${range.min} to ${range.max} turns, got ${turns}`);
+        if (former && (turns < former.min || turns > former.max)) throw new CliUsageError(`the simulated former takes ${former.min} to ${former.max} turns, got ${turns}`);
         tester.sim.part = coilOnFormer(turns);
       }
       if (!values.json && !values.csv) note(`measuring ${turns} turns …`);
       const r = await measurePart(tester.client, { max_peak_v, other_winding_ratio, onBeforePulse: caution.beforePulse, label: `${turns} turns`, calibration: cal?.applied });
       const result = buildResult(r.analysis, r.capture);
       readings.push({ turns, inductance_h: result.inductance_h, inductance_u_h: result.inductance_u_h });
-      advice = windingAdvice(readings, target.value, limits);
+      advice = windingAdvice(readings, target.value, limits, former);
       if (values.csv) process.stdout.write(csvLine(advice) + "\n");
       else if (!values.json) process.stdout.write(adviceText(advice, target.value, style) + "\n");
       if (advice.last.decision === "conforming") note("on target: the reading conforms to the tolerance");
+      const concern = reachText(advice);
+      if (concern && !values.json && !values.csv) note(concern);
     }
   } finally {
     process.off("SIGINT", onSigint);
@@ -135,8 +139,50 @@ export async function runWindCommand(args: string[]): Promise<number> {
   return 0;
 }
 
-async function* listSource(list: number[]): AsyncGenerator<string> {
-  for (const n of list) yield String(n);
+async function* listSource(list: string[]): AsyncGenerator<string> {
+  for (const n of list) yield n;
+}
+
+/**
+ * The --turns list, checked before any pulse: each entry is a count on the coil (30) or a change
+ * from the entry before (+1, -2), as at the keyboard; the first must be a count.
+ */
+function turnList(text: string): string[] {
+  const list = text.split(",").map((t) => t.trim());
+  let turns = 0;
+  list.forEach((t, i) => {
+    const step = /^[+-]/.test(t);
+    if (step && i === 0) throw new CliUsageError(`--turns starts with the turns on the coil, then counts or changes: write 30,${t} (30 turns, then ${t}), not "${text}"`);
+    const n = step ? turnCount(t.slice(1).trim()) : turnCount(t);
+    turns = step ? turns + (t[0] === "-" ? -n : n) : n;
+    if (turns < 1) throw new CliUsageError(`--turns: "${t}" leaves ${turns} turns on the coil; each entry must leave at least one turn`);
+  });
+  return list;
+}
+
+/** A target the simulated former cannot reach with its fewest or most turns is refused before any pulse. */
+function refuseOutOfReach(text: string, target_h: number, former: { min: number; max: number }): void {
+  const lo = coilOnFormer(former.min).inductance_h;
+  const hi = coilOnFormer(former.max).inductance_h;
+  if (target_h >= lo && target_h <= hi) return;
+  throw new CliUsageError(
+    `--target ${text}: ${formatValue(target_h, "H", 4)} is ${target_h > hi ? "more" : "less"} than the simulated former reaches, ${formatValue(lo, "H", 3)} (${former.min} turns) to ${formatValue(hi, "H", 3)} (${former.max} turns); choose a target inside that`,
+  );
+}
+
+/** A line on why the advice should not be followed as it stands, or null. */
+export function reachText(a: WindingAdvice): string | null {
+  const r = a.reach;
+  const need = `the target needs about ${a.turns_for_target.toFixed(0)} ± ${a.turns_for_target_u.toFixed(0)} turns`;
+  if (r.concern === "beyond-former" && r.former_turns) {
+    return `${need}, but the former takes ${r.former_turns.min} to ${r.former_turns.max} turns: choose a target it reaches, or a longer former or thinner wire`;
+  }
+  if (r.concern === "far-extrapolation") {
+    const [lo, hi] = r.measured_turns;
+    const part = Math.round(a.turns_for_target > hi ? Math.sqrt(hi * a.turns_for_target) : Math.sqrt(lo * a.turns_for_target));
+    return `${need}, ${r.extrapolation.toFixed(1)}× beyond the counts measured (${lo === hi ? lo : `${lo} to ${hi}`}): the fitted law is a guess that far out; wind to about ${part} turns and measure again before trusting the count`;
+  }
+  return null;
 }
 
 function turnCount(t: string): number {

@@ -18,6 +18,8 @@ import { WarningCode } from "../codes.ts";
 import { ROUGH_PREDICTION_SHARE as ROUGH_MARGIN, volts } from "../ranging/safety.ts";
 import { ReadingProgress, settingInfo } from "./events.ts";
 import { MEASURABLE_L_H, MEASURABLE_TEXT } from "../values/range.ts";
+import { describeFrequencyChoice, orderForFrequency } from "../ranging/choose-setting.ts";
+import { formatSi } from "../format/si.ts";
 
 const PROBE_CHARGE_US = 5000;
 const PROBE_QUIET_US = 20000;
@@ -79,6 +81,9 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
   const tried = new Set<string>();
   const failures: string[] = [];
   let chatter: MeasureError | null = null;
+  // With an asked test frequency: the nearest tank that rings usably, and the tanks that did not.
+  const asked = opts.test_frequency_hz;
+  const failedTanks = new Map<number, string>();
   // Lowered when a reading shows the part (or tank) changing with amplitude: a saturating core
   // or a class II capacitor reads truest at a gentler ring.
   let gentleLimit_v = limits.max_peak_v;
@@ -86,10 +91,13 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
     const base = gentleLimit_v < limits.max_peak_v ? { ...limits, max_peak_v: gentleLimit_v, why: "half the ring that changed with its amplitude" } : limits;
     const stepLimits = est.fitted ? base : { ...base, max_peak_v: base.max_peak_v * ROUGH_MARGIN, why: `${ROUGH_MARGIN * 100} % of the ${volts(base.max_peak_v)} limit${base.why ? ` (${base.why})` : ""} while the part is known only from the probe` };
     lastAdvice = adviseSettings(profile, est, stepLimits, tanks);
-    const next = lastAdvice.find((a) => a.refused === "" && !tried.has(key(a)));
+    if (asked !== undefined) lastAdvice = orderForFrequency(lastAdvice, asked);
+    // Once a tank near the asked frequency has given a reading, ranging stays on that tank.
+    const held = (a: Advice) => asked === undefined || !best || a.tank === best.settings.tank;
+    const next = lastAdvice.find((a) => a.refused === "" && !tried.has(key(a)) && held(a));
     if (!next) break;
     // Precision target: stop once a reading is as good as the best setting is expected to be.
-    if (best && clean(best) && best.analysis.edges_used >= MIN_EDGES_AUTO && relU(best) <= 1.1 * Math.min(...lastAdvice.filter((a) => a.refused === "").map((a) => a.l_rel_u))) break;
+    if (best && clean(best) && best.analysis.edges_used >= MIN_EDGES_AUTO && relU(best) <= 1.1 * Math.min(...lastAdvice.filter((a) => a.refused === "" && held(a)).map((a) => a.l_rel_u))) break;
     tried.add(key(next));
     const nextSettings = settingsFor(client, next);
     const fraction = progress.stepFraction(step, MAX_STEPS);
@@ -104,13 +112,14 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
       const why = explainFailure(e);
       if (why !== e) chatter ??= why;
       failures.push(`${next.reason} It gave no usable ring (${e.code}).`);
+      if (!failedTanks.has(next.tank)) failedTanks.set(next.tank, `gave no usable ring (${e.code})`);
       continue;
     }
     if (reading.analysis.amplitude_v > limits.max_peak_v) {
       // The physics said otherwise; keep the reading but go no further up.
       const amplitude_v = reading.analysis.amplitude_v;
       progress.emit({ type: "caution", code: "RING_OVER_LIMIT", phase: "ranging", amplitude_v, fraction, message: `caution: the ring reached ${volts(amplitude_v)}, above the ${volts(limits.max_peak_v)} limit; stopping here` });
-      return { ...reading, prediction: next, advice: lastAdvice };
+      return withChoice({ ...reading, prediction: next, advice: lastAdvice });
     }
     est = refineEstimate(est, estimateFromReading(profile, next, reading.analysis));
     if (!best || better(reading, best)) best = { ...reading, prediction: next, advice: lastAdvice };
@@ -126,7 +135,8 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
     // nothing slow enough to capture is a short across the clips.
     if (chatter) throw chatter;
     if (est.l_h < SHORT_MAX_L_H && failures.length === 0) throw shortedPart(est.l_h, `no setting rings slowly enough to capture (${lastAdvice[0]?.reason.replace(/\.$/, "") ?? "every setting refused"})`);
-    throw new MeasureError("NO_SETTING", `no setting gives a usable ring within the limits. ${failures.join(" ")} ${why}`.trim());
+    const at = asked === undefined ? "" : ` near the asked ${formatSi(asked, "Hz", 3)} or at any other frequency`;
+    throw new MeasureError("NO_SETTING", `no setting gives a usable ring${at} within the limits. ${failures.join(" ")} ${why}`.trim());
   }
   if (best.analysis.edges_used < MIN_EDGES_AUTO) {
     const w = {
@@ -137,7 +147,12 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
     // Recorded with the capture, so that analysing it again gives the same warnings.
     best.capture.reading_warnings = [...(best.capture.reading_warnings ?? []), w];
   }
-  return best;
+  return withChoice(best);
+
+  function withChoice(r: Reading): Reading {
+    if (asked === undefined) return r;
+    return { ...r, test_frequency: describeFrequencyChoice(profile, lastAdvice, asked, r.settings.tank, r.analysis.f0_hz, failedTanks) };
+  }
 }
 
 /** Warnings that say the ring depends on its amplitude: a gentler setting reads truer. */
@@ -167,10 +182,19 @@ function key(a: { drive: number; tank: number }): string {
   return `${a.drive}/${a.tank}`;
 }
 
+/**
+ * How long the comparator must stay quiet before a capture of a ring at `f_hz` ends, µs: 4
+ * periods (at least 50 µs). The ring's edges come every half period, so only its end is that
+ * quiet; the tester waits this long after the last edge before it sends the capture.
+ */
+export function quietAfterUs(f_hz: number): number {
+  return Math.max(50, Math.ceil(4 * (1e6 / f_hz)));
+}
+
 /** Capture settings for a predicted setting: quiet after 4 periods, window 3x the ring. */
 export function settingsFor(client: DeviceClient, p: Advice): MeasureSettings {
   const period_us = 1e6 / p.f_hz;
-  const quiet = Math.max(50, Math.ceil(4 * period_us));
+  const quiet = quietAfterUs(p.f_hz);
   const ring_ms = Math.max(p.usable_cycles, 20) * period_us * 1e-3;
   const timeout = Math.min(client.profile.max_timeout_ms, Math.ceil(3 * ring_ms + quiet / 1000 + 20));
   return { drive: p.drive, tank: p.tank, charge_us: p.charge_us, edge_limit: client.profile.buffer_edges, timeout_ms: timeout, quiet_us: quiet };

@@ -12,6 +12,7 @@ import type { CaptureComparator, CaptureV1 } from "../capture/capture-file.ts";
 import type { DeviceIdentity, DeviceProfile } from "../device/profile.ts";
 import type { RawCapture } from "../device/stream-reader.ts";
 import type { AppliedCalibration } from "../calibration/applied.ts";
+import { EdgeList, edgesOf, pairsFor } from "./edge-list.ts";
 
 export function captureFromDevice(
   raw: RawCapture, identity: DeviceIdentity, profile: DeviceProfile, transport: string, label?: string,
@@ -48,7 +49,8 @@ export function captureFromDevice(
       protocol_version: identity.protocol_version, transport, clamp_v: profile.clamp_v, max_timeout_ms: profile.max_timeout_ms,
     },
     meta: { ...(label ? { label } : {}), time: new Date().toISOString(), end_reason: raw.end_reason },
-    edges: raw.ticks.map((t, i) => [t, raw.levels[i]] as [number, number]),
+    // The edge list is built once here; the checks, the analysis and the judgement share it.
+    edges: pairsFor(EdgeList.from(raw.ticks, raw.levels)),
   };
 }
 
@@ -104,10 +106,12 @@ export function comparatorTimingFromCapture(c: CaptureV1): RingInput["comparator
 
 export function ringInputFromCapture(c: CaptureV1): RingInput {
   const comparator = comparatorTimingFromCapture(c);
+  // A malformed record goes to the analysis as it stands, which refuses it with its own message.
+  const edges = edgesOf(c);
   return {
     tick_hz: c.tick_hz,
-    ticks: c.edges.map((e) => e[0]),
-    levels: c.edges.map((e) => e[1]),
+    ticks: edges ? edges.ticks : c.edges.map((e) => e[0]),
+    levels: edges ? edges.levels : c.edges.map((e) => e[1]),
     tank_c_f: c.tank_c_f,
     tank_c_u_f: c.tank_c_u_f,
     thresholds_v: [c.thresholds_v[0], c.thresholds_v[1]],

@@ -4,6 +4,8 @@
 import type { RingAnalysis } from "../analysis/index.ts";
 import type { CaptureV1 } from "../capture/capture-file.ts";
 import type { PartFaultCode, WarningCode } from "../codes.ts";
+import type { FrequencyChoice } from "../ranging/choose-setting.ts";
+import type { Reading } from "./measure-part.ts";
 
 export interface ResultJson {
   f0_hz: number;
@@ -38,6 +40,14 @@ export interface ResultJson {
    * shows a part fault: the fault's code and message. Such a reading is not a verified result.
    */
   suspect?: { code: PartFaultCode; message: string };
+  /** Present only when a test frequency was asked for: how near the reading came (ranging/choose-setting.ts). */
+  test_frequency?: FrequencyChoice;
+}
+
+/** The result of a reading taken here: the capture's figures plus what only the reading knows (suspect, test frequency). */
+export function readingResult(r: Reading): ResultJson {
+  const result = buildResult(r.analysis, r.capture, r.suspect);
+  return r.test_frequency ? { ...result, test_frequency: r.test_frequency } : result;
 }
 
 export function buildResult(a: RingAnalysis, c: CaptureV1, suspect?: { code: PartFaultCode; message: string }): ResultJson {

@@ -52,8 +52,11 @@ export interface SimTesterOptions {
   part: PartModel | null; // null: open terminals
   seed: number;
   board?: BoardModel;
-  /** Firmware image to run; default the release build. */
-  firmware?: FirmwareVariant;
+  /**
+   * Firmware image to run: a variant of the reference board's build (default the release image),
+   * or a compiled image, e.g. another board's (firmware/tools/build-board.ts).
+   */
+  firmware?: FirmwareVariant | WebAssembly.Module;
   /** Deliver raw timer captures instead of extended ticks (default: extended). */
   raw_capture?: RawCaptureOptions;
 }
@@ -158,7 +161,7 @@ export class SimTester {
     this.frontEnd = new SimFrontEnd(this.board, opts.part, opts.seed);
     this.stats = this.frontEnd.stats;
     this.raw = opts.raw_capture ?? null;
-    const instance = new WebAssembly.Instance(firmwareModule(opts.firmware), { hal: this.hal() });
+    const instance = new WebAssembly.Instance(opts.firmware instanceof WebAssembly.Module ? opts.firmware : firmwareModule(opts.firmware), { hal: this.hal() });
     this.fw = instance.exports as unknown as FirmwareExports;
     this.fw.fw_init();
   }

@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { formatPercent, formatValue } from "./format-value.ts";
 import { parseValue, parseValueIn, ValueError, ValueSyntaxError } from "./parse-value.ts";
-import { parseTolerance, toleranceLimits, TOLERANCE_LETTERS } from "./tolerance.ts";
+import { nominalTolerance, parseTolerance, toleranceLimits, TOLERANCE_LETTERS } from "./tolerance.ts";
 
 const close = (a: number, b: number) => expect(Math.abs(a / b - 1)).toBeLessThan(1e-12);
 
@@ -181,5 +181,33 @@ describe("formatValue: sensible digits with units", () => {
   it("percentages", () => {
     expect(formatPercent(0.05)).toBe("5 %");
     expect(formatPercent(0.0025)).toBe("0.25 %");
+  });
+});
+
+describe("values and limits without binary artefacts", () => {
+  // The double nearest the written decimal (what Number("10e-6") gives), not 10 × 1e-6 = 9.999999999999999e-6.
+  it.each([
+    ["10u", 10e-6], ["4u7", 4.7e-6], ["R47", 0.47e-6], ["100", 10e-6], ["471", 470e-6], ["0.33m", 0.33e-3], ["1.5e-3u", 1.5e-9], ["22n", 22e-9], ["4K7", 4.7e3],
+  ])("%s is exactly the written value", (text, value) => expect(parseValue(text, text === "4K7" ? "Ω" : "H").value).toBe(value));
+
+  it("gives limits as decimal as the tolerance (10 µH ±5 % → 9.5 µH … 10.5 µH exactly)", () => {
+    const nominal = parseValue("10u").value;
+    expect(toleranceLimits(nominal, parseTolerance("5%"))).toEqual({ lower: 9.5e-6, upper: 10.5e-6 });
+    expect(toleranceLimits(parseValue("4u7").value, parseTolerance("J"))).toEqual({ lower: 4.465e-6, upper: 4.935e-6 });
+    expect(toleranceLimits(parseValue("330u").value, parseTolerance("+10%/-5%"))).toEqual({ lower: 313.5e-6, upper: 363e-6 });
+    expect(toleranceLimits(nominal, parseTolerance("0.3u"))).toEqual({ lower: 9.7e-6, upper: 10.3e-6 });
+    expect(JSON.stringify(toleranceLimits(nominal, parseTolerance("5%")))).toBe('{"lower":0.0000095,"upper":0.0000105}');
+  });
+});
+
+describe("a tolerance letter on the nominal and a tolerance beside it (letters: common trade practice, no source)", () => {
+  it("takes either alone, or both when they agree", () => {
+    expect(nominalTolerance(parseValue("10uH F"))).toMatchObject({ below_rel: 0.01, above_rel: 0.01 });
+    expect(nominalTolerance(parseValue("10u"), parseTolerance("5%"))).toMatchObject({ below_rel: 0.05 });
+    expect(nominalTolerance(parseValue("4u7J"), parseTolerance("5%"))).toMatchObject({ below_rel: 0.05 });
+    expect(nominalTolerance(parseValue("10u"))).toBeUndefined();
+  });
+  it.each([["10uH F", "5%"], ["4u7J", "K"], ["330uK", "0.5u"], ["1m5M", "+20%/-10%"]])("refuses %s with %s (TOLERANCE_CONFLICT), dropping neither", (nominal, tol) => {
+    expect(() => nominalTolerance(parseValue(nominal), parseTolerance(tol))).toThrow(expect.objectContaining({ code: "TOLERANCE_CONFLICT" }));
   });
 });

@@ -109,8 +109,8 @@ function checkUnit(text: string, s: string, unit: string): void {
 
 function readInductance(text: string, s: string, unitWritten: boolean): number | null {
   const r = R_CODE.exec(s);
-  if (r && (r[1] !== "" || r[2] !== "")) return Number(`${r[1] || "0"}.${r[2] || "0"}`) * 1e-6;
-  if (THREE_DIGITS.test(s) && !unitWritten) return Number(s.slice(0, 2)) * 10 ** Number(s[2]) * 1e-6;
+  if (r && (r[1] !== "" || r[2] !== "")) return scaled(`${r[1] || "0"}.${r[2] || "0"}`, 1e-6);
+  if (THREE_DIGITS.test(s) && !unitWritten) return scaled(s.slice(0, 2), 10 ** (Number(s[2]) - 6));
   const plain = PLAIN.exec(s);
   if (plain && plain[2] === "" && !unitWritten && !EXPONENT.test(s)) {
     throw new ValueError(
@@ -123,10 +123,20 @@ function readInductance(text: string, s: string, unitWritten: boolean): number |
 
 function readMagnitude(s: string): number | null {
   const plain = PLAIN.exec(s);
-  if (plain) return Number(plain[1]) * (plain[2] ? MULTIPLIERS[plain[2]] : 1);
+  if (plain) return scaled(plain[1], plain[2] ? MULTIPLIERS[plain[2]] : 1);
   const code = CODE.exec(s);
-  if (code) return Number(`${code[1]}.${code[3]}`) * MULTIPLIERS[code[2]];
+  if (code) return scaled(`${code[1]}.${code[3]}`, MULTIPLIERS[code[2]]);
   return null;
+}
+
+/**
+ * A decimal number times a power-of-ten multiplier, read as one decimal text (`10` and µ →
+ * `10e-6`) so the result is the double nearest the written value: multiplying (10 × 1e-6 =
+ * 9.999999999999999e-6) would carry a binary rounding artefact into limits and logs.
+ */
+function scaled(number: string, multiplier: number): number {
+  const [mantissa, exp = "0"] = number.split(/[eE]/);
+  return Number(`${mantissa}e${Number(exp) + Math.round(Math.log10(multiplier))}`);
 }
 
 /** Splits `4u7J` / `330uK` / `10 µH J` into the value and its tolerance letter. */

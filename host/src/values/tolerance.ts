@@ -68,15 +68,39 @@ function parseOneSide(s: string, unit: string, whole: string): { kind: "relative
   return { kind: "absolute", v, raw: t };
 }
 
+/**
+ * The tolerance of a nominal written with a tolerance letter (`10uH F`, `4u7J`) and a tolerance
+ * given beside it: either one alone, or both when they agree. Two that differ are refused
+ * (TOLERANCE_CONFLICT) rather than one dropped. Undefined when neither is given.
+ */
+export function nominalTolerance(nominal: { toleranceLetter?: string }, given?: Tolerance): Tolerance | undefined {
+  const letter = nominal.toleranceLetter;
+  if (!letter) return given;
+  const fromLetter = parseTolerance(letter);
+  if (!given) return fromLetter;
+  const same = (a: number, b: number) => Math.abs(a - b) <= 1e-12;
+  if (given.kind === "relative" && fromLetter.kind === "relative" && same(given.below_rel, fromLetter.below_rel) && same(given.above_rel, fromLetter.above_rel)) return given;
+  throw new ValueError("TOLERANCE_CONFLICT", letter, `the nominal ends in the tolerance letter ${letter} (±${Number((TOLERANCE_LETTERS[letter] * 100).toPrecision(6))} %) but the tolerance given is ${given.text}: give the tolerance once`);
+}
+
 function round(x: number): number {
   return Math.round(x * 1e9) / 1e9;
 }
 
-/** Lower and upper specification limits around `nominal`. */
+/**
+ * Significant digits of a specification limit: enough for any tolerance a part is marked with
+ * (a limit is exact in decimal, 9.5 µH), few enough to drop the binary artefact of the product
+ * (10 µH × 0.95 = 9.499999999999999 µH) before it reaches a decision, a log or a message.
+ */
+export const LIMIT_DIGITS = 12;
+
+const limit = (x: number) => Number(x.toPrecision(LIMIT_DIGITS));
+
+/** Lower and upper specification limits around `nominal`, to LIMIT_DIGITS significant digits. */
 export function toleranceLimits(nominal: number, tol: Tolerance, unit = "H"): Limits {
-  if (tol.kind === "relative") return { lower: nominal * (1 - tol.below_rel), upper: nominal * (1 + tol.above_rel) };
+  if (tol.kind === "relative") return { lower: limit(nominal * (1 - tol.below_rel)), upper: limit(nominal * (1 + tol.above_rel)) };
   if (tol.below >= nominal) {
     throw new ValueError("OUT_OF_RANGE", tol.text, `tolerance ${tol.text} reaches below zero for a nominal of ${formatValue(nominal, unit)}: an absolute tolerance must be smaller than the nominal (a relative one is written 5%)`);
   }
-  return { lower: nominal - tol.below, upper: nominal + tol.above };
+  return { lower: limit(nominal - tol.below), upper: limit(nominal + tol.above) };
 }

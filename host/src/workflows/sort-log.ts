@@ -20,8 +20,24 @@ const HEADER = CSV_COLUMNS.join(",");
 
 export class SortLogError extends CodedError {}
 
+/** A record's CSV row; the warning codes share one cell, space-separated. */
 export function csvRow(r: PartRecord): string {
-  return CSV_COLUMNS.map((k) => csvField(r[k])).join(",") + "\n";
+  return CSV_COLUMNS.map((k) => csvField(k === "warnings" ? r.warnings.join(" ") : r[k])).join(",") + "\n";
+}
+
+/**
+ * One JSON Lines record as this version holds it. Logs written before warnings became an array
+ * hold them as one space-separated string ("" for none); that is read as the array it stands for.
+ */
+export function readPartRecord(line: string): PartRecord {
+  const r = JSON.parse(line) as Omit<PartRecord, "warnings"> & { warnings: string[] | string };
+  const warnings = typeof r.warnings === "string" ? r.warnings.split(" ").filter((w) => w !== "") : r.warnings;
+  return { ...r, warnings };
+}
+
+/** The whole records of a sort's JSON Lines log, old and new (a torn or unreadable line is skipped). */
+export function readSortLog(path: string): PartRecord[] {
+  return wholeRecords(path);
 }
 
 export class SortLog {
@@ -79,7 +95,7 @@ function wholeRecords(path: string): PartRecord[] {
   for (const line of readFileSync(path, "utf8").split("\n")) {
     if (line.length === 0) continue;
     try {
-      out.push(JSON.parse(line) as PartRecord);
+      out.push(readPartRecord(line));
     } catch {
       // not a record
     }

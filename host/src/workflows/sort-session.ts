@@ -37,7 +37,8 @@ export interface PartRecord {
   preferred_h: number | null;
   q: number;
   esr_ohm: number;
-  warnings: string;
+  /** Warning codes of the reading, as in measure --json (the CSV log writes them space-separated in one cell). */
+  warnings: string[];
   drive_index: number | null;
   tank_index: number | null;
   charge_us: number | null;
@@ -88,7 +89,7 @@ export class SortSession {
       preferred_h: this.spec.series ? nearestPreferred(L, this.spec.series).value : null,
       q: result.q,
       esr_ohm: result.esr_ohm,
-      warnings: result.warnings.map((w) => w.code).join(" "),
+      warnings: result.warnings.map((w) => w.code),
       drive_index: range?.drive_index ?? null,
       tank_index: range?.tank_index ?? null,
       charge_us: range?.charge_us ?? null,

@@ -72,4 +72,25 @@ export class History {
       this.u.shift();
     }
   }
+  clear(): void {
+    this.values.length = 0;
+    this.u.length = 0;
+  }
+}
+
+/**
+ * A history of readings on one setting: Q, ESR and the self-capacitance's share of L depend on
+ * the tank, so a verdict never spans a change of setting. A reading on another setting than the
+ * last starts the history again.
+ */
+export class SettingHistory extends History {
+  private setting: string | null = null;
+  /** Adds a reading taken on `setting`; true when the history started again for it (another setting than the last). */
+  pushOn(setting: string, value: number, u_expanded: number): boolean {
+    const restarted = this.setting !== null && this.setting !== setting;
+    if (restarted) this.clear();
+    this.setting = setting;
+    this.push(value, u_expanded);
+    return restarted;
+  }
 }

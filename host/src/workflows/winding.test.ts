@@ -41,6 +41,22 @@ describe("winding advice", () => {
     expect(a.last.decision).toBe("conforming");
   });
 
+  it("says when the advice lies far beyond the counts measured, or beyond the former's turns", () => {
+    const near = windingAdvice([{ turns: 30, inductance_h: 13.5e-6, inductance_u_h: 0.15e-6 }], 22e-6);
+    expect(near.reach).toMatchObject({ measured_turns: [30, 30], concern: null });
+    expect(near.reach.extrapolation).toBeCloseTo(38.297 / 30, 3);
+    // 200 µH from 13.5 µH at 30 turns: N² gives 30 √(200/13.5) = 115.5 turns, 3.85× the count measured.
+    const far = windingAdvice([{ turns: 30, inductance_h: 13.5e-6, inductance_u_h: 0.15e-6 }], 200e-6);
+    expect(far.reach.extrapolation).toBeCloseTo((30 * Math.sqrt(200 / 13.5)) / 30, 6);
+    expect(far.reach.concern).toBe("far-extrapolation");
+    // Inside the readings on both sides: no extrapolation at all.
+    const inside = windingAdvice([30, 50].map((n) => ({ turns: n, inductance_h: 1.5e-8 * n * n, inductance_u_h: 1.5e-10 * n * n })), 1.5e-8 * 40 * 40);
+    expect(inside.reach.extrapolation).toBe(1);
+    // A former that takes at most 100 turns cannot reach a target that needs 115.
+    const former = windingAdvice([{ turns: 30, inductance_h: 13.5e-6, inductance_u_h: 0.15e-6 }], 200e-6, undefined, { min: 4, max: 100 });
+    expect(former.reach).toMatchObject({ concern: "beyond-former", former_turns: { min: 4, max: 100 } });
+  });
+
   it("refuses non-positive input", () => {
     expect(() => windingAdvice([], 1e-6)).toThrow(RangeError);
     expect(() => windingAdvice([{ turns: 0, inductance_h: 1e-6, inductance_u_h: 0 }], 1e-6)).toThrow(RangeError);

@@ -38,7 +38,30 @@ export interface WindingAdvice {
   /** Predictions one turn either side of the recommendation. */
   neighbours: { turns: number; predicted_h: number }[];
   last: { turns: number; inductance_h: number; inductance_u_h: number; error_rel: number; decision?: Decision };
+  /** How far the advice reaches beyond what was measured, and whether it leaves the former. */
+  reach: WindingReach;
 }
+
+export interface WindingReach {
+  /** Fewest and most turns measured so far. */
+  measured_turns: [number, number];
+  /**
+   * turns_for_target over the nearest measured count (above 1: beyond the readings on either
+   * side; 1 inside them). Beyond FAR_EXTRAPOLATION the fitted exponent is a guess there.
+   */
+  extrapolation: number;
+  /** The turns the former takes, when known (the simulated former; a real one if given). */
+  former_turns?: { min: number; max: number };
+  /** Why the advice should not be followed as it stands: null when it can be. */
+  concern: null | "beyond-former" | "far-extrapolation";
+}
+
+/**
+ * Advice more than this factor in turns beyond the measured counts (4× in inductance at N²) is
+ * an extrapolation of the fitted exponent: wind part of the way and measure again. Common bench
+ * practice, no source; the factor is our choice.
+ */
+export const FAR_EXTRAPOLATION = 2;
 
 const PRIOR_EXPONENT = 2;
 const PRIOR_EXPONENT_SD = 0.35;
@@ -72,7 +95,7 @@ export function predictInductance(m: WindingModel, turns: number): number {
 }
 
 /** Advice after the latest reading (the last element of `readings`). */
-export function windingAdvice(readings: readonly WindingReading[], target_h: number, targetLimits?: Limits): WindingAdvice {
+export function windingAdvice(readings: readonly WindingReading[], target_h: number, targetLimits?: Limits, former_turns?: { min: number; max: number }): WindingAdvice {
   if (!(target_h > 0)) throw new RangeError(`target must be a positive inductance, got ${target_h}`);
   const m = fitWindingModel(readings);
   const lnA = Math.log(m.a_h);
@@ -85,6 +108,11 @@ export function windingAdvice(readings: readonly WindingReading[], target_h: num
   const last = readings[readings.length - 1];
   const recommended = Math.max(1, Math.round(turns));
   const neighbours = [recommended - 1, recommended + 1].filter((n) => n >= 1).map((n) => ({ turns: n, predicted_h: predictInductance(m, n) }));
+  const counts = readings.map((r) => r.turns);
+  const lo = Math.min(...counts);
+  const hi = Math.max(...counts);
+  const extrapolation = turns > hi ? turns / hi : turns < lo ? lo / turns : 1;
+  const beyondFormer = former_turns !== undefined && (turns < former_turns.min - 0.5 || turns > former_turns.max + 0.5);
   return {
     model: m,
     turns_for_target: turns,
@@ -97,6 +125,12 @@ export function windingAdvice(readings: readonly WindingReading[], target_h: num
       ...last,
       error_rel: last.inductance_h / target_h - 1,
       ...(targetLimits ? { decision: decideConformity(last.inductance_h, last.inductance_u_h, targetLimits).decision } : {}),
+    },
+    reach: {
+      measured_turns: [lo, hi],
+      extrapolation,
+      ...(former_turns ? { former_turns } : {}),
+      concern: beyondFormer ? "beyond-former" : extrapolation > FAR_EXTRAPOLATION ? "far-extrapolation" : null,
     },
   };
 }

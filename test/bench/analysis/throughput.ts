@@ -5,6 +5,7 @@
 // inflate the way they inflate wall-clock time; wall-clock is reported beside it.
 
 import { analyzeRing, type RingInput } from "../../../host/src/analysis/index.ts";
+import { modelEvaluations } from "../../../host/src/analysis/edge-model.ts";
 import { captureOf, GRID, preparePoint } from "./grid.ts";
 
 export const THROUGHPUT_EDGES = 500;
@@ -28,12 +29,27 @@ export interface Throughput {
   symmetric_per_s: number;
   /** The same by wall-clock time (lower when other jobs share the cores). */
   wall_captures_per_s: number;
+  /**
+   * Per-edge model evaluations (edge-model.ts evaluateEdges: one edge's residual and derivatives
+   * = 1) per capture, mean over one pass of the captures: a work count that does not depend on
+   * the machine.
+   */
+  evaluations_per_capture: number;
   parts: string[];
 }
 
 export function measureThroughput(passes = 3): Throughput {
   const ps = parts();
-  for (const p of ps) for (const c of p.captures) analyzeRing(c); // warm-up: JIT and caches
+  // Warm-up (JIT and caches), and the work count: the same captures give the same count.
+  const e0 = modelEvaluations();
+  let analysed = 0;
+  for (const p of ps) {
+    for (const c of p.captures) {
+      analyzeRing(c);
+      analysed++;
+    }
+  }
+  const evaluations_per_capture = (modelEvaluations() - e0) / analysed;
   const time_us = { offset: 0, sym: 0 };
   const count = { offset: 0, sym: 0 };
   const wall0 = performance.now();
@@ -56,6 +72,7 @@ export function measureThroughput(passes = 3): Throughput {
     offset_per_s: (1e6 * count.offset) / time_us.offset,
     symmetric_per_s: (1e6 * count.sym) / time_us.sym,
     wall_captures_per_s: total / wall_s,
+    evaluations_per_capture,
     parts: ps.map((p) => p.name),
   };
 }

@@ -31,7 +31,7 @@ export function partRecordFor(k: number): PartRecord {
   return {
     part: k, time: new Date(Date.UTC(2026, 0, 1) + k * 1000).toISOString(), lot: "kill-test", label: `coil, "batch" ${k}`,
     inductance_h: 1e-3 * (1 + k * 1e-4), inductance_u_h: 1e-5, decision: "conforming", p_conform: 0.99, lower_h: 9e-4, upper_h: 1.1e-3,
-    bin: "A", bin_certain: true, preferred_h: 1e-3, q: 40 + k, esr_ohm: 0.5, warnings: "", drive_index: 2, tank_index: 1, charge_us: 1000,
+    bin: "A", bin_certain: true, preferred_h: 1e-3, q: 40 + k, esr_ohm: 0.5, warnings: [], drive_index: 2, tank_index: 1, charge_us: 1000,
     tank_c_f: 1e-8, tank_calibrated: false,
   };
 }

@@ -1,7 +1,8 @@
 /*
- * The few STM32F4 registers the board port touches, by address (RM0383 for the STM32F411; the
- * STM32F405 that QEMU models has the same blocks at the same addresses, RM0090). Register-level:
- * no vendor headers are needed to build it.
+ * The few STM32F4 registers the STM32F4 ports touch, by address: the STM32F411CE board port
+ * (f411/, RM0383) and the emulated STM32F405 (qemu-f405/, RM0090), whose RCC, GPIO, TIM2, DMA1,
+ * USART and core blocks sit at the same addresses with the same layout. Register-level: no vendor
+ * headers are needed to build either.
  */
 #ifndef HT_STM32F4_REGS_H
 #define HT_STM32F4_REGS_H
@@ -78,6 +79,7 @@ volatile uint32_t* ht_sim_reg(uint32_t addr);
 #define TIM2_CCR4 REG(TIM2 + 0x40u)
 #define TIM_CR1_CEN (1u << 0)
 #define TIM_EGR_UG (1u << 0)
+#define TIM_DIER_UIE (1u << 0)
 #define TIM_DIER_CC4IE (1u << 4)
 #define TIM_DIER_CC1DE (1u << 9)
 #define TIM_DIER_CC2DE (1u << 10)
@@ -154,10 +156,12 @@ volatile uint32_t* ht_sim_reg(uint32_t addr);
 /* 96-bit unique device ID (RM0383 §24.1) */
 #define UID_BASE 0x1FFF7A10u
 
-/* Cortex-M4 core: SysTick, NVIC */
+/* Cortex-M core: SysTick, SCB, NVIC (NVIC_IPR_BYTE needs byte access: ARMv7-M only) */
 #define SYST_CSR REG(0xE000E010u)
 #define SYST_RVR REG(0xE000E014u)
 #define SYST_CVR REG(0xE000E018u)
+#define SCB_ICSR REG(0xE000ED04u)
+#define SCB_ICSR_PENDSTSET (1u << 26)
 #define NVIC_ISER(n) REG(0xE000E100u + 4u * (n))
 #ifdef HT_F411_HOSTSIM
 #define NVIC_IPR_BYTE(irq) (*(volatile uint8_t*)ht_sim_reg(0xE000E400u + 4u * (irq)))
@@ -170,5 +174,6 @@ volatile uint32_t* ht_sim_reg(uint32_t addr);
 #define IRQ_DMA1_STREAM6 17u
 #define IRQ_TIM2 28u
 #define IRQ_USART1 37u
+#define IRQ_USART2 38u
 
 #endif

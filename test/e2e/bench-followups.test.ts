@@ -1,0 +1,78 @@
+// Bench sessions through the built CLI, second round: turn changes in a --turns list, a target
+// the former cannot reach, a tolerance letter never dropped, sort logs with decimal limits and
+// warnings as an array.
+
+import { mkdtempSync, readFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { describe, expect, it } from "vitest";
+import { runCli } from "./run-cli.ts";
+
+const tmp = mkdtempSync(join(tmpdir(), "henrytick-followups-"));
+
+describe("wind --turns", () => {
+  it("reads +N and -N in the list as changes from the entry before, as at the keyboard", () => {
+    const r = runCli(["wind", "--sim", "--target", "22u", "--turns", "30,+1,-3", "--json"]);
+    expect(r.status, r.stderr).toBe(0);
+    expect(JSON.parse(r.stdout).readings.map((x: { turns: number }) => x.turns)).toEqual([30, 31, 28]);
+  });
+
+  it("refuses a list that starts with a change, before any pulse, showing how to write it", () => {
+    const r = runCli(["wind", "--sim", "--target", "22u", "--turns", "+1,30"]);
+    expect(r.status).toBe(2);
+    expect(r.stderr).toMatch(/--turns starts with the turns on the coil.*write 30,\+1/);
+    expect(r.stderr).not.toMatch(/measuring/);
+  });
+});
+
+describe("wind toward a target out of reach", () => {
+  it("refuses a target beyond the simulated former up front, with the former's reach", () => {
+    const r = runCli(["wind", "--sim", "--target", "300u", "--turns", "30"]);
+    expect(r.status).toBe(2);
+    expect(r.stderr).toMatch(/--target 300u: 300 µH is more than the simulated former reaches, [\d.]+ nH \(\d+ turns\) to 23\d µH \(\d+ turns\)/);
+    expect(r.stderr).not.toMatch(/measuring/);
+  });
+
+  it("says when the advice is a far extrapolation, and to wind part of the way first", () => {
+    const r = runCli(["wind", "--sim", "--target", "200u", "--turns", "30"]);
+    expect(r.status, r.stderr).toBe(0);
+    expect(r.stderr).toMatch(/the target needs about \d+ ± \d+ turns, [\d.]+× beyond the counts measured \(30\).*wind to about \d+ turns and measure again/);
+  });
+});
+
+describe("a tolerance letter on the nominal is never dropped (letters: common trade practice, no source)", () => {
+  it("refuses --nominal \"10uH F\" with --tol 5%, showing both ways to write it", () => {
+    const r = runCli(["sort", "--sim", "--nominal", "10uH F", "--tol", "5%", "--count", "1", "--log", join(tmp, "conflict")]);
+    expect(r.status).toBe(2);
+    expect(r.stderr).toMatch(/tolerance letter F \(±1 %\) but --tol says ±5 %: give the tolerance once, either --nominal "10uH" --tol 5% or --nominal "10uH F" without --tol/);
+  });
+
+  it("takes the letter alone, and a letter with an agreeing --tol", () => {
+    const alone = runCli(["sort", "--sim", "--nominal", "10uH F", "--sim-tray", "10u", "--settle", "1", "--log", join(tmp, "alone"), "--json"]);
+    expect(alone.status, alone.stderr).toBe(0);
+    expect(JSON.parse(alone.stdout).summary.limits).toEqual({ lower: 9.9e-6, upper: 10.1e-6 });
+    const both = runCli(["sort", "--sim", "--nominal", "4u7J", "--tol", "5%", "--sim-tray", "4.7u", "--settle", "1", "--log", join(tmp, "both"), "--json"]);
+    expect(both.status, both.stderr).toBe(0);
+  });
+
+  it("refuses a wind --target letter that --tol contradicts", () => {
+    const r = runCli(["wind", "--sim", "--target", "22uH G", "--tol", "5%", "--turns", "30"]);
+    expect(r.status).toBe(2);
+    expect(r.stderr).toMatch(/--target "22uH G" ends in the tolerance letter G \(±2 %\)/);
+  });
+});
+
+describe("sort logs", () => {
+  it("write the limits as the decimals they are and the warnings as an array of codes", () => {
+    const base = join(tmp, "lot");
+    const r = runCli(["sort", "--sim", "--nominal", "10u", "--tol", "5%", "--sim-tray", "10u,11.5u", "--settle", "1", "--log", base, "--json"]);
+    expect(r.status, r.stderr).toBe(0);
+    const text = readFileSync(`${base}.jsonl`, "utf8");
+    expect(text).toContain('"lower_h":0.0000095,"upper_h":0.0000105');
+    const records = text.trimEnd().split("\n").map((l) => JSON.parse(l));
+    expect(records).toHaveLength(2);
+    for (const rec of records) expect(Array.isArray(rec.warnings)).toBe(true);
+    const csv = readFileSync(`${base}.csv`, "utf8").trimEnd().split("\n");
+    for (const row of csv.slice(1)) expect(row).toContain(",0.0000095,0.0000105,");
+  });
+});
