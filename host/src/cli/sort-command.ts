@@ -18,6 +18,7 @@ import { makeStyle, stdinLines, type Style } from "../workflows/terminal.ts";
 import { intOption, numberOption, optionValue, parse, testerTarget, toleranceOnce, valueOption } from "./args.ts";
 import { MEASURABLE_RANGE } from "../values/range.ts";
 import { CliUsageError } from "./errors.ts";
+import { onCtrlC } from "./interrupt.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
 import { PulseCaution, windingRatioOption } from "./caution.ts";
 
@@ -95,9 +96,8 @@ export async function runSortCommand(args: string[]): Promise<number> {
   const log = SortLog.open({ csv: `${base}.csv`, jsonl: `${base}.jsonl` });
   const tester = await openTester(target);
   const stop = new AbortController();
-  // First Ctrl-C: finish after the reading in progress (the summary still prints); second: quit now.
-  const onSigint = () => (stop.signal.aborted ? process.exit(130) : stop.abort());
-  process.on("SIGINT", onSigint);
+  // First Ctrl-C: finish after the reading in progress (the summary still prints); a second press: quit now.
+  const ctrlC = onCtrlC(() => stop.abort());
   try {
     // The tester's calibration profile applies as it does for "measure" (smaller U, fewer unsure parts).
     const cal = values.uncalibrated ? null : deviceCalibration(tester.client, storeFor({ configDir: values["config-dir"], simulated: tester.sim !== undefined }));
@@ -132,7 +132,7 @@ export async function runSortCommand(args: string[]): Promise<number> {
       presence: { settle }, measure: { max_peak_v, other_winding_ratio, onBeforePulse: caution.beforePulse, calibration: cal?.applied }, signal: stop.signal, onEvent,
     });
   } finally {
-    process.off("SIGINT", onSigint);
+    ctrlC.dispose();
     log.close();
     await tester.close();
   }

@@ -13,6 +13,7 @@ import { windingAdvice, type WindingAdvice, type WindingReading } from "../workf
 import { numberOption, optionValue, parse, testerTarget, toleranceOnce, valueOption } from "./args.ts";
 import { MEASURABLE_RANGE } from "../values/range.ts";
 import { CliUsageError } from "./errors.ts";
+import { onCtrlC } from "./interrupt.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
 import { PulseCaution, windingRatioOption } from "./caution.ts";
 
@@ -84,12 +85,10 @@ export async function runWindCommand(args: string[]): Promise<number> {
     if (!advice) note("no reading was taken");
   };
   // Ctrl-C is a normal finish, as in sort: the readings so far are printed (with --json too).
-  const onSigint = () => {
-    process.off("SIGINT", onSigint);
+  const ctrlC = onCtrlC(() => {
     finish();
-    void tester.close().finally(() => process.exit(0));
-  };
-  process.on("SIGINT", onSigint);
+    void tester.close().finally(() => ctrlC.exit(0));
+  });
   try {
     note(`winding to ${formatValue(target.value, "H", 4)}${limits ? `, done within ${formatValue(limits.lower, "H", 4)} … ${formatValue(limits.upper, "H", 4)}` : ""}`);
     if (cal?.applied) note(`calibration ${cal.path}`);
@@ -132,7 +131,7 @@ export async function runWindCommand(args: string[]): Promise<number> {
       if (concern && !values.json && !values.csv) note(concern);
     }
   } finally {
-    process.off("SIGINT", onSigint);
+    ctrlC.dispose();
     await tester.close();
   }
   finish();
