@@ -3,7 +3,6 @@
 
 import { describe, expect, it } from "vitest";
 import { GRID, peakPredictionError, rangingRegret } from "./advice-grid.ts";
-import type { GridPart } from "./advice-grid.ts";
 
 const LIMIT_V = 28.8; // the default limit on the reference board: 30 V or 80 % of its 36 V clamp
 
@@ -23,28 +22,15 @@ describe("automatic ranging", () => {
   });
 });
 
-/**
- * The parts whose peak prediction does not yet hold: on the reference board's first-passage
- * comparator the 100 µH Q 2 part's anchor reading (an 8-edge ring at Q 2.1 on 100 nF) fits an
- * initial amplitude 22 % low on average over 12 seeds (sd 15 %; 13 % low with the comparator
- * correction off, 10 % low with the noise off as well), so every peak predicted from it reads low.
- */
-const PEAK_NOT_YET = new Set(["100 µH, Q 2"]);
-
-async function peakWithin10Percent(part: GridPart["part"]): Promise<void> {
-  const r = await peakPredictionError(part);
-  if (r.no_reading) {
-    // Only a part that automatic ranging also refuses may give nothing to predict from.
-    expect(r.no_reading).toMatch(/NO_RING|NO_SETTING/);
-    return;
-  }
-  expect(r.compared).toBeGreaterThanOrEqual(2);
-  expect(r.max_rel_error).toBeLessThan(0.1);
-}
-
 describe("peak prediction", () => {
-  it.each(GRID.filter((g) => !PEAK_NOT_YET.has(g.name)))("$name: predicted first peaks within 10 % of the simulated tester's", ({ part }) => peakWithin10Percent(part));
-  it.fails.each(GRID.filter((g) => PEAK_NOT_YET.has(g.name)))(
-    "$name: predicted first peaks within 10 % of the simulated tester's (not yet: the anchor ring's amplitude fits low)", ({ part }) => peakWithin10Percent(part),
-  );
+  it.each(GRID)("$name: predicted first peaks within 10 % of the simulated tester's", async ({ part }) => {
+    const r = await peakPredictionError(part);
+    if (r.no_reading) {
+      // Only a part that automatic ranging also refuses may give nothing to predict from.
+      expect(r.no_reading).toMatch(/NO_RING|NO_SETTING/);
+      return;
+    }
+    expect(r.compared).toBeGreaterThanOrEqual(2);
+    expect(r.max_rel_error).toBeLessThan(0.1);
+  });
 });
