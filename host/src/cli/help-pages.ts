@@ -2,7 +2,7 @@
 // `henrytick calibrate SUB --help`): short, every option, examples that run as shown (a test runs
 // the simulated ones). Imported only when a page is asked for.
 
-import { MEASURE_OPTIONS, WATCH_USAGE } from "./help-text.ts";
+import { FREQ_HELP, MEASURE_OPTIONS, WATCH_USAGE } from "./help-text.ts";
 import { WINDING_RATIO_HELP } from "./safety.ts";
 
 const TESTER = `  --sim [SCENARIO]     the simulated tester with a demo part (henrytick scenarios lists them)
@@ -70,10 +70,13 @@ ${TESTER}
   --max-peak-v V       ring-peak limit (default 30 V or 80 % of the clamp)
 ${WINDING_RATIO_HELP}
   --hazardous-ok       allow a limit above 42.4 V peak (cannot take effect on a clamp below it)
+${FREQ_HELP};
+                       the settings are then listed in the order ranging would try them
   --json               the estimate, the limit with its derivation and every setting as JSON
 
 Examples:
   henrytick advise --sim solenoid-valve-82m
+  henrytick advise --sim drawer-choke-330u --freq 30k
   henrytick advise --sim doorbell-transformer-12v --winding-ratio 19 --json
 `,
   scenarios: `henrytick scenarios — the simulated demo parts
