@@ -38,7 +38,7 @@ export type { Scenario, PartModel } from "./sim/scenario.ts";
 export {
   CalibrationError, CALIBRATION_METHODS, validateProfile, emptyProfile, loadProfile, saveProfile, restorePreviousProfile, configDir, profilePaths,
   appliedCalibration, deviceCalibration, calibrateWithReference, calibrateWithParallelCapacitor, calibrateThresholds, calibrateSkew,
-  measureTimebase, measureSelfCapacitance, measureLeadInductance,
+  measureTimebase, measureSelfCapacitance, measureLeadInductance, measureFixtureCapacitance,
 } from "./calibration/index.ts";
 // The methods behind them (GUM propagation, Monte Carlo, the two-capacitance solution, budgets)
 // are the henrytick/calibration subpath (calibration/index.ts).

@@ -3,11 +3,11 @@
 // code). Do not edit: change the schema and run npm run build.
 
 export const capture = validate20;
-const schema31 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:capture:1","title":"henrytick capture file, version 1","description":"The edge record of one ring-down with everything needed to analyse it again (docs/capture-format.md). Units are SI and in the key names. Rules a schema cannot state (rising threshold above the falling one, edge ticks non-decreasing) are checked by the reader too.","type":"object","required":["format","version","tick_hz","edges","tank_c_f","thresholds_v"],"properties":{"format":{"const":"henrytick-capture"},"version":{"const":1},"tick_hz":{"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"},"edges":{"type":"array","description":"[tick, level] pairs: integer ticks since the switch opened, non-decreasing; level 1 after a rising edge, 0 after a falling edge","items":{"description":"[tick, level]","type":"array","prefixItems":[{"type":"integer","minimum":0,"maximum":9007199254740991},{"enum":[0,1]}],"minItems":2,"maxItems":2}},"tank_c_f":{"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"},"tank_c_u_f":{"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"},"thresholds_v":{"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2},"drive":{"$ref":"#/$defs/drive"},"range":{"$ref":"#/$defs/range"},"device":{"$ref":"#/$defs/device"},"meta":{"type":"object","properties":{"label":{"type":"string"},"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"end_reason":{"enum":["quiet","full","timeout","no-edges"]}}},"calibration":{"$ref":"#/$defs/calibration"},"reading_warnings":{"type":"array","description":"warnings the reading added to the analysis's own (automatic ranging's); a re-analysis gives them again","items":{"$ref":"#/$defs/warning"}}},"$defs":{"drive":{"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the front end's clamp voltage, the ring's ceiling"}}},"range":{"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}},"device":{"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}},"calibration":{"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0},"comparator_skew_s":{"type":"number","description":"the comparator's calibrated rise/fall delay skew (rising minus falling propagation delay), seconds"},"comparator_skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of comparator_skew_s, seconds"},"lead_inductance_h":{"type":"number","minimum":0,"description":"the test leads' series inductance subtracted from the ring's inductance (calibrate short)"},"lead_u_h":{"type":"number","minimum":0,"description":"standard uncertainty of lead_inductance_h"}}},"warning":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}}}};
+const schema31 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:capture:1","title":"henrytick capture file, version 1","description":"The edge record of one ring-down with everything needed to analyse it again (docs/capture-format.md). Units are SI and in the key names. Rules a schema cannot state (rising threshold above the falling one, edge ticks non-decreasing) are checked by the reader too.","type":"object","required":["format","version","tick_hz","edges","tank_c_f","thresholds_v"],"properties":{"format":{"const":"henrytick-capture"},"version":{"const":1},"tick_hz":{"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"},"edges":{"type":"array","description":"[tick, level] pairs: integer ticks since the switch opened, non-decreasing; level 1 after a rising edge, 0 after a falling edge","items":{"description":"[tick, level]","type":"array","prefixItems":[{"type":"integer","minimum":0,"maximum":9007199254740991},{"enum":[0,1]}],"minItems":2,"maxItems":2}},"tank_c_f":{"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"},"tank_c_u_f":{"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"},"thresholds_v":{"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2},"drive":{"$ref":"#/$defs/drive"},"range":{"$ref":"#/$defs/range"},"device":{"$ref":"#/$defs/device"},"meta":{"type":"object","properties":{"label":{"type":"string"},"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"end_reason":{"enum":["quiet","full","timeout","no-edges"]}}},"calibration":{"$ref":"#/$defs/calibration"},"reading_warnings":{"type":"array","description":"warnings the reading added to the analysis's own (automatic ranging's); a re-analysis gives them again","items":{"$ref":"#/$defs/warning"}}},"$defs":{"drive":{"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the front end's clamp voltage, the ring's ceiling"}}},"range":{"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}},"device":{"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}},"calibration":{"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0},"comparator_skew_s":{"type":"number","description":"the comparator's calibrated rise/fall delay skew (rising minus falling propagation delay), seconds"},"comparator_skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of comparator_skew_s, seconds"},"lead_inductance_h":{"type":"number","minimum":0,"description":"the test leads' series inductance subtracted from the ring's inductance (calibrate short)"},"lead_u_h":{"type":"number","minimum":0,"description":"standard uncertainty of lead_inductance_h"},"fixture_capacitance_f":{"type":"number","description":"the fixture's capacitance (calibrate open) added to the tank's value in tank_c_f, because the tank's value did not hold it; farads"},"fixture_u_f":{"type":"number","minimum":0,"description":"standard uncertainty of fixture_capacitance_f (the budget's fixture line)"}}},"warning":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}}}};
 const schema32 = {"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the front end's clamp voltage, the ring's ceiling"}}};
 const schema33 = {"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}};
 const schema34 = {"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}};
-const schema35 = {"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0},"comparator_skew_s":{"type":"number","description":"the comparator's calibrated rise/fall delay skew (rising minus falling propagation delay), seconds"},"comparator_skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of comparator_skew_s, seconds"},"lead_inductance_h":{"type":"number","minimum":0,"description":"the test leads' series inductance subtracted from the ring's inductance (calibrate short)"},"lead_u_h":{"type":"number","minimum":0,"description":"standard uncertainty of lead_inductance_h"}}};
+const schema35 = {"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0},"comparator_skew_s":{"type":"number","description":"the comparator's calibrated rise/fall delay skew (rising minus falling propagation delay), seconds"},"comparator_skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of comparator_skew_s, seconds"},"lead_inductance_h":{"type":"number","minimum":0,"description":"the test leads' series inductance subtracted from the ring's inductance (calibrate short)"},"lead_u_h":{"type":"number","minimum":0,"description":"standard uncertainty of lead_inductance_h"},"fixture_capacitance_f":{"type":"number","description":"the fixture's capacitance (calibrate open) added to the tank's value in tank_c_f, because the tank's value did not hold it; farads"},"fixture_u_f":{"type":"number","minimum":0,"description":"standard uncertainty of fixture_capacitance_f (the budget's fixture line)"}}};
 const schema36 = {"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}};
 const pattern4 = new RegExp("^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$", "u");
 const pattern5 = new RegExp("^[A-Z][A-Z0-9_]*$", "u");
@@ -881,6 +881,42 @@ var valid12 = _errs89 === errors;
 else {
 var valid12 = true;
 }
+if(valid12){
+if(data34.fixture_capacitance_f !== undefined){
+let data45 = data34.fixture_capacitance_f;
+const _errs91 = errors;
+if(!((typeof data45 == "number") && (isFinite(data45)))){
+validate20.errors = [{instancePath:instancePath+"/calibration/fixture_capacitance_f",schemaPath:"#/$defs/calibration/properties/fixture_capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.fixture_capacitance_f.type,parentSchema:schema35.properties.fixture_capacitance_f,data:data45}];
+return false;
+}
+var valid12 = _errs91 === errors;
+}
+else {
+var valid12 = true;
+}
+if(valid12){
+if(data34.fixture_u_f !== undefined){
+let data46 = data34.fixture_u_f;
+const _errs93 = errors;
+if(errors === _errs93){
+if((typeof data46 == "number") && (isFinite(data46))){
+if(data46 < 0 || isNaN(data46)){
+validate20.errors = [{instancePath:instancePath+"/calibration/fixture_u_f",schemaPath:"#/$defs/calibration/properties/fixture_u_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema35.properties.fixture_u_f,data:data46}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/calibration/fixture_u_f",schemaPath:"#/$defs/calibration/properties/fixture_u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.fixture_u_f.type,parentSchema:schema35.properties.fixture_u_f,data:data46}];
+return false;
+}
+}
+var valid12 = _errs93 === errors;
+}
+else {
+var valid12 = true;
+}
+}
+}
 }
 }
 }
@@ -904,53 +940,53 @@ var valid0 = true;
 }
 if(valid0){
 if(data.reading_warnings !== undefined){
-let data45 = data.reading_warnings;
-const _errs91 = errors;
-if(errors === _errs91){
-if(Array.isArray(data45)){
+let data47 = data.reading_warnings;
+const _errs95 = errors;
+if(errors === _errs95){
+if(Array.isArray(data47)){
 var valid13 = true;
-const len3 = data45.length;
+const len3 = data47.length;
 for(let i1=0; i1<len3; i1++){
-let data46 = data45[i1];
-const _errs93 = errors;
-const _errs94 = errors;
-if(errors === _errs94){
-if(data46 && typeof data46 == "object" && !Array.isArray(data46)){
+let data48 = data47[i1];
+const _errs97 = errors;
+const _errs98 = errors;
+if(errors === _errs98){
+if(data48 && typeof data48 == "object" && !Array.isArray(data48)){
 let missing5;
-if(((data46.code === undefined) && (missing5 = "code")) || ((data46.message === undefined) && (missing5 = "message"))){
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/required",keyword:"required",params:{missingProperty: missing5},message:"must have required property '"+missing5+"'",schema:schema36.required,parentSchema:schema36,data:data46}];
+if(((data48.code === undefined) && (missing5 = "code")) || ((data48.message === undefined) && (missing5 = "message"))){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/required",keyword:"required",params:{missingProperty: missing5},message:"must have required property '"+missing5+"'",schema:schema36.required,parentSchema:schema36,data:data48}];
 return false;
 }
 else {
-if(data46.code !== undefined){
-let data47 = data46.code;
-const _errs96 = errors;
-if(errors === _errs96){
-if(typeof data47 === "string"){
-if(!pattern5.test(data47)){
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema36.properties.code,data:data47}];
+if(data48.code !== undefined){
+let data49 = data48.code;
+const _errs100 = errors;
+if(errors === _errs100){
+if(typeof data49 === "string"){
+if(!pattern5.test(data49)){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema36.properties.code,data:data49}];
 return false;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.code.type,parentSchema:schema36.properties.code,data:data47}];
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.code.type,parentSchema:schema36.properties.code,data:data49}];
 return false;
 }
 }
-var valid15 = _errs96 === errors;
+var valid15 = _errs100 === errors;
 }
 else {
 var valid15 = true;
 }
 if(valid15){
-if(data46.message !== undefined){
-let data48 = data46.message;
-const _errs98 = errors;
-if(typeof data48 !== "string"){
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/message",schemaPath:"#/$defs/warning/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.message.type,parentSchema:schema36.properties.message,data:data48}];
+if(data48.message !== undefined){
+let data50 = data48.message;
+const _errs102 = errors;
+if(typeof data50 !== "string"){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/message",schemaPath:"#/$defs/warning/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.message.type,parentSchema:schema36.properties.message,data:data50}];
 return false;
 }
-var valid15 = _errs98 === errors;
+var valid15 = _errs102 === errors;
 }
 else {
 var valid15 = true;
@@ -959,22 +995,22 @@ var valid15 = true;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema36.type,parentSchema:schema36,data:data46}];
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema36.type,parentSchema:schema36,data:data48}];
 return false;
 }
 }
-var valid13 = _errs93 === errors;
+var valid13 = _errs97 === errors;
 if(!valid13){
 break;
 }
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/reading_warnings",schemaPath:"#/properties/reading_warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema31.properties.reading_warnings.type,parentSchema:schema31.properties.reading_warnings,data:data45}];
+validate20.errors = [{instancePath:instancePath+"/reading_warnings",schemaPath:"#/properties/reading_warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema31.properties.reading_warnings.type,parentSchema:schema31.properties.reading_warnings,data:data47}];
 return false;
 }
 }
-var valid0 = _errs91 === errors;
+var valid0 = _errs95 === errors;
 }
 else {
 var valid0 = true;
@@ -1992,6 +2028,42 @@ var valid17 = _errs105 === errors;
 else {
 var valid17 = true;
 }
+if(valid17){
+if(data38.fixture_capacitance_f !== undefined){
+let data49 = data38.fixture_capacitance_f;
+const _errs107 = errors;
+if(!((typeof data49 == "number") && (isFinite(data49)))){
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/fixture_capacitance_f",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/fixture_capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.fixture_capacitance_f.type,parentSchema:schema35.properties.fixture_capacitance_f,data:data49}];
+return false;
+}
+var valid17 = _errs107 === errors;
+}
+else {
+var valid17 = true;
+}
+if(valid17){
+if(data38.fixture_u_f !== undefined){
+let data50 = data38.fixture_u_f;
+const _errs109 = errors;
+if(errors === _errs109){
+if((typeof data50 == "number") && (isFinite(data50))){
+if(data50 < 0 || isNaN(data50)){
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/fixture_u_f",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/fixture_u_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema35.properties.fixture_u_f,data:data50}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings/calibration/fixture_u_f",schemaPath:"urn:henrytick:schema:capture:1#/$defs/calibration/properties/fixture_u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema35.properties.fixture_u_f.type,parentSchema:schema35.properties.fixture_u_f,data:data50}];
+return false;
+}
+}
+var valid17 = _errs109 === errors;
+}
+else {
+var valid17 = true;
+}
+}
+}
 }
 }
 }
@@ -2033,57 +2105,23 @@ var valid0 = true;
 }
 if(valid0){
 if(data.device !== undefined){
-let data49 = data.device;
-const _errs107 = errors;
-const _errs108 = errors;
-if(errors === _errs108){
-if(data49 && typeof data49 == "object" && !Array.isArray(data49)){
-let missing7;
-if(((((data49.id === undefined) && (missing7 = "id")) || ((data49.firmware_version === undefined) && (missing7 = "firmware_version"))) || ((data49.protocol_version === undefined) && (missing7 = "protocol_version"))) || ((data49.transport === undefined) && (missing7 = "transport"))){
-validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/required",keyword:"required",params:{missingProperty: missing7},message:"must have required property '"+missing7+"'",schema:schema34.required,parentSchema:schema34,data:data49}];
-return false;
-}
-else {
-if(data49.id !== undefined){
-let data50 = data49.id;
-const _errs110 = errors;
-if(typeof data50 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/id",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.id.type,parentSchema:schema34.properties.id,data:data50}];
-return false;
-}
-var valid19 = _errs110 === errors;
-}
-else {
-var valid19 = true;
-}
-if(valid19){
-if(data49.firmware_version !== undefined){
-let data51 = data49.firmware_version;
+let data51 = data.device;
+const _errs111 = errors;
 const _errs112 = errors;
-if(typeof data51 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/firmware_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/firmware_version/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.firmware_version.type,parentSchema:schema34.properties.firmware_version,data:data51}];
+if(errors === _errs112){
+if(data51 && typeof data51 == "object" && !Array.isArray(data51)){
+let missing7;
+if(((((data51.id === undefined) && (missing7 = "id")) || ((data51.firmware_version === undefined) && (missing7 = "firmware_version"))) || ((data51.protocol_version === undefined) && (missing7 = "protocol_version"))) || ((data51.transport === undefined) && (missing7 = "transport"))){
+validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/required",keyword:"required",params:{missingProperty: missing7},message:"must have required property '"+missing7+"'",schema:schema34.required,parentSchema:schema34,data:data51}];
 return false;
-}
-var valid19 = _errs112 === errors;
 }
 else {
-var valid19 = true;
-}
-if(valid19){
-if(data49.protocol_version !== undefined){
-let data52 = data49.protocol_version;
+if(data51.id !== undefined){
+let data52 = data51.id;
 const _errs114 = errors;
-if(!(((typeof data52 == "number") && (!(data52 % 1) && !isNaN(data52))) && (isFinite(data52)))){
-validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema34.properties.protocol_version.type,parentSchema:schema34.properties.protocol_version,data:data52}];
+if(typeof data52 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/device/id",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.id.type,parentSchema:schema34.properties.id,data:data52}];
 return false;
-}
-if(errors === _errs114){
-if((typeof data52 == "number") && (isFinite(data52))){
-if(data52 < 0 || isNaN(data52)){
-validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema34.properties.protocol_version,data:data52}];
-return false;
-}
-}
 }
 var valid19 = _errs114 === errors;
 }
@@ -2091,11 +2129,11 @@ else {
 var valid19 = true;
 }
 if(valid19){
-if(data49.transport !== undefined){
-let data53 = data49.transport;
+if(data51.firmware_version !== undefined){
+let data53 = data51.firmware_version;
 const _errs116 = errors;
 if(typeof data53 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/transport",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/transport/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.transport.type,parentSchema:schema34.properties.transport,data:data53}];
+validate21.errors = [{instancePath:instancePath+"/device/firmware_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/firmware_version/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.firmware_version.type,parentSchema:schema34.properties.firmware_version,data:data53}];
 return false;
 }
 var valid19 = _errs116 === errors;
@@ -2104,19 +2142,19 @@ else {
 var valid19 = true;
 }
 if(valid19){
-if(data49.clamp_v !== undefined){
-let data54 = data49.clamp_v;
+if(data51.protocol_version !== undefined){
+let data54 = data51.protocol_version;
 const _errs118 = errors;
+if(!(((typeof data54 == "number") && (!(data54 % 1) && !isNaN(data54))) && (isFinite(data54)))){
+validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema34.properties.protocol_version.type,parentSchema:schema34.properties.protocol_version,data:data54}];
+return false;
+}
 if(errors === _errs118){
 if((typeof data54 == "number") && (isFinite(data54))){
-if(data54 <= 0 || isNaN(data54)){
-validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.clamp_v,data:data54}];
+if(data54 < 0 || isNaN(data54)){
+validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema34.properties.protocol_version,data:data54}];
 return false;
 }
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.clamp_v.type,parentSchema:schema34.properties.clamp_v,data:data54}];
-return false;
 }
 }
 var valid19 = _errs118 === errors;
@@ -2125,22 +2163,56 @@ else {
 var valid19 = true;
 }
 if(valid19){
-if(data49.max_timeout_ms !== undefined){
-let data55 = data49.max_timeout_ms;
+if(data51.transport !== undefined){
+let data55 = data51.transport;
 const _errs120 = errors;
-if(errors === _errs120){
-if((typeof data55 == "number") && (isFinite(data55))){
-if(data55 <= 0 || isNaN(data55)){
-validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.max_timeout_ms,data:data55}];
+if(typeof data55 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/device/transport",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/transport/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.transport.type,parentSchema:schema34.properties.transport,data:data55}];
+return false;
+}
+var valid19 = _errs120 === errors;
+}
+else {
+var valid19 = true;
+}
+if(valid19){
+if(data51.clamp_v !== undefined){
+let data56 = data51.clamp_v;
+const _errs122 = errors;
+if(errors === _errs122){
+if((typeof data56 == "number") && (isFinite(data56))){
+if(data56 <= 0 || isNaN(data56)){
+validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.clamp_v,data:data56}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.max_timeout_ms.type,parentSchema:schema34.properties.max_timeout_ms,data:data55}];
+validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.clamp_v.type,parentSchema:schema34.properties.clamp_v,data:data56}];
 return false;
 }
 }
-var valid19 = _errs120 === errors;
+var valid19 = _errs122 === errors;
+}
+else {
+var valid19 = true;
+}
+if(valid19){
+if(data51.max_timeout_ms !== undefined){
+let data57 = data51.max_timeout_ms;
+const _errs124 = errors;
+if(errors === _errs124){
+if((typeof data57 == "number") && (isFinite(data57))){
+if(data57 <= 0 || isNaN(data57)){
+validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.max_timeout_ms,data:data57}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.max_timeout_ms.type,parentSchema:schema34.properties.max_timeout_ms,data:data57}];
+return false;
+}
+}
+var valid19 = _errs124 === errors;
 }
 else {
 var valid19 = true;
@@ -2153,88 +2225,54 @@ var valid19 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema34.type,parentSchema:schema34,data:data49}];
+validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema34.type,parentSchema:schema34,data:data51}];
 return false;
 }
 }
-var valid0 = _errs107 === errors;
+var valid0 = _errs111 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.label !== undefined){
-let data56 = data.label;
-const _errs122 = errors;
-if(typeof data56 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/label",schemaPath:"#/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.label.type,parentSchema:schema37.properties.label,data:data56}];
+let data58 = data.label;
+const _errs126 = errors;
+if(typeof data58 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/label",schemaPath:"#/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.label.type,parentSchema:schema37.properties.label,data:data58}];
 return false;
 }
-var valid0 = _errs122 === errors;
+var valid0 = _errs126 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.test_frequency !== undefined){
-let data57 = data.test_frequency;
-const _errs124 = errors;
-if(errors === _errs124){
-if(data57 && typeof data57 == "object" && !Array.isArray(data57)){
-let missing8;
-if((((((((data57.asked_hz === undefined) && (missing8 = "asked_hz")) || ((data57.rang_hz === undefined) && (missing8 = "rang_hz"))) || ((data57.deviation_rel === undefined) && (missing8 = "deviation_rel"))) || ((data57.tank_index === undefined) && (missing8 = "tank_index"))) || ((data57.nearest === undefined) && (missing8 = "nearest"))) || ((data57.nearer_tanks === undefined) && (missing8 = "nearer_tanks"))) || ((data57.note === undefined) && (missing8 = "note"))){
-validate21.errors = [{instancePath:instancePath+"/test_frequency",schemaPath:"#/properties/test_frequency/required",keyword:"required",params:{missingProperty: missing8},message:"must have required property '"+missing8+"'",schema:schema37.properties.test_frequency.required,parentSchema:schema37.properties.test_frequency,data:data57}];
-return false;
-}
-else {
-if(data57.asked_hz !== undefined){
-let data58 = data57.asked_hz;
-const _errs126 = errors;
-if(errors === _errs126){
-if((typeof data58 == "number") && (isFinite(data58))){
-if(data58 <= 0 || isNaN(data58)){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/asked_hz",schemaPath:"#/properties/test_frequency/properties/asked_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.test_frequency.properties.asked_hz,data:data58}];
-return false;
-}
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency/asked_hz",schemaPath:"#/properties/test_frequency/properties/asked_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.test_frequency.properties.asked_hz.type,parentSchema:schema37.properties.test_frequency.properties.asked_hz,data:data58}];
-return false;
-}
-}
-var valid20 = _errs126 === errors;
-}
-else {
-var valid20 = true;
-}
-if(valid20){
-if(data57.rang_hz !== undefined){
-let data59 = data57.rang_hz;
+let data59 = data.test_frequency;
 const _errs128 = errors;
 if(errors === _errs128){
-if((typeof data59 == "number") && (isFinite(data59))){
-if(data59 <= 0 || isNaN(data59)){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/rang_hz",schemaPath:"#/properties/test_frequency/properties/rang_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.test_frequency.properties.rang_hz,data:data59}];
+if(data59 && typeof data59 == "object" && !Array.isArray(data59)){
+let missing8;
+if((((((((data59.asked_hz === undefined) && (missing8 = "asked_hz")) || ((data59.rang_hz === undefined) && (missing8 = "rang_hz"))) || ((data59.deviation_rel === undefined) && (missing8 = "deviation_rel"))) || ((data59.tank_index === undefined) && (missing8 = "tank_index"))) || ((data59.nearest === undefined) && (missing8 = "nearest"))) || ((data59.nearer_tanks === undefined) && (missing8 = "nearer_tanks"))) || ((data59.note === undefined) && (missing8 = "note"))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency",schemaPath:"#/properties/test_frequency/required",keyword:"required",params:{missingProperty: missing8},message:"must have required property '"+missing8+"'",schema:schema37.properties.test_frequency.required,parentSchema:schema37.properties.test_frequency,data:data59}];
 return false;
 }
-}
 else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency/rang_hz",schemaPath:"#/properties/test_frequency/properties/rang_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.test_frequency.properties.rang_hz.type,parentSchema:schema37.properties.test_frequency.properties.rang_hz,data:data59}];
-return false;
-}
-}
-var valid20 = _errs128 === errors;
-}
-else {
-var valid20 = true;
-}
-if(valid20){
-if(data57.deviation_rel !== undefined){
-let data60 = data57.deviation_rel;
+if(data59.asked_hz !== undefined){
+let data60 = data59.asked_hz;
 const _errs130 = errors;
-if(!((typeof data60 == "number") && (isFinite(data60)))){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/deviation_rel",schemaPath:"#/properties/test_frequency/properties/deviation_rel/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.test_frequency.properties.deviation_rel.type,parentSchema:schema37.properties.test_frequency.properties.deviation_rel,data:data60}];
+if(errors === _errs130){
+if((typeof data60 == "number") && (isFinite(data60))){
+if(data60 <= 0 || isNaN(data60)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/asked_hz",schemaPath:"#/properties/test_frequency/properties/asked_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.test_frequency.properties.asked_hz,data:data60}];
 return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/test_frequency/asked_hz",schemaPath:"#/properties/test_frequency/properties/asked_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.test_frequency.properties.asked_hz.type,parentSchema:schema37.properties.test_frequency.properties.asked_hz,data:data60}];
+return false;
+}
 }
 var valid20 = _errs130 === errors;
 }
@@ -2242,19 +2280,19 @@ else {
 var valid20 = true;
 }
 if(valid20){
-if(data57.tank_index !== undefined){
-let data61 = data57.tank_index;
+if(data59.rang_hz !== undefined){
+let data61 = data59.rang_hz;
 const _errs132 = errors;
-if(!(((typeof data61 == "number") && (!(data61 % 1) && !isNaN(data61))) && (isFinite(data61)))){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/tank_index",schemaPath:"#/properties/test_frequency/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema37.properties.test_frequency.properties.tank_index.type,parentSchema:schema37.properties.test_frequency.properties.tank_index,data:data61}];
-return false;
-}
 if(errors === _errs132){
 if((typeof data61 == "number") && (isFinite(data61))){
-if(data61 < 0 || isNaN(data61)){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/tank_index",schemaPath:"#/properties/test_frequency/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.test_frequency.properties.tank_index,data:data61}];
+if(data61 <= 0 || isNaN(data61)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/rang_hz",schemaPath:"#/properties/test_frequency/properties/rang_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.test_frequency.properties.rang_hz,data:data61}];
 return false;
 }
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/test_frequency/rang_hz",schemaPath:"#/properties/test_frequency/properties/rang_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.test_frequency.properties.rang_hz.type,parentSchema:schema37.properties.test_frequency.properties.rang_hz,data:data61}];
+return false;
 }
 }
 var valid20 = _errs132 === errors;
@@ -2263,11 +2301,11 @@ else {
 var valid20 = true;
 }
 if(valid20){
-if(data57.nearest !== undefined){
-let data62 = data57.nearest;
+if(data59.deviation_rel !== undefined){
+let data62 = data59.deviation_rel;
 const _errs134 = errors;
-if(typeof data62 !== "boolean"){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearest",schemaPath:"#/properties/test_frequency/properties/nearest/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema37.properties.test_frequency.properties.nearest.type,parentSchema:schema37.properties.test_frequency.properties.nearest,data:data62}];
+if(!((typeof data62 == "number") && (isFinite(data62)))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/deviation_rel",schemaPath:"#/properties/test_frequency/properties/deviation_rel/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.test_frequency.properties.deviation_rel.type,parentSchema:schema37.properties.test_frequency.properties.deviation_rel,data:data62}];
 return false;
 }
 var valid20 = _errs134 === errors;
@@ -2276,96 +2314,19 @@ else {
 var valid20 = true;
 }
 if(valid20){
-if(data57.nearer_tanks !== undefined){
-let data63 = data57.nearer_tanks;
+if(data59.tank_index !== undefined){
+let data63 = data59.tank_index;
 const _errs136 = errors;
+if(!(((typeof data63 == "number") && (!(data63 % 1) && !isNaN(data63))) && (isFinite(data63)))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/tank_index",schemaPath:"#/properties/test_frequency/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema37.properties.test_frequency.properties.tank_index.type,parentSchema:schema37.properties.test_frequency.properties.tank_index,data:data63}];
+return false;
+}
 if(errors === _errs136){
-if(Array.isArray(data63)){
-var valid21 = true;
-const len2 = data63.length;
-for(let i1=0; i1<len2; i1++){
-let data64 = data63[i1];
-const _errs138 = errors;
-if(errors === _errs138){
-if(data64 && typeof data64 == "object" && !Array.isArray(data64)){
-let missing9;
-if((((data64.tank_index === undefined) && (missing9 = "tank_index")) || ((data64.predicted_hz === undefined) && (missing9 = "predicted_hz"))) || ((data64.why === undefined) && (missing9 = "why"))){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1,schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/required",keyword:"required",params:{missingProperty: missing9},message:"must have required property '"+missing9+"'",schema:schema37.properties.test_frequency.properties.nearer_tanks.items.required,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items,data:data64}];
+if((typeof data63 == "number") && (isFinite(data63))){
+if(data63 < 0 || isNaN(data63)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/tank_index",schemaPath:"#/properties/test_frequency/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.test_frequency.properties.tank_index,data:data63}];
 return false;
 }
-else {
-if(data64.tank_index !== undefined){
-let data65 = data64.tank_index;
-const _errs140 = errors;
-if(!(((typeof data65 == "number") && (!(data65 % 1) && !isNaN(data65))) && (isFinite(data65)))){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/tank_index",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index.type,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index,data:data65}];
-return false;
-}
-if(errors === _errs140){
-if((typeof data65 == "number") && (isFinite(data65))){
-if(data65 < 0 || isNaN(data65)){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/tank_index",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index,data:data65}];
-return false;
-}
-}
-}
-var valid22 = _errs140 === errors;
-}
-else {
-var valid22 = true;
-}
-if(valid22){
-if(data64.predicted_hz !== undefined){
-let data66 = data64.predicted_hz;
-const _errs142 = errors;
-if(errors === _errs142){
-if((typeof data66 == "number") && (isFinite(data66))){
-if(data66 <= 0 || isNaN(data66)){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/predicted_hz",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/predicted_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz,data:data66}];
-return false;
-}
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/predicted_hz",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/predicted_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz.type,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz,data:data66}];
-return false;
-}
-}
-var valid22 = _errs142 === errors;
-}
-else {
-var valid22 = true;
-}
-if(valid22){
-if(data64.why !== undefined){
-let data67 = data64.why;
-const _errs144 = errors;
-if(typeof data67 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/why",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/why/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.why.type,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.why,data:data67}];
-return false;
-}
-var valid22 = _errs144 === errors;
-}
-else {
-var valid22 = true;
-}
-}
-}
-}
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1,schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.properties.test_frequency.properties.nearer_tanks.items.type,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items,data:data64}];
-return false;
-}
-}
-var valid21 = _errs138 === errors;
-if(!valid21){
-break;
-}
-}
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema37.properties.test_frequency.properties.nearer_tanks.type,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks,data:data63}];
-return false;
 }
 }
 var valid20 = _errs136 === errors;
@@ -2374,14 +2335,125 @@ else {
 var valid20 = true;
 }
 if(valid20){
-if(data57.note !== undefined){
-let data68 = data57.note;
-const _errs146 = errors;
-if(typeof data68 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/note",schemaPath:"#/properties/test_frequency/properties/note/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.test_frequency.properties.note.type,parentSchema:schema37.properties.test_frequency.properties.note,data:data68}];
+if(data59.nearest !== undefined){
+let data64 = data59.nearest;
+const _errs138 = errors;
+if(typeof data64 !== "boolean"){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearest",schemaPath:"#/properties/test_frequency/properties/nearest/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema37.properties.test_frequency.properties.nearest.type,parentSchema:schema37.properties.test_frequency.properties.nearest,data:data64}];
 return false;
 }
-var valid20 = _errs146 === errors;
+var valid20 = _errs138 === errors;
+}
+else {
+var valid20 = true;
+}
+if(valid20){
+if(data59.nearer_tanks !== undefined){
+let data65 = data59.nearer_tanks;
+const _errs140 = errors;
+if(errors === _errs140){
+if(Array.isArray(data65)){
+var valid21 = true;
+const len2 = data65.length;
+for(let i1=0; i1<len2; i1++){
+let data66 = data65[i1];
+const _errs142 = errors;
+if(errors === _errs142){
+if(data66 && typeof data66 == "object" && !Array.isArray(data66)){
+let missing9;
+if((((data66.tank_index === undefined) && (missing9 = "tank_index")) || ((data66.predicted_hz === undefined) && (missing9 = "predicted_hz"))) || ((data66.why === undefined) && (missing9 = "why"))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1,schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/required",keyword:"required",params:{missingProperty: missing9},message:"must have required property '"+missing9+"'",schema:schema37.properties.test_frequency.properties.nearer_tanks.items.required,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items,data:data66}];
+return false;
+}
+else {
+if(data66.tank_index !== undefined){
+let data67 = data66.tank_index;
+const _errs144 = errors;
+if(!(((typeof data67 == "number") && (!(data67 % 1) && !isNaN(data67))) && (isFinite(data67)))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/tank_index",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index.type,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index,data:data67}];
+return false;
+}
+if(errors === _errs144){
+if((typeof data67 == "number") && (isFinite(data67))){
+if(data67 < 0 || isNaN(data67)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/tank_index",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index,data:data67}];
+return false;
+}
+}
+}
+var valid22 = _errs144 === errors;
+}
+else {
+var valid22 = true;
+}
+if(valid22){
+if(data66.predicted_hz !== undefined){
+let data68 = data66.predicted_hz;
+const _errs146 = errors;
+if(errors === _errs146){
+if((typeof data68 == "number") && (isFinite(data68))){
+if(data68 <= 0 || isNaN(data68)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/predicted_hz",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/predicted_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz,data:data68}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/predicted_hz",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/predicted_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz.type,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz,data:data68}];
+return false;
+}
+}
+var valid22 = _errs146 === errors;
+}
+else {
+var valid22 = true;
+}
+if(valid22){
+if(data66.why !== undefined){
+let data69 = data66.why;
+const _errs148 = errors;
+if(typeof data69 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/why",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/why/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.why.type,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.why,data:data69}];
+return false;
+}
+var valid22 = _errs148 === errors;
+}
+else {
+var valid22 = true;
+}
+}
+}
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1,schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.properties.test_frequency.properties.nearer_tanks.items.type,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items,data:data66}];
+return false;
+}
+}
+var valid21 = _errs142 === errors;
+if(!valid21){
+break;
+}
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema37.properties.test_frequency.properties.nearer_tanks.type,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks,data:data65}];
+return false;
+}
+}
+var valid20 = _errs140 === errors;
+}
+else {
+var valid20 = true;
+}
+if(valid20){
+if(data59.note !== undefined){
+let data70 = data59.note;
+const _errs150 = errors;
+if(typeof data70 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/note",schemaPath:"#/properties/test_frequency/properties/note/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.test_frequency.properties.note.type,parentSchema:schema37.properties.test_frequency.properties.note,data:data70}];
+return false;
+}
+var valid20 = _errs150 === errors;
 }
 else {
 var valid20 = true;
@@ -2395,11 +2467,11 @@ var valid20 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency",schemaPath:"#/properties/test_frequency/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.properties.test_frequency.type,parentSchema:schema37.properties.test_frequency,data:data57}];
+validate21.errors = [{instancePath:instancePath+"/test_frequency",schemaPath:"#/properties/test_frequency/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.properties.test_frequency.type,parentSchema:schema37.properties.test_frequency,data:data59}];
 return false;
 }
 }
-var valid0 = _errs124 === errors;
+var valid0 = _errs128 === errors;
 }
 else {
 var valid0 = true;
@@ -2435,12 +2507,12 @@ return errors === 0;
 validate21.evaluated = {"props":{"suspect":true,"f0_hz":true,"f0_u_hz":true,"fd_hz":true,"inductance_h":true,"inductance_u_h":true,"coverage_factor":true,"q":true,"q_u":true,"esr_ohm":true,"esr_u_ohm":true,"ring_amplitude_v":true,"edges_used":true,"edges_rejected":true,"warnings":true,"settings":true,"device":true,"label":true,"test_frequency":true},"dynamicProps":false,"dynamicItems":false};
 
 export const calibrationProfile = validate22;
-const schema48 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:calibration-profile:1","title":"henrytick calibration profile, version 1","description":"What calibration found about one tester (docs/calibration.md). Units are SI and in the key names; uncertainties are standard (k = 1). Rules a schema cannot state (a tank index only once, c_f within a factor 2 of nominal_f, u_f at most 20 % of c_f, rising threshold above falling, |ppm| at most 1000, |skew_s| under 1 µs, leads l_h at most 0.5 µH) are checked by the reader too.","type":"object","required":["format","version","device_id","updated","tanks"],"properties":{"format":{"const":"henrytick-calibration"},"version":{"const":1},"device_id":{"type":"string","minLength":1},"updated":{"$ref":"#/$defs/time"},"tanks":{"type":"array","description":"empty when no tank is calibrated","items":{"$ref":"#/$defs/tank"}},"thresholds":{"$ref":"#/$defs/thresholds"},"timebase":{"$ref":"#/$defs/timebase"},"skew":{"$ref":"#/$defs/skew"},"leads":{"$ref":"#/$defs/leads"}},"$defs":{"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"method":{"enum":["reference-inductor","parallel-capacitor","threshold-fit","skew-fit","host-clock","entered","clips-shorted"],"description":"the procedure that produced the value"},"provenance":{"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}},"tank":{"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"}}},"thresholds":{"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}},"timebase":{"type":"object","$ref":"#/$defs/provenance","required":["ppm","u_ppm"],"properties":{"ppm":{"type":"number","description":"the tick counter runs fast by ppm: true rate = nominal (1 + ppm 1e-6)"},"u_ppm":{"type":"number","minimum":0}}},"skew":{"type":"object","$ref":"#/$defs/provenance","required":["skew_s","u_skew_s"],"properties":{"skew_s":{"type":"number","description":"the comparator's rising-edge propagation delay minus its falling-edge delay, seconds"},"u_skew_s":{"type":"number","minimum":0,"description":"standard uncertainty of skew_s, seconds"}}},"leads":{"type":"object","$ref":"#/$defs/provenance","required":["l_h","u_h"],"properties":{"l_h":{"type":"number","minimum":0,"description":"series inductance of the test leads and clips (clips shorted), henries; subtracted from every reading"},"u_h":{"type":"number","minimum":0,"description":"standard uncertainty of l_h"}}}}};
+const schema48 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:calibration-profile:1","title":"henrytick calibration profile, version 1","description":"What calibration found about one tester (docs/calibration.md). Units are SI and in the key names; uncertainties are standard (k = 1). Rules a schema cannot state (a tank index only once, c_f within a factor 2 of nominal_f, u_f at most 20 % of c_f, rising threshold above falling, |ppm| at most 1000, |skew_s| under 1 µs, leads l_h at most 0.5 µH, fixture c_f at most 500 pF) are checked by the reader too.","type":"object","required":["format","version","device_id","updated","tanks"],"properties":{"format":{"const":"henrytick-calibration"},"version":{"const":1},"device_id":{"type":"string","minLength":1},"updated":{"$ref":"#/$defs/time"},"tanks":{"type":"array","description":"empty when no tank is calibrated","items":{"$ref":"#/$defs/tank"}},"thresholds":{"$ref":"#/$defs/thresholds"},"timebase":{"$ref":"#/$defs/timebase"},"skew":{"$ref":"#/$defs/skew"},"leads":{"$ref":"#/$defs/leads"},"fixture":{"$ref":"#/$defs/fixture"}},"$defs":{"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"method":{"enum":["reference-inductor","parallel-capacitor","threshold-fit","skew-fit","host-clock","entered","clips-shorted","terminals-vs-clips"],"description":"the procedure that produced the value"},"provenance":{"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}},"tank":{"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"},"fixture_included":{"type":"boolean","description":"false when the tank was calibrated on the board's own terminals, without the clips and leads: the fixture's capacitance (fixture.c_f) is then added to it in readings; true or left out when calibrated through the clips (c_f already holds the fixture)"}}},"thresholds":{"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}},"timebase":{"type":"object","$ref":"#/$defs/provenance","required":["ppm","u_ppm"],"properties":{"ppm":{"type":"number","description":"the tick counter runs fast by ppm: true rate = nominal (1 + ppm 1e-6)"},"u_ppm":{"type":"number","minimum":0}}},"skew":{"type":"object","$ref":"#/$defs/provenance","required":["skew_s","u_skew_s"],"properties":{"skew_s":{"type":"number","description":"the comparator's rising-edge propagation delay minus its falling-edge delay, seconds"},"u_skew_s":{"type":"number","minimum":0,"description":"standard uncertainty of skew_s, seconds"}}},"leads":{"type":"object","$ref":"#/$defs/provenance","required":["l_h","u_h"],"properties":{"l_h":{"type":"number","minimum":0,"description":"series inductance of the test leads and clips (clips shorted), henries; subtracted from every reading"},"u_h":{"type":"number","minimum":0,"description":"standard uncertainty of l_h"}}},"fixture":{"type":"object","$ref":"#/$defs/provenance","required":["c_f","u_f"],"properties":{"c_f":{"type":"number","description":"capacitance of the clips and leads across the part (open nulling: one coil rung on two tanks on the board's terminals and on the clips), farads; added to every tank whose value does not hold it"},"u_f":{"type":"number","minimum":0,"description":"standard uncertainty of c_f"}}}}};
 const schema49 = {"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"};
 const func1 = ((s) => [...s].length);
-const schema50 = {"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"}}};
+const schema50 = {"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"},"fixture_included":{"type":"boolean","description":"false when the tank was calibrated on the board's own terminals, without the clips and leads: the fixture's capacitance (fixture.c_f) is then added to it in readings; true or left out when calibrated through the clips (c_f already holds the fixture)"}}};
 const schema51 = {"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}};
-const schema52 = {"enum":["reference-inductor","parallel-capacitor","threshold-fit","skew-fit","host-clock","entered","clips-shorted"],"description":"the procedure that produced the value"};
+const schema52 = {"enum":["reference-inductor","parallel-capacitor","threshold-fit","skew-fit","host-clock","entered","clips-shorted","terminals-vs-clips"],"description":"the procedure that produced the value"};
 
 function validate24(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 let vErrors = null;
@@ -2463,7 +2535,7 @@ else {
 if(data.method !== undefined){
 let data0 = data.method;
 const _errs1 = errors;
-if(!(((((((data0 === "reference-inductor") || (data0 === "parallel-capacitor")) || (data0 === "threshold-fit")) || (data0 === "skew-fit")) || (data0 === "host-clock")) || (data0 === "entered")) || (data0 === "clips-shorted"))){
+if(!((((((((data0 === "reference-inductor") || (data0 === "parallel-capacitor")) || (data0 === "threshold-fit")) || (data0 === "skew-fit")) || (data0 === "host-clock")) || (data0 === "entered")) || (data0 === "clips-shorted")) || (data0 === "terminals-vs-clips"))){
 validate24.errors = [{instancePath:instancePath+"/method",schemaPath:"#/$defs/method/enum",keyword:"enum",params:{allowedValues: schema52.enum},message:"must be equal to one of the allowed values",schema:schema52.enum,parentSchema:schema52,data:data0}];
 return false;
 }
@@ -2703,6 +2775,20 @@ var valid0 = _errs15 === errors;
 else {
 var valid0 = true;
 }
+if(valid0){
+if(data.fixture_included !== undefined){
+let data8 = data.fixture_included;
+const _errs17 = errors;
+if(typeof data8 !== "boolean"){
+validate23.errors = [{instancePath:instancePath+"/fixture_included",schemaPath:"#/properties/fixture_included/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema50.properties.fixture_included.type,parentSchema:schema50.properties.fixture_included,data:data8}];
+return false;
+}
+var valid0 = _errs17 === errors;
+}
+else {
+var valid0 = true;
+}
+}
 }
 }
 }
@@ -2720,7 +2806,7 @@ return false;
 validate23.errors = vErrors;
 return errors === 0;
 }
-validate23.evaluated = {"props":{"index":true,"nominal_f":true,"c_f":true,"u_f":true,"shared_u_rel":true,"shared_offset_u_f":true,"timebase_ppm":true,"drive":true,"method":true,"time":true,"detail":true},"dynamicProps":false,"dynamicItems":false};
+validate23.evaluated = {"props":{"index":true,"nominal_f":true,"c_f":true,"u_f":true,"shared_u_rel":true,"shared_offset_u_f":true,"timebase_ppm":true,"drive":true,"fixture_included":true,"method":true,"time":true,"detail":true},"dynamicProps":false,"dynamicItems":false};
 
 const schema54 = {"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}};
 
@@ -3061,6 +3147,76 @@ return errors === 0;
 }
 validate36.evaluated = {"props":{"l_h":true,"u_h":true,"method":true,"time":true,"detail":true},"dynamicProps":false,"dynamicItems":false};
 
+const schema58 = {"type":"object","$ref":"#/$defs/provenance","required":["c_f","u_f"],"properties":{"c_f":{"type":"number","description":"capacitance of the clips and leads across the part (open nulling: one coil rung on two tanks on the board's terminals and on the clips), farads; added to every tank whose value does not hold it"},"u_f":{"type":"number","minimum":0,"description":"standard uncertainty of c_f"}}};
+
+function validate39(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
+let vErrors = null;
+let errors = 0;
+const evaluated0 = validate39.evaluated;
+if(evaluated0.dynamicProps){
+evaluated0.props = undefined;
+}
+if(evaluated0.dynamicItems){
+evaluated0.items = undefined;
+}
+if(!(validate24(data, {instancePath,parentData,parentDataProperty,rootData,dynamicAnchors}))){
+vErrors = vErrors === null ? validate24.errors : vErrors.concat(validate24.errors);
+errors = vErrors.length;
+}
+if(errors === 0){
+if(data && typeof data == "object" && !Array.isArray(data)){
+let missing0;
+if(((data.c_f === undefined) && (missing0 = "c_f")) || ((data.u_f === undefined) && (missing0 = "u_f"))){
+validate39.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema58.required,parentSchema:schema58,data}];
+return false;
+}
+else {
+if(data.c_f !== undefined){
+let data0 = data.c_f;
+const _errs1 = errors;
+if(!((typeof data0 == "number") && (isFinite(data0)))){
+validate39.errors = [{instancePath:instancePath+"/c_f",schemaPath:"#/properties/c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.c_f.type,parentSchema:schema58.properties.c_f,data:data0}];
+return false;
+}
+var valid0 = _errs1 === errors;
+}
+else {
+var valid0 = true;
+}
+if(valid0){
+if(data.u_f !== undefined){
+let data1 = data.u_f;
+const _errs3 = errors;
+if(errors === _errs3){
+if((typeof data1 == "number") && (isFinite(data1))){
+if(data1 < 0 || isNaN(data1)){
+validate39.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema58.properties.u_f,data:data1}];
+return false;
+}
+}
+else {
+validate39.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.u_f.type,parentSchema:schema58.properties.u_f,data:data1}];
+return false;
+}
+}
+var valid0 = _errs3 === errors;
+}
+else {
+var valid0 = true;
+}
+}
+}
+}
+else {
+validate39.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema58.type,parentSchema:schema58,data}];
+return false;
+}
+}
+validate39.errors = vErrors;
+return errors === 0;
+}
+validate39.evaluated = {"props":{"c_f":true,"u_f":true,"method":true,"time":true,"detail":true},"dynamicProps":false,"dynamicItems":false};
+
 
 function validate22(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 /*# sourceURL="urn:henrytick:schema:calibration-profile:1" */;
@@ -3227,6 +3383,19 @@ var valid0 = _errs14 === errors;
 else {
 var valid0 = true;
 }
+if(valid0){
+if(data.fixture !== undefined){
+const _errs15 = errors;
+if(!(validate39(data.fixture, {instancePath:instancePath+"/fixture",parentData:data,parentDataProperty:"fixture",rootData,dynamicAnchors}))){
+vErrors = vErrors === null ? validate39.errors : vErrors.concat(validate39.errors);
+errors = vErrors.length;
+}
+var valid0 = _errs15 === errors;
+}
+else {
+var valid0 = true;
+}
+}
 }
 }
 }
@@ -3245,16 +3414,16 @@ return false;
 validate22.errors = vErrors;
 return errors === 0;
 }
-validate22.evaluated = {"props":{"format":true,"version":true,"device_id":true,"updated":true,"tanks":true,"thresholds":true,"timebase":true,"skew":true,"leads":true},"dynamicProps":false,"dynamicItems":false};
+validate22.evaluated = {"props":{"format":true,"version":true,"device_id":true,"updated":true,"tanks":true,"thresholds":true,"timebase":true,"skew":true,"leads":true,"fixture":true},"dynamicProps":false,"dynamicItems":false};
 
-export const scenario = validate39;
-const schema58 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:scenario:1","title":"henrytick simulated-tester scenario, version 1","description":"A demo part for the simulated tester and, optionally, the bench conditions it is measured under. Units are SI and in the key names.","type":"object","required":["format","version","name","part"],"properties":{"format":{"const":"henrytick-scenario"},"version":{"const":1},"name":{"type":"string","minLength":1},"story":{"type":"string","description":"what the part is and what the scenario shows"},"part":{"type":"object","required":["inductance_h","series_ohm"],"properties":{"inductance_h":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"parallel_ohm":{"type":"number","exclusiveMinimum":0,"description":"core (parallel) loss resistance; absent for an air core"},"self_capacitance_f":{"type":"number","minimum":0,"description":"the part's own self-capacitance (0 when left out)"},"saturation_current_a":{"type":"number","exclusiveMinimum":0,"description":"current where the differential inductance has fallen halfway to its floor"},"saturation_floor_ratio":{"type":"number","exclusiveMinimum":0,"exclusiveMaximum":1,"description":"differential inductance deep in saturation, as a fraction of the small-signal value"}}},"fixture":{"type":"object","properties":{"capacitance_f":{"type":"number","minimum":0,"description":"test-lead capacitance in parallel with the tank (replaces the board's)"},"lead_inductance_h":{"type":"number","minimum":0,"maximum":0.000001,"description":"series inductance of the test leads and clips, in series with the part (0 when left out)"},"tank_voltage_coefficient_per_v2":{"type":"number","exclusiveMinimum":0,"description":"k in C(v) = C0 (1 - k v^2): a class II ceramic fitted as the tank"},"chatter":{"type":"object","description":"an intermittent clip contact during the ring: moments open or resistive, at random (seeded)","required":["events_per_s"],"additionalProperties":false,"properties":{"events_per_s":{"type":"number","minimum":0,"maximum":100000,"description":"mean contact events per second of ring"},"open_share":{"type":"number","minimum":0,"maximum":1,"description":"share of events that open the contact (the rest are resistance bursts); 0.5 when left out"},"open_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest open interval, seconds"},"burst_ohm":{"type":"array","items":{"type":"number","minimum":0,"maximum":1000000},"minItems":2,"maxItems":2,"description":"smallest and largest burst resistance, ohms"},"burst_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest burst, seconds"}}}}},"geometry":{"type":"object","description":"the coil geometry a part was computed from (kept for the record; the part values are what the simulator uses)","additionalProperties":{"type":"number"}},"seed":{"type":"integer","description":"noise seed (1 when left out)"}}};
+export const scenario = validate42;
+const schema59 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:scenario:1","title":"henrytick simulated-tester scenario, version 1","description":"A demo part for the simulated tester and, optionally, the bench conditions it is measured under. Units are SI and in the key names.","type":"object","required":["format","version","name","part"],"properties":{"format":{"const":"henrytick-scenario"},"version":{"const":1},"name":{"type":"string","minLength":1},"story":{"type":"string","description":"what the part is and what the scenario shows"},"part":{"type":"object","required":["inductance_h","series_ohm"],"properties":{"inductance_h":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"parallel_ohm":{"type":"number","exclusiveMinimum":0,"description":"core (parallel) loss resistance; absent for an air core"},"self_capacitance_f":{"type":"number","minimum":0,"description":"the part's own self-capacitance (0 when left out)"},"saturation_current_a":{"type":"number","exclusiveMinimum":0,"description":"current where the differential inductance has fallen halfway to its floor"},"saturation_floor_ratio":{"type":"number","exclusiveMinimum":0,"exclusiveMaximum":1,"description":"differential inductance deep in saturation, as a fraction of the small-signal value"}}},"fixture":{"type":"object","properties":{"capacitance_f":{"type":"number","minimum":0,"description":"test-lead capacitance in parallel with the tank (replaces the board's)"},"lead_inductance_h":{"type":"number","minimum":0,"maximum":0.000001,"description":"series inductance of the test leads and clips, in series with the part (0 when left out)"},"tank_voltage_coefficient_per_v2":{"type":"number","exclusiveMinimum":0,"description":"k in C(v) = C0 (1 - k v^2): a class II ceramic fitted as the tank"},"chatter":{"type":"object","description":"an intermittent clip contact during the ring: moments open or resistive, at random (seeded)","required":["events_per_s"],"additionalProperties":false,"properties":{"events_per_s":{"type":"number","minimum":0,"maximum":100000,"description":"mean contact events per second of ring"},"open_share":{"type":"number","minimum":0,"maximum":1,"description":"share of events that open the contact (the rest are resistance bursts); 0.5 when left out"},"open_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest open interval, seconds"},"burst_ohm":{"type":"array","items":{"type":"number","minimum":0,"maximum":1000000},"minItems":2,"maxItems":2,"description":"smallest and largest burst resistance, ohms"},"burst_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest burst, seconds"}}}}},"geometry":{"type":"object","description":"the coil geometry a part was computed from (kept for the record; the part values are what the simulator uses)","additionalProperties":{"type":"number"}},"seed":{"type":"integer","description":"noise seed (1 when left out)"}}};
 
-function validate39(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
+function validate42(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 /*# sourceURL="urn:henrytick:schema:scenario:1" */;
 let vErrors = null;
 let errors = 0;
-const evaluated0 = validate39.evaluated;
+const evaluated0 = validate42.evaluated;
 if(evaluated0.dynamicProps){
 evaluated0.props = undefined;
 }
@@ -3265,7 +3434,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if(((((data.format === undefined) && (missing0 = "format")) || ((data.version === undefined) && (missing0 = "version"))) || ((data.name === undefined) && (missing0 = "name"))) || ((data.part === undefined) && (missing0 = "part"))){
-validate39.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema58.required,parentSchema:schema58,data}];
+validate42.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema59.required,parentSchema:schema59,data}];
 return false;
 }
 else {
@@ -3273,7 +3442,7 @@ if(data.format !== undefined){
 let data0 = data.format;
 const _errs1 = errors;
 if("henrytick-scenario" !== data0){
-validate39.errors = [{instancePath:instancePath+"/format",schemaPath:"#/properties/format/const",keyword:"const",params:{allowedValue: "henrytick-scenario"},message:"must be equal to constant",schema:"henrytick-scenario",parentSchema:schema58.properties.format,data:data0}];
+validate42.errors = [{instancePath:instancePath+"/format",schemaPath:"#/properties/format/const",keyword:"const",params:{allowedValue: "henrytick-scenario"},message:"must be equal to constant",schema:"henrytick-scenario",parentSchema:schema59.properties.format,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -3286,7 +3455,7 @@ if(data.version !== undefined){
 let data1 = data.version;
 const _errs2 = errors;
 if(1 !== data1){
-validate39.errors = [{instancePath:instancePath+"/version",schemaPath:"#/properties/version/const",keyword:"const",params:{allowedValue: 1},message:"must be equal to constant",schema:1,parentSchema:schema58.properties.version,data:data1}];
+validate42.errors = [{instancePath:instancePath+"/version",schemaPath:"#/properties/version/const",keyword:"const",params:{allowedValue: 1},message:"must be equal to constant",schema:1,parentSchema:schema59.properties.version,data:data1}];
 return false;
 }
 var valid0 = _errs2 === errors;
@@ -3301,12 +3470,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if(typeof data2 === "string"){
 if(func1(data2) < 1){
-validate39.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters",schema:1,parentSchema:schema58.properties.name,data:data2}];
+validate42.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters",schema:1,parentSchema:schema59.properties.name,data:data2}];
 return false;
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema58.properties.name.type,parentSchema:schema58.properties.name,data:data2}];
+validate42.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema59.properties.name.type,parentSchema:schema59.properties.name,data:data2}];
 return false;
 }
 }
@@ -3320,7 +3489,7 @@ if(data.story !== undefined){
 let data3 = data.story;
 const _errs5 = errors;
 if(typeof data3 !== "string"){
-validate39.errors = [{instancePath:instancePath+"/story",schemaPath:"#/properties/story/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema58.properties.story.type,parentSchema:schema58.properties.story,data:data3}];
+validate42.errors = [{instancePath:instancePath+"/story",schemaPath:"#/properties/story/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema59.properties.story.type,parentSchema:schema59.properties.story,data:data3}];
 return false;
 }
 var valid0 = _errs5 === errors;
@@ -3336,7 +3505,7 @@ if(errors === _errs7){
 if(data4 && typeof data4 == "object" && !Array.isArray(data4)){
 let missing1;
 if(((data4.inductance_h === undefined) && (missing1 = "inductance_h")) || ((data4.series_ohm === undefined) && (missing1 = "series_ohm"))){
-validate39.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/required",keyword:"required",params:{missingProperty: missing1},message:"must have required property '"+missing1+"'",schema:schema58.properties.part.required,parentSchema:schema58.properties.part,data:data4}];
+validate42.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/required",keyword:"required",params:{missingProperty: missing1},message:"must have required property '"+missing1+"'",schema:schema59.properties.part.required,parentSchema:schema59.properties.part,data:data4}];
 return false;
 }
 else {
@@ -3346,12 +3515,12 @@ const _errs9 = errors;
 if(errors === _errs9){
 if((typeof data5 == "number") && (isFinite(data5))){
 if(data5 <= 0 || isNaN(data5)){
-validate39.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema58.properties.part.properties.inductance_h,data:data5}];
+validate42.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema59.properties.part.properties.inductance_h,data:data5}];
 return false;
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.part.properties.inductance_h.type,parentSchema:schema58.properties.part.properties.inductance_h,data:data5}];
+validate42.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.part.properties.inductance_h.type,parentSchema:schema59.properties.part.properties.inductance_h,data:data5}];
 return false;
 }
 }
@@ -3367,12 +3536,12 @@ const _errs11 = errors;
 if(errors === _errs11){
 if((typeof data6 == "number") && (isFinite(data6))){
 if(data6 <= 0 || isNaN(data6)){
-validate39.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema58.properties.part.properties.series_ohm,data:data6}];
+validate42.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema59.properties.part.properties.series_ohm,data:data6}];
 return false;
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.part.properties.series_ohm.type,parentSchema:schema58.properties.part.properties.series_ohm,data:data6}];
+validate42.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.part.properties.series_ohm.type,parentSchema:schema59.properties.part.properties.series_ohm,data:data6}];
 return false;
 }
 }
@@ -3388,12 +3557,12 @@ const _errs13 = errors;
 if(errors === _errs13){
 if((typeof data7 == "number") && (isFinite(data7))){
 if(data7 <= 0 || isNaN(data7)){
-validate39.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema58.properties.part.properties.parallel_ohm,data:data7}];
+validate42.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema59.properties.part.properties.parallel_ohm,data:data7}];
 return false;
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.part.properties.parallel_ohm.type,parentSchema:schema58.properties.part.properties.parallel_ohm,data:data7}];
+validate42.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.part.properties.parallel_ohm.type,parentSchema:schema59.properties.part.properties.parallel_ohm,data:data7}];
 return false;
 }
 }
@@ -3409,12 +3578,12 @@ const _errs15 = errors;
 if(errors === _errs15){
 if((typeof data8 == "number") && (isFinite(data8))){
 if(data8 < 0 || isNaN(data8)){
-validate39.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema58.properties.part.properties.self_capacitance_f,data:data8}];
+validate42.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema59.properties.part.properties.self_capacitance_f,data:data8}];
 return false;
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.part.properties.self_capacitance_f.type,parentSchema:schema58.properties.part.properties.self_capacitance_f,data:data8}];
+validate42.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.part.properties.self_capacitance_f.type,parentSchema:schema59.properties.part.properties.self_capacitance_f,data:data8}];
 return false;
 }
 }
@@ -3430,12 +3599,12 @@ const _errs17 = errors;
 if(errors === _errs17){
 if((typeof data9 == "number") && (isFinite(data9))){
 if(data9 <= 0 || isNaN(data9)){
-validate39.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema58.properties.part.properties.saturation_current_a,data:data9}];
+validate42.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema59.properties.part.properties.saturation_current_a,data:data9}];
 return false;
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.part.properties.saturation_current_a.type,parentSchema:schema58.properties.part.properties.saturation_current_a,data:data9}];
+validate42.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.part.properties.saturation_current_a.type,parentSchema:schema59.properties.part.properties.saturation_current_a,data:data9}];
 return false;
 }
 }
@@ -3451,18 +3620,18 @@ const _errs19 = errors;
 if(errors === _errs19){
 if((typeof data10 == "number") && (isFinite(data10))){
 if(data10 >= 1 || isNaN(data10)){
-validate39.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMaximum",keyword:"exclusiveMaximum",params:{comparison: "<", limit: 1},message:"must be < 1",schema:1,parentSchema:schema58.properties.part.properties.saturation_floor_ratio,data:data10}];
+validate42.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMaximum",keyword:"exclusiveMaximum",params:{comparison: "<", limit: 1},message:"must be < 1",schema:1,parentSchema:schema59.properties.part.properties.saturation_floor_ratio,data:data10}];
 return false;
 }
 else {
 if(data10 <= 0 || isNaN(data10)){
-validate39.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema58.properties.part.properties.saturation_floor_ratio,data:data10}];
+validate42.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema59.properties.part.properties.saturation_floor_ratio,data:data10}];
 return false;
 }
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.part.properties.saturation_floor_ratio.type,parentSchema:schema58.properties.part.properties.saturation_floor_ratio,data:data10}];
+validate42.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.part.properties.saturation_floor_ratio.type,parentSchema:schema59.properties.part.properties.saturation_floor_ratio,data:data10}];
 return false;
 }
 }
@@ -3479,7 +3648,7 @@ var valid1 = true;
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema58.properties.part.type,parentSchema:schema58.properties.part,data:data4}];
+validate42.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema59.properties.part.type,parentSchema:schema59.properties.part,data:data4}];
 return false;
 }
 }
@@ -3500,12 +3669,12 @@ const _errs23 = errors;
 if(errors === _errs23){
 if((typeof data12 == "number") && (isFinite(data12))){
 if(data12 < 0 || isNaN(data12)){
-validate39.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema58.properties.fixture.properties.capacitance_f,data:data12}];
+validate42.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema59.properties.fixture.properties.capacitance_f,data:data12}];
 return false;
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.fixture.properties.capacitance_f.type,parentSchema:schema58.properties.fixture.properties.capacitance_f,data:data12}];
+validate42.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.fixture.properties.capacitance_f.type,parentSchema:schema59.properties.fixture.properties.capacitance_f,data:data12}];
 return false;
 }
 }
@@ -3521,18 +3690,18 @@ const _errs25 = errors;
 if(errors === _errs25){
 if((typeof data13 == "number") && (isFinite(data13))){
 if(data13 > 0.000001 || isNaN(data13)){
-validate39.errors = [{instancePath:instancePath+"/fixture/lead_inductance_h",schemaPath:"#/properties/fixture/properties/lead_inductance_h/maximum",keyword:"maximum",params:{comparison: "<=", limit: 0.000001},message:"must be <= 0.000001",schema:0.000001,parentSchema:schema58.properties.fixture.properties.lead_inductance_h,data:data13}];
+validate42.errors = [{instancePath:instancePath+"/fixture/lead_inductance_h",schemaPath:"#/properties/fixture/properties/lead_inductance_h/maximum",keyword:"maximum",params:{comparison: "<=", limit: 0.000001},message:"must be <= 0.000001",schema:0.000001,parentSchema:schema59.properties.fixture.properties.lead_inductance_h,data:data13}];
 return false;
 }
 else {
 if(data13 < 0 || isNaN(data13)){
-validate39.errors = [{instancePath:instancePath+"/fixture/lead_inductance_h",schemaPath:"#/properties/fixture/properties/lead_inductance_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema58.properties.fixture.properties.lead_inductance_h,data:data13}];
+validate42.errors = [{instancePath:instancePath+"/fixture/lead_inductance_h",schemaPath:"#/properties/fixture/properties/lead_inductance_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema59.properties.fixture.properties.lead_inductance_h,data:data13}];
 return false;
 }
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/fixture/lead_inductance_h",schemaPath:"#/properties/fixture/properties/lead_inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.fixture.properties.lead_inductance_h.type,parentSchema:schema58.properties.fixture.properties.lead_inductance_h,data:data13}];
+validate42.errors = [{instancePath:instancePath+"/fixture/lead_inductance_h",schemaPath:"#/properties/fixture/properties/lead_inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.fixture.properties.lead_inductance_h.type,parentSchema:schema59.properties.fixture.properties.lead_inductance_h,data:data13}];
 return false;
 }
 }
@@ -3548,12 +3717,12 @@ const _errs27 = errors;
 if(errors === _errs27){
 if((typeof data14 == "number") && (isFinite(data14))){
 if(data14 <= 0 || isNaN(data14)){
-validate39.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema58.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data14}];
+validate42.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema59.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data14}];
 return false;
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.fixture.properties.tank_voltage_coefficient_per_v2.type,parentSchema:schema58.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data14}];
+validate42.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.fixture.properties.tank_voltage_coefficient_per_v2.type,parentSchema:schema59.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data14}];
 return false;
 }
 }
@@ -3570,14 +3739,14 @@ if(errors === _errs29){
 if(data15 && typeof data15 == "object" && !Array.isArray(data15)){
 let missing2;
 if((data15.events_per_s === undefined) && (missing2 = "events_per_s")){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema58.properties.fixture.properties.chatter.required,parentSchema:schema58.properties.fixture.properties.chatter,data:data15}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema59.properties.fixture.properties.chatter.required,parentSchema:schema59.properties.fixture.properties.chatter,data:data15}];
 return false;
 }
 else {
 const _errs31 = errors;
 for(const key0 in data15){
 if(!(((((key0 === "events_per_s") || (key0 === "open_share")) || (key0 === "open_s")) || (key0 === "burst_ohm")) || (key0 === "burst_s"))){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/additionalProperties",keyword:"additionalProperties",params:{additionalProperty: key0},message:"must NOT have additional properties",schema:false,parentSchema:schema58.properties.fixture.properties.chatter,data:data15}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/additionalProperties",keyword:"additionalProperties",params:{additionalProperty: key0},message:"must NOT have additional properties",schema:false,parentSchema:schema59.properties.fixture.properties.chatter,data:data15}];
 return false;
 break;
 }
@@ -3589,18 +3758,18 @@ const _errs32 = errors;
 if(errors === _errs32){
 if((typeof data16 == "number") && (isFinite(data16))){
 if(data16 > 100000 || isNaN(data16)){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/maximum",keyword:"maximum",params:{comparison: "<=", limit: 100000},message:"must be <= 100000",schema:100000,parentSchema:schema58.properties.fixture.properties.chatter.properties.events_per_s,data:data16}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/maximum",keyword:"maximum",params:{comparison: "<=", limit: 100000},message:"must be <= 100000",schema:100000,parentSchema:schema59.properties.fixture.properties.chatter.properties.events_per_s,data:data16}];
 return false;
 }
 else {
 if(data16 < 0 || isNaN(data16)){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema58.properties.fixture.properties.chatter.properties.events_per_s,data:data16}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema59.properties.fixture.properties.chatter.properties.events_per_s,data:data16}];
 return false;
 }
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.fixture.properties.chatter.properties.events_per_s.type,parentSchema:schema58.properties.fixture.properties.chatter.properties.events_per_s,data:data16}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.fixture.properties.chatter.properties.events_per_s.type,parentSchema:schema59.properties.fixture.properties.chatter.properties.events_per_s,data:data16}];
 return false;
 }
 }
@@ -3616,18 +3785,18 @@ const _errs34 = errors;
 if(errors === _errs34){
 if((typeof data17 == "number") && (isFinite(data17))){
 if(data17 > 1 || isNaN(data17)){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_share,data:data17}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_share,data:data17}];
 return false;
 }
 else {
 if(data17 < 0 || isNaN(data17)){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_share,data:data17}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_share,data:data17}];
 return false;
 }
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.fixture.properties.chatter.properties.open_share.type,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_share,data:data17}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.fixture.properties.chatter.properties.open_share.type,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_share,data:data17}];
 return false;
 }
 }
@@ -3643,12 +3812,12 @@ const _errs36 = errors;
 if(errors === _errs36){
 if(Array.isArray(data18)){
 if(data18.length > 2){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_s,data:data18}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_s,data:data18}];
 return false;
 }
 else {
 if(data18.length < 2){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_s,data:data18}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_s,data:data18}];
 return false;
 }
 else {
@@ -3660,18 +3829,18 @@ const _errs38 = errors;
 if(errors === _errs38){
 if((typeof data19 == "number") && (isFinite(data19))){
 if(data19 > 1 || isNaN(data19)){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_s.items,data:data19}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_s.items,data:data19}];
 return false;
 }
 else {
 if(data19 <= 0 || isNaN(data19)){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_s.items,data:data19}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_s.items,data:data19}];
 return false;
 }
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.fixture.properties.chatter.properties.open_s.items.type,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_s.items,data:data19}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.fixture.properties.chatter.properties.open_s.items.type,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_s.items,data:data19}];
 return false;
 }
 }
@@ -3684,7 +3853,7 @@ break;
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema58.properties.fixture.properties.chatter.properties.open_s.type,parentSchema:schema58.properties.fixture.properties.chatter.properties.open_s,data:data18}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema59.properties.fixture.properties.chatter.properties.open_s.type,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_s,data:data18}];
 return false;
 }
 }
@@ -3700,12 +3869,12 @@ const _errs40 = errors;
 if(errors === _errs40){
 if(Array.isArray(data20)){
 if(data20.length > 2){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_ohm,data:data20}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_ohm,data:data20}];
 return false;
 }
 else {
 if(data20.length < 2){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_ohm,data:data20}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_ohm,data:data20}];
 return false;
 }
 else {
@@ -3717,18 +3886,18 @@ const _errs42 = errors;
 if(errors === _errs42){
 if((typeof data21 == "number") && (isFinite(data21))){
 if(data21 > 1000000 || isNaN(data21)){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1000000},message:"must be <= 1000000",schema:1000000,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data21}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1000000},message:"must be <= 1000000",schema:1000000,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data21}];
 return false;
 }
 else {
 if(data21 < 0 || isNaN(data21)){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data21}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data21}];
 return false;
 }
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.fixture.properties.chatter.properties.burst_ohm.items.type,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data21}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.fixture.properties.chatter.properties.burst_ohm.items.type,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data21}];
 return false;
 }
 }
@@ -3741,7 +3910,7 @@ break;
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema58.properties.fixture.properties.chatter.properties.burst_ohm.type,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_ohm,data:data20}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema59.properties.fixture.properties.chatter.properties.burst_ohm.type,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_ohm,data:data20}];
 return false;
 }
 }
@@ -3757,12 +3926,12 @@ const _errs44 = errors;
 if(errors === _errs44){
 if(Array.isArray(data22)){
 if(data22.length > 2){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_s,data:data22}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_s,data:data22}];
 return false;
 }
 else {
 if(data22.length < 2){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_s,data:data22}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_s,data:data22}];
 return false;
 }
 else {
@@ -3774,18 +3943,18 @@ const _errs46 = errors;
 if(errors === _errs46){
 if((typeof data23 == "number") && (isFinite(data23))){
 if(data23 > 1 || isNaN(data23)){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_s.items,data:data23}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_s.items,data:data23}];
 return false;
 }
 else {
 if(data23 <= 0 || isNaN(data23)){
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_s.items,data:data23}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_s.items,data:data23}];
 return false;
 }
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.fixture.properties.chatter.properties.burst_s.items.type,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_s.items,data:data23}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.fixture.properties.chatter.properties.burst_s.items.type,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_s.items,data:data23}];
 return false;
 }
 }
@@ -3798,7 +3967,7 @@ break;
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema58.properties.fixture.properties.chatter.properties.burst_s.type,parentSchema:schema58.properties.fixture.properties.chatter.properties.burst_s,data:data22}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema59.properties.fixture.properties.chatter.properties.burst_s.type,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_s,data:data22}];
 return false;
 }
 }
@@ -3815,7 +3984,7 @@ var valid3 = true;
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema58.properties.fixture.properties.chatter.type,parentSchema:schema58.properties.fixture.properties.chatter,data:data15}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema59.properties.fixture.properties.chatter.type,parentSchema:schema59.properties.fixture.properties.chatter,data:data15}];
 return false;
 }
 }
@@ -3829,7 +3998,7 @@ var valid2 = true;
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/fixture",schemaPath:"#/properties/fixture/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema58.properties.fixture.type,parentSchema:schema58.properties.fixture,data:data11}];
+validate42.errors = [{instancePath:instancePath+"/fixture",schemaPath:"#/properties/fixture/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema59.properties.fixture.type,parentSchema:schema59.properties.fixture,data:data11}];
 return false;
 }
 }
@@ -3848,7 +4017,7 @@ for(const key1 in data24){
 let data25 = data24[key1];
 const _errs51 = errors;
 if(!((typeof data25 == "number") && (isFinite(data25)))){
-validate39.errors = [{instancePath:instancePath+"/geometry/" + key1.replace(/~/g, "~0").replace(/\//g, "~1"),schemaPath:"#/properties/geometry/additionalProperties/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.geometry.additionalProperties.type,parentSchema:schema58.properties.geometry.additionalProperties,data:data25}];
+validate42.errors = [{instancePath:instancePath+"/geometry/" + key1.replace(/~/g, "~0").replace(/\//g, "~1"),schemaPath:"#/properties/geometry/additionalProperties/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.geometry.additionalProperties.type,parentSchema:schema59.properties.geometry.additionalProperties,data:data25}];
 return false;
 }
 var valid7 = _errs51 === errors;
@@ -3858,7 +4027,7 @@ break;
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/geometry",schemaPath:"#/properties/geometry/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema58.properties.geometry.type,parentSchema:schema58.properties.geometry,data:data24}];
+validate42.errors = [{instancePath:instancePath+"/geometry",schemaPath:"#/properties/geometry/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema59.properties.geometry.type,parentSchema:schema59.properties.geometry,data:data24}];
 return false;
 }
 }
@@ -3872,7 +4041,7 @@ if(data.seed !== undefined){
 let data26 = data.seed;
 const _errs53 = errors;
 if(!(((typeof data26 == "number") && (!(data26 % 1) && !isNaN(data26))) && (isFinite(data26)))){
-validate39.errors = [{instancePath:instancePath+"/seed",schemaPath:"#/properties/seed/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema58.properties.seed.type,parentSchema:schema58.properties.seed,data:data26}];
+validate42.errors = [{instancePath:instancePath+"/seed",schemaPath:"#/properties/seed/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema59.properties.seed.type,parentSchema:schema59.properties.seed,data:data26}];
 return false;
 }
 var valid0 = _errs53 === errors;
@@ -3890,12 +4059,12 @@ var valid0 = true;
 }
 }
 else {
-validate39.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema58.type,parentSchema:schema58,data}];
+validate42.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema59.type,parentSchema:schema59,data}];
 return false;
 }
 }
-validate39.errors = vErrors;
+validate42.errors = vErrors;
 return errors === 0;
 }
-validate39.evaluated = {"props":{"format":true,"version":true,"name":true,"story":true,"part":true,"fixture":true,"geometry":true,"seed":true},"dynamicProps":false,"dynamicItems":false};
+validate42.evaluated = {"props":{"format":true,"version":true,"name":true,"story":true,"part":true,"fixture":true,"geometry":true,"seed":true},"dynamicProps":false,"dynamicItems":false};
 

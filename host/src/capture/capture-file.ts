@@ -42,6 +42,8 @@ export interface CaptureV1 {
     source: string; tank_calibrated: boolean; nominal_tank_c_f: number; nominal_tick_hz: number; timebase_ppm: number; timebase_u_ppm?: number;
     /** The leads' series inductance subtracted from the ring's (calibrate short), and its standard uncertainty. */
     lead_inductance_h?: number; lead_u_h?: number;
+    /** The fixture's capacitance added to tank_c_f (calibrate open) and its standard uncertainty. */
+    fixture_capacitance_f?: number; fixture_u_f?: number;
     /** The comparator's calibrated rise/fall delay skew and its standard uncertainty, seconds. */
     comparator_skew_s?: number; comparator_skew_u_s?: number;
   };

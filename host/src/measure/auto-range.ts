@@ -151,7 +151,7 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
 
   function withChoice(r: Reading): Reading {
     if (asked === undefined) return r;
-    return { ...r, test_frequency: describeFrequencyChoice(profile, lastAdvice, asked, r.settings.tank, r.analysis.f0_hz, failedTanks) };
+    return { ...r, test_frequency: describeFrequencyChoice(profile, lastAdvice, asked, r.settings.tank, r.analysis.f0_hz, { failed: failedTanks }) };
   }
 }
 

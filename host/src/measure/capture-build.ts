@@ -20,11 +20,14 @@ export function captureFromDevice(
   const calTank = calibration?.tanks?.[s.tank];
   const ppm = calibration?.timebase_ppm ?? 0;
   const tbU = calTank?.timebase_u_ppm ?? calibration?.timebase_u_ppm;
+  // The fixture's capacitance (open nulling) is added where the tank's value does not hold it:
+  // an uncalibrated tank, or one calibrated on the board's terminals. Its u is the budget's own line.
+  const fixture = calibration?.fixture && !(calTank && calTank.fixture_included !== false) ? calibration.fixture : undefined;
   return {
     format: "henrytick-capture",
     version: 1,
     tick_hz: raw.tick_hz * (1 + ppm * 1e-6),
-    tank_c_f: calTank ? calTank.c_f : nominal,
+    tank_c_f: (calTank ? calTank.c_f : nominal) + (fixture?.c_f ?? 0),
     tank_c_u_f: calTank ? calTank.u_f : nominalTankU(nominal),
     thresholds_v: calibration?.thresholds_v ? [calibration.thresholds_v[0], calibration.thresholds_v[1]] : [profile.thresholds_v[0], profile.thresholds_v[1]],
     calibration: calibration
@@ -32,6 +35,7 @@ export function captureFromDevice(
         source: calibration.source, tank_calibrated: calTank !== undefined, nominal_tank_c_f: nominal, nominal_tick_hz: raw.tick_hz, timebase_ppm: ppm,
         ...(tbU !== undefined ? { timebase_u_ppm: tbU } : {}),
         ...(calibration.leads ? { lead_inductance_h: calibration.leads.l_h, lead_u_h: calibration.leads.u_h } : {}),
+        ...(fixture ? { fixture_capacitance_f: fixture.c_f, fixture_u_f: fixture.u_f } : {}),
         ...(calibration.comparator_skew ? { comparator_skew_s: calibration.comparator_skew.skew_s, comparator_skew_u_s: calibration.comparator_skew.u_s } : {}),
       }
       : { source: "nominal (uncalibrated)", tank_calibrated: false, nominal_tank_c_f: nominal, nominal_tick_hz: raw.tick_hz, timebase_ppm: 0 },

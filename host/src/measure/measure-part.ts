@@ -170,7 +170,7 @@ export function fixedReading(client: DeviceClient, raw: RawCapture, opts: Measur
     if (asked === undefined) return reading;
     const profile = client.profile;
     const advice = orderForFrequency(adviseSettings(profile, est, limits, opts.calibration?.tanks), asked);
-    return { ...reading, test_frequency: describeFrequencyChoice(profile, advice, asked, settings.tank, reading.analysis.f0_hz, undefined, "the drive and tank were fixed for this reading") };
+    return { ...reading, test_frequency: describeFrequencyChoice(profile, advice, asked, settings.tank, reading.analysis.f0_hz, { untried: "the drive and tank were fixed for this reading" }) };
   } catch (e) {
     if (!(e instanceof MeasureError)) throw e;
     const why = explainFailure(e);

@@ -139,9 +139,32 @@ function everyOther(xs: Float64Array, from: number): Float64Array {
   return out;
 }
 
-/** The upper median (the element at n/2 of the sorted values). */
+/** The upper median: the element at n/2 of the sorted values, found by selection (Hoare's FIND) on a copy. */
 function medianOf(xs: Float64Array): number {
-  return xs.slice().sort()[xs.length >> 1];
+  const a = xs.slice();
+  const k = a.length >> 1;
+  let lo = 0;
+  let hi = a.length - 1;
+  while (lo < hi) {
+    const pivot = a[(lo + hi) >> 1];
+    let i = lo;
+    let j = hi;
+    while (i <= j) {
+      while (a[i] < pivot) i++;
+      while (a[j] > pivot) j--;
+      if (i <= j) {
+        const t = a[i];
+        a[i] = a[j];
+        a[j] = t;
+        i++;
+        j--;
+      }
+    }
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else break;
+  }
+  return a[k];
 }
 
 /** Signs of chatter in a capture: glitch pairs plus breaks. */

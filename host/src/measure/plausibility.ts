@@ -88,8 +88,10 @@ export function checkCapturePlausible(c: CaptureV1): void {
   }
   if (cal && Number.isFinite(cal.nominal_tank_c_f) && cal.nominal_tank_c_f > 0) {
     const r = c.tank_c_f / cal.nominal_tank_c_f;
-    if (cal.tank_calibrated === false && Math.abs(r - 1) > 1e-9) {
-      refuse("TANK_IMPLAUSIBLE", `tank_c_f ${formatSi(c.tank_c_f, "F", 4)} differs from the nominal ${formatSi(cal.nominal_tank_c_f, "F", 4)} although the capture says the tank is not calibrated`);
+    // An uncalibrated tank is its nominal value, plus the nulled fixture's capacitance when one was added.
+    const uncalibrated = cal.nominal_tank_c_f + (cal.fixture_capacitance_f ?? 0);
+    if (cal.tank_calibrated === false && Math.abs(c.tank_c_f / uncalibrated - 1) > 1e-9) {
+      refuse("TANK_IMPLAUSIBLE", `tank_c_f ${formatSi(c.tank_c_f, "F", 4)} differs from the nominal ${formatSi(cal.nominal_tank_c_f, "F", 4)}${cal.fixture_capacitance_f !== undefined ? ` plus the fixture's ${formatSi(cal.fixture_capacitance_f, "F", 4)}` : ""} although the capture says the tank is not calibrated`);
     }
     if (r < 0.5 || r > 2) {
       refuse("TANK_IMPLAUSIBLE", `tank_c_f ${formatSi(c.tank_c_f, "F", 4)} is not within a factor 2 of the nominal ${formatSi(cal.nominal_tank_c_f, "F", 4)}: a mix-up, not a tolerance`);

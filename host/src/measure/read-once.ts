@@ -8,7 +8,7 @@ import type { DeviceClient, MeasureSettings } from "../device/client.ts";
 import type { RawCapture } from "../device/stream-reader.ts";
 import { formatSi } from "../format/si.ts";
 import { captureFromDevice, ringInputFromCapture } from "./capture-build.ts";
-import { withLeadNulling } from "../calibration/nulling-reading.ts";
+import { withFixtureCapacitance, withLeadNulling } from "../calibration/nulling-reading.ts";
 import { withUnaccountedCapacitance } from "./reading-uncertainty.ts";
 import type { MeasureOptions, Reading } from "./measure-part.ts";
 import { CodedError } from "../coded-error.ts";
@@ -51,7 +51,7 @@ export function fitCapture(capture: CaptureV1): { fit: FitState; analysis: RingA
   try {
     checkCapturePlausible(capture);
     const fit = fitRing(ringInputFromCapture(capture));
-    const analysis = withLeadNulling(withUnaccountedCapacitance(analyzeFit(fit), capture), capture);
+    const analysis = withLeadNulling(withFixtureCapacitance(withUnaccountedCapacitance(analyzeFit(fit), capture), capture), capture);
     checkReadingPlausible(capture, analysis);
     // Warnings the reading added when it was taken (automatic ranging's) come back with it.
     if (capture.reading_warnings?.length) analysis.warnings = [...analysis.warnings, ...capture.reading_warnings];
