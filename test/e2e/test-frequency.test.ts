@@ -72,6 +72,16 @@ describe("measurePart with test_frequency_hz", () => {
     expect(choice.note).toMatch(/the 1\.00 nF tank would ring nearer .* but refused: the ring is too fast for the timer/);
   });
 
+  it("names a nearer tank refused for the voltage limit (an 82 mH valve coil asked 10 kHz under a 1 V limit)", async () => {
+    const r = await read("solenoid-valve-82m", { test_frequency_hz: 10e3, max_peak_v: 1 });
+    const choice = r.test_frequency!;
+    expect(choice.nearest).toBe(false);
+    // 82 mH rings at about 17.6 kHz on 1 nF and 5.6 kHz on 10 nF (LC resonance): both nearer 10 kHz than 1.76 kHz on 100 nF.
+    expect(choice.nearer_tanks.map((n) => n.tank_index)).toEqual([0, 1]);
+    expect(choice.nearer_tanks[0].why).toMatch(/^refused: its ring could reach .* V, above the 1 V limit/);
+    expect(r.analysis.amplitude_v).toBeLessThanOrEqual(1);
+  });
+
   it("says the asked frequency is beyond what the part reaches on this tester", async () => {
     const r = await read("drawer-choke-330u", { test_frequency_hz: 1e6 });
     expect(r.settings.tank).toBe(0);
@@ -261,5 +271,26 @@ describe("--freq on wind and advise, and in every help page", () => {
     expect(r.status).toBe(0);
     expect(r.stdout).toMatch(/^ {2}--freq F {2,}working frequency/m);
     expect(r.stdout).toMatch(new RegExp(`^ {2}henrytick ${cmd} --sim .*--freq \\d+k$`, "m"));
+  });
+});
+
+describe("the drawer choke's Q no longer depends on whether the tester is calibrated", () => {
+  it("with --freq 30k it rings on the 100 nF tank calibrated and uncalibrated (ranging alone moved to 1 µF once calibrated)", () => {
+    const dir = mkdtempSync(join(tmp, "cal-"));
+    const cal = runCli(["calibrate", "reference", "--sim", "--ref-h", "330u", "--ref-u-h", "0.1u", "--repeats", "1", "--config-dir", dir]);
+    expect(cal.status, cal.stderr).toBe(0);
+    const read = (...extra: string[]) => {
+      const r = runCli(["measure", "--sim", "drawer-choke-330u", "--config-dir", dir, "--json", ...extra]);
+      expect(r.status, r.stderr).toBe(0);
+      return JSON.parse(r.stdout);
+    };
+    const plain = [read("--uncalibrated"), read()];
+    const asked = [read("--uncalibrated", "--freq", "30k"), read("--freq", "30k")];
+    // The finding: left to itself, ranging picks another tank once calibrated, and Q moves with it.
+    expect(plain.map((r) => r.settings.range.tank_index)).toEqual([2, 3]);
+    expect(asked.map((r) => r.settings.range.tank_index)).toEqual([2, 2]);
+    expect(asked[1].settings.calibration.tank_calibrated).toBe(true);
+    // One frequency, one Q: the two agree within their expanded uncertainties.
+    expect(Math.abs(asked[0].q - asked[1].q)).toBeLessThan(Math.hypot(asked[0].q_u, asked[1].q_u));
   });
 });

@@ -147,7 +147,7 @@ function smallBlock(r: ResultJson | null, problem: string, st: StabilityResult, 
   if (!r) return [head, `   ${problem}`, `   trend        ${trend(h)}`];
   return [
     head,
-    `   inductance   ${style.bold(formatMeasured(r.inductance_h, r.inductance_u_h, "H"))}   Q ${r.q.toPrecision(3)}   ESR ${formatSi(r.esr_ohm, "Ω", 3)}`,
+    `   inductance   ${style.bold(formatMeasured(r.inductance_h, r.inductance_u_h, "H"))}   Q ${r.q.toPrecision(3)}   ESR ${formatSi(r.esr_ohm, "Ω", 3)}   at ${formatSi(r.f0_hz, "Hz", 3)}`,
     `   trend        ${trend(h)}   ${rangeText(h)}`,
   ];
 }
@@ -162,7 +162,8 @@ function bigBlock(r: ResultJson | null, problem: string, st: StabilityResult, h:
 
 function oneLine(r: ResultJson | null, problem: string, st: StabilityResult, h: History, n: number): string {
   if (!r) return `#${n}  ${problem}`;
-  return `#${n}  ${formatMeasured(r.inductance_h, r.inductance_u_h, "H")}  Q ${r.q.toPrecision(3)}  ${st.state}  ${trend(h)}`;
+  // Q and ESR belong to the frequency they were read at.
+  return `#${n}  ${formatMeasured(r.inductance_h, r.inductance_u_h, "H")}  Q ${r.q.toPrecision(3)} at ${formatSi(r.f0_hz, "Hz", 3)}  ${st.state}  ${trend(h)}`;
 }
 
 function rangeText(h: History): string {
