@@ -76,7 +76,7 @@ export function singleTankBudget(
   }
   lines.push({
     group: "self-capacitance", rel_u: Math.hypot(from("self-capacitance"), stray),
-    note: `part's self-capacitance not removed (use --self-cap for the corrected value)${strayNote}`,
+    note: `part's self-capacitance not removed (a two-tank reading gives the corrected value)${strayNote}`,
   });
   return combineBudget("apparent", a.inductance_h, lines);
 }
