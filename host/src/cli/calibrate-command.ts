@@ -8,7 +8,7 @@ import {
   emptyProfile, loadProfile, profilePaths, restorePreviousProfile, saveProfile, testerTickCounter, hostClock, measureTimebase, MAX_READ_SPACING_S,
 } from "../calibration/index.ts";
 import { storeFor, type StoreOptions } from "../calibration/index.ts";
-import { formatSi } from "../format/si.ts";
+import { formatWithUncertainty } from "../format/si.ts";
 import type { OpenedTester } from "../open-tester.ts";
 import { openTester } from "../open-tester.ts";
 import { intOption, parse, requiredValue, testerTarget } from "./args.ts";
@@ -23,7 +23,7 @@ import { describeChanges } from "../calibration/calibration-change.ts";
 import type { TankEntry } from "../calibration/profile-schema.ts";
 import { SHORTED_CLIPS } from "../sim/scenario.ts";
 import {
-  PROFILE_TERM_NAMES, ReferenceMismatchError, chooseTimebase, enteredTimebase, measuredTimebase, ppmText, profileTerms, referenceThroughLeads, tankChanges,
+  PROFILE_TERM_NAMES, ReferenceMismatchError, checkParallelCapacitor, chooseTimebase, enteredTimebase, measuredTimebase, ppmText, profileTerms, referenceThroughLeads, tankChanges,
   withEntry, withTankEntries, withTimebase,
 } from "../calibration/index.ts";
 import type { TimebaseEntry } from "../calibration/index.ts";
@@ -218,6 +218,7 @@ async function parallel(t: OpenedTester, store: StoreOptions, v: Values, caution
     u_part_self_capacitance_f: quantity(v["part-u-cs-f"] as string | undefined, "part-u-cs-f", "F", { optional: true }),
   };
   const repeats = intOption(v.repeats, "repeats", 1, 50);
+  checkParallelCapacitor(tank, t.client.profile.tanks[tank].nominal_f, cap);
   const onBeforePulse = caution();
   const profile = currentProfile(t, store);
   const sim = t.sim;
@@ -225,9 +226,9 @@ async function parallel(t: OpenedTester, store: StoreOptions, v: Values, caution
     ? async () => {
       // The simulated bench: the capacitor across the clips adds to what is in parallel with the part.
       if (sim.part) sim.part = { ...sim.part, self_capacitance_f: sim.part.self_capacitance_f + cap.capacitance_f };
-      progress(`(simulated) ${formatSi(cap.capacitance_f, "F", 3)} clipped across the part`);
+      progress(`(simulated) ${formatValue(cap.capacitance_f, "F", 3)} clipped across the part`);
     }
-    : () => waitForEnter(`clip the ${formatSi(cap.capacitance_f, "F", 3)} capacitor across the part, then press Enter`);
+    : () => waitForEnter(`clip the ${formatValue(cap.capacitance_f, "F", 3)} capacitor across the part, then press Enter`);
   const { entry, result } = await calibrateWithParallelCapacitor(t.client, tank, cap, connect, {
     repeats, calibration: appliedCalibration(profile, "calibration in progress"),
     timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress, onBeforePulse,
@@ -246,7 +247,7 @@ async function thresholds(t: OpenedTester, store: StoreOptions, v: Values, cauti
   const { entry, fit } = await calibrateThresholds(t.client, {
     captures, calibration: appliedCalibration(profile, "calibration in progress"), onProgress: progress,
   });
-  say(`   thresholds ${formatValue(fit.thresholds_v[0], "V", 4)} / ${formatValue(fit.thresholds_v[1], "V", 4)}: ratio ${formatMeasured(fit.ratio, 2 * fit.u_ratio, "")}, ` +
+  say(`   thresholds ${formatValue(fit.thresholds_v[0], "V", 4)} / ${formatValue(fit.thresholds_v[1], "V", 4)}: ratio ${plainMeasured(fit.ratio, 2 * fit.u_ratio)}, ` +
     `comparator offset ${formatMeasured(fit.offset_v, 2 * fit.u_offset_v, "V")} (k = 2)\n`);
   commit(withEntry(profile, "thresholds", entry), store, entry);
   return 0;
@@ -381,6 +382,12 @@ async function confirmChange(entries: TankEntry[], profile: CalibrationProfile, 
     "CALIBRATION_SHIFT",
     `not stored: this calibration moves ${what}, more than chance and the tanks' tolerance explain. The profile is unchanged; ${check}, then calibrate again. If the change is real (a tank or the fixture was changed), run the same command with --accept-shift`,
   );
+}
+
+/** A dimensionless value ± its expanded uncertainty, the digits following the uncertainty. */
+function plainMeasured(v: number, u_expanded: number): string {
+  const f = formatWithUncertainty(v, u_expanded, "");
+  return `${f.value} ± ${f.u}`;
 }
 
 function signedPercent(rel: number): string {
