@@ -26,11 +26,11 @@ describe("board files", () => {
   });
 
   it("refuses a board the firmware could not carry, naming the field", () => {
-    const good = loadBoard(DEFAULT_BOARD);
+    const good = loadBoard("reference");
     const edit = (f: (b: BoardData) => void) => {
       const b = structuredClone(good);
       f(b);
-      return boardProblems(b, DEFAULT_BOARD);
+      return boardProblems(b, "reference");
     };
     expect(edit(() => {})).toEqual([]);
     expect(edit((b) => (b.tanks[0].nominal_f = 1.0005e-9))).toEqual([expect.stringMatching(/^\/tanks\/0\/nominal_f .*whole number/)]);
@@ -40,6 +40,7 @@ describe("board files", () => {
     expect(edit((b) => delete (b as Partial<BoardData>).drives)).toEqual([expect.stringMatching(/drives/)]);
     expect(edit((b) => (b.drives[1].ohm = "100" as unknown as number))).toEqual([expect.stringMatching(/^\/drives\/1\/ohm /)]);
     expect(edit((b) => (b.name = "other"))).toEqual([expect.stringMatching(/^\/name /)]);
+    expect(edit((b) => (b as unknown as { simulated_unit: { tank_f: number[] } }).simulated_unit.tank_f.pop())).toEqual([expect.stringMatching(/^\/simulated_unit\/tank_f has 3 values for 4 tanks/)]);
     expect(() => loadBoard("no-such-board")).toThrow(/the boards are .*reference/);
   });
 });

@@ -52,6 +52,9 @@ export function boardProblems(value: unknown, fileName?: string): string[] {
   const problems: string[] = [];
   if (fileName !== undefined && b.name !== fileName) problems.push(`/name "${b.name}" differs from the file name "${fileName}"`);
   if (!(b.thresholds_v[0] > b.thresholds_v[1])) problems.push("/thresholds_v the rising threshold must lie above the falling one");
+  const unit = (value as { simulated_unit?: { drive_ohm: number[]; tank_f: number[] } }).simulated_unit;
+  if (unit && unit.drive_ohm.length !== b.drives.length) problems.push(`/simulated_unit/drive_ohm has ${unit.drive_ohm.length} values for ${b.drives.length} drives`);
+  if (unit && unit.tank_f.length !== b.tanks.length) problems.push(`/simulated_unit/tank_f has ${unit.tank_f.length} values for ${b.tanks.length} tanks`);
   // Every value must be exact in the firmware's integer unit, so the profile reads back unchanged.
   const exact = (path: string, v: number, unit: keyof typeof UNITS) => {
     try {
