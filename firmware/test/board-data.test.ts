@@ -2,11 +2,16 @@
 // firmware/assembly/board.ts is the one generated from the reference board's file, and an image
 // built from any board's file reports exactly that file's values in its profile (PF).
 
-import { readFileSync } from "node:fs";
+import { spawnSync } from "node:child_process";
+import { mkdtempSync, readFileSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { fileURLToPath } from "node:url";
 import { beforeAll, describe, expect, it } from "vitest";
 import { parseProfile } from "../../host/src/device/profile.ts";
 import { BOARD_TS, DEFAULT_BOARD, type BoardData, boardNames, boardProblems, boardSource, loadBoard } from "../tools/board-source.ts";
 import { compileBoardFirmware } from "../tools/build-board.ts";
+import { hasHostGcc } from "../ports/native-build.ts";
 import { SimLink, show } from "./sim-link.ts";
 
 const names = boardNames();
@@ -72,5 +77,23 @@ describe.each(names)("the firmware built for board %s", (name) => {
     expect(p.settle_us).toBe(board.settle_us);
     expect(p.max_charge_us).toBe(board.max_charge_us);
     expect(p.self_test_us).toBe(board.self_test_us);
+  });
+});
+
+describe("the C ports and the board's tick rate", () => {
+  const note = hasHostGcc ? "" : " (skipped: Debian package gcc not installed)";
+  /** Compiles the STM32F411CE clock tree against a henrytick-board.h stating `tickHz`. */
+  const clockTree = (tickHz: number) => {
+    const dir = mkdtempSync(join(tmpdir(), "ht-board-h-"));
+    writeFileSync(join(dir, "henrytick-board.h"), `#define HT_BOARD_TICK_HZ ${tickHz}u\n`);
+    const f411 = fileURLToPath(new URL("../ports/f411/", import.meta.url));
+    return spawnSync("gcc", ["-std=c11", "-fsyntax-only", "-I", dir, "-I", f411, "-x", "c", "-"], { input: '#include "clock.h"\n', encoding: "utf8" });
+  };
+
+  it.skipIf(!hasHostGcc)(`the F411 clock tree builds for the reference board's tick and refuses another board's${note}`, () => {
+    expect(clockTree(loadBoard("reference").tick_hz).status).toBe(0);
+    const other = clockTree(loadBoard("e6-compact").tick_hz);
+    expect(other.status).not.toBe(0);
+    expect(other.stderr).toMatch(/TIM2 at the board's tick rate/);
   });
 });
