@@ -45,7 +45,7 @@ describe("board files", () => {
     expect(edit((b) => delete (b as Partial<BoardData>).drives)).toEqual([expect.stringMatching(/drives/)]);
     expect(edit((b) => (b.drives[1].ohm = "100" as unknown as number))).toEqual([expect.stringMatching(/^\/drives\/1\/ohm /)]);
     expect(edit((b) => (b.name = "other"))).toEqual([expect.stringMatching(/^\/name /)]);
-    expect(edit((b) => (b as unknown as { simulated_unit: { tank_f: number[] } }).simulated_unit.tank_f.pop())).toEqual([expect.stringMatching(/^\/simulated_unit\/tank_f has 3 values for 4 tanks/)]);
+    expect(edit((b) => b.simulated_unit!.tank_f.pop())).toEqual([expect.stringMatching(/^\/simulated_unit\/tank_f has 3 values for 4 tanks/)]);
     expect(() => loadBoard("no-such-board")).toThrow(/the boards are .*reference/);
   });
 });
