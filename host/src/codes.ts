@@ -20,6 +20,7 @@ export const WARNING_MEANINGS = {
   POOR_FIT: "the residuals are correlated: the ring is not a clean damped sine; the uncertainty is widened",
   FREQUENCY_DRIFT: "the ring frequency changes from start to end (voltage-dependent tank or a core near saturation)",
   COMPARATOR_SKEW: "rising and falling edges sit apart by a constant time: the comparator's rise and fall delays differ from what the reading assumed",
+  THRESHOLD_IN_NOISE: "edges after a point fired on the comparator's noise (chatter at the crossings, or noise crossing both thresholds after the ring died); only the ring before them was used",
   Q_UNCERTAIN: "Q is determined only loosely",
   AMBIGUOUS_DECAY: "the edges fit two different decays almost equally well; the uncertainties cover both",
   FEW_EDGES_BEST_SETTING: "automatic ranging found no setting with enough edges and kept the best one",
@@ -46,6 +47,7 @@ export const READING_BUDGET_LINES = {
   "self-capacitance": "the part's own capacitance, unknown on one tank",
   "stray capacitance": "capacitance the tank's value does not include (fixture, strays) when uncalibrated",
   leads: "the test leads' series inductance, subtracted when nulled (calibrate short)",
+  fixture: "the fixture's capacitance, added to a tank whose value does not hold it (calibrate open)",
 } as const;
 export type ReadingBudgetLine = keyof typeof READING_BUDGET_LINES;
 

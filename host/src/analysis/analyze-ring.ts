@@ -8,8 +8,8 @@
 
 import { assignHalfCycles } from "./cycle-bookkeeping.ts";
 import { diagnose } from "./diagnostics.ts";
-import { FitWorkspace, fitEdgeModel, type EdgeFitResult, type FitLimits } from "./edge-fit.ts";
-import { chooseResidualForms, evaluateEdges, formChanges, makeEdgeSet, P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
+import { captureWorkspace, fitEdgeModel, type EdgeFitResult, type FitLimits, type FitWorkspace } from "./edge-fit.ts";
+import { chooseResidualForms, evaluateEdges, evaluateUnindexed, formChanges, makeEdgeSet, P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
 import { fitLimits, initialVariance, rankingSubset, rankStarts, type RankedStart } from "./fit-start.ts";
 import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
 import { indicesHold, reassignHalfCycles, type IndexMargin } from "./model-bookkeeping.ts";
@@ -19,8 +19,15 @@ import { correlationInflation, residualCorrelation } from "./residual-correlatio
 import { huberWeight, madSigma, median } from "./robust-stats.ts";
 import { invertSymmetric } from "./small-linear-algebra.ts";
 import { checkInput, MIN_EDGES, type CheckedInput } from "./validate-input.ts";
+import { ringExtent, tailEnd } from "./ring-end.ts";
 import { correctionCovariance, delayEffectSd, edgeDelays, jointTimingStep, rampReach, ringSlopeAt, skewStep, type ComparatorTiming, type LinearFit, type TimingDelays } from "./comparator-timing.ts";
 import { AnalysisError, type RingAnalysis, type RingInput, type Warning } from "./types.ts";
+
+/** Why the edges after the ring's part of a capture were set aside (ring-end.ts). */
+export const REASON_AFTER_RING = "after the ring's end: fired by noise (chatter or noise crossing both thresholds)";
+
+/** ... and of the edges after the ring's envelope had decayed into the noise (ring-end.ts). */
+export const REASON_NOISE_TAIL = "after the ring's envelope came within a few noise sd of the threshold: decided by noise";
 
 /** Huber tuning constant in robust standard deviations. */
 const HUBER_C = 2;
@@ -61,6 +68,24 @@ export interface FitState {
   timing?: TimingState;
   /** Standard deviation of the skew from the joint timing step (fitRing). */
   timingSkewSd?: number;
+  /** Where the capture stopped following the ring (fitRing, ring-end.ts): edges from `end` on
+   *  were left out of everything above. */
+  ringEnd?: RingEnd;
+  /** Edges from this index on came after the ring's envelope had decayed into the noise at the
+   *  farther threshold (fitRing, ring-end.ts tailEnd) and were left out too. */
+  tailEnd?: number;
+  /** Edges in the capture (fitRing): `edges` holds the first tailEnd or ringEnd.end of them. */
+  captured?: number;
+}
+
+/** The capture's edges from `end` (of `edges`) on fired on noise, from time t_s (ring-end.ts). */
+export interface RingEnd {
+  end: number;
+  edges: number;
+  t_s: number;
+  /** Fraction of too-short intervals before `end` and from it on. */
+  rate_before: number;
+  rate_after: number;
 }
 
 /** The comparator-timing terms of a fit (comparator-timing.ts). */
@@ -95,7 +120,11 @@ export function analyzeFit(s: FitState): RingAnalysis {
     if (s.used[k] > 0) continue;
     rejected.push({ index: k, reason: s.reasons[k] ?? "rejected" });
   }
-  const used = s.edges.n - rejected.length;
+  const total = s.captured ?? s.edges.n;
+  for (let k = s.edges.n; k < total; k++) {
+    rejected.push({ index: k, reason: s.ringEnd && k >= s.ringEnd.end ? REASON_AFTER_RING : REASON_NOISE_TAIL });
+  }
+  const used = total - rejected.length;
   const U = {
     l: COVERAGE_K * rq.u.inductance_h, q: COVERAGE_K * rq.u.q, esr: COVERAGE_K * rq.u.esr_ohm, f0: COVERAGE_K * rq.u.f0_hz,
   };
@@ -210,8 +239,56 @@ function countUsed(s: FitState): number {
 
 /** The fitting core of analyzeRing, exposed for diagnostics and tests. */
 export function fitRing(input: RingInput): FitState {
-  const c = checkInput(input);
-  const timing = input.comparator;
+  const part = ringPart(checkInput(input));
+  const { c, tail } = noiseTail(part.c, input.comparator);
+  const s = fitTimed(c, input.comparator);
+  if (part.end) s.ringEnd = part.end;
+  if (tail < part.c.t_s.length) s.tailEnd = tail;
+  s.captured = part.end ? part.end.edges : part.c.t_s.length;
+  return s;
+}
+
+/**
+ * With continuous input noise (RingInput.comparator.noise_bw_hz), the edges past the point where
+ * the ring's envelope comes within a few noise sigma of the farther threshold are decided by the
+ * noise (ring-end.ts, tailEnd): from a first fit, they are left out and the capture is one cut
+ * short. The noise is the larger of the caller's and the fit's (which reads first-passage
+ * scatter, narrower than the noise).
+ */
+function noiseTail(c: CheckedInput, timing: ComparatorTiming | undefined): { c: CheckedInput; tail: number } {
+  const n = c.t_s.length;
+  const none = { c, tail: n };
+  if (!timing || !(timing.noise_bw_hz! > 0)) return none;
+  let first: FitState;
+  try {
+    first = fitCapture(c);
+  } catch {
+    return none;
+  }
+  const sigma = Math.max(timing.noise_v ?? 0, Math.sqrt(first.noise.sigma_v2));
+  const tail = tailEnd(c.t_s, first.p[P_LNA], first.p[P_ALPHA], Math.max(c.vh_v, -c.vl_v), sigma);
+  if (tail >= n || tail < MIN_EDGES) return none;
+  return { c: { ...c, t_s: c.t_s.slice(0, tail), rising: c.rising.slice(0, tail), ring_ended: false }, tail };
+}
+
+/**
+ * The part of a capture that follows its ring (ring-end.ts): edges from the first stretch that
+ * noise fires on are left out, and the capture is then one cut short (not ended on quiet).
+ * Refused when fewer than MIN_EDGES edges come before it.
+ */
+function ringPart(c: CheckedInput): { c: CheckedInput; end: RingEnd | null } {
+  const x = ringExtent(c.t_s, c.rising);
+  const n = c.t_s.length;
+  if (x.end >= n) return { c, end: null };
+  if (x.end < MIN_EDGES) {
+    throw new AnalysisError("NO_RING", `the edges follow the comparator's noise almost from the start (${(100 * x.rate_after).toFixed(0)} % of the intervals are too short for a ring): the hysteresis between the thresholds is too narrow against the input noise; widen it (move the thresholds apart, away from zero), shorten or shield the leads, or raise the drive current`);
+  }
+  const end: RingEnd = { end: x.end, edges: n, t_s: c.t_s[x.end], rate_before: x.rate_before, rate_after: x.rate_after };
+  return { c: { ...c, t_s: c.t_s.slice(0, x.end), rising: c.rising.slice(0, x.end), ring_ended: false }, end };
+}
+
+/** The fit of a capture's ring part, with the comparator's timing terms when they are given. */
+function fitTimed(c: CheckedInput, timing: ComparatorTiming | undefined): FitState {
   if (!timing) {
     // Nothing known about the comparator's timing: the fit is of the thresholds' model alone,
     // and the capture's own evidence of a skew is kept for the COMPARATOR_SKEW diagnostic.
@@ -423,7 +500,7 @@ function fitCapture(c: CheckedInput): FitState {
   const candidates = initialCandidates(e0, c.vh_v, c.vl_v, 3, n <= FEW_EDGES_BOTH_STARTS);
   if (candidates.length === 0) throw noRing("no damped sine explains the edge times");
 
-  const ws = new FitWorkspace(n);
+  const ws = captureWorkspace(n);
   const limits = fitLimits(e0, c, candidates[0].p[P_WD]);
   const subset = rankingSubset(e0);
   const starts = rankStarts(candidates, e0, subset, c, tickVar_s2, ws, limits);
@@ -690,6 +767,9 @@ function reindex(f: Rounds, round: number): number {
   if (round === 0) reform(f, ampAtP);
   if (moved > 0 || !f.cached) {
     evaluateEdges(f.p, f.e, c.vh_v, c.vl_v, null, f.timingVar_s2, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
+    // The edges without an index too (slope and curvature only): their variances are set from
+    // them (updateVariances). Round 0 always gets here, so every edge's slope is this fit's own.
+    evaluateUnindexed(f.p, f.e, c.vh_v, c.vl_v, f.zWork, { slope: ws.slope, curvature: ws.curvature });
     f.cached = true;
   }
   return moved;
@@ -796,8 +876,17 @@ function finishRounds(f: Rounds, fit: EdgeFitResult): FitState {
   const period = (2 * Math.PI) / p[P_WD];
   const typical = Math.sqrt(median(zWork, nt, f.zUsed));
   if (nUsed < 0.5 * n || !(typical < 0.1 * period)) throw noRing("the edges do not follow one damped sine");
+  // An edge without an index has no residual (NaN) and no Jacobian row (zero), whatever the
+  // workspace holds there.
+  const r = ws.r.slice();
+  const jac = ws.jac.slice();
+  for (let k = 0; k < n; k++) {
+    if (e.m[k] === e.m[k]) continue;
+    r[k] = NaN;
+    jac.fill(0, 4 * k, 4 * k + 4);
+  }
   return {
-    checked: c, edges: e, p, cov, r: ws.r.slice(), jac: ws.jac.slice(), slope: ws.slope.slice(), variance, used,
+    checked: c, edges: e, p, cov, r, jac, slope: ws.slope.slice(), variance, used,
     z_scale: f.zScale, noise: f.noise, reasons: f.reasons, chi2: fit.chi2, nll: negLogLikelihood(ws.r, timingVar_s2, variance, e, used),
   };
 }

@@ -75,6 +75,7 @@ export function diagnose(s: FitState, rq: RingQuantities): Diagnosis {
   }
   const skew = skewEvidence(s);
   if (skew) warnings.push(skew);
+  if (s.ringEnd) warnings.push(ringEndWarning(s));
   const drift = frequencyDrift(s);
   if (drift && Math.abs(drift.df_rel) > 4 * drift.df_rel_u && Math.abs(drift.df_rel) > DRIFT_MIN_REL) {
     warnings.push({ code: "FREQUENCY_DRIFT", message: `the ring frequency changes by ${(drift.df_rel * 1e6).toFixed(0)} ppm (± ${(2 * drift.df_rel_u * 1e6).toFixed(0)} ppm, k = 2) from the start to the end of the ring: the tank capacitor may be voltage dependent (use C0G/film) or the core may be near saturation (lower the drive current)` });
@@ -210,4 +211,22 @@ function skewEvidence(s: FitState): Warning | null {
     ? `the comparator skew from ${t.skew_source} (${ns(prior)} ns ± ${ns(2 * priorU)} ns) disagrees with it: calibrate the skew again (docs/calibration.md) and measure with the new profile`
     : "L and Q were fitted with equal rise and fall delays and their uncertainties leave this out: calibrate the comparator's skew (docs/calibration.md) and measure with it";
   return { code: "COMPARATOR_SKEW", message: `${what}; ${next}` };
+}
+
+/**
+ * THRESHOLD_IN_NOISE: the capture stopped following the ring (ring-end.ts) and the fit used the
+ * edges before that point only. The gap between the thresholds (the hysteresis) is what the noise
+ * has to bridge to fire an edge of its own.
+ */
+function ringEndWarning(s: FitState): Warning {
+  const e = s.ringEnd!;
+  const { vh_v, vl_v } = s.checked;
+  const mv = (x: number) => (x * 1e3).toFixed(1);
+  const gap = `${mv(vh_v - vl_v)} mV between the thresholds (${mv(vh_v)} / ${mv(vl_v)} mV)`;
+  const sigma = Math.sqrt(s.noise.sigma_v2);
+  const noise = sigma > 0 ? ` against about ${mv(sigma)} mV rms of noise seen on the edges` : "";
+  return {
+    code: "THRESHOLD_IN_NOISE",
+    message: `from edge ${e.end} of ${e.edges} (${(e.t_s * 1e3).toPrecision(3)} ms) on, the edges follow the comparator's noise, not the ring (${(100 * e.rate_after).toFixed(0)} % of the intervals are too short for a ring): only the ${e.end} edges before were used; ${gap}${noise} are too close: move the thresholds apart and away from zero, shorten or shield the leads, or raise the drive current`,
+  };
 }

@@ -114,7 +114,8 @@ function solvePair(small: Reading, large: Reading, profile: CalibrationProfile |
     large: tankRing(large, opts.profile, shared),
     timebase_u_rel: sharedTimebaseURel(opts.profile ?? null, [small.settings.tank, large.settings.tank], NOMINAL_TIMEBASE_U_REL),
     shared_c_u_rel: shared.rel,
-    shared_c_u_f: shared.offset_f,
+    // The fixture's capacitance (open nulling), added to both tanks, is one offset common to both.
+    shared_c_u_f: Math.hypot(shared.offset_f, Math.min(small.capture.calibration?.fixture_u_f ?? 0, large.capture.calibration?.fixture_u_f ?? 0)),
   });
   return { first: small, second: large, result, budget: twoTankBudget(result) };
 }
