@@ -20,6 +20,7 @@ import { huberWeight, madSigma, median } from "./robust-stats.ts";
 import { invertSymmetric } from "./small-linear-algebra.ts";
 import { checkInput, MIN_EDGES, type CheckedInput } from "./validate-input.ts";
 import { ringExtent, tailEnd, tailSelects } from "./ring-end.ts";
+import { decayProfile, type ProfilePoint } from "./decay-profile.ts";
 import { correctionCovariance, delayEffectSd, edgeDelays, jointTimingStep, rampReach, ringSlopeAt, skewStep, type ComparatorTiming, type LinearFit, type TimingDelays } from "./comparator-timing.ts";
 import { AnalysisError, type RingAnalysis, type RingInput, type Warning } from "./types.ts";
 
@@ -77,6 +78,8 @@ export interface FitState {
   /** The fits across the skew's prior and their weights (marginalizeSkew), when the capture hardly
    *  determines the skew. */
   skewMixture?: { wd: number; alpha: number; w: number }[];
+  /** The likelihood profiled along the decay (decay-profile.ts), when no skew mixture is. */
+  decayProfile?: ProfilePoint[];
   /** Edges in the capture (fitRing): `edges` holds the first tailEnd or ringEnd.end of them. */
   captured?: number;
 }
@@ -187,9 +190,10 @@ export function analyzeFit(s: FitState): RingAnalysis {
 function quantitiesOf(s: FitState): RingQuantities {
   const c = s.checked;
   const rq = ringQuantities(s.p[P_WD], s.p[P_ALPHA], [s.cov[0], s.cov[3], s.cov[15]], c.c_f, c.c_u_f, c.timebase_u_rel);
-  if (!s.skewMixture) return rq;
+  const mix = s.skewMixture ?? s.decayProfile;
+  if (!mix) return rq;
   let vl = 0, vq = 0, ve = 0, vf = 0;
-  for (const m of s.skewMixture) {
+  for (const m of mix) {
     const w02 = m.wd * m.wd + m.alpha * m.alpha;
     const l = 1 / (w02 * c.c_f);
     const q = Math.sqrt(w02) / (2 * m.alpha);
@@ -198,14 +202,18 @@ function quantitiesOf(s: FitState): RingQuantities {
     ve += m.w * (2 * m.alpha * l - rq.esr_ohm) ** 2;
     vf += m.w * (Math.sqrt(w02) / (2 * Math.PI) - rq.f0_hz) ** 2;
   }
-  const fitL = Math.sqrt(rq.budget[0].rel_u ** 2 + vl / rq.inductance_h ** 2);
+  // A skew mixture's fits each had the skew fixed: their spread adds to the linearised variance.
+  // The decay profile spans alpha itself: its spread adds to the variance at fixed alpha, and the
+  // linearised variance stays where it is the larger.
+  const base = s.skewMixture
+    ? rq
+    : ringQuantities(s.p[P_WD], s.p[P_ALPHA], [Math.max(0, s.cov[0] - (s.cov[3] * s.cov[3]) / s.cov[15]), 0, 0], c.c_f, c.c_u_f, c.timebase_u_rel);
+  const total = (lin: number, at: number, v: number) => Math.max(s.skewMixture ? 0 : lin, Math.sqrt(at * at + v));
+  const uL = total(rq.u.inductance_h, base.u.inductance_h, vl);
   return {
     ...rq,
-    u: {
-      inductance_h: Math.sqrt(rq.u.inductance_h ** 2 + vl), q: Math.sqrt(rq.u.q ** 2 + vq),
-      esr_ohm: Math.sqrt(rq.u.esr_ohm ** 2 + ve), f0_hz: Math.sqrt(rq.u.f0_hz ** 2 + vf),
-    },
-    budget: rq.budget.map((b, i) => (i === 0 ? { ...b, rel_u: fitL } : b)),
+    u: { inductance_h: uL, q: total(rq.u.q, base.u.q, vq), esr_ohm: total(rq.u.esr_ohm, base.u.esr_ohm, ve), f0_hz: total(rq.u.f0_hz, base.u.f0_hz, vf) },
+    budget: rq.budget.map((b, i) => (i === 0 ? { ...b, rel_u: Math.sqrt(Math.max(0, b.rel_u ** 2 + (uL ** 2 - rq.u.inductance_h ** 2) / rq.inductance_h ** 2)) } : b)),
   };
 }
 
@@ -274,6 +282,11 @@ export function fitRing(input: RingInput): FitState {
   if (part.end) s.ringEnd = part.end;
   if (tail < part.c.t_s.length) s.tailEnd = tail;
   s.captured = part.end ? part.end.edges : part.c.t_s.length;
+  for (const f of s.alternative ? [s, s.alternative] : [s]) {
+    if (f.skewMixture) continue;
+    const prof = decayProfile({ ...f, vh_v: c.vh_v, vl_v: c.vl_v });
+    if (prof) f.decayProfile = prof;
+  }
   return s;
 }
 
