@@ -47,6 +47,7 @@ export const READING_BUDGET_LINES = {
   "self-capacitance": "the part's own capacitance, unknown on one tank",
   "stray capacitance": "capacitance the tank's value does not include (fixture, strays) when uncalibrated",
   leads: "the test leads' series inductance, subtracted when nulled (calibrate short)",
+  fixture: "the fixture's capacitance, added to a tank whose value does not hold it (calibrate open)",
 } as const;
 export type ReadingBudgetLine = keyof typeof READING_BUDGET_LINES;
 

@@ -18,6 +18,8 @@ export type { Transport } from "./transport/transport.ts";
 export { listSerialPorts } from "./transport/serial-transport.ts";
 export type { SerialPortInfo } from "./transport/serial-transport.ts";
 export { measurePart, analyzeCapture, judgeCapture, MeasureError, PartFaultError } from "./measure/measure-part.ts";
+export { repeatReadings } from "./measure/repeat-readings.ts";
+export type { RepeatOptions, RepeatOutcome } from "./measure/repeat-readings.ts";
 export type { Reading, MeasureOptions } from "./measure/measure-part.ts";
 export type { FrequencyChoice } from "./ranging/choose-setting.ts";
 export type { MeasureEvent, MeasurePhase, PulseEvent, StepEvent, CautionEvent, DoneEvent, SettingInfo } from "./measure/events.ts";
@@ -36,7 +38,7 @@ export type { Scenario, PartModel } from "./sim/scenario.ts";
 export {
   CalibrationError, CALIBRATION_METHODS, validateProfile, emptyProfile, loadProfile, saveProfile, restorePreviousProfile, configDir, profilePaths,
   appliedCalibration, deviceCalibration, calibrateWithReference, calibrateWithParallelCapacitor, calibrateThresholds, calibrateSkew,
-  measureTimebase, measureSelfCapacitance, measureLeadInductance,
+  measureTimebase, measureSelfCapacitance, measureLeadInductance, measureFixtureCapacitance,
 } from "./calibration/index.ts";
 // The methods behind them (GUM propagation, Monte Carlo, the two-capacitance solution, budgets)
 // are the henrytick/calibration subpath (calibration/index.ts).

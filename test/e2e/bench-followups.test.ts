@@ -1,12 +1,14 @@
 // Bench sessions through the built CLI, second round: turn changes in a --turns list, a target
 // the former cannot reach, a tolerance letter never dropped, sort logs with decimal limits and
-// warnings as an array.
+// warnings as an array, Ctrl-C a normal finish under npx as under node.
 
+import { spawn } from "node:child_process";
 import { mkdtempSync, readFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
+import { fileURLToPath } from "node:url";
 import { describe, expect, it } from "vitest";
-import { runCli } from "./run-cli.ts";
+import { CLI, runCli, TEST_CONFIG_DIR } from "./run-cli.ts";
 
 const tmp = mkdtempSync(join(tmpdir(), "henrytick-followups-"));
 
@@ -74,5 +76,82 @@ describe("sort logs", () => {
     for (const rec of records) expect(Array.isArray(rec.warnings)).toBe(true);
     const csv = readFileSync(`${base}.csv`, "utf8").trimEnd().split("\n");
     for (const row of csv.slice(1)) expect(row).toContain(",0.0000095,0.0000105,");
+  });
+});
+
+const ROOT = fileURLToPath(new URL("../..", import.meta.url));
+
+/**
+ * Starts a command in its own process group, waits until stdout has shown `ready`, then sends
+ * SIGINT to the whole group, as a terminal does for Ctrl-C (npx, its shell and henrytick alike).
+ */
+async function ctrlC(how: "node" | "npx", args: string[], ready: RegExp): Promise<{ code: number | null; signal: NodeJS.Signals | null; out: string; err: string }> {
+  const env = { ...process.env, HENRYTICK_CONFIG_DIR: TEST_CONFIG_DIR, NO_COLOR: "1", npm_config_offline: "true", npm_config_update_notifier: "false" };
+  const c = how === "npx"
+    ? spawn("npx", ["henrytick", ...args], { cwd: ROOT, env, detached: true })
+    : spawn(process.execPath, [CLI, ...args], { cwd: ROOT, env, detached: true });
+  let out = "";
+  let err = "";
+  c.stdout.on("data", (d) => (out += d));
+  c.stderr.on("data", (d) => (err += d));
+  const exited = new Promise<{ code: number | null; signal: NodeJS.Signals | null }>((resolve) => c.on("exit", (code, signal) => resolve({ code, signal })));
+  for (let i = 0; i < 300 && !ready.test(out); i++) await new Promise((resolve) => setTimeout(resolve, 100));
+  expect(out, err).toMatch(ready);
+  process.kill(-c.pid!, "SIGINT");
+  const killer = setTimeout(() => process.kill(-c.pid!, "SIGKILL"), 20_000);
+  const end = await exited;
+  clearTimeout(killer);
+  return { ...end, out, err };
+}
+
+describe("Ctrl-C ends a watch normally, under npx as under node", () => {
+  for (const how of ["node", "npx"] as const) {
+    it(`measure --watch under ${how}: status 0, the readings so far printed`, async () => {
+      const r = await ctrlC(how, ["measure", "--sim", "--watch", "--interval-ms", "100"], /#2 /);
+      expect({ code: r.code, signal: r.signal }, r.err).toEqual({ code: 0, signal: null });
+      expect(r.out).toMatch(/#1 .*µH/);
+    }, 60_000);
+  }
+
+  it("wind --csv under npx: status 0 and the readings so far", async () => {
+    const r = await ctrlC("npx", ["wind", "--sim", "--target", "22u", "--turns", "30,31,32,33,34,35,36,37,38,39,40,41,42,43,44,45,46,47,48,49,50,51,52,53,54,55,56,57,58,59,60", "--csv"], /^32,/m);
+    expect({ code: r.code, signal: r.signal }, r.err).toEqual({ code: 0, signal: null });
+  }, 60_000);
+
+  it("sort under npx: status 0 and the summary", async () => {
+    const r = await ctrlC("npx", ["sort", "--sim", "--nominal", "330u", "--tol", "5%", "--count", "1000", "--log", join(tmp, "npx-lot")], /# {2}2 /);
+    expect({ code: r.code, signal: r.signal }, r.err).toEqual({ code: 0, signal: null });
+    expect(r.out).toMatch(/── \d+ parts/);
+  }, 60_000);
+});
+
+/** Decimals of a printed number. */
+const decimals = (s: string) => (s.split(".")[1] ?? "").length;
+/** Significant digits of a printed uncertainty (leading zeros do not count). */
+const sigDigits = (s: string) => s.replace(".", "").replace(/^0+/, "").length;
+
+// JCGM 100:2008 §7.2.6: U to at most two significant digits, the value to the same decimal place.
+describe("digits follow the uncertainty in text output", () => {
+  it("measure prints the frequency with its U, to the same decimal place", () => {
+    const text = runCli(["measure", "--sim"]);
+    expect(text.status, text.stderr).toBe(0);
+    const m = /frequency {4}([\d.]+) kHz {2}± ([\d.]+) kHz/.exec(text.stdout);
+    expect(m, text.stdout).not.toBeNull();
+    const [, value, u] = m!;
+    expect(sigDigits(u)).toBe(2);
+    expect(decimals(value)).toBe(decimals(u));
+    const json = JSON.parse(runCli(["measure", "--sim", "--json"]).stdout);
+    expect(Number(value)).toBeCloseTo(json.f0_hz / 1e3, decimals(value));
+    expect(Number(u)).toBeCloseTo(json.f0_u_hz / 1e3, decimals(u));
+  });
+
+  it("sort's summary gives the mean and range to the digits of the parts' U", () => {
+    const r = runCli(["sort", "--sim", "--nominal", "10u", "--tol", "5%", "--sim-tray", "9.61u,10.02u,10.43u", "--settle", "1", "--log", join(tmp, "digits")]);
+    expect(r.status, r.stderr).toBe(0);
+    const m = /mean {9}([\d.]+) µH, range ([\d.]+) µH … ([\d.]+) µH \(parts read with U up to ([\d.]+) µH\)/.exec(r.stdout);
+    expect(m, r.stdout).not.toBeNull();
+    const u = m![4];
+    expect(sigDigits(u)).toBe(2);
+    for (const v of m!.slice(1, 4)) expect(decimals(v)).toBe(decimals(u));
   });
 });

@@ -25,7 +25,7 @@ describe("each command and sub-command has its own short help", () => {
 
   it("covers every command the general page names, and calibrate's sub-commands", () => {
     for (const c of ["measure", "analyze", "profile", "advise", "scenarios", "ports", "sort", "wind", "report", "sim-device", "calibrate",
-      "calibrate show", "calibrate reference", "calibrate parallel", "calibrate thresholds", "calibrate skew", "calibrate timebase", "calibrate short", "calibrate restore"]) {
+      "calibrate show", "calibrate reference", "calibrate parallel", "calibrate thresholds", "calibrate skew", "calibrate timebase", "calibrate short", "calibrate open", "calibrate restore"]) {
       expect(HELP_TOPICS).toContain(c);
     }
   });

@@ -58,6 +58,18 @@ describe("calibrate parallel: a capacitor too small for the tank is refused befo
     expect(r.status).toBe(1);
     expect(r.stderr).toMatch(/\[OUT_OF_SPAN\] the added 1 nF is under 5 % of tank 2 \(100 nF\).*30 nF to 300 nF/);
     expect(r.stderr).not.toMatch(/probing|measuring|e-\d\d/);
+    // Refused before the pulse caution too: nothing is about to be pulsed.
+    expect(r.stderr).not.toMatch(/caution/i);
+  });
+});
+
+describe("calibrate prints values with units and digits that follow their uncertainty", () => {
+  it("thresholds: the ratio and the comparator offset as value ± U, no stray spaces or raw floats", () => {
+    const dir = mkdtempSync(join(tmpdir(), "henrytick-thr-"));
+    const r = cliIn(dir)(["calibrate", "thresholds", "--sim", "--captures", "2"]);
+    expect(r.status).toBe(0);
+    expect(r.stdout).toMatch(/ratio -?\d+\.\d+ ± \d+\.\d+, comparator offset -?\d+ µV ± \d+ µV \(k = 2\)/);
+    expect(r.stdout).not.toMatch(/ {2}[±,]|\d\.\d{7,}|e-\d/);
   });
 });
 

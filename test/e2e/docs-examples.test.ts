@@ -46,7 +46,7 @@ function fromHelp(args: string[]): string[] {
 }
 
 const topics = ["measure", "analyze", "profile", "advise", "scenarios", "ports", "sort", "wind", "report", "sim-device", "calibrate",
-  "calibrate show", "calibrate reference", "calibrate parallel", "calibrate thresholds", "calibrate skew", "calibrate timebase", "calibrate restore"];
+  "calibrate show", "calibrate reference", "calibrate parallel", "calibrate thresholds", "calibrate skew", "calibrate timebase", "calibrate open", "calibrate restore"];
 const sources: [string, string[]][] = [
   ["README.md", fromMarkdown("README.md")],
   ...readdirSync(join(root, "docs")).filter((f) => f.endsWith(".md")).map((f) => [`docs/${f}`, fromMarkdown(`docs/${f}`)] as [string, string[]]),

@@ -3,12 +3,21 @@
 // from f = 1 / (2π √(LC)) with the simulated parts' inductances and the reference board's
 // nominal tanks (1 nF, 10 nF, 100 nF, 1 µF); the parts' values are the scenarios' own.
 
+import { mkdtempSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { measurePart, openTester } from "../../host/src/index.ts";
 import type { MeasureOptions } from "../../host/src/index.ts";
 import { SettingHold } from "../../host/src/workflows/setting-hold.ts";
 import { assessStability, SettingHistory } from "../../host/src/workflows/watch-trend.ts";
+import { runSort } from "../../host/src/workflows/sort-runner.ts";
+import { SortSession } from "../../host/src/workflows/sort-session.ts";
+import { parseTolerance } from "../../host/src/values/tolerance.ts";
+import type { MeasureEvent } from "../../host/src/index.ts";
 import { runCli } from "./run-cli.ts";
+
+const tmp = mkdtempSync(join(tmpdir(), "henrytick-freq-"));
 
 async function read(scenario: string, opts: MeasureOptions) {
   const t = await openTester({ scenario });
@@ -61,6 +70,16 @@ describe("measurePart with test_frequency_hz", () => {
     expect(choice.nearer_tanks.map((n) => n.tank_index)).toEqual([0, 1]);
     for (const n of choice.nearer_tanks) expect(n.why).toMatch(/^refused: /);
     expect(choice.note).toMatch(/the 1\.00 nF tank would ring nearer .* but refused: the ring is too fast for the timer/);
+  });
+
+  it("names a nearer tank refused for the voltage limit (an 82 mH valve coil asked 10 kHz under a 1 V limit)", async () => {
+    const r = await read("solenoid-valve-82m", { test_frequency_hz: 10e3, max_peak_v: 1 });
+    const choice = r.test_frequency!;
+    expect(choice.nearest).toBe(false);
+    // 82 mH rings at about 17.6 kHz on 1 nF and 5.6 kHz on 10 nF (LC resonance): both nearer 10 kHz than 1.76 kHz on 100 nF.
+    expect(choice.nearer_tanks.map((n) => n.tank_index)).toEqual([0, 1]);
+    expect(choice.nearer_tanks[0].why).toMatch(/^refused: its ring could reach .* V, above the 1 V limit/);
+    expect(r.analysis.amplitude_v).toBeLessThanOrEqual(1);
   });
 
   it("says the asked frequency is beyond what the part reaches on this tester", async () => {
@@ -167,5 +186,111 @@ describe("a trend verdict never spans a change of setting", () => {
     });
     // The setting is held: at most one change in twelve readings (ranging alone hopped between the 1 µF and 100 nF tanks).
     expect(changes).toBeLessThanOrEqual(1);
+  });
+});
+
+describe("sort holds each part's setting", () => {
+  it("the X7R part's readings stay on its first reading's setting; ranging again only after a refusal, and then said", async () => {
+    const t = await openTester({ scenario: "x7r-tank-mixup" });
+    try {
+      type Item = { kind: "reading"; phases: Set<string>; tank: number } | { kind: "changed"; message: string };
+      const timeline: Item[] = [];
+      let cur = { phases: new Set<string>(), tank: -1 };
+      const onEvent = (e: MeasureEvent) => {
+        if (e.type === "pulse") {
+          cur.phases.add(e.phase);
+          if (e.phase !== "probe") cur.tank = e.setting.tank;
+        }
+        if (e.type === "done") {
+          timeline.push({ kind: "reading", ...cur });
+          cur = { phases: new Set(), tank: -1 };
+        }
+      };
+      const session = new SortSession({ nominal_h: 330e-6, tolerance: parseTolerance("10%") });
+      // Six agreeing readings before the part is recorded: ranging alone moved between tanks within them.
+      const parts = await runSort({
+        client: t.client, session, maxParts: 1, presence: { settle: 6 }, measure: { onEvent },
+        onEvent: (e) => { if (e.kind === "setting-changed") timeline.push({ kind: "changed", message: e.message }); },
+      });
+      expect(parts).toHaveLength(1);
+      const readings = timeline.filter((i) => i.kind === "reading");
+      expect(readings.length).toBeGreaterThanOrEqual(6);
+      expect([...readings[0].phases]).toContain("ranging");
+      let held = readings[0].tank;
+      timeline.forEach((item, i) => {
+        if (item.kind !== "reading" || item === readings[0]) return;
+        if (item.phases.has("ranging")) {
+          // Ranging again happens only right after a refusal on the held setting, and is announced.
+          const next = timeline[i + 1];
+          expect(next?.kind, `reading ${i} ranged again`).toBe("changed");
+          if (next?.kind === "changed") expect(next.message).toMatch(/^the held setting .* was refused \([A-Z_]+\); ranging again chose/);
+          held = item.tank;
+        } else {
+          expect([...item.phases].sort()).toEqual(["fixed", "probe"]);
+          expect(item.tank).toBe(held);
+        }
+      });
+      expect(parts[0].tank_index).toBe(held);
+    } finally {
+      await t.close();
+    }
+  });
+
+  it("sort --freq states how near each part's reading came", () => {
+    const r = runCli(["sort", "--sim", "--nominal", "330u", "--tol", "10%", "--sim-tray", "330u,4.7m", "--freq", "10k", "--log", join(tmp, "fsort")]);
+    expect(r.status, r.stderr).toBe(0);
+    expect(r.stderr.match(/asked 10\.0 kHz, rang at 8\.\d+ kHz \(-1\d %\): the nearest of this tester's tanks/g)).toHaveLength(1);
+    expect(r.stderr).toMatch(/asked 10\.0 kHz, rang at 7\.\d+ kHz \(-[23]\d %\): the nearest of this tester's tanks/);
+  });
+});
+
+describe("--freq on wind and advise, and in every help page", () => {
+  it("wind --freq rings each reading on the tank nearest the asked frequency", () => {
+    const r = runCli(["wind", "--sim", "--target", "100u", "--turns", "60,70", "--freq", "100k", "--json"]);
+    expect(r.status, r.stderr).toBe(0);
+    const text = runCli(["wind", "--sim", "--target", "100u", "--turns", "60,70", "--freq", "100k"]);
+    expect(text.status, text.stderr).toBe(0);
+    expect(text.stderr.match(/asked 100 kHz, rang at \d+(\.\d+)? kHz \([^)]*\): the nearest of this tester's tanks/g)).toHaveLength(2);
+  });
+
+  it("advise --freq orders the settings nearest tank first and predicts how near", () => {
+    const r = runCli(["advise", "--sim", "drawer-choke-330u", "--freq", "30k", "--json"]);
+    expect(r.status, r.stderr).toBe(0);
+    const j = JSON.parse(r.stdout);
+    const allowed = j.advice.filter((a: { refused: string }) => a.refused === "");
+    // 330 µH on 100 nF rings at about 27.7 kHz (LC resonance), the tank nearest 30 kHz.
+    expect(allowed[0].tank).toBe(2);
+    const d = allowed.map((a: { f_hz: number }) => Math.abs(Math.log(a.f_hz / 30e3)));
+    for (let i = 1; i < d.length; i++) expect(d[i]).toBeGreaterThanOrEqual(d[i - 1] - 1e-9);
+    expect(j.test_frequency).toMatchObject({ asked_hz: 30e3, tank_index: 2, nearest: true });
+    expect(j.test_frequency.note).toMatch(/^asked 30\.0 kHz, would ring at about 2\d\.\d kHz/);
+  });
+
+  it.each(["measure", "sort", "wind", "advise"])("%s --help lists --freq with an example", (cmd) => {
+    const r = runCli([cmd, "--help"]);
+    expect(r.status).toBe(0);
+    expect(r.stdout).toMatch(/^ {2}--freq F {2,}working frequency/m);
+    expect(r.stdout).toMatch(new RegExp(`^ {2}henrytick ${cmd} --sim .*--freq \\d+k$`, "m"));
+  });
+});
+
+describe("the drawer choke's Q no longer depends on whether the tester is calibrated", () => {
+  it("with --freq 30k it rings on the 100 nF tank calibrated and uncalibrated (ranging alone moved to 1 µF once calibrated)", () => {
+    const dir = mkdtempSync(join(tmp, "cal-"));
+    const cal = runCli(["calibrate", "reference", "--sim", "--ref-h", "330u", "--ref-u-h", "0.1u", "--repeats", "1", "--config-dir", dir]);
+    expect(cal.status, cal.stderr).toBe(0);
+    const read = (...extra: string[]) => {
+      const r = runCli(["measure", "--sim", "drawer-choke-330u", "--config-dir", dir, "--json", ...extra]);
+      expect(r.status, r.stderr).toBe(0);
+      return JSON.parse(r.stdout);
+    };
+    const plain = [read("--uncalibrated"), read()];
+    const asked = [read("--uncalibrated", "--freq", "30k"), read("--freq", "30k")];
+    // The finding: left to itself, ranging picks another tank once calibrated, and Q moves with it.
+    expect(plain.map((r) => r.settings.range.tank_index)).toEqual([2, 3]);
+    expect(asked.map((r) => r.settings.range.tank_index)).toEqual([2, 2]);
+    expect(asked[1].settings.calibration.tank_calibrated).toBe(true);
+    // One frequency, one Q: the two agree within their expanded uncertainties.
+    expect(Math.abs(asked[0].q - asked[1].q)).toBeLessThan(Math.hypot(asked[0].q_u, asked[1].q_u));
   });
 });

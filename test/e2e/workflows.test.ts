@@ -186,7 +186,7 @@ describe("henrytick measure --watch", () => {
     expect(rows[0]).toMatch(/^reading,time,stability,label,inductance_h,inductance_u_h,q,/);
     expect(rows[1].split(",")[0]).toBe("1");
     const p = runCli(["measure", "--sim", "--watch", "--count", "3", "--interval-ms", "0"]);
-    expect(p.stdout).toMatch(/^#3 {2}\d+\.\d µH ± \d\.\d µH {2}Q \d+ {2}steady {2}[▁-█]{3}$/m);
+    expect(p.stdout).toMatch(/^#3 {2}\d+\.\d µH ± \d\.\d µH {2}Q \d+ at \d+(\.\d+)? kHz {2}steady {2}[▁-█]{3}$/m);
     expect(p.stdout).not.toContain("\x1b[");
     const e = runCli(["measure", "--sim", "--watch", "--count", "1", "--interval-ms", "0", "--series", "E12"]);
     expect(e.stdout).toMatch(/nearest E12 330 µH \(\+0\.\d %\)/);

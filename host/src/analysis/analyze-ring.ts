@@ -8,8 +8,8 @@
 
 import { assignHalfCycles } from "./cycle-bookkeeping.ts";
 import { diagnose } from "./diagnostics.ts";
-import { FitWorkspace, fitEdgeModel, type EdgeFitResult, type FitLimits } from "./edge-fit.ts";
-import { chooseResidualForms, evaluateEdges, formChanges, makeEdgeSet, P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
+import { captureWorkspace, fitEdgeModel, type EdgeFitResult, type FitLimits, type FitWorkspace } from "./edge-fit.ts";
+import { chooseResidualForms, evaluateEdges, evaluateUnindexed, formChanges, makeEdgeSet, P_ALPHA, P_LNA, P_PHI, P_WD, type EdgeSet } from "./edge-model.ts";
 import { fitLimits, initialVariance, rankingSubset, rankStarts, type RankedStart } from "./fit-start.ts";
 import { initialCandidates, type InitialGuess } from "./initial-guess.ts";
 import { indicesHold, reassignHalfCycles, type IndexMargin } from "./model-bookkeeping.ts";
@@ -597,7 +597,7 @@ function fitCapture(c: CheckedInput): FitState {
   const candidates = initialCandidates(e0, c.vh_v, c.vl_v, 3, n <= FEW_EDGES_BOTH_STARTS);
   if (candidates.length === 0) throw noRing("no damped sine explains the edge times");
 
-  const ws = new FitWorkspace(n);
+  const ws = captureWorkspace(n);
   const limits = fitLimits(e0, c, candidates[0].p[P_WD]);
   const subset = rankingSubset(e0);
   const starts = rankStarts(candidates, e0, subset, c, tickVar_s2, ws, limits);
@@ -864,6 +864,9 @@ function reindex(f: Rounds, round: number): number {
   if (round === 0) reform(f, ampAtP);
   if (moved > 0 || !f.cached) {
     evaluateEdges(f.p, f.e, c.vh_v, c.vl_v, null, f.timingVar_s2, { r: ws.r, jac: ws.jac, slope: ws.slope, curvature: ws.curvature });
+    // The edges without an index too (slope and curvature only): their variances are set from
+    // them (updateVariances). Round 0 always gets here, so every edge's slope is this fit's own.
+    evaluateUnindexed(f.p, f.e, c.vh_v, c.vl_v, f.zWork, { slope: ws.slope, curvature: ws.curvature });
     f.cached = true;
   }
   return moved;
@@ -970,8 +973,17 @@ function finishRounds(f: Rounds, fit: EdgeFitResult): FitState {
   const period = (2 * Math.PI) / p[P_WD];
   const typical = Math.sqrt(median(zWork, nt, f.zUsed));
   if (nUsed < 0.5 * n || !(typical < 0.1 * period)) throw noRing("the edges do not follow one damped sine");
+  // An edge without an index has no residual (NaN) and no Jacobian row (zero), whatever the
+  // workspace holds there.
+  const r = ws.r.slice();
+  const jac = ws.jac.slice();
+  for (let k = 0; k < n; k++) {
+    if (e.m[k] === e.m[k]) continue;
+    r[k] = NaN;
+    jac.fill(0, 4 * k, 4 * k + 4);
+  }
   return {
-    checked: c, edges: e, p, cov, r: ws.r.slice(), jac: ws.jac.slice(), slope: ws.slope.slice(), variance, used,
+    checked: c, edges: e, p, cov, r, jac, slope: ws.slope.slice(), variance, used,
     z_scale: f.zScale, noise: f.noise, reasons: f.reasons, chi2: fit.chi2, nll: negLogLikelihood(ws.r, timingVar_s2, variance, e, used),
   };
 }

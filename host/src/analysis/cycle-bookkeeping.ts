@@ -5,6 +5,7 @@
 // survives a rough period, dropped edges (a gap of two cycles) and chatter (a step of zero
 // cycles, i.e. two edges in one half-cycle). The model fit later re-checks every index.
 
+import { REASON_DUPLICATE } from "./model-bookkeeping.ts";
 import { median } from "./robust-stats.ts";
 
 export interface HalfCycleAssignment {
@@ -183,13 +184,13 @@ function dropDuplicates(
     while (end < idx.length && k[end] === k[j]) end++;
     if (end - j > 1) {
       let best = j;
-      for (let q = j + 1; q < end; q++) {
-        if (Math.abs(t[idx[q]] - a - b * k[q]) < Math.abs(t[idx[best]] - a - b * k[best])) best = q;
+      for (let d = j + 1; d < end; d++) {
+        if (Math.abs(t[idx[d]] - a - b * k[d]) < Math.abs(t[idx[best]] - a - b * k[best])) best = d;
       }
-      for (let q = j; q < end; q++) {
-        if (q === best) continue;
-        m[idx[q]] = NaN;
-        reasons[idx[q]] = "second edge in one half-cycle (chatter or glitch)";
+      for (let d = j; d < end; d++) {
+        if (d === best) continue;
+        m[idx[d]] = NaN;
+        reasons[idx[d]] = REASON_DUPLICATE;
       }
     }
     j = end;

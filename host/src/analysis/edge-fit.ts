@@ -50,12 +50,17 @@ export interface EdgeFitResult {
   fresh: boolean;
 }
 
-/** Scratch buffers sized for one capture, reused across fits of the same capture. */
+/**
+ * Scratch buffers for one capture, reused across its fits (and, from captureWorkspace, across
+ * captures): their contents are undefined when a capture starts, and nothing the analysis
+ * returns may depend on them (the per-edge arrays are views of n entries into buffers that grow
+ * as needed).
+ */
 export class FitWorkspace {
-  readonly r: Float64Array;
-  readonly jac: Float64Array;
-  readonly slope: Float64Array;
-  readonly curvature: Float64Array;
+  r!: Float64Array;
+  jac!: Float64Array;
+  slope!: Float64Array;
+  curvature!: Float64Array;
   /** Edges to evaluate (null: all indexed edges). */
   mask: Float64Array | null = null;
   readonly h = new Float64Array(N_PARAMS * N_PARAMS);
@@ -73,7 +78,7 @@ export class FitWorkspace {
   readonly trial = new Float64Array(N_PARAMS);
   readonly work = new Float64Array(N_PARAMS * N_PARAMS + N_PARAMS);
   /** Geodesic acceleration: the Jacobian at the current point. */
-  readonly jp: Float64Array;
+  jp!: Float64Array;
   readonly ga = new Float64Array(N_PARAMS);
   readonly acc = new Float64Array(N_PARAMS);
   /** The damped system in centred coordinates (centre): its matrix, right-hand side, the two
@@ -93,13 +98,36 @@ export class FitWorkspace {
     const block = this.roundBlock;
     return Array.from({ length: count }, (_, i) => block.subarray(i * n, (i + 1) * n));
   }
+  private store = new Float64Array(0);
   constructor(n: number) {
-    this.r = new Float64Array(n);
-    this.jac = new Float64Array(4 * n);
-    this.slope = new Float64Array(n);
-    this.curvature = new Float64Array(n);
-    this.jp = new Float64Array(4 * n);
+    this.resize(n);
   }
+  /** Makes the per-edge arrays views of n entries (r, slope, curvature: n; jac, jp: 4n). */
+  resize(n: number): void {
+    if (this.store.length < 11 * n) this.store = new Float64Array(11 * n);
+    const s = this.store;
+    this.r = s.subarray(0, n);
+    this.jac = s.subarray(n, 5 * n);
+    this.slope = s.subarray(5 * n, 6 * n);
+    this.curvature = s.subarray(6 * n, 7 * n);
+    this.jp = s.subarray(7 * n, 11 * n);
+  }
+}
+
+/** Captures up to this many edges share one kept workspace (about 2 MB of buffers at most). */
+const KEPT_WORKSPACE_EDGES = 10_000;
+let kept: FitWorkspace | null = null;
+
+/**
+ * The workspace for one capture of n edges: the one kept from the last capture when n is at most
+ * KEPT_WORKSPACE_EDGES (so that a loop of analyses allocates its buffers once), else a new one.
+ * The analysis is synchronous and never holds two captures' workspaces at once.
+ */
+export function captureWorkspace(n: number): FitWorkspace {
+  if (n > KEPT_WORKSPACE_EDGES) return new FitWorkspace(n);
+  if (kept) kept.resize(n);
+  else kept = new FitWorkspace(n);
+  return kept;
 }
 
 /** How one fit runs (fitEdgeModel), besides its edges, start, weights and workspace. */

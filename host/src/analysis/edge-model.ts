@@ -161,6 +161,28 @@ export function evaluateEdges(
 }
 
 /**
+ * Slope and curvature at p (as evaluateEdges gives them) of the edges WITHOUT a half-cycle index,
+ * which evaluateEdges skips: neither needs the index, and the residual variance of such an edge
+ * (noise-model.ts updateVariances), which decides duplicates when it is indexed again, then rests
+ * on its own slope at the model rather than on whatever the output arrays held. `view` (n
+ * entries) is scratch for the indices; returns how many edges were evaluated.
+ */
+export function evaluateUnindexed(
+  p: ArrayLike<number>, e: EdgeSet, vh_v: number, vl_v: number, view: Float64Array,
+  out: { slope: Float64Array; curvature: Float64Array },
+): number {
+  let count = 0;
+  for (let k = 0; k < e.n; k++) {
+    const none = e.m[k] !== e.m[k];
+    // Any index serves: it enters the residual only, which is not asked for.
+    view[k] = none ? 0 : NaN;
+    if (none) count++;
+  }
+  if (count > 0) evaluateEdges(p, { ...e, m: view }, vh_v, vl_v, null, null, out);
+  return count;
+}
+
+/**
  * Picks each edge's residual form at p: the phase form where the model ring crosses the
  * threshold cleanly (|u| < 0.98 and g_t > 0.3 wd), the level form where it grazes it. Sets the
  * phase-form scales S_k = A_k sqrt(1 - u_k^2) (the slope per unit phase).

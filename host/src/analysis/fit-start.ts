@@ -31,7 +31,7 @@ export function rankStarts(
   // levels, so the forms' grazing limit (edge-model.ts) is the same as on the whole set.
   const sub = subsetEdges(e, subset);
   const nSub = sub.n;
-  const scratch = new Float64Array(5 * nSub);
+  const scratch = new Float64Array(9 * nSub);
   const startVar_s2 = Math.max(candidates[0].ms_residual_s2, tickVar_s2);
   const out: (RankedStart & { normal: Float64Array })[] = [];
   const near = (p: Float64Array) => out.findIndex((o) => samePoint(p, o.p, o.normal, nSub / Math.max(o.chi2, 1)));
@@ -85,7 +85,8 @@ function subsetEdges(e: EdgeSet, mask: Float64Array): EdgeSet {
  * Robust -2 ln likelihood of the subset's edge times at a short fit's end (ws.r, ws.slope and
  * ws.curvature hold the model there), as a full fit is scored (noise-model.ts
  * negLogLikelihood), with the two noise components estimated from these
- * residuals (noise-model.ts; from the clean crossings when there are 12 or more).
+ * residuals (noise-model.ts; from the clean crossings when there are 12 or more). `scratch`:
+ * 9 n entries.
  */
 function subsetNll(e: EdgeSet, ws: FitWorkspace, tickVar_s2: number, startVar_s2: number, wd: number, scratch: Float64Array): number {
   const n = e.n;
@@ -94,6 +95,8 @@ function subsetNll(e: EdgeSet, ws: FitWorkspace, tickVar_s2: number, startVar_s2
   const lev = scratch.subarray(2 * n, 3 * n).fill(0);
   const clean = scratch.subarray(3 * n, 4 * n);
   const all = scratch.subarray(4 * n, 5 * n).fill(1);
+  // The noise estimate's own scratch (noise-model.ts), so that each start allocates nothing.
+  const work = [5, 6, 7, 8].map((i) => scratch.subarray(i * n, (i + 1) * n));
   let nClean = 0;
   for (let k = 0; k < n; k++) {
     clean[k] = e.form[k] === 1 ? 1 : 0;
@@ -102,7 +105,7 @@ function subsetNll(e: EdgeSet, ws: FitWorkspace, tickVar_s2: number, startVar_s2
   const r = ws.r.subarray(0, n);
   const slope = ws.slope.subarray(0, n);
   const curv = ws.curvature.subarray(0, n);
-  const noise = estimateNoise({ r, slope, curvature: curv, timingVar_s2: vt, leverage: lev, mask: nClean >= 12 ? clean : all, tickVar_s2 }, null);
+  const noise = estimateNoise({ r, slope, curvature: curv, timingVar_s2: vt, leverage: lev, mask: nClean >= 12 ? clean : all, tickVar_s2 }, null, work);
   updateVariances({ tickVar_s2, noise, slope, curvature: curv, wd, assigned: all, used: null, timingVar_s2: vt, variance: v, r: null });
   return negLogLikelihood(r, vt, v, e, all);
 }

@@ -64,8 +64,10 @@ export interface VarianceChange {
  * Sets every edge's timing variance and residual variance Var(e_k) (V^2) from a new noise
  * estimate, in one pass. Edges with assigned[k] > 0 get the full timing variance and have their
  * residual r[k] moved to the new second-order correction (-curvature var_t / 2, edge-model.ts);
- * the others (no current slope) get the slope-free part, so that an edge indexed later starts
- * from a finite value. The same pass standardises the residuals when asked (u.z).
+ * the others (no index, no residual) get the slope-free timing variance, and a residual variance
+ * from the slope and curvature the caller gives them (edge-model.ts evaluateUnindexed), so that
+ * an edge indexed later starts from a finite value of its own. The same pass standardises the
+ * residuals when asked (u.z).
  */
 export function updateVariances(u: VarianceUpdate): VarianceChange {
   const { slope, curvature, assigned, used, timingVar_s2: varT, variance, r } = u;

@@ -35,13 +35,14 @@ export function appliedCalibration(profile: CalibrationProfile, source: string):
   const tanks: AppliedCalibration["tanks"] = new Array(n).fill(undefined);
   for (const t of profile.tanks) {
     const drift = TIMEBASE_BOUND_METHODS.has(t.method) ? { timebase_u_ppm: CRYSTAL_DRIFT_PPM / Math.sqrt(3) } : {};
-    tanks[t.index] = { ...tankCapacitanceNow(t, ppm), ...drift };
+    tanks[t.index] = { ...tankCapacitanceNow(t, ppm), ...drift, fixture_included: t.fixture_included !== false };
   }
   return {
     tanks,
     ...(profile.thresholds ? { thresholds_v: [profile.thresholds.thresholds_v[0], profile.thresholds.thresholds_v[1]] as [number, number] } : {}),
     ...(profile.timebase ? { timebase_ppm: ppm, timebase_u_ppm: profile.timebase.u_ppm } : {}),
     ...(profile.leads ? { leads: { l_h: profile.leads.l_h, u_h: profile.leads.u_h } } : {}),
+    ...(profile.fixture ? { fixture: { c_f: profile.fixture.c_f, u_f: profile.fixture.u_f } } : {}),
     ...(profile.skew ? { comparator_skew: { skew_s: profile.skew.skew_s, u_s: profile.skew.u_skew_s } } : {}),
     source,
   };

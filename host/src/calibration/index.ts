@@ -3,7 +3,8 @@
 
 export { CalibrationError, CALIBRATION_CODES } from "./errors.ts";
 export { PROFILE_FORMAT, PROFILE_VERSION, CALIBRATION_METHODS, emptyProfile, validateProfile } from "./profile-schema.ts";
-export type { CalibrationProfile, CalibrationMethod, TankEntry, ThresholdEntry, TimebaseEntry, LeadEntry, Provenance } from "./profile-schema.ts";
+export type { CalibrationProfile, CalibrationMethod, TankEntry, ThresholdEntry, TimebaseEntry, LeadEntry, FixtureEntry, SkewEntry, Provenance } from "./profile-schema.ts";
+export { MAX_FIXTURE_F, MAX_LEAD_H } from "./profile-schema.ts";
 export type { AppliedCalibration } from "./applied.ts";
 export { configDir, profilePaths, loadProfile, saveProfile, readProfileFile, restorePreviousProfile, storeFor, completePendingRestore } from "./profile-store.ts";
 export type { StoreOptions } from "./profile-store.ts";
@@ -34,7 +35,9 @@ export { deviceCalibration } from "./device-calibration.ts";
 export type { DeviceCalibration } from "./device-calibration.ts";
 export { measureLeadInductance } from "./nulling.ts";
 export type { LeadNullingOptions, LeadNullingResult } from "./nulling.ts";
-export { withLeadNulling } from "./nulling-reading.ts";
+export { withLeadNulling, withFixtureCapacitance } from "./nulling-reading.ts";
+export { measureFixtureCapacitance, fixtureFromRings, fixtureTanks } from "./open-nulling.ts";
+export type { FixtureNullingOptions, FixtureNullingResult, FixtureFromRings, RingPair, CoilPlace } from "./open-nulling.ts";
 export { calibrationChanges, describeChanges, CHANGE_K } from "./calibration-change.ts";
 export type { TankChange } from "./calibration-change.ts";
 export { withTankEntries, tankChanges, referenceThroughLeads, enteredTimebase, measuredTimebase, chooseTimebase, withTimebase, withEntry, ppmText, MAX_TIMEBASE_PPM } from "./profile-update.ts";

@@ -1,6 +1,7 @@
-// A reading with the test leads' inductance (calibrate short, nulling.ts) taken out. Applied
-// wherever a capture is analysed (measure/read-once.ts), so a saved capture re-analyses to the
-// same value. Pure.
+// A reading with the test leads' inductance (calibrate short, nulling.ts) taken out, and with the
+// uncertainty of the fixture capacitance (calibrate open, open-nulling.ts) that the capture's
+// tank value includes. Applied wherever a capture is analysed (measure/read-once.ts), so a saved
+// capture re-analyses to the same value. Pure.
 
 import type { RingAnalysis } from "../analysis/index.ts";
 import { COVERAGE_K } from "../analysis/index.ts";
@@ -27,3 +28,20 @@ export function withLeadNulling(a: RingAnalysis, capture: CaptureV1): RingAnalys
   };
 }
 
+
+/**
+ * The fixture's capacitance (open nulling) is already in the capture's tank_c_f (capture-build.ts
+ * adds it where the tank's value does not hold it), so the value needs nothing more; its
+ * uncertainty is the budget's `fixture` line, u(Cf)/C (L = 1/(w0² C): relative sensitivity −1),
+ * combined into U. A capture without a fixture value is returned as is.
+ */
+export function withFixtureCapacitance(a: RingAnalysis, capture: CaptureV1): RingAnalysis {
+  const u_f = capture.calibration?.fixture_u_f;
+  if (u_f === undefined || capture.calibration?.fixture_capacitance_f === undefined) return a;
+  const rel = u_f / capture.tank_c_f;
+  return {
+    ...a,
+    inductance_u_h: Math.hypot(a.inductance_u_h, COVERAGE_K * rel * a.inductance_h),
+    budget: [...a.budget, { name: "fixture", rel_u: rel }],
+  };
+}

@@ -95,7 +95,7 @@ export async function calibrateWithParallelCapacitor(
   const nominal = client.profile.tanks[tank]?.nominal_f;
   if (nominal === undefined) throw new RangeError(`tank ${tank} does not exist on this tester (0..${client.profile.tanks.length - 1})`);
   checkParallelCapacitor(tank, nominal, cap);
-  const base: AppliedCalibration | undefined = opts.calibration ? { ...opts.calibration, tanks: undefined } : undefined;
+  const base: AppliedCalibration | undefined = opts.calibration ? { ...opts.calibration, tanks: undefined, fixture: undefined } : undefined;
   const n = opts.repeats ?? 3;
   // The capacitor changes the part's ring, so each series learns its own estimate.
   const series = async (prefer?: number) => {
@@ -119,7 +119,7 @@ export async function calibrateWithParallelCapacitor(
   const result = tankFromParallel(tank, nominal, a, b, cap);
   const entry: TankEntry = {
     index: tank, nominal_f: nominal, c_f: result.c_f, u_f: result.u_f, shared_u_rel: 0, timebase_ppm: opts.timebase_ppm ?? 0, drive: a.drive,
-    method: "parallel-capacitor", time: (opts.now ?? (() => new Date()))().toISOString(),
+    fixture_included: true, method: "parallel-capacitor", time: (opts.now ?? (() => new Date()))().toISOString(),
     detail: `added ${formatValue(cap.capacitance_f, "F", 6)} ± ${formatValue(cap.u_capacitance_f, "F", 3)} (k = 1), part Cs ${formatValue(cap.part_self_capacitance_f ?? 0, "F", 3)}; ${formatValue(a.f_hz, "Hz", 7)} -> ${formatValue(b.f_hz, "Hz", 7)}`,
   };
   return { entry, result };

@@ -12,9 +12,10 @@ export const PROFILE_VERSION = 1;
  * The procedures a profile value can come from: a reference inductor, a coil rung without and
  * with a known capacitor, the comparator threshold fit, the comparator skew fit, the crystal
  * timed against the host's clock, a value entered by hand (e.g. a crystal error from a
- * frequency counter), or the ring of the test leads with their clips shorted together.
+ * frequency counter), the ring of the test leads with their clips shorted together, or one coil
+ * rung on two tanks on the board's own terminals and then on the clips (open nulling).
  */
-export const CALIBRATION_METHODS = ["reference-inductor", "parallel-capacitor", "threshold-fit", "skew-fit", "host-clock", "entered", "clips-shorted"] as const;
+export const CALIBRATION_METHODS = ["reference-inductor", "parallel-capacitor", "threshold-fit", "skew-fit", "host-clock", "entered", "clips-shorted", "terminals-vs-clips"] as const;
 export type CalibrationMethod = (typeof CALIBRATION_METHODS)[number];
 
 /** How a value was obtained, and when: kept with each value so a user can judge it later. */
@@ -45,6 +46,12 @@ export interface TankEntry extends Provenance {
    * procedures that choose their own drive prefer this one.
    */
   drive?: number;
+  /**
+   * False when the tank was calibrated on the board's own terminals, without the clips and leads:
+   * readings then add the fixture's capacitance (profile.fixture). True or left out: calibrated
+   * through the clips, so c_f already holds the fixture and nothing is added.
+   */
+  fixture_included?: boolean;
 }
 
 export interface ThresholdEntry extends Provenance {
@@ -72,6 +79,20 @@ export interface LeadEntry extends Provenance {
 /** Largest lead inductance a profile accepts: above it the clips were not shorted (as SHORT_MAX_L_H). */
 export const MAX_LEAD_H = 0.5e-6;
 
+/**
+ * The clips' and leads' own capacitance across the part (open nulling, open-nulling.ts): added to
+ * each tank whose value does not hold it (an uncalibrated tank, or one calibrated on the terminals).
+ */
+export interface FixtureEntry extends Provenance {
+  /** Capacitance of the fixture across the part, farads (a small negative value is a null within its u). */
+  c_f: number;
+  /** Standard uncertainty of c_f. */
+  u_f: number;
+}
+
+/** Largest fixture capacitance a profile accepts: beyond it a part or a capacitor was left on the clips. */
+export const MAX_FIXTURE_F = 500e-12;
+
 export interface SkewEntry extends Provenance {
   /** The comparator's rising-edge propagation delay minus its falling-edge delay, seconds. */
   skew_s: number;
@@ -90,6 +111,7 @@ export interface CalibrationProfile {
   timebase?: TimebaseEntry;
   leads?: LeadEntry;
   skew?: SkewEntry;
+  fixture?: FixtureEntry;
 }
 
 export function emptyProfile(device_id: string, now: Date): CalibrationProfile {
@@ -134,6 +156,13 @@ function leadEntry(o: Obj): LeadEntry {
   return e;
 }
 
+function fixtureEntry(o: Obj): FixtureEntry {
+  const e = { ...o, detail: o.detail ?? "" } as unknown as FixtureEntry;
+  if (!(Math.abs(e.c_f) <= MAX_FIXTURE_F)) bad("fixture.c_f", `${e.c_f} F is more than clips and leads hold (at most ${MAX_FIXTURE_F} F)`);
+  if (e.u_f > Math.max(0.5 * Math.abs(e.c_f), 1e-12)) bad("fixture.u_f", `${e.u_f} F is over half of c_f: not a calibration`);
+  return e;
+}
+
 function skewEntry(o: Obj): SkewEntry {
   const e = { ...o, detail: o.detail ?? "" } as unknown as SkewEntry;
   // A comparator whose rise and fall delays differ by a microsecond is not a comparator: a mix-up
@@ -168,5 +197,6 @@ export function validateProfile(raw: unknown): CalibrationProfile {
   if (o.timebase !== undefined) p.timebase = timebaseEntry(o.timebase as Obj);
   if (o.leads !== undefined) p.leads = leadEntry(o.leads as Obj);
   if (o.skew !== undefined) p.skew = skewEntry(o.skew as Obj);
+  if (o.fixture !== undefined) p.fixture = fixtureEntry(o.fixture as Obj);
   return p;
 }

@@ -9,7 +9,7 @@ import type { CalibrationProfile, Provenance } from "./profile-schema.ts";
 import { ppmText } from "./profile-update.ts";
 
 export interface ProfileTerm {
-  /** `tank 0` … `tank N`, `thresholds`, `timebase`, `leads`, `skew`. */
+  /** `tank 0` … `tank N`, `thresholds`, `timebase`, `leads`, `fixture`, `skew`. */
   term: string;
   /** The value in force (a tank as applied with today's timebase), in `unit`. */
   value: number;
@@ -27,11 +27,11 @@ export interface ProfileTerm {
 }
 
 /** Terms a profile can hold besides its tanks, in the order they are listed. */
-export const PROFILE_TERM_NAMES = ["thresholds", "timebase", "leads", "skew"] as const;
+export const PROFILE_TERM_NAMES = ["thresholds", "timebase", "leads", "fixture", "skew"] as const;
 
 const measured = (v: number, u: number, unit: string) => `${formatMeasured(v, COVERAGE_K * u, unit)} (k = ${COVERAGE_K})`;
 
-/** The profile's terms, tanks first (by index), then thresholds, timebase, leads and skew as stored. */
+/** The profile's terms, tanks first (by index), then thresholds, timebase, leads, fixture and skew as stored. */
 export function profileTerms(profile: CalibrationProfile): ProfileTerm[] {
   const ppm = profile.timebase?.ppm ?? 0;
   const out: ProfileTerm[] = [];
@@ -41,7 +41,9 @@ export function profileTerms(profile: CalibrationProfile): ProfileTerm[] {
     out.push({
       term: `tank ${t.index}`, value: now.c_f, u: now.u_f, unit: "F",
       text: `${measured(now.c_f, now.u_f, "F")}, ${formatPercentSigned(now.c_f / t.nominal_f - 1)} from nominal ${formatValue(t.nominal_f, "F", 4)}`,
-      role: "the tank's effective capacitance across the part", ...prov(t),
+      role: t.fixture_included === false
+        ? "the tank's effective capacitance on the board's terminals; readings add the fixture"
+        : "the tank's effective capacitance across the part, clips and leads included", ...prov(t),
     });
   }
   const th = profile.thresholds;
@@ -57,6 +59,15 @@ export function profileTerms(profile: CalibrationProfile): ProfileTerm[] {
   if (tb) out.push({ term: "timebase", value: tb.ppm, u: tb.u_ppm, unit: "ppm", text: ppmText(tb.ppm, tb.u_ppm), role: "the crystal's error, taken out of every frequency", ...prov(tb) });
   const ld = profile.leads;
   if (ld) out.push({ term: "leads", value: ld.l_h, u: ld.u_h, unit: "H", text: measured(ld.l_h, ld.u_h, "H"), role: "the leads' series inductance, subtracted from every reading", ...prov(ld) });
+  const fx = profile.fixture;
+  if (fx) {
+    const into = profile.tanks.filter((t) => t.fixture_included === false).map((t) => t.index);
+    out.push({
+      term: "fixture", value: fx.c_f, u: fx.u_f, unit: "F", text: measured(fx.c_f, fx.u_f, "F"),
+      role: `the clips' and leads' capacitance across the part, added to every uncalibrated tank${into.length ? ` and to tank${into.length > 1 ? "s" : ""} ${into.join(", ")} (calibrated on the terminals)` : ""}; tanks calibrated through the clips hold it already`,
+      ...prov(fx),
+    });
+  }
   const sk = profile.skew;
   if (sk) out.push({ term: "skew", value: sk.skew_s, u: sk.u_skew_s, unit: "s", text: measured(sk.skew_s, sk.u_skew_s, "s"), role: "the comparator's rise minus fall delay, taken out of the rising edges", ...prov(sk) });
   return out;

@@ -7,7 +7,7 @@ import { formatWithUncertainty } from "../format/si.ts";
 import { formatValue } from "../values/format-value.ts";
 import { calibrationChanges, type TankChange } from "./calibration-change.ts";
 import { CalibrationError } from "./errors.ts";
-import type { CalibrationProfile, LeadEntry, SkewEntry, TankEntry, ThresholdEntry, TimebaseEntry } from "./profile-schema.ts";
+import type { CalibrationProfile, FixtureEntry, LeadEntry, SkewEntry, TankEntry, ThresholdEntry, TimebaseEntry } from "./profile-schema.ts";
 import type { ReferenceInductor } from "./reference-inductor.ts";
 import type { TimebaseResult } from "./timebase.ts";
 
@@ -21,17 +21,24 @@ export function withTankEntries(profile: CalibrationProfile, entries: TankEntry[
   return { ...profile, tanks, updated: now.toISOString() };
 }
 
-/** Each new tank entry against what it replaces (or its nominal value): the change check's input. */
+/**
+ * Each new tank entry against what it replaces (or its nominal value): the change check's input.
+ * Like is compared with like: a tank calibrated on the terminals is taken with the profile's
+ * fixture added, as readings apply it.
+ */
 export function tankChanges(profile: CalibrationProfile, entries: TankEntry[]): TankChange[] {
-  return calibrationChanges(entries, profile.tanks, profile.timebase?.ppm ?? 0);
+  const fx = profile.fixture?.c_f ?? 0;
+  const asApplied = (e: TankEntry): TankEntry => (e.fixture_included === false && fx !== 0 ? { ...e, c_f: e.c_f + fx } : e);
+  return calibrationChanges(entries.map(asApplied), profile.tanks.map(asApplied), profile.timebase?.ppm ?? 0);
 }
 
 /**
  * The reference as the tank sees it: in series with the leads nulled in this profile (their
  * inductance and its uncertainty added), with a label that says so.
  */
-export function referenceThroughLeads(ref: ReferenceInductor, profile: CalibrationProfile): ReferenceInductor {
-  if (!profile.leads) return ref;
+export function referenceThroughLeads(ref: ReferenceInductor, profile: CalibrationProfile, on_terminals = false): ReferenceInductor {
+  // On the board's own terminals the reference rings without the leads.
+  if (!profile.leads || on_terminals) return ref;
   return {
     ...ref,
     inductance_h: ref.inductance_h + profile.leads.l_h,
@@ -92,10 +99,11 @@ export function withTimebase(profile: CalibrationProfile, entry: TimebaseEntry, 
   return { ...profile, timebase: entry, updated: now.toISOString() };
 }
 
-/** The profile with another threshold, skew or lead entry. */
+/** The profile with another threshold, skew, lead or fixture entry. */
 export function withEntry(profile: CalibrationProfile, key: "thresholds", entry: ThresholdEntry, now?: Date): CalibrationProfile;
 export function withEntry(profile: CalibrationProfile, key: "skew", entry: SkewEntry, now?: Date): CalibrationProfile;
 export function withEntry(profile: CalibrationProfile, key: "leads", entry: LeadEntry, now?: Date): CalibrationProfile;
-export function withEntry(profile: CalibrationProfile, key: "thresholds" | "skew" | "leads", entry: ThresholdEntry | SkewEntry | LeadEntry, now: Date = new Date()): CalibrationProfile {
+export function withEntry(profile: CalibrationProfile, key: "fixture", entry: FixtureEntry, now?: Date): CalibrationProfile;
+export function withEntry(profile: CalibrationProfile, key: "thresholds" | "skew" | "leads" | "fixture", entry: ThresholdEntry | SkewEntry | LeadEntry | FixtureEntry, now: Date = new Date()): CalibrationProfile {
   return { ...profile, [key]: entry, updated: now.toISOString() };
 }

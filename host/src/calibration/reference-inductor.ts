@@ -132,6 +132,12 @@ export interface ReferenceOptions {
   /** Called with each pulse's prediction before it is made (the CLI's caution for a high ring). */
   onBeforePulse?: (p: SettingPrediction) => void;
   now?: () => Date;
+  /**
+   * True when the reference sits on the board's own terminals, without the clips and leads: the
+   * tanks' values then lack the fixture, which readings add from the profile's fixture entry
+   * (entries record `fixture_included: false`). Default: the reference is on the clips.
+   */
+  on_terminals?: boolean;
 }
 
 export interface ReferenceOutcome {
@@ -146,7 +152,8 @@ export async function calibrateWithReference(client: DeviceClient, ref: Referenc
   const profile = client.profile;
   const wanted = opts.tanks ?? profile.tanks.map((t) => t.index);
   const repeats = opts.repeats ?? 3;
-  const base: AppliedCalibration | undefined = opts.calibration ? { ...opts.calibration, tanks: undefined } : undefined;
+  // Tank values are what this procedure measures: none is applied, nor a fixture added to them.
+  const base: AppliedCalibration | undefined = opts.calibration ? { ...opts.calibration, tanks: undefined, fixture: undefined } : undefined;
   const out: ReferenceOutcome = { entries: [], results: [], skipped: [] };
   // One auto-ranged reading first: its drive is the natural first choice on every tank.
   const auto = await measurePart(client, { calibration: base, onProgress: opts.onProgress, onBeforePulse: opts.onBeforePulse });
@@ -179,7 +186,7 @@ export async function calibrateWithReference(client: DeviceClient, ref: Referenc
     out.results.push(res);
     out.entries.push({
       index: tank, nominal_f: nominal, c_f: res.c_f, u_f: res.u_f, shared_u_rel: res.shared_u_rel, shared_offset_u_f: res.shared_offset_u_f,
-      timebase_ppm: opts.timebase_ppm ?? 0, drive: res.drive, method: "reference-inductor", time: (opts.now ?? (() => new Date()))().toISOString(),
+      timebase_ppm: opts.timebase_ppm ?? 0, drive: res.drive, fixture_included: opts.on_terminals !== true, method: "reference-inductor", time: (opts.now ?? (() => new Date()))().toISOString(),
       detail: `reference ${ref.label ?? ""} ${formatValue(ref.inductance_h, "H", 6)} ± ${formatValue(ref.u_inductance_h, "H", 3)} (k = 1)`.replace(/\s+/g, " ") +
         `, Cs ${formatValue(ref.self_capacitance_f ?? 0, "F", 3)}; ${res.readings} rings at ${formatValue(res.f0_hz, "Hz", 7)} on drive ${res.drive}`,
     });

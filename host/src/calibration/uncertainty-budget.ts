@@ -7,9 +7,9 @@ import type { ReadingBudgetLine } from "../codes.ts";
 import type { RingAnalysis } from "../analysis/index.ts";
 import type { TwoCapacitanceResult } from "./two-capacitance.ts";
 
-export const BUDGET_GROUPS = ["fit", "capacitance", "timebase", "self-capacitance", "leads"] as const;
-/** The groups of the two-tank model (its leads are not nulled: docs/calibration.md, Limits). */
-const TWO_TANK_GROUPS = ["fit", "capacitance", "timebase", "self-capacitance"] as const;
+export const BUDGET_GROUPS = ["fit", "capacitance", "timebase", "self-capacitance", "leads", "fixture"] as const;
+/** The groups of the two-tank model; `leads` only once the leads are nulled (calibrate short). */
+const TWO_TANK_GROUPS = ["fit", "capacitance", "timebase", "self-capacitance", "leads"] as const;
 export type BudgetGroup = (typeof BUDGET_GROUPS)[number];
 
 export interface BudgetLine {
@@ -65,7 +65,9 @@ export function singleTankBudget(
   ];
   const leads = from("leads");
   if (leads > 0) lines.push({ group: "leads", rel_u: leads, note: "test leads' inductance subtracted (calibrate short)" });
-  const strayNote = stray > 0 ? "; fixture and switch node: tank not calibrated" : "";
+  const fixture = a.budget.find((b) => b.name === "fixture");
+  if (fixture) lines.push({ group: "fixture", rel_u: fixture.rel_u, note: "fixture capacitance added to the tank (calibrate open)" });
+  const strayNote = stray > 0 ? (fixture ? "; switch node and board strays: tank not calibrated" : "; fixture and switch node: tank not calibrated") : "";
   if (cs) {
     // Corrected value L = L_app C / (C + Cs): relative sensitivity to Cs is -1/(C + Cs).
     const l = (a.inductance_h * tank_c_f) / (tank_c_f + cs.cs_f);
@@ -74,7 +76,7 @@ export function singleTankBudget(
   }
   lines.push({
     group: "self-capacitance", rel_u: Math.hypot(from("self-capacitance"), stray),
-    note: `part's self-capacitance not removed (use --self-cap for the corrected value)${strayNote}`,
+    note: `part's self-capacitance not removed (a two-tank reading gives the corrected value)${strayNote}`,
   });
   return combineBudget("apparent", a.inductance_h, lines);
 }
@@ -86,8 +88,10 @@ export function twoTankBudget(r: TwoCapacitanceResult): UncertaintyBudget {
     capacitance: "larger tank's capacitance and what both tanks share",
     timebase: "timebase, common to both rings",
     "self-capacitance": "ring on the smaller tank and its capacitance (they fix Cs)",
+    leads: "the test leads' inductance subtracted (calibrate short)",
   };
-  const lines = TWO_TANK_GROUPS.map((group) => ({
+  const groups = TWO_TANK_GROUPS.filter((g) => g !== "leads" || r.inductance_groups.some((x) => x.group === "leads"));
+  const lines = groups.map((group) => ({
     group,
     rel_u: (r.inductance_groups.find((g) => g.group === group)?.u_h ?? 0) / r.inductance_h,
     note: notes[group],

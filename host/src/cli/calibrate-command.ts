@@ -8,7 +8,7 @@ import {
   emptyProfile, loadProfile, profilePaths, restorePreviousProfile, saveProfile, testerTickCounter, hostClock, measureTimebase, MAX_READ_SPACING_S,
 } from "../calibration/index.ts";
 import { storeFor, type StoreOptions } from "../calibration/index.ts";
-import { formatSi } from "../format/si.ts";
+import { formatWithUncertainty } from "../format/si.ts";
 import type { OpenedTester } from "../open-tester.ts";
 import { openTester } from "../open-tester.ts";
 import { intOption, parse, requiredValue, testerTarget } from "./args.ts";
@@ -18,11 +18,12 @@ import { resolvePeakLimit } from "../ranging/safety.ts";
 import { PulseCaution } from "./caution.ts";
 import type { SettingPrediction } from "../ranging/predict.ts";
 import { measureLeadInductance } from "../calibration/nulling.ts";
+import { measureFixtureCapacitance } from "../calibration/open-nulling.ts";
 import { describeChanges } from "../calibration/calibration-change.ts";
 import type { TankEntry } from "../calibration/profile-schema.ts";
 import { SHORTED_CLIPS } from "../sim/scenario.ts";
 import {
-  ReferenceMismatchError, chooseTimebase, enteredTimebase, measuredTimebase, ppmText, profileTerms, referenceThroughLeads, tankChanges,
+  PROFILE_TERM_NAMES, ReferenceMismatchError, checkParallelCapacitor, chooseTimebase, enteredTimebase, measuredTimebase, ppmText, profileTerms, referenceThroughLeads, tankChanges,
   withEntry, withTankEntries, withTimebase,
 } from "../calibration/index.ts";
 import type { TimebaseEntry } from "../calibration/index.ts";
@@ -56,7 +57,7 @@ export async function runCalibrate(args: string[]): Promise<number> {
     case "restore": return withTester(rest, {}, async (t, store) => restore(t, store));
     case "reference": return withTester(rest, {
       "ref-h": { type: "string" }, "ref-u-h": { type: "string" }, "ref-cs-f": { type: "string" }, "ref-u-cs-f": { type: "string" },
-      tanks: { type: "string" }, repeats: { type: "string" }, "ref-label": { type: "string" }, "accept-shift": { type: "boolean" },
+      tanks: { type: "string" }, repeats: { type: "string" }, "ref-label": { type: "string" }, "accept-shift": { type: "boolean" }, "on-terminals": { type: "boolean" },
     }, reference, true);
     case "parallel": return withTester(rest, {
       tank: { type: "string" }, "cap-f": { type: "string" }, "cap-u-f": { type: "string" }, "part-cs-f": { type: "string" }, "part-u-cs-f": { type: "string" }, repeats: { type: "string" }, "accept-shift": { type: "boolean" },
@@ -65,8 +66,9 @@ export async function runCalibrate(args: string[]): Promise<number> {
     case "skew": return withTester(rest, { captures: { type: "string" }, tanks: { type: "string" } }, skew, true);
     case "timebase": return withTester(rest, { ppm: { type: "string" }, "u-ppm": { type: "string" }, seconds: { type: "string" }, "accept-shift": { type: "boolean" } }, timebase);
     case "short": return withTester(rest, { repeats: { type: "string" } }, short, true);
+    case "open": return withTester(rest, { repeats: { type: "string" }, tanks: { type: "string" } }, open, true);
     default:
-      throw new CliUsageError(`calibrate needs one of: show, reference, parallel, thresholds, skew, timebase, short, restore${sub ? ` (got "${sub}")` : ""}`);
+      throw new CliUsageError(`calibrate needs one of: show, reference, parallel, thresholds, skew, timebase, short, open, restore${sub ? ` (got "${sub}")` : ""}`);
   }
 }
 
@@ -136,7 +138,7 @@ function show(t: OpenedTester, store: StoreOptions, json: boolean): Promise<numb
     for (const tank of t.client.profile.tanks) {
       const term = terms.find((x) => x.term === `tank ${tank.index}`);
       if (term) {
-        row(term.term, term.text);
+        row(term.term, `${term.text}; ${term.role}`);
         provenance(term);
       } else row(`tank ${tank.index}`, `nominal ${formatValue(tank.nominal_f, "F", 3)} (not calibrated)`);
     }
@@ -145,8 +147,9 @@ function show(t: OpenedTester, store: StoreOptions, json: boolean): Promise<numb
       timebase: "nominal (cancels in tanks calibrated against a reference inductor; henrytick calibrate timebase)",
       leads: "not nulled (henrytick calibrate short)",
       skew: "not calibrated: equal rise and fall delays assumed (henrytick calibrate skew)",
+      fixture: "not nulled: held by calibrated tanks, an allowance on uncalibrated ones (henrytick calibrate open)",
     };
-    for (const name of ["thresholds", "timebase", "leads", "skew"]) {
+    for (const name of PROFILE_TERM_NAMES) {
       const term = terms.find((x) => x.term === name);
       if (term) {
         row(name, `${term.text}; ${term.role}`);
@@ -179,10 +182,15 @@ async function reference(t: OpenedTester, store: StoreOptions, v: Values, cautio
   const profile = currentProfile(t, store);
   const applied = appliedCalibration(profile, "calibration in progress");
   // The reference rings in series with the nulled leads: the tank sees both.
-  const ref = referenceThroughLeads(entered, profile);
+  const onTerminals = v["on-terminals"] === true;
+  const ref = referenceThroughLeads(entered, profile, onTerminals);
+  if (onTerminals && t.sim) {
+    t.sim.onTerminals = true;
+    progress("(simulated) the reference on the board's own terminals, clips and leads unplugged");
+  }
   let out;
   try {
-    out = await calibrateWithReference(t.client, ref, { tanks, repeats, calibration: applied, timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress, onBeforePulse });
+    out = await calibrateWithReference(t.client, ref, { tanks, repeats, calibration: applied, timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress, onBeforePulse, on_terminals: onTerminals });
   } catch (e) {
     // The library names the likely value; the command names the option to give it with.
     if (e instanceof ReferenceMismatchError) {
@@ -210,6 +218,7 @@ async function parallel(t: OpenedTester, store: StoreOptions, v: Values, caution
     u_part_self_capacitance_f: quantity(v["part-u-cs-f"] as string | undefined, "part-u-cs-f", "F", { optional: true }),
   };
   const repeats = intOption(v.repeats, "repeats", 1, 50);
+  checkParallelCapacitor(tank, t.client.profile.tanks[tank].nominal_f, cap);
   const onBeforePulse = caution();
   const profile = currentProfile(t, store);
   const sim = t.sim;
@@ -217,9 +226,9 @@ async function parallel(t: OpenedTester, store: StoreOptions, v: Values, caution
     ? async () => {
       // The simulated bench: the capacitor across the clips adds to what is in parallel with the part.
       if (sim.part) sim.part = { ...sim.part, self_capacitance_f: sim.part.self_capacitance_f + cap.capacitance_f };
-      progress(`(simulated) ${formatSi(cap.capacitance_f, "F", 3)} clipped across the part`);
+      progress(`(simulated) ${formatValue(cap.capacitance_f, "F", 3)} clipped across the part`);
     }
-    : () => waitForEnter(`clip the ${formatSi(cap.capacitance_f, "F", 3)} capacitor across the part, then press Enter`);
+    : () => waitForEnter(`clip the ${formatValue(cap.capacitance_f, "F", 3)} capacitor across the part, then press Enter`);
   const { entry, result } = await calibrateWithParallelCapacitor(t.client, tank, cap, connect, {
     repeats, calibration: appliedCalibration(profile, "calibration in progress"),
     timebase_ppm: profile.timebase?.ppm ?? 0, onProgress: progress, onBeforePulse,
@@ -238,7 +247,7 @@ async function thresholds(t: OpenedTester, store: StoreOptions, v: Values, cauti
   const { entry, fit } = await calibrateThresholds(t.client, {
     captures, calibration: appliedCalibration(profile, "calibration in progress"), onProgress: progress,
   });
-  say(`   thresholds ${formatValue(fit.thresholds_v[0], "V", 4)} / ${formatValue(fit.thresholds_v[1], "V", 4)}: ratio ${formatMeasured(fit.ratio, 2 * fit.u_ratio, "")}, ` +
+  say(`   thresholds ${formatValue(fit.thresholds_v[0], "V", 4)} / ${formatValue(fit.thresholds_v[1], "V", 4)}: ratio ${plainMeasured(fit.ratio, 2 * fit.u_ratio)}, ` +
     `comparator offset ${formatMeasured(fit.offset_v, 2 * fit.u_offset_v, "V")} (k = 2)\n`);
   commit(withEntry(profile, "thresholds", entry), store, entry);
   return 0;
@@ -325,6 +334,34 @@ async function short(t: OpenedTester, store: StoreOptions, v: Values, caution: C
 }
 
 /**
+ * Open nulling: one coil rung on two tanks on the board's own terminals, then on the clips; the
+ * difference is the fixture's capacitance, stored and added to every tank whose value lacks it.
+ */
+async function open(t: OpenedTester, store: StoreOptions, v: Values, caution: Caution): Promise<number> {
+  const repeats = intOption(v.repeats, "repeats", 1, 50);
+  const tanks = v.tanks === undefined ? undefined : String(v.tanks).split(",").map((x) => intOption(x.trim(), "tanks", 0, t.client.profile.tanks.length - 1)!);
+  if (tanks && tanks.length !== 2) throw new CliUsageError(`--tanks takes two tank indices, e.g. --tanks 0,1 (got ${JSON.stringify(v.tanks)})`);
+  const onBeforePulse = caution();
+  const profile = currentProfile(t, store);
+  const sim = t.sim;
+  const place = sim
+    ? async (where: "terminals" | "clips") => {
+      sim.onTerminals = where === "terminals";
+      progress(where === "terminals" ? "(simulated) the coil on the board's own terminals, clips and leads unplugged" : "(simulated) the same coil on the clips at the end of the leads");
+    }
+    : (where: "terminals" | "clips") => waitForEnter(where === "terminals"
+      ? "put one coil (some 50 µH to 5 mH) on the board's own terminals, with the clips and leads unplugged, then press Enter"
+      : "now put the same coil on the clips at the end of the leads, as parts are measured, then press Enter");
+  const out = await measureFixtureCapacitance(t.client, place, {
+    repeats, tanks: tanks as [number, number] | undefined, calibration: appliedCalibration(profile, "calibration in progress"), onProgress: progress, onBeforePulse,
+  });
+  say(`   fixture: ${formatMeasured(out.c_f, 2 * out.u_f, "F")} (k = 2) across the part, added to every tank whose value does not hold it; ` +
+    `from a ${formatValue(out.coil_h, "H", 4)} coil on tanks ${out.tanks.join(" and ")} (the leads add ${formatValue(out.leads_h, "H", 3)} to it)\n`);
+  commit(withEntry(profile, "fixture", out.entry), store, { fixture: out.entry, tanks: out.tanks, drives: out.drives, coil_h: out.coil_h, leads_h: out.leads_h, terminals: out.terminals, clips: out.clips });
+  return 0;
+}
+
+/**
  * The change check (calibration-change.ts): a tank calibration that moves its tank by more than
  * chance and tolerance explain is accepted only when confirmed (asked on a terminal; elsewhere
  * refused unless --accept-shift is given), so a mistyped reference cannot shift every reading.
@@ -345,6 +382,12 @@ async function confirmChange(entries: TankEntry[], profile: CalibrationProfile, 
     "CALIBRATION_SHIFT",
     `not stored: this calibration moves ${what}, more than chance and the tanks' tolerance explain. The profile is unchanged; ${check}, then calibrate again. If the change is real (a tank or the fixture was changed), run the same command with --accept-shift`,
   );
+}
+
+/** A dimensionless value ± its expanded uncertainty, the digits following the uncertainty. */
+function plainMeasured(v: number, u_expanded: number): string {
+  const f = formatWithUncertainty(v, u_expanded, "");
+  return `${f.value} ± ${f.u}`;
 }
 
 function signedPercent(rel: number): string {

@@ -2,7 +2,7 @@
 // `henrytick calibrate SUB --help`): short, every option, examples that run as shown (a test runs
 // the simulated ones). Imported only when a page is asked for.
 
-import { MEASURE_OPTIONS, WATCH_USAGE } from "./help-text.ts";
+import { FREQ_HELP, MEASURE_OPTIONS, WATCH_USAGE } from "./help-text.ts";
 import { WINDING_RATIO_HELP } from "./safety.ts";
 
 const TESTER = `  --sim [SCENARIO]     the simulated tester with a demo part (henrytick scenarios lists them)
@@ -70,10 +70,13 @@ ${TESTER}
   --max-peak-v V       ring-peak limit (default 30 V or 80 % of the clamp)
 ${WINDING_RATIO_HELP}
   --hazardous-ok       allow a limit above 42.4 V peak (cannot take effect on a clamp below it)
+${FREQ_HELP};
+                       the settings are then listed in the order ranging would try them
   --json               the estimate, the limit with its derivation and every setting as JSON
 
 Examples:
   henrytick advise --sim solenoid-valve-82m
+  henrytick advise --sim drawer-choke-330u --freq 30k
   henrytick advise --sim doorbell-transformer-12v --winding-ratio 19 --json
 `,
   scenarios: `henrytick scenarios — the simulated demo parts
@@ -120,6 +123,7 @@ Usage:
   skew         one coil rung on two tanks → the comparator's rise/fall delay skew
   timebase     the tester's crystal against this computer's clock, or an entered counter reading
   short        the clips shorted to each other → the leads' inductance, subtracted from readings
+  open         one coil on the board's terminals, then on the clips → the fixture's capacitance
   restore      make the previous profile current again
 
   Uncertainties are standard (k = 1); values take SI prefixes (330u, 4n7, 0.5p).
@@ -133,7 +137,7 @@ Examples:
 Usage:
   henrytick calibrate show (--sim | --port PATH) [--json] [--config-dir DIR]
 
-  Every stored term (tanks, thresholds, timebase, leads, skew) with its value, expanded
+  Every stored term (tanks, thresholds, timebase, leads, fixture, skew) with its value, expanded
   uncertainty (k = 2) and where it came from; --json gives each as a row with its standard u.
 
 Examples:
@@ -157,6 +161,8 @@ Options:
   --ref-label TEXT     a name for the reference, kept in the profile
   --accept-shift       store it even if a tank moves beyond chance and tolerance (otherwise asked
                        on a terminal, refused elsewhere: CALIBRATION_SHIFT)
+  --on-terminals       the reference is on the board's own terminals, clips and leads unplugged:
+                       readings then add the fixture's capacitance (calibrate open) to these tanks
   --json               the results as JSON
   --config-dir DIR     where calibration profiles live
 
@@ -220,6 +226,20 @@ Usage:
 
 Examples:
   henrytick calibrate short --sim loop-antenna-on-leads
+`,
+  "calibrate open": `henrytick calibrate open — the fixture's capacitance, from one coil on the terminals and on the clips
+
+Usage:
+  henrytick calibrate open (--sim | --port PATH) [--tanks A,B] [--repeats N (default 3)] [--json]
+
+  Put one coil (some 50 µH to 5 mH) on the board's own terminals with the clips and leads
+  unplugged, press Enter; then the same coil on the clips, as parts are measured, and Enter. It
+  rings on two tanks each time (default: the smallest it rings on and the next); the difference
+  is the fixture's capacitance, stored and added to every tank whose value does not hold it
+  (uncalibrated tanks, and tanks calibrated with reference --on-terminals).
+
+Examples:
+  henrytick calibrate open --sim rf-choke-in-jig
 `,
   "calibrate restore": `henrytick calibrate restore — make the previous profile current again
 

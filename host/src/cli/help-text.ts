@@ -14,6 +14,7 @@ export const CALIBRATE_USAGE = `  henrytick calibrate show (--sim | --port PATH)
   henrytick calibrate timebase … [--seconds N]     time the tester's crystal against this computer's clock (default 60 s)
   henrytick calibrate timebase … --ppm P --u-ppm U   or enter a crystal error measured with a frequency counter
   henrytick calibrate short … [--repeats N]   clips shorted to each other → the leads' inductance, subtracted from readings
+  henrytick calibrate open … [--tanks A,B]    one coil on the terminals, then on the clips → the fixture's capacitance
   henrytick calibrate restore …        make the previous profile current again
     (uncertainties are standard, k = 1; values take SI prefixes: 330u, 4n7, 0.5p;
      --config-dir DIR overrides $HENRYTICK_CONFIG_DIR / $XDG_CONFIG_HOME/henrytick)`;

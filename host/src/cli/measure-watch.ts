@@ -14,6 +14,7 @@ import { assessStability, History, SettingHistory, sparkline, type StabilityResu
 import { SettingHold, type HeldReading } from "../workflows/setting-hold.ts";
 import { intOption, optionValue } from "./args.ts";
 import { csvHeader, csvRow } from "./result-csv.ts";
+import { onCtrlC } from "./interrupt.ts";
 
 /** Options measure accepts for --watch (spread into its parse table). */
 export const WATCH_OPTIONS = {
@@ -46,9 +47,8 @@ export async function runWatch(tester: OpenedTester, values: WatchValues, measur
   // Ranged once, then held: readings on one tank compare (Q and ESR depend on its frequency).
   const hold = measure.drive === undefined ? new SettingHold() : null;
   const stop = new AbortController();
-  // First Ctrl-C: finish after the reading in progress (the summary still prints); second: quit now.
-  const onSigint = () => (stop.signal.aborted ? process.exit(130) : stop.abort());
-  process.on("SIGINT", onSigint);
+  // First Ctrl-C: finish after the reading in progress (status 0, as sort and wind); a second press: quit now.
+  const ctrlC = onCtrlC(() => stop.abort());
   let drawn = 0;
   let n = 0;
   if (values.csv) process.stdout.write(csvHeader(CSV_FRONT));
@@ -97,7 +97,7 @@ export async function runWatch(tester: OpenedTester, values: WatchValues, measur
       if (interval > 0 && !stop.signal.aborted && (count === undefined || n < count)) await pause(interval, stop.signal);
     }
   } finally {
-    process.off("SIGINT", onSigint);
+    ctrlC.dispose();
   }
   return history.values.length > 0 ? 0 : 1;
 }
@@ -147,7 +147,7 @@ function smallBlock(r: ResultJson | null, problem: string, st: StabilityResult, 
   if (!r) return [head, `   ${problem}`, `   trend        ${trend(h)}`];
   return [
     head,
-    `   inductance   ${style.bold(formatMeasured(r.inductance_h, r.inductance_u_h, "H"))}   Q ${r.q.toPrecision(3)}   ESR ${formatSi(r.esr_ohm, "Ω", 3)}`,
+    `   inductance   ${style.bold(formatMeasured(r.inductance_h, r.inductance_u_h, "H"))}   Q ${r.q.toPrecision(3)}   ESR ${formatSi(r.esr_ohm, "Ω", 3)}   at ${formatSi(r.f0_hz, "Hz", 3)}`,
     `   trend        ${trend(h)}   ${rangeText(h)}`,
   ];
 }
@@ -162,7 +162,8 @@ function bigBlock(r: ResultJson | null, problem: string, st: StabilityResult, h:
 
 function oneLine(r: ResultJson | null, problem: string, st: StabilityResult, h: History, n: number): string {
   if (!r) return `#${n}  ${problem}`;
-  return `#${n}  ${formatMeasured(r.inductance_h, r.inductance_u_h, "H")}  Q ${r.q.toPrecision(3)}  ${st.state}  ${trend(h)}`;
+  // Q and ESR belong to the frequency they were read at.
+  return `#${n}  ${formatMeasured(r.inductance_h, r.inductance_u_h, "H")}  Q ${r.q.toPrecision(3)} at ${formatSi(r.f0_hz, "Hz", 3)}  ${st.state}  ${trend(h)}`;
 }
 
 function rangeText(h: History): string {

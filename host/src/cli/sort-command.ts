@@ -5,8 +5,8 @@ import { mkdirSync } from "node:fs";
 import { dirname, resolve } from "node:path";
 import { deviceCalibration, storeFor } from "../calibration/index.ts";
 import { openTester } from "../open-tester.ts";
-import { formatSi } from "../format/si.ts";
-import { formatMeasured, formatValue } from "../values/format-value.ts";
+import { formatSi, formatWithUncertainty } from "../format/si.ts";
+import { formatMeasured, formatValue, formatValueOnly } from "../values/format-value.ts";
 import { parseSeriesName } from "../values/e-series.ts";
 import { toleranceLimits } from "../values/tolerance.ts";
 import { makeBins } from "../workflows/bins.ts";
@@ -18,8 +18,10 @@ import { makeStyle, stdinLines, type Style } from "../workflows/terminal.ts";
 import { intOption, numberOption, optionValue, parse, testerTarget, toleranceOnce, valueOption } from "./args.ts";
 import { MEASURABLE_RANGE } from "../values/range.ts";
 import { CliUsageError } from "./errors.ts";
+import { onCtrlC } from "./interrupt.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
 import { PulseCaution, windingRatioOption } from "./caution.ts";
+import { FREQ_OPTIONS, testFrequencyOption } from "./test-frequency.ts";
 
 export const SORT_HELP = `henrytick sort — sort parts against a tolerance
 
@@ -43,6 +45,8 @@ Options:
   --poll-ms N       pause between readings while watching the clips (default 200, simulated 0)
   --sim-tray LIST   simulated tester: the tray's inductances, e.g. 10u,10.6u,9.4u
   --max-peak-v V    lower the ring-peak limit (default 30 V; 28.8 V on a 36 V clamp)
+  --freq F          working frequency (10k, 100 kHz): ranging takes the tank whose ring is
+                    nearest it; each part's readings stay on the setting of its first
   --winding-ratio N transformers: the other winding has N times the pulsed turns (19 or 230:12);
                     every pulse is kept at the limit / N
   --uncalibrated    ignore the tester's calibration profile (nominal tank values)
@@ -57,6 +61,7 @@ nonconforming only when it lies wholly outside, inconclusive in between.
 Examples:
   henrytick sort --sim --nominal 10u --tol 5%
   henrytick sort --sim --nominal 4u7J --sim-tray 4.7u,5.2u,4.45u --log bench/lot7 --lot 7
+  henrytick sort --sim --nominal 330u --tol 10% --sim-tray 330u,318u,345u --freq 10k
   henrytick sort --port /dev/ttyACM0 --nominal 330u --tol K --bins 300u,330u,360u --series E12
 `;
 
@@ -66,7 +71,7 @@ export async function runSortCommand(args: string[]): Promise<number> {
     nominal: { type: "string" }, tol: { type: "string" }, lot: { type: "string" }, bins: { type: "string" },
     series: { type: "string" }, log: { type: "string" }, trigger: { type: "string" }, count: { type: "string" },
     settle: { type: "string" }, "poll-ms": { type: "string" }, "sim-tray": { type: "string" },
-    "max-peak-v": { type: "string" }, "winding-ratio": { type: "string" }, uncalibrated: { type: "boolean" }, "config-dir": { type: "string" }, json: { type: "boolean" }, csv: { type: "boolean" },
+    "max-peak-v": { type: "string" }, "winding-ratio": { type: "string" }, ...FREQ_OPTIONS, uncalibrated: { type: "boolean" }, "config-dir": { type: "string" }, json: { type: "boolean" }, csv: { type: "boolean" },
   });
   if (values.help) {
     process.stdout.write(SORT_HELP);
@@ -83,6 +88,7 @@ export async function runSortCommand(args: string[]): Promise<number> {
   const pollMs = intOption(values["poll-ms"], "poll-ms", 0, 60_000) ?? (values.sim ? 0 : 200);
   const max_peak_v = numberOption(values["max-peak-v"], "max-peak-v", 0.1, 1000);
   const other_winding_ratio = windingRatioOption(values["winding-ratio"]);
+  const test_frequency_hz = testFrequencyOption(values);
   if (values["sim-tray"] && !values.sim) throw new CliUsageError("--sim-tray needs --sim");
   const session = new SortSession(spec);
 
@@ -95,9 +101,8 @@ export async function runSortCommand(args: string[]): Promise<number> {
   const log = SortLog.open({ csv: `${base}.csv`, jsonl: `${base}.jsonl` });
   const tester = await openTester(target);
   const stop = new AbortController();
-  // First Ctrl-C: finish after the reading in progress (the summary still prints); second: quit now.
-  const onSigint = () => (stop.signal.aborted ? process.exit(130) : stop.abort());
-  process.on("SIGINT", onSigint);
+  // First Ctrl-C: finish after the reading in progress (the summary still prints); a second press: quit now.
+  const ctrlC = onCtrlC(() => stop.abort());
   try {
     // The tester's calibration profile applies as it does for "measure" (smaller U, fewer unsure parts).
     const cal = values.uncalibrated ? null : deviceCalibration(tester.client, storeFor({ configDir: values["config-dir"], simulated: tester.sim !== undefined }));
@@ -120,19 +125,21 @@ export async function runSortCommand(args: string[]): Promise<number> {
       if (e.kind === "part") {
         if (values.csv) process.stdout.write(csvRow(e.record));
         else if (!quiet) process.stdout.write(partLine(e.record, style) + "\n");
+        if (e.test_frequency && !quiet) note(e.test_frequency.note);
       } else if (e.kind === "waiting") note("waiting for a part …");
       else if (e.kind === "settling") note("part detected, reading again to be sure …");
       else if (e.kind === "removed") note("part removed");
       else if (e.kind === "no-part") note("[NO_RING] nothing rings: put a part on the clips and press Enter again");
       else if (e.kind === "unreadable") note(`[${e.code}] ${e.message} — not recorded; take the part off`);
+      else if (e.kind === "setting-changed") note(`setting changed: ${e.message}`);
     };
     await runSort({
       client: tester.client, session, log, trigger, tray, maxParts: count, pollMs,
       lines: trigger === "enter" ? stdinLines("Enter = measure, q = finish: ", stop.signal) : undefined,
-      presence: { settle }, measure: { max_peak_v, other_winding_ratio, onBeforePulse: caution.beforePulse, calibration: cal?.applied }, signal: stop.signal, onEvent,
+      presence: { settle }, measure: { max_peak_v, other_winding_ratio, test_frequency_hz, onBeforePulse: caution.beforePulse, calibration: cal?.applied }, signal: stop.signal, onEvent,
     });
   } finally {
-    process.off("SIGINT", onSigint);
+    ctrlC.dispose();
     log.close();
     await tester.close();
   }
@@ -176,7 +183,14 @@ export function summaryText(session: SortSession, style: Style): string {
     `── ${stats.n} part${stats.n === 1 ? "" : "s"}${lot}: ${style.good(`${tally.conforming} pass`)}, ${style.bad(`${tally.nonconforming} fail`)}, ${style.unsure(`${tally.inconclusive} unsure`)}`,
     `   limits       ${formatValue(limits.lower, "H", 4)} … ${formatValue(limits.upper, "H", 4)} (unsure: within U of a limit)`,
   ];
-  if (stats.n > 0) lines.push(`   mean         ${formatSi(stats.mean, "H", 4)}, range ${formatSi(stats.min, "H", 4)} … ${formatSi(stats.max, "H", 4)}`);
+  if (stats.n > 0) {
+    // Digits as the readings' uncertainty supports: the largest U of the parts (the mean is no
+    // better known than the tester's calibration, which every part shares).
+    const u = Math.max(...session.parts.map((p) => p.inductance_u_h));
+    const atU = (v: number) => formatValueOnly(v, u, "H");
+    const U = formatWithUncertainty(stats.mean, u, "H");
+    lines.push(`   mean         ${atU(stats.mean)}, range ${atU(stats.min)} … ${atU(stats.max)} (parts read with U up to ${U.u} ${U.unit})`);
+  }
   if (stats.n >= 2) lines.push(`   spread       s = ${formatSi(stats.sd, "H", 3)} (${((100 * stats.sd) / stats.mean).toFixed(2)} %)`);
   if (Number.isFinite(stats.cp)) {
     lines.push(`   capability   Cp ${stats.cp.toFixed(2)}, Cpk ${stats.cpk.toFixed(2)} from ${stats.n} parts (spread includes measurement noise${stats.n < 30 ? "; rough below 30 parts" : ""})`);

@@ -2,7 +2,7 @@
 // reach the target, from L ∝ N² refined by a fit over the readings so far.
 
 import { measurePart } from "../measure/measure-part.ts";
-import { buildResult } from "../measure/result.ts";
+import { readingResult } from "../measure/result.ts";
 import { deviceCalibration, storeFor } from "../calibration/index.ts";
 import { openTester } from "../open-tester.ts";
 import { formatMeasured, formatValue } from "../values/format-value.ts";
@@ -12,7 +12,9 @@ import { makeStyle, stdinLines, type Style } from "../workflows/terminal.ts";
 import { windingAdvice, type WindingAdvice, type WindingReading } from "../workflows/winding.ts";
 import { numberOption, optionValue, parse, testerTarget, toleranceOnce, valueOption } from "./args.ts";
 import { MEASURABLE_RANGE } from "../values/range.ts";
+import { FREQ_OPTIONS, testFrequencyOption } from "./test-frequency.ts";
 import { CliUsageError } from "./errors.ts";
+import { onCtrlC } from "./interrupt.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
 import { PulseCaution, windingRatioOption } from "./caution.ts";
 
@@ -31,6 +33,8 @@ Options:
   --tol TOL         done when the reading conforms to the target ± TOL (5%, J, 0.5u …)
   --turns LIST      turn counts to measure in order, e.g. 30,38,43, or changes: 30,+8,-1
   --max-peak-v V    lower the ring-peak limit (default 30 V; 28.8 V on a 36 V clamp)
+  --freq F          working frequency (10k, 100 kHz): each reading rings on the tank nearest it
+                    and says how near it came
   --winding-ratio N a second winding on the core has N times the turns (19 or 230:12):
                     every pulse is kept at the limit / N
   --uncalibrated    ignore the tester's calibration profile (nominal tank values)
@@ -44,6 +48,7 @@ Options:
 
 Examples:
   henrytick wind --sim --target 22u --turns 30,38
+  henrytick wind --sim --target 100u --turns 60,70 --freq 100k
   henrytick wind --port /dev/ttyACM0 --target 150u --tol 2%
 `;
 
@@ -52,7 +57,7 @@ const CSV_HEADER = "turns,inductance_h,inductance_u_h,error_rel,decision,recomme
 export async function runWindCommand(args: string[]): Promise<number> {
   const { values, positionals } = parse(args, {
     sim: { type: "boolean" }, port: { type: "string" }, seed: { type: "string" }, help: { type: "boolean", short: "h" },
-    target: { type: "string" }, tol: { type: "string" }, turns: { type: "string" }, "max-peak-v": { type: "string" }, "winding-ratio": { type: "string" }, uncalibrated: { type: "boolean" }, "config-dir": { type: "string" },
+    target: { type: "string" }, tol: { type: "string" }, turns: { type: "string" }, "max-peak-v": { type: "string" }, "winding-ratio": { type: "string" }, uncalibrated: { type: "boolean" }, "config-dir": { type: "string" }, ...FREQ_OPTIONS,
     json: { type: "boolean" }, csv: { type: "boolean" },
   });
   if (values.help) {
@@ -70,6 +75,7 @@ export async function runWindCommand(args: string[]): Promise<number> {
   const limits: Limits | undefined = tolerance ? optionValue("tol", () => toleranceLimits(target.value, tolerance)) : undefined;
   const max_peak_v = numberOption(values["max-peak-v"], "max-peak-v", 0.1, 1000);
   const other_winding_ratio = windingRatioOption(values["winding-ratio"]);
+  const test_frequency_hz = testFrequencyOption(values);
   const listed = values.turns !== undefined ? turnList(values.turns) : undefined;
   const testerAt = testerTarget(values, []);
 
@@ -84,12 +90,10 @@ export async function runWindCommand(args: string[]): Promise<number> {
     if (!advice) note("no reading was taken");
   };
   // Ctrl-C is a normal finish, as in sort: the readings so far are printed (with --json too).
-  const onSigint = () => {
-    process.off("SIGINT", onSigint);
+  const ctrlC = onCtrlC(() => {
     finish();
-    void tester.close().finally(() => process.exit(0));
-  };
-  process.on("SIGINT", onSigint);
+    void tester.close().finally(() => ctrlC.exit(0));
+  });
   try {
     note(`winding to ${formatValue(target.value, "H", 4)}${limits ? `, done within ${formatValue(limits.lower, "H", 4)} … ${formatValue(limits.upper, "H", 4)}` : ""}`);
     if (cal?.applied) note(`calibration ${cal.path}`);
@@ -121,8 +125,9 @@ export async function runWindCommand(args: string[]): Promise<number> {
         tester.sim.part = coilOnFormer(turns);
       }
       if (!values.json && !values.csv) note(`measuring ${turns} turns …`);
-      const r = await measurePart(tester.client, { max_peak_v, other_winding_ratio, onBeforePulse: caution.beforePulse, label: `${turns} turns`, calibration: cal?.applied });
-      const result = buildResult(r.analysis, r.capture);
+      const r = await measurePart(tester.client, { max_peak_v, other_winding_ratio, test_frequency_hz, onBeforePulse: caution.beforePulse, label: `${turns} turns`, calibration: cal?.applied });
+      const result = readingResult(r);
+      if (result.test_frequency && !values.json && !values.csv) note(result.test_frequency.note);
       readings.push({ turns, inductance_h: result.inductance_h, inductance_u_h: result.inductance_u_h });
       advice = windingAdvice(readings, target.value, limits, former);
       if (values.csv) process.stdout.write(csvLine(advice) + "\n");
@@ -132,7 +137,7 @@ export async function runWindCommand(args: string[]): Promise<number> {
       if (concern && !values.json && !values.csv) note(concern);
     }
   } finally {
-    process.off("SIGINT", onSigint);
+    ctrlC.dispose();
     await tester.close();
   }
   finish();

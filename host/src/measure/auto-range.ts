@@ -151,7 +151,7 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
 
   function withChoice(r: Reading): Reading {
     if (asked === undefined) return r;
-    return { ...r, test_frequency: describeFrequencyChoice(profile, lastAdvice, asked, r.settings.tank, r.analysis.f0_hz, failedTanks) };
+    return { ...r, test_frequency: describeFrequencyChoice(profile, lastAdvice, asked, r.settings.tank, r.analysis.f0_hz, { failed: failedTanks }) };
   }
 }
 
@@ -182,10 +182,19 @@ function key(a: { drive: number; tank: number }): string {
   return `${a.drive}/${a.tank}`;
 }
 
+/**
+ * How long the comparator must stay quiet before a capture of a ring at `f_hz` ends, µs: 4
+ * periods (at least 50 µs). The ring's edges come every half period, so only its end is that
+ * quiet; the tester waits this long after the last edge before it sends the capture.
+ */
+export function quietAfterUs(f_hz: number): number {
+  return Math.max(50, Math.ceil(4 * (1e6 / f_hz)));
+}
+
 /** Capture settings for a predicted setting: quiet after 4 periods, window 3x the ring. */
 export function settingsFor(client: DeviceClient, p: Advice): MeasureSettings {
   const period_us = 1e6 / p.f_hz;
-  const quiet = Math.max(50, Math.ceil(4 * period_us));
+  const quiet = quietAfterUs(p.f_hz);
   const ring_ms = Math.max(p.usable_cycles, 20) * period_us * 1e-3;
   const timeout = Math.min(client.profile.max_timeout_ms, Math.ceil(3 * ring_ms + quiet / 1000 + 20));
   return { drive: p.drive, tank: p.tank, charge_us: p.charge_us, edge_limit: client.profile.buffer_edges, timeout_ms: timeout, quiet_us: quiet };

@@ -122,9 +122,10 @@ export class ReadingProgress {
 
   /**
    * Fires one pulse: refuses once aborted (the pulse boundary), reports it, and hands the
-   * signal to the client so that an abort during the capture tells the tester at once.
+   * signal to the client so that an abort during the capture tells the tester at once. A
+   * capture that was whole when the abort came is dropped, unless `keepWhole`.
    */
-  async pulse(client: DeviceClient, s: MeasureSettings, phase: MeasurePhase, fraction: number, message: string): Promise<RawCapture> {
+  async pulse(client: DeviceClient, s: MeasureSettings, phase: MeasurePhase, fraction: number, message: string, keepWhole = false): Promise<RawCapture> {
     this.checkAborted();
     this.emit({ type: "pulse", phase, setting: settingInfo(client, s), pulse: this.pulses + 1, fraction, message });
     this.checkAborted(); // a listener may abort on the announcement
@@ -135,7 +136,7 @@ export class ReadingProgress {
     } finally {
       if (this.signal?.aborted) this.testerTold = true;
     }
-    this.checkAborted(); // a capture that finished as the abort came is not analysed
+    if (!keepWhole) this.checkAborted(); // a capture that finished as the abort came is not analysed
     return raw;
   }
 

@@ -12,9 +12,10 @@ import { predictSetting, type SettingPrediction } from "../ranging/predict.ts";
 import { resolvePeakLimit, volts } from "../ranging/safety.ts";
 import { adviseSettings } from "../ranging/advice.ts";
 import { describeFrequencyChoice, orderForFrequency, TEST_FREQUENCY_RANGE, type FrequencyChoice } from "../ranging/choose-setting.ts";
-import { autoRange, probePart } from "./auto-range.ts";
+import { autoRange, probePart, quietAfterUs } from "./auto-range.ts";
 import type { AppliedCalibration } from "../calibration/applied.ts";
-import { MeasureError, NO_USABLE_RING, describeSetting, readOnce } from "./read-once.ts";
+import { MeasureError, NO_USABLE_RING, describeSetting, readingFromRaw } from "./read-once.ts";
+import type { RawCapture } from "../device/stream-reader.ts";
 import { explainFailure, finishReading, shortedPart, SHORT_MAX_L_H } from "./part-fault.ts";
 import type { PartFault } from "./part-fault.ts";
 import { MeasureAbortedError, ReadingProgress, type MeasureEvent } from "./events.ts";
@@ -85,7 +86,6 @@ export interface Reading {
 }
 
 
-const FIXED_QUIET_US = 20000;
 /** Inductor current at which a failed fixed setting is blamed on saturation first (an iron-powder core of a few tens of µH saturates from a few hundred mA). */
 const STRONG_DRIVE_A = 0.1;
 const FIXED_TIMEOUT_MS = 1000;
@@ -115,19 +115,29 @@ export async function measurePart(client: DeviceClient, opts: MeasureOptions = {
 }
 
 async function settle(client: DeviceClient, opts: MeasureOptions, progress: ReadingProgress): Promise<Reading> {
-  const profile = client.profile;
-  const peak = resolvePeakLimit(opts.max_peak_v, profile.clamp_v, opts.hazardous_ok ?? false, { other_winding_ratio: opts.other_winding_ratio });
-  if (!peak.ok) throw new MeasureError("PEAK_LIMIT", peak.message);
-  const asked = opts.test_frequency_hz;
-  if (asked !== undefined && !(asked >= TEST_FREQUENCY_RANGE.min && asked <= TEST_FREQUENCY_RANGE.max)) {
-    throw new RangeError(`"test_frequency_hz" must be from ${TEST_FREQUENCY_RANGE.min} to ${TEST_FREQUENCY_RANGE.max} Hz (${TEST_FREQUENCY_RANGE.what}), got ${asked}`);
-  }
-  const limits: PlanLimits = {
-    max_peak_v: peak.limit_v, min_ticks_per_period: 40,
-    ...(peak.limit_v < peak.winding_limit_v ? { why: `${volts(peak.winding_limit_v)} / ${peak.other_winding_ratio} for the other winding` } : {}),
-  };
+  const limits = planLimits(client, opts);
   if (opts.drive === undefined && opts.tank === undefined) return autoRange(client, limits, opts, progress);
 
+  const plan = await planFixed(client, opts, limits, progress);
+  opts.onBeforePulse?.(plan.prediction);
+  const raw = await progress.pulse(client, plan.settings, "fixed", 0.5, `measuring: ${describeSetting(client, plan.settings)}`);
+  return fixedReading(client, raw, opts, plan);
+}
+
+/** A fixed setting, checked against the limits, and the prediction it was checked with. */
+export interface FixedPlan {
+  settings: MeasureSettings;
+  prediction: SettingPrediction;
+  estimate: PartEstimate;
+  limits: PlanLimits;
+}
+
+/**
+ * The caller's fixed setting checked before it is pulsed: the same limits as ranging's, from
+ * the estimate (or a gentle probe without one). Throws SETTING_UNSAFE / CHARGE_LIMIT.
+ */
+export async function planFixed(client: DeviceClient, opts: MeasureOptions, limits: PlanLimits, progress: ReadingProgress): Promise<FixedPlan> {
+  const profile = client.profile;
   const drive = opts.drive ?? 0;
   const tank = opts.tank ?? profile.tanks.length - 1;
   checkIndex("drive", drive, profile.drives.length);
@@ -142,13 +152,25 @@ async function settle(client: DeviceClient, opts: MeasureOptions, progress: Read
   if (charge > profile.drives[drive].max_charge_us) {
     throw new MeasureError("CHARGE_LIMIT", `the charge time ${charge} µs exceeds the drive resistor's ${profile.drives[drive].max_charge_us} µs interlock`);
   }
-  const settings = { drive, tank, charge_us: charge, edge_limit: profile.buffer_edges, timeout_ms: FIXED_TIMEOUT_MS, quiet_us: FIXED_QUIET_US };
-  opts.onBeforePulse?.(p);
+  // The capture ends 4 predicted periods after the last edge, as on a ranged setting: a fixed
+  // quiet time would hold every reading of a fast ring that long after it died out.
+  const settings = { drive, tank, charge_us: charge, edge_limit: profile.buffer_edges, timeout_ms: FIXED_TIMEOUT_MS, quiet_us: quietAfterUs(p.f_hz) };
+  return { settings, prediction: p, estimate: est, limits };
+}
+
+/**
+ * The reading of one fixed-setting capture, before the part-fault judgement: analysed, and a
+ * capture without a usable ring explained (a short, a saturating core) where the plan shows why.
+ */
+export function fixedReading(client: DeviceClient, raw: RawCapture, opts: MeasureOptions, plan: FixedPlan): Reading {
+  const { settings, prediction: p, estimate: est, limits } = plan;
+  const asked = opts.test_frequency_hz;
   try {
-    const reading = await readOnce(client, settings, opts, progress, "fixed", 0.5);
+    const reading = readingFromRaw(client, raw, opts);
     if (asked === undefined) return reading;
+    const profile = client.profile;
     const advice = orderForFrequency(adviseSettings(profile, est, limits, opts.calibration?.tanks), asked);
-    return { ...reading, test_frequency: describeFrequencyChoice(profile, advice, asked, tank, reading.analysis.f0_hz, undefined, "the drive and tank were fixed for this reading") };
+    return { ...reading, test_frequency: describeFrequencyChoice(profile, advice, asked, settings.tank, reading.analysis.f0_hz, { untried: "the drive and tank were fixed for this reading" }) };
   } catch (e) {
     if (!(e instanceof MeasureError)) throw e;
     const why = explainFailure(e);
@@ -163,7 +185,20 @@ async function settle(client: DeviceClient, opts: MeasureOptions, progress: Read
   }
 }
 
-
+/** The peak limits of a reading's options (MeasureError PEAK_LIMIT when they contradict). */
+export function planLimits(client: DeviceClient, opts: MeasureOptions): PlanLimits {
+  const profile = client.profile;
+  const peak = resolvePeakLimit(opts.max_peak_v, profile.clamp_v, opts.hazardous_ok ?? false, { other_winding_ratio: opts.other_winding_ratio });
+  if (!peak.ok) throw new MeasureError("PEAK_LIMIT", peak.message);
+  const asked = opts.test_frequency_hz;
+  if (asked !== undefined && !(asked >= TEST_FREQUENCY_RANGE.min && asked <= TEST_FREQUENCY_RANGE.max)) {
+    throw new RangeError(`"test_frequency_hz" must be from ${TEST_FREQUENCY_RANGE.min} to ${TEST_FREQUENCY_RANGE.max} Hz (${TEST_FREQUENCY_RANGE.what}), got ${asked}`);
+  }
+  return {
+    max_peak_v: peak.limit_v, min_ticks_per_period: 40,
+    ...(peak.limit_v < peak.winding_limit_v ? { why: `${volts(peak.winding_limit_v)} / ${peak.other_winding_ratio} for the other winding` } : {}),
+  };
+}
 
 function checkIndex(name: string, v: number, n: number): void {
   if (!Number.isInteger(v) || v < 0 || v >= n) {

@@ -14,6 +14,7 @@ import { formatSi } from "../format/si.ts";
 import { MEASURABLE_L_H } from "../values/range.ts";
 import { isAnalysisFailure, WarningCode, type PartFaultCode } from "../codes.ts";
 import type { Reading } from "./measure-part.ts";
+import { edgesOf } from "./edge-list.ts";
 import { frequencySwing } from "./frequency-swing.ts";
 import { MeasureError, analyzeCapture, fitCapture } from "./read-once.ts";
 
@@ -93,26 +94,77 @@ const BREAK_MEDIAN_RATIO = 1.75;
  * searched for breaks.
  */
 export function chatterOf(c: CaptureV1): { glitch_pairs: number; breaks: number; half_cycles: number } {
-  const iv: number[] = [];
-  for (let i = 1; i < c.edges.length; i++) iv.push(c.edges[i][0] - c.edges[i - 1][0]);
-  if (iv.length < 4) return { glitch_pairs: 0, breaks: 0, half_cycles: iv.length };
-  const medianOf = (xs: number[]) => [...xs].sort((a, b) => a - b)[xs.length >> 1];
+  const iv = intervalsOf(c);
+  const n = iv.length;
+  if (n < 4) return { glitch_pairs: 0, breaks: 0, half_cycles: n };
   const median = medianOf(iv);
-  const medianByParity = [medianOf(iv.filter((_, i) => i % 2 === 0)), medianOf(iv.filter((_, i) => i % 2 === 1))];
-  const isShort = iv.map((d) => d < GLITCH_INTERVAL_RATIO * median);
-  const short = isShort.filter(Boolean).length;
+  const medianByParity = [medianOf(everyOther(iv, 0)), medianOf(everyOther(iv, 1))];
+  // shortBefore[j]: short intervals among the first j, so a window's count is one subtraction.
+  const shortBefore = new Uint32Array(n + 1);
+  for (let i = 0; i < n; i++) shortBefore[i + 1] = shortBefore[i] + (iv[i] < GLITCH_INTERVAL_RATIO * median ? 1 : 0);
+  const short = shortBefore[n];
   let breaks = 0;
-  const strongEnd = Math.floor(0.75 * iv.length);
+  const strongEnd = Math.floor(0.75 * n);
   // From the fourth interval: the first ones carry the switch's transient.
-  for (let i = 3; i < strongEnd && i + 2 < iv.length; i++) {
-    if (isShort.slice(Math.max(0, i - 3), i + 4).some(Boolean)) continue; // a glitch splits its half-cycle: its pieces are no neighbours
-    // Over the ratio even after the timer's flooring: each edge is floored to a tick, so every
-    // interval (and so every mean or median of them) reads within a tick of the truth either way.
-    const over = (ref: number, ratio: number) => iv[i] - 1 > ratio * (ref + 1);
-    if (over(0.5 * (iv[i - 2] + iv[i + 2]), BREAK_NEIGHBOUR_RATIO) || over(medianByParity[i % 2], BREAK_MEDIAN_RATIO)) breaks++;
+  for (let i = 3; i < strongEnd && i + 2 < n; i++) {
+    if (shortBefore[Math.min(n, i + 4)] - shortBefore[Math.max(0, i - 3)] > 0) continue; // a glitch splits its half-cycle: its pieces are no neighbours
+    if (over(iv[i], 0.5 * (iv[i - 2] + iv[i + 2]), BREAK_NEIGHBOUR_RATIO) || over(iv[i], medianByParity[i % 2], BREAK_MEDIAN_RATIO)) breaks++;
   }
   // Each glitch pair adds one short interval and splits one half-cycle in three.
-  return { glitch_pairs: short, breaks, half_cycles: iv.length - 2 * short };
+  return { glitch_pairs: short, breaks, half_cycles: n - 2 * short };
+}
+
+/**
+ * An interval over `ratio` times a reference even after the timer's flooring: each edge is
+ * floored to a tick, so every interval (and so every mean or median of them) reads within a tick
+ * of the truth either way.
+ */
+function over(interval: number, ref: number, ratio: number): boolean {
+  return interval - 1 > ratio * (ref + 1);
+}
+
+/** Ticks between consecutive edges: the shared edge list's, or from the pairs of a malformed record. */
+function intervalsOf(c: CaptureV1): Float64Array {
+  const list = edgesOf(c);
+  if (list) return list.intervals;
+  const iv = new Float64Array(Math.max(0, c.edges.length - 1));
+  for (let i = 1; i < c.edges.length; i++) iv[i - 1] = c.edges[i][0] - c.edges[i - 1][0];
+  return iv;
+}
+
+/** xs[from], xs[from + 2], … */
+function everyOther(xs: Float64Array, from: number): Float64Array {
+  const out = new Float64Array(Math.max(0, Math.ceil((xs.length - from) / 2)));
+  for (let i = from, j = 0; i < xs.length; i += 2, j++) out[j] = xs[i];
+  return out;
+}
+
+/** The upper median: the element at n/2 of the sorted values, found by selection (Hoare's FIND) on a copy. */
+function medianOf(xs: Float64Array): number {
+  const a = xs.slice();
+  const k = a.length >> 1;
+  let lo = 0;
+  let hi = a.length - 1;
+  while (lo < hi) {
+    const pivot = a[(lo + hi) >> 1];
+    let i = lo;
+    let j = hi;
+    while (i <= j) {
+      while (a[i] < pivot) i++;
+      while (a[j] > pivot) j--;
+      if (i <= j) {
+        const t = a[i];
+        a[i] = a[j];
+        a[j] = t;
+        i++;
+        j--;
+      }
+    }
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else break;
+  }
+  return a[k];
 }
 
 /** Signs of chatter in a capture: glitch pairs plus breaks. */

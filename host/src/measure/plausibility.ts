@@ -27,6 +27,7 @@ import { CalibrationError } from "../calibration/errors.ts";
 import { CodedError } from "../coded-error.ts";
 import type { DeviceProfile } from "../device/profile.ts";
 import { formatSi } from "../format/si.ts";
+import { edgesOf } from "./edge-list.ts";
 
 /** Largest timer error accepted, ppm (as the timebase calibration: docs/calibration.md). */
 export const MAX_TIMEBASE_PPM = 1000;
@@ -60,9 +61,11 @@ export function checkCapturePlausible(c: CaptureV1): void {
   if (c.range && Number.isFinite(c.range.edge_limit) && n > c.range.edge_limit) {
     refuse("TOO_MANY_EDGES", `${n} edges, but the capture says the tester was asked for at most ${c.range.edge_limit}`);
   }
+  const list = edgesOf(c);
+  const levelAt = list ? (i: number) => list.levels[i] : (i: number) => c.edges[i][1];
   for (let i = 1; i < n; i++) {
-    if (c.edges[i][1] === c.edges[i - 1][1]) {
-      refuse("EDGES_NOT_ALTERNATING", `edges ${i - 1} and ${i} both leave the comparator at level ${c.edges[i][1]}; a comparator can only toggle`);
+    if (levelAt(i) === levelAt(i - 1)) {
+      refuse("EDGES_NOT_ALTERNATING", `edges ${i - 1} and ${i} both leave the comparator at level ${levelAt(i)}; a comparator can only toggle`);
     }
   }
   if (!(c.tick_hz >= TICK_HZ_RANGE[0] && c.tick_hz <= TICK_HZ_RANGE[1])) {
@@ -85,8 +88,10 @@ export function checkCapturePlausible(c: CaptureV1): void {
   }
   if (cal && Number.isFinite(cal.nominal_tank_c_f) && cal.nominal_tank_c_f > 0) {
     const r = c.tank_c_f / cal.nominal_tank_c_f;
-    if (cal.tank_calibrated === false && Math.abs(r - 1) > 1e-9) {
-      refuse("TANK_IMPLAUSIBLE", `tank_c_f ${formatSi(c.tank_c_f, "F", 4)} differs from the nominal ${formatSi(cal.nominal_tank_c_f, "F", 4)} although the capture says the tank is not calibrated`);
+    // An uncalibrated tank is its nominal value, plus the nulled fixture's capacitance when one was added.
+    const uncalibrated = cal.nominal_tank_c_f + (cal.fixture_capacitance_f ?? 0);
+    if (cal.tank_calibrated === false && Math.abs(c.tank_c_f / uncalibrated - 1) > 1e-9) {
+      refuse("TANK_IMPLAUSIBLE", `tank_c_f ${formatSi(c.tank_c_f, "F", 4)} differs from the nominal ${formatSi(cal.nominal_tank_c_f, "F", 4)}${cal.fixture_capacitance_f !== undefined ? ` plus the fixture's ${formatSi(cal.fixture_capacitance_f, "F", 4)}` : ""} although the capture says the tank is not calibrated`);
     }
     if (r < 0.5 || r > 2) {
       refuse("TANK_IMPLAUSIBLE", `tank_c_f ${formatSi(c.tank_c_f, "F", 4)} is not within a factor 2 of the nominal ${formatSi(cal.nominal_tank_c_f, "F", 4)}: a mix-up, not a tolerance`);

@@ -5,9 +5,10 @@ import { AnalysisError } from "../analysis/index.ts";
 import { analyzeFit, fitRing, type FitState } from "../analysis/analyze-ring.ts";
 import type { CaptureV1 } from "../capture/capture-file.ts";
 import type { DeviceClient, MeasureSettings } from "../device/client.ts";
+import type { RawCapture } from "../device/stream-reader.ts";
 import { formatSi } from "../format/si.ts";
 import { captureFromDevice, ringInputFromCapture } from "./capture-build.ts";
-import { withLeadNulling } from "../calibration/nulling-reading.ts";
+import { withFixtureCapacitance, withLeadNulling } from "../calibration/nulling-reading.ts";
 import { withUnaccountedCapacitance } from "./reading-uncertainty.ts";
 import type { MeasureOptions, Reading } from "./measure-part.ts";
 import { CodedError } from "../coded-error.ts";
@@ -28,8 +29,13 @@ export async function readOnce(
   progress: ReadingProgress | ((m: string) => void), phase: MeasurePhase = "fixed", fraction = 0.5,
 ): Promise<Reading> {
   const raw = await ReadingProgress.from(progress).pulse(client, settings, phase, fraction, `measuring: ${describeSetting(client, settings)}`);
+  return readingFromRaw(client, raw, opts);
+}
+
+/** The capture record of a pulse's edges and its analysis (MeasureError when it has no usable ring). */
+export function readingFromRaw(client: DeviceClient, raw: RawCapture, opts: Pick<MeasureOptions, "label" | "calibration">): Reading {
   const capture = captureFromDevice(raw, client.identity, client.profile, client.transport.description, opts.label, opts.calibration);
-  return { capture, analysis: analyzeCapture(capture), settings };
+  return { capture, analysis: analyzeCapture(capture), settings: raw.settings };
 }
 
 /** Analysis of a capture, with ring-level failures turned into a user-facing MeasureError. */
@@ -45,7 +51,7 @@ export function fitCapture(capture: CaptureV1): { fit: FitState; analysis: RingA
   try {
     checkCapturePlausible(capture);
     const fit = fitRing(ringInputFromCapture(capture));
-    const analysis = withLeadNulling(withUnaccountedCapacitance(analyzeFit(fit), capture), capture);
+    const analysis = withLeadNulling(withFixtureCapacitance(withUnaccountedCapacitance(analyzeFit(fit), capture), capture), capture);
     checkReadingPlausible(capture, analysis);
     // Warnings the reading added when it was taken (automatic ranging's) come back with it.
     if (capture.reading_warnings?.length) analysis.warnings = [...analysis.warnings, ...capture.reading_warnings];

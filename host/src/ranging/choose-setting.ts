@@ -41,7 +41,7 @@ export function orderForFrequency(advice: readonly Advice[], asked_hz: number): 
 /** How near the reading came to the asked frequency (result JSON `test_frequency`). */
 export interface FrequencyChoice {
   asked_hz: number;
-  /** The reading's undamped resonance f0. */
+  /** The reading's undamped resonance f0 (advise: the predicted ring). */
   rang_hz: number;
   /** (rang - asked) / asked. */
   deviation_rel: number;
@@ -57,11 +57,15 @@ export interface FrequencyChoice {
 /**
  * States the choice: `advice` is the last ranked advice (every setting predicted), `failed` the
  * tanks tried that gave no usable ring (tank index to the reason), `tank` and `rang_hz` the
- * reading's; `untried` says why an allowed nearer tank was not used (a setting fixed by the caller).
+ * reading's; `untried` says why an allowed nearer tank was not used (a setting fixed by the caller);
+ * `predicted` words it as a prediction (`rang_hz` is then the predicted ring, before any pulse).
  */
 export function describeFrequencyChoice(
-  profile: DeviceProfile, advice: readonly Advice[], asked_hz: number, tank: number, rang_hz: number, failed: ReadonlyMap<number, string> = new Map(), untried = "was not tried",
+  profile: DeviceProfile, advice: readonly Advice[], asked_hz: number, tank: number, rang_hz: number,
+  how: { failed?: ReadonlyMap<number, string>; untried?: string; predicted?: boolean } = {},
 ): FrequencyChoice {
+  const failed = how.failed ?? new Map<number, string>();
+  const untried = how.untried ?? "was not tried";
   const perTank = new Map<number, Advice[]>();
   for (const a of advice) perTank.set(a.tank, [...(perTank.get(a.tank) ?? []), a]);
   const own = perTank.get(tank)?.[0];
@@ -77,7 +81,7 @@ export function describeFrequencyChoice(
     nearer.push({ tank_index: t, predicted_hz: f, why });
   }
   const deviation = (rang_hz - asked_hz) / asked_hz;
-  const head = `asked ${formatSi(asked_hz, "Hz", 3)}, rang at ${formatSi(rang_hz, "Hz", 3)} (${howFar(rang_hz, asked_hz)})`;
+  const head = `asked ${formatSi(asked_hz, "Hz", 3)}, ${how.predicted ? "would ring at about" : "rang at"} ${formatSi(rang_hz, "Hz", 3)} (${howFar(rang_hz, asked_hz)})`;
   const tankName = (t: number) => `the ${formatSi(profile.tanks[t].nominal_f, "F", 3)} tank`;
   // Beyond every tank's ring for this part: the nearest tank is the end of what this tester reaches.
   const predicted = [...perTank.values()].map((l) => l[0].f_hz);

@@ -80,6 +80,11 @@ export interface CaptureEdges {
 export class SimFrontEnd {
   readonly board: BoardModel;
   part: PartModel | null;
+  /**
+   * True: the part sits on the board's own terminals, without the clips and leads, so neither the
+   * fixture's capacitance nor the leads' inductance is in the circuit (open nulling's first step).
+   */
+  onTerminals = false;
   private rng: Random;
   private readonly seed: number;
   private lastRing: { part: PartModel; drive: number; tank: number; charge_s: number; openTick: number; tail: CaptureEdges | null } | null = null;
@@ -101,7 +106,7 @@ export class SimFrontEnd {
     this.stats.pulses++;
     this.stats.switchClosedTicks += chargeTicks;
     this.lastRing = null;
-    const b = this.board;
+    const b = this.circuitBoard();
     const part = this.part;
     if (!part) return { ticks: [], levels: [] }; // open terminals: no current, no ring
     const window_s = (2 ** 30 - 1) / b.timer.tick_hz;
@@ -110,6 +115,11 @@ export class SimFrontEnd {
     this.stats.peakRingV = Math.max(this.stats.peakRingV, r.peak_v);
     this.lastRing = { part, drive, tank, charge_s, openTick, tail: null };
     return r.edges;
+  }
+
+  /** The board as the part sees it: without the fixture when the part is on the terminals. */
+  private circuitBoard(): BoardModel {
+    return this.onTerminals ? { ...this.board, fixture_f: 0, lead_h: 0 } : this.board;
   }
 
   /**
@@ -122,7 +132,7 @@ export class SimFrontEnd {
     const last = this.lastRing;
     if (!last) return heard;
     if (!last.tail) {
-      const b = this.board;
+      const b = this.circuitBoard();
       const rng = new Random((this.seed ^ 0x7a11) + this.stats.pulses);
       const window_s = Math.min((2 ** 30 - 1) / b.timer.tick_hz, (openTick - last.openTick) / b.timer.tick_hz + 10);
       last.tail = simulatePulse(b, last.part, last.drive, last.tank, last.charge_s, 400_000, rng, window_s).edges;
@@ -172,6 +182,14 @@ export class SimTester {
   }
   set part(p: PartModel | null) {
     this.frontEnd.part = p;
+  }
+
+  /** The part on the board's own terminals (true) or on the clips at the end of the leads (false, the default). */
+  get onTerminals(): boolean {
+    return this.frontEnd.onTerminals;
+  }
+  set onTerminals(v: boolean) {
+    this.frontEnd.onTerminals = v;
   }
 
   /** Receives everything the firmware sends to the host. */
