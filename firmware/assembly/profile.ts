@@ -33,6 +33,14 @@ export function sendProfile(captureBits: i32): void {
   out.putInt(board.THRESHOLD_RISING_UV);
   out.putInt(board.THRESHOLD_FALLING_UV);
   send();
+  out.begin("PD");
+  out.putInt(board.COMPARATOR_NOISE_UV);
+  out.putInt(board.COMPARATOR_NOISE_BW_KHZ);
+  out.putInt(board.COMPARATOR_DELAY_RISE_PS);
+  out.putInt(board.COMPARATOR_DELAY_FALL_PS);
+  out.putInt(board.COMPARATOR_SKEW_U_PS);
+  out.putInt(board.COMPARATOR_OVERDRIVE_FVS);
+  send();
   out.begin("PS");
   out.putInt(board.SUPPLY_MV);
   out.putInt(board.CLAMP_MV);

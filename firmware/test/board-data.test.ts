@@ -71,5 +71,9 @@ describe.each(names)("the firmware built for board %s", (name) => {
     expect(p.settle_us).toBe(board.settle_us);
     expect(p.max_charge_us).toBe(board.max_charge_us);
     expect(p.self_test_us).toBe(board.self_test_us);
+    // The comparator's timing (frame PD), each to its integer unit's rounding.
+    for (const k of ["noise_v", "noise_bw_hz", "delay_rise_s", "delay_fall_s", "skew_u_s", "overdrive_v_s"] as const) {
+      expect(p.comparator![k], k).toBeCloseTo(board.comparator[k], 9 - Math.floor(Math.log10(Math.abs(board.comparator[k]) || 1)));
+    }
   });
 });

@@ -3,12 +3,13 @@
 // code). Do not edit: change the schema and run npm run build.
 
 export const capture = validate20;
-const schema31 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:capture:1","title":"henrytick capture file, version 1","description":"The edge record of one ring-down with everything needed to analyse it again (docs/capture-format.md). Units are SI and in the key names. Rules a schema cannot state (rising threshold above the falling one, edge ticks non-decreasing) are checked by the reader too.","type":"object","required":["format","version","tick_hz","edges","tank_c_f","thresholds_v"],"properties":{"format":{"const":"henrytick-capture"},"version":{"const":1},"tick_hz":{"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"},"edges":{"type":"array","description":"[tick, level] pairs: integer ticks since the switch opened, non-decreasing; level 1 after a rising edge, 0 after a falling edge","items":{"description":"[tick, level]","type":"array","prefixItems":[{"type":"integer","minimum":0,"maximum":9007199254740991},{"enum":[0,1]}],"minItems":2,"maxItems":2}},"tank_c_f":{"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"},"tank_c_u_f":{"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"},"thresholds_v":{"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2},"drive":{"$ref":"#/$defs/drive"},"range":{"$ref":"#/$defs/range"},"device":{"$ref":"#/$defs/device"},"meta":{"type":"object","properties":{"label":{"type":"string"},"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"end_reason":{"enum":["quiet","full","timeout","no-edges"]}}},"calibration":{"$ref":"#/$defs/calibration"},"reading_warnings":{"type":"array","description":"warnings the reading added to the analysis's own (automatic ranging's); a re-analysis gives them again","items":{"$ref":"#/$defs/warning"}}},"$defs":{"drive":{"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the front end's clamp voltage, the ring's ceiling"}}},"range":{"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}},"device":{"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}},"calibration":{"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0},"comparator_skew_s":{"type":"number","description":"the comparator's calibrated rise/fall delay skew (rising minus falling propagation delay), seconds"},"comparator_skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of comparator_skew_s, seconds"},"lead_inductance_h":{"type":"number","minimum":0,"description":"the test leads' series inductance subtracted from the ring's inductance (calibrate short)"},"lead_u_h":{"type":"number","minimum":0,"description":"standard uncertainty of lead_inductance_h"},"fixture_capacitance_f":{"type":"number","description":"the fixture's capacitance (calibrate open) added to the tank's value in tank_c_f, because the tank's value did not hold it; farads"},"fixture_u_f":{"type":"number","minimum":0,"description":"standard uncertainty of fixture_capacitance_f (the budget's fixture line)"}}},"warning":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}}}};
+const schema31 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:capture:1","title":"henrytick capture file, version 1","description":"The edge record of one ring-down with everything needed to analyse it again (docs/capture-format.md). Units are SI and in the key names. Rules a schema cannot state (rising threshold above the falling one, edge ticks non-decreasing) are checked by the reader too.","type":"object","required":["format","version","tick_hz","edges","tank_c_f","thresholds_v"],"properties":{"format":{"const":"henrytick-capture"},"version":{"const":1},"tick_hz":{"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"},"edges":{"type":"array","description":"[tick, level] pairs: integer ticks since the switch opened, non-decreasing; level 1 after a rising edge, 0 after a falling edge","items":{"description":"[tick, level]","type":"array","prefixItems":[{"type":"integer","minimum":0,"maximum":9007199254740991},{"enum":[0,1]}],"minItems":2,"maxItems":2}},"tank_c_f":{"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"},"tank_c_u_f":{"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"},"thresholds_v":{"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2},"drive":{"$ref":"#/$defs/drive"},"range":{"$ref":"#/$defs/range"},"device":{"$ref":"#/$defs/device"},"meta":{"type":"object","properties":{"label":{"type":"string"},"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"end_reason":{"enum":["quiet","full","timeout","no-edges"]}}},"calibration":{"$ref":"#/$defs/calibration"},"comparator":{"$ref":"#/$defs/comparator"},"reading_warnings":{"type":"array","description":"warnings the reading added to the analysis's own (automatic ranging's); a re-analysis gives them again","items":{"$ref":"#/$defs/warning"}}},"$defs":{"drive":{"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the front end's clamp voltage, the ring's ceiling"}}},"range":{"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}},"device":{"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}},"calibration":{"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0},"comparator_skew_s":{"type":"number","description":"the comparator's calibrated rise/fall delay skew (rising minus falling propagation delay), seconds"},"comparator_skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of comparator_skew_s, seconds"},"lead_inductance_h":{"type":"number","minimum":0,"description":"the test leads' series inductance subtracted from the ring's inductance (calibrate short)"},"lead_u_h":{"type":"number","minimum":0,"description":"standard uncertainty of lead_inductance_h"},"fixture_capacitance_f":{"type":"number","description":"the fixture's capacitance (calibrate open) added to the tank's value in tank_c_f, because the tank's value did not hold it; farads"},"fixture_u_f":{"type":"number","minimum":0,"description":"standard uncertainty of fixture_capacitance_f (the budget's fixture line)"}}},"warning":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}},"comparator":{"type":"object","description":"the comparator timing the analysis applied to the edge times (docs/method.md §2a): the skew prior, and from the tester's board profile the input noise's bandwidth and rms and the overdrive charge; a re-analysis applies exactly these","required":["skew_s","skew_u_s","skew_source"],"properties":{"skew_s":{"type":"number","description":"rising minus falling propagation delay, seconds (best estimate)"},"skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of skew_s, seconds"},"skew_source":{"enum":["calibration","board profile"],"description":"where skew_s comes from"},"noise_bw_hz":{"type":"number","exclusiveMinimum":0,"description":"first-order bandwidth of the comparator's input noise (the board's); absent: no first-passage correction"},"noise_v":{"type":"number","exclusiveMinimum":0,"description":"rms of that noise referred to the ring (the board's); the larger of it and the fit's estimate is used; absent: the fit's estimate alone"},"overdrive_v_s":{"type":"number","exclusiveMinimum":0,"description":"overdrive charge of the comparator's input stage, volt-seconds (the board's)"},"overdrive_u_v_s":{"type":"number","minimum":0,"description":"standard uncertainty of overdrive_v_s"}}}}};
 const schema32 = {"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the front end's clamp voltage, the ring's ceiling"}}};
 const schema33 = {"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}};
 const schema34 = {"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}};
 const schema35 = {"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0},"comparator_skew_s":{"type":"number","description":"the comparator's calibrated rise/fall delay skew (rising minus falling propagation delay), seconds"},"comparator_skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of comparator_skew_s, seconds"},"lead_inductance_h":{"type":"number","minimum":0,"description":"the test leads' series inductance subtracted from the ring's inductance (calibrate short)"},"lead_u_h":{"type":"number","minimum":0,"description":"standard uncertainty of lead_inductance_h"},"fixture_capacitance_f":{"type":"number","description":"the fixture's capacitance (calibrate open) added to the tank's value in tank_c_f, because the tank's value did not hold it; farads"},"fixture_u_f":{"type":"number","minimum":0,"description":"standard uncertainty of fixture_capacitance_f (the budget's fixture line)"}}};
-const schema36 = {"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}};
+const schema36 = {"type":"object","description":"the comparator timing the analysis applied to the edge times (docs/method.md §2a): the skew prior, and from the tester's board profile the input noise's bandwidth and rms and the overdrive charge; a re-analysis applies exactly these","required":["skew_s","skew_u_s","skew_source"],"properties":{"skew_s":{"type":"number","description":"rising minus falling propagation delay, seconds (best estimate)"},"skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of skew_s, seconds"},"skew_source":{"enum":["calibration","board profile"],"description":"where skew_s comes from"},"noise_bw_hz":{"type":"number","exclusiveMinimum":0,"description":"first-order bandwidth of the comparator's input noise (the board's); absent: no first-passage correction"},"noise_v":{"type":"number","exclusiveMinimum":0,"description":"rms of that noise referred to the ring (the board's); the larger of it and the fit's estimate is used; absent: the fit's estimate alone"},"overdrive_v_s":{"type":"number","exclusiveMinimum":0,"description":"overdrive charge of the comparator's input stage, volt-seconds (the board's)"},"overdrive_u_v_s":{"type":"number","minimum":0,"description":"standard uncertainty of overdrive_v_s"}}};
+const schema37 = {"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}};
 const pattern4 = new RegExp("^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$", "u");
 const pattern5 = new RegExp("^[A-Z][A-Z0-9_]*$", "u");
 
@@ -939,74 +940,158 @@ else {
 var valid0 = true;
 }
 if(valid0){
-if(data.reading_warnings !== undefined){
-let data47 = data.reading_warnings;
+if(data.comparator !== undefined){
+let data47 = data.comparator;
 const _errs95 = errors;
-if(errors === _errs95){
-if(Array.isArray(data47)){
-var valid13 = true;
-const len3 = data47.length;
-for(let i1=0; i1<len3; i1++){
-let data48 = data47[i1];
-const _errs97 = errors;
-const _errs98 = errors;
-if(errors === _errs98){
-if(data48 && typeof data48 == "object" && !Array.isArray(data48)){
+const _errs96 = errors;
+if(errors === _errs96){
+if(data47 && typeof data47 == "object" && !Array.isArray(data47)){
 let missing5;
-if(((data48.code === undefined) && (missing5 = "code")) || ((data48.message === undefined) && (missing5 = "message"))){
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/required",keyword:"required",params:{missingProperty: missing5},message:"must have required property '"+missing5+"'",schema:schema36.required,parentSchema:schema36,data:data48}];
+if((((data47.skew_s === undefined) && (missing5 = "skew_s")) || ((data47.skew_u_s === undefined) && (missing5 = "skew_u_s"))) || ((data47.skew_source === undefined) && (missing5 = "skew_source"))){
+validate20.errors = [{instancePath:instancePath+"/comparator",schemaPath:"#/$defs/comparator/required",keyword:"required",params:{missingProperty: missing5},message:"must have required property '"+missing5+"'",schema:schema36.required,parentSchema:schema36,data:data47}];
 return false;
 }
 else {
-if(data48.code !== undefined){
-let data49 = data48.code;
+if(data47.skew_s !== undefined){
+let data48 = data47.skew_s;
+const _errs98 = errors;
+if(!((typeof data48 == "number") && (isFinite(data48)))){
+validate20.errors = [{instancePath:instancePath+"/comparator/skew_s",schemaPath:"#/$defs/comparator/properties/skew_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.skew_s.type,parentSchema:schema36.properties.skew_s,data:data48}];
+return false;
+}
+var valid14 = _errs98 === errors;
+}
+else {
+var valid14 = true;
+}
+if(valid14){
+if(data47.skew_u_s !== undefined){
+let data49 = data47.skew_u_s;
 const _errs100 = errors;
 if(errors === _errs100){
-if(typeof data49 === "string"){
-if(!pattern5.test(data49)){
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema36.properties.code,data:data49}];
+if((typeof data49 == "number") && (isFinite(data49))){
+if(data49 < 0 || isNaN(data49)){
+validate20.errors = [{instancePath:instancePath+"/comparator/skew_u_s",schemaPath:"#/$defs/comparator/properties/skew_u_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.skew_u_s,data:data49}];
 return false;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.code.type,parentSchema:schema36.properties.code,data:data49}];
+validate20.errors = [{instancePath:instancePath+"/comparator/skew_u_s",schemaPath:"#/$defs/comparator/properties/skew_u_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.skew_u_s.type,parentSchema:schema36.properties.skew_u_s,data:data49}];
 return false;
 }
 }
-var valid15 = _errs100 === errors;
+var valid14 = _errs100 === errors;
 }
 else {
-var valid15 = true;
+var valid14 = true;
 }
-if(valid15){
-if(data48.message !== undefined){
-let data50 = data48.message;
+if(valid14){
+if(data47.skew_source !== undefined){
+let data50 = data47.skew_source;
 const _errs102 = errors;
-if(typeof data50 !== "string"){
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/message",schemaPath:"#/$defs/warning/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema36.properties.message.type,parentSchema:schema36.properties.message,data:data50}];
+if(!((data50 === "calibration") || (data50 === "board profile"))){
+validate20.errors = [{instancePath:instancePath+"/comparator/skew_source",schemaPath:"#/$defs/comparator/properties/skew_source/enum",keyword:"enum",params:{allowedValues: schema36.properties.skew_source.enum},message:"must be equal to one of the allowed values",schema:schema36.properties.skew_source.enum,parentSchema:schema36.properties.skew_source,data:data50}];
 return false;
 }
-var valid15 = _errs102 === errors;
+var valid14 = _errs102 === errors;
 }
 else {
-var valid15 = true;
+var valid14 = true;
 }
-}
-}
-}
-else {
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema36.type,parentSchema:schema36,data:data48}];
+if(valid14){
+if(data47.noise_bw_hz !== undefined){
+let data51 = data47.noise_bw_hz;
+const _errs103 = errors;
+if(errors === _errs103){
+if((typeof data51 == "number") && (isFinite(data51))){
+if(data51 <= 0 || isNaN(data51)){
+validate20.errors = [{instancePath:instancePath+"/comparator/noise_bw_hz",schemaPath:"#/$defs/comparator/properties/noise_bw_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.noise_bw_hz,data:data51}];
 return false;
 }
 }
-var valid13 = _errs97 === errors;
-if(!valid13){
-break;
+else {
+validate20.errors = [{instancePath:instancePath+"/comparator/noise_bw_hz",schemaPath:"#/$defs/comparator/properties/noise_bw_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.noise_bw_hz.type,parentSchema:schema36.properties.noise_bw_hz,data:data51}];
+return false;
+}
+}
+var valid14 = _errs103 === errors;
+}
+else {
+var valid14 = true;
+}
+if(valid14){
+if(data47.noise_v !== undefined){
+let data52 = data47.noise_v;
+const _errs105 = errors;
+if(errors === _errs105){
+if((typeof data52 == "number") && (isFinite(data52))){
+if(data52 <= 0 || isNaN(data52)){
+validate20.errors = [{instancePath:instancePath+"/comparator/noise_v",schemaPath:"#/$defs/comparator/properties/noise_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.noise_v,data:data52}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/comparator/noise_v",schemaPath:"#/$defs/comparator/properties/noise_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.noise_v.type,parentSchema:schema36.properties.noise_v,data:data52}];
+return false;
+}
+}
+var valid14 = _errs105 === errors;
+}
+else {
+var valid14 = true;
+}
+if(valid14){
+if(data47.overdrive_v_s !== undefined){
+let data53 = data47.overdrive_v_s;
+const _errs107 = errors;
+if(errors === _errs107){
+if((typeof data53 == "number") && (isFinite(data53))){
+if(data53 <= 0 || isNaN(data53)){
+validate20.errors = [{instancePath:instancePath+"/comparator/overdrive_v_s",schemaPath:"#/$defs/comparator/properties/overdrive_v_s/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.overdrive_v_s,data:data53}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/comparator/overdrive_v_s",schemaPath:"#/$defs/comparator/properties/overdrive_v_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.overdrive_v_s.type,parentSchema:schema36.properties.overdrive_v_s,data:data53}];
+return false;
+}
+}
+var valid14 = _errs107 === errors;
+}
+else {
+var valid14 = true;
+}
+if(valid14){
+if(data47.overdrive_u_v_s !== undefined){
+let data54 = data47.overdrive_u_v_s;
+const _errs109 = errors;
+if(errors === _errs109){
+if((typeof data54 == "number") && (isFinite(data54))){
+if(data54 < 0 || isNaN(data54)){
+validate20.errors = [{instancePath:instancePath+"/comparator/overdrive_u_v_s",schemaPath:"#/$defs/comparator/properties/overdrive_u_v_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.overdrive_u_v_s,data:data54}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/comparator/overdrive_u_v_s",schemaPath:"#/$defs/comparator/properties/overdrive_u_v_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.overdrive_u_v_s.type,parentSchema:schema36.properties.overdrive_u_v_s,data:data54}];
+return false;
+}
+}
+var valid14 = _errs109 === errors;
+}
+else {
+var valid14 = true;
+}
+}
+}
+}
+}
+}
 }
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/reading_warnings",schemaPath:"#/properties/reading_warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema31.properties.reading_warnings.type,parentSchema:schema31.properties.reading_warnings,data:data47}];
+validate20.errors = [{instancePath:instancePath+"/comparator",schemaPath:"#/$defs/comparator/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema36.type,parentSchema:schema36,data:data47}];
 return false;
 }
 }
@@ -1014,6 +1099,84 @@ var valid0 = _errs95 === errors;
 }
 else {
 var valid0 = true;
+}
+if(valid0){
+if(data.reading_warnings !== undefined){
+let data55 = data.reading_warnings;
+const _errs111 = errors;
+if(errors === _errs111){
+if(Array.isArray(data55)){
+var valid15 = true;
+const len3 = data55.length;
+for(let i1=0; i1<len3; i1++){
+let data56 = data55[i1];
+const _errs113 = errors;
+const _errs114 = errors;
+if(errors === _errs114){
+if(data56 && typeof data56 == "object" && !Array.isArray(data56)){
+let missing6;
+if(((data56.code === undefined) && (missing6 = "code")) || ((data56.message === undefined) && (missing6 = "message"))){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/required",keyword:"required",params:{missingProperty: missing6},message:"must have required property '"+missing6+"'",schema:schema37.required,parentSchema:schema37,data:data56}];
+return false;
+}
+else {
+if(data56.code !== undefined){
+let data57 = data56.code;
+const _errs116 = errors;
+if(errors === _errs116){
+if(typeof data57 === "string"){
+if(!pattern5.test(data57)){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema37.properties.code,data:data57}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.code.type,parentSchema:schema37.properties.code,data:data57}];
+return false;
+}
+}
+var valid17 = _errs116 === errors;
+}
+else {
+var valid17 = true;
+}
+if(valid17){
+if(data56.message !== undefined){
+let data58 = data56.message;
+const _errs118 = errors;
+if(typeof data58 !== "string"){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/message",schemaPath:"#/$defs/warning/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.message.type,parentSchema:schema37.properties.message,data:data58}];
+return false;
+}
+var valid17 = _errs118 === errors;
+}
+else {
+var valid17 = true;
+}
+}
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.type,parentSchema:schema37,data:data56}];
+return false;
+}
+}
+var valid15 = _errs113 === errors;
+if(!valid15){
+break;
+}
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/reading_warnings",schemaPath:"#/properties/reading_warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema31.properties.reading_warnings.type,parentSchema:schema31.properties.reading_warnings,data:data55}];
+return false;
+}
+}
+var valid0 = _errs111 === errors;
+}
+else {
+var valid0 = true;
+}
 }
 }
 }
@@ -1037,15 +1200,15 @@ return false;
 validate20.errors = vErrors;
 return errors === 0;
 }
-validate20.evaluated = {"props":{"format":true,"version":true,"tick_hz":true,"edges":true,"tank_c_f":true,"tank_c_u_f":true,"thresholds_v":true,"drive":true,"range":true,"device":true,"meta":true,"calibration":true,"reading_warnings":true},"dynamicProps":false,"dynamicItems":false};
+validate20.evaluated = {"props":{"format":true,"version":true,"tick_hz":true,"edges":true,"tank_c_f":true,"tank_c_u_f":true,"thresholds_v":true,"drive":true,"range":true,"device":true,"meta":true,"calibration":true,"comparator":true,"reading_warnings":true},"dynamicProps":false,"dynamicItems":false};
 
 export const result = validate21;
-const schema37 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:result:1","title":"henrytick reading result","description":"What `henrytick measure --json` and `henrytick analyze FILE --json` print for one reading (docs/capture-format.md). Units are SI and in the key names; uncertainties named _u_ are expanded (coverage_factor 2). The settings reuse the capture schema's definitions.","type":"object","required":["f0_hz","f0_u_hz","fd_hz","inductance_h","inductance_u_h","coverage_factor","q","q_u","esr_ohm","esr_u_ohm","ring_amplitude_v","edges_used","edges_rejected","warnings","settings"],"properties":{"suspect":{"$ref":"#/$defs/coded","description":"present only for a reading kept on request although it shows a part fault: not a verified result"},"f0_hz":{"type":"number","exclusiveMinimum":0,"description":"undamped resonance"},"f0_u_hz":{"type":"number","minimum":0},"fd_hz":{"type":"number","exclusiveMinimum":0,"description":"damped ring frequency"},"inductance_h":{"type":"number","exclusiveMinimum":0},"inductance_u_h":{"type":"number","minimum":0},"coverage_factor":{"const":2},"q":{"type":"number","exclusiveMinimum":0},"q_u":{"type":"number","minimum":0},"esr_ohm":{"type":"number","minimum":0},"esr_u_ohm":{"type":"number","minimum":0},"ring_amplitude_v":{"type":"number","minimum":0},"edges_used":{"type":"integer","minimum":0},"edges_rejected":{"type":"integer","minimum":0},"warnings":{"type":"array","items":{"$ref":"#/$defs/coded"}},"settings":{"type":"object","required":["tick_hz","tank_c_f","thresholds_v"],"properties":{"tick_hz":{"$ref":"urn:henrytick:schema:capture:1#/properties/tick_hz"},"tank_c_f":{"$ref":"urn:henrytick:schema:capture:1#/properties/tank_c_f"},"tank_c_u_f":{"$ref":"urn:henrytick:schema:capture:1#/properties/tank_c_u_f"},"thresholds_v":{"$ref":"urn:henrytick:schema:capture:1#/properties/thresholds_v"},"drive":{"$ref":"urn:henrytick:schema:capture:1#/$defs/drive"},"range":{"$ref":"urn:henrytick:schema:capture:1#/$defs/range"},"calibration":{"$ref":"urn:henrytick:schema:capture:1#/$defs/calibration"}}},"device":{"$ref":"urn:henrytick:schema:capture:1#/$defs/device"},"label":{"type":"string"},"test_frequency":{"type":"object","description":"present only when a test frequency was asked for (measure --freq, test_frequency_hz): how near the reading came","required":["asked_hz","rang_hz","deviation_rel","tank_index","nearest","nearer_tanks","note"],"properties":{"asked_hz":{"type":"number","exclusiveMinimum":0},"rang_hz":{"type":"number","exclusiveMinimum":0,"description":"the reading's f0"},"deviation_rel":{"type":"number","description":"(rang_hz - asked_hz) / asked_hz"},"tank_index":{"type":"integer","minimum":0},"nearest":{"type":"boolean","description":"no tank of the tester was predicted to ring nearer"},"nearer_tanks":{"type":"array","description":"nearer tanks not used, each with the reason","items":{"type":"object","required":["tank_index","predicted_hz","why"],"properties":{"tank_index":{"type":"integer","minimum":0},"predicted_hz":{"type":"number","exclusiveMinimum":0},"why":{"type":"string"}}}},"note":{"type":"string"}}}},"$defs":{"coded":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code such as NO_RING (docs/library.md lists them)"},"message":{"type":"string"}}}}};
-const schema38 = {"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code such as NO_RING (docs/library.md lists them)"},"message":{"type":"string"}}};
-const schema40 = {"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"};
-const schema41 = {"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"};
-const schema42 = {"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"};
-const schema43 = {"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2};
+const schema38 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:result:1","title":"henrytick reading result","description":"What `henrytick measure --json` and `henrytick analyze FILE --json` print for one reading (docs/capture-format.md). Units are SI and in the key names; uncertainties named _u_ are expanded (coverage_factor 2). The settings reuse the capture schema's definitions.","type":"object","required":["f0_hz","f0_u_hz","fd_hz","inductance_h","inductance_u_h","coverage_factor","q","q_u","esr_ohm","esr_u_ohm","ring_amplitude_v","edges_used","edges_rejected","warnings","settings"],"properties":{"suspect":{"$ref":"#/$defs/coded","description":"present only for a reading kept on request although it shows a part fault: not a verified result"},"f0_hz":{"type":"number","exclusiveMinimum":0,"description":"undamped resonance"},"f0_u_hz":{"type":"number","minimum":0},"fd_hz":{"type":"number","exclusiveMinimum":0,"description":"damped ring frequency"},"inductance_h":{"type":"number","exclusiveMinimum":0},"inductance_u_h":{"type":"number","minimum":0},"coverage_factor":{"const":2},"q":{"type":"number","exclusiveMinimum":0},"q_u":{"type":"number","minimum":0},"esr_ohm":{"type":"number","minimum":0},"esr_u_ohm":{"type":"number","minimum":0},"ring_amplitude_v":{"type":"number","minimum":0},"edges_used":{"type":"integer","minimum":0},"edges_rejected":{"type":"integer","minimum":0},"warnings":{"type":"array","items":{"$ref":"#/$defs/coded"}},"settings":{"type":"object","required":["tick_hz","tank_c_f","thresholds_v"],"properties":{"tick_hz":{"$ref":"urn:henrytick:schema:capture:1#/properties/tick_hz"},"tank_c_f":{"$ref":"urn:henrytick:schema:capture:1#/properties/tank_c_f"},"tank_c_u_f":{"$ref":"urn:henrytick:schema:capture:1#/properties/tank_c_u_f"},"thresholds_v":{"$ref":"urn:henrytick:schema:capture:1#/properties/thresholds_v"},"drive":{"$ref":"urn:henrytick:schema:capture:1#/$defs/drive"},"range":{"$ref":"urn:henrytick:schema:capture:1#/$defs/range"},"calibration":{"$ref":"urn:henrytick:schema:capture:1#/$defs/calibration"},"comparator":{"$ref":"urn:henrytick:schema:capture:1#/$defs/comparator"}}},"device":{"$ref":"urn:henrytick:schema:capture:1#/$defs/device"},"label":{"type":"string"},"test_frequency":{"type":"object","description":"present only when a test frequency was asked for (measure --freq, test_frequency_hz): how near the reading came","required":["asked_hz","rang_hz","deviation_rel","tank_index","nearest","nearer_tanks","note"],"properties":{"asked_hz":{"type":"number","exclusiveMinimum":0},"rang_hz":{"type":"number","exclusiveMinimum":0,"description":"the reading's f0"},"deviation_rel":{"type":"number","description":"(rang_hz - asked_hz) / asked_hz"},"tank_index":{"type":"integer","minimum":0},"nearest":{"type":"boolean","description":"no tank of the tester was predicted to ring nearer"},"nearer_tanks":{"type":"array","description":"nearer tanks not used, each with the reason","items":{"type":"object","required":["tank_index","predicted_hz","why"],"properties":{"tank_index":{"type":"integer","minimum":0},"predicted_hz":{"type":"number","exclusiveMinimum":0},"why":{"type":"string"}}}},"note":{"type":"string"}}}},"$defs":{"coded":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code such as NO_RING (docs/library.md lists them)"},"message":{"type":"string"}}}}};
+const schema39 = {"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code such as NO_RING (docs/library.md lists them)"},"message":{"type":"string"}}};
+const schema41 = {"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"};
+const schema42 = {"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"};
+const schema43 = {"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"};
+const schema44 = {"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2};
 
 function validate21(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 /*# sourceURL="urn:henrytick:schema:result:1" */;
@@ -1062,7 +1225,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if((((((((((((((((data.f0_hz === undefined) && (missing0 = "f0_hz")) || ((data.f0_u_hz === undefined) && (missing0 = "f0_u_hz"))) || ((data.fd_hz === undefined) && (missing0 = "fd_hz"))) || ((data.inductance_h === undefined) && (missing0 = "inductance_h"))) || ((data.inductance_u_h === undefined) && (missing0 = "inductance_u_h"))) || ((data.coverage_factor === undefined) && (missing0 = "coverage_factor"))) || ((data.q === undefined) && (missing0 = "q"))) || ((data.q_u === undefined) && (missing0 = "q_u"))) || ((data.esr_ohm === undefined) && (missing0 = "esr_ohm"))) || ((data.esr_u_ohm === undefined) && (missing0 = "esr_u_ohm"))) || ((data.ring_amplitude_v === undefined) && (missing0 = "ring_amplitude_v"))) || ((data.edges_used === undefined) && (missing0 = "edges_used"))) || ((data.edges_rejected === undefined) && (missing0 = "edges_rejected"))) || ((data.warnings === undefined) && (missing0 = "warnings"))) || ((data.settings === undefined) && (missing0 = "settings"))){
-validate21.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema37.required,parentSchema:schema37,data}];
+validate21.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema38.required,parentSchema:schema38,data}];
 return false;
 }
 else {
@@ -1074,7 +1237,7 @@ if(errors === _errs2){
 if(data0 && typeof data0 == "object" && !Array.isArray(data0)){
 let missing1;
 if(((data0.code === undefined) && (missing1 = "code")) || ((data0.message === undefined) && (missing1 = "message"))){
-validate21.errors = [{instancePath:instancePath+"/suspect",schemaPath:"#/$defs/coded/required",keyword:"required",params:{missingProperty: missing1},message:"must have required property '"+missing1+"'",schema:schema38.required,parentSchema:schema38,data:data0}];
+validate21.errors = [{instancePath:instancePath+"/suspect",schemaPath:"#/$defs/coded/required",keyword:"required",params:{missingProperty: missing1},message:"must have required property '"+missing1+"'",schema:schema39.required,parentSchema:schema39,data:data0}];
 return false;
 }
 else {
@@ -1084,12 +1247,12 @@ const _errs4 = errors;
 if(errors === _errs4){
 if(typeof data1 === "string"){
 if(!pattern5.test(data1)){
-validate21.errors = [{instancePath:instancePath+"/suspect/code",schemaPath:"#/$defs/coded/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema38.properties.code,data:data1}];
+validate21.errors = [{instancePath:instancePath+"/suspect/code",schemaPath:"#/$defs/coded/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema39.properties.code,data:data1}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/suspect/code",schemaPath:"#/$defs/coded/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.code.type,parentSchema:schema38.properties.code,data:data1}];
+validate21.errors = [{instancePath:instancePath+"/suspect/code",schemaPath:"#/$defs/coded/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema39.properties.code.type,parentSchema:schema39.properties.code,data:data1}];
 return false;
 }
 }
@@ -1103,7 +1266,7 @@ if(data0.message !== undefined){
 let data2 = data0.message;
 const _errs6 = errors;
 if(typeof data2 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/suspect/message",schemaPath:"#/$defs/coded/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.message.type,parentSchema:schema38.properties.message,data:data2}];
+validate21.errors = [{instancePath:instancePath+"/suspect/message",schemaPath:"#/$defs/coded/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema39.properties.message.type,parentSchema:schema39.properties.message,data:data2}];
 return false;
 }
 var valid2 = _errs6 === errors;
@@ -1115,7 +1278,7 @@ var valid2 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/suspect",schemaPath:"#/$defs/coded/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema38.type,parentSchema:schema38,data:data0}];
+validate21.errors = [{instancePath:instancePath+"/suspect",schemaPath:"#/$defs/coded/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema39.type,parentSchema:schema39,data:data0}];
 return false;
 }
 }
@@ -1131,12 +1294,12 @@ const _errs8 = errors;
 if(errors === _errs8){
 if((typeof data3 == "number") && (isFinite(data3))){
 if(data3 <= 0 || isNaN(data3)){
-validate21.errors = [{instancePath:instancePath+"/f0_hz",schemaPath:"#/properties/f0_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.f0_hz,data:data3}];
+validate21.errors = [{instancePath:instancePath+"/f0_hz",schemaPath:"#/properties/f0_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema38.properties.f0_hz,data:data3}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/f0_hz",schemaPath:"#/properties/f0_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.f0_hz.type,parentSchema:schema37.properties.f0_hz,data:data3}];
+validate21.errors = [{instancePath:instancePath+"/f0_hz",schemaPath:"#/properties/f0_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.f0_hz.type,parentSchema:schema38.properties.f0_hz,data:data3}];
 return false;
 }
 }
@@ -1152,12 +1315,12 @@ const _errs10 = errors;
 if(errors === _errs10){
 if((typeof data4 == "number") && (isFinite(data4))){
 if(data4 < 0 || isNaN(data4)){
-validate21.errors = [{instancePath:instancePath+"/f0_u_hz",schemaPath:"#/properties/f0_u_hz/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.f0_u_hz,data:data4}];
+validate21.errors = [{instancePath:instancePath+"/f0_u_hz",schemaPath:"#/properties/f0_u_hz/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema38.properties.f0_u_hz,data:data4}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/f0_u_hz",schemaPath:"#/properties/f0_u_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.f0_u_hz.type,parentSchema:schema37.properties.f0_u_hz,data:data4}];
+validate21.errors = [{instancePath:instancePath+"/f0_u_hz",schemaPath:"#/properties/f0_u_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.f0_u_hz.type,parentSchema:schema38.properties.f0_u_hz,data:data4}];
 return false;
 }
 }
@@ -1173,12 +1336,12 @@ const _errs12 = errors;
 if(errors === _errs12){
 if((typeof data5 == "number") && (isFinite(data5))){
 if(data5 <= 0 || isNaN(data5)){
-validate21.errors = [{instancePath:instancePath+"/fd_hz",schemaPath:"#/properties/fd_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.fd_hz,data:data5}];
+validate21.errors = [{instancePath:instancePath+"/fd_hz",schemaPath:"#/properties/fd_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema38.properties.fd_hz,data:data5}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/fd_hz",schemaPath:"#/properties/fd_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.fd_hz.type,parentSchema:schema37.properties.fd_hz,data:data5}];
+validate21.errors = [{instancePath:instancePath+"/fd_hz",schemaPath:"#/properties/fd_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.fd_hz.type,parentSchema:schema38.properties.fd_hz,data:data5}];
 return false;
 }
 }
@@ -1194,12 +1357,12 @@ const _errs14 = errors;
 if(errors === _errs14){
 if((typeof data6 == "number") && (isFinite(data6))){
 if(data6 <= 0 || isNaN(data6)){
-validate21.errors = [{instancePath:instancePath+"/inductance_h",schemaPath:"#/properties/inductance_h/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.inductance_h,data:data6}];
+validate21.errors = [{instancePath:instancePath+"/inductance_h",schemaPath:"#/properties/inductance_h/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema38.properties.inductance_h,data:data6}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/inductance_h",schemaPath:"#/properties/inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.inductance_h.type,parentSchema:schema37.properties.inductance_h,data:data6}];
+validate21.errors = [{instancePath:instancePath+"/inductance_h",schemaPath:"#/properties/inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.inductance_h.type,parentSchema:schema38.properties.inductance_h,data:data6}];
 return false;
 }
 }
@@ -1215,12 +1378,12 @@ const _errs16 = errors;
 if(errors === _errs16){
 if((typeof data7 == "number") && (isFinite(data7))){
 if(data7 < 0 || isNaN(data7)){
-validate21.errors = [{instancePath:instancePath+"/inductance_u_h",schemaPath:"#/properties/inductance_u_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.inductance_u_h,data:data7}];
+validate21.errors = [{instancePath:instancePath+"/inductance_u_h",schemaPath:"#/properties/inductance_u_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema38.properties.inductance_u_h,data:data7}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/inductance_u_h",schemaPath:"#/properties/inductance_u_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.inductance_u_h.type,parentSchema:schema37.properties.inductance_u_h,data:data7}];
+validate21.errors = [{instancePath:instancePath+"/inductance_u_h",schemaPath:"#/properties/inductance_u_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.inductance_u_h.type,parentSchema:schema38.properties.inductance_u_h,data:data7}];
 return false;
 }
 }
@@ -1234,7 +1397,7 @@ if(data.coverage_factor !== undefined){
 let data8 = data.coverage_factor;
 const _errs18 = errors;
 if(2 !== data8){
-validate21.errors = [{instancePath:instancePath+"/coverage_factor",schemaPath:"#/properties/coverage_factor/const",keyword:"const",params:{allowedValue: 2},message:"must be equal to constant",schema:2,parentSchema:schema37.properties.coverage_factor,data:data8}];
+validate21.errors = [{instancePath:instancePath+"/coverage_factor",schemaPath:"#/properties/coverage_factor/const",keyword:"const",params:{allowedValue: 2},message:"must be equal to constant",schema:2,parentSchema:schema38.properties.coverage_factor,data:data8}];
 return false;
 }
 var valid0 = _errs18 === errors;
@@ -1249,12 +1412,12 @@ const _errs19 = errors;
 if(errors === _errs19){
 if((typeof data9 == "number") && (isFinite(data9))){
 if(data9 <= 0 || isNaN(data9)){
-validate21.errors = [{instancePath:instancePath+"/q",schemaPath:"#/properties/q/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.q,data:data9}];
+validate21.errors = [{instancePath:instancePath+"/q",schemaPath:"#/properties/q/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema38.properties.q,data:data9}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/q",schemaPath:"#/properties/q/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.q.type,parentSchema:schema37.properties.q,data:data9}];
+validate21.errors = [{instancePath:instancePath+"/q",schemaPath:"#/properties/q/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.q.type,parentSchema:schema38.properties.q,data:data9}];
 return false;
 }
 }
@@ -1270,12 +1433,12 @@ const _errs21 = errors;
 if(errors === _errs21){
 if((typeof data10 == "number") && (isFinite(data10))){
 if(data10 < 0 || isNaN(data10)){
-validate21.errors = [{instancePath:instancePath+"/q_u",schemaPath:"#/properties/q_u/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.q_u,data:data10}];
+validate21.errors = [{instancePath:instancePath+"/q_u",schemaPath:"#/properties/q_u/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema38.properties.q_u,data:data10}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/q_u",schemaPath:"#/properties/q_u/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.q_u.type,parentSchema:schema37.properties.q_u,data:data10}];
+validate21.errors = [{instancePath:instancePath+"/q_u",schemaPath:"#/properties/q_u/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.q_u.type,parentSchema:schema38.properties.q_u,data:data10}];
 return false;
 }
 }
@@ -1291,12 +1454,12 @@ const _errs23 = errors;
 if(errors === _errs23){
 if((typeof data11 == "number") && (isFinite(data11))){
 if(data11 < 0 || isNaN(data11)){
-validate21.errors = [{instancePath:instancePath+"/esr_ohm",schemaPath:"#/properties/esr_ohm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.esr_ohm,data:data11}];
+validate21.errors = [{instancePath:instancePath+"/esr_ohm",schemaPath:"#/properties/esr_ohm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema38.properties.esr_ohm,data:data11}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/esr_ohm",schemaPath:"#/properties/esr_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.esr_ohm.type,parentSchema:schema37.properties.esr_ohm,data:data11}];
+validate21.errors = [{instancePath:instancePath+"/esr_ohm",schemaPath:"#/properties/esr_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.esr_ohm.type,parentSchema:schema38.properties.esr_ohm,data:data11}];
 return false;
 }
 }
@@ -1312,12 +1475,12 @@ const _errs25 = errors;
 if(errors === _errs25){
 if((typeof data12 == "number") && (isFinite(data12))){
 if(data12 < 0 || isNaN(data12)){
-validate21.errors = [{instancePath:instancePath+"/esr_u_ohm",schemaPath:"#/properties/esr_u_ohm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.esr_u_ohm,data:data12}];
+validate21.errors = [{instancePath:instancePath+"/esr_u_ohm",schemaPath:"#/properties/esr_u_ohm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema38.properties.esr_u_ohm,data:data12}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/esr_u_ohm",schemaPath:"#/properties/esr_u_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.esr_u_ohm.type,parentSchema:schema37.properties.esr_u_ohm,data:data12}];
+validate21.errors = [{instancePath:instancePath+"/esr_u_ohm",schemaPath:"#/properties/esr_u_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.esr_u_ohm.type,parentSchema:schema38.properties.esr_u_ohm,data:data12}];
 return false;
 }
 }
@@ -1333,12 +1496,12 @@ const _errs27 = errors;
 if(errors === _errs27){
 if((typeof data13 == "number") && (isFinite(data13))){
 if(data13 < 0 || isNaN(data13)){
-validate21.errors = [{instancePath:instancePath+"/ring_amplitude_v",schemaPath:"#/properties/ring_amplitude_v/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.ring_amplitude_v,data:data13}];
+validate21.errors = [{instancePath:instancePath+"/ring_amplitude_v",schemaPath:"#/properties/ring_amplitude_v/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema38.properties.ring_amplitude_v,data:data13}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/ring_amplitude_v",schemaPath:"#/properties/ring_amplitude_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.ring_amplitude_v.type,parentSchema:schema37.properties.ring_amplitude_v,data:data13}];
+validate21.errors = [{instancePath:instancePath+"/ring_amplitude_v",schemaPath:"#/properties/ring_amplitude_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.ring_amplitude_v.type,parentSchema:schema38.properties.ring_amplitude_v,data:data13}];
 return false;
 }
 }
@@ -1352,13 +1515,13 @@ if(data.edges_used !== undefined){
 let data14 = data.edges_used;
 const _errs29 = errors;
 if(!(((typeof data14 == "number") && (!(data14 % 1) && !isNaN(data14))) && (isFinite(data14)))){
-validate21.errors = [{instancePath:instancePath+"/edges_used",schemaPath:"#/properties/edges_used/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema37.properties.edges_used.type,parentSchema:schema37.properties.edges_used,data:data14}];
+validate21.errors = [{instancePath:instancePath+"/edges_used",schemaPath:"#/properties/edges_used/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema38.properties.edges_used.type,parentSchema:schema38.properties.edges_used,data:data14}];
 return false;
 }
 if(errors === _errs29){
 if((typeof data14 == "number") && (isFinite(data14))){
 if(data14 < 0 || isNaN(data14)){
-validate21.errors = [{instancePath:instancePath+"/edges_used",schemaPath:"#/properties/edges_used/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.edges_used,data:data14}];
+validate21.errors = [{instancePath:instancePath+"/edges_used",schemaPath:"#/properties/edges_used/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema38.properties.edges_used,data:data14}];
 return false;
 }
 }
@@ -1373,13 +1536,13 @@ if(data.edges_rejected !== undefined){
 let data15 = data.edges_rejected;
 const _errs31 = errors;
 if(!(((typeof data15 == "number") && (!(data15 % 1) && !isNaN(data15))) && (isFinite(data15)))){
-validate21.errors = [{instancePath:instancePath+"/edges_rejected",schemaPath:"#/properties/edges_rejected/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema37.properties.edges_rejected.type,parentSchema:schema37.properties.edges_rejected,data:data15}];
+validate21.errors = [{instancePath:instancePath+"/edges_rejected",schemaPath:"#/properties/edges_rejected/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema38.properties.edges_rejected.type,parentSchema:schema38.properties.edges_rejected,data:data15}];
 return false;
 }
 if(errors === _errs31){
 if((typeof data15 == "number") && (isFinite(data15))){
 if(data15 < 0 || isNaN(data15)){
-validate21.errors = [{instancePath:instancePath+"/edges_rejected",schemaPath:"#/properties/edges_rejected/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.edges_rejected,data:data15}];
+validate21.errors = [{instancePath:instancePath+"/edges_rejected",schemaPath:"#/properties/edges_rejected/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema38.properties.edges_rejected,data:data15}];
 return false;
 }
 }
@@ -1405,7 +1568,7 @@ if(errors === _errs36){
 if(data17 && typeof data17 == "object" && !Array.isArray(data17)){
 let missing2;
 if(((data17.code === undefined) && (missing2 = "code")) || ((data17.message === undefined) && (missing2 = "message"))){
-validate21.errors = [{instancePath:instancePath+"/warnings/" + i0,schemaPath:"#/$defs/coded/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema38.required,parentSchema:schema38,data:data17}];
+validate21.errors = [{instancePath:instancePath+"/warnings/" + i0,schemaPath:"#/$defs/coded/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema39.required,parentSchema:schema39,data:data17}];
 return false;
 }
 else {
@@ -1415,12 +1578,12 @@ const _errs38 = errors;
 if(errors === _errs38){
 if(typeof data18 === "string"){
 if(!pattern5.test(data18)){
-validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/code",schemaPath:"#/$defs/coded/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema38.properties.code,data:data18}];
+validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/code",schemaPath:"#/$defs/coded/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema39.properties.code,data:data18}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/code",schemaPath:"#/$defs/coded/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.code.type,parentSchema:schema38.properties.code,data:data18}];
+validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/code",schemaPath:"#/$defs/coded/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema39.properties.code.type,parentSchema:schema39.properties.code,data:data18}];
 return false;
 }
 }
@@ -1434,7 +1597,7 @@ if(data17.message !== undefined){
 let data19 = data17.message;
 const _errs40 = errors;
 if(typeof data19 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/message",schemaPath:"#/$defs/coded/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.message.type,parentSchema:schema38.properties.message,data:data19}];
+validate21.errors = [{instancePath:instancePath+"/warnings/" + i0+"/message",schemaPath:"#/$defs/coded/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema39.properties.message.type,parentSchema:schema39.properties.message,data:data19}];
 return false;
 }
 var valid5 = _errs40 === errors;
@@ -1446,7 +1609,7 @@ var valid5 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/warnings/" + i0,schemaPath:"#/$defs/coded/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema38.type,parentSchema:schema38,data:data17}];
+validate21.errors = [{instancePath:instancePath+"/warnings/" + i0,schemaPath:"#/$defs/coded/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema39.type,parentSchema:schema39,data:data17}];
 return false;
 }
 }
@@ -1457,7 +1620,7 @@ break;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/warnings",schemaPath:"#/properties/warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema37.properties.warnings.type,parentSchema:schema37.properties.warnings,data:data16}];
+validate21.errors = [{instancePath:instancePath+"/warnings",schemaPath:"#/properties/warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema38.properties.warnings.type,parentSchema:schema38.properties.warnings,data:data16}];
 return false;
 }
 }
@@ -1474,7 +1637,7 @@ if(errors === _errs42){
 if(data20 && typeof data20 == "object" && !Array.isArray(data20)){
 let missing3;
 if((((data20.tick_hz === undefined) && (missing3 = "tick_hz")) || ((data20.tank_c_f === undefined) && (missing3 = "tank_c_f"))) || ((data20.thresholds_v === undefined) && (missing3 = "thresholds_v"))){
-validate21.errors = [{instancePath:instancePath+"/settings",schemaPath:"#/properties/settings/required",keyword:"required",params:{missingProperty: missing3},message:"must have required property '"+missing3+"'",schema:schema37.properties.settings.required,parentSchema:schema37.properties.settings,data:data20}];
+validate21.errors = [{instancePath:instancePath+"/settings",schemaPath:"#/properties/settings/required",keyword:"required",params:{missingProperty: missing3},message:"must have required property '"+missing3+"'",schema:schema38.properties.settings.required,parentSchema:schema38.properties.settings,data:data20}];
 return false;
 }
 else {
@@ -1485,12 +1648,12 @@ const _errs45 = errors;
 if(errors === _errs45){
 if((typeof data21 == "number") && (isFinite(data21))){
 if(data21 <= 0 || isNaN(data21)){
-validate21.errors = [{instancePath:instancePath+"/settings/tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/properties/tick_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema40,data:data21}];
+validate21.errors = [{instancePath:instancePath+"/settings/tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/properties/tick_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema41,data:data21}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/properties/tick_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema40.type,parentSchema:schema40,data:data21}];
+validate21.errors = [{instancePath:instancePath+"/settings/tick_hz",schemaPath:"urn:henrytick:schema:capture:1#/properties/tick_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema41.type,parentSchema:schema41,data:data21}];
 return false;
 }
 }
@@ -1507,12 +1670,12 @@ const _errs48 = errors;
 if(errors === _errs48){
 if((typeof data22 == "number") && (isFinite(data22))){
 if(data22 <= 0 || isNaN(data22)){
-validate21.errors = [{instancePath:instancePath+"/settings/tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema41,data:data22}];
+validate21.errors = [{instancePath:instancePath+"/settings/tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema42,data:data22}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema41.type,parentSchema:schema41,data:data22}];
+validate21.errors = [{instancePath:instancePath+"/settings/tank_c_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema42.type,parentSchema:schema42,data:data22}];
 return false;
 }
 }
@@ -1529,12 +1692,12 @@ const _errs51 = errors;
 if(errors === _errs51){
 if((typeof data23 == "number") && (isFinite(data23))){
 if(data23 <= 0 || isNaN(data23)){
-validate21.errors = [{instancePath:instancePath+"/settings/tank_c_u_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_u_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema42,data:data23}];
+validate21.errors = [{instancePath:instancePath+"/settings/tank_c_u_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_u_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema43,data:data23}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/tank_c_u_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema42.type,parentSchema:schema42,data:data23}];
+validate21.errors = [{instancePath:instancePath+"/settings/tank_c_u_f",schemaPath:"urn:henrytick:schema:capture:1#/properties/tank_c_u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema43.type,parentSchema:schema43,data:data23}];
 return false;
 }
 }
@@ -1551,12 +1714,12 @@ const _errs54 = errors;
 if(errors === _errs54){
 if(Array.isArray(data24)){
 if(data24.length > 2){
-validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema43,data:data24}];
+validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema44,data:data24}];
 return false;
 }
 else {
 if(data24.length < 2){
-validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema43,data:data24}];
+validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema44,data:data24}];
 return false;
 }
 else {
@@ -1565,7 +1728,7 @@ if(len1 > 0){
 let data25 = data24[0];
 const _errs56 = errors;
 if(!((typeof data25 == "number") && (isFinite(data25)))){
-validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v/0",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/prefixItems/0/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema43.prefixItems[0].type,parentSchema:schema43.prefixItems[0],data:data25}];
+validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v/0",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/prefixItems/0/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema44.prefixItems[0].type,parentSchema:schema44.prefixItems[0],data:data25}];
 return false;
 }
 var valid11 = _errs56 === errors;
@@ -1575,7 +1738,7 @@ if(len1 > 1){
 let data26 = data24[1];
 const _errs58 = errors;
 if(!((typeof data26 == "number") && (isFinite(data26)))){
-validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v/1",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/prefixItems/1/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema43.prefixItems[1].type,parentSchema:schema43.prefixItems[1],data:data26}];
+validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v/1",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/prefixItems/1/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema44.prefixItems[1].type,parentSchema:schema44.prefixItems[1],data:data26}];
 return false;
 }
 var valid11 = _errs58 === errors;
@@ -1585,7 +1748,7 @@ var valid11 = _errs58 === errors;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema43.type,parentSchema:schema43,data:data24}];
+validate21.errors = [{instancePath:instancePath+"/settings/thresholds_v",schemaPath:"urn:henrytick:schema:capture:1#/properties/thresholds_v/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema44.type,parentSchema:schema44,data:data24}];
 return false;
 }
 }
@@ -2085,6 +2248,149 @@ var valid6 = _errs84 === errors;
 else {
 var valid6 = true;
 }
+if(valid6){
+if(data20.comparator !== undefined){
+let data51 = data20.comparator;
+const _errs111 = errors;
+const _errs112 = errors;
+if(errors === _errs112){
+if(data51 && typeof data51 == "object" && !Array.isArray(data51)){
+let missing7;
+if((((data51.skew_s === undefined) && (missing7 = "skew_s")) || ((data51.skew_u_s === undefined) && (missing7 = "skew_u_s"))) || ((data51.skew_source === undefined) && (missing7 = "skew_source"))){
+validate21.errors = [{instancePath:instancePath+"/settings/comparator",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/required",keyword:"required",params:{missingProperty: missing7},message:"must have required property '"+missing7+"'",schema:schema36.required,parentSchema:schema36,data:data51}];
+return false;
+}
+else {
+if(data51.skew_s !== undefined){
+let data52 = data51.skew_s;
+const _errs114 = errors;
+if(!((typeof data52 == "number") && (isFinite(data52)))){
+validate21.errors = [{instancePath:instancePath+"/settings/comparator/skew_s",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/skew_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.skew_s.type,parentSchema:schema36.properties.skew_s,data:data52}];
+return false;
+}
+var valid19 = _errs114 === errors;
+}
+else {
+var valid19 = true;
+}
+if(valid19){
+if(data51.skew_u_s !== undefined){
+let data53 = data51.skew_u_s;
+const _errs116 = errors;
+if(errors === _errs116){
+if((typeof data53 == "number") && (isFinite(data53))){
+if(data53 < 0 || isNaN(data53)){
+validate21.errors = [{instancePath:instancePath+"/settings/comparator/skew_u_s",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/skew_u_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.skew_u_s,data:data53}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings/comparator/skew_u_s",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/skew_u_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.skew_u_s.type,parentSchema:schema36.properties.skew_u_s,data:data53}];
+return false;
+}
+}
+var valid19 = _errs116 === errors;
+}
+else {
+var valid19 = true;
+}
+if(valid19){
+if(data51.skew_source !== undefined){
+let data54 = data51.skew_source;
+const _errs118 = errors;
+if(!((data54 === "calibration") || (data54 === "board profile"))){
+validate21.errors = [{instancePath:instancePath+"/settings/comparator/skew_source",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/skew_source/enum",keyword:"enum",params:{allowedValues: schema36.properties.skew_source.enum},message:"must be equal to one of the allowed values",schema:schema36.properties.skew_source.enum,parentSchema:schema36.properties.skew_source,data:data54}];
+return false;
+}
+var valid19 = _errs118 === errors;
+}
+else {
+var valid19 = true;
+}
+if(valid19){
+if(data51.noise_bw_hz !== undefined){
+let data55 = data51.noise_bw_hz;
+const _errs119 = errors;
+if(errors === _errs119){
+if((typeof data55 == "number") && (isFinite(data55))){
+if(data55 <= 0 || isNaN(data55)){
+validate21.errors = [{instancePath:instancePath+"/settings/comparator/noise_bw_hz",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/noise_bw_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.noise_bw_hz,data:data55}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings/comparator/noise_bw_hz",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/noise_bw_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.noise_bw_hz.type,parentSchema:schema36.properties.noise_bw_hz,data:data55}];
+return false;
+}
+}
+var valid19 = _errs119 === errors;
+}
+else {
+var valid19 = true;
+}
+if(valid19){
+if(data51.noise_v !== undefined){
+let data56 = data51.noise_v;
+const _errs121 = errors;
+if(errors === _errs121){
+if((typeof data56 == "number") && (isFinite(data56))){
+if(data56 <= 0 || isNaN(data56)){
+validate21.errors = [{instancePath:instancePath+"/settings/comparator/noise_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/noise_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.noise_v,data:data56}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings/comparator/noise_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/noise_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.noise_v.type,parentSchema:schema36.properties.noise_v,data:data56}];
+return false;
+}
+}
+var valid19 = _errs121 === errors;
+}
+else {
+var valid19 = true;
+}
+if(valid19){
+if(data51.overdrive_v_s !== undefined){
+let data57 = data51.overdrive_v_s;
+const _errs123 = errors;
+if(errors === _errs123){
+if((typeof data57 == "number") && (isFinite(data57))){
+if(data57 <= 0 || isNaN(data57)){
+validate21.errors = [{instancePath:instancePath+"/settings/comparator/overdrive_v_s",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/overdrive_v_s/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.overdrive_v_s,data:data57}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings/comparator/overdrive_v_s",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/overdrive_v_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.overdrive_v_s.type,parentSchema:schema36.properties.overdrive_v_s,data:data57}];
+return false;
+}
+}
+var valid19 = _errs123 === errors;
+}
+else {
+var valid19 = true;
+}
+if(valid19){
+if(data51.overdrive_u_v_s !== undefined){
+let data58 = data51.overdrive_u_v_s;
+const _errs125 = errors;
+if(errors === _errs125){
+if((typeof data58 == "number") && (isFinite(data58))){
+if(data58 < 0 || isNaN(data58)){
+validate21.errors = [{instancePath:instancePath+"/settings/comparator/overdrive_u_v_s",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/overdrive_u_v_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.overdrive_u_v_s,data:data58}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings/comparator/overdrive_u_v_s",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/overdrive_u_v_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.overdrive_u_v_s.type,parentSchema:schema36.properties.overdrive_u_v_s,data:data58}];
+return false;
+}
+}
+var valid19 = _errs125 === errors;
+}
+else {
+var valid19 = true;
+}
 }
 }
 }
@@ -2094,7 +2400,26 @@ var valid6 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings",schemaPath:"#/properties/settings/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.properties.settings.type,parentSchema:schema37.properties.settings,data:data20}];
+validate21.errors = [{instancePath:instancePath+"/settings/comparator",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema36.type,parentSchema:schema36,data:data51}];
+return false;
+}
+}
+var valid6 = _errs111 === errors;
+}
+else {
+var valid6 = true;
+}
+}
+}
+}
+}
+}
+}
+}
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings",schemaPath:"#/properties/settings/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema38.properties.settings.type,parentSchema:schema38.properties.settings,data:data20}];
 return false;
 }
 }
@@ -2105,300 +2430,172 @@ var valid0 = true;
 }
 if(valid0){
 if(data.device !== undefined){
-let data51 = data.device;
-const _errs111 = errors;
-const _errs112 = errors;
-if(errors === _errs112){
-if(data51 && typeof data51 == "object" && !Array.isArray(data51)){
-let missing7;
-if(((((data51.id === undefined) && (missing7 = "id")) || ((data51.firmware_version === undefined) && (missing7 = "firmware_version"))) || ((data51.protocol_version === undefined) && (missing7 = "protocol_version"))) || ((data51.transport === undefined) && (missing7 = "transport"))){
-validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/required",keyword:"required",params:{missingProperty: missing7},message:"must have required property '"+missing7+"'",schema:schema34.required,parentSchema:schema34,data:data51}];
+let data59 = data.device;
+const _errs127 = errors;
+const _errs128 = errors;
+if(errors === _errs128){
+if(data59 && typeof data59 == "object" && !Array.isArray(data59)){
+let missing8;
+if(((((data59.id === undefined) && (missing8 = "id")) || ((data59.firmware_version === undefined) && (missing8 = "firmware_version"))) || ((data59.protocol_version === undefined) && (missing8 = "protocol_version"))) || ((data59.transport === undefined) && (missing8 = "transport"))){
+validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/required",keyword:"required",params:{missingProperty: missing8},message:"must have required property '"+missing8+"'",schema:schema34.required,parentSchema:schema34,data:data59}];
 return false;
 }
 else {
-if(data51.id !== undefined){
-let data52 = data51.id;
-const _errs114 = errors;
-if(typeof data52 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/id",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.id.type,parentSchema:schema34.properties.id,data:data52}];
+if(data59.id !== undefined){
+let data60 = data59.id;
+const _errs130 = errors;
+if(typeof data60 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/device/id",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.id.type,parentSchema:schema34.properties.id,data:data60}];
 return false;
 }
-var valid19 = _errs114 === errors;
+var valid21 = _errs130 === errors;
 }
 else {
-var valid19 = true;
+var valid21 = true;
 }
-if(valid19){
-if(data51.firmware_version !== undefined){
-let data53 = data51.firmware_version;
-const _errs116 = errors;
-if(typeof data53 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/firmware_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/firmware_version/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.firmware_version.type,parentSchema:schema34.properties.firmware_version,data:data53}];
+if(valid21){
+if(data59.firmware_version !== undefined){
+let data61 = data59.firmware_version;
+const _errs132 = errors;
+if(typeof data61 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/device/firmware_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/firmware_version/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.firmware_version.type,parentSchema:schema34.properties.firmware_version,data:data61}];
 return false;
 }
-var valid19 = _errs116 === errors;
+var valid21 = _errs132 === errors;
 }
 else {
-var valid19 = true;
+var valid21 = true;
 }
-if(valid19){
-if(data51.protocol_version !== undefined){
-let data54 = data51.protocol_version;
-const _errs118 = errors;
-if(!(((typeof data54 == "number") && (!(data54 % 1) && !isNaN(data54))) && (isFinite(data54)))){
-validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema34.properties.protocol_version.type,parentSchema:schema34.properties.protocol_version,data:data54}];
+if(valid21){
+if(data59.protocol_version !== undefined){
+let data62 = data59.protocol_version;
+const _errs134 = errors;
+if(!(((typeof data62 == "number") && (!(data62 % 1) && !isNaN(data62))) && (isFinite(data62)))){
+validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema34.properties.protocol_version.type,parentSchema:schema34.properties.protocol_version,data:data62}];
 return false;
 }
-if(errors === _errs118){
-if((typeof data54 == "number") && (isFinite(data54))){
-if(data54 < 0 || isNaN(data54)){
-validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema34.properties.protocol_version,data:data54}];
+if(errors === _errs134){
+if((typeof data62 == "number") && (isFinite(data62))){
+if(data62 < 0 || isNaN(data62)){
+validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema34.properties.protocol_version,data:data62}];
 return false;
 }
 }
 }
-var valid19 = _errs118 === errors;
+var valid21 = _errs134 === errors;
 }
 else {
-var valid19 = true;
+var valid21 = true;
 }
-if(valid19){
-if(data51.transport !== undefined){
-let data55 = data51.transport;
-const _errs120 = errors;
-if(typeof data55 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/transport",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/transport/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.transport.type,parentSchema:schema34.properties.transport,data:data55}];
+if(valid21){
+if(data59.transport !== undefined){
+let data63 = data59.transport;
+const _errs136 = errors;
+if(typeof data63 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/device/transport",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/transport/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.transport.type,parentSchema:schema34.properties.transport,data:data63}];
 return false;
 }
-var valid19 = _errs120 === errors;
+var valid21 = _errs136 === errors;
 }
 else {
-var valid19 = true;
+var valid21 = true;
 }
-if(valid19){
-if(data51.clamp_v !== undefined){
-let data56 = data51.clamp_v;
-const _errs122 = errors;
-if(errors === _errs122){
-if((typeof data56 == "number") && (isFinite(data56))){
-if(data56 <= 0 || isNaN(data56)){
-validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.clamp_v,data:data56}];
-return false;
-}
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.clamp_v.type,parentSchema:schema34.properties.clamp_v,data:data56}];
-return false;
-}
-}
-var valid19 = _errs122 === errors;
-}
-else {
-var valid19 = true;
-}
-if(valid19){
-if(data51.max_timeout_ms !== undefined){
-let data57 = data51.max_timeout_ms;
-const _errs124 = errors;
-if(errors === _errs124){
-if((typeof data57 == "number") && (isFinite(data57))){
-if(data57 <= 0 || isNaN(data57)){
-validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.max_timeout_ms,data:data57}];
+if(valid21){
+if(data59.clamp_v !== undefined){
+let data64 = data59.clamp_v;
+const _errs138 = errors;
+if(errors === _errs138){
+if((typeof data64 == "number") && (isFinite(data64))){
+if(data64 <= 0 || isNaN(data64)){
+validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.clamp_v,data:data64}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.max_timeout_ms.type,parentSchema:schema34.properties.max_timeout_ms,data:data57}];
+validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.clamp_v.type,parentSchema:schema34.properties.clamp_v,data:data64}];
 return false;
 }
 }
-var valid19 = _errs124 === errors;
+var valid21 = _errs138 === errors;
 }
 else {
-var valid19 = true;
+var valid21 = true;
 }
-}
-}
-}
-}
-}
-}
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema34.type,parentSchema:schema34,data:data51}];
+if(valid21){
+if(data59.max_timeout_ms !== undefined){
+let data65 = data59.max_timeout_ms;
+const _errs140 = errors;
+if(errors === _errs140){
+if((typeof data65 == "number") && (isFinite(data65))){
+if(data65 <= 0 || isNaN(data65)){
+validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.max_timeout_ms,data:data65}];
 return false;
 }
 }
-var valid0 = _errs111 === errors;
+else {
+validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.max_timeout_ms.type,parentSchema:schema34.properties.max_timeout_ms,data:data65}];
+return false;
+}
+}
+var valid21 = _errs140 === errors;
+}
+else {
+var valid21 = true;
+}
+}
+}
+}
+}
+}
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema34.type,parentSchema:schema34,data:data59}];
+return false;
+}
+}
+var valid0 = _errs127 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.label !== undefined){
-let data58 = data.label;
-const _errs126 = errors;
-if(typeof data58 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/label",schemaPath:"#/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.label.type,parentSchema:schema37.properties.label,data:data58}];
+let data66 = data.label;
+const _errs142 = errors;
+if(typeof data66 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/label",schemaPath:"#/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.label.type,parentSchema:schema38.properties.label,data:data66}];
 return false;
 }
-var valid0 = _errs126 === errors;
+var valid0 = _errs142 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.test_frequency !== undefined){
-let data59 = data.test_frequency;
-const _errs128 = errors;
-if(errors === _errs128){
-if(data59 && typeof data59 == "object" && !Array.isArray(data59)){
-let missing8;
-if((((((((data59.asked_hz === undefined) && (missing8 = "asked_hz")) || ((data59.rang_hz === undefined) && (missing8 = "rang_hz"))) || ((data59.deviation_rel === undefined) && (missing8 = "deviation_rel"))) || ((data59.tank_index === undefined) && (missing8 = "tank_index"))) || ((data59.nearest === undefined) && (missing8 = "nearest"))) || ((data59.nearer_tanks === undefined) && (missing8 = "nearer_tanks"))) || ((data59.note === undefined) && (missing8 = "note"))){
-validate21.errors = [{instancePath:instancePath+"/test_frequency",schemaPath:"#/properties/test_frequency/required",keyword:"required",params:{missingProperty: missing8},message:"must have required property '"+missing8+"'",schema:schema37.properties.test_frequency.required,parentSchema:schema37.properties.test_frequency,data:data59}];
-return false;
-}
-else {
-if(data59.asked_hz !== undefined){
-let data60 = data59.asked_hz;
-const _errs130 = errors;
-if(errors === _errs130){
-if((typeof data60 == "number") && (isFinite(data60))){
-if(data60 <= 0 || isNaN(data60)){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/asked_hz",schemaPath:"#/properties/test_frequency/properties/asked_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.test_frequency.properties.asked_hz,data:data60}];
-return false;
-}
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency/asked_hz",schemaPath:"#/properties/test_frequency/properties/asked_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.test_frequency.properties.asked_hz.type,parentSchema:schema37.properties.test_frequency.properties.asked_hz,data:data60}];
-return false;
-}
-}
-var valid20 = _errs130 === errors;
-}
-else {
-var valid20 = true;
-}
-if(valid20){
-if(data59.rang_hz !== undefined){
-let data61 = data59.rang_hz;
-const _errs132 = errors;
-if(errors === _errs132){
-if((typeof data61 == "number") && (isFinite(data61))){
-if(data61 <= 0 || isNaN(data61)){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/rang_hz",schemaPath:"#/properties/test_frequency/properties/rang_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.test_frequency.properties.rang_hz,data:data61}];
-return false;
-}
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency/rang_hz",schemaPath:"#/properties/test_frequency/properties/rang_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.test_frequency.properties.rang_hz.type,parentSchema:schema37.properties.test_frequency.properties.rang_hz,data:data61}];
-return false;
-}
-}
-var valid20 = _errs132 === errors;
-}
-else {
-var valid20 = true;
-}
-if(valid20){
-if(data59.deviation_rel !== undefined){
-let data62 = data59.deviation_rel;
-const _errs134 = errors;
-if(!((typeof data62 == "number") && (isFinite(data62)))){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/deviation_rel",schemaPath:"#/properties/test_frequency/properties/deviation_rel/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.test_frequency.properties.deviation_rel.type,parentSchema:schema37.properties.test_frequency.properties.deviation_rel,data:data62}];
-return false;
-}
-var valid20 = _errs134 === errors;
-}
-else {
-var valid20 = true;
-}
-if(valid20){
-if(data59.tank_index !== undefined){
-let data63 = data59.tank_index;
-const _errs136 = errors;
-if(!(((typeof data63 == "number") && (!(data63 % 1) && !isNaN(data63))) && (isFinite(data63)))){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/tank_index",schemaPath:"#/properties/test_frequency/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema37.properties.test_frequency.properties.tank_index.type,parentSchema:schema37.properties.test_frequency.properties.tank_index,data:data63}];
-return false;
-}
-if(errors === _errs136){
-if((typeof data63 == "number") && (isFinite(data63))){
-if(data63 < 0 || isNaN(data63)){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/tank_index",schemaPath:"#/properties/test_frequency/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.test_frequency.properties.tank_index,data:data63}];
-return false;
-}
-}
-}
-var valid20 = _errs136 === errors;
-}
-else {
-var valid20 = true;
-}
-if(valid20){
-if(data59.nearest !== undefined){
-let data64 = data59.nearest;
-const _errs138 = errors;
-if(typeof data64 !== "boolean"){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearest",schemaPath:"#/properties/test_frequency/properties/nearest/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema37.properties.test_frequency.properties.nearest.type,parentSchema:schema37.properties.test_frequency.properties.nearest,data:data64}];
-return false;
-}
-var valid20 = _errs138 === errors;
-}
-else {
-var valid20 = true;
-}
-if(valid20){
-if(data59.nearer_tanks !== undefined){
-let data65 = data59.nearer_tanks;
-const _errs140 = errors;
-if(errors === _errs140){
-if(Array.isArray(data65)){
-var valid21 = true;
-const len2 = data65.length;
-for(let i1=0; i1<len2; i1++){
-let data66 = data65[i1];
-const _errs142 = errors;
-if(errors === _errs142){
-if(data66 && typeof data66 == "object" && !Array.isArray(data66)){
-let missing9;
-if((((data66.tank_index === undefined) && (missing9 = "tank_index")) || ((data66.predicted_hz === undefined) && (missing9 = "predicted_hz"))) || ((data66.why === undefined) && (missing9 = "why"))){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1,schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/required",keyword:"required",params:{missingProperty: missing9},message:"must have required property '"+missing9+"'",schema:schema37.properties.test_frequency.properties.nearer_tanks.items.required,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items,data:data66}];
-return false;
-}
-else {
-if(data66.tank_index !== undefined){
-let data67 = data66.tank_index;
+let data67 = data.test_frequency;
 const _errs144 = errors;
-if(!(((typeof data67 == "number") && (!(data67 % 1) && !isNaN(data67))) && (isFinite(data67)))){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/tank_index",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index.type,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index,data:data67}];
-return false;
-}
 if(errors === _errs144){
-if((typeof data67 == "number") && (isFinite(data67))){
-if(data67 < 0 || isNaN(data67)){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/tank_index",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index,data:data67}];
+if(data67 && typeof data67 == "object" && !Array.isArray(data67)){
+let missing9;
+if((((((((data67.asked_hz === undefined) && (missing9 = "asked_hz")) || ((data67.rang_hz === undefined) && (missing9 = "rang_hz"))) || ((data67.deviation_rel === undefined) && (missing9 = "deviation_rel"))) || ((data67.tank_index === undefined) && (missing9 = "tank_index"))) || ((data67.nearest === undefined) && (missing9 = "nearest"))) || ((data67.nearer_tanks === undefined) && (missing9 = "nearer_tanks"))) || ((data67.note === undefined) && (missing9 = "note"))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency",schemaPath:"#/properties/test_frequency/required",keyword:"required",params:{missingProperty: missing9},message:"must have required property '"+missing9+"'",schema:schema38.properties.test_frequency.required,parentSchema:schema38.properties.test_frequency,data:data67}];
 return false;
-}
-}
-}
-var valid22 = _errs144 === errors;
 }
 else {
-var valid22 = true;
-}
-if(valid22){
-if(data66.predicted_hz !== undefined){
-let data68 = data66.predicted_hz;
+if(data67.asked_hz !== undefined){
+let data68 = data67.asked_hz;
 const _errs146 = errors;
 if(errors === _errs146){
 if((typeof data68 == "number") && (isFinite(data68))){
 if(data68 <= 0 || isNaN(data68)){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/predicted_hz",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/predicted_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz,data:data68}];
+validate21.errors = [{instancePath:instancePath+"/test_frequency/asked_hz",schemaPath:"#/properties/test_frequency/properties/asked_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.asked_hz,data:data68}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/predicted_hz",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/predicted_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz.type,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz,data:data68}];
+validate21.errors = [{instancePath:instancePath+"/test_frequency/asked_hz",schemaPath:"#/properties/test_frequency/properties/asked_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.test_frequency.properties.asked_hz.type,parentSchema:schema38.properties.test_frequency.properties.asked_hz,data:data68}];
 return false;
 }
 }
@@ -2408,14 +2605,180 @@ else {
 var valid22 = true;
 }
 if(valid22){
-if(data66.why !== undefined){
-let data69 = data66.why;
+if(data67.rang_hz !== undefined){
+let data69 = data67.rang_hz;
 const _errs148 = errors;
-if(typeof data69 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/why",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/why/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.why.type,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items.properties.why,data:data69}];
+if(errors === _errs148){
+if((typeof data69 == "number") && (isFinite(data69))){
+if(data69 <= 0 || isNaN(data69)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/rang_hz",schemaPath:"#/properties/test_frequency/properties/rang_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.rang_hz,data:data69}];
 return false;
 }
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/test_frequency/rang_hz",schemaPath:"#/properties/test_frequency/properties/rang_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.test_frequency.properties.rang_hz.type,parentSchema:schema38.properties.test_frequency.properties.rang_hz,data:data69}];
+return false;
+}
+}
 var valid22 = _errs148 === errors;
+}
+else {
+var valid22 = true;
+}
+if(valid22){
+if(data67.deviation_rel !== undefined){
+let data70 = data67.deviation_rel;
+const _errs150 = errors;
+if(!((typeof data70 == "number") && (isFinite(data70)))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/deviation_rel",schemaPath:"#/properties/test_frequency/properties/deviation_rel/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.test_frequency.properties.deviation_rel.type,parentSchema:schema38.properties.test_frequency.properties.deviation_rel,data:data70}];
+return false;
+}
+var valid22 = _errs150 === errors;
+}
+else {
+var valid22 = true;
+}
+if(valid22){
+if(data67.tank_index !== undefined){
+let data71 = data67.tank_index;
+const _errs152 = errors;
+if(!(((typeof data71 == "number") && (!(data71 % 1) && !isNaN(data71))) && (isFinite(data71)))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/tank_index",schemaPath:"#/properties/test_frequency/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema38.properties.test_frequency.properties.tank_index.type,parentSchema:schema38.properties.test_frequency.properties.tank_index,data:data71}];
+return false;
+}
+if(errors === _errs152){
+if((typeof data71 == "number") && (isFinite(data71))){
+if(data71 < 0 || isNaN(data71)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/tank_index",schemaPath:"#/properties/test_frequency/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.tank_index,data:data71}];
+return false;
+}
+}
+}
+var valid22 = _errs152 === errors;
+}
+else {
+var valid22 = true;
+}
+if(valid22){
+if(data67.nearest !== undefined){
+let data72 = data67.nearest;
+const _errs154 = errors;
+if(typeof data72 !== "boolean"){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearest",schemaPath:"#/properties/test_frequency/properties/nearest/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema38.properties.test_frequency.properties.nearest.type,parentSchema:schema38.properties.test_frequency.properties.nearest,data:data72}];
+return false;
+}
+var valid22 = _errs154 === errors;
+}
+else {
+var valid22 = true;
+}
+if(valid22){
+if(data67.nearer_tanks !== undefined){
+let data73 = data67.nearer_tanks;
+const _errs156 = errors;
+if(errors === _errs156){
+if(Array.isArray(data73)){
+var valid23 = true;
+const len2 = data73.length;
+for(let i1=0; i1<len2; i1++){
+let data74 = data73[i1];
+const _errs158 = errors;
+if(errors === _errs158){
+if(data74 && typeof data74 == "object" && !Array.isArray(data74)){
+let missing10;
+if((((data74.tank_index === undefined) && (missing10 = "tank_index")) || ((data74.predicted_hz === undefined) && (missing10 = "predicted_hz"))) || ((data74.why === undefined) && (missing10 = "why"))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1,schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/required",keyword:"required",params:{missingProperty: missing10},message:"must have required property '"+missing10+"'",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.required,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items,data:data74}];
+return false;
+}
+else {
+if(data74.tank_index !== undefined){
+let data75 = data74.tank_index;
+const _errs160 = errors;
+if(!(((typeof data75 == "number") && (!(data75 % 1) && !isNaN(data75))) && (isFinite(data75)))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/tank_index",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index,data:data75}];
+return false;
+}
+if(errors === _errs160){
+if((typeof data75 == "number") && (isFinite(data75))){
+if(data75 < 0 || isNaN(data75)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/tank_index",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index,data:data75}];
+return false;
+}
+}
+}
+var valid24 = _errs160 === errors;
+}
+else {
+var valid24 = true;
+}
+if(valid24){
+if(data74.predicted_hz !== undefined){
+let data76 = data74.predicted_hz;
+const _errs162 = errors;
+if(errors === _errs162){
+if((typeof data76 == "number") && (isFinite(data76))){
+if(data76 <= 0 || isNaN(data76)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/predicted_hz",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/predicted_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz,data:data76}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/predicted_hz",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/predicted_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz,data:data76}];
+return false;
+}
+}
+var valid24 = _errs162 === errors;
+}
+else {
+var valid24 = true;
+}
+if(valid24){
+if(data74.why !== undefined){
+let data77 = data74.why;
+const _errs164 = errors;
+if(typeof data77 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/why",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/why/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.why.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.why,data:data77}];
+return false;
+}
+var valid24 = _errs164 === errors;
+}
+else {
+var valid24 = true;
+}
+}
+}
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1,schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items,data:data74}];
+return false;
+}
+}
+var valid23 = _errs158 === errors;
+if(!valid23){
+break;
+}
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema38.properties.test_frequency.properties.nearer_tanks.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks,data:data73}];
+return false;
+}
+}
+var valid22 = _errs156 === errors;
+}
+else {
+var valid22 = true;
+}
+if(valid22){
+if(data67.note !== undefined){
+let data78 = data67.note;
+const _errs166 = errors;
+if(typeof data78 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/note",schemaPath:"#/properties/test_frequency/properties/note/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.test_frequency.properties.note.type,parentSchema:schema38.properties.test_frequency.properties.note,data:data78}];
+return false;
+}
+var valid22 = _errs166 === errors;
 }
 else {
 var valid22 = true;
@@ -2424,54 +2787,16 @@ var valid22 = true;
 }
 }
 }
+}
+}
+}
+}
 else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1,schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.properties.test_frequency.properties.nearer_tanks.items.type,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks.items,data:data66}];
+validate21.errors = [{instancePath:instancePath+"/test_frequency",schemaPath:"#/properties/test_frequency/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema38.properties.test_frequency.type,parentSchema:schema38.properties.test_frequency,data:data67}];
 return false;
 }
 }
-var valid21 = _errs142 === errors;
-if(!valid21){
-break;
-}
-}
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema37.properties.test_frequency.properties.nearer_tanks.type,parentSchema:schema37.properties.test_frequency.properties.nearer_tanks,data:data65}];
-return false;
-}
-}
-var valid20 = _errs140 === errors;
-}
-else {
-var valid20 = true;
-}
-if(valid20){
-if(data59.note !== undefined){
-let data70 = data59.note;
-const _errs150 = errors;
-if(typeof data70 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/note",schemaPath:"#/properties/test_frequency/properties/note/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.test_frequency.properties.note.type,parentSchema:schema37.properties.test_frequency.properties.note,data:data70}];
-return false;
-}
-var valid20 = _errs150 === errors;
-}
-else {
-var valid20 = true;
-}
-}
-}
-}
-}
-}
-}
-}
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency",schemaPath:"#/properties/test_frequency/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.properties.test_frequency.type,parentSchema:schema37.properties.test_frequency,data:data59}];
-return false;
-}
-}
-var valid0 = _errs128 === errors;
+var valid0 = _errs144 === errors;
 }
 else {
 var valid0 = true;
@@ -2497,7 +2822,7 @@ var valid0 = true;
 }
 }
 else {
-validate21.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.type,parentSchema:schema37,data}];
+validate21.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema38.type,parentSchema:schema38,data}];
 return false;
 }
 }
@@ -2507,12 +2832,12 @@ return errors === 0;
 validate21.evaluated = {"props":{"suspect":true,"f0_hz":true,"f0_u_hz":true,"fd_hz":true,"inductance_h":true,"inductance_u_h":true,"coverage_factor":true,"q":true,"q_u":true,"esr_ohm":true,"esr_u_ohm":true,"ring_amplitude_v":true,"edges_used":true,"edges_rejected":true,"warnings":true,"settings":true,"device":true,"label":true,"test_frequency":true},"dynamicProps":false,"dynamicItems":false};
 
 export const calibrationProfile = validate22;
-const schema48 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:calibration-profile:1","title":"henrytick calibration profile, version 1","description":"What calibration found about one tester (docs/calibration.md). Units are SI and in the key names; uncertainties are standard (k = 1). Rules a schema cannot state (a tank index only once, c_f within a factor 2 of nominal_f, u_f at most 20 % of c_f, rising threshold above falling, |ppm| at most 1000, |skew_s| under 1 µs, leads l_h at most 0.5 µH, fixture c_f at most 500 pF) are checked by the reader too.","type":"object","required":["format","version","device_id","updated","tanks"],"properties":{"format":{"const":"henrytick-calibration"},"version":{"const":1},"device_id":{"type":"string","minLength":1},"updated":{"$ref":"#/$defs/time"},"tanks":{"type":"array","description":"empty when no tank is calibrated","items":{"$ref":"#/$defs/tank"}},"thresholds":{"$ref":"#/$defs/thresholds"},"timebase":{"$ref":"#/$defs/timebase"},"skew":{"$ref":"#/$defs/skew"},"leads":{"$ref":"#/$defs/leads"},"fixture":{"$ref":"#/$defs/fixture"}},"$defs":{"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"method":{"enum":["reference-inductor","parallel-capacitor","threshold-fit","skew-fit","host-clock","entered","clips-shorted","terminals-vs-clips"],"description":"the procedure that produced the value"},"provenance":{"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}},"tank":{"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"},"fixture_included":{"type":"boolean","description":"false when the tank was calibrated on the board's own terminals, without the clips and leads: the fixture's capacitance (fixture.c_f) is then added to it in readings; true or left out when calibrated through the clips (c_f already holds the fixture)"}}},"thresholds":{"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}},"timebase":{"type":"object","$ref":"#/$defs/provenance","required":["ppm","u_ppm"],"properties":{"ppm":{"type":"number","description":"the tick counter runs fast by ppm: true rate = nominal (1 + ppm 1e-6)"},"u_ppm":{"type":"number","minimum":0}}},"skew":{"type":"object","$ref":"#/$defs/provenance","required":["skew_s","u_skew_s"],"properties":{"skew_s":{"type":"number","description":"the comparator's rising-edge propagation delay minus its falling-edge delay, seconds"},"u_skew_s":{"type":"number","minimum":0,"description":"standard uncertainty of skew_s, seconds"}}},"leads":{"type":"object","$ref":"#/$defs/provenance","required":["l_h","u_h"],"properties":{"l_h":{"type":"number","minimum":0,"description":"series inductance of the test leads and clips (clips shorted), henries; subtracted from every reading"},"u_h":{"type":"number","minimum":0,"description":"standard uncertainty of l_h"}}},"fixture":{"type":"object","$ref":"#/$defs/provenance","required":["c_f","u_f"],"properties":{"c_f":{"type":"number","description":"capacitance of the clips and leads across the part (open nulling: one coil rung on two tanks on the board's terminals and on the clips), farads; added to every tank whose value does not hold it"},"u_f":{"type":"number","minimum":0,"description":"standard uncertainty of c_f"}}}}};
-const schema49 = {"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"};
+const schema50 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:calibration-profile:1","title":"henrytick calibration profile, version 1","description":"What calibration found about one tester (docs/calibration.md). Units are SI and in the key names; uncertainties are standard (k = 1). Rules a schema cannot state (a tank index only once, c_f within a factor 2 of nominal_f, u_f at most 20 % of c_f, rising threshold above falling, |ppm| at most 1000, |skew_s| under 1 µs, leads l_h at most 0.5 µH, fixture c_f at most 500 pF) are checked by the reader too.","type":"object","required":["format","version","device_id","updated","tanks"],"properties":{"format":{"const":"henrytick-calibration"},"version":{"const":1},"device_id":{"type":"string","minLength":1},"updated":{"$ref":"#/$defs/time"},"tanks":{"type":"array","description":"empty when no tank is calibrated","items":{"$ref":"#/$defs/tank"}},"thresholds":{"$ref":"#/$defs/thresholds"},"timebase":{"$ref":"#/$defs/timebase"},"skew":{"$ref":"#/$defs/skew"},"leads":{"$ref":"#/$defs/leads"},"fixture":{"$ref":"#/$defs/fixture"}},"$defs":{"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"method":{"enum":["reference-inductor","parallel-capacitor","threshold-fit","skew-fit","host-clock","entered","clips-shorted","terminals-vs-clips"],"description":"the procedure that produced the value"},"provenance":{"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}},"tank":{"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"},"fixture_included":{"type":"boolean","description":"false when the tank was calibrated on the board's own terminals, without the clips and leads: the fixture's capacitance (fixture.c_f) is then added to it in readings; true or left out when calibrated through the clips (c_f already holds the fixture)"}}},"thresholds":{"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}},"timebase":{"type":"object","$ref":"#/$defs/provenance","required":["ppm","u_ppm"],"properties":{"ppm":{"type":"number","description":"the tick counter runs fast by ppm: true rate = nominal (1 + ppm 1e-6)"},"u_ppm":{"type":"number","minimum":0}}},"skew":{"type":"object","$ref":"#/$defs/provenance","required":["skew_s","u_skew_s"],"properties":{"skew_s":{"type":"number","description":"the comparator's rising-edge propagation delay minus its falling-edge delay, seconds"},"u_skew_s":{"type":"number","minimum":0,"description":"standard uncertainty of skew_s, seconds"}}},"leads":{"type":"object","$ref":"#/$defs/provenance","required":["l_h","u_h"],"properties":{"l_h":{"type":"number","minimum":0,"description":"series inductance of the test leads and clips (clips shorted), henries; subtracted from every reading"},"u_h":{"type":"number","minimum":0,"description":"standard uncertainty of l_h"}}},"fixture":{"type":"object","$ref":"#/$defs/provenance","required":["c_f","u_f"],"properties":{"c_f":{"type":"number","description":"capacitance of the clips and leads across the part (open nulling: one coil rung on two tanks on the board's terminals and on the clips), farads; added to every tank whose value does not hold it"},"u_f":{"type":"number","minimum":0,"description":"standard uncertainty of c_f"}}}}};
+const schema51 = {"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"};
 const func1 = ((s) => [...s].length);
-const schema50 = {"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"},"fixture_included":{"type":"boolean","description":"false when the tank was calibrated on the board's own terminals, without the clips and leads: the fixture's capacitance (fixture.c_f) is then added to it in readings; true or left out when calibrated through the clips (c_f already holds the fixture)"}}};
-const schema51 = {"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}};
-const schema52 = {"enum":["reference-inductor","parallel-capacitor","threshold-fit","skew-fit","host-clock","entered","clips-shorted","terminals-vs-clips"],"description":"the procedure that produced the value"};
+const schema52 = {"type":"object","$ref":"#/$defs/provenance","required":["index","nominal_f","c_f","u_f"],"properties":{"index":{"type":"integer","minimum":0},"nominal_f":{"type":"number","exclusiveMinimum":0},"c_f":{"type":"number","exclusiveMinimum":0,"description":"effective capacitance across the part: tank + fixture + strays"},"u_f":{"type":"number","minimum":0},"shared_u_rel":{"type":"number","minimum":0,"description":"part of u_f/c_f shared by every tank calibrated against the same reference (0 when left out)"},"shared_offset_u_f":{"type":"number","minimum":0,"description":"part of u_f shared by every tank as an additive offset"},"timebase_ppm":{"type":"number","description":"timebase correction in force when c_f was measured (0 when left out)"},"drive":{"type":"integer","minimum":0,"description":"drive resistor index used while calibrating"},"fixture_included":{"type":"boolean","description":"false when the tank was calibrated on the board's own terminals, without the clips and leads: the fixture's capacitance (fixture.c_f) is then added to it in readings; true or left out when calibrated through the clips (c_f already holds the fixture)"}}};
+const schema53 = {"type":"object","required":["method","time"],"properties":{"method":{"$ref":"#/$defs/method"},"time":{"$ref":"#/$defs/time"},"detail":{"type":"string","description":"one line: the reference used, the settings, the readings it rests on"}}};
+const schema54 = {"enum":["reference-inductor","parallel-capacitor","threshold-fit","skew-fit","host-clock","entered","clips-shorted","terminals-vs-clips"],"description":"the procedure that produced the value"};
 
 function validate24(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 let vErrors = null;
@@ -2528,7 +2853,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if(((data.method === undefined) && (missing0 = "method")) || ((data.time === undefined) && (missing0 = "time"))){
-validate24.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema51.required,parentSchema:schema51,data}];
+validate24.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema53.required,parentSchema:schema53,data}];
 return false;
 }
 else {
@@ -2536,7 +2861,7 @@ if(data.method !== undefined){
 let data0 = data.method;
 const _errs1 = errors;
 if(!((((((((data0 === "reference-inductor") || (data0 === "parallel-capacitor")) || (data0 === "threshold-fit")) || (data0 === "skew-fit")) || (data0 === "host-clock")) || (data0 === "entered")) || (data0 === "clips-shorted")) || (data0 === "terminals-vs-clips"))){
-validate24.errors = [{instancePath:instancePath+"/method",schemaPath:"#/$defs/method/enum",keyword:"enum",params:{allowedValues: schema52.enum},message:"must be equal to one of the allowed values",schema:schema52.enum,parentSchema:schema52,data:data0}];
+validate24.errors = [{instancePath:instancePath+"/method",schemaPath:"#/$defs/method/enum",keyword:"enum",params:{allowedValues: schema54.enum},message:"must be equal to one of the allowed values",schema:schema54.enum,parentSchema:schema54,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -2552,12 +2877,12 @@ const _errs4 = errors;
 if(errors === _errs4){
 if(typeof data1 === "string"){
 if(!pattern4.test(data1)){
-validate24.errors = [{instancePath:instancePath+"/time",schemaPath:"#/$defs/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema49,data:data1}];
+validate24.errors = [{instancePath:instancePath+"/time",schemaPath:"#/$defs/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema51,data:data1}];
 return false;
 }
 }
 else {
-validate24.errors = [{instancePath:instancePath+"/time",schemaPath:"#/$defs/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema49.type,parentSchema:schema49,data:data1}];
+validate24.errors = [{instancePath:instancePath+"/time",schemaPath:"#/$defs/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema51.type,parentSchema:schema51,data:data1}];
 return false;
 }
 }
@@ -2571,7 +2896,7 @@ if(data.detail !== undefined){
 let data2 = data.detail;
 const _errs6 = errors;
 if(typeof data2 !== "string"){
-validate24.errors = [{instancePath:instancePath+"/detail",schemaPath:"#/properties/detail/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema51.properties.detail.type,parentSchema:schema51.properties.detail,data:data2}];
+validate24.errors = [{instancePath:instancePath+"/detail",schemaPath:"#/properties/detail/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema53.properties.detail.type,parentSchema:schema53.properties.detail,data:data2}];
 return false;
 }
 var valid0 = _errs6 === errors;
@@ -2584,7 +2909,7 @@ var valid0 = true;
 }
 }
 else {
-validate24.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema51.type,parentSchema:schema51,data}];
+validate24.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema53.type,parentSchema:schema53,data}];
 return false;
 }
 }
@@ -2612,7 +2937,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if(((((data.index === undefined) && (missing0 = "index")) || ((data.nominal_f === undefined) && (missing0 = "nominal_f"))) || ((data.c_f === undefined) && (missing0 = "c_f"))) || ((data.u_f === undefined) && (missing0 = "u_f"))){
-validate23.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema50.required,parentSchema:schema50,data}];
+validate23.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema52.required,parentSchema:schema52,data}];
 return false;
 }
 else {
@@ -2620,13 +2945,13 @@ if(data.index !== undefined){
 let data0 = data.index;
 const _errs1 = errors;
 if(!(((typeof data0 == "number") && (!(data0 % 1) && !isNaN(data0))) && (isFinite(data0)))){
-validate23.errors = [{instancePath:instancePath+"/index",schemaPath:"#/properties/index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema50.properties.index.type,parentSchema:schema50.properties.index,data:data0}];
+validate23.errors = [{instancePath:instancePath+"/index",schemaPath:"#/properties/index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema52.properties.index.type,parentSchema:schema52.properties.index,data:data0}];
 return false;
 }
 if(errors === _errs1){
 if((typeof data0 == "number") && (isFinite(data0))){
 if(data0 < 0 || isNaN(data0)){
-validate23.errors = [{instancePath:instancePath+"/index",schemaPath:"#/properties/index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema50.properties.index,data:data0}];
+validate23.errors = [{instancePath:instancePath+"/index",schemaPath:"#/properties/index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema52.properties.index,data:data0}];
 return false;
 }
 }
@@ -2643,12 +2968,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if((typeof data1 == "number") && (isFinite(data1))){
 if(data1 <= 0 || isNaN(data1)){
-validate23.errors = [{instancePath:instancePath+"/nominal_f",schemaPath:"#/properties/nominal_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema50.properties.nominal_f,data:data1}];
+validate23.errors = [{instancePath:instancePath+"/nominal_f",schemaPath:"#/properties/nominal_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema52.properties.nominal_f,data:data1}];
 return false;
 }
 }
 else {
-validate23.errors = [{instancePath:instancePath+"/nominal_f",schemaPath:"#/properties/nominal_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.nominal_f.type,parentSchema:schema50.properties.nominal_f,data:data1}];
+validate23.errors = [{instancePath:instancePath+"/nominal_f",schemaPath:"#/properties/nominal_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema52.properties.nominal_f.type,parentSchema:schema52.properties.nominal_f,data:data1}];
 return false;
 }
 }
@@ -2664,12 +2989,12 @@ const _errs5 = errors;
 if(errors === _errs5){
 if((typeof data2 == "number") && (isFinite(data2))){
 if(data2 <= 0 || isNaN(data2)){
-validate23.errors = [{instancePath:instancePath+"/c_f",schemaPath:"#/properties/c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema50.properties.c_f,data:data2}];
+validate23.errors = [{instancePath:instancePath+"/c_f",schemaPath:"#/properties/c_f/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema52.properties.c_f,data:data2}];
 return false;
 }
 }
 else {
-validate23.errors = [{instancePath:instancePath+"/c_f",schemaPath:"#/properties/c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.c_f.type,parentSchema:schema50.properties.c_f,data:data2}];
+validate23.errors = [{instancePath:instancePath+"/c_f",schemaPath:"#/properties/c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema52.properties.c_f.type,parentSchema:schema52.properties.c_f,data:data2}];
 return false;
 }
 }
@@ -2685,12 +3010,12 @@ const _errs7 = errors;
 if(errors === _errs7){
 if((typeof data3 == "number") && (isFinite(data3))){
 if(data3 < 0 || isNaN(data3)){
-validate23.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema50.properties.u_f,data:data3}];
+validate23.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema52.properties.u_f,data:data3}];
 return false;
 }
 }
 else {
-validate23.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.u_f.type,parentSchema:schema50.properties.u_f,data:data3}];
+validate23.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema52.properties.u_f.type,parentSchema:schema52.properties.u_f,data:data3}];
 return false;
 }
 }
@@ -2706,12 +3031,12 @@ const _errs9 = errors;
 if(errors === _errs9){
 if((typeof data4 == "number") && (isFinite(data4))){
 if(data4 < 0 || isNaN(data4)){
-validate23.errors = [{instancePath:instancePath+"/shared_u_rel",schemaPath:"#/properties/shared_u_rel/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema50.properties.shared_u_rel,data:data4}];
+validate23.errors = [{instancePath:instancePath+"/shared_u_rel",schemaPath:"#/properties/shared_u_rel/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema52.properties.shared_u_rel,data:data4}];
 return false;
 }
 }
 else {
-validate23.errors = [{instancePath:instancePath+"/shared_u_rel",schemaPath:"#/properties/shared_u_rel/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.shared_u_rel.type,parentSchema:schema50.properties.shared_u_rel,data:data4}];
+validate23.errors = [{instancePath:instancePath+"/shared_u_rel",schemaPath:"#/properties/shared_u_rel/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema52.properties.shared_u_rel.type,parentSchema:schema52.properties.shared_u_rel,data:data4}];
 return false;
 }
 }
@@ -2727,12 +3052,12 @@ const _errs11 = errors;
 if(errors === _errs11){
 if((typeof data5 == "number") && (isFinite(data5))){
 if(data5 < 0 || isNaN(data5)){
-validate23.errors = [{instancePath:instancePath+"/shared_offset_u_f",schemaPath:"#/properties/shared_offset_u_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema50.properties.shared_offset_u_f,data:data5}];
+validate23.errors = [{instancePath:instancePath+"/shared_offset_u_f",schemaPath:"#/properties/shared_offset_u_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema52.properties.shared_offset_u_f,data:data5}];
 return false;
 }
 }
 else {
-validate23.errors = [{instancePath:instancePath+"/shared_offset_u_f",schemaPath:"#/properties/shared_offset_u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.shared_offset_u_f.type,parentSchema:schema50.properties.shared_offset_u_f,data:data5}];
+validate23.errors = [{instancePath:instancePath+"/shared_offset_u_f",schemaPath:"#/properties/shared_offset_u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema52.properties.shared_offset_u_f.type,parentSchema:schema52.properties.shared_offset_u_f,data:data5}];
 return false;
 }
 }
@@ -2746,7 +3071,7 @@ if(data.timebase_ppm !== undefined){
 let data6 = data.timebase_ppm;
 const _errs13 = errors;
 if(!((typeof data6 == "number") && (isFinite(data6)))){
-validate23.errors = [{instancePath:instancePath+"/timebase_ppm",schemaPath:"#/properties/timebase_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema50.properties.timebase_ppm.type,parentSchema:schema50.properties.timebase_ppm,data:data6}];
+validate23.errors = [{instancePath:instancePath+"/timebase_ppm",schemaPath:"#/properties/timebase_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema52.properties.timebase_ppm.type,parentSchema:schema52.properties.timebase_ppm,data:data6}];
 return false;
 }
 var valid0 = _errs13 === errors;
@@ -2759,13 +3084,13 @@ if(data.drive !== undefined){
 let data7 = data.drive;
 const _errs15 = errors;
 if(!(((typeof data7 == "number") && (!(data7 % 1) && !isNaN(data7))) && (isFinite(data7)))){
-validate23.errors = [{instancePath:instancePath+"/drive",schemaPath:"#/properties/drive/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema50.properties.drive.type,parentSchema:schema50.properties.drive,data:data7}];
+validate23.errors = [{instancePath:instancePath+"/drive",schemaPath:"#/properties/drive/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema52.properties.drive.type,parentSchema:schema52.properties.drive,data:data7}];
 return false;
 }
 if(errors === _errs15){
 if((typeof data7 == "number") && (isFinite(data7))){
 if(data7 < 0 || isNaN(data7)){
-validate23.errors = [{instancePath:instancePath+"/drive",schemaPath:"#/properties/drive/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema50.properties.drive,data:data7}];
+validate23.errors = [{instancePath:instancePath+"/drive",schemaPath:"#/properties/drive/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema52.properties.drive,data:data7}];
 return false;
 }
 }
@@ -2780,7 +3105,7 @@ if(data.fixture_included !== undefined){
 let data8 = data.fixture_included;
 const _errs17 = errors;
 if(typeof data8 !== "boolean"){
-validate23.errors = [{instancePath:instancePath+"/fixture_included",schemaPath:"#/properties/fixture_included/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema50.properties.fixture_included.type,parentSchema:schema50.properties.fixture_included,data:data8}];
+validate23.errors = [{instancePath:instancePath+"/fixture_included",schemaPath:"#/properties/fixture_included/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema52.properties.fixture_included.type,parentSchema:schema52.properties.fixture_included,data:data8}];
 return false;
 }
 var valid0 = _errs17 === errors;
@@ -2799,7 +3124,7 @@ var valid0 = true;
 }
 }
 else {
-validate23.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema50.type,parentSchema:schema50,data}];
+validate23.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema52.type,parentSchema:schema52,data}];
 return false;
 }
 }
@@ -2808,7 +3133,7 @@ return errors === 0;
 }
 validate23.evaluated = {"props":{"index":true,"nominal_f":true,"c_f":true,"u_f":true,"shared_u_rel":true,"shared_offset_u_f":true,"timebase_ppm":true,"drive":true,"fixture_included":true,"method":true,"time":true,"detail":true},"dynamicProps":false,"dynamicItems":false};
 
-const schema54 = {"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}};
+const schema56 = {"type":"object","$ref":"#/$defs/provenance","required":["ratio","u_ratio","thresholds_v"],"properties":{"ratio":{"type":"number","description":"rising/falling threshold ratio found by the fit (negative: thresholds straddle zero)"},"u_ratio":{"type":"number","minimum":0},"thresholds_v":{"type":"array","description":"[rising, falling], two finite numbers of volts","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}}};
 
 function validate27(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 let vErrors = null;
@@ -2828,7 +3153,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if((((data.ratio === undefined) && (missing0 = "ratio")) || ((data.u_ratio === undefined) && (missing0 = "u_ratio"))) || ((data.thresholds_v === undefined) && (missing0 = "thresholds_v"))){
-validate27.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema54.required,parentSchema:schema54,data}];
+validate27.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema56.required,parentSchema:schema56,data}];
 return false;
 }
 else {
@@ -2836,7 +3161,7 @@ if(data.ratio !== undefined){
 let data0 = data.ratio;
 const _errs1 = errors;
 if(!((typeof data0 == "number") && (isFinite(data0)))){
-validate27.errors = [{instancePath:instancePath+"/ratio",schemaPath:"#/properties/ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema54.properties.ratio.type,parentSchema:schema54.properties.ratio,data:data0}];
+validate27.errors = [{instancePath:instancePath+"/ratio",schemaPath:"#/properties/ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.ratio.type,parentSchema:schema56.properties.ratio,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -2851,12 +3176,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if((typeof data1 == "number") && (isFinite(data1))){
 if(data1 < 0 || isNaN(data1)){
-validate27.errors = [{instancePath:instancePath+"/u_ratio",schemaPath:"#/properties/u_ratio/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema54.properties.u_ratio,data:data1}];
+validate27.errors = [{instancePath:instancePath+"/u_ratio",schemaPath:"#/properties/u_ratio/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema56.properties.u_ratio,data:data1}];
 return false;
 }
 }
 else {
-validate27.errors = [{instancePath:instancePath+"/u_ratio",schemaPath:"#/properties/u_ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema54.properties.u_ratio.type,parentSchema:schema54.properties.u_ratio,data:data1}];
+validate27.errors = [{instancePath:instancePath+"/u_ratio",schemaPath:"#/properties/u_ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.u_ratio.type,parentSchema:schema56.properties.u_ratio,data:data1}];
 return false;
 }
 }
@@ -2872,12 +3197,12 @@ const _errs5 = errors;
 if(errors === _errs5){
 if(Array.isArray(data2)){
 if(data2.length > 2){
-validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema54.properties.thresholds_v,data:data2}];
+validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema56.properties.thresholds_v,data:data2}];
 return false;
 }
 else {
 if(data2.length < 2){
-validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema54.properties.thresholds_v,data:data2}];
+validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema56.properties.thresholds_v,data:data2}];
 return false;
 }
 else {
@@ -2886,7 +3211,7 @@ if(len0 > 0){
 let data3 = data2[0];
 const _errs7 = errors;
 if(!((typeof data3 == "number") && (isFinite(data3)))){
-validate27.errors = [{instancePath:instancePath+"/thresholds_v/0",schemaPath:"#/properties/thresholds_v/prefixItems/0/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema54.properties.thresholds_v.prefixItems[0].type,parentSchema:schema54.properties.thresholds_v.prefixItems[0],data:data3}];
+validate27.errors = [{instancePath:instancePath+"/thresholds_v/0",schemaPath:"#/properties/thresholds_v/prefixItems/0/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.thresholds_v.prefixItems[0].type,parentSchema:schema56.properties.thresholds_v.prefixItems[0],data:data3}];
 return false;
 }
 var valid1 = _errs7 === errors;
@@ -2896,7 +3221,7 @@ if(len0 > 1){
 let data4 = data2[1];
 const _errs9 = errors;
 if(!((typeof data4 == "number") && (isFinite(data4)))){
-validate27.errors = [{instancePath:instancePath+"/thresholds_v/1",schemaPath:"#/properties/thresholds_v/prefixItems/1/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema54.properties.thresholds_v.prefixItems[1].type,parentSchema:schema54.properties.thresholds_v.prefixItems[1],data:data4}];
+validate27.errors = [{instancePath:instancePath+"/thresholds_v/1",schemaPath:"#/properties/thresholds_v/prefixItems/1/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.thresholds_v.prefixItems[1].type,parentSchema:schema56.properties.thresholds_v.prefixItems[1],data:data4}];
 return false;
 }
 var valid1 = _errs9 === errors;
@@ -2906,7 +3231,7 @@ var valid1 = _errs9 === errors;
 }
 }
 else {
-validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema54.properties.thresholds_v.type,parentSchema:schema54.properties.thresholds_v,data:data2}];
+validate27.errors = [{instancePath:instancePath+"/thresholds_v",schemaPath:"#/properties/thresholds_v/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema56.properties.thresholds_v.type,parentSchema:schema56.properties.thresholds_v,data:data2}];
 return false;
 }
 }
@@ -2920,7 +3245,7 @@ var valid0 = true;
 }
 }
 else {
-validate27.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema54.type,parentSchema:schema54,data}];
+validate27.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema56.type,parentSchema:schema56,data}];
 return false;
 }
 }
@@ -2929,7 +3254,7 @@ return errors === 0;
 }
 validate27.evaluated = {"props":{"ratio":true,"u_ratio":true,"thresholds_v":true,"method":true,"time":true,"detail":true},"dynamicProps":false,"dynamicItems":false};
 
-const schema55 = {"type":"object","$ref":"#/$defs/provenance","required":["ppm","u_ppm"],"properties":{"ppm":{"type":"number","description":"the tick counter runs fast by ppm: true rate = nominal (1 + ppm 1e-6)"},"u_ppm":{"type":"number","minimum":0}}};
+const schema57 = {"type":"object","$ref":"#/$defs/provenance","required":["ppm","u_ppm"],"properties":{"ppm":{"type":"number","description":"the tick counter runs fast by ppm: true rate = nominal (1 + ppm 1e-6)"},"u_ppm":{"type":"number","minimum":0}}};
 
 function validate30(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 let vErrors = null;
@@ -2949,7 +3274,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if(((data.ppm === undefined) && (missing0 = "ppm")) || ((data.u_ppm === undefined) && (missing0 = "u_ppm"))){
-validate30.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema55.required,parentSchema:schema55,data}];
+validate30.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema57.required,parentSchema:schema57,data}];
 return false;
 }
 else {
@@ -2957,7 +3282,7 @@ if(data.ppm !== undefined){
 let data0 = data.ppm;
 const _errs1 = errors;
 if(!((typeof data0 == "number") && (isFinite(data0)))){
-validate30.errors = [{instancePath:instancePath+"/ppm",schemaPath:"#/properties/ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.ppm.type,parentSchema:schema55.properties.ppm,data:data0}];
+validate30.errors = [{instancePath:instancePath+"/ppm",schemaPath:"#/properties/ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.ppm.type,parentSchema:schema57.properties.ppm,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -2972,12 +3297,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if((typeof data1 == "number") && (isFinite(data1))){
 if(data1 < 0 || isNaN(data1)){
-validate30.errors = [{instancePath:instancePath+"/u_ppm",schemaPath:"#/properties/u_ppm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema55.properties.u_ppm,data:data1}];
+validate30.errors = [{instancePath:instancePath+"/u_ppm",schemaPath:"#/properties/u_ppm/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema57.properties.u_ppm,data:data1}];
 return false;
 }
 }
 else {
-validate30.errors = [{instancePath:instancePath+"/u_ppm",schemaPath:"#/properties/u_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema55.properties.u_ppm.type,parentSchema:schema55.properties.u_ppm,data:data1}];
+validate30.errors = [{instancePath:instancePath+"/u_ppm",schemaPath:"#/properties/u_ppm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.u_ppm.type,parentSchema:schema57.properties.u_ppm,data:data1}];
 return false;
 }
 }
@@ -2990,7 +3315,7 @@ var valid0 = true;
 }
 }
 else {
-validate30.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema55.type,parentSchema:schema55,data}];
+validate30.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema57.type,parentSchema:schema57,data}];
 return false;
 }
 }
@@ -2999,7 +3324,7 @@ return errors === 0;
 }
 validate30.evaluated = {"props":{"ppm":true,"u_ppm":true,"method":true,"time":true,"detail":true},"dynamicProps":false,"dynamicItems":false};
 
-const schema56 = {"type":"object","$ref":"#/$defs/provenance","required":["skew_s","u_skew_s"],"properties":{"skew_s":{"type":"number","description":"the comparator's rising-edge propagation delay minus its falling-edge delay, seconds"},"u_skew_s":{"type":"number","minimum":0,"description":"standard uncertainty of skew_s, seconds"}}};
+const schema58 = {"type":"object","$ref":"#/$defs/provenance","required":["skew_s","u_skew_s"],"properties":{"skew_s":{"type":"number","description":"the comparator's rising-edge propagation delay minus its falling-edge delay, seconds"},"u_skew_s":{"type":"number","minimum":0,"description":"standard uncertainty of skew_s, seconds"}}};
 
 function validate33(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 let vErrors = null;
@@ -3019,7 +3344,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if(((data.skew_s === undefined) && (missing0 = "skew_s")) || ((data.u_skew_s === undefined) && (missing0 = "u_skew_s"))){
-validate33.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema56.required,parentSchema:schema56,data}];
+validate33.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema58.required,parentSchema:schema58,data}];
 return false;
 }
 else {
@@ -3027,7 +3352,7 @@ if(data.skew_s !== undefined){
 let data0 = data.skew_s;
 const _errs1 = errors;
 if(!((typeof data0 == "number") && (isFinite(data0)))){
-validate33.errors = [{instancePath:instancePath+"/skew_s",schemaPath:"#/properties/skew_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.skew_s.type,parentSchema:schema56.properties.skew_s,data:data0}];
+validate33.errors = [{instancePath:instancePath+"/skew_s",schemaPath:"#/properties/skew_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.skew_s.type,parentSchema:schema58.properties.skew_s,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -3042,12 +3367,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if((typeof data1 == "number") && (isFinite(data1))){
 if(data1 < 0 || isNaN(data1)){
-validate33.errors = [{instancePath:instancePath+"/u_skew_s",schemaPath:"#/properties/u_skew_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema56.properties.u_skew_s,data:data1}];
+validate33.errors = [{instancePath:instancePath+"/u_skew_s",schemaPath:"#/properties/u_skew_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema58.properties.u_skew_s,data:data1}];
 return false;
 }
 }
 else {
-validate33.errors = [{instancePath:instancePath+"/u_skew_s",schemaPath:"#/properties/u_skew_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema56.properties.u_skew_s.type,parentSchema:schema56.properties.u_skew_s,data:data1}];
+validate33.errors = [{instancePath:instancePath+"/u_skew_s",schemaPath:"#/properties/u_skew_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.u_skew_s.type,parentSchema:schema58.properties.u_skew_s,data:data1}];
 return false;
 }
 }
@@ -3060,7 +3385,7 @@ var valid0 = true;
 }
 }
 else {
-validate33.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema56.type,parentSchema:schema56,data}];
+validate33.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema58.type,parentSchema:schema58,data}];
 return false;
 }
 }
@@ -3069,7 +3394,7 @@ return errors === 0;
 }
 validate33.evaluated = {"props":{"skew_s":true,"u_skew_s":true,"method":true,"time":true,"detail":true},"dynamicProps":false,"dynamicItems":false};
 
-const schema57 = {"type":"object","$ref":"#/$defs/provenance","required":["l_h","u_h"],"properties":{"l_h":{"type":"number","minimum":0,"description":"series inductance of the test leads and clips (clips shorted), henries; subtracted from every reading"},"u_h":{"type":"number","minimum":0,"description":"standard uncertainty of l_h"}}};
+const schema59 = {"type":"object","$ref":"#/$defs/provenance","required":["l_h","u_h"],"properties":{"l_h":{"type":"number","minimum":0,"description":"series inductance of the test leads and clips (clips shorted), henries; subtracted from every reading"},"u_h":{"type":"number","minimum":0,"description":"standard uncertainty of l_h"}}};
 
 function validate36(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 let vErrors = null;
@@ -3089,7 +3414,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if(((data.l_h === undefined) && (missing0 = "l_h")) || ((data.u_h === undefined) && (missing0 = "u_h"))){
-validate36.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema57.required,parentSchema:schema57,data}];
+validate36.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema59.required,parentSchema:schema59,data}];
 return false;
 }
 else {
@@ -3099,12 +3424,12 @@ const _errs1 = errors;
 if(errors === _errs1){
 if((typeof data0 == "number") && (isFinite(data0))){
 if(data0 < 0 || isNaN(data0)){
-validate36.errors = [{instancePath:instancePath+"/l_h",schemaPath:"#/properties/l_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema57.properties.l_h,data:data0}];
+validate36.errors = [{instancePath:instancePath+"/l_h",schemaPath:"#/properties/l_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema59.properties.l_h,data:data0}];
 return false;
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/l_h",schemaPath:"#/properties/l_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.l_h.type,parentSchema:schema57.properties.l_h,data:data0}];
+validate36.errors = [{instancePath:instancePath+"/l_h",schemaPath:"#/properties/l_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.l_h.type,parentSchema:schema59.properties.l_h,data:data0}];
 return false;
 }
 }
@@ -3120,12 +3445,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if((typeof data1 == "number") && (isFinite(data1))){
 if(data1 < 0 || isNaN(data1)){
-validate36.errors = [{instancePath:instancePath+"/u_h",schemaPath:"#/properties/u_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema57.properties.u_h,data:data1}];
+validate36.errors = [{instancePath:instancePath+"/u_h",schemaPath:"#/properties/u_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema59.properties.u_h,data:data1}];
 return false;
 }
 }
 else {
-validate36.errors = [{instancePath:instancePath+"/u_h",schemaPath:"#/properties/u_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema57.properties.u_h.type,parentSchema:schema57.properties.u_h,data:data1}];
+validate36.errors = [{instancePath:instancePath+"/u_h",schemaPath:"#/properties/u_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.u_h.type,parentSchema:schema59.properties.u_h,data:data1}];
 return false;
 }
 }
@@ -3138,7 +3463,7 @@ var valid0 = true;
 }
 }
 else {
-validate36.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema57.type,parentSchema:schema57,data}];
+validate36.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema59.type,parentSchema:schema59,data}];
 return false;
 }
 }
@@ -3147,7 +3472,7 @@ return errors === 0;
 }
 validate36.evaluated = {"props":{"l_h":true,"u_h":true,"method":true,"time":true,"detail":true},"dynamicProps":false,"dynamicItems":false};
 
-const schema58 = {"type":"object","$ref":"#/$defs/provenance","required":["c_f","u_f"],"properties":{"c_f":{"type":"number","description":"capacitance of the clips and leads across the part (open nulling: one coil rung on two tanks on the board's terminals and on the clips), farads; added to every tank whose value does not hold it"},"u_f":{"type":"number","minimum":0,"description":"standard uncertainty of c_f"}}};
+const schema60 = {"type":"object","$ref":"#/$defs/provenance","required":["c_f","u_f"],"properties":{"c_f":{"type":"number","description":"capacitance of the clips and leads across the part (open nulling: one coil rung on two tanks on the board's terminals and on the clips), farads; added to every tank whose value does not hold it"},"u_f":{"type":"number","minimum":0,"description":"standard uncertainty of c_f"}}};
 
 function validate39(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 let vErrors = null;
@@ -3167,7 +3492,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if(((data.c_f === undefined) && (missing0 = "c_f")) || ((data.u_f === undefined) && (missing0 = "u_f"))){
-validate39.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema58.required,parentSchema:schema58,data}];
+validate39.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema60.required,parentSchema:schema60,data}];
 return false;
 }
 else {
@@ -3175,7 +3500,7 @@ if(data.c_f !== undefined){
 let data0 = data.c_f;
 const _errs1 = errors;
 if(!((typeof data0 == "number") && (isFinite(data0)))){
-validate39.errors = [{instancePath:instancePath+"/c_f",schemaPath:"#/properties/c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.c_f.type,parentSchema:schema58.properties.c_f,data:data0}];
+validate39.errors = [{instancePath:instancePath+"/c_f",schemaPath:"#/properties/c_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema60.properties.c_f.type,parentSchema:schema60.properties.c_f,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -3190,12 +3515,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if((typeof data1 == "number") && (isFinite(data1))){
 if(data1 < 0 || isNaN(data1)){
-validate39.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema58.properties.u_f,data:data1}];
+validate39.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema60.properties.u_f,data:data1}];
 return false;
 }
 }
 else {
-validate39.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema58.properties.u_f.type,parentSchema:schema58.properties.u_f,data:data1}];
+validate39.errors = [{instancePath:instancePath+"/u_f",schemaPath:"#/properties/u_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema60.properties.u_f.type,parentSchema:schema60.properties.u_f,data:data1}];
 return false;
 }
 }
@@ -3208,7 +3533,7 @@ var valid0 = true;
 }
 }
 else {
-validate39.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema58.type,parentSchema:schema58,data}];
+validate39.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema60.type,parentSchema:schema60,data}];
 return false;
 }
 }
@@ -3233,7 +3558,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if((((((data.format === undefined) && (missing0 = "format")) || ((data.version === undefined) && (missing0 = "version"))) || ((data.device_id === undefined) && (missing0 = "device_id"))) || ((data.updated === undefined) && (missing0 = "updated"))) || ((data.tanks === undefined) && (missing0 = "tanks"))){
-validate22.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema48.required,parentSchema:schema48,data}];
+validate22.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema50.required,parentSchema:schema50,data}];
 return false;
 }
 else {
@@ -3241,7 +3566,7 @@ if(data.format !== undefined){
 let data0 = data.format;
 const _errs1 = errors;
 if("henrytick-calibration" !== data0){
-validate22.errors = [{instancePath:instancePath+"/format",schemaPath:"#/properties/format/const",keyword:"const",params:{allowedValue: "henrytick-calibration"},message:"must be equal to constant",schema:"henrytick-calibration",parentSchema:schema48.properties.format,data:data0}];
+validate22.errors = [{instancePath:instancePath+"/format",schemaPath:"#/properties/format/const",keyword:"const",params:{allowedValue: "henrytick-calibration"},message:"must be equal to constant",schema:"henrytick-calibration",parentSchema:schema50.properties.format,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -3254,7 +3579,7 @@ if(data.version !== undefined){
 let data1 = data.version;
 const _errs2 = errors;
 if(1 !== data1){
-validate22.errors = [{instancePath:instancePath+"/version",schemaPath:"#/properties/version/const",keyword:"const",params:{allowedValue: 1},message:"must be equal to constant",schema:1,parentSchema:schema48.properties.version,data:data1}];
+validate22.errors = [{instancePath:instancePath+"/version",schemaPath:"#/properties/version/const",keyword:"const",params:{allowedValue: 1},message:"must be equal to constant",schema:1,parentSchema:schema50.properties.version,data:data1}];
 return false;
 }
 var valid0 = _errs2 === errors;
@@ -3269,12 +3594,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if(typeof data2 === "string"){
 if(func1(data2) < 1){
-validate22.errors = [{instancePath:instancePath+"/device_id",schemaPath:"#/properties/device_id/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters",schema:1,parentSchema:schema48.properties.device_id,data:data2}];
+validate22.errors = [{instancePath:instancePath+"/device_id",schemaPath:"#/properties/device_id/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters",schema:1,parentSchema:schema50.properties.device_id,data:data2}];
 return false;
 }
 }
 else {
-validate22.errors = [{instancePath:instancePath+"/device_id",schemaPath:"#/properties/device_id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema48.properties.device_id.type,parentSchema:schema48.properties.device_id,data:data2}];
+validate22.errors = [{instancePath:instancePath+"/device_id",schemaPath:"#/properties/device_id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema50.properties.device_id.type,parentSchema:schema50.properties.device_id,data:data2}];
 return false;
 }
 }
@@ -3291,12 +3616,12 @@ const _errs6 = errors;
 if(errors === _errs6){
 if(typeof data3 === "string"){
 if(!pattern4.test(data3)){
-validate22.errors = [{instancePath:instancePath+"/updated",schemaPath:"#/$defs/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema49,data:data3}];
+validate22.errors = [{instancePath:instancePath+"/updated",schemaPath:"#/$defs/time/pattern",keyword:"pattern",params:{pattern: "^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"},message:"must match pattern \""+"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$"+"\"",schema:"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$",parentSchema:schema51,data:data3}];
 return false;
 }
 }
 else {
-validate22.errors = [{instancePath:instancePath+"/updated",schemaPath:"#/$defs/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema49.type,parentSchema:schema49,data:data3}];
+validate22.errors = [{instancePath:instancePath+"/updated",schemaPath:"#/$defs/time/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema51.type,parentSchema:schema51,data:data3}];
 return false;
 }
 }
@@ -3326,7 +3651,7 @@ break;
 }
 }
 else {
-validate22.errors = [{instancePath:instancePath+"/tanks",schemaPath:"#/properties/tanks/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema48.properties.tanks.type,parentSchema:schema48.properties.tanks,data:data4}];
+validate22.errors = [{instancePath:instancePath+"/tanks",schemaPath:"#/properties/tanks/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema50.properties.tanks.type,parentSchema:schema50.properties.tanks,data:data4}];
 return false;
 }
 }
@@ -3407,7 +3732,7 @@ var valid0 = true;
 }
 }
 else {
-validate22.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema48.type,parentSchema:schema48,data}];
+validate22.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema50.type,parentSchema:schema50,data}];
 return false;
 }
 }
@@ -3417,7 +3742,7 @@ return errors === 0;
 validate22.evaluated = {"props":{"format":true,"version":true,"device_id":true,"updated":true,"tanks":true,"thresholds":true,"timebase":true,"skew":true,"leads":true,"fixture":true},"dynamicProps":false,"dynamicItems":false};
 
 export const scenario = validate42;
-const schema59 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:scenario:1","title":"henrytick simulated-tester scenario, version 1","description":"A demo part for the simulated tester and, optionally, the bench conditions it is measured under. Units are SI and in the key names.","type":"object","required":["format","version","name","part"],"properties":{"format":{"const":"henrytick-scenario"},"version":{"const":1},"name":{"type":"string","minLength":1},"story":{"type":"string","description":"what the part is and what the scenario shows"},"part":{"type":"object","required":["inductance_h","series_ohm"],"properties":{"inductance_h":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"parallel_ohm":{"type":"number","exclusiveMinimum":0,"description":"core (parallel) loss resistance; absent for an air core"},"self_capacitance_f":{"type":"number","minimum":0,"description":"the part's own self-capacitance (0 when left out)"},"saturation_current_a":{"type":"number","exclusiveMinimum":0,"description":"current where the differential inductance has fallen halfway to its floor"},"saturation_floor_ratio":{"type":"number","exclusiveMinimum":0,"exclusiveMaximum":1,"description":"differential inductance deep in saturation, as a fraction of the small-signal value"}}},"fixture":{"type":"object","properties":{"capacitance_f":{"type":"number","minimum":0,"description":"test-lead capacitance in parallel with the tank (replaces the board's)"},"lead_inductance_h":{"type":"number","minimum":0,"maximum":0.000001,"description":"series inductance of the test leads and clips, in series with the part (0 when left out)"},"tank_voltage_coefficient_per_v2":{"type":"number","exclusiveMinimum":0,"description":"k in C(v) = C0 (1 - k v^2): a class II ceramic fitted as the tank"},"chatter":{"type":"object","description":"an intermittent clip contact during the ring: moments open or resistive, at random (seeded)","required":["events_per_s"],"additionalProperties":false,"properties":{"events_per_s":{"type":"number","minimum":0,"maximum":100000,"description":"mean contact events per second of ring"},"open_share":{"type":"number","minimum":0,"maximum":1,"description":"share of events that open the contact (the rest are resistance bursts); 0.5 when left out"},"open_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest open interval, seconds"},"burst_ohm":{"type":"array","items":{"type":"number","minimum":0,"maximum":1000000},"minItems":2,"maxItems":2,"description":"smallest and largest burst resistance, ohms"},"burst_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest burst, seconds"}}}}},"geometry":{"type":"object","description":"the coil geometry a part was computed from (kept for the record; the part values are what the simulator uses)","additionalProperties":{"type":"number"}},"seed":{"type":"integer","description":"noise seed (1 when left out)"}}};
+const schema61 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:scenario:1","title":"henrytick simulated-tester scenario, version 1","description":"A demo part for the simulated tester and, optionally, the bench conditions it is measured under. Units are SI and in the key names.","type":"object","required":["format","version","name","part"],"properties":{"format":{"const":"henrytick-scenario"},"version":{"const":1},"name":{"type":"string","minLength":1},"story":{"type":"string","description":"what the part is and what the scenario shows"},"part":{"type":"object","required":["inductance_h","series_ohm"],"properties":{"inductance_h":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"parallel_ohm":{"type":"number","exclusiveMinimum":0,"description":"core (parallel) loss resistance; absent for an air core"},"self_capacitance_f":{"type":"number","minimum":0,"description":"the part's own self-capacitance (0 when left out)"},"saturation_current_a":{"type":"number","exclusiveMinimum":0,"description":"current where the differential inductance has fallen halfway to its floor"},"saturation_floor_ratio":{"type":"number","exclusiveMinimum":0,"exclusiveMaximum":1,"description":"differential inductance deep in saturation, as a fraction of the small-signal value"}}},"fixture":{"type":"object","properties":{"capacitance_f":{"type":"number","minimum":0,"description":"test-lead capacitance in parallel with the tank (replaces the board's)"},"lead_inductance_h":{"type":"number","minimum":0,"maximum":0.000001,"description":"series inductance of the test leads and clips, in series with the part (0 when left out)"},"tank_voltage_coefficient_per_v2":{"type":"number","exclusiveMinimum":0,"description":"k in C(v) = C0 (1 - k v^2): a class II ceramic fitted as the tank"},"chatter":{"type":"object","description":"an intermittent clip contact during the ring: moments open or resistive, at random (seeded)","required":["events_per_s"],"additionalProperties":false,"properties":{"events_per_s":{"type":"number","minimum":0,"maximum":100000,"description":"mean contact events per second of ring"},"open_share":{"type":"number","minimum":0,"maximum":1,"description":"share of events that open the contact (the rest are resistance bursts); 0.5 when left out"},"open_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest open interval, seconds"},"burst_ohm":{"type":"array","items":{"type":"number","minimum":0,"maximum":1000000},"minItems":2,"maxItems":2,"description":"smallest and largest burst resistance, ohms"},"burst_s":{"type":"array","items":{"type":"number","exclusiveMinimum":0,"maximum":1},"minItems":2,"maxItems":2,"description":"shortest and longest burst, seconds"}}}}},"geometry":{"type":"object","description":"the coil geometry a part was computed from (kept for the record; the part values are what the simulator uses)","additionalProperties":{"type":"number"}},"seed":{"type":"integer","description":"noise seed (1 when left out)"}}};
 
 function validate42(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 /*# sourceURL="urn:henrytick:schema:scenario:1" */;
@@ -3434,7 +3759,7 @@ if(errors === 0){
 if(data && typeof data == "object" && !Array.isArray(data)){
 let missing0;
 if(((((data.format === undefined) && (missing0 = "format")) || ((data.version === undefined) && (missing0 = "version"))) || ((data.name === undefined) && (missing0 = "name"))) || ((data.part === undefined) && (missing0 = "part"))){
-validate42.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema59.required,parentSchema:schema59,data}];
+validate42.errors = [{instancePath,schemaPath:"#/required",keyword:"required",params:{missingProperty: missing0},message:"must have required property '"+missing0+"'",schema:schema61.required,parentSchema:schema61,data}];
 return false;
 }
 else {
@@ -3442,7 +3767,7 @@ if(data.format !== undefined){
 let data0 = data.format;
 const _errs1 = errors;
 if("henrytick-scenario" !== data0){
-validate42.errors = [{instancePath:instancePath+"/format",schemaPath:"#/properties/format/const",keyword:"const",params:{allowedValue: "henrytick-scenario"},message:"must be equal to constant",schema:"henrytick-scenario",parentSchema:schema59.properties.format,data:data0}];
+validate42.errors = [{instancePath:instancePath+"/format",schemaPath:"#/properties/format/const",keyword:"const",params:{allowedValue: "henrytick-scenario"},message:"must be equal to constant",schema:"henrytick-scenario",parentSchema:schema61.properties.format,data:data0}];
 return false;
 }
 var valid0 = _errs1 === errors;
@@ -3455,7 +3780,7 @@ if(data.version !== undefined){
 let data1 = data.version;
 const _errs2 = errors;
 if(1 !== data1){
-validate42.errors = [{instancePath:instancePath+"/version",schemaPath:"#/properties/version/const",keyword:"const",params:{allowedValue: 1},message:"must be equal to constant",schema:1,parentSchema:schema59.properties.version,data:data1}];
+validate42.errors = [{instancePath:instancePath+"/version",schemaPath:"#/properties/version/const",keyword:"const",params:{allowedValue: 1},message:"must be equal to constant",schema:1,parentSchema:schema61.properties.version,data:data1}];
 return false;
 }
 var valid0 = _errs2 === errors;
@@ -3470,12 +3795,12 @@ const _errs3 = errors;
 if(errors === _errs3){
 if(typeof data2 === "string"){
 if(func1(data2) < 1){
-validate42.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters",schema:1,parentSchema:schema59.properties.name,data:data2}];
+validate42.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters",schema:1,parentSchema:schema61.properties.name,data:data2}];
 return false;
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema59.properties.name.type,parentSchema:schema59.properties.name,data:data2}];
+validate42.errors = [{instancePath:instancePath+"/name",schemaPath:"#/properties/name/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema61.properties.name.type,parentSchema:schema61.properties.name,data:data2}];
 return false;
 }
 }
@@ -3489,7 +3814,7 @@ if(data.story !== undefined){
 let data3 = data.story;
 const _errs5 = errors;
 if(typeof data3 !== "string"){
-validate42.errors = [{instancePath:instancePath+"/story",schemaPath:"#/properties/story/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema59.properties.story.type,parentSchema:schema59.properties.story,data:data3}];
+validate42.errors = [{instancePath:instancePath+"/story",schemaPath:"#/properties/story/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema61.properties.story.type,parentSchema:schema61.properties.story,data:data3}];
 return false;
 }
 var valid0 = _errs5 === errors;
@@ -3505,7 +3830,7 @@ if(errors === _errs7){
 if(data4 && typeof data4 == "object" && !Array.isArray(data4)){
 let missing1;
 if(((data4.inductance_h === undefined) && (missing1 = "inductance_h")) || ((data4.series_ohm === undefined) && (missing1 = "series_ohm"))){
-validate42.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/required",keyword:"required",params:{missingProperty: missing1},message:"must have required property '"+missing1+"'",schema:schema59.properties.part.required,parentSchema:schema59.properties.part,data:data4}];
+validate42.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/required",keyword:"required",params:{missingProperty: missing1},message:"must have required property '"+missing1+"'",schema:schema61.properties.part.required,parentSchema:schema61.properties.part,data:data4}];
 return false;
 }
 else {
@@ -3515,12 +3840,12 @@ const _errs9 = errors;
 if(errors === _errs9){
 if((typeof data5 == "number") && (isFinite(data5))){
 if(data5 <= 0 || isNaN(data5)){
-validate42.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema59.properties.part.properties.inductance_h,data:data5}];
+validate42.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema61.properties.part.properties.inductance_h,data:data5}];
 return false;
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.part.properties.inductance_h.type,parentSchema:schema59.properties.part.properties.inductance_h,data:data5}];
+validate42.errors = [{instancePath:instancePath+"/part/inductance_h",schemaPath:"#/properties/part/properties/inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema61.properties.part.properties.inductance_h.type,parentSchema:schema61.properties.part.properties.inductance_h,data:data5}];
 return false;
 }
 }
@@ -3536,12 +3861,12 @@ const _errs11 = errors;
 if(errors === _errs11){
 if((typeof data6 == "number") && (isFinite(data6))){
 if(data6 <= 0 || isNaN(data6)){
-validate42.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema59.properties.part.properties.series_ohm,data:data6}];
+validate42.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema61.properties.part.properties.series_ohm,data:data6}];
 return false;
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.part.properties.series_ohm.type,parentSchema:schema59.properties.part.properties.series_ohm,data:data6}];
+validate42.errors = [{instancePath:instancePath+"/part/series_ohm",schemaPath:"#/properties/part/properties/series_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema61.properties.part.properties.series_ohm.type,parentSchema:schema61.properties.part.properties.series_ohm,data:data6}];
 return false;
 }
 }
@@ -3557,12 +3882,12 @@ const _errs13 = errors;
 if(errors === _errs13){
 if((typeof data7 == "number") && (isFinite(data7))){
 if(data7 <= 0 || isNaN(data7)){
-validate42.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema59.properties.part.properties.parallel_ohm,data:data7}];
+validate42.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema61.properties.part.properties.parallel_ohm,data:data7}];
 return false;
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.part.properties.parallel_ohm.type,parentSchema:schema59.properties.part.properties.parallel_ohm,data:data7}];
+validate42.errors = [{instancePath:instancePath+"/part/parallel_ohm",schemaPath:"#/properties/part/properties/parallel_ohm/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema61.properties.part.properties.parallel_ohm.type,parentSchema:schema61.properties.part.properties.parallel_ohm,data:data7}];
 return false;
 }
 }
@@ -3578,12 +3903,12 @@ const _errs15 = errors;
 if(errors === _errs15){
 if((typeof data8 == "number") && (isFinite(data8))){
 if(data8 < 0 || isNaN(data8)){
-validate42.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema59.properties.part.properties.self_capacitance_f,data:data8}];
+validate42.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema61.properties.part.properties.self_capacitance_f,data:data8}];
 return false;
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.part.properties.self_capacitance_f.type,parentSchema:schema59.properties.part.properties.self_capacitance_f,data:data8}];
+validate42.errors = [{instancePath:instancePath+"/part/self_capacitance_f",schemaPath:"#/properties/part/properties/self_capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema61.properties.part.properties.self_capacitance_f.type,parentSchema:schema61.properties.part.properties.self_capacitance_f,data:data8}];
 return false;
 }
 }
@@ -3599,12 +3924,12 @@ const _errs17 = errors;
 if(errors === _errs17){
 if((typeof data9 == "number") && (isFinite(data9))){
 if(data9 <= 0 || isNaN(data9)){
-validate42.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema59.properties.part.properties.saturation_current_a,data:data9}];
+validate42.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema61.properties.part.properties.saturation_current_a,data:data9}];
 return false;
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.part.properties.saturation_current_a.type,parentSchema:schema59.properties.part.properties.saturation_current_a,data:data9}];
+validate42.errors = [{instancePath:instancePath+"/part/saturation_current_a",schemaPath:"#/properties/part/properties/saturation_current_a/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema61.properties.part.properties.saturation_current_a.type,parentSchema:schema61.properties.part.properties.saturation_current_a,data:data9}];
 return false;
 }
 }
@@ -3620,18 +3945,18 @@ const _errs19 = errors;
 if(errors === _errs19){
 if((typeof data10 == "number") && (isFinite(data10))){
 if(data10 >= 1 || isNaN(data10)){
-validate42.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMaximum",keyword:"exclusiveMaximum",params:{comparison: "<", limit: 1},message:"must be < 1",schema:1,parentSchema:schema59.properties.part.properties.saturation_floor_ratio,data:data10}];
+validate42.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMaximum",keyword:"exclusiveMaximum",params:{comparison: "<", limit: 1},message:"must be < 1",schema:1,parentSchema:schema61.properties.part.properties.saturation_floor_ratio,data:data10}];
 return false;
 }
 else {
 if(data10 <= 0 || isNaN(data10)){
-validate42.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema59.properties.part.properties.saturation_floor_ratio,data:data10}];
+validate42.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema61.properties.part.properties.saturation_floor_ratio,data:data10}];
 return false;
 }
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.part.properties.saturation_floor_ratio.type,parentSchema:schema59.properties.part.properties.saturation_floor_ratio,data:data10}];
+validate42.errors = [{instancePath:instancePath+"/part/saturation_floor_ratio",schemaPath:"#/properties/part/properties/saturation_floor_ratio/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema61.properties.part.properties.saturation_floor_ratio.type,parentSchema:schema61.properties.part.properties.saturation_floor_ratio,data:data10}];
 return false;
 }
 }
@@ -3648,7 +3973,7 @@ var valid1 = true;
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema59.properties.part.type,parentSchema:schema59.properties.part,data:data4}];
+validate42.errors = [{instancePath:instancePath+"/part",schemaPath:"#/properties/part/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema61.properties.part.type,parentSchema:schema61.properties.part,data:data4}];
 return false;
 }
 }
@@ -3669,12 +3994,12 @@ const _errs23 = errors;
 if(errors === _errs23){
 if((typeof data12 == "number") && (isFinite(data12))){
 if(data12 < 0 || isNaN(data12)){
-validate42.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema59.properties.fixture.properties.capacitance_f,data:data12}];
+validate42.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema61.properties.fixture.properties.capacitance_f,data:data12}];
 return false;
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.fixture.properties.capacitance_f.type,parentSchema:schema59.properties.fixture.properties.capacitance_f,data:data12}];
+validate42.errors = [{instancePath:instancePath+"/fixture/capacitance_f",schemaPath:"#/properties/fixture/properties/capacitance_f/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema61.properties.fixture.properties.capacitance_f.type,parentSchema:schema61.properties.fixture.properties.capacitance_f,data:data12}];
 return false;
 }
 }
@@ -3690,18 +4015,18 @@ const _errs25 = errors;
 if(errors === _errs25){
 if((typeof data13 == "number") && (isFinite(data13))){
 if(data13 > 0.000001 || isNaN(data13)){
-validate42.errors = [{instancePath:instancePath+"/fixture/lead_inductance_h",schemaPath:"#/properties/fixture/properties/lead_inductance_h/maximum",keyword:"maximum",params:{comparison: "<=", limit: 0.000001},message:"must be <= 0.000001",schema:0.000001,parentSchema:schema59.properties.fixture.properties.lead_inductance_h,data:data13}];
+validate42.errors = [{instancePath:instancePath+"/fixture/lead_inductance_h",schemaPath:"#/properties/fixture/properties/lead_inductance_h/maximum",keyword:"maximum",params:{comparison: "<=", limit: 0.000001},message:"must be <= 0.000001",schema:0.000001,parentSchema:schema61.properties.fixture.properties.lead_inductance_h,data:data13}];
 return false;
 }
 else {
 if(data13 < 0 || isNaN(data13)){
-validate42.errors = [{instancePath:instancePath+"/fixture/lead_inductance_h",schemaPath:"#/properties/fixture/properties/lead_inductance_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema59.properties.fixture.properties.lead_inductance_h,data:data13}];
+validate42.errors = [{instancePath:instancePath+"/fixture/lead_inductance_h",schemaPath:"#/properties/fixture/properties/lead_inductance_h/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema61.properties.fixture.properties.lead_inductance_h,data:data13}];
 return false;
 }
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/fixture/lead_inductance_h",schemaPath:"#/properties/fixture/properties/lead_inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.fixture.properties.lead_inductance_h.type,parentSchema:schema59.properties.fixture.properties.lead_inductance_h,data:data13}];
+validate42.errors = [{instancePath:instancePath+"/fixture/lead_inductance_h",schemaPath:"#/properties/fixture/properties/lead_inductance_h/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema61.properties.fixture.properties.lead_inductance_h.type,parentSchema:schema61.properties.fixture.properties.lead_inductance_h,data:data13}];
 return false;
 }
 }
@@ -3717,12 +4042,12 @@ const _errs27 = errors;
 if(errors === _errs27){
 if((typeof data14 == "number") && (isFinite(data14))){
 if(data14 <= 0 || isNaN(data14)){
-validate42.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema59.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data14}];
+validate42.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema61.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data14}];
 return false;
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.fixture.properties.tank_voltage_coefficient_per_v2.type,parentSchema:schema59.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data14}];
+validate42.errors = [{instancePath:instancePath+"/fixture/tank_voltage_coefficient_per_v2",schemaPath:"#/properties/fixture/properties/tank_voltage_coefficient_per_v2/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema61.properties.fixture.properties.tank_voltage_coefficient_per_v2.type,parentSchema:schema61.properties.fixture.properties.tank_voltage_coefficient_per_v2,data:data14}];
 return false;
 }
 }
@@ -3739,14 +4064,14 @@ if(errors === _errs29){
 if(data15 && typeof data15 == "object" && !Array.isArray(data15)){
 let missing2;
 if((data15.events_per_s === undefined) && (missing2 = "events_per_s")){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema59.properties.fixture.properties.chatter.required,parentSchema:schema59.properties.fixture.properties.chatter,data:data15}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/required",keyword:"required",params:{missingProperty: missing2},message:"must have required property '"+missing2+"'",schema:schema61.properties.fixture.properties.chatter.required,parentSchema:schema61.properties.fixture.properties.chatter,data:data15}];
 return false;
 }
 else {
 const _errs31 = errors;
 for(const key0 in data15){
 if(!(((((key0 === "events_per_s") || (key0 === "open_share")) || (key0 === "open_s")) || (key0 === "burst_ohm")) || (key0 === "burst_s"))){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/additionalProperties",keyword:"additionalProperties",params:{additionalProperty: key0},message:"must NOT have additional properties",schema:false,parentSchema:schema59.properties.fixture.properties.chatter,data:data15}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/additionalProperties",keyword:"additionalProperties",params:{additionalProperty: key0},message:"must NOT have additional properties",schema:false,parentSchema:schema61.properties.fixture.properties.chatter,data:data15}];
 return false;
 break;
 }
@@ -3758,18 +4083,18 @@ const _errs32 = errors;
 if(errors === _errs32){
 if((typeof data16 == "number") && (isFinite(data16))){
 if(data16 > 100000 || isNaN(data16)){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/maximum",keyword:"maximum",params:{comparison: "<=", limit: 100000},message:"must be <= 100000",schema:100000,parentSchema:schema59.properties.fixture.properties.chatter.properties.events_per_s,data:data16}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/maximum",keyword:"maximum",params:{comparison: "<=", limit: 100000},message:"must be <= 100000",schema:100000,parentSchema:schema61.properties.fixture.properties.chatter.properties.events_per_s,data:data16}];
 return false;
 }
 else {
 if(data16 < 0 || isNaN(data16)){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema59.properties.fixture.properties.chatter.properties.events_per_s,data:data16}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema61.properties.fixture.properties.chatter.properties.events_per_s,data:data16}];
 return false;
 }
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.fixture.properties.chatter.properties.events_per_s.type,parentSchema:schema59.properties.fixture.properties.chatter.properties.events_per_s,data:data16}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/events_per_s",schemaPath:"#/properties/fixture/properties/chatter/properties/events_per_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema61.properties.fixture.properties.chatter.properties.events_per_s.type,parentSchema:schema61.properties.fixture.properties.chatter.properties.events_per_s,data:data16}];
 return false;
 }
 }
@@ -3785,18 +4110,18 @@ const _errs34 = errors;
 if(errors === _errs34){
 if((typeof data17 == "number") && (isFinite(data17))){
 if(data17 > 1 || isNaN(data17)){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_share,data:data17}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema61.properties.fixture.properties.chatter.properties.open_share,data:data17}];
 return false;
 }
 else {
 if(data17 < 0 || isNaN(data17)){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_share,data:data17}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema61.properties.fixture.properties.chatter.properties.open_share,data:data17}];
 return false;
 }
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.fixture.properties.chatter.properties.open_share.type,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_share,data:data17}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_share",schemaPath:"#/properties/fixture/properties/chatter/properties/open_share/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema61.properties.fixture.properties.chatter.properties.open_share.type,parentSchema:schema61.properties.fixture.properties.chatter.properties.open_share,data:data17}];
 return false;
 }
 }
@@ -3812,12 +4137,12 @@ const _errs36 = errors;
 if(errors === _errs36){
 if(Array.isArray(data18)){
 if(data18.length > 2){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_s,data:data18}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema61.properties.fixture.properties.chatter.properties.open_s,data:data18}];
 return false;
 }
 else {
 if(data18.length < 2){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_s,data:data18}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema61.properties.fixture.properties.chatter.properties.open_s,data:data18}];
 return false;
 }
 else {
@@ -3829,18 +4154,18 @@ const _errs38 = errors;
 if(errors === _errs38){
 if((typeof data19 == "number") && (isFinite(data19))){
 if(data19 > 1 || isNaN(data19)){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_s.items,data:data19}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema61.properties.fixture.properties.chatter.properties.open_s.items,data:data19}];
 return false;
 }
 else {
 if(data19 <= 0 || isNaN(data19)){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_s.items,data:data19}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema61.properties.fixture.properties.chatter.properties.open_s.items,data:data19}];
 return false;
 }
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.fixture.properties.chatter.properties.open_s.items.type,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_s.items,data:data19}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s/" + i0,schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema61.properties.fixture.properties.chatter.properties.open_s.items.type,parentSchema:schema61.properties.fixture.properties.chatter.properties.open_s.items,data:data19}];
 return false;
 }
 }
@@ -3853,7 +4178,7 @@ break;
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema59.properties.fixture.properties.chatter.properties.open_s.type,parentSchema:schema59.properties.fixture.properties.chatter.properties.open_s,data:data18}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/open_s",schemaPath:"#/properties/fixture/properties/chatter/properties/open_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema61.properties.fixture.properties.chatter.properties.open_s.type,parentSchema:schema61.properties.fixture.properties.chatter.properties.open_s,data:data18}];
 return false;
 }
 }
@@ -3869,12 +4194,12 @@ const _errs40 = errors;
 if(errors === _errs40){
 if(Array.isArray(data20)){
 if(data20.length > 2){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_ohm,data:data20}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema61.properties.fixture.properties.chatter.properties.burst_ohm,data:data20}];
 return false;
 }
 else {
 if(data20.length < 2){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_ohm,data:data20}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema61.properties.fixture.properties.chatter.properties.burst_ohm,data:data20}];
 return false;
 }
 else {
@@ -3886,18 +4211,18 @@ const _errs42 = errors;
 if(errors === _errs42){
 if((typeof data21 == "number") && (isFinite(data21))){
 if(data21 > 1000000 || isNaN(data21)){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1000000},message:"must be <= 1000000",schema:1000000,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data21}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1000000},message:"must be <= 1000000",schema:1000000,parentSchema:schema61.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data21}];
 return false;
 }
 else {
 if(data21 < 0 || isNaN(data21)){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data21}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema61.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data21}];
 return false;
 }
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.fixture.properties.chatter.properties.burst_ohm.items.type,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data21}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm/" + i1,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema61.properties.fixture.properties.chatter.properties.burst_ohm.items.type,parentSchema:schema61.properties.fixture.properties.chatter.properties.burst_ohm.items,data:data21}];
 return false;
 }
 }
@@ -3910,7 +4235,7 @@ break;
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema59.properties.fixture.properties.chatter.properties.burst_ohm.type,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_ohm,data:data20}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_ohm",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_ohm/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema61.properties.fixture.properties.chatter.properties.burst_ohm.type,parentSchema:schema61.properties.fixture.properties.chatter.properties.burst_ohm,data:data20}];
 return false;
 }
 }
@@ -3926,12 +4251,12 @@ const _errs44 = errors;
 if(errors === _errs44){
 if(Array.isArray(data22)){
 if(data22.length > 2){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_s,data:data22}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/maxItems",keyword:"maxItems",params:{limit: 2},message:"must NOT have more than 2 items",schema:2,parentSchema:schema61.properties.fixture.properties.chatter.properties.burst_s,data:data22}];
 return false;
 }
 else {
 if(data22.length < 2){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_s,data:data22}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/minItems",keyword:"minItems",params:{limit: 2},message:"must NOT have fewer than 2 items",schema:2,parentSchema:schema61.properties.fixture.properties.chatter.properties.burst_s,data:data22}];
 return false;
 }
 else {
@@ -3943,18 +4268,18 @@ const _errs46 = errors;
 if(errors === _errs46){
 if((typeof data23 == "number") && (isFinite(data23))){
 if(data23 > 1 || isNaN(data23)){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_s.items,data:data23}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 1},message:"must be <= 1",schema:1,parentSchema:schema61.properties.fixture.properties.chatter.properties.burst_s.items,data:data23}];
 return false;
 }
 else {
 if(data23 <= 0 || isNaN(data23)){
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_s.items,data:data23}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema61.properties.fixture.properties.chatter.properties.burst_s.items,data:data23}];
 return false;
 }
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.fixture.properties.chatter.properties.burst_s.items.type,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_s.items,data:data23}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s/" + i2,schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/items/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema61.properties.fixture.properties.chatter.properties.burst_s.items.type,parentSchema:schema61.properties.fixture.properties.chatter.properties.burst_s.items,data:data23}];
 return false;
 }
 }
@@ -3967,7 +4292,7 @@ break;
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema59.properties.fixture.properties.chatter.properties.burst_s.type,parentSchema:schema59.properties.fixture.properties.chatter.properties.burst_s,data:data22}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter/burst_s",schemaPath:"#/properties/fixture/properties/chatter/properties/burst_s/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema61.properties.fixture.properties.chatter.properties.burst_s.type,parentSchema:schema61.properties.fixture.properties.chatter.properties.burst_s,data:data22}];
 return false;
 }
 }
@@ -3984,7 +4309,7 @@ var valid3 = true;
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema59.properties.fixture.properties.chatter.type,parentSchema:schema59.properties.fixture.properties.chatter,data:data15}];
+validate42.errors = [{instancePath:instancePath+"/fixture/chatter",schemaPath:"#/properties/fixture/properties/chatter/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema61.properties.fixture.properties.chatter.type,parentSchema:schema61.properties.fixture.properties.chatter,data:data15}];
 return false;
 }
 }
@@ -3998,7 +4323,7 @@ var valid2 = true;
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/fixture",schemaPath:"#/properties/fixture/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema59.properties.fixture.type,parentSchema:schema59.properties.fixture,data:data11}];
+validate42.errors = [{instancePath:instancePath+"/fixture",schemaPath:"#/properties/fixture/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema61.properties.fixture.type,parentSchema:schema61.properties.fixture,data:data11}];
 return false;
 }
 }
@@ -4017,7 +4342,7 @@ for(const key1 in data24){
 let data25 = data24[key1];
 const _errs51 = errors;
 if(!((typeof data25 == "number") && (isFinite(data25)))){
-validate42.errors = [{instancePath:instancePath+"/geometry/" + key1.replace(/~/g, "~0").replace(/\//g, "~1"),schemaPath:"#/properties/geometry/additionalProperties/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema59.properties.geometry.additionalProperties.type,parentSchema:schema59.properties.geometry.additionalProperties,data:data25}];
+validate42.errors = [{instancePath:instancePath+"/geometry/" + key1.replace(/~/g, "~0").replace(/\//g, "~1"),schemaPath:"#/properties/geometry/additionalProperties/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema61.properties.geometry.additionalProperties.type,parentSchema:schema61.properties.geometry.additionalProperties,data:data25}];
 return false;
 }
 var valid7 = _errs51 === errors;
@@ -4027,7 +4352,7 @@ break;
 }
 }
 else {
-validate42.errors = [{instancePath:instancePath+"/geometry",schemaPath:"#/properties/geometry/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema59.properties.geometry.type,parentSchema:schema59.properties.geometry,data:data24}];
+validate42.errors = [{instancePath:instancePath+"/geometry",schemaPath:"#/properties/geometry/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema61.properties.geometry.type,parentSchema:schema61.properties.geometry,data:data24}];
 return false;
 }
 }
@@ -4041,7 +4366,7 @@ if(data.seed !== undefined){
 let data26 = data.seed;
 const _errs53 = errors;
 if(!(((typeof data26 == "number") && (!(data26 % 1) && !isNaN(data26))) && (isFinite(data26)))){
-validate42.errors = [{instancePath:instancePath+"/seed",schemaPath:"#/properties/seed/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema59.properties.seed.type,parentSchema:schema59.properties.seed,data:data26}];
+validate42.errors = [{instancePath:instancePath+"/seed",schemaPath:"#/properties/seed/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema61.properties.seed.type,parentSchema:schema61.properties.seed,data:data26}];
 return false;
 }
 var valid0 = _errs53 === errors;
@@ -4059,7 +4384,7 @@ var valid0 = true;
 }
 }
 else {
-validate42.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema59.type,parentSchema:schema59,data}];
+validate42.errors = [{instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema61.type,parentSchema:schema61,data}];
 return false;
 }
 }

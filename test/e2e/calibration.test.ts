@@ -210,20 +210,29 @@ describe("procedures without a reference inductor", () => {
     await client.close();
   });
 
-  it("the threshold fit recovers the comparator's offset (0.4 mV) within its uncertainty", async () => {
-    // Overdrive-dependent delay also shifts the effective thresholds; without it the truth is the offset alone.
-    const b0 = referenceBoard();
-    const board = { ...b0, comparator: { ...b0.comparator, overdrive_v_s: 0 } };
-    const { client } = await open(board, { inductance_h: 330e-6, series_ohm: 0.15, self_capacitance_f: 3e-12 }, 5);
-    const { fit, entry } = await calibrateThresholds(client, { captures: 3 });
+  it("the threshold fit recovers the comparator's offset (0.4 mV): three calibrations' mean within its uncertainty", async () => {
+    // The reference board as it is (first passage, overdrive delay): the tester's profile tells
+    // the analysis both, so the fitted offset is the comparator's own. One calibration is inside
+    // its U (k = 2) on 22 of 26 seeds (5-30; the offsets scatter by 0.064 mV against a stated
+    // 0.055 mV); the mean of three independent ones checks that it is not biased, against their
+    // combined U.
+    const board = referenceBoard();
     const offset = board.comparator.offset_v!;
-    console.log(`offset ${(fit.offset_v * 1e3).toFixed(3)} mV ± ${(2 * fit.u_offset_v * 1e3).toFixed(3)} mV (k = 2); ratio ${fit.ratio.toFixed(3)} ± ${(2 * fit.u_ratio).toFixed(3)}`);
-    expect(Math.abs(fit.offset_v - offset)).toBeLessThan(2 * fit.u_offset_v);
     const trueRatio = (board.comparator.rising_v + offset) / (board.comparator.falling_v + offset);
-    expect(Math.abs(fit.ratio - trueRatio)).toBeLessThan(2 * fit.u_ratio);
-    expect(fit.u_offset_v).toBeLessThan(0.15e-3);
-    expect(entry.method).toBe("threshold-fit");
-    await client.close();
+    const fits = [];
+    for (const seed of [5, 6, 7]) {
+      const { client } = await open(board, { inductance_h: 330e-6, series_ohm: 0.15, self_capacitance_f: 3e-12 }, seed);
+      const { fit, entry } = await calibrateThresholds(client, { captures: 3 });
+      console.log(`offset ${(fit.offset_v * 1e3).toFixed(3)} mV ± ${(2 * fit.u_offset_v * 1e3).toFixed(3)} mV (k = 2); ratio ${fit.ratio.toFixed(3)} ± ${(2 * fit.u_ratio).toFixed(3)}`);
+      expect(fit.u_offset_v).toBeLessThan(0.15e-3);
+      expect(entry.method).toBe("threshold-fit");
+      fits.push(fit);
+      await client.close();
+    }
+    const mean = (f: (x: (typeof fits)[0]) => number) => fits.reduce((s, x) => s + f(x), 0) / fits.length;
+    const combinedU = (f: (x: (typeof fits)[0]) => number) => Math.sqrt(fits.reduce((s, x) => s + f(x) ** 2, 0)) / fits.length;
+    expect(Math.abs(mean((x) => x.offset_v) - offset)).toBeLessThan(2 * combinedU((x) => x.u_offset_v));
+    expect(Math.abs(mean((x) => x.ratio) - trueRatio)).toBeLessThan(2 * combinedU((x) => x.u_ratio));
   });
 
   it("skips a tank outside the reference's usable span, and refuses when no tank asked for is usable (1 µH on 1 nF: too fast)", async () => {

@@ -10,6 +10,8 @@
 // check is on the analysis, not on a tank tolerance that would swamp it.
 
 import type { RingAnalysis } from "../../host/src/analysis/index.ts";
+import type { DeviceProfile } from "../../host/src/device/profile.ts";
+import { comparatorRecord } from "../../host/src/measure/capture-build.ts";
 import { analyzeCapture } from "../../host/src/measure/read-once.ts";
 import { referenceBoard } from "../../host/src/sim/board-model.ts";
 import { physicalEdges, sampledWaveform } from "../../host/src/sim/comparator-physics.ts";
@@ -17,6 +19,16 @@ import type { PhysicalComparator } from "../../host/src/sim/comparator-physics.t
 import { Random } from "../../host/src/sim/random.ts";
 import { ringCircuit, spiceCapture, spiceRing } from "./spice.ts";
 import type { SpiceRingPart, SpiceRun } from "./spice.ts";
+
+/** A profile stating the board's comparator timing as its firmware does (docs/protocol.md, PD). */
+function boardProfileTiming(c: ReturnType<typeof referenceBoard>["comparator"]): DeviceProfile {
+  return {
+    comparator: {
+      noise_v: c.noise_v, noise_bw_hz: c.noise_bw_hz ?? 0, delay_rise_s: c.delay_rise_s, delay_fall_s: c.delay_fall_s,
+      skew_u_s: 20e-9, overdrive_v_s: c.overdrive_v_s ?? 0,
+    },
+  } as DeviceProfile;
+}
 
 export interface CrossCheckCase extends SpiceRingPart {
   name: string;
@@ -70,6 +82,10 @@ export function crossCheck(c: CrossCheckCase, record: SpiceRun, seed: number, ch
     tick_hz: timer.tick_hz, tank_c_f: tank, tank_c_u_f: tank * TANK_U_REL, thresholds_v: [comp.rising_v + off, comp.falling_v + off], tank_calibrated: true,
   });
   capture.calibration!.timebase_u_ppm = TIMEBASE_U_PPM;
+  // What the tester's profile tells a reading about its comparator (frame PD: the reference
+  // board's design values, whatever `change` does to the comparator itself), applied as a reading
+  // applies it (capture-build.ts).
+  Object.assign(capture, comparatorRecord(boardProfileTiming(board.comparator)));
   const a: RingAnalysis = analyzeCapture(capture);
   const { w0, alpha } = ringCircuit(c);
   const lTrue = 1 / (w0 * w0 * tank); // what a reading on the tank C reports: L (C + Cs)/C, with Rp folded in as in §1

@@ -32,12 +32,15 @@ export interface SkewFit {
 
 /**
  * @param inputs  the reference part's captures, as the analysis takes them (thresholds calibrated)
- * @param timing  what is known of the comparator besides the skew (noise bandwidth, overdrive)
+ * @param timing  what is known of the comparator besides the skew (noise bandwidth, overdrive);
+ *                default: each input's own (`RingInput.comparator`, from its capture)
  */
 export function fitSkew(inputs: RingInput[], timing: Omit<ComparatorTiming, "skew_s" | "skew_u_s"> = {}): SkewFit {
   const rings: SkewRing[] = [];
   for (const input of inputs) {
-    const s = fitRing({ ...input, comparator: { ...timing, skew_s: 0, skew_u_s: Infinity, skew_source: "calibration fit" } });
+    // The ring's own comparator record (the board's noise and overdrive) unless told otherwise;
+    // its skew prior is set aside: the skew is what this fits.
+    const s = fitRing({ ...input, comparator: { ...input.comparator, ...timing, skew_s: 0, skew_u_s: Infinity, skew_source: "calibration fit" } });
     const t = s.timing;
     if (!t || !(t.skew_sd_s > 0) || !Number.isFinite(t.skew_s)) continue;
     rings.push({ f0_hz: Math.sqrt(s.p[0] ** 2 + s.p[3] ** 2) / (2 * Math.PI), skew_s: t.skew_s, sd_s: t.skew_sd_s });

@@ -34,7 +34,12 @@ describe("comparator skew procedure on the simulated tester", () => {
     const r = await measurePart(client, { calibration: cal });
     expect(r.capture.calibration?.comparator_skew_s).toBe(entry.skew_s);
     const input = ringInputFromCapture(r.capture);
-    expect(input.comparator).toEqual({ skew_s: entry.skew_s, skew_u_s: entry.u_skew_s, skew_source: "calibration" });
+    // The calibrated skew, with the board profile's noise and overdrive charge (frame PD).
+    const pd = client.profile.comparator!;
+    expect(input.comparator).toEqual({
+      skew_s: entry.skew_s, skew_u_s: entry.u_skew_s, skew_source: "calibration",
+      noise_bw_hz: pd.noise_bw_hz, noise_v: pd.noise_v, overdrive_v_s: pd.overdrive_v_s, overdrive_u_v_s: 0.5 * pd.overdrive_v_s,
+    });
     await client.close();
   });
 

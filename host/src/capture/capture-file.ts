@@ -47,7 +47,24 @@ export interface CaptureV1 {
     /** The comparator's calibrated rise/fall delay skew and its standard uncertainty, seconds. */
     comparator_skew_s?: number; comparator_skew_u_s?: number;
   };
+  /**
+   * The comparator timing the reading applied (docs/method.md §2a): the skew prior (calibrated,
+   * else the board profile's), the board's input noise and overdrive charge. A re-analysis
+   * applies exactly these; absent (older files, older firmware): the calibrated skew alone.
+   */
+  comparator?: CaptureComparator;
   [extra: string]: unknown;
+}
+
+/** A capture's comparator record (capture.schema.json, $defs/comparator). */
+export interface CaptureComparator {
+  skew_s: number;
+  skew_u_s: number;
+  skew_source: "calibration" | "board profile";
+  noise_bw_hz?: number;
+  noise_v?: number;
+  overdrive_v_s?: number;
+  overdrive_u_v_s?: number;
 }
 
 export class CaptureFileError extends CodedError<"BAD_CAPTURE_FILE"> {

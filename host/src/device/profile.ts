@@ -33,6 +33,24 @@ export interface TankCapacitor {
   nominal_f: number;
 }
 
+/**
+ * The comparator's timing beyond its thresholds, as the board's design states it (profile frame
+ * `PD`, docs/protocol.md; absent from older firmware): what the analysis needs to correct edge
+ * times for first passage, skew and overdrive delay (docs/method.md §2a). Ring-referred.
+ */
+export interface ComparatorBoardTiming {
+  /** Input noise rms the comparator decides on, volts, and its first-order bandwidth, Hz. */
+  noise_v: number;
+  noise_bw_hz: number;
+  /** Propagation delays of a low->high and a high->low output, seconds. */
+  delay_rise_s: number;
+  delay_fall_s: number;
+  /** Standard uncertainty of delay_rise_s - delay_fall_s (the skew), seconds. */
+  skew_u_s: number;
+  /** Overdrive charge of the input stage, volt-seconds (0: none stated). */
+  overdrive_v_s: number;
+}
+
 export interface DeviceProfile {
   tick_hz: number;
   drives: DriveResistor[];
@@ -52,6 +70,8 @@ export interface DeviceProfile {
   self_test_us?: number;
   /** Capture timer width the port delivers: 0 extended ticks, else raw bits extended by the firmware. */
   capture_bits?: number;
+  /** The comparator's timing (absent from older firmware: the analysis then fits thresholds only). */
+  comparator?: ComparatorBoardTiming;
 }
 
 export function parseIdentity(frame: Frame): DeviceIdentity {
@@ -102,6 +122,16 @@ export function parseProfile(frames: Frame[]): DeviceProfile {
         p.settle_us = intField(f, 4, "settle_us");
         if (f.fields.length > 5) p.max_charge_us = intField(f, 5, "max_charge_us");
         if (f.fields.length > 6) p.self_test_us = intField(f, 6, "self_test_us");
+        break;
+      case "PD":
+        p.comparator = {
+          noise_v: intField(f, 0, "noise_uv") / 1e6,
+          noise_bw_hz: intField(f, 1, "noise_bw_khz") * 1e3,
+          delay_rise_s: intField(f, 2, "delay_rise_ps") * 1e-12,
+          delay_fall_s: intField(f, 3, "delay_fall_ps") * 1e-12,
+          skew_u_s: intField(f, 4, "skew_u_ps") * 1e-12,
+          overdrive_v_s: intField(f, 5, "overdrive_fvs") * 1e-15,
+        };
         break;
       case "PX":
         p.capture_bits = intField(f, 0, "capture_bits");

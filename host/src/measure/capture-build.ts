@@ -1,11 +1,14 @@
 // Turns a verified device capture into a capture file record, and a capture record into the
 // analysis input. With a calibration, the tank's effective capacitance, the thresholds and the
 // timebase come from it; without one, the tank is taken at its nominal value with the board's
-// C0G/film tolerance (±1 %, rectangular: u = 1 % / sqrt(3), JCGM 100:2008 §4.3.7).
+// C0G/film tolerance (±1 %, rectangular: u = 1 % / sqrt(3), JCGM 100:2008 §4.3.7). The
+// comparator's timing (the board profile's noise and overdrive charge, the calibrated or the
+// board's skew) is recorded in the capture and applied from there, so that a saved capture
+// analyses as the reading did.
 
 import { nominalTankU } from "../nominal-uncertainty.ts";
 import type { RingInput } from "../analysis/index.ts";
-import type { CaptureV1 } from "../capture/capture-file.ts";
+import type { CaptureComparator, CaptureV1 } from "../capture/capture-file.ts";
 import type { DeviceIdentity, DeviceProfile } from "../device/profile.ts";
 import type { RawCapture } from "../device/stream-reader.ts";
 import type { AppliedCalibration } from "../calibration/applied.ts";
@@ -39,6 +42,7 @@ export function captureFromDevice(
         ...(calibration.comparator_skew ? { comparator_skew_s: calibration.comparator_skew.skew_s, comparator_skew_u_s: calibration.comparator_skew.u_s } : {}),
       }
       : { source: "nominal (uncalibrated)", tank_calibrated: false, nominal_tank_c_f: nominal, nominal_tick_hz: raw.tick_hz, timebase_ppm: 0 },
+    ...comparatorRecord(profile, calibration),
     drive: { supply_v: profile.supply_v, series_ohm: profile.drives[s.drive].ohm, clamp_v: profile.clamp_v },
     range: {
       drive_index: s.drive, tank_index: s.tank, charge_us: s.charge_us,
@@ -54,7 +58,58 @@ export function captureFromDevice(
   };
 }
 
+/**
+ * Relative standard uncertainty of a board's overdrive charge: the profile states a nominal
+ * value only, read off a datasheet's delay-versus-overdrive curve, whose spread over parts and
+ * temperature is of this order (datasheet-typical, value from memory).
+ */
+export const OVERDRIVE_U_REL = 0.5;
+
+/**
+ * The comparator timing a reading applies: the skew from calibration when there is one, else the
+ * board's design difference of the two delays, taken as exact (its stated uncertainty is not yet
+ * applied: as the prior of a free skew it let a saturating core's fit run to an amplitude 2.5x
+ * what the drive allows before the fault judgement saw it, docs/hardware.md); the board's noise
+ * (bandwidth and rms) and overdrive charge. Nothing when neither the profile (older firmware)
+ * nor the calibration says anything.
+ */
+export function comparatorRecord(profile: DeviceProfile, calibration?: AppliedCalibration): { comparator?: CaptureComparator } {
+  const b = profile.comparator;
+  const cal = calibration?.comparator_skew;
+  if (!b && !cal) return {};
+  const c: CaptureComparator = cal
+    ? { skew_s: cal.skew_s, skew_u_s: cal.u_s, skew_source: "calibration" }
+    : { skew_s: b!.delay_rise_s - b!.delay_fall_s, skew_u_s: 0, skew_source: "board profile" };
+  if (b && b.noise_bw_hz > 0) {
+    c.noise_bw_hz = b.noise_bw_hz;
+    if (b.noise_v > 0) c.noise_v = b.noise_v;
+  }
+  if (b && b.overdrive_v_s > 0) {
+    c.overdrive_v_s = b.overdrive_v_s;
+    c.overdrive_u_v_s = OVERDRIVE_U_REL * b.overdrive_v_s;
+  }
+  return { comparator: c };
+}
+
+/** The analysis's comparator timing from a capture: its record, or an older file's calibrated skew. */
+export function comparatorTimingFromCapture(c: CaptureV1): RingInput["comparator"] {
+  const r = c.comparator;
+  if (r) {
+    return {
+      skew_s: r.skew_s, skew_u_s: r.skew_u_s, skew_source: r.skew_source,
+      ...(r.noise_bw_hz !== undefined ? { noise_bw_hz: r.noise_bw_hz } : {}),
+      ...(r.noise_v !== undefined ? { noise_v: r.noise_v } : {}),
+      ...(r.overdrive_v_s !== undefined ? { overdrive_v_s: r.overdrive_v_s, overdrive_u_v_s: r.overdrive_u_v_s ?? OVERDRIVE_U_REL * r.overdrive_v_s } : {}),
+    };
+  }
+  if (c.calibration?.comparator_skew_s !== undefined) {
+    return { skew_s: c.calibration.comparator_skew_s, skew_u_s: c.calibration.comparator_skew_u_s ?? 0, skew_source: "calibration" };
+  }
+  return undefined;
+}
+
 export function ringInputFromCapture(c: CaptureV1): RingInput {
+  const comparator = comparatorTimingFromCapture(c);
   // A malformed record goes to the analysis as it stands, which refuses it with its own message.
   const edges = edgesOf(c);
   return {
@@ -68,10 +123,8 @@ export function ringInputFromCapture(c: CaptureV1): RingInput {
     // pins the amplitude of a short, heavily damped ring.
     ring_ended: c.meta?.end_reason === "quiet",
     ...(c.calibration?.timebase_u_ppm !== undefined ? { timebase_u_rel: c.calibration.timebase_u_ppm * 1e-6 } : {}),
-    // A calibrated comparator skew: the analysis takes it out of the rising edges and carries
-    // its uncertainty into U (docs/method.md §2a).
-    ...(c.calibration?.comparator_skew_s !== undefined
-      ? { comparator: { skew_s: c.calibration.comparator_skew_s, skew_u_s: c.calibration.comparator_skew_u_s ?? 0, skew_source: "calibration" } }
-      : {}),
+    // The comparator's timing: the analysis takes the skew, first-passage shift and overdrive
+    // delay out of the edge times and carries their uncertainty into U (docs/method.md §2a).
+    ...(comparator ? { comparator } : {}),
   };
 }

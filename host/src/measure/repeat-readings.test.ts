@@ -145,3 +145,23 @@ describe("a fixed setting's capture window", () => {
     }
   });
 });
+
+describe("repeated readings when the part comes off the clips", () => {
+  it("end with the first capture that has no ring, and pulse no more on the setting checked for the old part", async () => {
+    const t = await openTester({ part: COIL, seed: 12 });
+    try {
+      const first = await measurePart(t.client);
+      const codes: string[] = [];
+      for await (const o of repeatReadings(t.client, { after: first, count: 20 })) {
+        codes.push(o.ok ? "ok" : o.error.code);
+        if (codes.length === 3) t.sim!.part = null; // the part is taken off
+      }
+      expect(codes.slice(0, 3)).toEqual(["ok", "ok", "ok"]);
+      expect(codes.slice(3)).toEqual(["EMPTY_CAPTURE"]);
+      // The client is ready for the next reading (the open clips refuse with their own code).
+      await expect(measurePart(t.client)).rejects.toMatchObject({ code: expect.any(String) });
+    } finally {
+      await t.close();
+    }
+  });
+});

@@ -29,6 +29,9 @@ export interface RepeatOptions extends MeasureOptions {
 /** One reading's outcome: the reading, or the MeasureError measurePart would have thrown for it. */
 export type RepeatOutcome = { ok: true; reading: Reading } | { ok: false; error: MeasureError };
 
+/** Outcomes that show no part on the clips: the sequence ends with them. */
+const PART_GONE = new Set(["EMPTY_CAPTURE", "NO_RING"]);
+
 interface InFlight {
   progress: ReadingProgress;
   raw: Promise<RawCapture>;
@@ -37,7 +40,10 @@ interface InFlight {
 /**
  * Yields the outcome of each reading in the order of its pulse. A setting refused before any
  * pulse (SETTING_UNSAFE, CHARGE_LIMIT, PEAK_LIMIT) and link failures are thrown, as measurePart
- * throws them. When `signal` fires, no pulse starts after it, a pulse in flight is stopped (the
+ * throws them. The setting is checked once, for the part of `after`: a capture with no ring at
+ * all (EMPTY_CAPTURE, NO_RING: the clips are open, the part is being changed) is the last
+ * outcome, and no pulse follows it but the one already under way (stopped, its capture not given);
+ * read a new part with measurePart, whose probe checks it, before repeating on it. When `signal` fires, no pulse starts after it, a pulse in flight is stopped (the
  * tester is sent AB), every capture that was already whole is still analysed and yielded, and
  * the sequence ends. Ending the iteration early (break) stops the pulse in flight the same way.
  * Each reading has its own progress events; with overlap, reading N + 1's pulse event comes
@@ -92,6 +98,9 @@ export async function* repeatReadings(client: DeviceClient, opts: RepeatOptions)
       const outcome = judge(client, raw, pulseOpts, plan);
       current.progress.done(false);
       yield outcome;
+      // No ring at all: the part is off the clips (or another is going on), and the setting was
+      // checked for the part that was there. Pulse no more on it.
+      if (!outcome.ok && PART_GONE.has(outcome.error.code)) return;
       if (!overlap && n + 1 < count && !stop.signal.aborted) inFlight = start();
     }
   } finally {

@@ -30,6 +30,8 @@ export interface ResultJson {
     drive?: CaptureV1["drive"];
     range?: CaptureV1["range"];
     calibration?: CaptureV1["calibration"];
+    /** The comparator timing the analysis applied (capture `comparator`). */
+    comparator?: CaptureV1["comparator"];
   };
   device?: CaptureV1["device"];
   label?: string;
@@ -73,6 +75,7 @@ export function buildResult(a: RingAnalysis, c: CaptureV1, suspect?: { code: Par
       drive: c.drive,
       range: c.range,
       calibration: c.calibration,
+      comparator: c.comparator,
     },
     device: c.device,
     label: typeof c.meta?.label === "string" ? c.meta.label : undefined,

@@ -47,6 +47,8 @@ export interface NonlinearResult {
   peak_v: number;
   /** True when the clamp conducted. */
   clamped: boolean;
+  /** The ring v_D - v_T at every integration step (at most period/40 apart), when asked for. */
+  samples?: { t_s: number[]; v_v: number[] };
 }
 
 /**
@@ -57,6 +59,8 @@ export interface NonlinearResult {
 export function nonlinearCrossings(
   c: FrontEndCircuit, nl: Nonlinearities, x0: [number, number],
   rising_v: number, falling_v: number, max_edges: number, window_s: number,
+  /** Also return the ring itself at every step (for a comparator that decides by first passage). */
+  keepSamples = false,
 ): NonlinearResult {
   const cTank = c.c_f + c.csw_f;
   const w0 = 1 / Math.sqrt(c.l_h * cTank);
@@ -77,11 +81,17 @@ export function nonlinearCrossings(
   };
   const period = (2 * Math.PI) / w0;
   const out: NonlinearResult = { times: [], levels: [], slopes: [], peak_v: 0, clamped: false };
+  const samples = keepSamples ? { t_s: [0], v_v: [-x0[1]] } : undefined;
+  if (samples) out.samples = samples;
   let high = false;
   let lastPeakT = 0;
   const ring = (s: StepInfo, t: number) => -hermite(s, 1, t); // v_D - v_T = -v_TD
   integrate(rhs, 0, Float64Array.from(x0), window_s, { rtol: 1e-10, atol: 1e-13, h0: period / 200, hmax: period / 40 }, (s) => {
     const v1 = -s.y1[1];
+    if (samples) {
+      samples.t_s.push(s.t1);
+      samples.v_v.push(v1);
+    }
     if (v1 > clampV) clamped = true;
     if (v1 > out.peak_v) out.peak_v = v1;
     const level = high ? falling_v : rising_v;

@@ -129,8 +129,17 @@ export function piecewiseCubicWaveform(t: Float64Array, v: Float64Array, d: Floa
   }
   let cursor = 0;
   const find = (x: number) => {
-    // Queries move forward almost always: search from the last interval found.
-    if (x < t[cursor]) cursor = 0;
+    // Queries move forward almost always: search from the last interval found; a step back
+    // (a bridge midpoint, another comparator level) bisects the earlier knots.
+    if (x < t[cursor]) {
+      let a = 0, b = cursor;
+      while (b - a > 1) {
+        const c = (a + b) >> 1;
+        if (t[c] <= x) a = c;
+        else b = c;
+      }
+      cursor = a;
+    }
     while (cursor < m - 1 && x >= t[cursor + 1]) cursor++;
     return cursor;
   };

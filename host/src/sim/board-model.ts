@@ -84,10 +84,8 @@ export function referenceBoard(): BoardModel {
       delay_rise_s: 45e-9,
       delay_fall_s: 45e-9,
       overdrive_v_s: 2e-12,
-      // The physical comparator (first passage of ring + continuous noise) is built and validated
-      // (docs/hardware.md, "Comparator model and its validation") but off on this board until the
-      // analysis corrects its bias: with it on, three end-to-end checks move (docs/hardware.md).
-      noise_model: "per-crossing",
+      // Edges by first passage of ring + continuous noise (docs/hardware.md, "Comparator model
+      // and its validation"); the tester's profile (PD) tells the analysis these values.
     },
     timer: { tick_hz: 64e6, ppm: 11.5, dead_time_s: 30e-9 },
     device_id: 0x5eed0001,

@@ -8,7 +8,8 @@ import type { RingWave } from "../physics/ring-wave.ts";
 import { waveAmplitude } from "../physics/ring-wave.ts";
 import type { BoardModel } from "./board-model.ts";
 import type { EdgeList } from "./comparator-edges.ts";
-import { applyComparator, captureEdges } from "./comparator-edges.ts";
+import { applyComparator, captureEdges, usesFirstPassage } from "./comparator-edges.ts";
+import { physicalEdges, sampledWaveform } from "./comparator-physics.ts";
 import { nonlinearCrossings, type Nonlinearities } from "../physics/nonlinear-ring.ts";
 import { contactEvents, contactResistance, longestEvent, type ContactChatter } from "./fixture-chatter.ts";
 import type { Random } from "./random.ts";
@@ -68,8 +69,14 @@ export function simulatePulse(
       tank_k_per_v2: board.tank_k_per_v2, clamp_v: board.clamp_v, clamp_ohm: board.clamp_ohm, ...chatter,
     },
     [x0.i_a, x0.v_td_v], board.comparator.rising_v + off, board.comparator.falling_v + off, capacity + 64, window_s,
+    usesFirstPassage(board.comparator),
   );
-  const edges = applyComparator(nl.times, nl.levels, nl.slopes, board.comparator, board.timer, rng, capacity);
+  // The integrated ring through the same comparator as a closed-form one: by first passage of
+  // ring + noise on the ring sampled at the integrator's steps (a cubic spline through them),
+  // else per crossing.
+  const edges = nl.samples && nl.samples.t_s.length > 1
+    ? physicalEdges(sampledWaveform(nl.samples.t_s, nl.samples.v_v), { ...board.comparator, noise_bw_hz: board.comparator.noise_bw_hz ?? 1e9 }, board.timer, rng, { max_edges: capacity, window_s: Math.min(window_s, nl.samples.t_s[nl.samples.t_s.length - 1]) })
+    : applyComparator(nl.times, nl.levels, nl.slopes, board.comparator, board.timer, rng, capacity);
   return { edges, wave, i0_a: x0.i_a, peak_v: nl.peak_v, clamped: nl.clamped };
 }
 

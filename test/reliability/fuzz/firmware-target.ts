@@ -13,7 +13,7 @@ import type { Tally } from "./tally.ts";
 import { crash, known, rejected } from "./tally.ts";
 
 /** Every tag docs/protocol.md lets the firmware send. */
-const FIRMWARE_TAGS = new Set(["OK", "ER", "ID", "PT", "PR", "PC", "PH", "PS", "PL", "PX", "CH", "CD", "CE", "SR", "CT", "TK"]);
+const FIRMWARE_TAGS = new Set(["OK", "ER", "ID", "PT", "PR", "PC", "PH", "PD", "PS", "PL", "PX", "CH", "CD", "CE", "SR", "CT", "TK"]);
 const LAST_ERROR_CODE = 11;
 
 class FuzzedTester {
