@@ -27,7 +27,7 @@ import { CalibrationError } from "../calibration/errors.ts";
 import { CodedError } from "../coded-error.ts";
 import type { DeviceProfile } from "../device/profile.ts";
 import { formatSi } from "../format/si.ts";
-import { edgesOf } from "./edge-list.ts";
+import { edgesOf } from "../capture/edge-list.ts";
 
 /** Largest timer error accepted, ppm (as the timebase calibration: docs/calibration.md). */
 export const MAX_TIMEBASE_PPM = 1000;
@@ -142,7 +142,7 @@ export const PROFILE_TANK_TOLERANCE = 0.25;
  * Throws CalibrationError PROFILE_BOARD_MISMATCH.
  */
 export function checkProfileAgainstBoard(profile: CalibrationProfile, board: DeviceProfile, path: string): void {
-  const next = `restore the previous profile ("henrytick calibrate restore") or calibrate this tester again; --uncalibrated measures with nominal values meanwhile`;
+  const next = `restore the previous profile ("henrytick calibrate restore") or calibrate this tester again; measuring with the profile left out (uncalibrated) uses nominal values meanwhile`;
   for (const t of profile.tanks) {
     const b = board.tanks.find((x) => x.index === t.index);
     if (!b) {
