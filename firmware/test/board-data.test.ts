@@ -2,11 +2,16 @@
 // firmware/assembly/board.ts is the one generated from the reference board's file, and an image
 // built from any board's file reports exactly that file's values in its profile (PF).
 
-import { readFileSync } from "node:fs";
+import { spawnSync } from "node:child_process";
+import { mkdtempSync, readFileSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { fileURLToPath } from "node:url";
 import { beforeAll, describe, expect, it } from "vitest";
 import { parseProfile } from "../../host/src/device/profile.ts";
 import { BOARD_TS, DEFAULT_BOARD, type BoardData, boardNames, boardProblems, boardSource, loadBoard } from "../tools/board-source.ts";
 import { compileBoardFirmware } from "../tools/build-board.ts";
+import { hasHostGcc } from "../ports/native-build.ts";
 import { SimLink, show } from "./sim-link.ts";
 
 const names = boardNames();
@@ -26,11 +31,11 @@ describe("board files", () => {
   });
 
   it("refuses a board the firmware could not carry, naming the field", () => {
-    const good = loadBoard(DEFAULT_BOARD);
+    const good = loadBoard("reference");
     const edit = (f: (b: BoardData) => void) => {
       const b = structuredClone(good);
       f(b);
-      return boardProblems(b, DEFAULT_BOARD);
+      return boardProblems(b, "reference");
     };
     expect(edit(() => {})).toEqual([]);
     expect(edit((b) => (b.tanks[0].nominal_f = 1.0005e-9))).toEqual([expect.stringMatching(/^\/tanks\/0\/nominal_f .*whole number/)]);
@@ -40,6 +45,7 @@ describe("board files", () => {
     expect(edit((b) => delete (b as Partial<BoardData>).drives)).toEqual([expect.stringMatching(/drives/)]);
     expect(edit((b) => (b.drives[1].ohm = "100" as unknown as number))).toEqual([expect.stringMatching(/^\/drives\/1\/ohm /)]);
     expect(edit((b) => (b.name = "other"))).toEqual([expect.stringMatching(/^\/name /)]);
+    expect(edit((b) => b.simulated_unit!.tank_f.pop())).toEqual([expect.stringMatching(/^\/simulated_unit\/tank_f has 3 values for 4 tanks/)]);
     expect(() => loadBoard("no-such-board")).toThrow(/the boards are .*reference/);
   });
 });
@@ -75,5 +81,23 @@ describe.each(names)("the firmware built for board %s", (name) => {
     for (const k of ["noise_v", "noise_bw_hz", "delay_rise_s", "delay_fall_s", "skew_u_s", "overdrive_v_s"] as const) {
       expect(p.comparator![k], k).toBeCloseTo(board.comparator[k], 9 - Math.floor(Math.log10(Math.abs(board.comparator[k]) || 1)));
     }
+  });
+});
+
+describe("the C ports and the board's tick rate", () => {
+  const note = hasHostGcc ? "" : " (skipped: Debian package gcc not installed)";
+  /** Compiles the STM32F411CE clock tree against a henrytick-board.h stating `tickHz`. */
+  const clockTree = (tickHz: number) => {
+    const dir = mkdtempSync(join(tmpdir(), "ht-board-h-"));
+    writeFileSync(join(dir, "henrytick-board.h"), `#define HT_BOARD_TICK_HZ ${tickHz}u\n`);
+    const f411 = fileURLToPath(new URL("../ports/f411/", import.meta.url));
+    return spawnSync("gcc", ["-std=c11", "-fsyntax-only", "-I", dir, "-I", f411, "-x", "c", "-"], { input: '#include "clock.h"\n', encoding: "utf8" });
+  };
+
+  it.skipIf(!hasHostGcc)(`the F411 clock tree builds for the reference board's tick and refuses another board's${note}`, () => {
+    expect(clockTree(loadBoard("reference").tick_hz).status).toBe(0);
+    const other = clockTree(loadBoard("e6-compact").tick_hz);
+    expect(other.status).not.toBe(0);
+    expect(other.stderr).toMatch(/TIM2 at the board's tick rate/);
   });
 });

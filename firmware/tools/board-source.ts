@@ -8,50 +8,40 @@
 
 import { readFileSync, readdirSync, writeFileSync } from "node:fs";
 import { fileURLToPath } from "node:url";
-import Ajv2020 from "ajv/dist/2020.js";
+import ajvModule from "ajv/dist/2020.js";
+import type { BoardProfile } from "../../host/src/sim/board-profile.ts";
 
 export const BOARDS_DIR = fileURLToPath(new URL("../../shared-protocol/boards/", import.meta.url));
 export const BOARD_TS = fileURLToPath(new URL("../assembly/board.ts", import.meta.url));
 /** The board the committed firmware image is built for. */
 export const DEFAULT_BOARD = "reference";
 
-/** The part of a board file the firmware needs (the schema has the rest). */
-export interface BoardData {
-  name: string;
-  description: string;
-  tick_hz: number;
-  supply_v: number;
-  clamp_v: number;
-  thresholds_v: [number, number];
-  comparator: { noise_v: number; noise_bw_hz: number; delay_rise_s: number; delay_fall_s: number; skew_u_s: number; overdrive_v_s: number };
-  drives: { ohm: number; power_rating_w: number; energy_rating_j: number; thermal_time_constant_s: number; source: string }[];
-  max_charge_us: number;
-  tanks: { nominal_f: number; dielectric?: string }[];
-  buffer_edges: number;
-  max_timeout_ms: number;
-  settle_us: number;
-  self_test_us: number;
-}
+/** A board file (the host's type of it: the simulator reads the same files). */
+export type BoardData = BoardProfile;
 
 /** The board files beside the schema, by name. */
 export function boardNames(): string[] {
   return readdirSync(BOARDS_DIR).filter((f) => f.endsWith(".json") && !f.endsWith(".schema.json")).map((f) => f.slice(0, -5)).sort();
 }
 
-let validator: ((v: unknown) => boolean) & { errors?: { instancePath: string; message?: string }[] | null } | undefined;
+type Validator = ((v: unknown) => boolean) & { errors?: { instancePath: string; message?: string }[] | null };
+let validator: Validator | undefined;
 
 /** Problems with a board file's content (empty when it is sound). */
 export function boardProblems(value: unknown, fileName?: string): string[] {
   if (!validator) {
-    const Ajv = (Ajv2020 as unknown as { default?: typeof Ajv2020 }).default ?? Ajv2020;
-    const ajv = new Ajv({ strict: true, allErrors: true });
-    validator = ajv.compile(JSON.parse(readFileSync(`${BOARDS_DIR}board.schema.json`, "utf8")));
+    // ajv is CommonJS: its class is the module's `default` export.
+    const ajv = new ajvModule.default({ strict: true, allErrors: true });
+    validator = ajv.compile(JSON.parse(readFileSync(`${BOARDS_DIR}board.schema.json`, "utf8"))) as Validator;
   }
   if (!validator(value)) return (validator.errors ?? []).map((e) => `${e.instancePath || "(root)"} ${e.message}`);
   const b = value as BoardData;
   const problems: string[] = [];
   if (fileName !== undefined && b.name !== fileName) problems.push(`/name "${b.name}" differs from the file name "${fileName}"`);
   if (!(b.thresholds_v[0] > b.thresholds_v[1])) problems.push("/thresholds_v the rising threshold must lie above the falling one");
+  const unit = b.simulated_unit;
+  if (unit && unit.drive_ohm.length !== b.drives.length) problems.push(`/simulated_unit/drive_ohm has ${unit.drive_ohm.length} values for ${b.drives.length} drives`);
+  if (unit && unit.tank_f.length !== b.tanks.length) problems.push(`/simulated_unit/tank_f has ${unit.tank_f.length} values for ${b.tanks.length} tanks`);
   // Every value must be exact in the firmware's integer unit, so the profile reads back unchanged.
   const exact = (path: string, v: number, unit: keyof typeof UNITS) => {
     try {

@@ -157,9 +157,11 @@ export const FILE_ERROR_MEANINGS = {
   OUTPUT_FAILED: "the command line could not write its output (a full disk, a closed file)",
 } as const;
 
-/** The simulated and emulated testers (`FirmwareImageError`, `PtyDeviceError`, `QemuDeviceError`). */
+/** The simulated and emulated testers (`FirmwareImageError`, `BoardProfileError`, `PtyDeviceError`, `QemuDeviceError`). */
 export const SIMULATOR_ERROR_MEANINGS = {
   FIRMWARE_IMAGE_MISSING: "the firmware image the simulated tester runs is missing",
+  UNKNOWN_BOARD: "no board file of that name (the message lists the boards there are)",
+  NO_SIMULATED_UNIT: "the board file describes no simulated unit of the board",
   SIM_FAULT: "the simulated tester failed",
   SOCAT_MISSING: "socat is not installed (needed for the pseudo-terminal)",
   SOCAT_FAILED: "socat could not be run",

@@ -124,3 +124,34 @@ describe("Ctrl-C ends a watch normally, under npx as under node", () => {
     expect(r.out).toMatch(/── \d+ parts/);
   }, 60_000);
 });
+
+/** Decimals of a printed number. */
+const decimals = (s: string) => (s.split(".")[1] ?? "").length;
+/** Significant digits of a printed uncertainty (leading zeros do not count). */
+const sigDigits = (s: string) => s.replace(".", "").replace(/^0+/, "").length;
+
+// JCGM 100:2008 §7.2.6: U to at most two significant digits, the value to the same decimal place.
+describe("digits follow the uncertainty in text output", () => {
+  it("measure prints the frequency with its U, to the same decimal place", () => {
+    const text = runCli(["measure", "--sim"]);
+    expect(text.status, text.stderr).toBe(0);
+    const m = /frequency {4}([\d.]+) kHz {2}± ([\d.]+) kHz/.exec(text.stdout);
+    expect(m, text.stdout).not.toBeNull();
+    const [, value, u] = m!;
+    expect(sigDigits(u)).toBe(2);
+    expect(decimals(value)).toBe(decimals(u));
+    const json = JSON.parse(runCli(["measure", "--sim", "--json"]).stdout);
+    expect(Number(value)).toBeCloseTo(json.f0_hz / 1e3, decimals(value));
+    expect(Number(u)).toBeCloseTo(json.f0_u_hz / 1e3, decimals(u));
+  });
+
+  it("sort's summary gives the mean and range to the digits of the parts' U", () => {
+    const r = runCli(["sort", "--sim", "--nominal", "10u", "--tol", "5%", "--sim-tray", "9.61u,10.02u,10.43u", "--settle", "1", "--log", join(tmp, "digits")]);
+    expect(r.status, r.stderr).toBe(0);
+    const m = /mean {9}([\d.]+) µH, range ([\d.]+) µH … ([\d.]+) µH \(parts read with U up to ([\d.]+) µH\)/.exec(r.stdout);
+    expect(m, r.stdout).not.toBeNull();
+    const u = m![4];
+    expect(sigDigits(u)).toBe(2);
+    for (const v of m!.slice(1, 4)) expect(decimals(v)).toBe(decimals(u));
+  });
+});

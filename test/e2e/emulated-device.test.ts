@@ -127,7 +127,7 @@ describe.skipIf(!canEmulate).each(CORES)(`the emulated STM32F405, Cortex-%s${SKI
     // so each read's timing is that much less certain.
     const r = await cli(["calibrate", "timebase", "--port", device.path, "--seconds", "8"], { configDir: mkdtempSync(join(tmpdir(), "henrytick-emu-")) });
     expect(r.status, r.stderr).toBe(0);
-    const m = /timebase (-?[\d.]+) ppm ± ([\d.]+) ppm \(k = 2\)/.exec(r.stdout);
+    const m = /timebase ([+-]?[\d.]+) ppm ± ([\d.]+) ppm \(k = 2\)/.exec(r.stdout);
     expect(m).not.toBeNull();
     // Within 1.5 times the expanded uncertainty (k = 2), i.e. about k = 3: a k = 2 interval misses
     // one run in twenty by chance, and this runs on two cores in every CI run.

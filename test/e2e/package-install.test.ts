@@ -85,7 +85,10 @@ describe("the packed henrytick package", () => {
     }
     expect(readFileSync(join(installed, "LICENSE"), "utf8")).toBe(readFileSync(join(ROOT, "LICENSE"), "utf8"));
     const protocol = files(join(app, "node_modules", "@henrytick", "shared-protocol"));
-    expect(protocol.filter((f) => !f.startsWith("dist/")).sort()).toEqual(["LICENSE", "README.md", "package.json"]);
+    // Beside the codec, the board files (the simulated tester reads them) and their schema.
+    const boards = readdirSync(join(ROOT, "shared-protocol", "boards")).map((f) => `boards/${f}`);
+    expect(boards).toContain("boards/reference.json");
+    expect(protocol.filter((f) => !f.startsWith("dist/")).sort()).toEqual(["LICENSE", "README.md", ...boards, "package.json"].sort());
     // The checkout keeps one copy of each packed-in file: prepack's copies are gone again.
     expect(existsSync(join(ROOT, "host", "firmware"))).toBe(false);
     expect(existsSync(join(ROOT, "host", "LICENSE"))).toBe(false);

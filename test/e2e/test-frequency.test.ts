@@ -82,6 +82,33 @@ describe("measurePart with test_frequency_hz", () => {
     expect(r.analysis.amplitude_v).toBeLessThanOrEqual(1);
   });
 
+  it("reaches the nearest tank once the first reading allows it, though the probe alone kept it out (4.7 mH, 0.7 V limit)", async () => {
+    // Until the first full reading, predictions keep 70 % of the limit: the 100 nF tank (7.3 kHz,
+    // nearest 10 kHz) is refused then, and allowed by the refined estimate after the 10 nF reading.
+    const r = await read("filter-coil-4m7", { test_frequency_hz: 10e3, max_peak_v: 0.7 });
+    expect(r.settings.tank).toBe(nearestTank(4.7e-3, 10e3));
+    expect(r.test_frequency).toMatchObject({ nearest: true, nearer_tanks: [] });
+  });
+
+  it("says a nearer tank was tried and why its reading was not kept (4.4 µH, 0.8 V limit)", async () => {
+    const r = await read("tank-coil-4u4", { test_frequency_hz: 10e3, max_peak_v: 0.8 });
+    const choice = r.test_frequency!;
+    expect(r.settings.tank).toBe(2);
+    expect(choice.nearer_tanks).toHaveLength(1);
+    expect(choice.nearer_tanks[0]).toMatchObject({ tank_index: 3 });
+    expect(choice.nearer_tanks[0].why).toMatch(/^gave only \d+ edges \(20 wanted\)$/);
+  });
+
+  it("moves to the next-nearest tank when the nearest one's ring changes with its amplitude (saturating 47 µH toroid)", async () => {
+    // 47 µH rings at about 23 kHz on 1 µF (nearest 10 kHz) and 73 kHz on 100 nF (LC resonance);
+    // on 1 µF every allowed drive saturates the core, so the nearest usable ring is on 100 nF.
+    const r = await read("powder-toroid-47u", { test_frequency_hz: 10e3 });
+    const choice = r.test_frequency!;
+    expect(r.settings.tank).toBe(2);
+    expect(choice.nearer_tanks).toEqual([expect.objectContaining({ tank_index: 3, why: "its ring changed with its amplitude" })]);
+    expect(choice.note).toMatch(/on the 100 nF tank: the 1\.00 µF tank would ring nearer \(about 2\d\.\d kHz\) but its ring changed with its amplitude$/);
+  });
+
   it("says the asked frequency is beyond what the part reaches on this tester", async () => {
     const r = await read("drawer-choke-330u", { test_frequency_hz: 1e6 });
     expect(r.settings.tank).toBe(0);

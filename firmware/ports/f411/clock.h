@@ -1,6 +1,7 @@
 /*
- * Clock tree of the STM32F411CE board port: TIM2 must count at exactly the profile's 64 MHz
- * (TICK_HZ in firmware/assembly/board.ts) from the board's 25 MHz crystal.
+ * Clock tree of the STM32F411CE board port: TIM2 must count at exactly the board's 64 MHz tick
+ * (tick_hz in its board file; HT_BOARD_TICK_HZ in the generated henrytick-board.h) from the
+ * board's 25 MHz crystal.
  *
  *   HSE 25 MHz / M 25 = 1 MHz VCO input        (RM0383 §6.3.2 RCC_PLLCFGR: 1..2 MHz)
  *   1 MHz x N 384     = 384 MHz VCO output     (100..432 MHz)
@@ -18,6 +19,8 @@
  */
 #ifndef HT_F411_CLOCK_H
 #define HT_F411_CLOCK_H
+
+#include "henrytick-board.h"
 
 #define F411_HSE_HZ 25000000u
 #define F411_PLL_M 25u
@@ -53,6 +56,6 @@ _Static_assert(F411_PLL_Q >= 2u && F411_PLL_Q <= 15u, "Q is 2..15");
 _Static_assert(F411_VCO_HZ % F411_PLL_P == 0 && F411_SYSCLK_HZ <= 100000000u, "SYSCLK whole, at most 100 MHz");
 _Static_assert(F411_PLL48_HZ == 48000000u, "48 MHz for USB");
 _Static_assert(F411_PCLK1_HZ <= 50000000u, "APB1 at most 50 MHz");
-_Static_assert(F411_TIM2_HZ == 64000000u, "TIM2 at the profile's 64 MHz tick");
+_Static_assert(F411_TIM2_HZ == HT_BOARD_TICK_HZ, "TIM2 at the board's tick rate (henrytick-board.h, from the board file)");
 
 #endif

@@ -40,6 +40,7 @@
 #include <stdint.h>
 #include <string.h>
 
+#include "henrytick-board.h" /* HT_BOARD_TICK_HZ: the board's tick rate (generated, native-build.ts) */
 #include "henrytick-rt.h"
 #include "henrytick.h"
 
@@ -52,9 +53,10 @@
 /* SysTick's longest period (24 bits, 0.1 s): it only extends the counter, and every wake-up it
    causes costs QEMU a pass of its main loop. TIM2 wakes the timed sleeps. */
 #define SYSTICK_PERIOD (1u << 24)
-/* 64 MHz / 168 MHz in 0.32 fixed point, until the edge server sends the board's own factor. */
-#define TICK_MUL_NOMINAL 1636178018u
-#define TICKS_PER_SECOND 64000000u
+/* The board's tick (64 MHz on the reference board) over 168 MHz in 0.32 fixed point, rounded,
+   until the edge server sends the board's own factor. */
+#define TICKS_PER_SECOND HT_BOARD_TICK_HZ
+#define TICK_MUL_NOMINAL ((uint32_t)((((uint64_t)TICKS_PER_SECOND << 32) + CPU_HZ / 2u) / CPU_HZ))
 /* Longest silence inside a front-end exchange before the link counts as stalled (see fe_getc):
    the server's first frame comes from its event loop at once (for a pulse, a WORKING frame
    before it computes the ring), and a frame's bytes follow one another. */
@@ -140,13 +142,14 @@ void TIM2_IRQHandler(void) {
 }
 
 /* Waits executed rather than slept: short enough that arming the timer would take longer. */
-#define SPIN_TICKS 1280u /* 20 us */
+#define SPIN_TICKS (20u * (TICKS_PER_SECOND / 1000000u)) /* 20 us */
 
 /*
  * Sleeps until `deadline` (firmware ticks) or a host byte. TIM2 (core clock, 21 cycles per 8
- * ticks) wakes the core a little early; the rest is run through by executing, so the deadline is
+ * ticks of a 64 MHz board) wakes the core a little early; the rest is run through by executing, so the deadline is
  * met to a few instructions. Under -icount sleep=off the slept part takes no real time.
  */
+_Static_assert((uint64_t)CPU_HZ * 8u == (uint64_t)TICKS_PER_SECOND * 21u, "sleep_until's 21/8 assumes a 64 MHz board tick");
 static uint32_t now_ticks(void);
 static void sleep_until(uint32_t deadline, volatile uint32_t* head, volatile uint32_t* tail) {
   for (;;) {

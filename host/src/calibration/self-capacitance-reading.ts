@@ -117,5 +117,27 @@ function solvePair(small: Reading, large: Reading, profile: CalibrationProfile |
     // The fixture's capacitance (open nulling), added to both tanks, is one offset common to both.
     shared_c_u_f: Math.hypot(shared.offset_f, Math.min(small.capture.calibration?.fixture_u_f ?? 0, large.capture.calibration?.fixture_u_f ?? 0)),
   });
-  return { first: small, second: large, result, budget: twoTankBudget(result) };
+  const nulled = withoutLeads(result, small.capture.calibration?.lead_inductance_h ?? 0, small.capture.calibration?.lead_u_h ?? 0);
+  return { first: small, second: large, result: nulled, budget: twoTankBudget(nulled) };
+}
+
+/**
+ * The leads' inductance (calibrate short) taken out of the two-tank L: both rings include the
+ * leads in series with the part, so the solved L is L_part + L_leads; L_part = L − L_leads with
+ * u(L_leads) added in quadrature (independent, JCGM 100:2008 §5.1.2), as for one tank
+ * (nulling-reading.ts). The part's self-resonance is that of L_part with Cs: f scales by
+ * √(L / L_part), its relative uncertainty kept. Cs is what the two tanks see across the part and
+ * stays as solved.
+ */
+export function withoutLeads(r: TwoCapacitanceResult, l_leads_h: number, u_leads_h: number): TwoCapacitanceResult {
+  if (!(l_leads_h > 0)) return r;
+  const l = r.inductance_h - l_leads_h;
+  const srfScale = l > 0 ? Math.sqrt(r.inductance_h / l) : 1;
+  return {
+    ...r,
+    inductance_h: l,
+    srf_hz: r.srf_hz === null ? null : r.srf_hz * srfScale,
+    u: { ...r.u, inductance_h: Math.hypot(r.u.inductance_h, u_leads_h), srf_hz: r.u.srf_hz === null ? null : r.u.srf_hz * srfScale },
+    inductance_groups: [...r.inductance_groups, { group: "leads", u_h: u_leads_h }],
+  };
 }

@@ -8,8 +8,8 @@ import type { RingAnalysis } from "../analysis/index.ts";
 import type { TwoCapacitanceResult } from "./two-capacitance.ts";
 
 export const BUDGET_GROUPS = ["fit", "capacitance", "timebase", "self-capacitance", "leads", "fixture"] as const;
-/** The groups of the two-tank model (its leads are not nulled: docs/calibration.md, Limits). */
-const TWO_TANK_GROUPS = ["fit", "capacitance", "timebase", "self-capacitance"] as const;
+/** The groups of the two-tank model; `leads` only once the leads are nulled (calibrate short). */
+const TWO_TANK_GROUPS = ["fit", "capacitance", "timebase", "self-capacitance", "leads"] as const;
 export type BudgetGroup = (typeof BUDGET_GROUPS)[number];
 
 export interface BudgetLine {
@@ -88,8 +88,10 @@ export function twoTankBudget(r: TwoCapacitanceResult): UncertaintyBudget {
     capacitance: "larger tank's capacitance and what both tanks share",
     timebase: "timebase, common to both rings",
     "self-capacitance": "ring on the smaller tank and its capacitance (they fix Cs)",
+    leads: "the test leads' inductance subtracted (calibrate short)",
   };
-  const lines = TWO_TANK_GROUPS.map((group) => ({
+  const groups = TWO_TANK_GROUPS.filter((g) => g !== "leads" || r.inductance_groups.some((x) => x.group === "leads"));
+  const lines = groups.map((group) => ({
     group,
     rel_u: (r.inductance_groups.find((g) => g.group === group)?.u_h ?? 0) / r.inductance_h,
     note: notes[group],

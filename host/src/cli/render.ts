@@ -13,7 +13,9 @@ export function renderReading(r: ResultJson, title: string): string {
     r.suspect ? `── ${title}   SUSPECT (kept on request: not a verified reading)` : `── ${title}`,
     `   inductance   ${L.value} ${L.unit}  ± ${L.u} ${L.unit}   (k = 2)`,
     `   Q            ${Q.value}  ± ${Q.u}`,
-    `   ESR          ${R.value} ${R.unit}  ± ${R.u} ${R.unit}   at ${f.value} ${f.unit}`,
+    `   ESR          ${R.value} ${R.unit}  ± ${R.u} ${R.unit}`,
+    // Printed with its U, so its digits are the ones the uncertainty supports (Q and ESR hold at this frequency).
+    `   frequency    ${f.value} ${f.unit}  ± ${f.u} ${f.unit}   (f0: Q and ESR are at this frequency)`,
     `   ring         ${formatSi(r.ring_amplitude_v, "V", 3)} initial, ${r.edges_used} edges used` +
       (r.edges_rejected > 0 ? `, ${r.edges_rejected} rejected` : ""),
   ];

@@ -5,8 +5,8 @@ import { mkdirSync } from "node:fs";
 import { dirname, resolve } from "node:path";
 import { deviceCalibration, storeFor } from "../calibration/index.ts";
 import { openTester } from "../open-tester.ts";
-import { formatSi } from "../format/si.ts";
-import { formatMeasured, formatValue } from "../values/format-value.ts";
+import { formatSi, formatWithUncertainty } from "../format/si.ts";
+import { formatMeasured, formatValue, formatValueOnly } from "../values/format-value.ts";
 import { parseSeriesName } from "../values/e-series.ts";
 import { toleranceLimits } from "../values/tolerance.ts";
 import { makeBins } from "../workflows/bins.ts";
@@ -183,7 +183,14 @@ export function summaryText(session: SortSession, style: Style): string {
     `── ${stats.n} part${stats.n === 1 ? "" : "s"}${lot}: ${style.good(`${tally.conforming} pass`)}, ${style.bad(`${tally.nonconforming} fail`)}, ${style.unsure(`${tally.inconclusive} unsure`)}`,
     `   limits       ${formatValue(limits.lower, "H", 4)} … ${formatValue(limits.upper, "H", 4)} (unsure: within U of a limit)`,
   ];
-  if (stats.n > 0) lines.push(`   mean         ${formatSi(stats.mean, "H", 4)}, range ${formatSi(stats.min, "H", 4)} … ${formatSi(stats.max, "H", 4)}`);
+  if (stats.n > 0) {
+    // Digits as the readings' uncertainty supports: the largest U of the parts (the mean is no
+    // better known than the tester's calibration, which every part shares).
+    const u = Math.max(...session.parts.map((p) => p.inductance_u_h));
+    const atU = (v: number) => formatValueOnly(v, u, "H");
+    const U = formatWithUncertainty(stats.mean, u, "H");
+    lines.push(`   mean         ${atU(stats.mean)}, range ${atU(stats.min)} … ${atU(stats.max)} (parts read with U up to ${U.u} ${U.unit})`);
+  }
   if (stats.n >= 2) lines.push(`   spread       s = ${formatSi(stats.sd, "H", 3)} (${((100 * stats.sd) / stats.mean).toFixed(2)} %)`);
   if (Number.isFinite(stats.cp)) {
     lines.push(`   capability   Cp ${stats.cp.toFixed(2)}, Cpk ${stats.cpk.toFixed(2)} from ${stats.n} parts (spread includes measurement noise${stats.n < 30 ? "; rough below 30 parts" : ""})`);

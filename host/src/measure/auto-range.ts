@@ -18,7 +18,7 @@ import { WarningCode } from "../codes.ts";
 import { ROUGH_PREDICTION_SHARE as ROUGH_MARGIN, volts } from "../ranging/safety.ts";
 import { ReadingProgress, settingInfo } from "./events.ts";
 import { MEASURABLE_L_H, MEASURABLE_TEXT } from "../values/range.ts";
-import { describeFrequencyChoice, orderForFrequency } from "../ranging/choose-setting.ts";
+import { describeFrequencyChoice, frequencyDistance, orderForFrequency } from "../ranging/choose-setting.ts";
 import { formatSi } from "../format/si.ts";
 
 const PROBE_CHARGE_US = 5000;
@@ -84,6 +84,8 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
   // With an asked test frequency: the nearest tank that rings usably, and the tanks that did not.
   const asked = opts.test_frequency_hz;
   const failedTanks = new Map<number, string>();
+  /** The last reading on each tank, to say why a nearer tank's reading was not the one kept. */
+  const tankReadings = new Map<number, Reading>();
   // Lowered when a reading shows the part (or tank) changing with amplitude: a saturating core
   // or a class II capacitor reads truest at a gentler ring.
   let gentleLimit_v = limits.max_peak_v;
@@ -92,12 +94,18 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
     const stepLimits = est.fitted ? base : { ...base, max_peak_v: base.max_peak_v * ROUGH_MARGIN, why: `${ROUGH_MARGIN * 100} % of the ${volts(base.max_peak_v)} limit${base.why ? ` (${base.why})` : ""} while the part is known only from the probe` };
     lastAdvice = adviseSettings(profile, est, stepLimits, tanks);
     if (asked !== undefined) lastAdvice = orderForFrequency(lastAdvice, asked);
-    // Once a tank near the asked frequency has given a reading, ranging stays on that tank.
-    const held = (a: Advice) => asked === undefined || !best || a.tank === best.settings.tank;
-    const next = lastAdvice.find((a) => a.refused === "" && !tried.has(key(a)) && held(a));
+    // Once a tank near the asked frequency has given a reading, ranging stays on that tank, or
+    // goes to a nearer one that the refined estimate now allows (the probe alone may have kept it out).
+    const bestTank: number | undefined = best?.settings.tank;
+    const bestDistance = asked === undefined || !best ? Infinity : frequencyDistance(lastAdvice.find((a) => a.tank === bestTank)?.f_hz ?? best.analysis.f0_hz, asked);
+    // A best reading whose ring changes with its amplitude is no usable ring: then farther tanks too, nearest first.
+    const held = (a: Advice): boolean => asked === undefined || !best || !clean(best) || a.tank === bestTank || frequencyDistance(a.f_hz, asked) < bestDistance - 1e-9;
+    const next: Advice | undefined = lastAdvice.find((a) => a.refused === "" && !tried.has(key(a)) && held(a));
     if (!next) break;
-    // Precision target: stop once a reading is as good as the best setting is expected to be.
-    if (best && clean(best) && best.analysis.edges_used >= MIN_EDGES_AUTO && relU(best) <= 1.1 * Math.min(...lastAdvice.filter((a) => a.refused === "" && held(a)).map((a) => a.l_rel_u))) break;
+    // Precision target: stop once a reading is as good as the best setting is expected to be
+    // (never before a nearer tank than the best's has been tried, for an asked frequency).
+    const nearerLeft = asked !== undefined && best !== null && next.tank !== bestTank;
+    if (!nearerLeft && best && clean(best) && best.analysis.edges_used >= MIN_EDGES_AUTO && relU(best) <= 1.1 * Math.min(...lastAdvice.filter((a) => a.refused === "" && held(a)).map((a) => a.l_rel_u))) break;
     tried.add(key(next));
     const nextSettings = settingsFor(client, next);
     const fraction = progress.stepFraction(step, MAX_STEPS);
@@ -121,8 +129,9 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
       progress.emit({ type: "caution", code: "RING_OVER_LIMIT", phase: "ranging", amplitude_v, fraction, message: `caution: the ring reached ${volts(amplitude_v)}, above the ${volts(limits.max_peak_v)} limit; stopping here` });
       return withChoice({ ...reading, prediction: next, advice: lastAdvice });
     }
+    tankReadings.set(next.tank, reading);
     est = refineEstimate(est, estimateFromReading(profile, next, reading.analysis));
-    if (!best || better(reading, best)) best = { ...reading, prediction: next, advice: lastAdvice };
+    if (!best || better(reading, best, asked)) best = { ...reading, prediction: next, advice: lastAdvice };
     if (!clean(reading)) {
       gentleLimit_v = Math.min(gentleLimit_v, 0.5 * reading.analysis.amplitude_v);
       const amplitude_v = reading.analysis.amplitude_v;
@@ -151,7 +160,13 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
 
   function withChoice(r: Reading): Reading {
     if (asked === undefined) return r;
-    return { ...r, test_frequency: describeFrequencyChoice(profile, lastAdvice, asked, r.settings.tank, r.analysis.f0_hz, { failed: failedTanks }) };
+    const failed = new Map(failedTanks);
+    for (const [t, other] of tankReadings) {
+      if (t === r.settings.tank) continue;
+      const edges = other.analysis.edges_used;
+      failed.set(t, edges < MIN_EDGES_AUTO ? `gave only ${edges} edges (${MIN_EDGES_AUTO} wanted)` : !clean(other) ? "its ring changed with its amplitude" : "read less well");
+    }
+    return { ...r, test_frequency: describeFrequencyChoice(profile, lastAdvice, asked, r.settings.tank, r.analysis.f0_hz, { failed }) };
   }
 }
 
@@ -164,13 +179,18 @@ function clean(r: Reading): boolean {
 
 /**
  * A reading with enough edges beats one without; then one whose ring does not change with its
- * amplitude; then the smaller uncertainty of L wins.
+ * amplitude; then, for an asked frequency, the one on the nearer tank; then the smaller
+ * uncertainty of L wins.
  */
-function better(a: Reading, b: Reading): boolean {
+function better(a: Reading, b: Reading, asked_hz?: number): boolean {
   const ea = a.analysis.edges_used >= MIN_EDGES_AUTO;
   const eb = b.analysis.edges_used >= MIN_EDGES_AUTO;
   if (ea !== eb) return ea;
   if (clean(a) !== clean(b)) return clean(a);
+  // For an asked frequency, the reading on the nearer tank.
+  if (asked_hz !== undefined && a.settings.tank !== b.settings.tank) {
+    return frequencyDistance(a.analysis.f0_hz, asked_hz) < frequencyDistance(b.analysis.f0_hz, asked_hz);
+  }
   return relU(a) < relU(b);
 }
 

@@ -1,10 +1,12 @@
-// Physical values of the simulated reference front end (docs/hardware.md). These are the
-// "actual" component values of one particular simulated board; the firmware's profile carries
-// the nominal ones, and the difference is what calibration measures. Actual values sit inside the
-// parts' tolerances (resistors ±1 %, tank capacitors ±1 % C0G / film).
+// The simulated tester's board: the physical values its front end is simulated with. A board
+// file (board-profile.ts, shared-protocol/boards/NAME.json) gives the nominal values its firmware
+// reports and one simulated unit of it: the "actual" values of that unit's parts, inside their
+// tolerances (resistors ±1 %, tank capacitors ±1 % C0G / film). The difference is what
+// calibration measures.
 
 import type { ComparatorModel, TimerModel } from "./comparator-edges.ts";
 import type { ContactChatter } from "./fixture-chatter.ts";
+import { BoardProfileError, boardProfile, REFERENCE_BOARD, type BoardProfile } from "./board-profile.ts";
 
 export interface BoardModel {
   supply_v: number;
@@ -40,56 +42,58 @@ export interface BoardModel {
   device_id: number;
 }
 
-/** The nominal board: every part exactly at its nominal value, ideal comparator timing. */
-export function nominalBoard(): BoardModel {
+/**
+ * A board with every part exactly at its nominal value (the reference board's by default): no
+ * fixture, switch node or divider loading, an ideal diode, and fixed comparator and timer timing.
+ */
+export function nominalBoard(profile: BoardProfile = boardProfile(REFERENCE_BOARD)): BoardModel {
   return {
-    supply_v: 5.0,
-    drive_ohm: [10, 100, 1000, 10000],
-    tank_f: [1e-9, 10e-9, 100e-9, 1e-6],
+    supply_v: profile.supply_v,
+    drive_ohm: profile.drives.map((d) => d.ohm),
+    tank_f: profile.tanks.map((t) => t.nominal_f),
     fixture_f: 0,
     switch_node_f: 0,
     sense_ohm: Infinity,
     switch_on_ohm: 0.05,
     diode_v: 0,
-    clamp_v: 36,
+    clamp_v: profile.clamp_v,
     clamp_ohm: 1,
     tank_k_per_v2: 0,
-    comparator: { rising_v: 0.035, falling_v: -0.005, jitter_s: 4e-9, noise_v: 0.5e-3, delay_rise_s: 60e-9, delay_fall_s: 60e-9 },
-    timer: { tick_hz: 64e6, ppm: 0, dead_time_s: 40e-9 },
+    comparator: { rising_v: profile.thresholds_v[0], falling_v: profile.thresholds_v[1], jitter_s: 4e-9, noise_v: 0.5e-3, delay_rise_s: 60e-9, delay_fall_s: 60e-9 },
+    timer: { tick_hz: profile.tick_hz, ppm: 0, dead_time_s: 40e-9 },
     device_id: 0x5eed0001,
   };
 }
 
-/** The simulated tester's default board: one plausible unit off the line. */
-export function referenceBoard(): BoardModel {
+/**
+ * The simulated unit a board file describes: its parts' actual values, the nominal supply,
+ * clamp, thresholds (moved by the comparator's offset) and tick rate. Throws BoardProfileError
+ * (NO_SIMULATED_UNIT) for a board file without one.
+ */
+export function simulatedBoard(profile: BoardProfile): BoardModel {
+  const u = profile.simulated_unit;
+  if (!u) throw new BoardProfileError("NO_SIMULATED_UNIT", `board "${profile.name}" describes no simulated unit; add "simulated_unit" to its board file (shared-protocol/boards/board.schema.json)`);
   return {
-    supply_v: 5.0,
-    drive_ohm: [10.09, 100.4, 998.2, 10012],
-    tank_f: [1.0031e-9, 9.978e-9, 100.44e-9, 0.99620e-6],
-    fixture_f: 2.5e-12,
-    switch_node_f: 18e-12,
-    sense_ohm: 400e3,
-    switch_on_ohm: 0.05,
-    diode_v: 0.35,
-    clamp_v: 36,
-    clamp_ohm: 1,
-    tank_k_per_v2: 0,
-    comparator: {
-      rising_v: 0.035,
-      falling_v: -0.005,
-      offset_v: 0.4e-3,
-      jitter_s: 2e-9,
-      noise_v: 0.6e-3,
-      noise_bw_hz: 2e6,
-      delay_rise_s: 45e-9,
-      delay_fall_s: 45e-9,
-      overdrive_v_s: 2e-12,
-      // Edges by first passage of ring + continuous noise (docs/hardware.md, "Comparator model
-      // and its validation"); the tester's profile (PD) tells the analysis these values.
-    },
-    timer: { tick_hz: 64e6, ppm: 11.5, dead_time_s: 30e-9 },
-    device_id: 0x5eed0001,
+    supply_v: profile.supply_v,
+    drive_ohm: [...u.drive_ohm],
+    tank_f: [...u.tank_f],
+    fixture_f: u.fixture_f,
+    switch_node_f: u.switch_node_f,
+    sense_ohm: u.sense_ohm,
+    switch_on_ohm: u.switch_on_ohm,
+    diode_v: u.diode_v,
+    clamp_v: profile.clamp_v,
+    clamp_ohm: u.clamp_ohm,
+    tank_k_per_v2: u.tank_k_per_v2,
+    comparator: { rising_v: profile.thresholds_v[0], falling_v: profile.thresholds_v[1], ...u.comparator },
+    timer: { tick_hz: profile.tick_hz, ...u.timer },
+    device_id: u.device_id,
   };
+}
+
+/** The simulated tester's default board: the reference board's simulated unit, one plausible unit off the line. */
+export function referenceBoard(): BoardModel {
+  return simulatedBoard(boardProfile(REFERENCE_BOARD));
 }
 
 /** The board with a scenario's bench conditions applied. */

@@ -4,8 +4,10 @@
 // winding. A subpath of its own, so the main entry stays the bench application's API.
 
 export { SimTester } from "./sim-tester.ts";
-export { referenceBoard, nominalBoard, boardWithFixture } from "./board-model.ts";
+export { referenceBoard, nominalBoard, simulatedBoard, boardWithFixture } from "./board-model.ts";
 export type { BoardModel } from "./board-model.ts";
+export { boardProfile, boardProfileNames, BoardProfileError, REFERENCE_BOARD } from "./board-profile.ts";
+export type { BoardProfile, SimulatedUnit } from "./board-profile.ts";
 export { expectedReading } from "./front-end.ts";
 export { loadScenario, listScenarios, validateScenario, ScenarioError, DEFAULT_SCENARIO } from "./scenario.ts";
 export type { Scenario, PartModel, FixtureModel } from "./scenario.ts";
