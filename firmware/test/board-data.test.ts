@@ -10,7 +10,7 @@ import { fileURLToPath } from "node:url";
 import { beforeAll, describe, expect, it } from "vitest";
 import { parseProfile } from "../../host/src/device/profile.ts";
 import { BOARD_TS, DEFAULT_BOARD, type BoardData, boardNames, boardProblems, boardSource, loadBoard } from "../tools/board-source.ts";
-import { compileBoardFirmware } from "../tools/build-board.ts";
+import { compileBoardFirmware, keptImagePath } from "../tools/build-board.ts";
 import { hasHostGcc } from "../ports/native-build.ts";
 import { SimLink, show } from "./sim-link.ts";
 
@@ -99,5 +99,29 @@ describe("the C ports and the board's tick rate", () => {
     const other = clockTree(loadBoard("e6-compact").tick_hz);
     expect(other.status).not.toBe(0);
     expect(other.stderr).toMatch(/TIM2 at the board's tick rate/);
+  });
+});
+
+describe("kept board images", () => {
+  it("are reused only while every file the compiler read is unchanged", async () => {
+    const name = "e6-compact";
+    const real = await compileBoardFirmware(name); // compiled, or the kept image
+    const kept = JSON.parse(readFileSync(keptImagePath(name), "utf8"));
+    const dir = mkdtempSync(join(tmpdir(), "ht-kept-"));
+    // A kept record whose digests all match is reused as it is (here: a marker, not a real image).
+    const marker = join(dir, "marker.json");
+    writeFileSync(marker, JSON.stringify({ ...kept, wasm: Buffer.from("marker").toString("base64") }));
+    expect(Buffer.from(await compileBoardFirmware(name, marker)).toString()).toBe("marker");
+    // One digest off (as after an edit to that source): compiled again, the real image.
+    const stale = join(dir, "stale.json");
+    const files = { ...kept.files };
+    const someSource = Object.keys(files).find((f) => f.endsWith("interlocks.ts"))!;
+    files[someSource] = "0".repeat(64);
+    writeFileSync(stale, JSON.stringify({ ...kept, files, wasm: Buffer.from("marker").toString("base64") }));
+    expect(Buffer.from(await compileBoardFirmware(name, stale)).equals(Buffer.from(real))).toBe(true);
+    // Another compiler version: compiled again too.
+    const otherAsc = join(dir, "asc.json");
+    writeFileSync(otherAsc, JSON.stringify({ ...kept, asc: "0.0.0", wasm: Buffer.from("marker").toString("base64") }));
+    expect(Buffer.from(await compileBoardFirmware(name, otherAsc)).equals(Buffer.from(real))).toBe(true);
   });
 });

@@ -109,6 +109,14 @@ describe("measurePart with test_frequency_hz", () => {
     expect(choice.note).toMatch(/on the 100 nF tank: the 1\.00 µF tank would ring nearer \(about 2\d\.\d kHz\) but its ring changed with its amplitude$/);
   });
 
+  it("says why when no tank rings usably near the asked frequency, or at all (150 mH under a 0.8 V limit)", async () => {
+    const e = await read("bobbin-coil-150m", { test_frequency_hz: 10e3, max_peak_v: 0.8 }).catch((x) => x);
+    expect(e.code).toBe("NO_SETTING");
+    expect(e.message).toMatch(/^no setting gives a usable ring near the asked 10\.0 kHz or at any other frequency within the limits\./);
+    // Each setting's reason follows: a limit or too few edges.
+    expect(e.message).toMatch(/refused, (too few edges would clear the comparator thresholds|its ring could reach)/);
+  });
+
   it("says the asked frequency is beyond what the part reaches on this tester", async () => {
     const r = await read("drawer-choke-330u", { test_frequency_hz: 1e6 });
     expect(r.settings.tank).toBe(0);

@@ -828,10 +828,11 @@ function weighAndCount(f: Rounds, cov: Float64Array): { assigned: number; clean:
  * of f.zUsed are the used edges') on a MAD scale and (when `reject`) sets aside those beyond
  * REJECT_Z, with a little hysteresis. Edges rejected before are re-tested, so an edge set aside
  * under a poor early model comes back. The same pass sets the next fit's weights (weigh).
- * Returns how many edges changed side; the scale goes into f.zScale.
+ * Returns how many edges changed side; the scale goes into f.zScale (the outliers' reasons are
+ * written once, from the last reweight, by finishRounds).
  */
 function reweight(f: Rounds, usedCount: number, reject: boolean): number {
-  const { e, z, assigned, robust, outlier, reasons, used, w, variance, n } = f;
+  const { e, z, assigned, robust, outlier, used, w, variance, n } = f;
   const zScale = Math.max(0.5, madSigma(f.zUsed, usedCount, f.zWork));
   f.zScale = zScale;
   let flipped = 0;
@@ -843,7 +844,6 @@ function reweight(f: Rounds, usedCount: number, reject: boolean): number {
         const isOut = Math.abs(zk) > (outlier[k] ? REJECT_Z - 0.5 : REJECT_Z) ? 1 : 0;
         if (isOut !== outlier[k]) flipped++;
         outlier[k] = isOut;
-        if (isOut) reasons[k] = `residual ${Math.abs(zk).toFixed(1)} robust sd from the ring model (outlier)`;
       }
     }
     used[k] = e.m[k] === e.m[k] && !outlier[k] ? 1 : 0;
@@ -877,11 +877,14 @@ function finishRounds(f: Rounds, fit: EdgeFitResult): FitState {
   const typical = Math.sqrt(median(zWork, nt, f.zUsed));
   if (nUsed < 0.5 * n || !(typical < 0.1 * period)) throw noRing("the edges do not follow one damped sine");
   // An edge without an index has no residual (NaN) and no Jacobian row (zero), whatever the
-  // workspace holds there.
+  // workspace holds there; an outlier's reason gives its residual at the last reweight.
   const r = ws.r.slice();
   const jac = ws.jac.slice();
   for (let k = 0; k < n; k++) {
-    if (e.m[k] === e.m[k]) continue;
+    if (e.m[k] === e.m[k]) {
+      if (f.outlier[k]) f.reasons[k] = `residual ${Math.abs(f.z[k] / f.zScale).toFixed(1)} robust sd from the ring model (outlier)`;
+      continue;
+    }
     r[k] = NaN;
     jac.fill(0, 4 * k, 4 * k + 4);
   }

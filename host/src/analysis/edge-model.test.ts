@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { crossingTimes } from "../sim/comparator-edges.ts";
-import { chooseResidualForms, evaluateEdges, makeEdgeSet, modelEdgeTime } from "./edge-model.ts";
+import { chooseResidualForms, evaluateEdges, evaluateUnindexed, makeEdgeSet, modelEdgeTime, modelEvaluations } from "./edge-model.ts";
 
 // docs/method.md §2 reference ring: f0 = 100 kHz, Q = 50, A0 = 1 V, VH = -VL = 20 mV.
 const w0 = 2 * Math.PI * 100e3;
@@ -66,5 +66,32 @@ describe("edge model (docs/method.md §2)", () => {
     const a = (t: number) => Math.exp(-alpha * t);
     const mLast = 80;
     expect(late[4]).toBeCloseTo(Math.asin(0.02 / a(modelEdgeTime(p, mLast, 0.02, -0.02))) / wd, 12);
+  });
+
+  it("counts one evaluation per edge evaluated (the benchmark's work count) and none for skipped edges", () => {
+    const cr = crossingTimes({ a0_v: 1, alpha_per_s: alpha, wd_rad_s: wd }, 0.035, -0.005, 40, 1);
+    const n = cr.times.length;
+    const m = Float64Array.from(cr.times, (_, k) => (k % 5 === 4 ? NaN : k)); // every fifth edge without an index
+    const e = makeEdgeSet(Float64Array.from(cr.times), Uint8Array.from(cr.levels), m);
+    chooseResidualForms(p, e, 0.035, -0.005);
+    const indexed = m.filter((x) => x === x).length;
+    const mask = new Float64Array(n).fill(1);
+    mask[0] = 0;
+    const slope = new Float64Array(n);
+    const before = modelEvaluations();
+    evaluateEdges(p, e, 0.035, -0.005, null, null, { r: new Float64Array(n), slope });
+    expect(modelEvaluations() - before).toBe(indexed);
+    evaluateEdges(p, e, 0.035, -0.005, mask, null, { slope });
+    expect(modelEvaluations() - before).toBe(2 * indexed - 1);
+    // The unindexed edges' slopes, as evaluateEdges gives an indexed edge's.
+    const loose = new Float64Array(n).fill(NaN);
+    expect(evaluateUnindexed(p, e, 0.035, -0.005, new Float64Array(n), { slope: loose, curvature: new Float64Array(n) })).toBe(n - indexed);
+    expect(modelEvaluations() - before).toBe(2 * indexed - 1 + (n - indexed));
+    const all = makeEdgeSet(e.t_s, e.rising, Float64Array.from(cr.times, (_, k) => k));
+    all.form.set(e.form);
+    all.scale_v.set(e.scale_v);
+    const ref = new Float64Array(n);
+    evaluateEdges(p, all, 0.035, -0.005, null, null, { slope: ref });
+    for (let k = 4; k < n; k += 5) expect(loose[k]).toBe(ref[k]);
   });
 });

@@ -145,7 +145,7 @@ export async function autoRange(client: DeviceClient, limits: PlanLimits, opts: 
     if (chatter) throw chatter;
     if (est.l_h < SHORT_MAX_L_H && failures.length === 0) throw shortedPart(est.l_h, `no setting rings slowly enough to capture (${lastAdvice[0]?.reason.replace(/\.$/, "") ?? "every setting refused"})`);
     const at = asked === undefined ? "" : ` near the asked ${formatSi(asked, "Hz", 3)} or at any other frequency`;
-    throw new MeasureError("NO_SETTING", `no setting gives a usable ring${at} within the limits. ${failures.join(" ")} ${why}`.trim());
+    throw new MeasureError("NO_SETTING", [`no setting gives a usable ring${at} within the limits.`, ...failures, why].filter((t) => t !== "").join(" "));
   }
   if (best.analysis.edges_used < MIN_EDGES_AUTO) {
     const w = {
