@@ -19,7 +19,8 @@ import { correlationInflation, residualCorrelation } from "./residual-correlatio
 import { huberWeight, madSigma, median } from "./robust-stats.ts";
 import { invertSymmetric } from "./small-linear-algebra.ts";
 import { checkInput, MIN_EDGES, type CheckedInput } from "./validate-input.ts";
-import { ringExtent, tailEnd } from "./ring-end.ts";
+import { ringExtent, tailEnd, tailSelects } from "./ring-end.ts";
+import { decayProfile, type ProfilePoint } from "./decay-profile.ts";
 import { correctionCovariance, delayEffectSd, edgeDelays, jointTimingStep, rampReach, ringSlopeAt, skewStep, type ComparatorTiming, type LinearFit, type TimingDelays } from "./comparator-timing.ts";
 import { AnalysisError, type RingAnalysis, type RingInput, type Warning } from "./types.ts";
 
@@ -74,6 +75,11 @@ export interface FitState {
   /** Edges from this index on came after the ring's envelope had decayed into the noise at the
    *  farther threshold (fitRing, ring-end.ts tailEnd) and were left out too. */
   tailEnd?: number;
+  /** The fits across the skew's prior and their weights (marginalizeSkew), when the capture hardly
+   *  determines the skew. */
+  skewMixture?: { wd: number; alpha: number; w: number }[];
+  /** The likelihood profiled along the decay (decay-profile.ts), when no skew mixture is. */
+  decayProfile?: ProfilePoint[];
   /** Edges in the capture (fitRing): `edges` holds the first tailEnd or ringEnd.end of them. */
   captured?: number;
 }
@@ -174,10 +180,41 @@ export function analyzeFit(s: FitState): RingAnalysis {
   };
 }
 
-/** f0, L, Q, ESR and their uncertainties from a fit's (wd, alpha) and their covariance. */
+/**
+ * f0, L, Q, ESR and their uncertainties from a fit's (wd, alpha) and their covariance; with a
+ * skew mixture (marginalizeSkew), each quantity's variance gains the weighted spread of its values
+ * over the mixture's fits about the reported one, computed through the exact relations (L goes
+ * with wd^2 + alpha^2, Q with 1/alpha: linearised at one alpha they miss what a poorly known decay
+ * does to L).
+ */
 function quantitiesOf(s: FitState): RingQuantities {
   const c = s.checked;
-  return ringQuantities(s.p[P_WD], s.p[P_ALPHA], [s.cov[0], s.cov[3], s.cov[15]], c.c_f, c.c_u_f, c.timebase_u_rel);
+  const rq = ringQuantities(s.p[P_WD], s.p[P_ALPHA], [s.cov[0], s.cov[3], s.cov[15]], c.c_f, c.c_u_f, c.timebase_u_rel);
+  const mix = s.skewMixture ?? s.decayProfile;
+  if (!mix) return rq;
+  let vl = 0, vq = 0, ve = 0, vf = 0;
+  for (const m of mix) {
+    const w02 = m.wd * m.wd + m.alpha * m.alpha;
+    const l = 1 / (w02 * c.c_f);
+    const q = Math.sqrt(w02) / (2 * m.alpha);
+    vl += m.w * (l - rq.inductance_h) ** 2;
+    vq += m.w * (q - rq.q) ** 2;
+    ve += m.w * (2 * m.alpha * l - rq.esr_ohm) ** 2;
+    vf += m.w * (Math.sqrt(w02) / (2 * Math.PI) - rq.f0_hz) ** 2;
+  }
+  // A skew mixture's fits each had the skew fixed: their spread adds to the linearised variance.
+  // The decay profile spans alpha itself: its spread adds to the variance at fixed alpha, and the
+  // linearised variance stays where it is the larger.
+  const base = s.skewMixture
+    ? rq
+    : ringQuantities(s.p[P_WD], s.p[P_ALPHA], [Math.max(0, s.cov[0] - (s.cov[3] * s.cov[3]) / s.cov[15]), 0, 0], c.c_f, c.c_u_f, c.timebase_u_rel);
+  const total = (lin: number, at: number, v: number) => Math.max(s.skewMixture ? 0 : lin, Math.sqrt(at * at + v));
+  const uL = total(rq.u.inductance_h, base.u.inductance_h, vl);
+  return {
+    ...rq,
+    u: { inductance_h: uL, q: total(rq.u.q, base.u.q, vq), esr_ohm: total(rq.u.esr_ohm, base.u.esr_ohm, ve), f0_hz: total(rq.u.f0_hz, base.u.f0_hz, vf) },
+    budget: rq.budget.map((b, i) => (i === 0 ? { ...b, rel_u: Math.sqrt(Math.max(0, b.rel_u ** 2 + (uL ** 2 - rq.u.inductance_h ** 2) / rq.inductance_h ** 2)) } : b)),
+  };
 }
 
 /**
@@ -245,6 +282,11 @@ export function fitRing(input: RingInput): FitState {
   if (part.end) s.ringEnd = part.end;
   if (tail < part.c.t_s.length) s.tailEnd = tail;
   s.captured = part.end ? part.end.edges : part.c.t_s.length;
+  for (const f of s.alternative ? [s, s.alternative] : [s]) {
+    if (f.skewMixture) continue;
+    const prof = decayProfile({ ...f, vh_v: c.vh_v, vl_v: c.vl_v });
+    if (prof) f.decayProfile = prof;
+  }
   return s;
 }
 
@@ -266,7 +308,9 @@ function noiseTail(c: CheckedInput, timing: ComparatorTiming | undefined): { c: 
     return none;
   }
   const sigma = Math.max(timing.noise_v ?? 0, Math.sqrt(first.noise.sigma_v2));
-  const tail = tailEnd(c.t_s, first.p[P_LNA], first.p[P_ALPHA], Math.max(c.vh_v, -c.vl_v), sigma);
+  const vmax = Math.max(c.vh_v, -c.vl_v);
+  if (!tailSelects(first.p[P_WD], vmax, sigma, timing.noise_bw_hz!)) return none;
+  const tail = tailEnd(c.t_s, first.p[P_LNA], first.p[P_ALPHA], vmax, sigma);
   if (tail >= n || tail < MIN_EDGES) return none;
   return { c: { ...c, t_s: c.t_s.slice(0, tail), rising: c.rising.slice(0, tail), ring_ended: false }, tail };
 }
@@ -353,6 +397,7 @@ function fitTimed(c: CheckedInput, timing: ComparatorTiming | undefined): FitSta
   const assumed = skew;
   skew = finishTiming(s, c, timing, assumed, prior, priorU, delays, unapplied, reach);
   if (s.alternative) finishTiming(s.alternative, c, timing, assumed, prior, priorU, delays, unapplied, reach);
+  if (Number.isFinite(priorU) && priorU > 0 && (s.timingSkewSd ?? 0) > SKEW_PRIOR_BOUND * priorU) marginalizeSkew(s, c, prior, priorU, delays);
   let fpMax = 0, odMax = 0;
   for (let k = 0; k < n; k++) {
     if (!(s.used[k] > 0)) continue;
@@ -365,6 +410,58 @@ function fitTimed(c: CheckedInput, timing: ComparatorTiming | undefined): FitSta
     delays,
   };
   return s;
+}
+
+/**
+ * A skew the capture hardly determines (its sd after capture and prior above this fraction of the
+ * prior's) is integrated over its prior (marginalizeSkew) instead of linearised about one value.
+ */
+const SKEW_PRIOR_BOUND = 0.5;
+/** The prior's span and grid for that: +-2.5 u in steps of 0.5 u. */
+const MARGIN_SPAN_U = 2.5;
+const MARGIN_STEP_U = 0.5;
+
+/**
+ * Where the capture says little about the skew, the fit at one skew value and its linearised
+ * covariance understate what the skew does: on a short offset-threshold ring the skew trades
+ * against the amplitude law the decay is read from, and a fit pulled towards the prior's value
+ * settles at a decay several of its own sd off (L read 1 U high, covered in 18 % of the seeds, at
+ * 33 ns of skew against a 0 +- 20 ns prior on a 40-edge 59 kHz ring). The ring is fitted at skews
+ * across the prior and the fits are weighted by likelihood times prior, exp(-(nll + z^2)/2): the
+ * reported ring parameters become the weighted mean, and their covariance gains the weighted
+ * spread of the fits about it (the law of total variance: a numerical marginalisation of the skew
+ * as a nuisance parameter, as in JCGM 101:2008 §5.1 for an input known only through its
+ * distribution). Never narrows.
+ */
+function marginalizeSkew(s: FitState, c: CheckedInput, prior: number, priorU: number, delays: TimingDelays): void {
+  const n = c.t_s.length;
+  const fits: { p: Float64Array; cost: number }[] = [];
+  for (let z = -MARGIN_SPAN_U; z <= MARGIN_SPAN_U + 1e-9; z += MARGIN_STEP_U) {
+    const skew = prior + z * priorU;
+    const t = new Float64Array(n);
+    for (let k = 0; k < n; k++) {
+      t[k] = c.t_s[k] - (c.rising[k] === 1 ? skew : 0) - delays.fp_s[k] - delays.od_s[k];
+      if (k > 0 && t[k] < t[k - 1]) t[k] = t[k - 1];
+    }
+    try {
+      const f = fitCapture({ ...c, t_s: t });
+      fits.push({ p: f.p, cost: f.nll + z * z });
+    } catch {
+      // No ring at this skew: it carries no weight.
+    }
+  }
+  if (fits.length < 3) return;
+  const best = Math.min(...fits.map((f) => f.cost));
+  const w = fits.map((f) => Math.exp(-0.5 * (f.cost - best)));
+  const sw = w.reduce((x, y) => x + y, 0);
+  let wd = 0, alpha = 0;
+  for (let j = 0; j < fits.length; j++) {
+    wd += (w[j] / sw) * fits[j].p[P_WD];
+    alpha += (w[j] / sw) * fits[j].p[P_ALPHA];
+  }
+  s.p[P_WD] = wd;
+  s.p[P_ALPHA] = alpha;
+  s.skewMixture = fits.map((f, j) => ({ wd: f.p[P_WD], alpha: f.p[P_ALPHA], w: w[j] / sw }));
 }
 
 /**

@@ -2,7 +2,7 @@
 
 import { describe, expect, it } from "vitest";
 import { Random } from "../sim/random.ts";
-import { ringExtent, tailEnd } from "./ring-end.ts";
+import { ringExtent, tailEnd, tailSelects } from "./ring-end.ts";
 
 /** Alternating edges of a 10 µs ring, with `extra(k, rng)` extra close pairs after edge k. */
 function edges(n: number, extra: (k: number, rng: Random) => boolean, seed = 1): { t: number[]; rising: number[] } {
@@ -54,5 +54,16 @@ describe("tailEnd", () => {
     expect(t[k - 1]).toBeLessThan(Math.log(1 / 0.041) / 100);
     expect(t[k]).toBeGreaterThanOrEqual(Math.log(1 / 0.041) / 100);
     expect(tailEnd(t, 0, 100, 0.035, 0)).toBe(100);
+  });
+});
+
+describe("tailSelects", () => {
+  it("holds where the ring dwells near its threshold for many noise correlation times", () => {
+    // 2 MHz noise bandwidth: tau = 80 ns. A 16 kHz ring at 35 mV with 1.8 mV of noise dwells within
+    // 3 sd of its peak for about 11 us (140 tau); a 500 kHz ring at 20 mV with 0.6 mV for 0.27 us
+    // (3.4 tau), where an edge sees about one noise value.
+    expect(tailSelects(2 * Math.PI * 16e3, 0.035, 1.8e-3, 2e6)).toBe(true);
+    expect(tailSelects(2 * Math.PI * 503e3, 0.02, 0.6e-3, 2e6)).toBe(false);
+    expect(tailSelects(2 * Math.PI * 16e3, 0.035, 0, 2e6)).toBe(false);
   });
 });

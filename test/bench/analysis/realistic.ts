@@ -192,6 +192,10 @@ export function realFigures(res: RealResult[]) {
     q_bias_max_rel_u: maxOf(many, (r) => Math.abs(r.q_bias_rel) / r.q_u_rel),
     efficiency_l_min: minOf(many, (r) => r.l_eff.eff),
     efficiency_q_min: minOf(many, (r) => r.q_eff.eff),
+    // Refused captures count as not covered in the coverage figures (covered / seeds), so a
+    // refusal never raises coverage; the refusal rate is reported beside it.
+    refused_max: maxOf(many, (r) => (r.seeds - r.ok) / r.seeds),
+    refused_max_all: maxOf(res, (r) => (r.seeds - r.ok) / r.seeds),
     unwarned_gross: res.reduce((s, r) => s + r.unwarned_gross, 0),
     failed: res.reduce((s, r) => s + Object.values(r.failures).reduce((a, b) => a + b, 0), 0),
     points: many.length,
