@@ -155,3 +155,15 @@ describe("digits follow the uncertainty in text output", () => {
     for (const v of m!.slice(1, 4)) expect(decimals(v)).toBe(decimals(u));
   });
 });
+
+describe("nothing rings under a very low ring-peak limit", () => {
+  it("says the limit cut the probes, not that the clips may be open, and how the limit acts", () => {
+    const r = runCli(["measure", "--sim", "--max-peak-v", "0.3"]);
+    expect(r.status).toBe(1);
+    expect(r.stderr).toMatch(/\[NO_RING\] nothing rang within the 0\.3 V ring-peak limit: .*probe settings were cut to at most \d+ µs of charge, shorter than at the tester.s default limit \(the longest safe charge grows with the square of the limit\)/);
+    expect(r.stderr).toMatch(/Raise the ring-peak limit \(--max-peak-v\)/);
+    expect(r.stderr).not.toMatch(/clips may be open/);
+    // The same part at the default limit rings: the limit was the cause.
+    expect(runCli(["measure", "--sim"]).status).toBe(0);
+  });
+});

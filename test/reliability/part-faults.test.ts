@@ -79,7 +79,7 @@ describe("part faults get a diagnosis, not a bare number", () => {
     const rig = await openRig({ part, seed: 5 });
     const estimate = { l_h: 20, q_points: [{ q: 500, tank_f: 1e-7 }], fitted: false };
     const f = partFault(await caught(() => measurePart(rig.client, { drive: 3, tank: 3, estimate })),
-      "RING_OUTLASTS_WINDOW", /outlasts the capture.*1000 ms window/, /automatic ranging.*--charge-us/);
+      "RING_OUTLASTS_WINDOW", /outlasts the capture.*1000 ms window/, /automatic ranging.*charge_us/);
     expect(f.suspect!.capture.meta?.end_reason).toBe("timeout");
     expect(codes(f.suspect!)).toContain("RING_TRUNCATED");
     const r = await measurePart(rig.client, { drive: 3, tank: 3, estimate, keep_suspect: true });

@@ -8,7 +8,7 @@ import { resolvePeakLimit, volts } from "../ranging/safety.ts";
 import { PulseCaution, windingRatioOption } from "./caution.ts";
 import { formatSi } from "../format/si.ts";
 import { numberOption, parse, testerTarget } from "./args.ts";
-import { CliUsageError } from "./errors.ts";
+import { CliUsageError, cliWording } from "./errors.ts";
 import { FREQ_OPTIONS, testFrequencyOption } from "./test-frequency.ts";
 import { describeFrequencyChoice, orderForFrequency } from "../ranging/choose-setting.ts";
 
@@ -43,7 +43,7 @@ export async function runAdvise(args: string[]): Promise<number> {
       return 0;
     }
     const lines = [`── advice for a part of about ${formatSi(est.l_h, "H", 3)} (from a probe; ${limit.message})`];
-    lines.push(...limit.basis.map((b) => `   limit  ${b}`));
+    lines.push(...limit.basis.map((b) => `   limit  ${cliWording(b)}`));
     if (choice) lines.push(`   freq   ${choice.note}; the settings in the order ranging would try them`);
     const at = (a: { f_hz: number }) => (asked === undefined ? "" : ` Rings at about ${formatSi(a.f_hz, "Hz", 3)}.`);
     advice.forEach((a, i) => lines.push(`   ${a.refused ? " -" : String(i + 1).padStart(2)}  ${a.reason}${at(a)}`));

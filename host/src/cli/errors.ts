@@ -25,7 +25,7 @@ export class CliUsageError extends Error {
   }
 }
 
-const say = (line: string) => process.stderr.write(`henrytick: ${sanitizeForTerminal(line)}\n`);
+const say = (line: string) => process.stderr.write(`henrytick: ${sanitizeForTerminal(cliWording(line))}\n`);
 
 const PROGRAMMING_ERRORS = [TypeError, RangeError, ReferenceError, SyntaxError, EvalError, URIError];
 
@@ -138,4 +138,28 @@ export function guardOutput(stream: NodeJS.WriteStream): void {
   const write = stream.write.bind(stream) as (...args: unknown[]) => boolean;
   (stream as { write: unknown }).write = (chunk: unknown, ...rest: unknown[]) =>
     write(typeof chunk === "string" ? sanitizeForTerminal(chunk).split(OWN_ESC).join("\x1b") : chunk, ...rest);
+}
+
+/**
+ * Library messages name the library's options (max_peak_v, charge_us, …): they are what a
+ * program calling the library sets. On the command line the same step is an option flag, so
+ * every message the CLI prints passes through this table.
+ */
+const LIBRARY_OPTIONS: [RegExp, string][] = [
+  [/\bmax_peak_v\b/g, "--max-peak-v"],
+  [/\bcharge_us\b/g, "--charge-us"],
+  [/\bhazardous_ok\b/g, "--hazardous-ok"],
+  [/\bkeep_suspect\b/g, "--keep-suspect"],
+  [/\bother_winding_ratio\b/g, "--winding-ratio"],
+  [/\btest_frequency_hz\b/g, "--freq"],
+  [/\(options drive, tank unset\)/g, "(no --drive or --tank)"],
+  [/with the profile left out \(uncalibrated\)/g, "with --uncalibrated"],
+  [/give the logs another name/g, "give another --log name"],
+];
+
+/** A library message in the command line's terms: option names become the flags that set them. */
+export function cliWording(message: string): string {
+  let m = message;
+  for (const [re, flag] of LIBRARY_OPTIONS) m = m.replace(re, flag);
+  return m;
 }

@@ -6,7 +6,7 @@
 // code (test/bench/sections/cli.ts counts the files `--help` loads).
 
 import { CALIBRATE_USAGE, MEASURE_OPTIONS, WATCH_USAGE } from "./help-text.ts";
-import { CliUsageError, reportError } from "./errors.ts";
+import { CliUsageError, cliWording, reportError } from "./errors.ts";
 import { SAFETY_TEXT } from "./safety.ts";
 import { packageVersion } from "../version.ts";
 
@@ -123,6 +123,6 @@ export async function main(argv: string[]): Promise<number> {
 /** { code, message, exit_status } for an error; a usage error's code is USAGE. */
 export function errorJson(e: unknown, exit_status: number): { code: string; message: string; exit_status: number } {
   const code = (e as { code?: unknown } | undefined)?.code;
-  const message = e instanceof Error ? e.message : String(e);
+  const message = cliWording(e instanceof Error ? e.message : String(e));
   return { code: typeof code === "string" ? code : exit_status === 2 ? "USAGE" : "INTERNAL", message, exit_status };
 }

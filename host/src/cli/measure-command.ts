@@ -7,7 +7,7 @@ import { MeasureError, measurePart, PartFaultError } from "../measure/measure-pa
 import { readingResult } from "../measure/result.ts";
 import { openTester } from "../open-tester.ts";
 import { intOption, numberOption, parse, refuseTogether, requireWith, testerTarget } from "./args.ts";
-import { CliUsageError, reportError } from "./errors.ts";
+import { CliUsageError, cliWording, reportError } from "./errors.ts";
 import { renderReading } from "./render.ts";
 import { csvHeader, csvRow } from "./result-csv.ts";
 import { runWatch, WATCH_OPTIONS } from "./measure-watch.ts";
@@ -134,7 +134,7 @@ export async function runMeasure(args: string[]): Promise<number> {
     }
     const blocks = [renderReading(result, label ?? "part on the clips")];
     if (selfCap) blocks.push(renderSelfCapacitance(selfCap));
-    if (selfCapProblem) blocks.push(`   ! ${selfCapProblem.code}: ${selfCapProblem.message}`);
+    if (selfCapProblem) blocks.push(`   ! ${selfCapProblem.code}: ${cliWording(selfCapProblem.message)}`);
     if (values.budget) blocks.push(renderBudget(budget));
     process.stdout.write(blocks.join("\n") + "\n");
     return save();
@@ -151,7 +151,7 @@ function refused(e: MeasureError, json: boolean): number {
   reportError(e);
   const kept = e instanceof PartFaultError && e.suspect !== undefined;
   if (kept) process.stderr.write("   no reading given; --keep-suspect returns it anyway, marked suspect\n");
-  if (json) process.stdout.write(JSON.stringify({ error: { code: e.code, message: e.message, ...(e instanceof PartFaultError ? { part_fault: true, suspect_available: kept } : {}) } }, null, 2) + "\n");
+  if (json) process.stdout.write(JSON.stringify({ error: { code: e.code, message: cliWording(e.message), ...(e instanceof PartFaultError ? { part_fault: true, suspect_available: kept } : {}) } }, null, 2) + "\n");
   return 1;
 }
 

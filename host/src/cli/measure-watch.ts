@@ -15,6 +15,7 @@ import { SettingHold, type HeldReading } from "../workflows/setting-hold.ts";
 import { intOption, optionValue } from "./args.ts";
 import { csvHeader, csvRow } from "./result-csv.ts";
 import { onCtrlC } from "./interrupt.ts";
+import { cliWording } from "./errors.ts";
 
 /** Options measure accepts for --watch (spread into its parse table). */
 export const WATCH_OPTIONS = {
@@ -60,7 +61,7 @@ export async function runWatch(tester: OpenedTester, values: WatchValues, measur
       const wasHeld = hold?.held ?? null;
       const got = await readOnceMore(tester, hold, measure);
       if (got.reading) result = readingResult(got.reading);
-      if (got.error) problem = got.error.code === "NO_RING" ? "no part on the clips" : `[${got.error.code}] ${got.error.message}`;
+      if (got.error) problem = got.error.code === "NO_RING" ? "no part on the clips" : `[${got.error.code}] ${cliWording(got.error.message)}`;
       n++;
       // A verdict never spans a change of setting: the trend starts again, and says why.
       let restart = "";

@@ -17,7 +17,7 @@ import { SortSession, type PartRecord } from "../workflows/sort-session.ts";
 import { makeStyle, stdinLines, type Style } from "../workflows/terminal.ts";
 import { intOption, numberOption, optionValue, parse, testerTarget, toleranceOnce, valueOption } from "./args.ts";
 import { MEASURABLE_RANGE } from "../values/range.ts";
-import { CliUsageError } from "./errors.ts";
+import { CliUsageError, cliWording } from "./errors.ts";
 import { onCtrlC } from "./interrupt.ts";
 import { resolvePeakLimit } from "../ranging/safety.ts";
 import { PulseCaution, windingRatioOption } from "./caution.ts";
@@ -130,7 +130,7 @@ export async function runSortCommand(args: string[]): Promise<number> {
       else if (e.kind === "settling") note("part detected, reading again to be sure …");
       else if (e.kind === "removed") note("part removed");
       else if (e.kind === "no-part") note("[NO_RING] nothing rings: put a part on the clips and press Enter again");
-      else if (e.kind === "unreadable") note(`[${e.code}] ${e.message} — not recorded; take the part off`);
+      else if (e.kind === "unreadable") note(`[${e.code}] ${cliWording(e.message)} — not recorded; take the part off`);
       else if (e.kind === "setting-changed") note(`setting changed: ${e.message}`);
     };
     await runSort({

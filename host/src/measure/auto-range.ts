@@ -15,7 +15,7 @@ import type { MeasureOptions, Reading } from "./measure-part.ts";
 import { MeasureError, NO_USABLE_RING, describeSetting, readOnce } from "./read-once.ts";
 import { explainFailure, shortedPart, SHORT_MAX_L_H } from "./part-fault.ts";
 import { WarningCode } from "../codes.ts";
-import { ROUGH_PREDICTION_SHARE as ROUGH_MARGIN, volts } from "../ranging/safety.ts";
+import { resolvePeakLimit, ROUGH_PREDICTION_SHARE as ROUGH_MARGIN, volts } from "../ranging/safety.ts";
 import { ReadingProgress, settingInfo } from "./events.ts";
 import { MEASURABLE_L_H, MEASURABLE_TEXT } from "../values/range.ts";
 import { describeFrequencyChoice, frequencyDistance, orderForFrequency } from "../ranging/choose-setting.ts";
@@ -54,11 +54,20 @@ export async function probePart(client: DeviceClient, progress: ReadingProgress 
   const tanks = profile.tanks.map((t) => t.index).sort((a, b) => profile.tanks[b].nominal_f - profile.tanks[a].nominal_f);
   const drives = profile.drives.map((d) => d.index).sort((a, b) => profile.drives[b].ohm - profile.drives[a].ohm);
   let attempt = 0;
+  // Probes a limit below the tester's default shortened (or left out): when nothing rings, that limit may be why.
+  const defaultLimit_v = resolvePeakLimit(undefined, profile.clamp_v, false).limit_v;
+  let capped = 0;
+  let longestCapped = 0;
   for (const tank of tanks) {
     for (const drive of drives) {
       attempt++;
       const safe = safeProbeChargeUs(profile.supply_v, profile.drives[drive].ohm, profile.tanks[tank].nominal_f, limit_v);
       const charge = Math.min(PROBE_CHARGE_US, profile.drives[drive].max_charge_us, safe);
+      const atDefault = Math.min(PROBE_CHARGE_US, profile.drives[drive].max_charge_us, safeProbeChargeUs(profile.supply_v, profile.drives[drive].ohm, profile.tanks[tank].nominal_f, defaultLimit_v));
+      if (limit_v < defaultLimit_v && Math.max(0, charge) < atDefault && atDefault >= 1) {
+        capped++;
+        longestCapped = Math.max(longestCapped, Math.max(0, charge));
+      }
       if (charge < 1) continue;
       const s: MeasureSettings = { drive, tank, charge_us: charge, edge_limit: profile.buffer_edges, timeout_ms: PROBE_TIMEOUT_MS, quiet_us: PROBE_QUIET_US };
       const raw: RawCapture = await ctx.pulse(client, s, "probe", ctx.probeFraction(attempt, tanks.length * drives.length), `probing: ${describeSetting(client, s)}`);
@@ -66,9 +75,23 @@ export async function probePart(client: DeviceClient, progress: ReadingProgress 
       if (est) return est;
     }
   }
+  if (capped > 0) throw peakLimitedProbe(limit_v, capped, tanks.length * drives.length, longestCapped);
   throw new MeasureError(
     "NO_RING",
     `nothing rang at any drive current: the clips may be open, the part may be a resistor rather than an inductor, or it is far outside ${MEASURABLE_TEXT}; check the connection and measure again`,
+  );
+}
+
+/**
+ * Nothing rang, and the ring-peak limit shortened the probes: the limit is the likely cause, not
+ * the clips. The longest charge that keeps every part under the limit grows with the square of
+ * the limit (safeProbeChargeUs), so a limit a few times higher gives probes many times longer.
+ */
+function peakLimitedProbe(limit_v: number, capped: number, of: number, longest_us: number): MeasureError {
+  const cut = longest_us >= 1 ? `cut to at most ${Math.floor(longest_us)} µs of charge` : "left out altogether";
+  return new MeasureError(
+    "NO_RING",
+    `nothing rang within the ${volts(limit_v)} ring-peak limit: to keep any part under it, ${capped} of the ${of} probe settings were ${cut}, shorter than at the tester's default limit (the longest safe charge grows with the square of the limit), too little for a ring the comparator can follow. Raise the ring-peak limit (max_peak_v), or leave it at the default; if nothing rings then either, check the clips and the part`,
   );
 }
 

@@ -146,7 +146,7 @@ export async function planFixed(client: DeviceClient, opts: MeasureOptions, limi
   const est = opts.estimate ?? (await probePart(client, progress, limits.max_peak_v));
   const p = predictSetting(profile, est, drive, tank, limits, opts.calibration?.tanks?.[tank]);
   if (p.a0_v * (p.i0_worst_a / p.i0_a) > limits.max_peak_v || p.resistor_avg_power_w > p.resistor_rating_w) {
-    throw new MeasureError("SETTING_UNSAFE", `${describeSetting(client, { drive, tank, charge_us: p.charge_us })} is refused: ${p.refused || "over a limit"}; choose a larger drive resistor or a larger tank (or raise --max-peak-v up to the clamp)`);
+    throw new MeasureError("SETTING_UNSAFE", `${describeSetting(client, { drive, tank, charge_us: p.charge_us })} is refused: ${p.refused || "over a limit"}; choose a larger drive resistor or a larger tank (or raise max_peak_v up to the clamp)`);
   }
   const charge = opts.charge_us ?? p.charge_us;
   if (charge > profile.drives[drive].max_charge_us) {
@@ -179,7 +179,7 @@ export function fixedReading(client: DeviceClient, raw: RawCapture, opts: Measur
     // A strong fixed drive that gives no ring on a part that rang in the probe: the likely cause is
     // a core driven into saturation, so the next step is less current, not more.
     if (NO_USABLE_RING.includes(e.code) && p.i0_a >= STRONG_DRIVE_A) {
-      throw new MeasureError(e.code, `no usable ring on ${describeSetting(client, settings)}, though the part rang in the gentle probe: at about ${p.i0_a.toPrecision(2)} A a core can saturate, which stops the ring; use a larger drive resistor (less current) or leave the setting to automatic ranging (no --drive / --tank)`);
+      throw new MeasureError(e.code, `no usable ring on ${describeSetting(client, settings)}, though the part rang in the gentle probe: at about ${p.i0_a.toPrecision(2)} A a core can saturate, which stops the ring; use a larger drive resistor (less current) or leave the setting to automatic ranging (options drive, tank unset)`);
     }
     throw e;
   }

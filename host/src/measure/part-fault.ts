@@ -207,7 +207,7 @@ function ringFrequencySwing(r: Reading, drift_df_rel: number): number {
 }
 
 const has = (r: Reading, code: WarningCode) => r.analysis.warnings.some((w) => w.code === code);
-const fixedAdvice = "drop --drive and --tank to let automatic ranging choose";
+const fixedAdvice = "leave the drive and tank to automatic ranging (options drive, tank unset)";
 
 /**
  * What the judgement needs to know of the tester: its clamp voltage and its longest window
@@ -236,7 +236,7 @@ export function judgeReading(r: Reading, profile: TesterLimits): PartFault | nul
   if (has(r, WarningCode.SUSPECTED_CLIPPING) && profile.clamp_v !== undefined && a.amplitude_v >= CLIP_CLAMP_RATIO * profile.clamp_v) {
     return {
       code: "FIRST_CYCLE_CLIPPED",
-      message: `the first cycle was clipped: the ring started at about ${a.amplitude_v.toFixed(1)} V, at the ${profile.clamp_v} V clamp, and its first edges sit off the ring model, so the value (about ${L}) rests on a distorted ring. The part carries more current or has more inductance than the setting was chosen for: lower the drive current (a larger drive resistor, a shorter --charge-us) or ${fixedAdvice}, then measure again`,
+      message: `the first cycle was clipped: the ring started at about ${a.amplitude_v.toFixed(1)} V, at the ${profile.clamp_v} V clamp, and its first edges sit off the ring model, so the value (about ${L}) rests on a distorted ring. The part carries more current or has more inductance than the setting was chosen for: lower the drive current (a larger drive resistor, a shorter charge_us) or ${fixedAdvice}, then measure again`,
     };
   }
   const df = has(r, WarningCode.FREQUENCY_DRIFT) && a.drift ? ringFrequencySwing(r, a.drift.df_rel) : 0;
@@ -245,7 +245,7 @@ export function judgeReading(r: Reading, profile: TesterLimits): PartFault | nul
     const swing = 2 * Math.abs(df) * 100;
     return {
       code: "CORE_SATURATING",
-      message: `the inductance changes with the current: the ring frequency ${ppm < 0 ? "falls" : "rises"} by ${Math.abs(ppm).toFixed(0)} ppm from the first edge to the last, so L swings by ${swing.toFixed(2)} % within one ring (about ${L} on average) — the core is near saturation at ${a.amplitude_v.toFixed(2)} V of ring. Lower the drive current (a larger drive resistor or a shorter --charge-us; with automatic ranging, a lower --max-peak-v) or ${fixedAdvice}; if parts with air cores drift the same way, the tester's tank capacitor is voltage dependent (it must be C0G/film)`,
+      message: `the inductance changes with the current: the ring frequency ${ppm < 0 ? "falls" : "rises"} by ${Math.abs(ppm).toFixed(0)} ppm from the first edge to the last, so L swings by ${swing.toFixed(2)} % within one ring (about ${L} on average) — the core is near saturation at ${a.amplitude_v.toFixed(2)} V of ring. Lower the drive current (a larger drive resistor or a shorter charge_us; with automatic ranging, a lower max_peak_v) or ${fixedAdvice}; if parts with air cores drift the same way, the tester's tank capacitor is voltage dependent (it must be C0G/film)`,
     };
   }
   // Rejected edges alone are no diagnosis (a clean low-Q ring loses a few at its start and end):
@@ -276,7 +276,7 @@ export function judgeReading(r: Reading, profile: TesterLimits): PartFault | nul
       const window = full ? (limit ? `the ${limit}-edge buffer` : "the edge buffer") : r.settings.timeout_ms > 0 ? `the ${r.settings.timeout_ms} ms window` : "the capture window";
       return {
         code: "RING_OUTLASTS_WINDOW",
-        message: `the ring outlasts the capture: it was still ${end_ratio.toFixed(1)}x the threshold when ${window} ended, so the decay — and with it Q, ESR and the check that this is one clean ring — is not seen (about ${L}). The part rings longer than this window (a large inductance or a very high Q): ${fixedAdvice} (it sizes the window to the ring${profile.max_timeout_ms !== undefined ? `, up to ${profile.max_timeout_ms} ms` : ""}), or use a shorter --charge-us so the ring starts lower and ends sooner`,
+        message: `the ring outlasts the capture: it was still ${end_ratio.toFixed(1)}x the threshold when ${window} ended, so the decay — and with it Q, ESR and the check that this is one clean ring — is not seen (about ${L}). The part rings longer than this window (a large inductance or a very high Q): ${fixedAdvice} (it sizes the window to the ring${profile.max_timeout_ms !== undefined ? `, up to ${profile.max_timeout_ms} ms` : ""}), or use a shorter charge_us so the ring starts lower and ends sooner`,
       };
     }
   }

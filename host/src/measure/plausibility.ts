@@ -142,7 +142,7 @@ export const PROFILE_TANK_TOLERANCE = 0.25;
  * Throws CalibrationError PROFILE_BOARD_MISMATCH.
  */
 export function checkProfileAgainstBoard(profile: CalibrationProfile, board: DeviceProfile, path: string): void {
-  const next = `restore the previous profile ("henrytick calibrate restore") or calibrate this tester again; --uncalibrated measures with nominal values meanwhile`;
+  const next = `restore the previous profile ("henrytick calibrate restore") or calibrate this tester again; measuring with the profile left out (uncalibrated) uses nominal values meanwhile`;
   for (const t of profile.tanks) {
     const b = board.tanks.find((x) => x.index === t.index);
     if (!b) {

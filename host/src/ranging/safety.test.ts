@@ -42,7 +42,7 @@ describe("ring-peak limit", () => {
     const text = resolvePeakLimit(undefined, 36, false).basis.join("\n");
     expect(text).toMatch(/28\.8 V = 80 % of this tester's 36 V flyback clamp/);
     expect(text).toMatch(/20\.2 V: 70 % of the limit/);
-    expect(text).toMatch(/--hazardous-ok cannot take effect on this tester/);
+    expect(text).toMatch(/hazardous_ok cannot take effect on this tester/);
     expect(resolvePeakLimit(undefined, 100, false).basis.join("\n")).not.toMatch(/cannot take effect/);
   });
   it("may be lowered freely", () => {
@@ -55,7 +55,7 @@ describe("ring-peak limit", () => {
     expect(HAZARDOUS_PEAK_V).toBe(42.4);
     const refused = resolvePeakLimit(60, 100, false);
     expect(refused.ok).toBe(false);
-    expect(refused.message).toMatch(/--hazardous-ok/);
+    expect(refused.message).toMatch(/confirm with hazardous_ok only if/);
     expect(resolvePeakLimit(60, 100, true)).toMatchObject({ ok: true, limit_v: 60 });
   });
 });

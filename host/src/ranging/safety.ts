@@ -80,11 +80,11 @@ export function resolvePeakLimit(requested_v: number | undefined, clamp_v: numbe
   const fromClamp = CLAMP_SHARE * clamp_v;
   const want = requested_v ?? Math.min(DEFAULT_MAX_PEAK_V, fromClamp);
   const basis: string[] = [];
-  if (requested_v !== undefined) basis.push(`${volts(want)}: asked for with --max-peak-v`);
+  if (requested_v !== undefined) basis.push(`${volts(want)}: asked for with max_peak_v`);
   else if (fromClamp < DEFAULT_MAX_PEAK_V) basis.push(`${volts(want)} = ${CLAMP_SHARE * 100} % of this tester's ${volts(clamp_v)} flyback clamp, lower than the ${volts(DEFAULT_MAX_PEAK_V)} default`);
   else basis.push(`${volts(want)}: the default ring-peak limit, below the ${volts(HAZARDOUS_PEAK_V)} hazardous-live level`);
-  basis.push(`${volts(HAZARDOUS_PEAK_V)} peak: hazardous-live level of IEC 61010-1; above it only with --hazardous-ok`);
-  if (clamp_v <= HAZARDOUS_PEAK_V) basis.push(`--hazardous-ok cannot take effect on this tester: its ${volts(clamp_v)} clamp is below ${volts(HAZARDOUS_PEAK_V)}, so no limit can pass that level`);
+  basis.push(`${volts(HAZARDOUS_PEAK_V)} peak: hazardous-live level of IEC 61010-1; above it only with hazardous_ok`);
+  if (clamp_v <= HAZARDOUS_PEAK_V) basis.push(`hazardous_ok cannot take effect on this tester: its ${volts(clamp_v)} clamp is below ${volts(HAZARDOUS_PEAK_V)}, so no limit can pass that level`);
   const fail = (message: string, limit_v: number): PeakLimitCheck => ({ ok: false, message, limit_v, winding_limit_v: limit_v, basis });
   if (!(want > 0)) return fail("the peak limit must be positive", 0);
   const ratio = opts.other_winding_ratio;
@@ -93,7 +93,7 @@ export function resolvePeakLimit(requested_v: number | undefined, clamp_v: numbe
     return fail(`a ${volts(want)} limit is above the tester's ${volts(clamp_v)} flyback clamp; the clamp would clip the ring (choose at most ${volts(clamp_v)})`, clamp_v);
   }
   if (want > HAZARDOUS_PEAK_V && !hazardous_ok) {
-    return fail(`a ${volts(want)} ring is above the ${volts(HAZARDOUS_PEAK_V)} peak hazardous-live level (IEC 61010-1); confirm with --hazardous-ok only if the part and its other windings are guarded`, HAZARDOUS_PEAK_V);
+    return fail(`a ${volts(want)} ring is above the ${volts(HAZARDOUS_PEAK_V)} peak hazardous-live level (IEC 61010-1); confirm with hazardous_ok only if the part and its other windings are guarded`, HAZARDOUS_PEAK_V);
   }
   basis.push(`${volts(ROUGH_PREDICTION_SHARE * want / Math.max(1, ratio ?? 1))}: ${ROUGH_PREDICTION_SHARE * 100} % of the limit, kept while the part is known only from the first gentle probe`);
   if (ratio !== undefined && ratio > 1) {

@@ -55,7 +55,7 @@ export class SortLog {
         csvFd = openLog(paths.csv);
         const text = readFileSync(paths.csv, "utf8");
         if (text.length > 0 && text.split("\n", 1)[0] !== HEADER) {
-          throw new SortLogError("LOG_HEADER_MISMATCH", `${paths.csv} has other columns than this version writes; give a new --log file name`);
+          throw new SortLogError("LOG_HEADER_MISMATCH", `${paths.csv} has other columns than this version writes; give the logs another name`);
         }
         const expected = HEADER + "\n" + (paths.jsonl ? wholeRecords(paths.jsonl).map(csvRow).join("") : "");
         if (text.length === 0) writeDurably(csvFd, paths.jsonl ? expected : HEADER + "\n");
@@ -63,7 +63,7 @@ export class SortLog {
           if (!expected.startsWith(text)) {
             throw new SortLogError(
               "LOG_DISAGREE",
-              `${paths.csv} holds rows that ${paths.jsonl} does not (${text.length > expected.length ? "more records" : "other records"}): the two are not one sort's logs; give a new --log name, or keep only the JSON Lines log and delete the CSV (it is written again from the JSON Lines log)`,
+              `${paths.csv} holds rows that ${paths.jsonl} does not (${text.length > expected.length ? "more records" : "other records"}): the two are not one sort's logs; give the logs another name, or keep only the JSON Lines log and delete the CSV (it is written again from the JSON Lines log)`,
             );
           }
           if (text.length < expected.length) writeDurably(csvFd, expected.slice(text.length));

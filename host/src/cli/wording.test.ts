@@ -1,0 +1,47 @@
+// The library gives codes, fields and its own option names; the command line maps those to its
+// flags (cliWording). A library message that quotes a flag would tell a program calling the
+// library to set something it does not have.
+
+import { readdirSync, readFileSync, statSync } from "node:fs";
+import { join } from "node:path";
+import { fileURLToPath } from "node:url";
+import { describe, expect, it } from "vitest";
+import { resolvePeakLimit } from "../ranging/safety.ts";
+import { cliWording } from "./errors.ts";
+
+const SRC = fileURLToPath(new URL("..", import.meta.url));
+
+function sources(dir: string): string[] {
+  return readdirSync(dir).flatMap((n) => {
+    const p = join(dir, n);
+    if (statSync(p).isDirectory()) return sources(p);
+    return p.endsWith(".ts") && !p.endsWith(".test.ts") ? [p] : [];
+  });
+}
+
+describe("library messages and the command line's flags", () => {
+  it("no message in the measuring, ranging, value, analysis or workflow layers quotes a CLI flag", () => {
+    const offenders: string[] = [];
+    for (const dir of ["measure", "ranging", "values", "analysis", "workflows"]) {
+      for (const file of sources(join(SRC, dir))) {
+        readFileSync(file, "utf8").split("\n").forEach((line, i) => {
+          const t = line.trim();
+          if (t.startsWith("//") || t.startsWith("*") || t.startsWith("/*")) return;
+          // A flag inside a string or template literal: a quote or a space before "--name".
+          if (/["'`][^"'`]*(?:^|[\s(])--[a-z][a-z-]+/.test(t)) offenders.push(`${file.slice(SRC.length)}:${i + 1}: ${t.slice(0, 100)}`);
+        });
+      }
+    }
+    expect(offenders).toEqual([]);
+  });
+
+  it("maps the library's option names to the flags that set them", () => {
+    expect(cliWording("raise max_peak_v up to the clamp; a shorter charge_us; confirm with hazardous_ok")).toBe("raise --max-peak-v up to the clamp; a shorter --charge-us; confirm with --hazardous-ok");
+    expect(cliWording("leave the setting to automatic ranging (options drive, tank unset)")).toBe("leave the setting to automatic ranging (no --drive or --tank)");
+    // A field name inside a longer word is left alone.
+    expect(cliWording("the_max_peak_value")).toBe("the_max_peak_value");
+    const basis = resolvePeakLimit(undefined, 36, false).basis.join("\n");
+    expect(basis).toMatch(/hazardous_ok cannot take effect/);
+    expect(cliWording(basis)).toMatch(/--hazardous-ok cannot take effect/);
+  });
+});
