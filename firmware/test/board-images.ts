@@ -6,7 +6,7 @@ import { parseProfile } from "../../host/src/device/profile.ts";
 import type { DeviceProfile } from "../../host/src/device/profile.ts";
 import { boardProfile } from "../../host/src/sim/board-profile.ts";
 import type { BoardProfile } from "../../host/src/sim/board-profile.ts";
-import { simulatedBoard } from "../../host/src/sim/board-model.ts";
+import { nominalBoard, simulatedBoard } from "../../host/src/sim/board-model.ts";
 import type { BoardModel } from "../../host/src/sim/board-model.ts";
 import type { SimTesterOptions } from "../../host/src/sim/sim-tester.ts";
 import { DEFAULT_BOARD } from "../tools/board-source.ts";
@@ -17,7 +17,7 @@ export interface BoardUnderTest {
   name: string;
   /** The board file. */
   file: BoardProfile;
-  /** Its simulated unit, as the simulated tester runs it. */
+  /** Its simulated unit, as the simulated tester runs it (its nominal board when the file describes none). */
   board: BoardModel;
   /** Its firmware image (undefined: the release build, which is the reference board's). */
   image: WebAssembly.Module | undefined;
@@ -30,7 +30,7 @@ export interface BoardUnderTest {
 /** Builds what the tests need for one board (compiling its image unless it is the release build's). */
 export async function boardUnderTest(name: string): Promise<BoardUnderTest> {
   const file = boardProfile(name);
-  const board = simulatedBoard(file);
+  const board = file.simulated_unit ? simulatedBoard(file) : nominalBoard(file);
   const image = name === DEFAULT_BOARD ? undefined : new WebAssembly.Module(await compileBoardFirmware(name));
   const link = (opts: Partial<SimTesterOptions> = {}) => new SimLink({ board, firmware: image, ...opts });
   return {

@@ -92,6 +92,10 @@ describe("the fixture in readings: added where the tank's value lacks it, never 
     const again = analyzeCapture(JSON.parse(JSON.stringify(nulled.capture)));
     expect(again.inductance_h).toBe(nulled.analysis.inductance_h);
     expect(again.inductance_u_h).toBe(nulled.analysis.inductance_u_h);
+    // A tank value that is neither nominal nor nominal plus the recorded fixture is an edited capture.
+    const edited = JSON.parse(JSON.stringify(nulled.capture));
+    edited.calibration.fixture_capacitance_f *= 2;
+    expect(() => analyzeCapture(edited)).toThrow(expect.objectContaining({ code: "TANK_IMPLAUSIBLE" }));
   });
 
   it("a tank calibrated through the clips already holds the fixture: nothing is added; one calibrated on the terminals gets it", async () => {

@@ -4,7 +4,7 @@
 import { describe, expect, it } from "vitest";
 import { emptyProfile, validateProfile } from "./profile-schema.ts";
 import type { TankEntry, TimebaseEntry } from "./profile-schema.ts";
-import { chooseTimebase, enteredTimebase, referenceThroughLeads, withEntry, withTankEntries, withTimebase } from "./profile-update.ts";
+import { chooseTimebase, enteredTimebase, referenceThroughLeads, tankChanges, withEntry, withTankEntries, withTimebase } from "./profile-update.ts";
 import { profileTerms } from "./profile-terms.ts";
 import { checkFirstReading, likelyReferenceValue } from "./reference-inductor.ts";
 import { checkParallelCapacitor } from "./parallel-capacitor.ts";
@@ -30,6 +30,16 @@ describe("a result enters the profile", () => {
     expect(r.u_inductance_h).toBeCloseTo(Math.hypot(0.1e-6, 0.2e-9), 15);
     expect(r.label).toBe("R1 plus the leads' 30 nH");
     expect(referenceThroughLeads({ inductance_h: 1e-3, u_inductance_h: 1e-6 }, emptyProfile("HT-1", T0)).inductance_h).toBe(1e-3);
+  });
+
+  it("the change check compares like with like: a tank calibrated on the terminals is taken with the fixture added", () => {
+    const fixture = { c_f: 18e-12, u_f: 0.2e-12, method: "terminals-vs-clips" as const, time: T0.toISOString(), detail: "" };
+    const p = withEntry(withTankEntries(emptyProfile("HT-1", T0), [tank(0, 1.040e-9, 1e-9)]), "fixture", fixture);
+    const onTerminals = { ...tank(0, 1.022e-9, 1e-9), fixture_included: false };
+    expect(tankChanges(p, [onTerminals])[0]).toMatchObject({ against: "previous", large: false });
+    expect(Math.abs(tankChanges(p, [onTerminals])[0].change_rel)).toBeLessThan(1e-9);
+    // Without the fixture added, the same tank would look 1.7 % lower than before.
+    expect(tankChanges({ ...p, fixture: undefined }, [onTerminals])[0].large).toBe(true);
   });
 
   it("a less certain timebase does not replace a better stored one; an equal or better one does", () => {

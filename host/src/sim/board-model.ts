@@ -44,7 +44,8 @@ export interface BoardModel {
 
 /**
  * A board with every part exactly at its nominal value (the reference board's by default): no
- * fixture, switch node or divider loading, an ideal diode, and fixed comparator and timer timing.
+ * fixture, switch node or divider loading, an ideal diode, and fixed comparator and timer timing;
+ * the id of the board file's simulated unit (HT-5EED0001 when it has none).
  */
 export function nominalBoard(profile: BoardProfile = boardProfile(REFERENCE_BOARD)): BoardModel {
   return {
@@ -61,7 +62,7 @@ export function nominalBoard(profile: BoardProfile = boardProfile(REFERENCE_BOAR
     tank_k_per_v2: 0,
     comparator: { rising_v: profile.thresholds_v[0], falling_v: profile.thresholds_v[1], jitter_s: 4e-9, noise_v: 0.5e-3, delay_rise_s: 60e-9, delay_fall_s: 60e-9 },
     timer: { tick_hz: profile.tick_hz, ppm: 0, dead_time_s: 40e-9 },
-    device_id: 0x5eed0001,
+    device_id: profile.simulated_unit?.device_id ?? 0x5eed0001,
   };
 }
 
