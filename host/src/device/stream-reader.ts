@@ -6,12 +6,20 @@
 import { END_FULL, END_NO_EDGES, END_QUIET, END_TIMEOUT, EdgeDecoder, PROTOCOL_VERSION } from "@henrytick/shared-protocol";
 import type { MeasureSettings } from "./client.ts";
 import type { Frame } from "./frames.ts";
+import { EdgeList } from "../capture/edge-list.ts";
 
 export type EndReason = "quiet" | "full" | "timeout" | "no-edges";
 
 export interface RawCapture {
   settings: MeasureSettings;
   tick_hz: number;
+  /**
+   * The edges as decoded (the decoder's arrays): the capture record, its checks and the analysis
+   * share them. Present on a capture as the client returns it; a copy made by spreading it
+   * (`{ ...raw, ticks }`) has none, and its ticks and levels are used instead.
+   */
+  readonly edges?: EdgeList;
+  /** The same edges as plain arrays (made on first use when `edges` is there). */
   ticks: number[];
   levels: number[];
   end_reason: EndReason;
@@ -93,13 +101,23 @@ export class CaptureStreamReader {
       throw new StreamDefect("edge checksum mismatch");
     }
     if (!reason) throw new StreamDefect(`unknown end reason ${f.fields[3]}`);
-    return {
+    const edges = new EdgeList(this.ticks, this.levels);
+    let plain: { ticks: number[]; levels: number[] } | null = null;
+    const asArrays = () => (plain ??= { ticks: Array.from(edges.ticks), levels: Array.from(edges.levels) });
+    const raw: RawCapture = {
       settings: this.settings,
       tick_hz: this.tick_hz,
-      ticks: Array.from(this.ticks),
-      levels: Array.from(this.levels),
+      get ticks() {
+        return asArrays().ticks;
+      },
+      get levels() {
+        return asArrays().levels;
+      },
       end_reason: reason,
     };
+    // Not enumerable, so a copy with other ticks or levels ({ ...raw, ticks }) does not carry it.
+    Object.defineProperty(raw, "edges", { value: edges, enumerable: false });
+    return raw;
   }
 
   private int(f: Frame, i: number, name: string): number {

@@ -12,7 +12,7 @@ import type { CaptureComparator, CaptureV1 } from "../capture/capture-file.ts";
 import type { DeviceIdentity, DeviceProfile } from "../device/profile.ts";
 import type { RawCapture } from "../device/stream-reader.ts";
 import type { AppliedCalibration } from "../calibration/applied.ts";
-import { EdgeList, edgesOf, pairsFor } from "./edge-list.ts";
+import { EdgeList, edgesOf, pairsFor } from "../capture/edge-list.ts";
 
 export function captureFromDevice(
   raw: RawCapture, identity: DeviceIdentity, profile: DeviceProfile, transport: string, label?: string,
@@ -54,7 +54,7 @@ export function captureFromDevice(
     },
     meta: { ...(label ? { label } : {}), time: new Date().toISOString(), end_reason: raw.end_reason },
     // The edge list is built once here; the checks, the analysis and the judgement share it.
-    edges: pairsFor(EdgeList.from(raw.ticks, raw.levels)),
+    edges: pairsFor(raw.edges ?? EdgeList.from(raw.ticks, raw.levels)),
   };
 }
 

@@ -10,6 +10,7 @@ import type { PartEstimate } from "../ranging/estimate.ts";
 import type { PlanLimits } from "../ranging/predict.ts";
 import { predictSetting, type SettingPrediction } from "../ranging/predict.ts";
 import { resolvePeakLimit, volts } from "../ranging/safety.ts";
+import { formatSi } from "../format/si.ts";
 import { adviseSettings } from "../ranging/advice.ts";
 import { describeFrequencyChoice, orderForFrequency, TEST_FREQUENCY_RANGE, type FrequencyChoice } from "../ranging/choose-setting.ts";
 import { autoRange, probePart, quietAfterUs } from "./auto-range.ts";
@@ -181,8 +182,27 @@ export function fixedReading(client: DeviceClient, raw: RawCapture, opts: Measur
     if (NO_USABLE_RING.includes(e.code) && p.i0_a >= STRONG_DRIVE_A) {
       throw new MeasureError(e.code, `no usable ring on ${describeSetting(client, settings)}, though the part rang in the gentle probe: at about ${p.i0_a.toPrecision(2)} A a core can saturate, which stops the ring; use a larger drive resistor (less current) or leave the setting to automatic ranging (options drive, tank unset)`);
     }
+    // The advice had already said this setting cannot give a usable ring for this part: that is
+    // the cause, not the connection, and the next step is a setting the advice ranks.
+    if (NO_USABLE_RING.includes(e.code) && p.refused !== "") throw unsuitedSetting(client, settings, p, e.code, adviseSettings(client.profile, est, limits, opts.calibration?.tanks));
     throw e;
   }
+}
+
+/**
+ * SETTING_UNSUITED: a fixed setting the advice refused for this part (too few edges above the
+ * thresholds, edges faster than the capture stores) gave no usable ring, as predicted.
+ */
+function unsuitedSetting(client: DeviceClient, settings: MeasureSettings, p: SettingPrediction, code: string, advice: Advice[]): MeasureError {
+  const best = advice.find((a) => a.refused === "");
+  const profile = client.profile;
+  const instead = best
+    ? `drive ${best.drive} (${formatSi(profile.drives[best.drive].ohm, "Ω", 3)}) with tank ${best.tank} (${formatSi(profile.tanks[best.tank].nominal_f, "F", 3)}) is the advice's first choice`
+    : "no setting suits the part within the limits";
+  return new MeasureError(
+    "SETTING_UNSUITED",
+    `no usable ring on ${describeSetting(client, settings)} (${code}), as the advice predicted for this part: ${p.refused.replace(/\.$/, "")}. The part and its connection are not the cause; ${instead}, or leave the setting to automatic ranging (options drive, tank unset)`,
+  );
 }
 
 /** The peak limits of a reading's options (MeasureError PEAK_LIMIT when they contradict). */

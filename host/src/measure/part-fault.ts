@@ -14,7 +14,7 @@ import { formatSi } from "../format/si.ts";
 import { MEASURABLE_L_H } from "../values/range.ts";
 import { isAnalysisFailure, WarningCode, type PartFaultCode } from "../codes.ts";
 import type { Reading } from "./measure-part.ts";
-import { edgesOf } from "./edge-list.ts";
+import { edgesOf } from "../capture/edge-list.ts";
 import { frequencySwing } from "./frequency-swing.ts";
 import { MeasureError, analyzeCapture, fitCapture } from "./read-once.ts";
 

@@ -27,7 +27,7 @@ import { CalibrationError } from "../calibration/errors.ts";
 import { CodedError } from "../coded-error.ts";
 import type { DeviceProfile } from "../device/profile.ts";
 import { formatSi } from "../format/si.ts";
-import { edgesOf } from "./edge-list.ts";
+import { edgesOf } from "../capture/edge-list.ts";
 
 /** Largest timer error accepted, ppm (as the timebase calibration: docs/calibration.md). */
 export const MAX_TIMEBASE_PPM = 1000;

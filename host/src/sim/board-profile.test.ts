@@ -4,6 +4,8 @@
 import { describe, expect, it } from "vitest";
 import { boardProfile, boardProfileNames, REFERENCE_BOARD } from "./board-profile.ts";
 import { nominalBoard, referenceBoard, simulatedBoard } from "./board-model.ts";
+import { encodeCommand } from "../device/frames.ts";
+import { SimTester } from "./sim-tester.ts";
 
 describe("board files on the host", () => {
   it("lists the board files there are, the reference board among them", () => {
@@ -38,5 +40,13 @@ describe("board files on the host", () => {
     const file = boardProfile(REFERENCE_BOARD);
     delete file.simulated_unit;
     expect(() => simulatedBoard(file)).toThrow(expect.objectContaining({ code: "NO_SIMULATED_UNIT" }));
+  });
+
+  it("refuses to simulate a board other than the firmware image's when the firmware selects a range it lacks", () => {
+    // The release image is the reference board's (four drives, four tanks); the second board has three of each.
+    const sim = new SimTester({ part: null, seed: 1, board: simulatedBoard(boardProfile("e6-compact")) });
+    expect(() => sim.input(encodeCommand("MS", [3, 3, 100, 10, 10, 1000]))).toThrow(expect.objectContaining({ code: "SIM_FAULT", message: expect.stringContaining("build-board") }));
+    const ok = new SimTester({ part: null, seed: 1 });
+    expect(() => ok.input(encodeCommand("MS", [3, 3, 100, 10, 10, 1000]))).not.toThrow();
   });
 });

@@ -6,6 +6,7 @@
 import { simulatePulse } from "./front-end.ts";
 import type { BoardModel } from "./board-model.ts";
 import { referenceBoard } from "./board-model.ts";
+import { CodedError } from "../coded-error.ts";
 import type { FirmwareVariant } from "./firmware-image.ts";
 import { firmwareModule } from "./firmware-image.ts";
 import { Random } from "./random.ts";
@@ -242,6 +243,11 @@ export class SimTester {
     return {
       now: () => Math.floor(this.nowTicks) | 0,
       select: (drive: number, tank: number) => {
+        // The firmware checks the indices against its own board profile: one beyond this board
+        // model's means the image and the board model are of different boards.
+        if (!(drive < this.board.drive_ohm.length && tank < this.board.tank_f.length)) {
+          throw new CodedError("SIM_FAULT", `the firmware selected drive ${drive}, tank ${tank}, but the simulated board has ${this.board.drive_ohm.length} drives and ${this.board.tank_f.length} tanks: run the firmware image built for this board (firmware/tools/build-board.ts)`);
+        }
         this.drive = drive;
         this.tank = tank;
       },

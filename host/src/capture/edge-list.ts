@@ -1,20 +1,22 @@
 // A capture's edges in the one form every step after the transfer reads them: the capture
-// checks, the analysis input and the part-fault judgement. The capture record keeps its
-// [tick, level] pairs (the file format, docs/capture-format.md); the edge list is built from the
-// device's decoded arrays when the record is made, or from the pairs when a record is first read,
-// and then shared, with the intervals between edges worked out once.
+// checks, the analysis input and the part-fault judgement. The device's stream reader decodes
+// into it (device/stream-reader.ts: its arrays are the decoder's own), the capture record keeps
+// [tick, level] pairs made from it (the file format, docs/capture-format.md) and finds it again;
+// a record read from a file gets one built from its pairs on first use. The intervals between
+// edges are worked out once, when first asked for.
 
-import type { CaptureV1 } from "../capture/capture-file.ts";
+import type { CaptureV1 } from "./capture-file.ts";
 
 export class EdgeList {
   private iv: Float64Array | null = null;
 
   /**
-   * @param ticks timer ticks since the switch opened, non-decreasing integers (float64 holds
-   *   every tick a capture file may state exactly)
+   * @param ticks timer ticks since the switch opened, non-decreasing integers: the decoder's
+   *   Int32Array (the protocol keeps ticks below 2^30), or float64 for a capture file's, which
+   *   may state any tick up to 2^53
    * @param levels the comparator's level after each edge: 1 after a rising, 0 after a falling edge
    */
-  constructor(readonly ticks: Float64Array, readonly levels: Uint8Array) {
+  constructor(readonly ticks: Int32Array | Float64Array, readonly levels: Uint8Array) {
     if (levels.length !== ticks.length) throw new RangeError(`edge list: ${ticks.length} ticks but ${levels.length} levels`);
   }
 

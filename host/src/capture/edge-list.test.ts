@@ -4,10 +4,12 @@
 
 import { describe, expect, it } from "vitest";
 import { EdgeList, edgesOf, pairsFor } from "./edge-list.ts";
-import { ringInputFromCapture } from "./capture-build.ts";
-import { chatterOf } from "./part-fault.ts";
-import { checkCapturePlausible } from "./plausibility.ts";
-import type { CaptureV1 } from "../capture/capture-file.ts";
+import { ringInputFromCapture } from "../measure/capture-build.ts";
+import { chatterOf } from "../measure/part-fault.ts";
+import { checkCapturePlausible } from "../measure/plausibility.ts";
+import type { CaptureV1 } from "./capture-file.ts";
+import { captureFromDevice } from "../measure/capture-build.ts";
+import { openTester } from "../open-tester.ts";
 
 function capture(edges: [number, number][]): CaptureV1 {
   return { format: "henrytick-capture", version: 1, tick_hz: 64e6, tank_c_f: 100e-9, thresholds_v: [0.035, -0.005], edges } as CaptureV1;
@@ -71,5 +73,26 @@ describe("edge list", () => {
       if (i === 40) glitched.push([edges[i][0] + 20, 1 - edges[i][1]], [edges[i][0] + 40, edges[i][1]]);
     }
     expect(chatterOf(capture(glitched))).toEqual({ glitch_pairs: 2, breaks: 1, half_cycles: 201 - 4 });
+  });
+
+  it("is the device decoder's own arrays from the transfer to the analysis; an edited copy gets its own", async () => {
+    const t = await openTester({ part: { inductance_h: 330e-6, series_ohm: 0.5, self_capacitance_f: 0 }, seed: 2 });
+    try {
+      const s = { drive: 1, tank: 2, charge_us: 100, edge_limit: 8192, timeout_ms: 100, quiet_us: 500 };
+      const raw = await t.client.measure(s);
+      expect(raw.edges).toBeInstanceOf(EdgeList);
+      expect(raw.edges!.ticks).toBeInstanceOf(Int32Array);
+      expect(raw.ticks).toEqual(Array.from(raw.edges!.ticks));
+      const c = captureFromDevice(raw, t.client.identity, t.client.profile, "test");
+      expect(edgesOf(c)).toBe(raw.edges);
+      expect(ringInputFromCapture(c).ticks).toBe(raw.edges!.ticks);
+      // A copy with other edges does not carry the decoded list: its record holds what it says.
+      const ticks = raw.ticks.map((k) => k + 7);
+      const edited = captureFromDevice({ ...raw, ticks }, t.client.identity, t.client.profile, "test");
+      expect(edited.edges[0][0]).toBe(raw.ticks[0] + 7);
+      expect(edgesOf(edited)!.ticks[0]).toBe(raw.ticks[0] + 7);
+    } finally {
+      await t.close();
+    }
   });
 });
