@@ -19,7 +19,7 @@ import { correlationInflation, residualCorrelation } from "./residual-correlatio
 import { huberWeight, madSigma, median } from "./robust-stats.ts";
 import { invertSymmetric } from "./small-linear-algebra.ts";
 import { checkInput, MIN_EDGES, type CheckedInput } from "./validate-input.ts";
-import { ringExtent, tailEnd, tailSelects } from "./ring-end.ts";
+import { offsetThresholds, ringExtent, tailEnd, tailSelects } from "./ring-end.ts";
 import { decayProfile, type ProfilePoint } from "./decay-profile.ts";
 import { correctionCovariance, delayEffectSd, edgeDelays, jointTimingStep, rampReach, ringSlopeAt, skewStep, type ComparatorTiming, type LinearFit, type TimingDelays } from "./comparator-timing.ts";
 import { AnalysisError, type RingAnalysis, type RingInput, type Warning } from "./types.ts";
@@ -48,8 +48,9 @@ export interface FitState {
   p: Float64Array;
   /** Covariance of p (4 x 4). */
   cov: Float64Array;
+  /** Residual per edge at p, volts (edge-model.ts); NaN for an edge without a half-cycle index. */
   r: Float64Array;
-  /** d r / d p at p, row-major n x 4. */
+  /** d r / d p at p, row-major n x 4 (a zero row for an edge without an index). */
   jac: Float64Array;
   slope: Float64Array;
   variance: Float64Array;
@@ -309,7 +310,7 @@ function noiseTail(c: CheckedInput, timing: ComparatorTiming | undefined): { c: 
   }
   const sigma = Math.max(timing.noise_v ?? 0, Math.sqrt(first.noise.sigma_v2));
   const vmax = Math.max(c.vh_v, -c.vl_v);
-  if (!tailSelects(first.p[P_WD], vmax, sigma, timing.noise_bw_hz!)) return none;
+  if (!offsetThresholds(c.vh_v, c.vl_v) || !tailSelects(first.p[P_WD], vmax, sigma, timing.noise_bw_hz!)) return none;
   const tail = tailEnd(c.t_s, first.p[P_LNA], first.p[P_ALPHA], vmax, sigma);
   if (tail >= n || tail < MIN_EDGES) return none;
   return { c: { ...c, t_s: c.t_s.slice(0, tail), rising: c.rising.slice(0, tail), ring_ended: false }, tail };

@@ -192,8 +192,10 @@ describe("chatter once the hysteresis is narrow against the noise", () => {
     const timing: ComparatorTiming = { skew_s: 0, skew_u_s: 0, noise_bw_hz: 2e6, noise_v: 0.6e-3 };
     const j = judge(part, 8, (s) => capture(part, { noise_v: 1.8e-3 }, s, timing));
     for (const a of j.results) expect(a.warnings.map((w) => w.code)).toContain("THRESHOLD_IN_NOISE");
-    expect(j.q_covered).toBeGreaterThanOrEqual(6 / 8);
-    expect(j.l_covered).toBeGreaterThanOrEqual(6 / 8);
+    // With the first-passage shifts' Type B at 25 % although the noise had to be read from the
+    // scatter (three times the caller's), L was covered in 6 of these 8 seeds.
+    expect(j.q_covered).toBeGreaterThanOrEqual(7 / 8);
+    expect(j.l_covered).toBeGreaterThanOrEqual(7 / 8);
     expect(Math.abs(j.q_bias_over_u)).toBeLessThan(0.5);
   });
 });

@@ -56,6 +56,13 @@ export interface ComparatorTiming {
  * with it.
  */
 export const FIRST_PASSAGE_U_REL = 0.25;
+/**
+ * ... and this much when the noise rms behind the shifts had to be read from the edges' scatter
+ * (larger than the caller's value: firstPassageSigma), which rests on the table's spread ratio at
+ * the fitted slopes; the shift grows about as sigma^1.3 near x = 1 (bench practice, no source: at
+ * three times the board's noise a 34 kHz Q 1000 ring's U(Q) covered 84 % of the seeds with 25 %).
+ */
+export const FIRST_PASSAGE_U_REL_READ = 0.5;
 
 // Mean first-passage shift of ramp + stationary first-order (Ornstein-Uhlenbeck) noise across a
 // fixed level, against the ramp's own crossing, in units of tau, for x = S tau / sigma; and the
@@ -108,6 +115,8 @@ export interface TimingDelays {
   /** First-passage shift per edge (negative), overdrive delay per edge. */
   fp_s: Float64Array;
   od_s: Float64Array;
+  /** The noise rms behind fp_s was read from the scatter, above the caller's value. */
+  noise_read?: boolean;
 }
 
 /**
@@ -126,7 +135,9 @@ export function edgeDelays(
   const n = slope.length;
   const tau = timing.noise_bw_hz && timing.noise_bw_hz > 0 ? 1 / (2 * Math.PI * timing.noise_bw_hz) : 0;
   if (tau > 0 && other_var_s2 !== undefined) sigma_v = firstPassageSigma(slope, clean, sigma_v, tau, other_var_s2);
-  if (timing.noise_v !== undefined && timing.noise_v >= 0) sigma_v = Math.max(sigma_v, timing.noise_v);
+  const given = timing.noise_v !== undefined && timing.noise_v >= 0 ? timing.noise_v : 0;
+  const read = sigma_v > given;
+  sigma_v = Math.max(sigma_v, given);
   const fp = new Float64Array(n);
   const od = new Float64Array(n);
   const q = timing.overdrive_v_s ?? 0;
@@ -138,7 +149,7 @@ export function edgeDelays(
     if (tau > 0 && sigma_v > 0) fp[k] = Math.max(-max_s[k], tau * firstPassageShift(Math.max((s * tau) / sigma_v, FP_X[0])));
     if (q > 0) od[k] = Math.min(max_s[k], Math.sqrt((2 * q) / Math.max(s, floor)));
   }
-  return { fp_s: fp, od_s: od };
+  return { fp_s: fp, od_s: od, noise_read: read };
 }
 
 /**
@@ -374,7 +385,7 @@ export function jointTimingStep(
     for (let i = 0; i < 4; i++) for (let j = 0; j < 4; j++) added[4 * i + j] += sens[i] * sens[j] * u * u;
   };
   // A delay d_k moves residual k by -slope_k d_k.
-  addTypeB((k) => -f.slope[k] * d.fp_s[k], FIRST_PASSAGE_U_REL);
+  addTypeB((k) => -f.slope[k] * d.fp_s[k], d.noise_read ? FIRST_PASSAGE_U_REL_READ : FIRST_PASSAGE_U_REL);
   const q = timing.overdrive_v_s ?? 0;
   if (q > 0) addTypeB((k) => (-f.slope[k] * d.od_s[k]) / (2 * q), timing.overdrive_u_v_s ?? 0.5 * q);
   if (unapplied) addTypeB((k) => -f.slope[k] * (unapplied.fp_s[k] + unapplied.od_s[k] - d.fp_s[k] - d.od_s[k]), 1);

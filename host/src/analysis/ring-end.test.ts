@@ -2,7 +2,7 @@
 
 import { describe, expect, it } from "vitest";
 import { Random } from "../sim/random.ts";
-import { ringExtent, tailEnd, tailSelects } from "./ring-end.ts";
+import { offsetThresholds, ringExtent, tailEnd, tailSelects } from "./ring-end.ts";
 
 /** Alternating edges of a 10 µs ring, with `extra(k, rng)` extra close pairs after edge k. */
 function edges(n: number, extra: (k: number, rng: Random) => boolean, seed = 1): { t: number[]; rising: number[] } {
@@ -65,5 +65,14 @@ describe("tailSelects", () => {
     expect(tailSelects(2 * Math.PI * 16e3, 0.035, 1.8e-3, 2e6)).toBe(true);
     expect(tailSelects(2 * Math.PI * 503e3, 0.02, 0.6e-3, 2e6)).toBe(false);
     expect(tailSelects(2 * Math.PI * 16e3, 0.035, 0, 2e6)).toBe(false);
+  });
+});
+
+describe("offsetThresholds", () => {
+  it("tells the board's offset thresholds from symmetric ones", () => {
+    expect(offsetThresholds(0.035, -0.005)).toBe(true);
+    expect(offsetThresholds(0.0035, -0.0005)).toBe(true);
+    expect(offsetThresholds(0.02, -0.02)).toBe(false);
+    expect(offsetThresholds(0.021, -0.019)).toBe(false);
   });
 });

@@ -63,6 +63,8 @@ export interface CaptureComparator {
   skew_source: "calibration" | "board profile";
   noise_bw_hz?: number;
   noise_v?: number;
+  /** Which noise the first-passage correction uses: the board's (or the fit's, if larger), or the fit's alone. */
+  noise_source?: "board profile" | "fit";
   overdrive_v_s?: number;
   overdrive_u_v_s?: number;
 }
