@@ -36,7 +36,7 @@ export const MIN_CAL_EDGES = 20;
 export const MIN_TICKS_PER_PERIOD = 40;
 
 /** Errors that mean "this drive does not suit the part on this tank", so try another. */
-const NEXT_DRIVE = new Set<ErrorCode>([ErrorCode.SETTING_UNSAFE, ErrorCode.SETTING_UNSUITED, ErrorCode.CHARGE_LIMIT, ErrorCode.PEAK_LIMIT, ...NO_USABLE_RING]);
+const NEXT_DRIVE = new Set<ErrorCode>([ErrorCode.SETTING_UNSAFE, ErrorCode.CHARGE_LIMIT, ErrorCode.PEAK_LIMIT, ...NO_USABLE_RING]);
 
 export function driveOrder(client: DeviceClient, prefer?: number): number[] {
   const byOhm = client.profile.drives.map((d) => d.index).sort((a, b) => client.profile.drives[a].ohm - client.profile.drives[b].ohm);
