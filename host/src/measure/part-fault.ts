@@ -15,7 +15,7 @@ import { MEASURABLE_L_H } from "../values/range.ts";
 import { isAnalysisFailure, WarningCode, type PartFaultCode } from "../codes.ts";
 import type { Reading } from "./measure-part.ts";
 import { edgesOf } from "../capture/edge-list.ts";
-import { frequencySwing } from "./frequency-swing.ts";
+import { frequencySwingWithU } from "./frequency-swing.ts";
 import { MeasureError, analyzeCapture, fitCapture } from "./read-once.ts";
 
 export type { PartFaultCode } from "../codes.ts";
@@ -53,6 +53,16 @@ export const CLIP_CLAMP_RATIO = 0.7;
  * so a value quoted to that accuracy is not an average over a changing part.
  */
 export const SATURATION_SWING_REL = 1e-3;
+/**
+ * ... and only when the swing is also this many of its own standard uncertainties away from zero
+ * (frequency-swing.ts: from the edges' timing noise and the number of edges it is fitted over).
+ * A swing fitted over a short, fast ring scatters by a few hundred ppm on a part that cannot
+ * saturate; 4 standard uncertainties, the analysis's own FREQUENCY_DRIFT level, put a
+ * part with no swing at a false refusal of about 6 in 100 000 readings (two-sided, normal
+ * scatter), while a real swing over the 0.1 % limit is refused as soon as the ring measures it
+ * to a quarter of its size.
+ */
+export const SATURATION_SWING_Z = 4;
 /** Ring still this many times the comparator threshold at the end of a timed-out window: outlasting it. */
 export const OUTLAST_THRESHOLD_RATIO = 3;
 /** A buffer-full capture outlasts its window only when the ring has not even halved across it. */
@@ -194,16 +204,30 @@ function ringAtEnd(r: Reading): { end_ratio: number; decay: number } {
   return { end_ratio: aLast / vStop, decay: aLast / a.amplitude_v };
 }
 
+type Swing = { df_rel: number; df_rel_u: number; over: string };
+
+/** Over the 0.1 % limit on L and SATURATION_SWING_Z standard uncertainties from zero. */
+const significant = (sw: Swing | undefined): sw is Swing =>
+  sw !== undefined && 2 * Math.abs(sw.df_rel) > SATURATION_SWING_REL && Math.abs(sw.df_rel) > SATURATION_SWING_Z * sw.df_rel_u;
+
 /**
- * The frequency change over the whole ring (frequency-swing.ts), from the capture's fit; the
- * analysis's drift figure when the capture gives no better one.
+ * The frequency swing that shows saturation, or undefined: the swing over the whole ring
+ * (frequency-swing.ts, from the capture's fit) when it is significant, else the analysis's
+ * drift figure when that is. The drift figure covers only the edges the fit kept and so
+ * understates a swing, but on a ring with many rejected or missing edges it is the far more
+ * precise of the two; either one over the limit and its uncertainty is a refusal.
  */
-function ringFrequencySwing(r: Reading, drift_df_rel: number): number {
+function saturationSwing(r: Reading, drift: { df_rel: number; df_rel_u: number }): Swing | undefined {
+  let whole: Swing | undefined;
   try {
-    return frequencySwing(fitCapture(r.capture).fit) ?? drift_df_rel;
+    const sw = frequencySwingWithU(fitCapture(r.capture).fit);
+    whole = sw && { ...sw, over: "from the first edge to the last" };
   } catch {
-    return drift_df_rel;
+    whole = undefined;
   }
+  if (significant(whole)) return whole;
+  const kept = { ...drift, over: "over the edges the fit kept" };
+  return significant(kept) ? kept : undefined;
 }
 
 const has = (r: Reading, code: WarningCode) => r.analysis.warnings.some((w) => w.code === code);
@@ -239,13 +263,14 @@ export function judgeReading(r: Reading, profile: TesterLimits): PartFault | nul
       message: `the first cycle was clipped: the ring started at about ${a.amplitude_v.toFixed(1)} V, at the ${profile.clamp_v} V clamp, and its first edges sit off the ring model, so the value (about ${L}) rests on a distorted ring. The part carries more current or has more inductance than the setting was chosen for: lower the drive current (a larger drive resistor, a shorter charge_us) or ${fixedAdvice}, then measure again`,
     };
   }
-  const df = has(r, WarningCode.FREQUENCY_DRIFT) && a.drift ? ringFrequencySwing(r, a.drift.df_rel) : 0;
-  if (2 * Math.abs(df) > SATURATION_SWING_REL) {
+  const sw = has(r, WarningCode.FREQUENCY_DRIFT) && a.drift ? saturationSwing(r, a.drift) : undefined;
+  if (sw) {
+    const df = sw.df_rel;
     const ppm = df * 1e6;
     const swing = 2 * Math.abs(df) * 100;
     return {
       code: "CORE_SATURATING",
-      message: `the inductance changes with the current: the ring frequency ${ppm < 0 ? "falls" : "rises"} by ${Math.abs(ppm).toFixed(0)} ppm from the first edge to the last, so L swings by ${swing.toFixed(2)} % within one ring (about ${L} on average) — the core is near saturation at ${a.amplitude_v.toFixed(2)} V of ring. Lower the drive current (a larger drive resistor or a shorter charge_us; with automatic ranging, a lower max_peak_v) or ${fixedAdvice}; if parts with air cores drift the same way, the tester's tank capacitor is voltage dependent (it must be C0G/film)`,
+      message: `the inductance changes with the current: the ring frequency ${ppm < 0 ? "falls" : "rises"} by ${Math.abs(ppm).toFixed(0)} ± ${(sw.df_rel_u * 1e6).toFixed(0)} ppm (standard uncertainty) ${sw.over}, so L swings by ${swing.toFixed(2)} % within one ring (about ${L} on average) — the core is near saturation at ${a.amplitude_v.toFixed(2)} V of ring. Lower the drive current (a larger drive resistor or a shorter charge_us; with automatic ranging, a lower max_peak_v) or ${fixedAdvice}; if parts with air cores drift the same way, the tester's tank capacitor is voltage dependent (it must be C0G/film)`,
     };
   }
   // Rejected edges alone are no diagnosis (a clean low-Q ring loses a few at its start and end):

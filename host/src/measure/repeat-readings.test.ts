@@ -60,15 +60,15 @@ describe("repeated readings on a fixed setting", () => {
   });
 
   it("gives a reading's part fault as its outcome, in its place, and goes on", async () => {
-    // The X7R tank on the 100 Ω drive: some readings show a saturating core (CORE_SATURATING), others not.
+    // The X7R tank on the 100 Ω drive: its capacitance falls with the ring voltage, the frequency
+    // drifts by about -950 ± 150 ppm over the kept edges (L by 0.19 %), and every reading is
+    // refused CORE_SATURATING; the repetition gives each refusal in its place and goes on.
     const target = { scenario: "x7r-tank-mixup" };
     const loop = await loopOf(target, 6, { drive: 1, tank: 1 });
     const repeated = await repeatedOf(target, 6, { drive: 1, tank: 1 }, true);
     expect(repeated).toEqual(loop);
     const codes = repeated.map((o) => (o as { code?: string }).code ?? "ok");
-    expect(codes).toContain("CORE_SATURATING");
-    expect(codes.indexOf("ok")).toBeGreaterThanOrEqual(0);
-    expect(codes.lastIndexOf("ok")).toBeGreaterThan(codes.indexOf("CORE_SATURATING"));
+    expect(codes).toEqual(Array(6).fill("CORE_SATURATING"));
   });
 
   it("ends on an abort with every whole capture given, and the tester reads again", async () => {
