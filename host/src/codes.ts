@@ -74,7 +74,6 @@ export const ANALYSIS_ERROR_MEANINGS = {
 export const MEASURE_ERROR_MEANINGS = {
   NO_SETTING: "no setting of the tester suits the part within the limits",
   SETTING_UNSAFE: "the setting asked for would pass a safety limit; it was not pulsed",
-  SETTING_UNSUITED: "the setting asked for gave no usable ring, as the advice predicted for the part (too few edges, edges too fast)",
   PEAK_LIMIT: "the ring would pass the peak-voltage limit",
   CHARGE_LIMIT: "the charge time exceeds the drive resistor's interlock (also the tester's own refusal)",
   ABORTED: "the reading was aborted; the switch is open",

@@ -25,6 +25,8 @@ export type { FrequencyChoice } from "./ranging/choose-setting.ts";
 export type { MeasureEvent, MeasurePhase, PulseEvent, StepEvent, CautionEvent, DoneEvent, SettingInfo } from "./measure/events.ts";
 export { buildResult, readingResult } from "./measure/result.ts";
 export type { ResultJson } from "./measure/result.ts";
+export { measureWithReport, reportReading, readingBudget, selfCapacitanceJson } from "./measure/reading-report.ts";
+export type { ReadingReport, ReadingReportOptions, SelfCapacitanceJson } from "./measure/reading-report.ts";
 export { readCaptureFile, writeCaptureFile, parseCapture, CaptureFileError, MAX_CAPTURE_EDGES, MAX_CAPTURE_BYTES } from "./capture/capture-file.ts";
 export { writeFileAtomic, FileWriteError } from "./fs/atomic-write.ts";
 export { checkCapturePlausible, checkReadingPlausible, checkProfileAgainstBoard, ImplausibleError } from "./measure/plausibility.ts";

@@ -3,12 +3,12 @@
 // code). Do not edit: change the schema and run npm run build.
 
 export const capture = validate20;
-const schema31 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:capture:1","title":"henrytick capture file, version 1","description":"The edge record of one ring-down with everything needed to analyse it again (docs/capture-format.md). Units are SI and in the key names. Rules a schema cannot state (rising threshold above the falling one, edge ticks non-decreasing) are checked by the reader too.","type":"object","required":["format","version","tick_hz","edges","tank_c_f","thresholds_v"],"properties":{"format":{"const":"henrytick-capture"},"version":{"const":1},"tick_hz":{"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"},"edges":{"type":"array","description":"[tick, level] pairs: integer ticks since the switch opened, non-decreasing; level 1 after a rising edge, 0 after a falling edge","items":{"description":"[tick, level]","type":"array","prefixItems":[{"type":"integer","minimum":0,"maximum":9007199254740991},{"enum":[0,1]}],"minItems":2,"maxItems":2}},"tank_c_f":{"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"},"tank_c_u_f":{"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"},"thresholds_v":{"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2},"drive":{"$ref":"#/$defs/drive"},"range":{"$ref":"#/$defs/range"},"device":{"$ref":"#/$defs/device"},"meta":{"type":"object","properties":{"label":{"type":"string"},"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"end_reason":{"enum":["quiet","full","timeout","no-edges"]}}},"calibration":{"$ref":"#/$defs/calibration"},"comparator":{"$ref":"#/$defs/comparator"},"reading_warnings":{"type":"array","description":"warnings the reading added to the analysis's own (automatic ranging's); a re-analysis gives them again","items":{"$ref":"#/$defs/warning"}}},"$defs":{"drive":{"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the front end's clamp voltage, the ring's ceiling"}}},"range":{"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}},"device":{"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}},"calibration":{"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0},"comparator_skew_s":{"type":"number","description":"the comparator's calibrated rise/fall delay skew (rising minus falling propagation delay), seconds"},"comparator_skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of comparator_skew_s, seconds"},"lead_inductance_h":{"type":"number","minimum":0,"description":"the test leads' series inductance subtracted from the ring's inductance (calibrate short)"},"lead_u_h":{"type":"number","minimum":0,"description":"standard uncertainty of lead_inductance_h"},"fixture_capacitance_f":{"type":"number","description":"the fixture's capacitance (calibrate open) added to the tank's value in tank_c_f, because the tank's value did not hold it; farads"},"fixture_u_f":{"type":"number","minimum":0,"description":"standard uncertainty of fixture_capacitance_f (the budget's fixture line)"}}},"warning":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}},"comparator":{"type":"object","description":"the comparator timing the analysis applied to the edge times (docs/method.md §2a): the skew prior, and from the tester's board profile the input noise's bandwidth and rms and the overdrive charge; a re-analysis applies exactly these","required":["skew_s","skew_u_s","skew_source"],"properties":{"skew_s":{"type":"number","description":"rising minus falling propagation delay, seconds (best estimate)"},"skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of skew_s, seconds"},"skew_source":{"enum":["calibration","board profile"],"description":"where skew_s comes from"},"noise_bw_hz":{"type":"number","exclusiveMinimum":0,"description":"first-order bandwidth of the comparator's input noise (the board's); absent: no first-passage correction"},"noise_v":{"type":"number","exclusiveMinimum":0,"description":"rms of that noise referred to the ring (the board's); the larger of it and the fit's estimate is used; absent: the fit's estimate alone"},"overdrive_v_s":{"type":"number","exclusiveMinimum":0,"description":"overdrive charge of the comparator's input stage, volt-seconds (the board's)"},"overdrive_u_v_s":{"type":"number","minimum":0,"description":"standard uncertainty of overdrive_v_s"}}}}};
+const schema31 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:henrytick:schema:capture:1","title":"henrytick capture file, version 1","description":"The edge record of one ring-down with everything needed to analyse it again (docs/capture-format.md). Units are SI and in the key names. Rules a schema cannot state (rising threshold above the falling one, edge ticks non-decreasing) are checked by the reader too.","type":"object","required":["format","version","tick_hz","edges","tank_c_f","thresholds_v"],"properties":{"format":{"const":"henrytick-capture"},"version":{"const":1},"tick_hz":{"type":"number","exclusiveMinimum":0,"description":"capture timer tick rate"},"edges":{"type":"array","description":"[tick, level] pairs: integer ticks since the switch opened, non-decreasing; level 1 after a rising edge, 0 after a falling edge","items":{"description":"[tick, level]","type":"array","prefixItems":[{"type":"integer","minimum":0,"maximum":9007199254740991},{"enum":[0,1]}],"minItems":2,"maxItems":2}},"tank_c_f":{"type":"number","exclusiveMinimum":0,"description":"capacitance across the part during the ring, nominal or calibrated"},"tank_c_u_f":{"type":"number","exclusiveMinimum":0,"description":"standard uncertainty of tank_c_f"},"thresholds_v":{"type":"array","description":"[rising, falling] in volts: the comparator thresholds referred to the ring voltage, rising above falling","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2},"drive":{"$ref":"#/$defs/drive"},"range":{"$ref":"#/$defs/range"},"device":{"$ref":"#/$defs/device"},"meta":{"type":"object","properties":{"label":{"type":"string"},"time":{"type":"string","pattern":"^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$","description":"an ISO 8601 time (RFC 3339 form, as 2026-12-04T19:06:22.201Z)"},"end_reason":{"enum":["quiet","full","timeout","no-edges"]}}},"calibration":{"$ref":"#/$defs/calibration"},"comparator":{"$ref":"#/$defs/comparator"},"reading_warnings":{"type":"array","description":"warnings the reading added to the analysis's own (automatic ranging's); a re-analysis gives them again","items":{"$ref":"#/$defs/warning"}}},"$defs":{"drive":{"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the front end's clamp voltage, the ring's ceiling"}}},"range":{"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}},"device":{"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}},"calibration":{"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0},"comparator_skew_s":{"type":"number","description":"the comparator's calibrated rise/fall delay skew (rising minus falling propagation delay), seconds"},"comparator_skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of comparator_skew_s, seconds"},"lead_inductance_h":{"type":"number","minimum":0,"description":"the test leads' series inductance subtracted from the ring's inductance (calibrate short)"},"lead_u_h":{"type":"number","minimum":0,"description":"standard uncertainty of lead_inductance_h"},"fixture_capacitance_f":{"type":"number","description":"the fixture's capacitance (calibrate open) added to the tank's value in tank_c_f, because the tank's value did not hold it; farads"},"fixture_u_f":{"type":"number","minimum":0,"description":"standard uncertainty of fixture_capacitance_f (the budget's fixture line)"}}},"warning":{"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}},"comparator":{"type":"object","description":"the comparator timing the analysis applied to the edge times (docs/method.md §2a): the skew prior, and from the tester's board profile the input noise's bandwidth and rms and the overdrive charge; a re-analysis applies exactly these","required":["skew_s","skew_u_s","skew_source"],"properties":{"skew_s":{"type":"number","description":"rising minus falling propagation delay, seconds (best estimate)"},"skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of skew_s, seconds"},"skew_source":{"enum":["calibration","board profile"],"description":"where skew_s comes from"},"noise_bw_hz":{"type":"number","exclusiveMinimum":0,"description":"first-order bandwidth of the comparator's input noise (the board's); absent: no first-passage correction"},"noise_v":{"type":"number","exclusiveMinimum":0,"description":"rms of that noise referred to the ring (the board's); the larger of it and the fit's estimate is used; absent: the fit's estimate alone"},"noise_source":{"enum":["board profile","fit"],"description":"which noise the first-passage correction uses: 'board profile', the larger of noise_v and the noise the fit's scatter implies; 'fit', the board states none and the fit's alone stands in"},"overdrive_v_s":{"type":"number","exclusiveMinimum":0,"description":"overdrive charge of the comparator's input stage, volt-seconds (the board's)"},"overdrive_u_v_s":{"type":"number","minimum":0,"description":"standard uncertainty of overdrive_v_s"}}}}};
 const schema32 = {"type":"object","required":["supply_v","series_ohm"],"properties":{"supply_v":{"type":"number","exclusiveMinimum":0},"series_ohm":{"type":"number","exclusiveMinimum":0},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the front end's clamp voltage, the ring's ceiling"}}};
 const schema33 = {"type":"object","description":"the setting as sent to the tester","required":["drive_index","tank_index","charge_us","edge_limit","timeout_ms","quiet_us"],"properties":{"drive_index":{"type":"integer","minimum":0},"tank_index":{"type":"integer","minimum":0},"charge_us":{"type":"number","minimum":0},"edge_limit":{"type":"integer","minimum":0},"timeout_ms":{"type":"number","minimum":0},"quiet_us":{"type":"number","minimum":0}}};
 const schema34 = {"type":"object","required":["id","firmware_version","protocol_version","transport"],"properties":{"id":{"type":"string"},"firmware_version":{"type":"string"},"protocol_version":{"type":"integer","minimum":0},"transport":{"type":"string"},"clamp_v":{"type":"number","exclusiveMinimum":0,"description":"the tester's clamp voltage (its profile's), for judging the capture for part faults"},"max_timeout_ms":{"type":"number","exclusiveMinimum":0,"description":"the tester's longest capture window (its profile's)"}}};
 const schema35 = {"type":"object","description":"which values tank_c_f, thresholds_v and tick_hz came from; tick_hz is nominal_tick_hz corrected by timebase_ppm","required":["source","tank_calibrated","nominal_tank_c_f","nominal_tick_hz","timebase_ppm"],"properties":{"source":{"type":"string"},"tank_calibrated":{"type":"boolean"},"nominal_tank_c_f":{"type":"number","exclusiveMinimum":0},"nominal_tick_hz":{"type":"number","exclusiveMinimum":0},"timebase_ppm":{"type":"number"},"timebase_u_ppm":{"type":"number","minimum":0},"comparator_skew_s":{"type":"number","description":"the comparator's calibrated rise/fall delay skew (rising minus falling propagation delay), seconds"},"comparator_skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of comparator_skew_s, seconds"},"lead_inductance_h":{"type":"number","minimum":0,"description":"the test leads' series inductance subtracted from the ring's inductance (calibrate short)"},"lead_u_h":{"type":"number","minimum":0,"description":"standard uncertainty of lead_inductance_h"},"fixture_capacitance_f":{"type":"number","description":"the fixture's capacitance (calibrate open) added to the tank's value in tank_c_f, because the tank's value did not hold it; farads"},"fixture_u_f":{"type":"number","minimum":0,"description":"standard uncertainty of fixture_capacitance_f (the budget's fixture line)"}}};
-const schema36 = {"type":"object","description":"the comparator timing the analysis applied to the edge times (docs/method.md §2a): the skew prior, and from the tester's board profile the input noise's bandwidth and rms and the overdrive charge; a re-analysis applies exactly these","required":["skew_s","skew_u_s","skew_source"],"properties":{"skew_s":{"type":"number","description":"rising minus falling propagation delay, seconds (best estimate)"},"skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of skew_s, seconds"},"skew_source":{"enum":["calibration","board profile"],"description":"where skew_s comes from"},"noise_bw_hz":{"type":"number","exclusiveMinimum":0,"description":"first-order bandwidth of the comparator's input noise (the board's); absent: no first-passage correction"},"noise_v":{"type":"number","exclusiveMinimum":0,"description":"rms of that noise referred to the ring (the board's); the larger of it and the fit's estimate is used; absent: the fit's estimate alone"},"overdrive_v_s":{"type":"number","exclusiveMinimum":0,"description":"overdrive charge of the comparator's input stage, volt-seconds (the board's)"},"overdrive_u_v_s":{"type":"number","minimum":0,"description":"standard uncertainty of overdrive_v_s"}}};
+const schema36 = {"type":"object","description":"the comparator timing the analysis applied to the edge times (docs/method.md §2a): the skew prior, and from the tester's board profile the input noise's bandwidth and rms and the overdrive charge; a re-analysis applies exactly these","required":["skew_s","skew_u_s","skew_source"],"properties":{"skew_s":{"type":"number","description":"rising minus falling propagation delay, seconds (best estimate)"},"skew_u_s":{"type":"number","minimum":0,"description":"standard uncertainty of skew_s, seconds"},"skew_source":{"enum":["calibration","board profile"],"description":"where skew_s comes from"},"noise_bw_hz":{"type":"number","exclusiveMinimum":0,"description":"first-order bandwidth of the comparator's input noise (the board's); absent: no first-passage correction"},"noise_v":{"type":"number","exclusiveMinimum":0,"description":"rms of that noise referred to the ring (the board's); the larger of it and the fit's estimate is used; absent: the fit's estimate alone"},"noise_source":{"enum":["board profile","fit"],"description":"which noise the first-passage correction uses: 'board profile', the larger of noise_v and the noise the fit's scatter implies; 'fit', the board states none and the fit's alone stands in"},"overdrive_v_s":{"type":"number","exclusiveMinimum":0,"description":"overdrive charge of the comparator's input stage, volt-seconds (the board's)"},"overdrive_u_v_s":{"type":"number","minimum":0,"description":"standard uncertainty of overdrive_v_s"}}};
 const schema37 = {"type":"object","required":["code","message"],"properties":{"code":{"type":"string","pattern":"^[A-Z][A-Z0-9_]*$","description":"a stable upper-case code (docs/codes.md)"},"message":{"type":"string"}}};
 const pattern4 = new RegExp("^[0-9]{4}-[0-9]{2}-[0-9]{2}[Tt][0-9]{2}:[0-9]{2}:[0-9]{2}(\\.[0-9]+)?([Zz]|[+-][0-9]{2}:[0-9]{2})$", "u");
 const pattern5 = new RegExp("^[A-Z][A-Z0-9_]*$", "u");
@@ -1041,20 +1041,12 @@ else {
 var valid14 = true;
 }
 if(valid14){
-if(data47.overdrive_v_s !== undefined){
-let data53 = data47.overdrive_v_s;
+if(data47.noise_source !== undefined){
+let data53 = data47.noise_source;
 const _errs107 = errors;
-if(errors === _errs107){
-if((typeof data53 == "number") && (isFinite(data53))){
-if(data53 <= 0 || isNaN(data53)){
-validate20.errors = [{instancePath:instancePath+"/comparator/overdrive_v_s",schemaPath:"#/$defs/comparator/properties/overdrive_v_s/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.overdrive_v_s,data:data53}];
+if(!((data53 === "board profile") || (data53 === "fit"))){
+validate20.errors = [{instancePath:instancePath+"/comparator/noise_source",schemaPath:"#/$defs/comparator/properties/noise_source/enum",keyword:"enum",params:{allowedValues: schema36.properties.noise_source.enum},message:"must be equal to one of the allowed values",schema:schema36.properties.noise_source.enum,parentSchema:schema36.properties.noise_source,data:data53}];
 return false;
-}
-}
-else {
-validate20.errors = [{instancePath:instancePath+"/comparator/overdrive_v_s",schemaPath:"#/$defs/comparator/properties/overdrive_v_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.overdrive_v_s.type,parentSchema:schema36.properties.overdrive_v_s,data:data53}];
-return false;
-}
 }
 var valid14 = _errs107 === errors;
 }
@@ -1062,25 +1054,47 @@ else {
 var valid14 = true;
 }
 if(valid14){
-if(data47.overdrive_u_v_s !== undefined){
-let data54 = data47.overdrive_u_v_s;
-const _errs109 = errors;
-if(errors === _errs109){
+if(data47.overdrive_v_s !== undefined){
+let data54 = data47.overdrive_v_s;
+const _errs108 = errors;
+if(errors === _errs108){
 if((typeof data54 == "number") && (isFinite(data54))){
-if(data54 < 0 || isNaN(data54)){
-validate20.errors = [{instancePath:instancePath+"/comparator/overdrive_u_v_s",schemaPath:"#/$defs/comparator/properties/overdrive_u_v_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.overdrive_u_v_s,data:data54}];
+if(data54 <= 0 || isNaN(data54)){
+validate20.errors = [{instancePath:instancePath+"/comparator/overdrive_v_s",schemaPath:"#/$defs/comparator/properties/overdrive_v_s/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.overdrive_v_s,data:data54}];
 return false;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/comparator/overdrive_u_v_s",schemaPath:"#/$defs/comparator/properties/overdrive_u_v_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.overdrive_u_v_s.type,parentSchema:schema36.properties.overdrive_u_v_s,data:data54}];
+validate20.errors = [{instancePath:instancePath+"/comparator/overdrive_v_s",schemaPath:"#/$defs/comparator/properties/overdrive_v_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.overdrive_v_s.type,parentSchema:schema36.properties.overdrive_v_s,data:data54}];
 return false;
 }
 }
-var valid14 = _errs109 === errors;
+var valid14 = _errs108 === errors;
 }
 else {
 var valid14 = true;
+}
+if(valid14){
+if(data47.overdrive_u_v_s !== undefined){
+let data55 = data47.overdrive_u_v_s;
+const _errs110 = errors;
+if(errors === _errs110){
+if((typeof data55 == "number") && (isFinite(data55))){
+if(data55 < 0 || isNaN(data55)){
+validate20.errors = [{instancePath:instancePath+"/comparator/overdrive_u_v_s",schemaPath:"#/$defs/comparator/properties/overdrive_u_v_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.overdrive_u_v_s,data:data55}];
+return false;
+}
+}
+else {
+validate20.errors = [{instancePath:instancePath+"/comparator/overdrive_u_v_s",schemaPath:"#/$defs/comparator/properties/overdrive_u_v_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.overdrive_u_v_s.type,parentSchema:schema36.properties.overdrive_u_v_s,data:data55}];
+return false;
+}
+}
+var valid14 = _errs110 === errors;
+}
+else {
+var valid14 = true;
+}
 }
 }
 }
@@ -1102,53 +1116,53 @@ var valid0 = true;
 }
 if(valid0){
 if(data.reading_warnings !== undefined){
-let data55 = data.reading_warnings;
-const _errs111 = errors;
-if(errors === _errs111){
-if(Array.isArray(data55)){
+let data56 = data.reading_warnings;
+const _errs112 = errors;
+if(errors === _errs112){
+if(Array.isArray(data56)){
 var valid15 = true;
-const len3 = data55.length;
+const len3 = data56.length;
 for(let i1=0; i1<len3; i1++){
-let data56 = data55[i1];
-const _errs113 = errors;
+let data57 = data56[i1];
 const _errs114 = errors;
-if(errors === _errs114){
-if(data56 && typeof data56 == "object" && !Array.isArray(data56)){
+const _errs115 = errors;
+if(errors === _errs115){
+if(data57 && typeof data57 == "object" && !Array.isArray(data57)){
 let missing6;
-if(((data56.code === undefined) && (missing6 = "code")) || ((data56.message === undefined) && (missing6 = "message"))){
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/required",keyword:"required",params:{missingProperty: missing6},message:"must have required property '"+missing6+"'",schema:schema37.required,parentSchema:schema37,data:data56}];
+if(((data57.code === undefined) && (missing6 = "code")) || ((data57.message === undefined) && (missing6 = "message"))){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/required",keyword:"required",params:{missingProperty: missing6},message:"must have required property '"+missing6+"'",schema:schema37.required,parentSchema:schema37,data:data57}];
 return false;
 }
 else {
-if(data56.code !== undefined){
-let data57 = data56.code;
-const _errs116 = errors;
-if(errors === _errs116){
-if(typeof data57 === "string"){
-if(!pattern5.test(data57)){
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema37.properties.code,data:data57}];
+if(data57.code !== undefined){
+let data58 = data57.code;
+const _errs117 = errors;
+if(errors === _errs117){
+if(typeof data58 === "string"){
+if(!pattern5.test(data58)){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/pattern",keyword:"pattern",params:{pattern: "^[A-Z][A-Z0-9_]*$"},message:"must match pattern \""+"^[A-Z][A-Z0-9_]*$"+"\"",schema:"^[A-Z][A-Z0-9_]*$",parentSchema:schema37.properties.code,data:data58}];
 return false;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.code.type,parentSchema:schema37.properties.code,data:data57}];
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/code",schemaPath:"#/$defs/warning/properties/code/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.code.type,parentSchema:schema37.properties.code,data:data58}];
 return false;
 }
 }
-var valid17 = _errs116 === errors;
+var valid17 = _errs117 === errors;
 }
 else {
 var valid17 = true;
 }
 if(valid17){
-if(data56.message !== undefined){
-let data58 = data56.message;
-const _errs118 = errors;
-if(typeof data58 !== "string"){
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/message",schemaPath:"#/$defs/warning/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.message.type,parentSchema:schema37.properties.message,data:data58}];
+if(data57.message !== undefined){
+let data59 = data57.message;
+const _errs119 = errors;
+if(typeof data59 !== "string"){
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1+"/message",schemaPath:"#/$defs/warning/properties/message/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema37.properties.message.type,parentSchema:schema37.properties.message,data:data59}];
 return false;
 }
-var valid17 = _errs118 === errors;
+var valid17 = _errs119 === errors;
 }
 else {
 var valid17 = true;
@@ -1157,22 +1171,22 @@ var valid17 = true;
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.type,parentSchema:schema37,data:data56}];
+validate20.errors = [{instancePath:instancePath+"/reading_warnings/" + i1,schemaPath:"#/$defs/warning/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema37.type,parentSchema:schema37,data:data57}];
 return false;
 }
 }
-var valid15 = _errs113 === errors;
+var valid15 = _errs114 === errors;
 if(!valid15){
 break;
 }
 }
 }
 else {
-validate20.errors = [{instancePath:instancePath+"/reading_warnings",schemaPath:"#/properties/reading_warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema31.properties.reading_warnings.type,parentSchema:schema31.properties.reading_warnings,data:data55}];
+validate20.errors = [{instancePath:instancePath+"/reading_warnings",schemaPath:"#/properties/reading_warnings/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema31.properties.reading_warnings.type,parentSchema:schema31.properties.reading_warnings,data:data56}];
 return false;
 }
 }
-var valid0 = _errs111 === errors;
+var valid0 = _errs112 === errors;
 }
 else {
 var valid0 = true;
@@ -2350,20 +2364,12 @@ else {
 var valid19 = true;
 }
 if(valid19){
-if(data51.overdrive_v_s !== undefined){
-let data57 = data51.overdrive_v_s;
+if(data51.noise_source !== undefined){
+let data57 = data51.noise_source;
 const _errs123 = errors;
-if(errors === _errs123){
-if((typeof data57 == "number") && (isFinite(data57))){
-if(data57 <= 0 || isNaN(data57)){
-validate21.errors = [{instancePath:instancePath+"/settings/comparator/overdrive_v_s",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/overdrive_v_s/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.overdrive_v_s,data:data57}];
+if(!((data57 === "board profile") || (data57 === "fit"))){
+validate21.errors = [{instancePath:instancePath+"/settings/comparator/noise_source",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/noise_source/enum",keyword:"enum",params:{allowedValues: schema36.properties.noise_source.enum},message:"must be equal to one of the allowed values",schema:schema36.properties.noise_source.enum,parentSchema:schema36.properties.noise_source,data:data57}];
 return false;
-}
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/settings/comparator/overdrive_v_s",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/overdrive_v_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.overdrive_v_s.type,parentSchema:schema36.properties.overdrive_v_s,data:data57}];
-return false;
-}
 }
 var valid19 = _errs123 === errors;
 }
@@ -2371,25 +2377,47 @@ else {
 var valid19 = true;
 }
 if(valid19){
-if(data51.overdrive_u_v_s !== undefined){
-let data58 = data51.overdrive_u_v_s;
-const _errs125 = errors;
-if(errors === _errs125){
+if(data51.overdrive_v_s !== undefined){
+let data58 = data51.overdrive_v_s;
+const _errs124 = errors;
+if(errors === _errs124){
 if((typeof data58 == "number") && (isFinite(data58))){
-if(data58 < 0 || isNaN(data58)){
-validate21.errors = [{instancePath:instancePath+"/settings/comparator/overdrive_u_v_s",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/overdrive_u_v_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.overdrive_u_v_s,data:data58}];
+if(data58 <= 0 || isNaN(data58)){
+validate21.errors = [{instancePath:instancePath+"/settings/comparator/overdrive_v_s",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/overdrive_v_s/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema36.properties.overdrive_v_s,data:data58}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/settings/comparator/overdrive_u_v_s",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/overdrive_u_v_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.overdrive_u_v_s.type,parentSchema:schema36.properties.overdrive_u_v_s,data:data58}];
+validate21.errors = [{instancePath:instancePath+"/settings/comparator/overdrive_v_s",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/overdrive_v_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.overdrive_v_s.type,parentSchema:schema36.properties.overdrive_v_s,data:data58}];
 return false;
 }
 }
-var valid19 = _errs125 === errors;
+var valid19 = _errs124 === errors;
 }
 else {
 var valid19 = true;
+}
+if(valid19){
+if(data51.overdrive_u_v_s !== undefined){
+let data59 = data51.overdrive_u_v_s;
+const _errs126 = errors;
+if(errors === _errs126){
+if((typeof data59 == "number") && (isFinite(data59))){
+if(data59 < 0 || isNaN(data59)){
+validate21.errors = [{instancePath:instancePath+"/settings/comparator/overdrive_u_v_s",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/overdrive_u_v_s/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema36.properties.overdrive_u_v_s,data:data59}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/settings/comparator/overdrive_u_v_s",schemaPath:"urn:henrytick:schema:capture:1#/$defs/comparator/properties/overdrive_u_v_s/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema36.properties.overdrive_u_v_s.type,parentSchema:schema36.properties.overdrive_u_v_s,data:data59}];
+return false;
+}
+}
+var valid19 = _errs126 === errors;
+}
+else {
+var valid19 = true;
+}
 }
 }
 }
@@ -2430,114 +2458,114 @@ var valid0 = true;
 }
 if(valid0){
 if(data.device !== undefined){
-let data59 = data.device;
-const _errs127 = errors;
+let data60 = data.device;
 const _errs128 = errors;
-if(errors === _errs128){
-if(data59 && typeof data59 == "object" && !Array.isArray(data59)){
+const _errs129 = errors;
+if(errors === _errs129){
+if(data60 && typeof data60 == "object" && !Array.isArray(data60)){
 let missing8;
-if(((((data59.id === undefined) && (missing8 = "id")) || ((data59.firmware_version === undefined) && (missing8 = "firmware_version"))) || ((data59.protocol_version === undefined) && (missing8 = "protocol_version"))) || ((data59.transport === undefined) && (missing8 = "transport"))){
-validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/required",keyword:"required",params:{missingProperty: missing8},message:"must have required property '"+missing8+"'",schema:schema34.required,parentSchema:schema34,data:data59}];
+if(((((data60.id === undefined) && (missing8 = "id")) || ((data60.firmware_version === undefined) && (missing8 = "firmware_version"))) || ((data60.protocol_version === undefined) && (missing8 = "protocol_version"))) || ((data60.transport === undefined) && (missing8 = "transport"))){
+validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/required",keyword:"required",params:{missingProperty: missing8},message:"must have required property '"+missing8+"'",schema:schema34.required,parentSchema:schema34,data:data60}];
 return false;
 }
 else {
-if(data59.id !== undefined){
-let data60 = data59.id;
-const _errs130 = errors;
-if(typeof data60 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/id",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.id.type,parentSchema:schema34.properties.id,data:data60}];
-return false;
-}
-var valid21 = _errs130 === errors;
-}
-else {
-var valid21 = true;
-}
-if(valid21){
-if(data59.firmware_version !== undefined){
-let data61 = data59.firmware_version;
-const _errs132 = errors;
+if(data60.id !== undefined){
+let data61 = data60.id;
+const _errs131 = errors;
 if(typeof data61 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/firmware_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/firmware_version/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.firmware_version.type,parentSchema:schema34.properties.firmware_version,data:data61}];
+validate21.errors = [{instancePath:instancePath+"/device/id",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/id/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.id.type,parentSchema:schema34.properties.id,data:data61}];
 return false;
 }
-var valid21 = _errs132 === errors;
+var valid21 = _errs131 === errors;
 }
 else {
 var valid21 = true;
 }
 if(valid21){
-if(data59.protocol_version !== undefined){
-let data62 = data59.protocol_version;
-const _errs134 = errors;
-if(!(((typeof data62 == "number") && (!(data62 % 1) && !isNaN(data62))) && (isFinite(data62)))){
-validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema34.properties.protocol_version.type,parentSchema:schema34.properties.protocol_version,data:data62}];
+if(data60.firmware_version !== undefined){
+let data62 = data60.firmware_version;
+const _errs133 = errors;
+if(typeof data62 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/device/firmware_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/firmware_version/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.firmware_version.type,parentSchema:schema34.properties.firmware_version,data:data62}];
 return false;
 }
-if(errors === _errs134){
-if((typeof data62 == "number") && (isFinite(data62))){
-if(data62 < 0 || isNaN(data62)){
-validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema34.properties.protocol_version,data:data62}];
-return false;
-}
-}
-}
-var valid21 = _errs134 === errors;
+var valid21 = _errs133 === errors;
 }
 else {
 var valid21 = true;
 }
 if(valid21){
-if(data59.transport !== undefined){
-let data63 = data59.transport;
-const _errs136 = errors;
-if(typeof data63 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/device/transport",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/transport/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.transport.type,parentSchema:schema34.properties.transport,data:data63}];
+if(data60.protocol_version !== undefined){
+let data63 = data60.protocol_version;
+const _errs135 = errors;
+if(!(((typeof data63 == "number") && (!(data63 % 1) && !isNaN(data63))) && (isFinite(data63)))){
+validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema34.properties.protocol_version.type,parentSchema:schema34.properties.protocol_version,data:data63}];
 return false;
 }
-var valid21 = _errs136 === errors;
+if(errors === _errs135){
+if((typeof data63 == "number") && (isFinite(data63))){
+if(data63 < 0 || isNaN(data63)){
+validate21.errors = [{instancePath:instancePath+"/device/protocol_version",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/protocol_version/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema34.properties.protocol_version,data:data63}];
+return false;
+}
+}
+}
+var valid21 = _errs135 === errors;
 }
 else {
 var valid21 = true;
 }
 if(valid21){
-if(data59.clamp_v !== undefined){
-let data64 = data59.clamp_v;
-const _errs138 = errors;
-if(errors === _errs138){
-if((typeof data64 == "number") && (isFinite(data64))){
-if(data64 <= 0 || isNaN(data64)){
-validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.clamp_v,data:data64}];
+if(data60.transport !== undefined){
+let data64 = data60.transport;
+const _errs137 = errors;
+if(typeof data64 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/device/transport",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/transport/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema34.properties.transport.type,parentSchema:schema34.properties.transport,data:data64}];
 return false;
 }
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.clamp_v.type,parentSchema:schema34.properties.clamp_v,data:data64}];
-return false;
-}
-}
-var valid21 = _errs138 === errors;
+var valid21 = _errs137 === errors;
 }
 else {
 var valid21 = true;
 }
 if(valid21){
-if(data59.max_timeout_ms !== undefined){
-let data65 = data59.max_timeout_ms;
-const _errs140 = errors;
-if(errors === _errs140){
+if(data60.clamp_v !== undefined){
+let data65 = data60.clamp_v;
+const _errs139 = errors;
+if(errors === _errs139){
 if((typeof data65 == "number") && (isFinite(data65))){
 if(data65 <= 0 || isNaN(data65)){
-validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.max_timeout_ms,data:data65}];
+validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.clamp_v,data:data65}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.max_timeout_ms.type,parentSchema:schema34.properties.max_timeout_ms,data:data65}];
+validate21.errors = [{instancePath:instancePath+"/device/clamp_v",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/clamp_v/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.clamp_v.type,parentSchema:schema34.properties.clamp_v,data:data65}];
 return false;
 }
 }
-var valid21 = _errs140 === errors;
+var valid21 = _errs139 === errors;
+}
+else {
+var valid21 = true;
+}
+if(valid21){
+if(data60.max_timeout_ms !== undefined){
+let data66 = data60.max_timeout_ms;
+const _errs141 = errors;
+if(errors === _errs141){
+if((typeof data66 == "number") && (isFinite(data66))){
+if(data66 <= 0 || isNaN(data66)){
+validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema34.properties.max_timeout_ms,data:data66}];
+return false;
+}
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/device/max_timeout_ms",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/properties/max_timeout_ms/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema34.properties.max_timeout_ms.type,parentSchema:schema34.properties.max_timeout_ms,data:data66}];
+return false;
+}
+}
+var valid21 = _errs141 === errors;
 }
 else {
 var valid21 = true;
@@ -2550,197 +2578,197 @@ var valid21 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema34.type,parentSchema:schema34,data:data59}];
+validate21.errors = [{instancePath:instancePath+"/device",schemaPath:"urn:henrytick:schema:capture:1#/$defs/device/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema34.type,parentSchema:schema34,data:data60}];
 return false;
 }
 }
-var valid0 = _errs127 === errors;
+var valid0 = _errs128 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.label !== undefined){
-let data66 = data.label;
-const _errs142 = errors;
-if(typeof data66 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/label",schemaPath:"#/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.label.type,parentSchema:schema38.properties.label,data:data66}];
+let data67 = data.label;
+const _errs143 = errors;
+if(typeof data67 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/label",schemaPath:"#/properties/label/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.label.type,parentSchema:schema38.properties.label,data:data67}];
 return false;
 }
-var valid0 = _errs142 === errors;
+var valid0 = _errs143 === errors;
 }
 else {
 var valid0 = true;
 }
 if(valid0){
 if(data.test_frequency !== undefined){
-let data67 = data.test_frequency;
-const _errs144 = errors;
-if(errors === _errs144){
-if(data67 && typeof data67 == "object" && !Array.isArray(data67)){
+let data68 = data.test_frequency;
+const _errs145 = errors;
+if(errors === _errs145){
+if(data68 && typeof data68 == "object" && !Array.isArray(data68)){
 let missing9;
-if((((((((data67.asked_hz === undefined) && (missing9 = "asked_hz")) || ((data67.rang_hz === undefined) && (missing9 = "rang_hz"))) || ((data67.deviation_rel === undefined) && (missing9 = "deviation_rel"))) || ((data67.tank_index === undefined) && (missing9 = "tank_index"))) || ((data67.nearest === undefined) && (missing9 = "nearest"))) || ((data67.nearer_tanks === undefined) && (missing9 = "nearer_tanks"))) || ((data67.note === undefined) && (missing9 = "note"))){
-validate21.errors = [{instancePath:instancePath+"/test_frequency",schemaPath:"#/properties/test_frequency/required",keyword:"required",params:{missingProperty: missing9},message:"must have required property '"+missing9+"'",schema:schema38.properties.test_frequency.required,parentSchema:schema38.properties.test_frequency,data:data67}];
+if((((((((data68.asked_hz === undefined) && (missing9 = "asked_hz")) || ((data68.rang_hz === undefined) && (missing9 = "rang_hz"))) || ((data68.deviation_rel === undefined) && (missing9 = "deviation_rel"))) || ((data68.tank_index === undefined) && (missing9 = "tank_index"))) || ((data68.nearest === undefined) && (missing9 = "nearest"))) || ((data68.nearer_tanks === undefined) && (missing9 = "nearer_tanks"))) || ((data68.note === undefined) && (missing9 = "note"))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency",schemaPath:"#/properties/test_frequency/required",keyword:"required",params:{missingProperty: missing9},message:"must have required property '"+missing9+"'",schema:schema38.properties.test_frequency.required,parentSchema:schema38.properties.test_frequency,data:data68}];
 return false;
 }
 else {
-if(data67.asked_hz !== undefined){
-let data68 = data67.asked_hz;
-const _errs146 = errors;
-if(errors === _errs146){
-if((typeof data68 == "number") && (isFinite(data68))){
-if(data68 <= 0 || isNaN(data68)){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/asked_hz",schemaPath:"#/properties/test_frequency/properties/asked_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.asked_hz,data:data68}];
-return false;
-}
-}
-else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency/asked_hz",schemaPath:"#/properties/test_frequency/properties/asked_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.test_frequency.properties.asked_hz.type,parentSchema:schema38.properties.test_frequency.properties.asked_hz,data:data68}];
-return false;
-}
-}
-var valid22 = _errs146 === errors;
-}
-else {
-var valid22 = true;
-}
-if(valid22){
-if(data67.rang_hz !== undefined){
-let data69 = data67.rang_hz;
-const _errs148 = errors;
-if(errors === _errs148){
+if(data68.asked_hz !== undefined){
+let data69 = data68.asked_hz;
+const _errs147 = errors;
+if(errors === _errs147){
 if((typeof data69 == "number") && (isFinite(data69))){
 if(data69 <= 0 || isNaN(data69)){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/rang_hz",schemaPath:"#/properties/test_frequency/properties/rang_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.rang_hz,data:data69}];
+validate21.errors = [{instancePath:instancePath+"/test_frequency/asked_hz",schemaPath:"#/properties/test_frequency/properties/asked_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.asked_hz,data:data69}];
 return false;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency/rang_hz",schemaPath:"#/properties/test_frequency/properties/rang_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.test_frequency.properties.rang_hz.type,parentSchema:schema38.properties.test_frequency.properties.rang_hz,data:data69}];
+validate21.errors = [{instancePath:instancePath+"/test_frequency/asked_hz",schemaPath:"#/properties/test_frequency/properties/asked_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.test_frequency.properties.asked_hz.type,parentSchema:schema38.properties.test_frequency.properties.asked_hz,data:data69}];
 return false;
 }
 }
-var valid22 = _errs148 === errors;
-}
-else {
-var valid22 = true;
-}
-if(valid22){
-if(data67.deviation_rel !== undefined){
-let data70 = data67.deviation_rel;
-const _errs150 = errors;
-if(!((typeof data70 == "number") && (isFinite(data70)))){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/deviation_rel",schemaPath:"#/properties/test_frequency/properties/deviation_rel/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.test_frequency.properties.deviation_rel.type,parentSchema:schema38.properties.test_frequency.properties.deviation_rel,data:data70}];
-return false;
-}
-var valid22 = _errs150 === errors;
+var valid22 = _errs147 === errors;
 }
 else {
 var valid22 = true;
 }
 if(valid22){
-if(data67.tank_index !== undefined){
-let data71 = data67.tank_index;
-const _errs152 = errors;
-if(!(((typeof data71 == "number") && (!(data71 % 1) && !isNaN(data71))) && (isFinite(data71)))){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/tank_index",schemaPath:"#/properties/test_frequency/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema38.properties.test_frequency.properties.tank_index.type,parentSchema:schema38.properties.test_frequency.properties.tank_index,data:data71}];
-return false;
-}
-if(errors === _errs152){
-if((typeof data71 == "number") && (isFinite(data71))){
-if(data71 < 0 || isNaN(data71)){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/tank_index",schemaPath:"#/properties/test_frequency/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.tank_index,data:data71}];
+if(data68.rang_hz !== undefined){
+let data70 = data68.rang_hz;
+const _errs149 = errors;
+if(errors === _errs149){
+if((typeof data70 == "number") && (isFinite(data70))){
+if(data70 <= 0 || isNaN(data70)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/rang_hz",schemaPath:"#/properties/test_frequency/properties/rang_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.rang_hz,data:data70}];
 return false;
 }
 }
+else {
+validate21.errors = [{instancePath:instancePath+"/test_frequency/rang_hz",schemaPath:"#/properties/test_frequency/properties/rang_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.test_frequency.properties.rang_hz.type,parentSchema:schema38.properties.test_frequency.properties.rang_hz,data:data70}];
+return false;
 }
-var valid22 = _errs152 === errors;
+}
+var valid22 = _errs149 === errors;
 }
 else {
 var valid22 = true;
 }
 if(valid22){
-if(data67.nearest !== undefined){
-let data72 = data67.nearest;
-const _errs154 = errors;
-if(typeof data72 !== "boolean"){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearest",schemaPath:"#/properties/test_frequency/properties/nearest/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema38.properties.test_frequency.properties.nearest.type,parentSchema:schema38.properties.test_frequency.properties.nearest,data:data72}];
+if(data68.deviation_rel !== undefined){
+let data71 = data68.deviation_rel;
+const _errs151 = errors;
+if(!((typeof data71 == "number") && (isFinite(data71)))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/deviation_rel",schemaPath:"#/properties/test_frequency/properties/deviation_rel/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.test_frequency.properties.deviation_rel.type,parentSchema:schema38.properties.test_frequency.properties.deviation_rel,data:data71}];
 return false;
 }
-var valid22 = _errs154 === errors;
+var valid22 = _errs151 === errors;
 }
 else {
 var valid22 = true;
 }
 if(valid22){
-if(data67.nearer_tanks !== undefined){
-let data73 = data67.nearer_tanks;
-const _errs156 = errors;
-if(errors === _errs156){
-if(Array.isArray(data73)){
+if(data68.tank_index !== undefined){
+let data72 = data68.tank_index;
+const _errs153 = errors;
+if(!(((typeof data72 == "number") && (!(data72 % 1) && !isNaN(data72))) && (isFinite(data72)))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/tank_index",schemaPath:"#/properties/test_frequency/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema38.properties.test_frequency.properties.tank_index.type,parentSchema:schema38.properties.test_frequency.properties.tank_index,data:data72}];
+return false;
+}
+if(errors === _errs153){
+if((typeof data72 == "number") && (isFinite(data72))){
+if(data72 < 0 || isNaN(data72)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/tank_index",schemaPath:"#/properties/test_frequency/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.tank_index,data:data72}];
+return false;
+}
+}
+}
+var valid22 = _errs153 === errors;
+}
+else {
+var valid22 = true;
+}
+if(valid22){
+if(data68.nearest !== undefined){
+let data73 = data68.nearest;
+const _errs155 = errors;
+if(typeof data73 !== "boolean"){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearest",schemaPath:"#/properties/test_frequency/properties/nearest/type",keyword:"type",params:{type: "boolean"},message:"must be boolean",schema:schema38.properties.test_frequency.properties.nearest.type,parentSchema:schema38.properties.test_frequency.properties.nearest,data:data73}];
+return false;
+}
+var valid22 = _errs155 === errors;
+}
+else {
+var valid22 = true;
+}
+if(valid22){
+if(data68.nearer_tanks !== undefined){
+let data74 = data68.nearer_tanks;
+const _errs157 = errors;
+if(errors === _errs157){
+if(Array.isArray(data74)){
 var valid23 = true;
-const len2 = data73.length;
+const len2 = data74.length;
 for(let i1=0; i1<len2; i1++){
-let data74 = data73[i1];
-const _errs158 = errors;
-if(errors === _errs158){
-if(data74 && typeof data74 == "object" && !Array.isArray(data74)){
+let data75 = data74[i1];
+const _errs159 = errors;
+if(errors === _errs159){
+if(data75 && typeof data75 == "object" && !Array.isArray(data75)){
 let missing10;
-if((((data74.tank_index === undefined) && (missing10 = "tank_index")) || ((data74.predicted_hz === undefined) && (missing10 = "predicted_hz"))) || ((data74.why === undefined) && (missing10 = "why"))){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1,schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/required",keyword:"required",params:{missingProperty: missing10},message:"must have required property '"+missing10+"'",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.required,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items,data:data74}];
+if((((data75.tank_index === undefined) && (missing10 = "tank_index")) || ((data75.predicted_hz === undefined) && (missing10 = "predicted_hz"))) || ((data75.why === undefined) && (missing10 = "why"))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1,schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/required",keyword:"required",params:{missingProperty: missing10},message:"must have required property '"+missing10+"'",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.required,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items,data:data75}];
 return false;
 }
 else {
-if(data74.tank_index !== undefined){
-let data75 = data74.tank_index;
-const _errs160 = errors;
-if(!(((typeof data75 == "number") && (!(data75 % 1) && !isNaN(data75))) && (isFinite(data75)))){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/tank_index",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index,data:data75}];
+if(data75.tank_index !== undefined){
+let data76 = data75.tank_index;
+const _errs161 = errors;
+if(!(((typeof data76 == "number") && (!(data76 % 1) && !isNaN(data76))) && (isFinite(data76)))){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/tank_index",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/tank_index/type",keyword:"type",params:{type: "integer"},message:"must be integer",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index,data:data76}];
 return false;
 }
-if(errors === _errs160){
-if((typeof data75 == "number") && (isFinite(data75))){
-if(data75 < 0 || isNaN(data75)){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/tank_index",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index,data:data75}];
-return false;
-}
-}
-}
-var valid24 = _errs160 === errors;
-}
-else {
-var valid24 = true;
-}
-if(valid24){
-if(data74.predicted_hz !== undefined){
-let data76 = data74.predicted_hz;
-const _errs162 = errors;
-if(errors === _errs162){
+if(errors === _errs161){
 if((typeof data76 == "number") && (isFinite(data76))){
-if(data76 <= 0 || isNaN(data76)){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/predicted_hz",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/predicted_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz,data:data76}];
+if(data76 < 0 || isNaN(data76)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/tank_index",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/tank_index/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.tank_index,data:data76}];
 return false;
 }
 }
-else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/predicted_hz",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/predicted_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz,data:data76}];
-return false;
 }
-}
-var valid24 = _errs162 === errors;
+var valid24 = _errs161 === errors;
 }
 else {
 var valid24 = true;
 }
 if(valid24){
-if(data74.why !== undefined){
-let data77 = data74.why;
-const _errs164 = errors;
-if(typeof data77 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/why",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/why/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.why.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.why,data:data77}];
+if(data75.predicted_hz !== undefined){
+let data77 = data75.predicted_hz;
+const _errs163 = errors;
+if(errors === _errs163){
+if((typeof data77 == "number") && (isFinite(data77))){
+if(data77 <= 0 || isNaN(data77)){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/predicted_hz",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/predicted_hz/exclusiveMinimum",keyword:"exclusiveMinimum",params:{comparison: ">", limit: 0},message:"must be > 0",schema:0,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz,data:data77}];
 return false;
 }
-var valid24 = _errs164 === errors;
+}
+else {
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/predicted_hz",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/predicted_hz/type",keyword:"type",params:{type: "number"},message:"must be number",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.predicted_hz,data:data77}];
+return false;
+}
+}
+var valid24 = _errs163 === errors;
+}
+else {
+var valid24 = true;
+}
+if(valid24){
+if(data75.why !== undefined){
+let data78 = data75.why;
+const _errs165 = errors;
+if(typeof data78 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1+"/why",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/properties/why/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.why.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items.properties.why,data:data78}];
+return false;
+}
+var valid24 = _errs165 === errors;
 }
 else {
 var valid24 = true;
@@ -2750,35 +2778,35 @@ var valid24 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1,schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items,data:data74}];
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks/" + i1,schemaPath:"#/properties/test_frequency/properties/nearer_tanks/items/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema38.properties.test_frequency.properties.nearer_tanks.items.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks.items,data:data75}];
 return false;
 }
 }
-var valid23 = _errs158 === errors;
+var valid23 = _errs159 === errors;
 if(!valid23){
 break;
 }
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema38.properties.test_frequency.properties.nearer_tanks.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks,data:data73}];
+validate21.errors = [{instancePath:instancePath+"/test_frequency/nearer_tanks",schemaPath:"#/properties/test_frequency/properties/nearer_tanks/type",keyword:"type",params:{type: "array"},message:"must be array",schema:schema38.properties.test_frequency.properties.nearer_tanks.type,parentSchema:schema38.properties.test_frequency.properties.nearer_tanks,data:data74}];
 return false;
 }
 }
-var valid22 = _errs156 === errors;
+var valid22 = _errs157 === errors;
 }
 else {
 var valid22 = true;
 }
 if(valid22){
-if(data67.note !== undefined){
-let data78 = data67.note;
-const _errs166 = errors;
-if(typeof data78 !== "string"){
-validate21.errors = [{instancePath:instancePath+"/test_frequency/note",schemaPath:"#/properties/test_frequency/properties/note/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.test_frequency.properties.note.type,parentSchema:schema38.properties.test_frequency.properties.note,data:data78}];
+if(data68.note !== undefined){
+let data79 = data68.note;
+const _errs167 = errors;
+if(typeof data79 !== "string"){
+validate21.errors = [{instancePath:instancePath+"/test_frequency/note",schemaPath:"#/properties/test_frequency/properties/note/type",keyword:"type",params:{type: "string"},message:"must be string",schema:schema38.properties.test_frequency.properties.note.type,parentSchema:schema38.properties.test_frequency.properties.note,data:data79}];
 return false;
 }
-var valid22 = _errs166 === errors;
+var valid22 = _errs167 === errors;
 }
 else {
 var valid22 = true;
@@ -2792,11 +2820,11 @@ var valid22 = true;
 }
 }
 else {
-validate21.errors = [{instancePath:instancePath+"/test_frequency",schemaPath:"#/properties/test_frequency/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema38.properties.test_frequency.type,parentSchema:schema38.properties.test_frequency,data:data67}];
+validate21.errors = [{instancePath:instancePath+"/test_frequency",schemaPath:"#/properties/test_frequency/type",keyword:"type",params:{type: "object"},message:"must be object",schema:schema38.properties.test_frequency.type,parentSchema:schema38.properties.test_frequency,data:data68}];
 return false;
 }
 }
-var valid0 = _errs144 === errors;
+var valid0 = _errs145 === errors;
 }
 else {
 var valid0 = true;

@@ -70,7 +70,7 @@ describe("analyze applies the comparator timing the reading applied", () => {
     // uncalibrated), 2 pV s ± 50 %.
     expect(record.comparator).toEqual({
       skew_s: 0, skew_u_s: 0, skew_source: "board profile",
-      noise_bw_hz: c.noise_bw_hz, noise_v: c.noise_v, overdrive_v_s: c.overdrive_v_s, overdrive_u_v_s: 0.5 * c.overdrive_v_s!,
+      noise_bw_hz: c.noise_bw_hz, noise_v: c.noise_v, noise_source: "board profile", overdrive_v_s: c.overdrive_v_s, overdrive_u_v_s: 0.5 * c.overdrive_v_s!,
     });
     expect(JSON.parse(measured.stdout).settings.comparator).toEqual(record.comparator);
     // The record is what the analysis uses: without it the same edges read another Q.

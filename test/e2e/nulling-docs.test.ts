@@ -63,8 +63,8 @@ describe("lead nulling and change check examples run as shown", () => {
     expect(list.length).toBe(2);
     const runs = runAll(list);
     expectAsShown(runs);
-    expect(text).toMatch(/leads read 30\.14 nH ± 0\.40 nH \(k = 2\)/);
-    expect(runs[0].stdout).toMatch(/leads: 30\.14 nH ± 0\.40 nH \(k = 2\)/);
+    expect(text).toMatch(/leads read 30\.13 nH ± 0\.40 nH \(k = 2\)/);
+    expect(runs[0].stdout).toMatch(/leads: 30\.13 nH ± 0\.40 nH \(k = 2\)/);
     expect(text).toMatch(/reads 1\.225 µH before and 1\.195 µH after/);
     expect(runs[1].stdout).toMatch(/inductance {3}1\.195 µH/);
   });

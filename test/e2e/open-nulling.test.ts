@@ -12,7 +12,7 @@ import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { DeviceClient, measurePart } from "../../host/src/index.ts";
 import type { PartModel } from "../../host/src/index.ts";
-import { appliedCalibration, emptyProfile, singleTankBudget, validateProfile, withEntry, withTankEntries } from "../../host/src/calibration/index.ts";
+import { appliedCalibration, emptyProfile, measureSelfCapacitance, singleTankBudget, validateProfile, withEntry, withTankEntries } from "../../host/src/calibration/index.ts";
 import { measureFixtureCapacitance } from "../../host/src/calibration/open-nulling.ts";
 import { analyzeCapture } from "../../host/src/measure/read-once.ts";
 import { referenceBoard } from "../../host/src/sim/board-model.ts";
@@ -96,6 +96,22 @@ describe("the fixture in readings: added where the tank's value lacks it, never 
     const edited = JSON.parse(JSON.stringify(nulled.capture));
     edited.calibration.fixture_capacitance_f *= 2;
     expect(() => analyzeCapture(edited)).toThrow(expect.objectContaining({ code: "TANK_IMPLAUSIBLE" }));
+  });
+
+  it("the two-tank self-capacitance leaves the fixture out: the same rings give Cs lower by the fixture, with its u as an offset both tanks share", async () => {
+    // A large u_f (3 pF, invented) so that its share of u(Cs) stands out of the rings' own.
+    const fixture = { c_f: 18e-12, u_f: 3e-12, method: "terminals-vs-clips" as const, time: new Date().toISOString(), detail: "" };
+    const run = async (withFixture: boolean) => {
+      const { client } = await open(board, CHOKE, 7);
+      const p = withFixture ? withEntry(emptyProfile(client.identity.device_id, new Date()), "fixture", fixture) : emptyProfile(client.identity.device_id, new Date());
+      return measureSelfCapacitance(client, { profile: p, calibration: appliedCalibration(p, "test"), tanks: [0, 1] });
+    };
+    const without = await run(false);
+    const nulled = await run(true);
+    // C_i + Cf in both tanks: Cs = (f2² C2 − f1² C1)/(f1² − f2²) moves by exactly −Cf for the same
+    // rings; the two runs' rings differ only by the noise draw (about 0.01 pF here).
+    expect(Math.abs(without.result.self_capacitance_f - nulled.result.self_capacitance_f - 18e-12)).toBeLessThan(0.1e-12);
+    expect(Math.sqrt(nulled.result.u.self_capacitance_f ** 2 - without.result.u.self_capacitance_f ** 2)).toBeCloseTo(3e-12, 13);
   });
 
   it("a tank calibrated through the clips already holds the fixture: nothing is added; one calibrated on the terminals gets it", async () => {

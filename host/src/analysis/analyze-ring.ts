@@ -48,8 +48,9 @@ export interface FitState {
   p: Float64Array;
   /** Covariance of p (4 x 4). */
   cov: Float64Array;
+  /** Residual per edge at p, volts (edge-model.ts); NaN for an edge without a half-cycle index. */
   r: Float64Array;
-  /** d r / d p at p, row-major n x 4. */
+  /** d r / d p at p, row-major n x 4 (a zero row for an edge without an index). */
   jac: Float64Array;
   slope: Float64Array;
   variance: Float64Array;

@@ -22,6 +22,10 @@ export async function runProfile(args: string[]): Promise<number> {
       `── tester ${identity.device_id}: ${identity.product} firmware ${identity.firmware_version}, protocol v${identity.protocol_version}`,
       `   timer        ${formatSi(profile.tick_hz, "Hz", 4)}, buffer ${profile.buffer_edges} edges`,
       `   thresholds   rising ${formatSi(profile.thresholds_v[0], "V", 3)}, falling ${formatSi(profile.thresholds_v[1], "V", 3)}`,
+      ...(profile.comparator
+        ? [`   comparator   noise ${formatSi(profile.comparator.noise_v, "V", 2)} rms in ${formatSi(profile.comparator.noise_bw_hz, "Hz", 2)}, delays ${formatSi(profile.comparator.delay_rise_s, "s", 3)} rising / ` +
+          `${formatSi(profile.comparator.delay_fall_s, "s", 3)} falling (skew ± ${formatSi(profile.comparator.skew_u_s, "s", 2)}), overdrive ${formatSi(profile.comparator.overdrive_v_s, "V·s", 2)}`]
+        : []),
       `   supply       ${formatSi(profile.supply_v, "V", 3)}, clamp ${formatSi(profile.clamp_v, "V", 3)}`,
       ...profile.drives.map((d) => `   drive ${d.index}      ${formatSi(d.ohm, "Ω", 3)}, ${formatSi(d.power_rating_w, "W", 2)}, charge ≤ ${d.max_charge_us} µs` +
         (d.thermal_time_constant_s !== undefined ? `, thermal τ ${formatSi(d.thermal_time_constant_s, "s", 2)}, rest after the longest ${d.rest_after_max_ms} ms` : "")),

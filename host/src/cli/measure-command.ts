@@ -4,14 +4,14 @@ import { fstatSync, statSync } from "node:fs";
 import { dirname, join, resolve } from "node:path";
 import { writeCaptureFile } from "../capture/capture-file.ts";
 import { MeasureError, measurePart, PartFaultError } from "../measure/measure-part.ts";
-import { readingResult } from "../measure/result.ts";
+import { reportReading, selfCapacitanceJson } from "../measure/reading-report.ts";
 import { openTester } from "../open-tester.ts";
 import { intOption, numberOption, parse, refuseTogether, requireWith, testerTarget } from "./args.ts";
 import { CliUsageError, cliWording, reportError } from "./errors.ts";
 import { renderReading } from "./render.ts";
 import { csvHeader, csvRow } from "./result-csv.ts";
 import { runWatch, WATCH_OPTIONS } from "./measure-watch.ts";
-import { CalibrationError, deviceCalibration, measureSelfCapacitance, singleTankBudget, storeFor, timebaseKnowledge } from "../calibration/index.ts";
+import { deviceCalibration, storeFor } from "../calibration/index.ts";
 import { renderBudget, renderSelfCapacitance } from "./render.ts";
 import { otherWindingPeakV, resolvePeakLimit, volts } from "../ranging/safety.ts";
 import { PulseCaution, windingRatioOption } from "./caution.ts";
@@ -102,20 +102,11 @@ export async function runMeasure(args: string[]): Promise<number> {
       progress(`capture saved to ${values.save}`);
       return 0;
     };
-    const result = readingResult(reading);
-    const profile = cal?.profile ?? null;
-    let budget = singleTankBudget(reading.analysis, reading.capture.tank_c_f, timebaseKnowledge(profile, reading.settings.tank));
-    let selfCap = null;
-    let selfCapProblem: { code: string; message: string } | null = null;
-    if (values["self-cap"]) {
-      try {
-        selfCap = await measureSelfCapacitance(tester.client, { profile, calibration, first: reading, label, onProgress: progress });
-        budget = selfCap.budget;
-      } catch (e) {
-        if (!(e instanceof CalibrationError)) throw e;
-        selfCapProblem = { code: e.code, message: e.message };
-      }
-    }
+    // The budget and the two-tank correction are the library's (measure/reading-report.ts).
+    const report = await reportReading(tester.client, reading, { profile: cal?.profile ?? null, self_capacitance: values["self-cap"], calibration, label, onProgress: progress });
+    const { result, budget } = report;
+    const selfCap = report.self_capacitance ?? null;
+    const selfCapProblem = report.self_capacitance_error ?? null;
     if (values.csv) {
       // Appending to a log (>> log.csv): the header only when the file is new or empty; a time column first.
       process.stdout.write((stdoutHasContent() ? "" : csvHeader(["time"])) + csvRow(result, [new Date().toISOString()]));
@@ -126,7 +117,7 @@ export async function runMeasure(args: string[]): Promise<number> {
       // (settings.calibration.source already names the profile).
       const extra = {
         ...(values.budget || values["self-cap"] ? { budget } : {}),
-        ...(selfCap ? { self_capacitance: selfCapJson(selfCap) } : {}),
+        ...(selfCap ? { self_capacitance: selfCapacitanceJson(selfCap) } : {}),
         ...(selfCapProblem ? { self_capacitance_error: selfCapProblem } : {}),
       };
       process.stdout.write(JSON.stringify({ ...result, ...extra }, null, 2) + "\n");
@@ -153,20 +144,6 @@ function refused(e: MeasureError, json: boolean): number {
   if (kept) process.stderr.write("   no reading given; --keep-suspect returns it anyway, marked suspect\n");
   if (json) process.stdout.write(JSON.stringify({ error: { code: e.code, message: cliWording(e.message), ...(e instanceof PartFaultError ? { part_fault: true, suspect_available: kept } : {}) } }, null, 2) + "\n");
   return 1;
-}
-
-function selfCapJson(sc: NonNullable<Awaited<ReturnType<typeof measureSelfCapacitance>>>) {
-  const r = sc.result;
-  return {
-    inductance_h: r.inductance_h, inductance_u_h: 2 * r.u.inductance_h,
-    self_capacitance_f: r.self_capacitance_f, self_capacitance_u_f: 2 * r.u.self_capacitance_f,
-    // false when the two tanks give no value above zero ("not determined" in the human output)
-    self_capacitance_determined: r.self_capacitance_f > 0,
-    srf_hz: r.srf_hz, srf_u_hz: r.u.srf_hz === null ? null : 2 * r.u.srf_hz,
-    coverage_factor: 2,
-    cs_per_percent_f: r.cs_per_percent,
-    tanks: [sc.first.settings.tank, sc.second.settings.tank],
-  };
 }
 
 /** --save PATH is checked before any pulse: not a folder, and its folder exists. */

@@ -24,8 +24,10 @@ export function formatSi(value: number, unit: string, digits = 4): string {
 
 /** Value and expanded uncertainty in one prefix, the uncertainty to two significant digits. */
 export function formatWithUncertainty(value: number, u: number, unit: string): { value: string; u: string; unit: string } {
-  // Dimensionless figures (Q) are printed as plain numbers, without a prefix.
-  const [scale, prefix] = unit === "" ? [1, ""] : prefixFor(value);
+  // Dimensionless figures (Q) are printed as plain numbers, without a prefix. A value smaller than
+  // its uncertainty takes the uncertainty's prefix, so U keeps two significant digits (0.8 pF ±
+  // 9.3 pF, not 832 fF ± 9337 fF).
+  const [scale, prefix] = unit === "" ? [1, ""] : prefixFor(Number.isFinite(u) && Math.abs(u) > Math.abs(value) ? u : value);
   if (!(u > 0) || !Number.isFinite(u)) return { value: formatSi(value, unit).split(" ")[0], u: "?", unit: prefix + unit };
   const us = u / scale;
   const decimals = Math.max(0, 1 - Math.floor(Math.log10(us)));

@@ -82,7 +82,9 @@ export function comparatorRecord(profile: DeviceProfile, calibration?: AppliedCa
     : { skew_s: b!.delay_rise_s - b!.delay_fall_s, skew_u_s: 0, skew_source: "board profile" };
   if (b && b.noise_bw_hz > 0) {
     c.noise_bw_hz = b.noise_bw_hz;
+    // Where the board states no noise, the noise the fit's scatter implies stands in.
     if (b.noise_v > 0) c.noise_v = b.noise_v;
+    c.noise_source = b.noise_v > 0 ? "board profile" : "fit";
   }
   if (b && b.overdrive_v_s > 0) {
     c.overdrive_v_s = b.overdrive_v_s;

@@ -11,6 +11,7 @@ import type { PlanLimits } from "../ranging/predict.ts";
 import { predictSetting, type SettingPrediction } from "../ranging/predict.ts";
 import { resolvePeakLimit, volts } from "../ranging/safety.ts";
 import { formatSi } from "../format/si.ts";
+import type { ErrorCode } from "../codes.ts";
 import { adviseSettings } from "../ranging/advice.ts";
 import { describeFrequencyChoice, orderForFrequency, TEST_FREQUENCY_RANGE, type FrequencyChoice } from "../ranging/choose-setting.ts";
 import { autoRange, probePart, quietAfterUs } from "./auto-range.ts";
@@ -190,18 +191,20 @@ export function fixedReading(client: DeviceClient, raw: RawCapture, opts: Measur
 }
 
 /**
- * SETTING_UNSUITED: a fixed setting the advice refused for this part (too few edges above the
- * thresholds, edges faster than the capture stores) gave no usable ring, as predicted.
+ * A fixed setting the advice refused for this part (too few edges above the thresholds, edges
+ * faster than the capture stores) gave no usable ring, as predicted. The code stays the
+ * analysis's (a no-usable-ring code, on which callers such as the calibration procedures try
+ * another setting); the message gives the cause and the setting to use instead.
  */
-function unsuitedSetting(client: DeviceClient, settings: MeasureSettings, p: SettingPrediction, code: string, advice: Advice[]): MeasureError {
+function unsuitedSetting(client: DeviceClient, settings: MeasureSettings, p: SettingPrediction, code: ErrorCode, advice: Advice[]): MeasureError {
   const best = advice.find((a) => a.refused === "");
   const profile = client.profile;
   const instead = best
     ? `drive ${best.drive} (${formatSi(profile.drives[best.drive].ohm, "Ω", 3)}) with tank ${best.tank} (${formatSi(profile.tanks[best.tank].nominal_f, "F", 3)}) is the advice's first choice`
     : "no setting suits the part within the limits";
   return new MeasureError(
-    "SETTING_UNSUITED",
-    `no usable ring on ${describeSetting(client, settings)} (${code}), as the advice predicted for this part: ${p.refused.replace(/\.$/, "")}. The part and its connection are not the cause; ${instead}, or leave the setting to automatic ranging (options drive, tank unset)`,
+    code,
+    `no usable ring on ${describeSetting(client, settings)}, as the advice predicted for this part: ${p.refused.replace(/\.$/, "")}. The part and its connection are not the cause; ${instead}, or leave the setting to automatic ranging (options drive, tank unset)`,
   );
 }
 

@@ -20,3 +20,11 @@ describe("formatting values", () => {
     for (const v of [4.7e-6, 330e-6, 1.5e-3, 82e-3, 1.2e-6, 47e-9]) expect(parseValue(iecCode(v)).value).toBeCloseTo(v, 15);
   });
 });
+
+describe("a value smaller than its uncertainty", () => {
+  it("takes the uncertainty's prefix, so U keeps two significant digits", () => {
+    expect(formatMeasured(832e-15, 9337e-15, "F")).toBe("0.8 pF ± 9.3 pF");
+    expect(formatMeasured(-906e-12, 1575e-12, "s")).toBe("-0.9 ns ± 1.6 ns");
+    expect(formatMeasured(20.3e-9, 2.2e-9, "s")).toBe("20.3 ns ± 2.2 ns");
+  });
+});
