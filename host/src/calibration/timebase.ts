@@ -94,7 +94,7 @@ export async function measureTimebase(counter: TickCounter, clock: HostClock, du
 export function timebaseUnsupported(): CalibrationError {
   return new CalibrationError(
     "TIMEBASE_UNSUPPORTED",
-    "this tester's firmware cannot report its tick counter; enter a timebase measured with a frequency counter (calibrate timebase --ppm P --u-ppm U), or rely on a reference-inductor calibration, in which the crystal's error cancels",
+    "this tester's firmware cannot report its tick counter; enter a timebase measured with a frequency counter (the profile's timebase entry, ppm and u_ppm), or rely on a reference-inductor calibration, in which the crystal's error cancels",
   );
 }
 

@@ -131,7 +131,7 @@ function readBounded(path: string): string {
     const r = e.refusal;
     switch (r.kind) {
       case "open": throw new CaptureFileError(`cannot read ${path}: ${r.code}; check the path and its permissions`);
-      case "not-regular": throw new CaptureFileError(`${path} is ${r.what}, not a capture file; give the path of a file written by "henrytick measure --save"`);
+      case "not-regular": throw new CaptureFileError(`${path} is ${r.what}, not a capture file; give the path of a capture file a measurement saved`);
       case "too-large": throw new CaptureFileError(`${path} is ${r.size} bytes, more than a capture file can be (at most ${MAX_CAPTURE_BYTES} bytes for ${MAX_CAPTURE_EDGES} edges); it is not a capture file`);
       case "grew": throw new CaptureFileError(`${path} grew while being read (over ${r.size} bytes); read it again once it is written`);
       default: throw new CaptureFileError(`cannot read ${path}: ${r.code}`);

@@ -155,6 +155,9 @@ const LIBRARY_OPTIONS: [RegExp, string][] = [
   [/\(options drive, tank unset\)/g, "(no --drive or --tank)"],
   [/with the profile left out \(uncalibrated\)/g, "with --uncalibrated"],
   [/give the logs another name/g, "give another --log name"],
+  [/give the port's path directly, e\.g\. /g, "give the port's path directly with --port, e.g. "],
+  [/a capture file a measurement saved/g, 'a file written by "henrytick measure --save"'],
+  [/\(the profile's timebase entry, ppm and u_ppm\)/g, "(calibrate timebase --ppm P --u-ppm U)"],
 ];
 
 /** A library message in the command line's terms: option names become the flags that set them. */

@@ -110,7 +110,7 @@ export async function listSerialPorts(): Promise<SerialPortInfo[]> {
     throw new CodedError(
       "PORTS_UNAVAILABLE",
       `this system cannot list serial ports (${(e as Error).message.split("\n")[0]}); ` +
-        "give the path directly, e.g. --port /dev/ttyACM0 (Linux), --port /dev/cu.usbmodem1101 (macOS) or --port COM3 (Windows); " +
+        "give the port's path directly, e.g. /dev/ttyACM0 (Linux), /dev/cu.usbmodem1101 (macOS) or COM3 (Windows); " +
         "on Linux, ls /dev/ttyACM* /dev/ttyUSB* shows the candidates",
     );
   }
